@@ -1,0 +1,5 @@
+"""Allow ``python -m tri``."""
+
+from tri.cli import main
+
+raise SystemExit(main())
