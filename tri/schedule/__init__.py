@@ -1,0 +1,1 @@
+"""Panel schedules: typed immutable model, TOML loading with located errors, atomic saving."""

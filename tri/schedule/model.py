@@ -1,0 +1,316 @@
+"""Typed, immutable model of a panel schedule.
+
+Every object here is a frozen dataclass. Edits produce new objects with
+:func:`dataclasses.replace` or the ``with_*`` helpers; the file layer keeps
+the TOML document beside the model so that saving keeps comments.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass, field, replace
+from typing import Literal
+
+from tri.schedule.slots import TWO_COLUMN, slot_phases
+from tri.schedule.systems import SYSTEMS, SupplySystem
+
+FORMAT_VERSION = 1
+LoadKind = Literal["va", "w", "a"]
+LOAD_KEYS: dict[str, LoadKind] = {"load_va": "va", "load_w": "w", "load_a": "a"}
+DEFAULT_LABELS = ("A", "B", "C")
+
+
+@dataclass(frozen=True)
+class PanelInfo:
+    """The ``[panel]`` table.
+
+    Attributes
+    ----------
+    name : str
+        Panel name as on its door.
+    system : str
+        Key of :data:`tri.schedule.systems.SYSTEMS`.
+    frequency_hz : float
+        System frequency [Hz].
+    spaces : int
+        Number of circuit positions (slots).
+    bus_a : float
+        Bus rating [A].
+    main_a : float or None
+        Main breaker rating [A]; ``None`` for main-lug-only.
+    neutral_a : float or None
+        Neutral rating [A]; ``None`` means equal to ``bus_a``.
+    phase_labels : tuple of 3 str
+        Labels of the phases, e.g. ``("A", "B", "C")`` or ``("L1", "L2", "L3")``.
+    layout : str
+        ``"two-column"`` (slots) or ``"phases"`` (each circuit names its phases).
+    """
+
+    name: str
+    system: str
+    frequency_hz: float
+    spaces: int
+    bus_a: float
+    main_a: float | None = None
+    neutral_a: float | None = None
+    phase_labels: tuple[str, str, str] = DEFAULT_LABELS
+    layout: str = TWO_COLUMN
+
+    @property
+    def supply_system(self) -> SupplySystem:
+        """The catalogue entry for ``system``."""
+        return SYSTEMS[self.system]
+
+    @property
+    def effective_neutral_a(self) -> float:
+        """Neutral rating [A], defaulting to the bus rating."""
+        return self.bus_a if self.neutral_a is None else self.neutral_a
+
+    @property
+    def uses_slots(self) -> bool:
+        """True for two-column panels whose circuits sit in numbered slots."""
+        return self.layout == TWO_COLUMN
+
+
+@dataclass(frozen=True)
+class Supply:
+    """The optional ``[supply]`` table: transformer and feeder behind the panel.
+
+    Units: kVA, %, -, m, ohm/km (see :class:`tri.engine.inputs.SupplyImpedance`).
+    """
+
+    transformer_kva: float
+    transformer_z_pct: float
+    transformer_x_r: float
+    feeder_length_m: float = 0.0
+    feeder_r_ohm_per_km: float = 0.0
+    feeder_x_ohm_per_km: float = 0.0
+    neutral_r_ohm_per_km: float = 0.0
+    neutral_x_ohm_per_km: float = 0.0
+
+
+Triple = tuple[float | None, float | None, float | None]
+
+
+@dataclass(frozen=True)
+class Readings:
+    """The optional ``[readings]`` table: what was measured on site.
+
+    Attributes
+    ----------
+    phase_amps : tuple of 3
+        True-RMS phase currents in phase order [A] (``None`` where not measured).
+    neutral_amps : float or None
+        True-RMS neutral current [A].
+    volts_ll : tuple of 3
+        Line-to-line voltages AB, BC, CA [V].
+    volts_ln : tuple of 3
+        Line-to-neutral voltages in phase order [V].
+    taken : str or None
+        When or by whom, free text (a TOML date is kept as its ISO text).
+    """
+
+    phase_amps: Triple = (None, None, None)
+    neutral_amps: float | None = None
+    volts_ll: Triple = (None, None, None)
+    volts_ln: Triple = (None, None, None)
+    taken: str | None = None
+
+    @property
+    def is_empty(self) -> bool:
+        """True when nothing was measured."""
+        values = (*self.phase_amps, self.neutral_amps, *self.volts_ll, *self.volts_ln)
+        return all(v is None for v in values)
+
+
+@dataclass(frozen=True)
+class UserProfile:
+    """A harmonic profile defined in the file under ``[profiles.NAME]``.
+
+    Attributes
+    ----------
+    name : str
+        Profile name used by circuits.
+    harmonics : tuple of (int, float, float)
+        ``(order, magnitude relative to the fundamental [pu], angle [deg])``.
+    description : str
+        Free text (for example where the spectrum came from).
+    """
+
+    name: str
+    harmonics: tuple[tuple[int, float, float], ...]
+    description: str = ""
+
+
+@dataclass(frozen=True)
+class Circuit:
+    """One ``[[circuit]]`` entry.
+
+    Attributes
+    ----------
+    name : str
+        Purpose of the circuit, as in the panel directory.
+    poles : int
+        1 (line-to-neutral), 2 (line-to-line) or 3 (three-phase).
+    slot : int or None
+        First slot of the breaker (two-column panels); ``None`` otherwise.
+    phases : tuple of int or None
+        Phase indices 0..2 it connects to, in pole order; ``None`` when the
+        circuit is not placed yet (a new circuit).
+    load_kind : {"va", "w", "a"}
+        How the load was given: apparent power, real power, or line current.
+    load_value : float
+        The load in the unit of ``load_kind`` [VA], [W] or [A].
+    pf : float
+        Displacement power factor, 0 < pf <= 1 [-].
+    leading : bool
+        True when the power factor is leading (capacitive).
+    profile : str
+        Harmonic profile name (built-in or user).
+    continuous : bool
+        Continuous load (3 h or more).
+    locked : bool
+        The rebalancer must not move it.
+    breaker_a : float or None
+        Breaker rating [A].
+    note : str
+        Free text.
+    source_index : int or None
+        Position of the circuit's table in the file it was loaded from; lets
+        saving update that table in place. Not part of equality.
+    """
+
+    name: str
+    poles: int = 1
+    slot: int | None = None
+    phases: tuple[int, ...] | None = None
+    load_kind: LoadKind = "va"
+    load_value: float = 0.0
+    pf: float = 1.0
+    leading: bool = False
+    profile: str = "linear"
+    continuous: bool = False
+    locked: bool = False
+    breaker_a: float | None = None
+    note: str = ""
+    source_index: int | None = field(default=None, compare=False)
+
+    @property
+    def is_placed(self) -> bool:
+        """True when the circuit is connected to phases."""
+        return self.phases is not None
+
+    def apparent_power_va(self, system: SupplySystem) -> float:
+        """Apparent power |S| of the whole circuit [VA].
+
+        A load in amperes is the line current: ``|S| = I*V_LN`` for 1 pole,
+        ``I*V_LL`` for 2 poles and ``sqrt(3)*I*V_LL`` for 3 poles.
+        """
+        if self.load_kind == "va":
+            return self.load_value
+        if self.load_kind == "w":
+            return self.load_value / self.pf
+        v = system.circuit_voltage(self.poles)
+        return self.load_value * v * (math.sqrt(3.0) if self.poles == 3 else 1.0)
+
+    def complex_power_va(self, system: SupplySystem) -> complex:
+        """Complex power ``S = P + jQ`` [VA], ``Q > 0`` lagging."""
+        s = self.apparent_power_va(system)
+        q_sign = -1.0 if self.leading else 1.0
+        sin_phi = math.sqrt(max(0.0, 1.0 - self.pf * self.pf))
+        return complex(s * self.pf, q_sign * s * sin_phi)
+
+    def real_power_w(self, system: SupplySystem) -> float:
+        """Real power P [W]."""
+        return self.apparent_power_va(system) * self.pf
+
+    def at_slot(self, slot: int | None) -> Circuit:
+        """This circuit moved to ``slot`` of a two-column panel (``None`` = unplaced)."""
+        if slot is None:
+            return replace(self, slot=None, phases=None)
+        return replace(self, slot=slot, phases=slot_phases(slot, self.poles))
+
+    def on_phases(self, phases: tuple[int, ...] | None) -> Circuit:
+        """This circuit connected to ``phases`` of a rail board (``None`` = unplaced)."""
+        return replace(self, slot=None, phases=None if phases is None else tuple(phases))
+
+
+@dataclass(frozen=True)
+class Schedule:
+    """A whole panel schedule.
+
+    ``circuits`` keep the order of the file; new circuits are appended.
+    """
+
+    panel: PanelInfo
+    circuits: tuple[Circuit, ...] = ()
+    supply: Supply | None = None
+    readings: Readings | None = None
+    profiles: tuple[UserProfile, ...] = ()
+    format: int = FORMAT_VERSION
+
+    @property
+    def system(self) -> SupplySystem:
+        """Supply-system catalogue entry of the panel."""
+        return self.panel.supply_system
+
+    @property
+    def labels(self) -> tuple[str, str, str]:
+        """Phase labels of the panel."""
+        return self.panel.phase_labels
+
+    def phase_text(self, phases: tuple[int, ...] | None) -> str:
+        """Phases as label text, e.g. ``"A"``, ``"BC"``, ``"L1-L2"``; ``"-"`` if unplaced."""
+        if phases is None:
+            return "-"
+        names = [self.labels[p] for p in phases]
+        joiner = "-" if any(len(n) > 1 for n in names) else ""
+        return joiner.join(names)
+
+    def profile_map(self) -> dict[str, UserProfile]:
+        """User profiles by name."""
+        return {p.name: p for p in self.profiles}
+
+    def with_circuit(self, index: int, circuit: Circuit) -> Schedule:
+        """A copy with circuit ``index`` replaced (source position kept)."""
+        old = self.circuits[index]
+        new = replace(circuit, source_index=old.source_index)
+        return replace(self, circuits=(*self.circuits[:index], new, *self.circuits[index + 1 :]))
+
+    def with_added(self, circuit: Circuit) -> Schedule:
+        """A copy with ``circuit`` appended as a new circuit."""
+        return replace(self, circuits=(*self.circuits, replace(circuit, source_index=None)))
+
+    def without(self, index: int) -> Schedule:
+        """A copy with circuit ``index`` removed."""
+        return replace(self, circuits=self.circuits[:index] + self.circuits[index + 1 :])
+
+    def circuit_at_slot(self, slot: int) -> int | None:
+        """Index of the circuit whose breaker occupies ``slot``, or ``None``."""
+        for i, c in enumerate(self.circuits):
+            if c.slot is not None and slot in range(c.slot, c.slot + 2 * c.poles, 2):
+                return i
+        return None
+
+
+def parse_phase_text(text: str, labels: tuple[str, str, str]) -> tuple[int, ...] | None:
+    """Phase indices from text such as ``"A"``, ``"BC"``, ``"L1-L2"``, ``"l2 l3"``.
+
+    Labels match case-insensitively, longest first; ``-``, ``,``, ``/`` and
+    spaces separate. Returns ``None`` when the text is not made of labels.
+    """
+    rest = "".join(ch for ch in text.upper() if ch not in "-,/ _")
+    if not rest:
+        return None
+    order = sorted(range(3), key=lambda i: -len(labels[i]))
+    out: list[int] = []
+    while rest:
+        for i in order:
+            lab = labels[i].upper()
+            if lab and rest.startswith(lab):
+                out.append(i)
+                rest = rest[len(lab) :]
+                break
+        else:
+            return None
+    return tuple(out)

@@ -1,0 +1,407 @@
+"""Save a schedule: update the TOML document in place, write atomically, keep a backup.
+
+Saving never rewrites what did not change. Each table of the model is
+compared with what the original document says; only tables that differ are
+touched, and within them only the keys that differ. Comments, key order and
+the formatting of untouched parts survive.
+"""
+
+from __future__ import annotations
+
+import contextlib
+import os
+import shutil
+import tempfile
+from pathlib import Path
+from typing import Any
+
+import tomlkit
+from tomlkit.items import AoT, Table, Whitespace
+from tomlkit.toml_document import TOMLDocument
+
+from tri.schedule.errors import ScheduleError, ScheduleIssue
+from tri.schedule.load import (
+    _read_panel,
+    _read_profiles,
+    _read_readings,
+    _read_supply,
+    _Reader,
+    read_circuit,
+)
+from tri.schedule.model import (
+    FORMAT_VERSION,
+    Circuit,
+    PanelInfo,
+    Readings,
+    Schedule,
+    Supply,
+    UserProfile,
+    parse_phase_text,
+)
+from tri.schedule.slots import PHASES, TWO_COLUMN
+
+BACKUP_SUFFIX = ".bak"
+
+HEADER_COMMENT = (
+    "Panel schedule for tri. Edit it by hand or with `tri FILE`; keep it in version control.",
+    "Units: VA, W, A, V, Hz. See the README's file reference for every key.",
+)
+
+
+def _clean(value: Any) -> Any:
+    """Whole floats as integers, tuples as lists, so files stay tidy."""
+    if isinstance(value, float) and value.is_integer() and abs(value) < 1e15:
+        return int(value)
+    if isinstance(value, tuple):
+        return [_clean(v) for v in value]
+    return value
+
+
+def _same(a: Any, b: Any) -> bool:
+    if isinstance(a, list | tuple) and isinstance(b, list | tuple):
+        return len(a) == len(b) and all(_same(x, y) for x, y in zip(a, b, strict=True))
+    return a == b
+
+
+def _set(table: Any, key: str, value: Any, default: Any = None) -> None:
+    """Set ``key`` only if its value changes; drop it when it becomes ``None``.
+
+    A key that is absent stays absent while the value equals ``default``.
+    """
+    present = key in table
+    if value is None:
+        if present:
+            del table[key]
+        return
+    if not present:
+        if default is not None and _same(value, default):
+            return
+        table[key] = _clean(value)
+        return
+    current = table[key]
+    current = current.unwrap() if hasattr(current, "unwrap") else current
+    if not _same(current, value):
+        table[key] = _clean(value)
+
+
+def _insert_table(doc: TOMLDocument, key: str, table: Table, after: tuple[str, ...]) -> None:
+    """Add a filled top-level table after the first existing key of ``after`` (else at the end)."""
+    table.add(tomlkit.nl())
+    keys = list(doc.keys())
+    for anchor in after:
+        if anchor in doc and anchor != keys[-1]:
+            try:
+                doc._insert_after(anchor, key, table)
+            except Exception:
+                break
+            return
+    doc[key] = table
+
+
+def _quiet_reader() -> _Reader:
+    return _Reader(None, None)
+
+
+def _write_panel(doc: TOMLDocument, panel: PanelInfo) -> None:
+    existing = doc.get("panel")
+    if (
+        isinstance(existing, dict)
+        and _read_panel(_quiet_reader(), {"panel": existing.unwrap()}) == panel
+    ):
+        return
+    created = not isinstance(existing, Table)
+    t = tomlkit.table() if created else existing
+    system = panel.supply_system
+    _set(t, "name", panel.name)
+    _set(t, "system", panel.system)
+    _set(t, "frequency_hz", panel.frequency_hz, system.default_frequency_hz)
+    _set(t, "spaces", panel.spaces)
+    _set(t, "bus_a", panel.bus_a)
+    _set(t, "main_a", panel.main_a)
+    _set(t, "neutral_a", panel.neutral_a)
+    _set(t, "phase_labels", list(panel.phase_labels), ["A", "B", "C"])
+    _set(t, "layout", panel.layout, TWO_COLUMN)
+    if created:
+        _insert_table(doc, "panel", t, ("format",))
+
+
+def _write_supply(doc: TOMLDocument, supply: Supply | None) -> None:
+    existing = doc.get("supply")
+    if supply is None:
+        if existing is not None:
+            del doc["supply"]
+        return
+    if (
+        isinstance(existing, dict)
+        and _read_supply(_quiet_reader(), {"supply": existing.unwrap()}) == supply
+    ):
+        return
+    created = not isinstance(existing, Table)
+    t = tomlkit.table() if created else existing
+    for key, value in vars(supply).items():
+        _set(t, key, value, 0.0)
+    if created:
+        _insert_table(doc, "supply", t, ("panel", "format"))
+
+
+def _triple_table(labels: list[str], values: tuple[Any, ...], extra: dict[str, Any]) -> Any:
+    t = tomlkit.inline_table()
+    for label, v in zip(labels, values, strict=True):
+        if v is not None:
+            t[label] = v
+    for k, v in extra.items():
+        if v is not None:
+            t[k] = v
+    return t
+
+
+def _write_readings(doc: TOMLDocument, readings: Readings | None, panel: PanelInfo) -> None:
+    existing = doc.get("readings")
+    if readings is None:
+        if existing is not None:
+            del doc["readings"]
+        return
+    if isinstance(existing, dict):
+        old = _read_readings(_quiet_reader(), {"readings": existing.unwrap()}, panel)
+        if old == readings:
+            return
+    created = not isinstance(existing, Table)
+    t = tomlkit.table() if created else existing
+    lab = list(panel.phase_labels)
+    pairs = [lab[0] + lab[1], lab[1] + lab[2], lab[2] + lab[0]]
+    if any(len(x) > 1 for x in lab):
+        pairs = [f"{lab[0]}-{lab[1]}", f"{lab[1]}-{lab[2]}", f"{lab[2]}-{lab[0]}"]
+    parts = {
+        "amps": _triple_table(lab, readings.phase_amps, {"N": readings.neutral_amps}),
+        "volts_ll": _triple_table(pairs, readings.volts_ll, {}),
+        "volts_ln": _triple_table(lab, readings.volts_ln, {}),
+    }
+    for key, table in parts.items():
+        if len(table) == 0:
+            if key in t:
+                del t[key]
+        else:
+            t[key] = table
+    _set(t, "taken", readings.taken)
+    if created:
+        _insert_table(doc, "readings", t, ("supply", "panel", "format"))
+
+
+def _profile_table(profile: UserProfile) -> Table:
+    t = tomlkit.table()
+    if profile.description:
+        t["description"] = profile.description
+    rows = tomlkit.array()
+    for order, mag, ang in profile.harmonics:
+        rows.append([order, _clean(mag), _clean(ang)])
+    t["harmonics"] = rows
+    return t
+
+
+def _write_profiles(doc: TOMLDocument, profiles: tuple[UserProfile, ...]) -> None:
+    existing = doc.get("profiles")
+    if isinstance(existing, dict):
+        old = _read_profiles(_quiet_reader(), {"profiles": existing.unwrap()})
+        if old == profiles:
+            return
+    if not profiles:
+        if existing is not None:
+            del doc["profiles"]
+        return
+    if not isinstance(existing, Table):
+        existing = tomlkit.table(is_super_table=True)
+        _insert_table(doc, "profiles", existing, ("readings", "supply", "panel", "format"))
+        existing = doc["profiles"]
+    wanted = {p.name: p for p in profiles}
+    for name in list(existing.keys()):
+        if name not in wanted:
+            del existing[name]
+    for name, profile in wanted.items():
+        body = existing.get(name)
+        if isinstance(body, dict):
+            old = _read_profiles(_quiet_reader(), {"profiles": {name: body.unwrap()}})
+            if old == (profile,):
+                continue
+            _set(body, "description", profile.description or None)
+            body["harmonics"] = [[o, _clean(m), _clean(a)] for o, m, a in profile.harmonics]
+        else:
+            table = _profile_table(profile)
+            table.add(tomlkit.nl())
+            existing[name] = table
+
+
+def _write_circuit(table: Any, c: Circuit, schedule: Schedule) -> None:
+    panel = schedule.panel
+    if isinstance(table, dict) and c.source_index is not None:
+        old = read_circuit(_quiet_reader(), table.unwrap(), c.source_index, panel)
+        if old == c:
+            return
+    if panel.layout == TWO_COLUMN:
+        _set(table, "slot", c.slot)
+        if "phases" in table:
+            del table["phases"]
+    else:
+        old_phases = table.get("phases")
+        old_parsed = (
+            parse_phase_text(str(old_phases), panel.phase_labels)
+            if isinstance(old_phases, str)
+            else None
+        )
+        if c.phases is None:
+            _set(table, "phases", None)
+        elif old_parsed != c.phases:
+            table["phases"] = schedule.phase_text(c.phases)
+        if "slot" in table:
+            del table["slot"]
+    _set(table, "name", c.name)
+    poles_default = len(c.phases) if (panel.layout == PHASES and c.phases) else 1
+    if "poles" in table or c.poles != poles_default:
+        _set(table, "poles", c.poles)
+    load_key = f"load_{c.load_kind}"
+    for key in ("load_va", "load_w", "load_a"):
+        if key != load_key and key in table:
+            del table[key]
+    _set(table, load_key, c.load_value)
+    _set(table, "pf", c.pf, 1.0)
+    _set(table, "leading", c.leading, False)
+    _set(table, "profile", c.profile, "linear")
+    _set(table, "continuous", c.continuous, False)
+    _set(table, "locked", c.locked, False)
+    _set(table, "breaker_a", c.breaker_a)
+    if c.note or "note" in table:
+        _set(table, "note", c.note or None)
+
+
+def _write_circuits(doc: TOMLDocument, schedule: Schedule) -> None:
+    existing = doc.get("circuit")
+    if not schedule.circuits:
+        if existing is not None:
+            del doc["circuit"]
+        return
+    old_tables: list[Any] = list(existing) if isinstance(existing, AoT) else []
+    order = [c.source_index for c in schedule.circuits]
+    kept = [k for k in order if k is not None and k < len(old_tables)]
+    n_old = sum(1 for k in order if k is not None)
+    new_at_end = len(kept) == n_old and all(k is None for k in order[len(kept) :])
+    if isinstance(existing, AoT) and kept == sorted(set(kept)) and new_at_end:
+        # Usual case: circuits edited, some deleted, new ones appended.
+        for k in reversed(range(len(old_tables))):
+            if k not in kept:
+                del existing[k]
+        aot = existing
+        first_new = len(kept)
+    else:
+        # Reordered: rebuild the array, reusing each original table once.
+        used: set[int] = set()
+        rebuilt = tomlkit.aot()
+        for k in order:
+            if k is not None and k < len(old_tables) and k not in used:
+                used.add(k)
+                rebuilt.append(old_tables[k])
+            else:
+                rebuilt.append(tomlkit.table())
+        if existing is not None:
+            del doc["circuit"]
+        doc["circuit"] = rebuilt
+        aot = doc["circuit"]
+        first_new = 0
+    tables = list(aot)
+    for i, c in enumerate(schedule.circuits):
+        if i < len(tables):
+            _write_circuit(tables[i], c, schedule)
+        else:
+            t = tomlkit.table()
+            _write_circuit(t, c, schedule)
+            aot.append(t)
+    tables = list(aot)
+    for t in tables[max(0, first_new - 1) : -1]:
+        _end_with_blank_line(t)
+
+
+def _end_with_blank_line(table: Table) -> None:
+    """Separate an existing last table from the ones appended after it."""
+    body = table.value.body
+    if not body or not isinstance(body[-1][1], Whitespace):
+        table.add(tomlkit.nl())
+
+
+def updated_document(schedule: Schedule, original: TOMLDocument | None = None) -> TOMLDocument:
+    """A TOML document for ``schedule``, based on ``original`` where given.
+
+    The original is not modified: a copy is parsed from its text and only the
+    tables and keys whose values differ from the model are changed.
+    """
+    if original is None:
+        doc = tomlkit.document()
+        for line in HEADER_COMMENT:
+            doc.add(tomlkit.comment(line))
+        doc.add("format", FORMAT_VERSION)
+        doc.add(tomlkit.nl())
+    else:
+        doc = tomlkit.parse(original.as_string())
+        _set(doc, "format", schedule.format)
+    _write_panel(doc, schedule.panel)
+    _write_supply(doc, schedule.supply)
+    _write_readings(doc, schedule.readings, schedule.panel)
+    _write_profiles(doc, schedule.profiles)
+    _write_circuits(doc, schedule)
+    return doc
+
+
+def schedule_text(schedule: Schedule, original: TOMLDocument | None = None) -> str:
+    """The TOML text that :func:`save_schedule` would write."""
+    return updated_document(schedule, original).as_string()
+
+
+def write_atomic(path: str | Path, text: str, *, backup: bool = True) -> Path | None:
+    """Write ``text`` to ``path`` atomically; keep the previous file as ``path.bak``.
+
+    The text goes to a temporary file in the same folder, is flushed and
+    synced, then renamed over the target, so a crash leaves either the old
+    or the new file, never half of one. Returns the backup path, if one was made.
+
+    Raises
+    ------
+    ScheduleError
+        When the folder cannot be written; the original file is untouched.
+    """
+    target = Path(path)
+    folder = target.parent if str(target.parent) else Path(".")
+    bak: Path | None = None
+    tmp_name = None
+    try:
+        fd, tmp_name = tempfile.mkstemp(prefix=f".{target.name}.", suffix=".tmp", dir=folder)
+        with os.fdopen(fd, "w", encoding="utf-8", newline="") as fh:
+            fh.write(text)
+            fh.flush()
+            os.fsync(fh.fileno())
+        if target.exists():
+            shutil.copymode(target, tmp_name)
+            if backup:
+                bak = target.with_name(target.name + BACKUP_SUFFIX)
+                shutil.copy2(target, bak)
+        else:
+            os.chmod(tmp_name, 0o644)
+        os.replace(tmp_name, target)
+        tmp_name = None
+    except OSError as exc:
+        raise ScheduleError(
+            [ScheduleIssue(f"cannot save: {exc.strerror or exc}", file=str(path))]
+        ) from None
+    finally:
+        if tmp_name is not None:
+            with contextlib.suppress(OSError):
+                os.unlink(tmp_name)
+    return bak
+
+
+def save_schedule(
+    path: str | Path, schedule: Schedule, original: TOMLDocument | None = None
+) -> TOMLDocument:
+    """Save ``schedule`` to ``path`` atomically, keeping comments of ``original``.
+
+    Returns the document written, to be kept as the new ``original``.
+    """
+    doc = updated_document(schedule, original)
+    write_atomic(path, doc.as_string())
+    return doc

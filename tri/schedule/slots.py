@@ -1,0 +1,71 @@
+"""Where a breaker sits and which phases it takes.
+
+Two-column panels (layout ``"two-column"``): odd slots on the left, even on
+the right, numbered from the top; slot ``n`` sits in row ``(n + 1) // 2`` and
+the rows cycle A, B, C from the top (slots 1-2 on A, 3-4 on B, 5-6 on C,
+7-8 on A ...). A 2-pole breaker in slot ``n`` also takes slot ``n + 2`` (the
+next row of the same column), a 3-pole also ``n + 4`` [common practice].
+
+Rail-mounted boards (layout ``"phases"``) have no slot geometry: each
+circuit names its phases.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Iterable
+
+TWO_COLUMN = "two-column"
+PHASES = "phases"
+LAYOUTS = (TWO_COLUMN, PHASES)
+
+
+def slot_row(slot: int) -> int:
+    """Row (1-based, from the top) of a slot in a two-column panel."""
+    return (slot + 1) // 2
+
+
+def slot_phase(slot: int) -> int:
+    """Phase index 0..2 (A, B, C) of a slot in a two-column panel."""
+    return (slot_row(slot) - 1) % 3
+
+
+def slot_column(slot: int) -> str:
+    """``"left"`` for odd slots, ``"right"`` for even slots."""
+    return "left" if slot % 2 == 1 else "right"
+
+
+def occupied_slots(slot: int, poles: int) -> tuple[int, ...]:
+    """Slots taken by a breaker of ``poles`` poles whose first pole is in ``slot``."""
+    return tuple(slot + 2 * k for k in range(poles))
+
+
+def slot_phases(slot: int, poles: int) -> tuple[int, ...]:
+    """Phase indices a breaker in ``slot`` connects to, in pole order.
+
+    A 3-pole breaker is reported as ``(0, 1, 2)`` whatever slot it starts in,
+    since it takes one pole on each phase.
+    """
+    if poles >= 3:
+        return (0, 1, 2)
+    return tuple(slot_phase(s) for s in occupied_slots(slot, poles))
+
+
+def fits(slot: int, poles: int, spaces: int) -> bool:
+    """True when every pole of the breaker lies on the panel."""
+    return slot >= 1 and slot + 2 * (poles - 1) <= spaces
+
+
+def free_slots(spaces: int, taken: Iterable[int]) -> list[int]:
+    """Slots 1..spaces not in ``taken``."""
+    used = set(taken)
+    return [s for s in range(1, spaces + 1) if s not in used]
+
+
+def candidate_slots(poles: int, spaces: int, taken: Iterable[int]) -> list[int]:
+    """First-pole slots where a breaker of ``poles`` poles fits in free space."""
+    used = set(taken)
+    return [
+        s
+        for s in range(1, spaces + 1)
+        if fits(s, poles, spaces) and not used.intersection(occupied_slots(s, poles))
+    ]

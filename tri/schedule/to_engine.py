@@ -1,0 +1,96 @@
+"""Turn a schedule model into the engine's plain-data inputs.
+
+This is the only place that knows both the model and the engine's input
+contract (:mod:`tri.engine.inputs`).
+"""
+
+from __future__ import annotations
+
+import numpy as np
+
+from tri.engine.inputs import (
+    LINE_TO_LINE,
+    LINE_TO_NEUTRAL,
+    THREE_PHASE,
+    UNPLACED,
+    CircuitArrays,
+    MeasuredReadings,
+    Ratings,
+    SupplyImpedance,
+    SystemVoltages,
+)
+from tri.engine.profiles import profile_matrix
+from tri.schedule.model import Circuit, Schedule
+
+DEFAULT_CONTINUOUS_FACTOR = 1.25
+
+
+def connection_of(circuit: Circuit) -> tuple[int, int, int]:
+    """``(connection, phase_p, phase_q)`` codes of one circuit for the engine."""
+    if circuit.phases is None:
+        return UNPLACED, 0, 0
+    if circuit.poles == 1:
+        p = circuit.phases[0]
+        return LINE_TO_NEUTRAL, p, p
+    if circuit.poles == 2:
+        return LINE_TO_LINE, circuit.phases[0], circuit.phases[1]
+    return THREE_PHASE, 0, 0
+
+
+def circuit_arrays(schedule: Schedule) -> CircuitArrays:
+    """Every circuit of ``schedule`` as engine arrays (unplaced ones contribute nothing)."""
+    system = schedule.system
+    circuits = schedule.circuits
+    n = len(circuits)
+    codes = np.array([connection_of(c) for c in circuits], dtype=np.int64).reshape(n, 3)
+    s_va = np.array([c.complex_power_va(system) for c in circuits], dtype=complex)
+    pf = np.array([c.pf for c in circuits], dtype=float)
+    volts = np.array([system.circuit_voltage(c.poles) for c in circuits], dtype=float)
+    user = {p.name: p.harmonics for p in schedule.profiles}
+    harmonics, orders = profile_matrix([c.profile for c in circuits], pf, volts, user)
+    return CircuitArrays(
+        s_va=s_va,
+        connection=codes[:, 0],
+        phase_p=codes[:, 1],
+        phase_q=codes[:, 2],
+        harmonics=harmonics,
+        orders=orders,
+        continuous=np.array([c.continuous for c in circuits], dtype=bool),
+    )
+
+
+def system_voltages(schedule: Schedule) -> SystemVoltages:
+    """Nominal voltages and frequency of the panel's system."""
+    return schedule.system.voltages(schedule.panel.frequency_hz)
+
+
+def ratings(schedule: Schedule, continuous_factor: float = DEFAULT_CONTINUOUS_FACTOR) -> Ratings:
+    """Bus, main and neutral ratings of the panel [A]."""
+    p = schedule.panel
+    return Ratings(
+        bus_a=p.bus_a,
+        main_a=p.main_a,
+        neutral_a=p.effective_neutral_a if schedule.system.has_neutral else None,
+        continuous_factor=continuous_factor,
+    )
+
+
+def supply_impedance(schedule: Schedule) -> SupplyImpedance | None:
+    """The ``[supply]`` table for the engine, or ``None``."""
+    s = schedule.supply
+    if s is None:
+        return None
+    return SupplyImpedance(**vars(s))
+
+
+def measured(schedule: Schedule) -> MeasuredReadings | None:
+    """The ``[readings]`` table for the engine, or ``None`` when nothing was measured."""
+    r = schedule.readings
+    if r is None or r.is_empty:
+        return None
+    return MeasuredReadings(
+        phase_amps=r.phase_amps,
+        neutral_amps=r.neutral_amps,
+        volts_ll=r.volts_ll,
+        volts_ln=r.volts_ln,
+    )
