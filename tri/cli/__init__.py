@@ -1,0 +1,99 @@
+"""The ``tri`` command line.
+
+``tri FILE`` opens the terminal UI; ``tri COMMAND ...`` runs a headless
+command. Each command lives in its own module with ``add_parser`` and
+``run``; this module dispatches and makes sure no traceback reaches a user.
+"""
+
+from __future__ import annotations
+
+import argparse
+import os
+import sys
+from collections.abc import Sequence
+from types import ModuleType
+
+from tri import __version__
+from tri.cli import check, new, open_ui, report, suggest
+from tri.cli.common import EXIT_ERROR, EXIT_INTERNAL, CliError, print_error
+from tri.schedule.errors import ScheduleError
+
+COMMANDS: dict[str, ModuleType] = {
+    "new": new,
+    "report": report,
+    "check": check,
+    "suggest": suggest,
+    "open": open_ui,
+}
+
+DESCRIPTION = """\
+Balance three-phase distribution panels from a schedule kept as TOML.
+
+  tri FILE                 open FILE in the terminal UI (same as 'tri open FILE')
+  tri                      choose a demo panel or a recent file
+  tri new FILE ...         start a new schedule
+  tri report FILE          phase, neutral and voltage figures (text, json, markdown, csv)
+  tri check FILE           exit 0 when within limits, 1 when not (for scripts and CI)
+  tri suggest FILE         fewest breaker moves to rebalance; best slots for new circuits
+
+Figures are engineering estimates. Panel work can kill: de-energise, let a
+qualified person do it, and let the local electrical code and the authority
+having jurisdiction decide."""
+
+
+def build_parser() -> argparse.ArgumentParser:
+    """The full argument parser (commands as sub-parsers)."""
+    parser = argparse.ArgumentParser(
+        prog="tri",
+        description=DESCRIPTION,
+        formatter_class=argparse.RawDescriptionHelpFormatter,
+    )
+    parser.add_argument("--version", action="version", version=f"tri {__version__}")
+    sub = parser.add_subparsers(dest="command", metavar="COMMAND")
+    for module in COMMANDS.values():
+        module.add_parser(sub)
+    return parser
+
+
+def _normalise(argv: list[str]) -> list[str]:
+    """``tri FILE`` and bare ``tri`` mean ``tri open ...``."""
+    if not argv:
+        return ["open"]
+    first = argv[0]
+    if first in COMMANDS or first.startswith("-"):
+        return argv
+    return ["open", *argv]
+
+
+def main(argv: Sequence[str] | None = None) -> int:
+    """Run the command line; returns the exit status (0 ok, 1 check failed, 2 bad input)."""
+    args_list = _normalise(list(sys.argv[1:] if argv is None else argv))
+    parser = build_parser()
+    try:
+        args = parser.parse_args(args_list)
+        module = COMMANDS[args.command]
+        return int(module.run(args) or 0)
+    except ScheduleError as exc:
+        print_error(exc.summary())
+        return EXIT_ERROR
+    except CliError as exc:
+        print_error(str(exc))
+        return EXIT_ERROR
+    except KeyboardInterrupt:
+        print_error("interrupted")
+        return 130
+    except BrokenPipeError:
+        # Output piped into something that stopped reading (e.g. `head`).
+        devnull = os.open(os.devnull, os.O_WRONLY)
+        os.dup2(devnull, sys.stdout.fileno())
+        return 0
+    except SystemExit as exc:
+        return int(exc.code) if isinstance(exc.code, int) else (0 if exc.code is None else 2)
+    except Exception as exc:  # never show a traceback to a user
+        print_error(
+            f"internal error: {type(exc).__name__}: {exc}\n"
+            "Nothing was written. Please report this with the file that caused it."
+        )
+        if os.environ.get("TRI_DEBUG"):
+            raise
+        return EXIT_INTERNAL
