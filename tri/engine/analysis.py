@@ -1,0 +1,415 @@
+"""Top-level analysis of a panel (or a batch of panels).
+
+:func:`analyse_batch` does the numerics on arrays of any leading batch
+shape and returns a :class:`~tri.engine.results.BatchAnalysis`;
+:func:`analyse` runs the same code on one panel and adds the findings,
+the readings comparison and plain-number results
+(:class:`~tri.engine.results.PanelAnalysis`).
+
+Unless ``iterate_voltage`` is set, every current is computed at nominal
+voltage, as panel schedules are (``I = conj(S / V)``). With a supply and
+``iterate_voltage=True`` every load draws its scheduled power at the
+computed panel voltage, and all currents (fundamental and harmonics) follow
+from that solution; ``PanelAnalysis.currents_basis`` says which.
+
+References
+----------
+See the modules: :mod:`tri.engine.phasors`, :mod:`tri.engine.sequence`,
+:mod:`tri.engine.harmonics`, :mod:`tri.engine.supply`,
+:mod:`tri.engine.unbalance`, :mod:`tri.engine.loading`,
+:mod:`tri.engine.readings`.
+"""
+
+from __future__ import annotations
+
+import dataclasses
+import math
+
+import numpy as np
+
+from tri.engine.harmonics import order_currents, rms, thd_pct
+from tri.engine.inputs import (
+    LINE_TO_LINE,
+    LINE_TO_NEUTRAL,
+    THREE_PHASE,
+    UNPLACED,
+    CircuitArrays,
+    MeasuredReadings,
+    Ratings,
+    SupplyImpedance,
+    SystemVoltages,
+)
+from tri.engine.loading import (
+    FindingLimits,
+    continuous_weights,
+    loading_pct,
+    panel_findings,
+    three_pole_triplen_finding,
+    voltage_findings,
+)
+from tri.engine.phasors import (
+    element_currents,
+    line_voltages,
+    nominal_phase_voltages,
+    schedule_va,
+)
+from tri.engine.readings import compare_readings
+from tri.engine.results import (
+    BatchAnalysis,
+    CurrentUnbalance,
+    NeutralResult,
+    PanelAnalysis,
+    PhaseResult,
+    Phasor,
+    SequenceResult,
+    VoltageResult,
+)
+from tri.engine.sequence import sequence_components, unbalance_pct
+from tri.engine.supply import solve_voltages, supply_impedances, transformer_impedance
+from tri.engine.unbalance import deviation_rate_pct, nema_derating, vuf_pct
+
+#: Phasors smaller than this fraction of the panel's total circuit current are
+#: round-off and are set to exactly 0 (so a balanced neutral reads 0∠0°) [-].
+SNAP_RELATIVE = 1e-12
+
+BASIS_NOMINAL = "nominal voltage"
+BASIS_ITERATED = "panel voltage (iterated constant power)"
+
+
+def check_inputs(circuits: CircuitArrays, system: SystemVoltages, ratings: Ratings) -> None:
+    """Raise ``ValueError`` for input the engine cannot analyse.
+
+    Parameters
+    ----------
+    circuits : CircuitArrays
+    system : SystemVoltages
+    ratings : Ratings
+
+    Notes
+    -----
+    Checked: array shapes agree; connection codes known; phase indices 0..2
+    on placed rows; a 2-pole circuit's phases differ; complex powers finite;
+    no line-to-neutral circuit on a 3-wire system; voltages and ratings > 0.
+    """
+    shape = np.shape(circuits.s_va)
+    if not shape:
+        raise ValueError("circuit arrays need at least one axis (circuits)")
+    for name in ("connection", "phase_p", "phase_q", "continuous"):
+        if np.shape(getattr(circuits, name)) != shape:
+            raise ValueError(f"{name} has shape {np.shape(getattr(circuits, name))}, not {shape}")
+    h = np.shape(circuits.orders)
+    if len(h) != 1 or np.shape(circuits.harmonics) != (*shape, h[0]):
+        raise ValueError("harmonics must have shape (..., n, len(orders))")
+    if h[0] and np.any(np.asarray(circuits.orders) < 2):
+        raise ValueError("harmonic orders must be > 1 (the fundamental is implicit)")
+    conn = np.asarray(circuits.connection)
+    if not np.all(np.isin(conn, (UNPLACED, LINE_TO_NEUTRAL, LINE_TO_LINE, THREE_PHASE))):
+        raise ValueError("unknown connection code")
+    placed = (conn == LINE_TO_NEUTRAL) | (conn == LINE_TO_LINE)
+    for name in ("phase_p", "phase_q"):
+        idx = np.asarray(getattr(circuits, name))
+        if np.any(placed & ((idx < 0) | (idx > 2))):
+            raise ValueError(f"{name} must be 0, 1 or 2 on placed circuits")
+    if np.any((conn == LINE_TO_LINE) & (circuits.phase_p == circuits.phase_q)):
+        raise ValueError("a line-to-line circuit needs two different phases")
+    if not np.all(np.isfinite(circuits.s_va)) or not np.all(np.isfinite(circuits.harmonics)):
+        raise ValueError("loads and harmonics must be finite numbers")
+    if not system.has_neutral and np.any(conn == LINE_TO_NEUTRAL):
+        raise ValueError("line-to-neutral circuit on a 3-wire system (no neutral)")
+    if not system.v_ll > 0 or (system.v_ln is not None and not system.v_ln > 0):
+        raise ValueError("system voltages must be > 0")
+    for name in ("bus_a", "main_a", "neutral_a"):
+        value = getattr(ratings, name)
+        if value is not None and not value > 0:
+            raise ValueError(f"rating {name} must be > 0, got {value!r}")
+    if not ratings.continuous_factor > 0:
+        raise ValueError("continuous_factor must be > 0")
+
+
+def _snap(x: np.ndarray, scale: np.ndarray, extra_dims: int) -> np.ndarray:
+    """Zero phasors below ``SNAP_RELATIVE·scale`` (``scale`` per panel)."""
+    s = np.reshape(scale, np.shape(scale) + (1,) * extra_dims)
+    return np.where(np.abs(x) <= SNAP_RELATIVE * s, 0, x)
+
+
+def analyse_batch(
+    circuits: CircuitArrays,
+    system: SystemVoltages,
+    ratings: Ratings,
+    supply: SupplyImpedance | None = None,
+    *,
+    iterate_voltage: bool = False,
+    tol: float = 1e-9,
+    max_iter: int = 100,
+) -> BatchAnalysis:
+    """Numeric analysis of one panel or a batch of panels.
+
+    Parameters
+    ----------
+    circuits : CircuitArrays
+        Shape (B..., n) (``B`` may be empty); shorter panels padded with
+        ``UNPLACED`` rows of zero load.
+    system : SystemVoltages
+        Nominal voltages, shared by the batch.
+    ratings : Ratings
+        Ratings, shared by the batch [A].
+    supply : SupplyImpedance, optional
+        Transformer and feeder; enables the voltage results.
+    iterate_voltage : bool
+        Solve loads as constant power at the panel voltage (needs ``supply``).
+    tol, max_iter : float, int
+        Iteration tolerance [pu of V_LN] and limit.
+
+    Returns
+    -------
+    BatchAnalysis
+        Arrays with leading shape ``B``; each panel's figures equal those of
+        the panel analysed alone.
+    """
+    check_inputs(circuits, system, ratings)
+    batch = np.shape(circuits.s_va)[:-1]
+    conn = np.asarray(circuits.connection)
+    e = nominal_phase_voltages(system.v_ln_or_derived)
+
+    sol = None
+    if supply is not None:
+        sol = solve_voltages(
+            circuits, system, supply, iterate=iterate_voltage, tol=tol, max_iter=max_iter
+        )
+        i_e = sol.i_element
+    else:
+        i_e = element_currents(circuits, e)
+
+    weights = continuous_weights(circuits.continuous, ratings.continuous_factor)
+    oc = order_currents(circuits, i_e, weights if np.any(circuits.continuous) else None)
+    scale = np.sum(oc.circuit_rms_a, axis=-1)
+    phase_spec = _snap(oc.phase, scale, 2)
+    neutral_spec = _snap(oc.neutral, scale, 1)
+    design_spec = phase_spec if oc.phase_weighted is None else oc.phase_weighted
+
+    rating = ratings.main_a if ratings.main_a is not None else ratings.bus_a
+    neutral_rating = ratings.neutral_a if ratings.neutral_a is not None else ratings.bus_a
+    phase_rms = rms(phase_spec)
+    design_rms = rms(design_spec)
+    neutral_rms = rms(neutral_spec)
+    fund = phase_spec[..., 0]
+    seq = _snap(sequence_components(fund), scale, 1)
+
+    s_abs = np.abs(np.asarray(circuits.s_va))
+    placed = conn != UNPLACED
+    nonlinear = np.any(np.abs(circuits.harmonics) > 0, axis=-1) & placed
+    total_va = np.sum(np.where(placed, s_abs, 0.0), axis=-1)
+    nl_va = np.sum(np.where(nonlinear, s_abs, 0.0), axis=-1)
+    nl_share = np.where(total_va > 0, 100.0 * nl_va / np.where(total_va > 0, total_va, 1.0), 0.0)
+    triplen_cols = np.asarray(circuits.orders) % 3 == 0
+    tp_triplen = np.any(
+        (conn == THREE_PHASE) & np.any(np.abs(circuits.harmonics[..., triplen_cols]) > 0, -1),
+        axis=-1,
+    )
+
+    volt: dict[str, np.ndarray | None] = {}
+    if sol is not None:
+        v_line = line_voltages(sol.v_phase)
+        line_dev = deviation_rate_pct(np.abs(v_line))
+        volt = {
+            "v_phase": sol.v_phase,
+            "v_line": v_line,
+            "vuf_pct": vuf_pct(v_line),
+            "line_deviation_pct": line_dev,
+            "phase_deviation_pct": (
+                deviation_rate_pct(np.abs(sol.v_phase))
+                if system.has_neutral
+                else np.full(batch, np.nan)
+            ),
+            "motor_derating": nema_derating(line_dev),
+            "iterations": sol.iterations,
+            "converged": sol.converged,
+        }
+
+    return BatchAnalysis(
+        orders=oc.orders,
+        phase_va=schedule_va(circuits),
+        phase_spectrum=phase_spec,
+        phase_rms_a=phase_rms,
+        phase_thd_pct=thd_pct(phase_spec),
+        phase_loading_pct=loading_pct(phase_rms, rating),
+        phase_design_a=design_rms,
+        phase_design_loading_pct=loading_pct(design_rms, rating),
+        neutral_spectrum=neutral_spec,
+        neutral_rms_a=neutral_rms,
+        neutral_loading_pct=loading_pct(neutral_rms, neutral_rating),
+        sequence=seq,
+        negative_sequence_pct=unbalance_pct(seq, 2),
+        zero_sequence_pct=unbalance_pct(seq, 0),
+        max_deviation_pct=deviation_rate_pct(phase_rms),
+        max_deviation_fundamental_pct=deviation_rate_pct(np.abs(fund)),
+        circuit_current_a=oc.circuit_fundamental_a,
+        circuit_rms_a=oc.circuit_rms_a,
+        nonlinear_share_pct=nl_share,
+        unplaced_count=np.sum((conn == UNPLACED) & (s_abs > 0), axis=-1),
+        three_pole_triplens=tp_triplen,
+        **volt,
+    )
+
+
+def _f(x: np.ndarray | float) -> float:
+    return float(np.asarray(x))
+
+
+def _phasors3(x: np.ndarray) -> tuple[Phasor, Phasor, Phasor]:
+    return (Phasor.of(x[0]), Phasor.of(x[1]), Phasor.of(x[2]))
+
+
+def analyse(
+    circuits: CircuitArrays,
+    system: SystemVoltages,
+    ratings: Ratings,
+    supply: SupplyImpedance | None = None,
+    readings: MeasuredReadings | None = None,
+    *,
+    iterate_voltage: bool = False,
+    phase_labels: tuple[str, str, str] = ("A", "B", "C"),
+    limits: FindingLimits | None = None,
+    tol: float = 1e-9,
+    max_iter: int = 100,
+) -> PanelAnalysis:
+    """Analyse one panel: currents, neutral, sequence, harmonics, voltages, findings.
+
+    Parameters
+    ----------
+    circuits : CircuitArrays
+        One panel, per-circuit arrays of shape (n,) (n may be 0).
+    system : SystemVoltages
+        Nominal voltages [V].
+    ratings : Ratings
+        Bus, main and neutral ratings [A] and the continuous factor [-].
+    supply : SupplyImpedance, optional
+        Transformer and feeder; without it ``voltage`` is None.
+    readings : MeasuredReadings, optional
+        Site readings; without them ``readings`` is None.
+    iterate_voltage : bool
+        With a supply, solve loads as constant power at the panel voltage.
+    phase_labels : tuple of 3 str
+        Labels for results and messages (e.g. ``("L1", "L2", "L3")``).
+    limits : FindingLimits, optional
+        Thresholds for findings (defaults: common practice and the cited
+        standards).
+    tol, max_iter : float, int
+        Voltage iteration tolerance [pu of V_LN] and limit.
+
+    Returns
+    -------
+    PanelAnalysis
+
+    Raises
+    ------
+    ValueError
+        For malformed input (:func:`check_inputs`) or batched arrays.
+    """
+    if np.ndim(circuits.s_va) != 1:
+        raise ValueError("analyse() takes one panel; use analyse_batch() for a batch")
+    if iterate_voltage and supply is None:
+        raise ValueError("iterate_voltage needs a supply description")
+    limits = limits or FindingLimits()
+    b = analyse_batch(
+        circuits,
+        system,
+        ratings,
+        supply,
+        iterate_voltage=iterate_voltage,
+        tol=tol,
+        max_iter=max_iter,
+    )
+    labels = tuple(phase_labels)
+    if len(labels) != 3:
+        raise ValueError("phase_labels needs three labels")
+    orders = tuple(int(h) for h in b.orders)
+
+    phases = tuple(
+        PhaseResult(
+            label=labels[k],
+            va=_f(b.phase_va[k]),
+            current=Phasor.of(b.phase_spectrum[k, 0]),
+            rms_a=_f(b.phase_rms_a[k]),
+            thd_pct=_f(b.phase_thd_pct[k]),
+            loading_pct=_f(b.phase_loading_pct[k]),
+            design_a=_f(b.phase_design_a[k]),
+            design_loading_pct=_f(b.phase_design_loading_pct[k]),
+            harmonic_a=tuple(float(x) for x in np.abs(b.phase_spectrum[k])),
+        )
+        for k in range(3)
+    )
+    max_phase = max(p.rms_a for p in phases)
+    neutral_rms = _f(b.neutral_rms_a)
+    neutral_rating = ratings.neutral_a if ratings.neutral_a is not None else ratings.bus_a
+    neutral = NeutralResult(
+        present=system.has_neutral,
+        current=Phasor.of(b.neutral_spectrum[0]),
+        rms_a=neutral_rms,
+        rating_a=float(neutral_rating) if system.has_neutral else None,
+        loading_pct=_f(b.neutral_loading_pct) if system.has_neutral else None,
+        ratio_to_max_phase=neutral_rms / max_phase if max_phase > 0 else 0.0,
+        harmonic_a=tuple(float(x) for x in np.abs(b.neutral_spectrum)),
+    )
+    voltage = None
+    if supply is not None:
+        z_ph, z_n = supply_impedances(supply, system)
+        tx = transformer_impedance(
+            supply.transformer_kva, supply.transformer_z_pct, supply.transformer_x_r, system.v_ll
+        )
+        vln = system.v_ln_or_derived
+        derating = _f(b.motor_derating)
+        phase_dev = _f(b.phase_deviation_pct)
+        voltage = VoltageResult(
+            phase_v=_phasors3(b.v_phase),
+            line_v=_phasors3(b.v_line),
+            vuf_pct=_f(b.vuf_pct),
+            line_deviation_pct=_f(b.line_deviation_pct),
+            phase_deviation_pct=None if math.isnan(phase_dev) else phase_dev,
+            motor_derating=None if math.isnan(derating) else derating,
+            drop_pct=tuple(float(100.0 * (vln - abs(v)) / vln) for v in b.v_phase),  # type: ignore[arg-type]
+            z_phase_ohm=complex(z_ph),
+            z_neutral_ohm=complex(z_n),
+            transformer_full_load_a=tx.full_load_a,
+            iterated=iterate_voltage,
+            iterations=int(b.iterations),
+            converged=bool(b.converged),
+        )
+    seq = b.sequence
+    a = PanelAnalysis(
+        phase_labels=labels,  # type: ignore[arg-type]
+        v_ll=float(system.v_ll),
+        v_ln=None if system.v_ln is None else float(system.v_ln),
+        frequency_hz=float(system.frequency_hz),
+        currents_basis=BASIS_ITERATED if iterate_voltage else BASIS_NOMINAL,
+        orders=orders,
+        rating_a=float(ratings.main_a if ratings.main_a is not None else ratings.bus_a),
+        continuous_factor=float(ratings.continuous_factor),
+        phases=phases,  # type: ignore[arg-type]
+        neutral=neutral,
+        sequence=SequenceResult(Phasor.of(seq[0]), Phasor.of(seq[1]), Phasor.of(seq[2])),
+        current_unbalance=CurrentUnbalance(
+            negative_sequence_pct=_f(b.negative_sequence_pct),
+            zero_sequence_pct=_f(b.zero_sequence_pct),
+            max_deviation_pct=_f(b.max_deviation_pct),
+            max_deviation_fundamental_pct=_f(b.max_deviation_fundamental_pct),
+        ),
+        voltage=voltage,
+        readings=None,
+        findings=(),
+        circuit_current_a=tuple(float(x) for x in b.circuit_current_a),
+        circuit_rms_a=tuple(float(x) for x in b.circuit_rms_a),
+        nonlinear_share_pct=_f(b.nonlinear_share_pct),
+        unplaced_count=int(b.unplaced_count),
+    )
+    findings = panel_findings(a, limits)
+    if bool(b.three_pole_triplens):
+        findings.append(three_pole_triplen_finding())
+    findings.extend(voltage_findings(a, limits))
+    comparison = None
+    if readings is not None:
+        comparison, more = compare_readings(a, readings, limits)
+        findings.extend(more)
+    order = {"limit": 0, "warning": 1, "info": 2}
+    findings.sort(key=lambda f: order[f.level])
+    return dataclasses.replace(a, readings=comparison, findings=tuple(findings))
