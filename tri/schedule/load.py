@@ -471,7 +471,7 @@ def _read_readings(r: _Reader, data: Mapping[str, Any], panel: PanelInfo | None)
                 if nominal is None:
                     r.add(f"a {system.key} system has no neutral to measure to", table, key, where)
                     ok = False
-                elif not 0.5 * nominal <= v <= 1.5 * nominal:
+                elif not 0.8 * nominal <= v <= 1.2 * nominal:
                     r.add(
                         f"found {v:g} V, expected near the nominal {nominal:g} V {what} "
                         "of the panel's system",
@@ -583,12 +583,25 @@ def read_circuit(
     raw: Any,
     index: int,
     panel: PanelInfo | None,
+    *,
+    stand_in: bool = False,
 ) -> Circuit | None:
-    """One ``[[circuit]]`` table as a :class:`Circuit`, or ``None`` after reporting problems."""
+    """One ``[[circuit]]`` table as a :class:`Circuit`, or ``None`` after reporting problems.
+
+    With ``stand_in``, a circuit whose only problems are outside its
+    placement (load, power factor, ...) still comes back, with neutral
+    values in place of the bad ones, so that slot clashes with it are found
+    in the same pass. Callers must not use such a stand-in as real data
+    (``r.issues`` is not empty then).
+    """
     table: TableKey = ("circuit", index)
     name_hint = raw.get("name") if isinstance(raw, dict) else None
     slot_hint = raw.get("slot") if isinstance(raw, dict) else None
-    place = f"slot {slot_hint}, " if isinstance(slot_hint, int) else ""
+    place = (
+        f"slot {slot_hint}, "
+        if isinstance(slot_hint, int) and not isinstance(slot_hint, bool)
+        else ""
+    )
     shown = f'"{name_hint}"' if isinstance(name_hint, str) else "unnamed"
     where = f"circuit {index + 1} ({place}{shown})"
     if not isinstance(raw, dict):
@@ -655,8 +668,24 @@ def read_circuit(
             where,
             index,
         )
-    if len(r.issues) > start or panel is None:
+    if panel is None:
         return None
+    if len(r.issues) > start:
+        geometry_ok = all(
+            i.key not in ("slot", "phases", "poles", "name") for i in r.issues[start:]
+        )
+        if not (stand_in and geometry_ok):
+            return None
+        name, load_kind, load_value = name if isinstance(name, str) else "", "va", 0.0
+        pf, leading, profile, continuous, locked, breaker, note = (
+            1.0,
+            False,
+            "linear",
+            False,
+            False,
+            None,
+            "",
+        )
     if poles is None:
         poles = len(phases) if phases else 1
     placed: tuple[int, ...] | None = None
@@ -802,7 +831,7 @@ def build_schedule(
         )
         raw_circuits = []
     for index, raw in enumerate(raw_circuits):
-        c = read_circuit(r, raw, index, panel)
+        c = read_circuit(r, raw, index, panel, stand_in=True)
         if c is not None:
             circuits.append(c)
     if panel is not None:
