@@ -8,6 +8,7 @@ from __future__ import annotations
 
 import numpy as np
 
+from tri.engine.analysis import analyse
 from tri.engine.inputs import (
     LINE_TO_LINE,
     LINE_TO_NEUTRAL,
@@ -19,7 +20,9 @@ from tri.engine.inputs import (
     SupplyImpedance,
     SystemVoltages,
 )
+from tri.engine.loading import FindingLimits
 from tri.engine.profiles import profile_matrix
+from tri.engine.results import PanelAnalysis
 from tri.schedule.model import Circuit, Schedule
 
 DEFAULT_CONTINUOUS_FACTOR = 1.25
@@ -93,4 +96,36 @@ def measured(schedule: Schedule) -> MeasuredReadings | None:
         neutral_amps=r.neutral_amps,
         volts_ll=r.volts_ll,
         volts_ln=r.volts_ln,
+    )
+
+
+def analyse_schedule(
+    schedule: Schedule,
+    *,
+    iterate_voltage: bool = False,
+    continuous_factor: float = DEFAULT_CONTINUOUS_FACTOR,
+    limits: FindingLimits | None = None,
+) -> PanelAnalysis:
+    """Run the engine on a schedule: the one call the CLI, the UI and the rebalancer share.
+
+    Parameters
+    ----------
+    schedule : Schedule
+        The panel.
+    iterate_voltage : bool
+        With a ``[supply]``, solve loads as constant power at the panel voltage.
+    continuous_factor : float
+        Multiplier on continuous loads for the sizing check [-].
+    limits : FindingLimits, optional
+        Thresholds for findings.
+    """
+    return analyse(
+        circuit_arrays(schedule),
+        system_voltages(schedule),
+        ratings(schedule, continuous_factor),
+        supply_impedance(schedule),
+        measured(schedule),
+        iterate_voltage=iterate_voltage,
+        phase_labels=schedule.labels,
+        limits=limits,
     )
