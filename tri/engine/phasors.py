@@ -53,6 +53,7 @@ from tri.engine.inputs import (
     UNPLACED,
     CircuitArrays,
 )
+from tri.engine.sequence import sequence_components
 
 #: Phase angles of the positive-sequence set A, B, C [rad].
 PHASE_ANGLES = np.deg2rad(np.array([0.0, -120.0, 120.0]))
@@ -165,7 +166,7 @@ def element_voltages(circuits: CircuitArrays, v_phase: np.ndarray) -> np.ndarray
     ln, ll, tp = connection_masks(circuits)
     vp = _take(v_phase, circuits.phase_p)
     vq = _take(v_phase, circuits.phase_q)
-    v1 = (v_phase @ np.conj(PHASE_UNIT)) / 3.0  # (V_A + a V_B + a² V_C) / 3
+    v1 = sequence_components(v_phase)[..., 1]  # (V_A + a V_B + a² V_C) / 3
     v1 = np.broadcast_to(np.asarray(v1)[..., None], vp.shape)
     return np.where(ln, vp, 0) + np.where(ll, vp - vq, 0) + np.where(tp, v1, 0)
 

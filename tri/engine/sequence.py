@@ -52,7 +52,11 @@ def sequence_components(x_abc: np.ndarray) -> np.ndarray:
     ``X_1 = (X_A + a·X_B + a²·X_C) / 3``,
     ``X_2 = (X_A + a²·X_B + a·X_C) / 3``.
     """
-    return np.asarray(x_abc, dtype=complex) @ A_INVERSE.T
+    x = np.asarray(x_abc, dtype=complex)
+    xa, xb, xc = x[..., 0], x[..., 1], x[..., 2]
+    a, a2 = A_OP, A_OP**2
+    # element-wise (not a BLAS product) so batch and single results agree bit for bit
+    return np.stack([xa + xb + xc, xa + a * xb + a2 * xc, xa + a2 * xb + a * xc], -1) / 3.0
 
 
 def phase_components(x_012: np.ndarray) -> np.ndarray:
@@ -73,7 +77,10 @@ def phase_components(x_012: np.ndarray) -> np.ndarray:
     ``X_A = X_0 + X_1 + X_2``, ``X_B = X_0 + a²X_1 + aX_2``,
     ``X_C = X_0 + aX_1 + a²X_2`` [2].
     """
-    return np.asarray(x_012, dtype=complex) @ A_MATRIX.T
+    x = np.asarray(x_012, dtype=complex)
+    x0, x1, x2 = x[..., 0], x[..., 1], x[..., 2]
+    a, a2 = A_OP, A_OP**2
+    return np.stack([x0 + x1 + x2, x0 + a2 * x1 + a * x2, x0 + a * x1 + a2 * x2], -1)
 
 
 def unbalance_pct(x_012: np.ndarray, which: int = 2) -> np.ndarray:
