@@ -57,6 +57,7 @@ from tri.engine.readings import compare_readings
 from tri.engine.results import (
     BatchAnalysis,
     CurrentUnbalance,
+    Finding,
     NeutralResult,
     PanelAnalysis,
     PhaseResult,
@@ -288,7 +289,8 @@ def analyse(
     readings : MeasuredReadings, optional
         Site readings; without them ``readings`` is None.
     iterate_voltage : bool
-        With a supply, solve loads as constant power at the panel voltage.
+        With a supply, solve loads as constant power at the panel voltage
+        (without one it has no effect beyond an info finding).
     phase_labels : tuple of 3 str
         Labels for results and messages (e.g. ``("L1", "L2", "L3")``).
     limits : FindingLimits, optional
@@ -305,11 +307,18 @@ def analyse(
     ------
     ValueError
         For malformed input (:func:`check_inputs`) or batched arrays.
+
+    Notes
+    -----
+    The computation is :func:`analyse_batch` on a batch of one; this function
+    only converts its arrays to plain numbers and adds findings (loading,
+    neutral, balance, voltage, readings; see :mod:`tri.engine.loading` and
+    :mod:`tri.engine.readings`), ordered limit, warning, info.
     """
     if np.ndim(circuits.s_va) != 1:
         raise ValueError("analyse() takes one panel; use analyse_batch() for a batch")
-    if iterate_voltage and supply is None:
-        raise ValueError("iterate_voltage needs a supply description")
+    iterate_requested = iterate_voltage
+    iterate_voltage = iterate_voltage and supply is not None
     limits = limits or FindingLimits()
     b = analyse_batch(
         circuits,
@@ -406,6 +415,15 @@ def analyse(
     if bool(b.three_pole_triplens):
         findings.append(three_pole_triplen_finding())
     findings.extend(voltage_findings(a, limits))
+    if iterate_requested and supply is None:
+        findings.append(
+            Finding(
+                "info",
+                "Voltage iteration was asked for, but no supply is described; currents are "
+                "at nominal voltage.",
+                "tri engine option (needs the supply table)",
+            )
+        )
     comparison = None
     if readings is not None:
         comparison, more = compare_readings(a, readings, limits)

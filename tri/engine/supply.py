@@ -259,3 +259,27 @@ def solve_voltages(
             break
     # currents consistent with the final voltages
     return VoltageSolution(v, element_currents(circuits, v), iterations, converged)
+
+
+def effective_z_ohm(r: float | np.ndarray, x: float | np.ndarray, pf: float) -> np.ndarray:
+    """Effective impedance of a conductor for voltage-drop estimates.
+
+    Parameters
+    ----------
+    r, x : float or ndarray
+        Conductor resistance and reactance per length [Ω per unit length].
+    pf : float
+        Load power factor ``cos θ`` [-] (lagging).
+
+    Returns
+    -------
+    ndarray
+        ``Z_eff = R·cos θ + X·sin θ`` [Ω per unit length].
+
+    Notes
+    -----
+    The approximation behind NEC Chapter 9 Table 9's "effective Z" [3]: the
+    in-phase component of ``(R + jX)·I`` for a current lagging by θ.
+    """
+    theta = np.arccos(np.clip(pf, -1.0, 1.0))
+    return np.asarray(r) * np.cos(theta) + np.asarray(x) * np.sin(theta)

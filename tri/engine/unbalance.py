@@ -79,16 +79,26 @@ def vuf_from_line_magnitudes(
     ``u2 = sqrt((1 − sqrt(3 − 6β)) / (1 + sqrt(3 − 6β)))``.
 
     Exact for the fundamental, because three line voltages always close a
-    triangle (they sum to zero). ``β`` lies in [1/3, 1/2] for any triangle;
-    magnitudes that cannot close a triangle (β > 1/2, only from bad
-    readings) are clipped to the degenerate triangle, ``u2 = 100 %``.
+    triangle (they sum to zero). ``β`` lies in [1/3, 1/2] for any triangle.
+
+    Evaluated in an algebraically identical form that avoids the
+    cancellation in ``1 − sqrt(3 − 6β)`` near balance: with ``x = 3 − 6β``,
+
+    ``1 − x = 2·Σ_{i<j} (U_i² − U_j²)² / (Σ U_i²)²`` and
+    ``u2 = sqrt(1 − x) / (1 + sqrt(x))``
+
+    (since ``(1 − √x)/(1 + √x) = (1 − x)/(1 + √x)²``), so the result keeps
+    full precision down to ``u2 → 0``. Magnitudes that cannot close a
+    triangle (``x < 0``, only from bad readings) are clipped to the
+    degenerate triangle, ``u2 = 100 %``.
     """
     u = np.stack(np.broadcast_arrays(*(np.asarray(x, dtype=float) for x in (u12, u23, u31))))
     sq = np.sum(u**2, axis=0)
     ok = sq > 0
-    beta = np.where(ok, np.sum(u**4, axis=0) / np.where(ok, sq, 1.0) ** 2, 1.0 / 3.0)
-    root = np.sqrt(np.clip(3.0 - 6.0 * beta, 0.0, 1.0))
-    return 100.0 * np.sqrt((1.0 - root) / (1.0 + root))
+    d = sum(((u[i] - u[j]) * (u[i] + u[j])) ** 2 for i, j in ((0, 1), (1, 2), (2, 0)))
+    one_minus_x = np.clip(np.where(ok, 2.0 * d / np.where(ok, sq, 1.0) ** 2, 0.0), 0.0, 1.0)
+    root = np.sqrt(1.0 - one_minus_x)
+    return 100.0 * np.sqrt(one_minus_x) / (1.0 + root)
 
 
 def deviation_rate_pct(magnitudes: np.ndarray) -> np.ndarray:
