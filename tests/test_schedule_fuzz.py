@@ -43,7 +43,9 @@ _scalars = (
 )
 _values = st.recursive(
     _scalars.filter(lambda v: v is not None),
-    lambda inner: st.lists(inner, max_size=4) | st.dictionaries(st.text(max_size=8), inner, max_size=4),
+    lambda inner: (
+        st.lists(inner, max_size=4) | st.dictionaries(st.text(max_size=8), inner, max_size=4)
+    ),
     max_leaves=12,
 )
 _key = st.sampled_from([*CIRCUIT_KEYS, *PANEL_KEYS, *SUPPLY_KEYS, "amps", "volts_ll", "x"])
@@ -58,7 +60,9 @@ def toml_documents(draw: st.DrawFn) -> str:
         if draw(st.booleans()):
             doc[table] = draw(st.dictionaries(_key, _values, max_size=8))
     if draw(st.booleans()):
-        doc["profiles"] = draw(st.dictionaries(st.text(min_size=1, max_size=6), _values, max_size=2))
+        doc["profiles"] = draw(
+            st.dictionaries(st.text(min_size=1, max_size=6), _values, max_size=2)
+        )
     if draw(st.booleans()):
         doc["circuit"] = draw(
             st.lists(st.dictionaries(_key, _values, min_size=1, max_size=8), max_size=5)

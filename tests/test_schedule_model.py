@@ -88,7 +88,12 @@ load_va = 100
     s = parse_schedule(text).schedule
     c = s.circuits[0]
     assert (c.poles, c.pf, c.leading, c.profile, c.continuous, c.locked) == (
-        1, 1.0, False, "linear", False, False
+        1,
+        1.0,
+        False,
+        "linear",
+        False,
+        False,
     )
     assert c.phases == (1,)  # slot 4 is on phase B
     assert s.panel.frequency_hz == 60
