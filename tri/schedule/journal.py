@@ -108,7 +108,11 @@ def schedule_to_data(schedule: Schedule) -> dict[str, Any]:
             "taken": schedule.readings.taken,
         },
         "profiles": [
-            {"name": u.name, "harmonics": [list(h) for h in u.harmonics], "description": u.description}
+            {
+                "name": u.name,
+                "harmonics": [list(h) for h in u.harmonics],
+                "description": u.description,
+            }
             for u in schedule.profiles
         ],
         "circuits": [

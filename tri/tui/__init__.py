@@ -1,0 +1,1 @@
+"""Keyboard terminal UI (Textual): edit, analyse and rebalance a panel schedule."""

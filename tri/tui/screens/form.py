@@ -1,0 +1,183 @@
+"""A keyboard form in a dialog, validated as you type by the schedule loader's own rules.
+
+Each form is a list of :class:`Field` and a ``validate`` function that turns
+the typed values into a result or a message per key. Invalid input is never
+thrown away: the form stays open with the field marked ✗ and the reason
+written under it, until it is fixed or the user presses Escape.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Callable
+from dataclasses import dataclass
+from typing import Any, ClassVar
+
+from textual.app import ComposeResult
+from textual.binding import Binding, BindingType
+from textual.containers import Horizontal, Vertical, VerticalScroll
+from textual.screen import ModalScreen
+from textual.widget import Widget
+from textual.widgets import Checkbox, Input, Label, Select, Static
+
+Values = dict[str, Any]
+#: validate(values) -> (result or None, {key or "": message})
+Validator = Callable[[Values], tuple[Any, dict[str, str]]]
+
+
+@dataclass(frozen=True)
+class Field:
+    """One row of a form.
+
+    Attributes
+    ----------
+    key : str
+        Name used in ``values`` and in messages (the file's key where there is one).
+    label : str
+        Shown left of the input.
+    value : str or bool
+        Initial value (text for inputs and choices, bool for checkboxes).
+    kind : {"text", "choice", "bool"}
+    choices : tuple of (label, value)
+        For ``choice``.
+    hint : str
+        Placeholder text (units, examples).
+    disabled : bool
+        Shown but not editable.
+    """
+
+    key: str
+    label: str
+    value: str | bool = ""
+    kind: str = "text"
+    choices: tuple[tuple[str, str], ...] = ()
+    hint: str = ""
+    disabled: bool = False
+
+
+class FormScreen(ModalScreen[Any]):
+    """A dialog with fields; returns the validated result, or ``None`` when cancelled."""
+
+    BINDINGS: ClassVar[list[BindingType]] = [
+        Binding("escape", "cancel", "Cancel", id="form.cancel"),
+        Binding("ctrl+s", "accept", "Accept", id="form.accept"),
+        Binding("down", "app.focus_next", "Next", show=False),
+        Binding("up", "app.focus_previous", "Previous", show=False),
+    ]
+
+    def __init__(self, title: str, fields: list[Field], validate: Validator, help_text: str = ""):
+        super().__init__()
+        self.form_title = title
+        self.fields = fields
+        self.validate = validate
+        self.help_text = help_text
+        self.problems: dict[str, str] = {}
+        self.result: Any = None
+
+    def compose(self) -> ComposeResult:
+        with Vertical(id="form-box", classes="dialog"):
+            yield Static(self.form_title, classes="dialog-title")
+            with VerticalScroll(id="form-fields"):
+                for f in self.fields:
+                    with Horizontal(classes="form-row", id=f"row-{f.key}"):
+                        yield Label(" ", classes="form-mark", id=f"mark-{f.key}")
+                        yield Label(f.label, classes="form-label")
+                        yield self._widget(f)
+            yield Static("", id="form-message", classes="form-message")
+            yield Static("Enter or Ctrl+S accept · Esc cancel · Tab/↑↓ move", classes="dialog-keys")
+
+    def _widget(self, f: Field) -> Widget:
+        wid = f"field-{f.key}"
+        if f.kind == "bool":
+            return Checkbox(
+                "", bool(f.value), id=wid, compact=True, disabled=f.disabled, classes="form-input"
+            )
+        if f.kind == "choice":
+            return Select(
+                f.choices,
+                value=str(f.value),
+                allow_blank=False,
+                id=wid,
+                compact=True,
+                disabled=f.disabled,
+                classes="form-input",
+            )
+        widget = Input(
+            str(f.value),
+            placeholder=f.hint,
+            id=wid,
+            compact=True,
+            disabled=f.disabled,
+            classes="form-input",
+        )
+        widget.cursor_blink = False
+        return widget
+
+    def on_mount(self) -> None:
+        self._revalidate()
+        for f in self.fields:
+            if not f.disabled:
+                self.query_one(f"#field-{f.key}").focus()
+                break
+
+    def values(self) -> Values:
+        """What is typed now, by key."""
+        out: Values = {}
+        for f in self.fields:
+            w = self.query_one(f"#field-{f.key}")
+            if isinstance(w, (Input, Checkbox, Select)):
+                out[f.key] = w.value
+        return out
+
+    def _revalidate(self) -> None:
+        try:
+            self.result, self.problems = self.validate(self.values())
+        except Exception as exc:  # a validator bug must not lose the user's input
+            self.result, self.problems = None, {"": f"cannot check this input: {exc}"}
+        keys = {f.key for f in self.fields}
+        for f in self.fields:
+            bad = f.key in self.problems
+            mark = self.query_one(f"#mark-{f.key}", Label)
+            mark.update("✗" if bad else " ")
+            self.query_one(f"#row-{f.key}").set_class(bad, "-invalid")
+        message = self.query_one("#form-message", Static)
+        if self.problems:
+            first_key = next(iter(self.problems))
+            label = next((f.label.strip() for f in self.fields if f.key == first_key), "")
+            text = self.problems[first_key]
+            more = len(self.problems) - 1
+            prefix = f"✗ {label}: " if first_key in keys and label else "✗ "
+            message.update(prefix + text + (f" (+{more} more)" if more > 0 else ""))
+            message.set_class(True, "-error")
+        else:
+            message.update(self.help_text or "✓ OK")
+            message.set_class(False, "-error")
+
+    def on_input_changed(self, event: Input.Changed) -> None:
+        event.stop()
+        self._revalidate()
+
+    def on_checkbox_changed(self, event: Checkbox.Changed) -> None:
+        event.stop()
+        self._revalidate()
+
+    def on_select_changed(self, event: Select.Changed) -> None:
+        event.stop()
+        self._revalidate()
+
+    def on_input_submitted(self, event: Input.Submitted) -> None:
+        event.stop()
+        self.action_accept()
+
+    def action_accept(self) -> None:
+        self._revalidate()
+        if self.problems:
+            first = next(iter(self.problems))
+            for f in self.fields:
+                if f.key == first and not f.disabled:
+                    self.query_one(f"#field-{f.key}").focus()
+            self.app.bell()
+            return
+        self.dismiss(self.result)
+
+    def action_cancel(self) -> None:
+        self.dismiss(None)

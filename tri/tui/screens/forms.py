@@ -1,0 +1,331 @@
+"""The edit forms: circuit, panel, supply and readings.
+
+Each validator builds the same plain data a TOML file would hold and runs the
+schedule loader's own readers (``read_circuit``, ``_read_panel`` ...) and
+:func:`~tri.schedule.validate.check_schedule` on it, so the UI accepts exactly
+what a file may contain, with the same messages.
+"""
+
+from __future__ import annotations
+
+from dataclasses import replace
+from typing import Any
+
+from tri.engine.profiles import BUILTIN_PROFILES
+from tri.schedule.load import (
+    _read_panel,
+    _read_readings,
+    _read_supply,
+    _Reader,
+    read_circuit,
+)
+from tri.schedule.model import Circuit, Schedule
+from tri.schedule.slots import TWO_COLUMN
+from tri.schedule.systems import SYSTEMS
+from tri.schedule.validate import check_schedule
+from tri.tui.fmt import parse_number
+from tri.tui.screens.form import Field, FormScreen, Values
+
+LOAD_UNITS = (("VA", "va"), ("W", "w"), ("A", "a"))
+
+
+def _num_text(value: float | None) -> str:
+    if value is None:
+        return ""
+    return f"{value:g}"
+
+
+def _issues_by_key(reader: _Reader) -> dict[str, str]:
+    out: dict[str, str] = {}
+    for issue in reader.issues:
+        out.setdefault(issue.key or "", issue.message)
+    return out
+
+
+def _put(raw: dict[str, Any], key: str, text: str) -> None:
+    value = parse_number(text)
+    if value is not None:
+        raw[key] = value
+
+
+# ---------------------------------------------------------------- circuit
+
+
+def circuit_form(schedule: Schedule, index: int | None, base: Circuit | None = None) -> FormScreen:
+    """Edit circuit ``index`` (``None``: a new circuit, prefilled from ``base``)."""
+    panel = schedule.panel
+    c = base if base is not None else (schedule.circuits[index] if index is not None else None)
+    c = c or Circuit(name="", load_value=0.0)
+    slots = panel.uses_slots
+    place = (
+        Field("slot", "Slot", _num_text(c.slot), hint=f"1..{panel.spaces}, blank = not placed")
+        if slots
+        else Field(
+            "phases",
+            "Phases",
+            "" if c.phases is None else schedule.phase_text(c.phases),
+            hint=f"e.g. {panel.phase_labels[0]} or {''.join(panel.phase_labels[1:])}",
+        )
+    )
+    profiles = [*BUILTIN_PROFILES, *(p.name for p in schedule.profiles)]
+    if c.profile not in profiles:
+        profiles.append(c.profile)
+    fields = [
+        Field("name", "Name", c.name, hint="purpose, as in the panel directory"),
+        place,
+        Field(
+            "poles",
+            "Poles",
+            str(c.poles),
+            kind="choice",
+            choices=(("1", "1"), ("2", "2"), ("3", "3")),
+        ),
+        Field("load", "Load", _num_text(c.load_value), hint="number, e.g. 1200 or 1.2k"),
+        Field("unit", "Load unit", c.load_kind, kind="choice", choices=LOAD_UNITS),
+        Field("pf", "Power factor", _num_text(c.pf), hint="0 < pf ≤ 1"),
+        Field("leading", "Leading PF", c.leading, kind="bool"),
+        Field(
+            "profile",
+            "Harmonics",
+            c.profile,
+            kind="choice",
+            choices=tuple((p, p) for p in profiles),
+        ),
+        Field("continuous", "Continuous", c.continuous, kind="bool"),
+        Field("locked", "Locked", c.locked, kind="bool"),
+        Field("breaker_a", "Breaker A", _num_text(c.breaker_a), hint="rating, optional"),
+        Field("note", "Note", c.note, hint="optional"),
+    ]
+    position = index if index is not None else len(schedule.circuits)
+
+    def validate(values: Values) -> tuple[Circuit | None, dict[str, str]]:
+        raw: dict[str, Any] = {"name": values["name"]}
+        if slots:
+            _put(raw, "slot", values["slot"])
+        elif values["phases"].strip():
+            raw["phases"] = values["phases"].strip()
+        raw["poles"] = int(values["poles"])
+        load = parse_number(values["load"])
+        raw[f"load_{values['unit']}"] = load if load is not None else ""
+        _put(raw, "pf", values["pf"])
+        raw["leading"] = bool(values["leading"])
+        raw["profile"] = values["profile"]
+        raw["continuous"] = bool(values["continuous"])
+        raw["locked"] = bool(values["locked"])
+        _put(raw, "breaker_a", values["breaker_a"])
+        if values["note"].strip():
+            raw["note"] = values["note"].strip()
+        reader = _Reader(None, None)
+        circuit = read_circuit(reader, raw, position, panel)
+        problems = _issues_by_key(reader)
+        if "load_va" in problems or "load_w" in problems or "load_a" in problems:
+            problems["load"] = next(
+                problems.pop(k) for k in ("load_va", "load_w", "load_a") if k in problems
+            )
+        if circuit is None:
+            return None, problems or {"": "not a valid circuit"}
+        if index is None:
+            candidate = schedule.with_added(circuit)
+        else:
+            circuit = replace(circuit, source_index=schedule.circuits[index].source_index)
+            candidate = schedule.with_circuit(index, circuit)
+        for issue in check_schedule(candidate):
+            if issue.circuit_index == position:
+                problems.setdefault(issue.key or "", issue.message)
+        return (None if problems else circuit), problems
+
+    title = "Add a circuit" if index is None else f"Edit circuit: {c.name}"
+    return FormScreen(title, fields, validate)
+
+
+def move_form(schedule: Schedule, index: int) -> FormScreen:
+    """Move circuit ``index`` to another slot (or other phases on a rail board)."""
+    c = schedule.circuits[index]
+    panel = schedule.panel
+    if panel.uses_slots:
+        field = Field("slot", "To slot", "", hint=f"1..{panel.spaces}; blank = take it off")
+    else:
+        field = Field(
+            "phases", "To phases", "", hint="e.g. " + "".join(panel.phase_labels[: c.poles])
+        )
+
+    def validate(values: Values) -> tuple[Circuit | None, dict[str, str]]:
+        reader = _Reader(None, None)
+        if panel.uses_slots:
+            value = parse_number(values["slot"])
+            if value is None:
+                return c.at_slot(None), {}
+            if not isinstance(value, int) or isinstance(value, bool):
+                return None, {"slot": f"found {value!r}, expected a whole slot number"}
+            moved = c.at_slot(value)
+        else:
+            text = values["phases"].strip()
+            if not text:
+                return c.on_phases(None), {}
+            raw = {"name": c.name, "phases": text, "poles": c.poles, "load_va": 0}
+            parsed = read_circuit(reader, raw, index, panel)
+            if parsed is None:
+                return None, _issues_by_key(reader)
+            moved = c.on_phases(parsed.phases)
+        problems: dict[str, str] = {}
+        for issue in check_schedule(schedule.with_circuit(index, moved)):
+            if issue.circuit_index == index:
+                problems.setdefault(field.key, issue.message)
+        return (None if problems else moved), problems
+
+    where = f"slot {c.slot}" if c.slot else schedule.phase_text(c.phases)
+    return FormScreen(f"Move {c.name} (now {where}, {c.poles}-pole)", [field], validate)
+
+
+# ---------------------------------------------------------------- panel
+
+
+def panel_form(schedule: Schedule) -> FormScreen:
+    """Edit the ``[panel]`` table (the layout is shown but fixed)."""
+    p = schedule.panel
+    fields = [
+        Field("name", "Panel name", p.name),
+        Field("system", "System", p.system, kind="choice", choices=tuple((k, k) for k in SYSTEMS)),
+        Field("frequency_hz", "Frequency Hz", _num_text(p.frequency_hz)),
+        Field("spaces", "Spaces", str(p.spaces), hint="circuit positions"),
+        Field("bus_a", "Bus A", _num_text(p.bus_a)),
+        Field("main_a", "Main A", _num_text(p.main_a), hint="blank = main lugs only"),
+        Field("neutral_a", "Neutral A", _num_text(p.neutral_a), hint="blank = bus rating"),
+        Field("phase_labels", "Phase labels", ",".join(p.phase_labels), hint="A,B,C or L1,L2,L3"),
+        Field("layout", "Layout", p.layout, disabled=True),
+    ]
+
+    def validate(values: Values) -> tuple[Schedule | None, dict[str, str]]:
+        raw: dict[str, Any] = {"name": values["name"], "system": values["system"]}
+        for key in ("frequency_hz", "spaces", "bus_a", "main_a", "neutral_a"):
+            _put(raw, key, values[key])
+        text = values["phase_labels"]
+        labels = [x for x in text.replace(" ", ",").split(",") if x]
+        if len(labels) == 1 and len(labels[0]) == 3:
+            labels = list(labels[0])
+        raw["phase_labels"] = labels
+        raw["layout"] = p.layout
+        reader = _Reader(None, None)
+        panel = _read_panel(reader, {"panel": raw})
+        problems = _issues_by_key(reader)
+        if panel is None:
+            return None, problems or {"": "not a valid panel"}
+        candidate = replace(schedule, panel=panel)
+        issues = check_schedule(candidate)
+        if issues:
+            first = issues[0]
+            key = "spaces" if first.key == "slot" else ("system" if first.key == "poles" else "")
+            problems[key] = f"{first.where}: {first.message}"
+        return (None if problems else candidate), problems
+
+    return FormScreen("Panel", fields, validate)
+
+
+# ---------------------------------------------------------------- supply
+
+SUPPLY_FIELDS = (
+    ("transformer_kva", "Transformer kVA"),
+    ("transformer_z_pct", "Impedance %"),
+    ("transformer_x_r", "X/R"),
+    ("feeder_length_m", "Feeder m"),
+    ("feeder_r_ohm_per_km", "Phase R Ω/km"),
+    ("feeder_x_ohm_per_km", "Phase X Ω/km"),
+    ("neutral_r_ohm_per_km", "Neutral R Ω/km"),
+    ("neutral_x_ohm_per_km", "Neutral X Ω/km"),
+)
+
+
+def supply_form(schedule: Schedule) -> FormScreen:
+    """Edit the ``[supply]`` table; all blank removes it."""
+    s = schedule.supply
+    fields = [
+        Field(k, label, "" if s is None else _num_text(getattr(s, k))) for k, label in SUPPLY_FIELDS
+    ]
+
+    def validate(values: Values) -> tuple[Schedule | None, dict[str, str]]:
+        raw: dict[str, Any] = {}
+        for key, _ in SUPPLY_FIELDS:
+            _put(raw, key, values[key])
+        if not raw:
+            return replace(schedule, supply=None), {}
+        reader = _Reader(None, None)
+        supply = _read_supply(reader, {"supply": raw})
+        problems = _issues_by_key(reader)
+        if supply is None:
+            return None, problems or {"": "not a valid supply"}
+        return replace(schedule, supply=supply), problems
+
+    return FormScreen(
+        "Supply (transformer and feeder)",
+        fields,
+        validate,
+        help_text="Blank every field to remove the supply. Needed for voltages and VUF.",
+    )
+
+
+# ---------------------------------------------------------------- readings
+
+
+def readings_form(schedule: Schedule) -> FormScreen:
+    """Edit the ``[readings]`` table (what was measured on site); all blank removes it."""
+    r = schedule.readings
+    lab = schedule.labels
+    pairs = [lab[0] + lab[1], lab[1] + lab[2], lab[2] + lab[0]]
+    if any(len(x) > 1 for x in lab):
+        pairs = [f"{lab[0]}-{lab[1]}", f"{lab[1]}-{lab[2]}", f"{lab[2]}-{lab[0]}"]
+    spec: list[tuple[str, str, str, str, float | None]] = []
+    for k, name in enumerate(lab):
+        spec.append((f"amps_{k}", f"{name} amps", "amps", name, r.phase_amps[k] if r else None))
+    spec.append(("amps_n", "N amps", "amps", "N", r.neutral_amps if r else None))
+    for k, name in enumerate(pairs):
+        spec.append((f"vll_{k}", f"{name} volts", "volts_ll", name, r.volts_ll[k] if r else None))
+    for k, name in enumerate(lab):
+        spec.append((f"vln_{k}", f"{name}-N volts", "volts_ln", name, r.volts_ln[k] if r else None))
+    fields = [
+        Field(key, label, _num_text(v), hint="measured, optional") for key, label, _, _, v in spec
+    ]
+    fields.append(Field("taken", "Taken", (r.taken or "") if r else "", hint="when / by whom"))
+
+    def validate(values: Values) -> tuple[Schedule | None, dict[str, str]]:
+        raw: dict[str, Any] = {}
+        for key, _label, table, name, _ in spec:
+            value = parse_number(values[key])
+            if value is not None:
+                raw.setdefault(table, {})[name] = value
+        if values["taken"].strip():
+            raw["taken"] = values["taken"].strip()
+        if not raw:
+            return replace(schedule, readings=None), {}
+        reader = _Reader(None, None)
+        readings = _read_readings(reader, {"readings": raw}, schedule.panel)
+        problems: dict[str, str] = {}
+        for issue in reader.issues:
+            field_key = next(
+                (k for k, _l, t, n, _v in spec if t == issue.key and n in issue.message),
+                next((k for k, _l, t, _n, _v in spec if t == issue.key), issue.key or ""),
+            )
+            problems.setdefault(field_key, issue.message)
+        if readings is None:
+            return None, problems or {"": "not valid readings"}
+        return replace(schedule, readings=readings), problems
+
+    return FormScreen(
+        "Readings (measured on site)",
+        fields,
+        validate,
+        help_text="True-RMS amps and volts as measured; blank what was not measured.",
+    )
+
+
+def default_circuit(schedule: Schedule) -> Circuit:
+    """A blank new circuit for the add form, in the first free slot that fits one pole."""
+    from tri.schedule.slots import candidate_slots, occupied_slots
+
+    c = Circuit(name="", load_kind="va", load_value=0.0)
+    if schedule.panel.layout != TWO_COLUMN:
+        return c
+    taken = [
+        s for x in schedule.circuits if x.slot is not None for s in occupied_slots(x.slot, x.poles)
+    ]
+    free = candidate_slots(1, schedule.panel.spaces, taken)
+    return c.at_slot(free[0]) if free else c
