@@ -37,8 +37,8 @@ class ChoiceScreen(ModalScreen[Any]):
 
     def compose(self) -> ComposeResult:
         with Vertical(classes="dialog", id="choice-box"):
-            yield Static(self.title_text, classes="dialog-title")
-            yield Static(self.message, id="choice-message")
+            yield Static(self.title_text, classes="dialog-title", markup=False)
+            yield Static(self.message, id="choice-message", markup=False)
             for key, label, _ in self.answers:
                 yield Static(f"  [{key}] {label}", classes="choice-answer", markup=False)
             yield Static("  [Esc] cancel", classes="choice-answer", markup=False)

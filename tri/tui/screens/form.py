@@ -12,12 +12,16 @@ from collections.abc import Callable
 from dataclasses import dataclass
 from typing import Any, ClassVar
 
+from rich.text import Text
 from textual.app import ComposeResult
 from textual.binding import Binding, BindingType
 from textual.containers import Horizontal, Vertical, VerticalScroll
 from textual.screen import ModalScreen
 from textual.widget import Widget
-from textual.widgets import Checkbox, Input, Label, Select, Static
+from textual.widgets import Input, Label, Static
+
+from tri.tui.widgets.cycle import Cycle
+from tri.tui.widgets.toggle import Toggle
 
 Values = dict[str, Any]
 #: validate(values) -> (result or None, {key or "": message})
@@ -75,7 +79,7 @@ class FormScreen(ModalScreen[Any]):
 
     def compose(self) -> ComposeResult:
         with Vertical(id="form-box", classes="dialog"):
-            yield Static(self.form_title, classes="dialog-title")
+            yield Static(self.form_title, classes="dialog-title", markup=False)
             with VerticalScroll(id="form-fields"):
                 for f in self.fields:
                     with Horizontal(classes="form-row", id=f"row-{f.key}"):
@@ -83,24 +87,17 @@ class FormScreen(ModalScreen[Any]):
                         yield Label(f.label, classes="form-label")
                         yield self._widget(f)
             yield Static("", id="form-message", classes="form-message")
-            yield Static("Enter or Ctrl+S accept · Esc cancel · Tab/↑↓ move", classes="dialog-keys")
+            yield Static(
+                "Enter accept · Esc cancel · ↑↓ move · ←→ Space change",
+                classes="dialog-keys",
+            )
 
     def _widget(self, f: Field) -> Widget:
         wid = f"field-{f.key}"
         if f.kind == "bool":
-            return Checkbox(
-                "", bool(f.value), id=wid, compact=True, disabled=f.disabled, classes="form-input"
-            )
+            return Toggle(bool(f.value), id=wid, disabled=f.disabled, classes="form-input")
         if f.kind == "choice":
-            return Select(
-                f.choices,
-                value=str(f.value),
-                allow_blank=False,
-                id=wid,
-                compact=True,
-                disabled=f.disabled,
-                classes="form-input",
-            )
+            return Cycle(f.choices, str(f.value), id=wid, disabled=f.disabled, classes="form-input")
         widget = Input(
             str(f.value),
             placeholder=f.hint,
@@ -124,7 +121,7 @@ class FormScreen(ModalScreen[Any]):
         out: Values = {}
         for f in self.fields:
             w = self.query_one(f"#field-{f.key}")
-            if isinstance(w, (Input, Checkbox, Select)):
+            if isinstance(w, (Input, Toggle, Cycle)):
                 out[f.key] = w.value
         return out
 
@@ -146,21 +143,21 @@ class FormScreen(ModalScreen[Any]):
             text = self.problems[first_key]
             more = len(self.problems) - 1
             prefix = f"✗ {label}: " if first_key in keys and label else "✗ "
-            message.update(prefix + text + (f" (+{more} more)" if more > 0 else ""))
+            message.update(Text(prefix + text + (f" (+{more} more)" if more > 0 else "")))
             message.set_class(True, "-error")
         else:
-            message.update(self.help_text or "✓ OK")
+            message.update(Text(self.help_text or "✓ OK"))
             message.set_class(False, "-error")
 
     def on_input_changed(self, event: Input.Changed) -> None:
         event.stop()
         self._revalidate()
 
-    def on_checkbox_changed(self, event: Checkbox.Changed) -> None:
+    def on_toggle_changed(self, event: Toggle.Changed) -> None:
         event.stop()
         self._revalidate()
 
-    def on_select_changed(self, event: Select.Changed) -> None:
+    def on_cycle_changed(self, event: Cycle.Changed) -> None:
         event.stop()
         self._revalidate()
 

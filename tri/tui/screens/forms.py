@@ -106,7 +106,9 @@ def circuit_form(schedule: Schedule, index: int | None, base: Circuit | None = N
             raw["phases"] = values["phases"].strip()
         raw["poles"] = int(values["poles"])
         load = parse_number(values["load"])
-        raw[f"load_{values['unit']}"] = load if load is not None else ""
+        if load is None:
+            return None, {"load": "missing; type the load as a number (unit below)"}
+        raw[f"load_{values['unit']}"] = load
         _put(raw, "pf", values["pf"])
         raw["leading"] = bool(values["leading"])
         raw["profile"] = values["profile"]

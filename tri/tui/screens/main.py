@@ -5,6 +5,7 @@ from __future__ import annotations
 from dataclasses import replace
 from typing import Any, ClassVar
 
+from rich.text import Text
 from textual.app import ComposeResult
 from textual.binding import Binding, BindingType
 from textual.screen import Screen
@@ -81,8 +82,14 @@ class MainScreen(Screen[None]):
         p = s.panel
         mark = "● modified" if session.dirty else "saved"
         main = f"main {p.main_a:g} A" if p.main_a else "main lugs"
-        title = f" {p.name} · {p.system} · {p.spaces} sp · bus {p.bus_a:g} A · {main} "
-        self.query_one("#title-bar", Static).update(f"{title}│ {session.title_name} · {mark}")
+        right = f"│ {session.title_name} · {mark} "
+        left = f" {p.name} · {p.system} · {p.spaces} spaces · bus {p.bus_a:g} A · {main} "
+        room = max(self.size.width - len(right), 10)
+        if len(left) > room:
+            left = left[: room - 2] + "… "
+        bar = Text(left.ljust(room))
+        bar.append(right)
+        self.query_one("#title-bar", Static).update(bar)
         current = app.analysis_current
         table = self.query_one(CircuitTable)
         table.show(s, app.analysis if current else None, keep_index)
@@ -97,7 +104,7 @@ class MainScreen(Screen[None]):
         if not self._ready:
             return
         status = self.query_one("#status", Static)
-        status.update(("Error: " if error else "") + text)
+        status.update(Text(("Error: " if error else "") + text))
         status.set_class(error, "-error")
 
     # ------------------------------------------------------------ helpers

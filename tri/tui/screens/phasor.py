@@ -86,10 +86,14 @@ class PhasorScreen(Screen[None]):
         views = self.available_views()
         if self.view not in views:
             self.view = "currents"
-        tabs = "  ".join(f"[{v}]" if v == self.view else v for v in views)
-        self.query_one("#phasor-title", Static).update(
-            f" Phasors · {app.session.schedule.panel.name} │ {tabs}"
-        )
+        title = Text(f" Phasors · {app.session.schedule.panel.name} │ view:")
+        for v in views:
+            title.append(" ")
+            title.append(
+                f"[{v}]" if v == self.view else v, style="reverse" if v == self.view else ""
+            )
+        title.append("  (Tab: next)")
+        self.query_one("#phasor-title", Static).update(title)
         if a is None:
             diagram.show([], "")
             legend.update(app.analysis_error or "Analysing…")

@@ -5,6 +5,7 @@ from __future__ import annotations
 from pathlib import Path
 from typing import Any, ClassVar
 
+from rich.text import Text
 from textual.app import ComposeResult
 from textual.binding import Binding, BindingType
 from textual.containers import Vertical
@@ -62,13 +63,13 @@ class PickerScreen(Screen[None]):
         options.add_option(Option("── Demo panels ──", disabled=True))
         if demos:
             for p in demos:
-                options.add_option(Option(f"  {p.stem}", id=f"demo:{p}"))
+                options.add_option(Option(Text(f"  {p.stem}"), id=f"demo:{p}"))
         else:
             options.add_option(Option("  (no demo panels in this installation)", disabled=True))
         options.add_option(Option("── Recent files ──", disabled=True))
         recents = recent.load_recent()
         for p in recents:
-            options.add_option(Option(f"  {p.name}  ({p.parent})", id=f"file:{p}"))
+            options.add_option(Option(Text(f"  {p.name}  ({p.parent})"), id=f"file:{p}"))
         if not recents:
             options.add_option(Option("  (none yet)", disabled=True))
         options.add_option(Option("── Other ──", disabled=True))
@@ -130,4 +131,4 @@ class PickerScreen(Screen[None]):
 
     def set_status(self, text: str, error: bool = False) -> None:
         """Messages from the app show in the intro line."""
-        self.query_one("#picker-intro", Static).update(("Error: " if error else "") + text)
+        self.query_one("#picker-intro", Static).update(Text(("Error: " if error else "") + text))

@@ -85,12 +85,12 @@ class CircuitTable(DataTable[Any]):
         name = c.name if len(c.name) <= name_width else c.name[: name_width - 1] + "…"
         cells: list[Any] = [
             Text(fmt.place_text(c, schedule), justify="right"),
-            name,
+            Text(name),
             str(c.poles),
             schedule.phase_text(c.phases),
             Text(fmt.load_text(c), justify="right"),
             Text(fmt.pf_text(c), justify="right"),
-            c.profile[:11],
+            Text(c.profile[:11]),
             Text(amps, justify="right"),
             "lock" if c.locked else "",
         ]
@@ -98,7 +98,7 @@ class CircuitTable(DataTable[Any]):
             cells += [
                 Text("-" if c.breaker_a is None else f"{c.breaker_a:g} A", justify="right"),
                 "yes" if c.continuous else "",
-                c.note,
+                Text(c.note),
             ]
         return cells
 
