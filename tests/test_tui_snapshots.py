@@ -1,0 +1,59 @@
+"""SVG snapshots of the main view, the phasor view and the rebalance screen.
+
+Fixed terminal sizes (80×24, the smallest supported, and 120×40), a fixed
+theme, the state folder in a temporary directory, a schedule file from
+tests/data (only its name is shown), no clock and no blinking cursor.
+Regenerate with ``pytest tests/test_tui_snapshots.py --snapshot-update`` and
+look at the pictures before committing them.
+"""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+import pytest
+
+from tri.tui.app import TriApp
+
+DATA = Path(__file__).parent / "data" / "tui"
+SIZES = [(80, 24), (120, 40)]
+
+
+@pytest.fixture(autouse=True)
+def _state(tmp_path: Path, monkeypatch: pytest.MonkeyPatch) -> None:
+    monkeypatch.setenv("XDG_STATE_HOME", str(tmp_path / "state"))
+
+
+def make_app() -> TriApp:
+    return TriApp(DATA / "small.toml", journal=False, theme="textual-dark")
+
+
+async def settle(pilot) -> None:
+    await pilot.pause()
+    await pilot.app.workers.wait_for_complete()
+    await pilot.pause()
+
+
+@pytest.mark.parametrize("size", SIZES, ids=lambda s: f"{s[0]}x{s[1]}")
+def test_main_view(snap_compare, size: tuple[int, int]) -> None:
+    assert snap_compare(make_app(), terminal_size=size, run_before=settle)
+
+
+@pytest.mark.parametrize("size", SIZES, ids=lambda s: f"{s[0]}x{s[1]}")
+def test_phasor_view(snap_compare, size: tuple[int, int]) -> None:
+    async def before(pilot) -> None:
+        await settle(pilot)
+        await pilot.press("v")
+        await settle(pilot)
+
+    assert snap_compare(make_app(), terminal_size=size, run_before=before)
+
+
+@pytest.mark.parametrize("size", SIZES, ids=lambda s: f"{s[0]}x{s[1]}")
+def test_rebalance_screen(snap_compare, size: tuple[int, int]) -> None:
+    async def before(pilot) -> None:
+        await settle(pilot)
+        await pilot.press("b")
+        await settle(pilot)
+
+    assert snap_compare(make_app(), terminal_size=size, run_before=before)
