@@ -1,18 +1,141 @@
-"""``tri check FILE``: pass/fail against limits (placeholder until the engine lands)."""
+"""``tri check FILE...``: pass/fail against limits, for batch scripts and CI.
+
+Exit status: 0 when every limit passes on every file, 1 when any limit
+fails, 2 when any file cannot be read or an option is bad (2 wins over 1).
+Every file is checked even after a failure or an unreadable file. The
+limits, their defaults and the sources of the defaults are in
+:mod:`tri.report.check_report`.
+"""
 
 from __future__ import annotations
 
 import argparse
+import json
+import math
+import sys
 from typing import Any
 
-from tri.cli.common import load
+from tri.cli.common import EXIT_ERROR, EXIT_LIMIT, EXIT_OK, SAFETY_CAUTION, CliError, print_error
+from tri.cli.report import build_data, emit
+from tri.report.check_report import (
+    LIMITS,
+    evaluate,
+    panel_status,
+    render_check_text,
+    result_dict,
+)
+from tri.schedule.errors import ScheduleError
+from tri.schedule.to_engine import DEFAULT_CONTINUOUS_FACTOR
 
 
 def add_parser(sub: Any) -> None:
-    p = sub.add_parser("check", help="exit 0 within limits, 1 when a limit is exceeded")
-    p.add_argument("file", help="schedule file (.toml)")
+    """Register ``tri check``."""
+    lines = [f"  {x.option} PCT  default {x.default_pct:g} %: {x.source}" for x in LIMITS]
+    p = sub.add_parser(
+        "check",
+        help="exit 0 within limits, 1 when a limit is exceeded",
+        description="Check one or more schedules against limits and exit 0 when all pass, "
+        "1 when any limit is exceeded, 2 when a file cannot be read. Each limit is printed "
+        "with the value, pass/fail and where its default comes from.",
+        epilog="limits (a value equal to the limit passes):\n" + "\n".join(lines),
+        formatter_class=argparse.RawDescriptionHelpFormatter,
+    )
+    p.add_argument("files", nargs="+", metavar="FILE", help="schedule file(s) (.toml)")
+    for x in LIMITS:
+        p.add_argument(
+            x.option,
+            type=float,
+            default=x.default_pct,
+            metavar="PCT",
+            dest=f"max_{x.key}",
+            help=f"{x.title} (default {x.default_pct:g} %%)",
+        )
+    p.add_argument("--format", choices=("text", "json"), default="text", help="output format")
+    p.add_argument(
+        "--iterate",
+        action="store_true",
+        help="with a [supply] table, solve loads at the panel voltage before checking",
+    )
+
+
+def _maxima(args: argparse.Namespace) -> dict[str, float]:
+    out = {}
+    for x in LIMITS:
+        value = getattr(args, f"max_{x.key}")
+        if not math.isfinite(value) or value < 0:
+            raise CliError(f"{x.option} {value:g}: expected a percentage of 0 or more")
+        out[x.key] = value
+    return out
+
+
+def _check_one(path: str, maxima: dict[str, float], iterate: bool) -> dict[str, Any]:
+    try:
+        data = build_data(path, iterate=iterate, continuous_factor=DEFAULT_CONTINUOUS_FACTOR)
+    except ScheduleError as exc:
+        print_error(exc.summary())
+        return _error_entry(path, exc.summary())
+    except CliError as exc:
+        print_error(str(exc))
+        return _error_entry(path, str(exc))
+    results = evaluate(data, maxima)
+    return {
+        "file": path,
+        "panel": data["panel"]["name"],
+        "status": panel_status(results),
+        "error": None,
+        "basis": data["basis"]["currents"],
+        "results": results,
+    }
+
+
+def _error_entry(path: str, message: str) -> dict[str, Any]:
+    return {
+        "file": path,
+        "panel": None,
+        "status": "error",
+        "error": message,
+        "basis": None,
+        "results": [],
+    }
+
+
+def exit_code(entries: list[dict[str, Any]]) -> int:
+    """2 if any file could not be checked, else 1 if any failed, else 0."""
+    statuses = {e["status"] for e in entries}
+    if "error" in statuses:
+        return EXIT_ERROR
+    if "fail" in statuses:
+        return EXIT_LIMIT
+    return EXIT_OK
 
 
 def run(args: argparse.Namespace) -> int:
-    load(args.file)
-    return 0
+    """Run ``tri check``; returns the exit status."""
+    maxima = _maxima(args)
+    entries = [_check_one(path, maxima, args.iterate) for path in args.files]
+    code = exit_code(entries)
+    if args.format == "json":
+        overall = {EXIT_OK: "pass", EXIT_LIMIT: "fail", EXIT_ERROR: "error"}[code]
+        payload = {
+            "status": overall,
+            "exit_code": code,
+            "files": [
+                {
+                    "file": e["file"],
+                    "panel": e["panel"],
+                    "status": e["status"],
+                    "error": e["error"],
+                    "currents": e["basis"],
+                    "checks": [result_dict(r) for r in e["results"]],
+                }
+                for e in entries
+            ],
+            "caution": SAFETY_CAUTION,
+        }
+        emit(json.dumps(payload, indent=2, ensure_ascii=False, allow_nan=False) + "\n", utf8=True)
+    else:
+        emit(render_check_text(entries, caution=SAFETY_CAUTION, maxima=maxima))
+    if code == EXIT_ERROR and len(entries) > 1:
+        bad = sum(1 for e in entries if e["status"] == "error")
+        print(f"tri: {bad} of {len(entries)} file(s) could not be checked.", file=sys.stderr)
+    return code

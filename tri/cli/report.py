@@ -1,20 +1,175 @@
-"""``tri report FILE``: figures per phase (placeholder until the engine lands)."""
+"""``tri report FILE``: phase, neutral, harmonic and voltage figures in four formats.
+
+``--format text`` (default) is a Rich layout: coloured on a terminal, plain
+80-column text when piped, written to a file or when ``NO_COLOR`` is set.
+``json`` follows the report contract (``shared/spec/schedule-format.md``)
+and is the only thing written to standard output; any warning goes to
+standard error. ``markdown`` is the printable panel directory with the
+results and the caution; ``csv`` is one row per circuit (RFC 4180).
+"""
 
 from __future__ import annotations
 
 import argparse
+import contextlib
+import math
+import os
+import sys
+from pathlib import Path
 from typing import Any
 
-from tri.cli.common import load
+from tri.cli.common import SAFETY_CAUTION, CliError, load
+from tri.schedule.to_engine import DEFAULT_CONTINUOUS_FACTOR, analyse_schedule
+
+FORMATS = ("text", "json", "markdown", "csv")
+#: Accepted range of --continuous-factor [-]: below 1 would count continuous
+#: loads for less than their current; 3 is far above any code's 125 %.
+CONTINUOUS_FACTOR_RANGE = (1.0, 3.0)
 
 
 def add_parser(sub: Any) -> None:
-    p = sub.add_parser("report", help="phase, neutral and voltage figures of a schedule")
+    """Register ``tri report``."""
+    p = sub.add_parser(
+        "report",
+        help="phase, neutral and voltage figures of a schedule",
+        description="Compute and show a panel's phase currents (fundamental and true RMS), "
+        "neutral current, symmetrical components, current unbalance, voltage at the panel "
+        "(with a [supply] table), site readings against the computed figures, and findings "
+        "with their sources. Figures are estimates from the schedule.",
+        epilog="formats: text (terminal), json (report contract), markdown (printable panel "
+        "directory with results), csv (one row per circuit).",
+    )
     p.add_argument("file", help="schedule file (.toml)")
-    p.add_argument("--format", choices=("text", "json", "markdown", "csv"), default="text")
+    p.add_argument("--format", choices=FORMATS, default="text", help="output format")
+    p.add_argument(
+        "--iterate",
+        action="store_true",
+        help="with a [supply] table, solve loads as constant power at the panel voltage "
+        "(default: currents at nominal voltage, as schedules are written)",
+    )
+    p.add_argument(
+        "--continuous-factor",
+        type=float,
+        default=DEFAULT_CONTINUOUS_FACTOR,
+        metavar="F",
+        help=f"multiplier on continuous loads in the sizing check (default "
+        f"{DEFAULT_CONTINUOUS_FACTOR:g}, common North American practice)",
+    )
+    p.add_argument(
+        "--output",
+        "-o",
+        metavar="OUT",
+        help="write the report to OUT instead of standard output (text: 80 columns, no colour)",
+    )
+
+
+def check_continuous_factor(value: float) -> float:
+    """The continuous factor, or :class:`CliError` when outside the accepted range [-]."""
+    lo, hi = CONTINUOUS_FACTOR_RANGE
+    if not math.isfinite(value) or not lo <= value <= hi:
+        raise CliError(
+            f"--continuous-factor {value:g}: expected a number from {lo:g} to {hi:g} "
+            f"(1.25 counts continuous loads at 125 %)"
+        )
+    return value
+
+
+def build_data(path: str, *, iterate: bool, continuous_factor: float) -> dict[str, Any]:
+    """Load, analyse and turn one schedule into report data (see :mod:`tri.report.data`)."""
+    from tri.report.data import report_data
+
+    loaded = load(path)
+    try:
+        analysis = analyse_schedule(
+            loaded.schedule, iterate_voltage=iterate, continuous_factor=continuous_factor
+        )
+    except ValueError as exc:
+        raise CliError(f"{path}: cannot analyse this schedule: {exc}") from None
+    return report_data(analysis, loaded.schedule, caution=SAFETY_CAUTION, file=path)
+
+
+def render(data: dict[str, Any], fmt: str, *, ascii_only: bool = False) -> str:
+    """The report in ``fmt`` as text (text format: 80 columns, no colour)."""
+    if fmt == "json":
+        from tri.report.json_report import render_json
+
+        return render_json(data)
+    if fmt == "markdown":
+        from tri.report.markdown_report import render_markdown
+
+        return render_markdown(data)
+    if fmt == "csv":
+        from tri.report.csv_report import render_csv
+
+        return render_csv(data)
+    from tri.report.text_report import render_text
+
+    return render_text(data, ascii_only=ascii_only)
+
+
+def _is_utf8(stream: Any) -> bool:
+    enc = getattr(stream, "encoding", None) or ""
+    return enc.lower().replace("-", "").startswith("utf8")
+
+
+def emit(text: str, *, utf8: bool = False) -> None:
+    """Write ``text`` to standard output exactly (no newline translation).
+
+    ``utf8`` forces UTF-8 bytes (JSON and CSV); otherwise the stream's own
+    encoding is used and characters it cannot show are replaced rather than
+    raising.
+    """
+    out = sys.stdout
+    buf = getattr(out, "buffer", None)
+    if buf is None:  # a text-only stream (e.g. captured in tests)
+        out.write(text)
+        out.flush()
+        return
+    out.flush()
+    encoding = "utf-8" if utf8 else (getattr(out, "encoding", None) or "utf-8")
+    buf.write(text.encode(encoding, errors="replace"))
+    buf.flush()
+
+
+def write_file(target: str, text: str, source: str) -> None:
+    """Write ``text`` to ``target`` (UTF-8, exact line ends) via a temporary file and rename."""
+    out = Path(target)
+    if out.exists() and out.resolve() == Path(source).resolve():
+        raise CliError(f"--output {target}: that is the schedule itself; choose another file")
+    if out.is_dir():
+        raise CliError(f"--output {target}: is a folder, expected a file name")
+    tmp = out.with_name(f".{out.name}.tri-tmp")
+    try:
+        with open(tmp, "w", encoding="utf-8", newline="") as fh:
+            fh.write(text)
+        os.replace(tmp, out)
+    except OSError as exc:
+        with contextlib.suppress(OSError):
+            tmp.unlink(missing_ok=True)
+        raise CliError(f"--output {target}: cannot write: {exc.strerror or exc}") from None
 
 
 def run(args: argparse.Namespace) -> int:
-    loaded = load(args.file)
-    print(f"{loaded.schedule.panel.name}: {len(loaded.schedule.circuits)} circuits")
+    """Run ``tri report``; returns 0 (errors raise :class:`CliError` or ``ScheduleError``)."""
+    factor = check_continuous_factor(args.continuous_factor)
+    data = build_data(args.file, iterate=args.iterate, continuous_factor=factor)
+    if args.iterate and data["supply"] is None:
+        print(
+            "tri: warning: --iterate needs a [supply] table; currents are at nominal voltage.",
+            file=sys.stderr,
+        )
+    fmt = args.format
+    if args.output:
+        write_file(args.output, render(data, fmt), args.file)
+        print(f"Wrote the {fmt} report to {args.output}.", file=sys.stderr)
+        return 0
+    if fmt == "text" and sys.stdout.isatty():
+        from rich.console import Console
+
+        from tri.report.text_report import print_text
+
+        print_text(data, Console(highlight=False, emoji=False, markup=False))
+        return 0
+    utf8 = fmt in ("json", "csv", "markdown")
+    emit(render(data, fmt, ascii_only=not utf8 and not _is_utf8(sys.stdout)), utf8=utf8)
     return 0

@@ -1,0 +1,1 @@
+"""Renderers of engine results: JSON, terminal text, Markdown panel directory, CSV."""

@@ -1,0 +1,368 @@
+"""One panel's analysis as plain data: the JSON report contract and a little more.
+
+:func:`report_data` turns the engine's :class:`~tri.engine.results.PanelAnalysis`
+and the :class:`~tri.schedule.model.Schedule` it came from into a dict of
+plain numbers, strings, lists and ``None``. Every renderer (JSON, text,
+Markdown, CSV) draws from this one dict, so the formats never disagree.
+
+Contract keys (``shared/spec/schedule-format.md``, "Report contract")
+--------------------------------------------------------------------
+``panel`` {name, system, frequency_hz}; ``phase_order``; ``phases`` keyed in
+``phase_order`` with {va, current_a, current_deg, rms_a, thd_pct,
+loading_pct}; ``neutral`` {current_a, current_deg, rms_a, loading_pct};
+``sequence`` {i0, i1, i2: {a, deg}}; ``current_unbalance``
+{negative_sequence_pct, max_deviation_pct}; ``voltage`` (``None`` without a
+``[supply]`` table) {phase_v, line_v, vuf_pct, line_deviation_pct,
+phase_deviation_pct, motor_derating}; ``readings`` (``None`` without a
+``[readings]`` table); ``findings`` [{level, message, source}].
+
+Units are SI throughout and are in the key names: ``_a`` amperes [A],
+``_v``/``v`` volts [V], ``va`` volt-amperes [VA], ``_w`` watts [W], ``deg``
+degrees (A-B-C sequence, ``V_A`` at 0°), ``_pct`` percent [%], ``_ohm`` ohms.
+
+Where the contract's numbers can be undefined they are ``None`` (JSON
+``null``): ``neutral.loading_pct`` on a 3-wire system (no neutral);
+``voltage.phase_deviation_pct`` without a neutral; ``voltage.motor_derating``
+above 5 % unbalance, where NEMA MG 1 does not recommend running motors.
+
+Added keys (beyond the contract)
+--------------------------------
+``report_version``
+    1; bumped if a key changes meaning.
+``panel``
+    Also ``wiring``, ``v_ll``, ``v_ln`` [V] (``v_ln`` ``None`` on 3-wire),
+    ``bus_a``, ``main_a`` (``None``: main lugs only), ``neutral_a`` [A],
+    ``rating_a`` (what phase loading is judged against: the main, else the
+    bus) [A], ``rating_basis`` (``"main breaker"`` or ``"bus (main lugs
+    only)"``), ``spaces``, ``layout``, ``file`` (the schedule's file name, or
+    ``None``).
+``basis``
+    How the figures were made: ``estimate`` (always true), ``currents``
+    (the engine's current basis: ``"nominal voltage"`` or the iterated
+    panel voltage), ``iterated`` (bool), ``continuous_factor`` [-],
+    ``phase_va`` (what ``phases.*.va`` means, in words).
+``supply``
+    The ``[supply]`` table as given (kVA, %, -, m, Ω/km), or ``None``.
+``phases.*``
+    Also ``design_a`` [A] and ``design_loading_pct`` [%]: the phase RMS
+    current with continuous loads counted at ``basis.continuous_factor`` (the
+    sizing check).
+``neutral``
+    Also ``present`` (false on 3-wire), ``rating_a`` [A] (``None`` on
+    3-wire), ``ratio_to_max_phase`` [-] (neutral RMS / largest phase RMS).
+``current_unbalance``
+    Also ``zero_sequence_pct`` (``|I0|/|I1|``) and
+    ``max_deviation_fundamental_pct`` (the deviation on fundamental
+    magnitudes) [%].
+``voltage``
+    Also ``drop_pct`` {phase: %}, ``iterated``, ``iterations``,
+    ``converged``, ``transformer_full_load_a`` [A], ``z_phase_ohm`` and
+    ``z_neutral_ohm`` {r, x} [Ω].
+``readings`` (its shape; the contract leaves it open)
+    ``taken`` (free text), ``phases`` {phase: {measured_a, computed_rms_a,
+    difference_pct}}, ``neutral`` {measured_a, computed_current_a (the
+    fundamental estimate), computed_rms_a, difference_pct}, ``volts_ll``
+    {line: V}, ``volts_ln`` {phase: V}, ``vuf_pct`` (from the three measured
+    line magnitudes, IEC 61000-4-30 formula), ``line_deviation_pct``,
+    ``phase_deviation_pct``, ``motor_derating``, ``computed_vuf_pct`` (the
+    supply model's, ``None`` without a supply). ``difference_pct`` is
+    ``(measured − computed RMS) / computed RMS`` [%]; anything not measured is
+    ``None``.
+``harmonics``
+    ``orders`` and the magnitude at each order [A] for every phase and the
+    neutral (order 1 is the fundamental).
+``nonlinear_share_pct``
+    Share of the placed connected VA on circuits with a harmonic profile [%].
+``circuits``
+    Every circuit in file order: ``number`` (1-based position in the file),
+    ``name``, ``slot`` (first slot, ``None`` on rail boards), ``slots``,
+    ``poles``, ``phases`` (label text, ``None`` if unplaced), ``placed``,
+    ``load`` {value, unit: VA|W|A} as written, ``va`` (apparent power of the
+    whole circuit) [VA], ``w`` [W], ``pf``, ``leading``, ``profile``,
+    ``continuous``, ``locked``, ``breaker_a`` [A], ``note``, ``current_a``
+    (fundamental line current) [A], ``rms_a`` [A], ``phase_va`` {phase: the
+    share of ``va`` the schedule puts on it} [VA].
+``unplaced``
+    Names of circuits not on any phase (left out of every figure).
+``caution``
+    The safety caution shown with every report.
+
+Numbers are rounded to 9 significant digits (far finer than any input or
+measurement; it keeps the output identical from one machine to the next),
+``-0.0`` is written as ``0.0`` and a non-finite number as ``None``.
+"""
+
+from __future__ import annotations
+
+import math
+from pathlib import Path
+from typing import Any
+
+from tri.engine.results import PanelAnalysis, Phasor
+from tri.schedule.model import Circuit, Schedule
+from tri.schedule.slots import TWO_COLUMN, occupied_slots
+
+#: Version of the report's key layout (added key ``report_version``).
+REPORT_VERSION = 1
+#: Significant digits kept in every number [-].
+SIGNIFICANT_DIGITS = 9
+
+PHASE_VA_MEANING = (
+    "connected apparent power the schedule attributes to the phase: all of each 1-pole "
+    "circuit, half of each 2-pole, a third of each 3-pole (schedule bookkeeping, not |I|·V)"
+)
+
+
+def num(x: float | None) -> float | None:
+    """A number ready for the report: rounded, ``-0.0`` as ``0.0``, non-finite as ``None``.
+
+    Parameters
+    ----------
+    x : float or None
+        Any figure [any unit].
+
+    Returns
+    -------
+    float or None
+        ``x`` rounded to :data:`SIGNIFICANT_DIGITS` significant digits.
+    """
+    if x is None:
+        return None
+    x = float(x)
+    if not math.isfinite(x):
+        return None
+    r = float(f"{x:.{SIGNIFICANT_DIGITS}g}")
+    return 0.0 if r == 0 else r
+
+
+def phasor(p: Phasor, unit: str) -> dict[str, float | None]:
+    """``{unit: magnitude, "deg": angle}`` of a phasor (``unit`` ``"a"`` or ``"v"``)."""
+    return {unit: num(p.magnitude), "deg": num(p.deg)}
+
+
+def line_labels(labels: tuple[str, str, str]) -> tuple[str, str, str]:
+    """Line-voltage names: ``AB, BC, CA``, or ``L1-L2, L2-L3, L3-L1`` for long labels."""
+    j = "-" if any(len(x) > 1 for x in labels) else ""
+    a, b, c = labels
+    return (f"{a}{j}{b}", f"{b}{j}{c}", f"{c}{j}{a}")
+
+
+def _load_unit(c: Circuit) -> str:
+    return {"va": "VA", "w": "W", "a": "A"}[c.load_kind]
+
+
+def _circuit(
+    number: int, c: Circuit, schedule: Schedule, current_a: float, rms_a: float
+) -> dict[str, Any]:
+    system = schedule.system
+    labels = schedule.labels
+    va = c.apparent_power_va(system)
+    share = {lab: 0.0 for lab in labels}
+    if c.phases is not None:
+        for p in set(c.phases):
+            share[labels[p]] = va / len(set(c.phases))
+    slots = list(occupied_slots(c.slot, c.poles)) if c.slot is not None else []
+    return {
+        "number": number,
+        "name": c.name,
+        "slot": c.slot,
+        "slots": slots,
+        "poles": c.poles,
+        "phases": schedule.phase_text(c.phases) if c.phases is not None else None,
+        "placed": c.is_placed,
+        "load": {"value": num(c.load_value), "unit": _load_unit(c)},
+        "va": num(va),
+        "w": num(c.real_power_w(system)),
+        "pf": num(c.pf),
+        "leading": c.leading,
+        "profile": c.profile,
+        "continuous": c.continuous,
+        "locked": c.locked,
+        "breaker_a": num(c.breaker_a),
+        "note": c.note,
+        "current_a": num(current_a),
+        "rms_a": num(rms_a),
+        "phase_va": {lab: num(v) for lab, v in share.items()},
+    }
+
+
+def _voltage(a: PanelAnalysis) -> dict[str, Any] | None:
+    v = a.voltage
+    if v is None:
+        return None
+    labels = a.phase_labels
+    lines = line_labels(labels)
+    return {
+        "phase_v": {lab: phasor(p, "v") for lab, p in zip(labels, v.phase_v, strict=True)},
+        "line_v": {lab: phasor(p, "v") for lab, p in zip(lines, v.line_v, strict=True)},
+        "vuf_pct": num(v.vuf_pct),
+        "line_deviation_pct": num(v.line_deviation_pct),
+        "phase_deviation_pct": num(v.phase_deviation_pct),
+        "motor_derating": num(v.motor_derating),
+        "drop_pct": {lab: num(d) for lab, d in zip(labels, v.drop_pct, strict=True)},
+        "iterated": v.iterated,
+        "iterations": v.iterations,
+        "converged": v.converged,
+        "transformer_full_load_a": num(v.transformer_full_load_a),
+        "z_phase_ohm": {"r": num(v.z_phase_ohm.real), "x": num(v.z_phase_ohm.imag)},
+        "z_neutral_ohm": {"r": num(v.z_neutral_ohm.real), "x": num(v.z_neutral_ohm.imag)},
+    }
+
+
+def _readings(a: PanelAnalysis, schedule: Schedule) -> dict[str, Any] | None:
+    r = a.readings
+    if r is None:
+        return None
+    labels = a.phase_labels
+    lines = line_labels(labels)
+    taken = schedule.readings.taken if schedule.readings is not None else None
+    neutral_diff = None
+    if r.neutral_measured_a is not None and r.neutral_computed_rms_a > 0:
+        neutral_diff = (
+            100.0 * (r.neutral_measured_a - r.neutral_computed_rms_a) / r.neutral_computed_rms_a
+        )
+    return {
+        "taken": taken,
+        "phases": {
+            p.label: {
+                "measured_a": num(p.measured_a),
+                "computed_rms_a": num(p.computed_rms_a),
+                "difference_pct": num(p.difference_pct),
+            }
+            for p in r.phases
+        },
+        "neutral": {
+            "measured_a": num(r.neutral_measured_a),
+            "computed_current_a": num(r.neutral_computed_fundamental_a),
+            "computed_rms_a": num(r.neutral_computed_rms_a),
+            "difference_pct": num(neutral_diff),
+        },
+        "volts_ll": {lab: num(x) for lab, x in zip(lines, r.volts_ll, strict=True)},
+        "volts_ln": {lab: num(x) for lab, x in zip(labels, r.volts_ln, strict=True)},
+        "vuf_pct": num(r.vuf_pct),
+        "line_deviation_pct": num(r.line_deviation_pct),
+        "phase_deviation_pct": num(r.phase_deviation_pct),
+        "motor_derating": num(r.motor_derating),
+        "computed_vuf_pct": num(r.computed_vuf_pct),
+    }
+
+
+def report_data(
+    analysis: PanelAnalysis,
+    schedule: Schedule,
+    *,
+    caution: str,
+    file: str | Path | None = None,
+) -> dict[str, Any]:
+    """The report of one panel as plain data (see the module docstring for every key).
+
+    Parameters
+    ----------
+    analysis : PanelAnalysis
+        The engine's result for ``schedule`` (``analyse_schedule``).
+    schedule : Schedule
+        The panel it was computed from (circuits in the same order).
+    caution : str
+        Safety caution to carry with the figures.
+    file : str or Path, optional
+        The schedule's path; only its file name is kept.
+
+    Returns
+    -------
+    dict
+        JSON-ready: str, int, float, bool, None, lists and dicts only.
+    """
+    a = analysis
+    p = schedule.panel
+    labels = a.phase_labels
+    n = a.neutral
+    cu = a.current_unbalance
+    circuits = [
+        _circuit(i + 1, c, schedule, cur, rms)
+        for i, (c, cur, rms) in enumerate(
+            zip(schedule.circuits, a.circuit_current_a, a.circuit_rms_a, strict=True)
+        )
+    ]
+    supply = (
+        None if schedule.supply is None else {k: num(v) for k, v in vars(schedule.supply).items()}
+    )
+    return {
+        "report_version": REPORT_VERSION,
+        "panel": {
+            "name": p.name,
+            "system": p.system,
+            "frequency_hz": num(a.frequency_hz),
+            "wiring": "3-phase 4-wire" if schedule.system.has_neutral else "3-phase 3-wire",
+            "v_ll": num(a.v_ll),
+            "v_ln": num(a.v_ln),
+            "bus_a": num(p.bus_a),
+            "main_a": num(p.main_a),
+            "neutral_a": num(n.rating_a),
+            "rating_a": num(a.rating_a),
+            "rating_basis": "main breaker" if p.main_a is not None else "bus (main lugs only)",
+            "spaces": p.spaces,
+            "layout": p.layout,
+            "file": None if file is None else Path(file).name,
+        },
+        "basis": {
+            "estimate": True,
+            "currents": a.currents_basis,
+            "iterated": a.voltage is not None and a.voltage.iterated,
+            "continuous_factor": num(a.continuous_factor),
+            "phase_va": PHASE_VA_MEANING,
+        },
+        "supply": supply,
+        "phase_order": list(labels),
+        "phases": {
+            ph.label: {
+                "va": num(ph.va),
+                "current_a": num(ph.current_a),
+                "current_deg": num(ph.current_deg),
+                "rms_a": num(ph.rms_a),
+                "thd_pct": num(ph.thd_pct),
+                "loading_pct": num(ph.loading_pct),
+                "design_a": num(ph.design_a),
+                "design_loading_pct": num(ph.design_loading_pct),
+            }
+            for ph in a.phases
+        },
+        "neutral": {
+            "current_a": num(n.current_a),
+            "current_deg": num(n.current_deg),
+            "rms_a": num(n.rms_a),
+            "loading_pct": num(n.loading_pct),
+            "present": n.present,
+            "rating_a": num(n.rating_a),
+            "ratio_to_max_phase": num(n.ratio_to_max_phase),
+        },
+        "sequence": {
+            "i0": phasor(a.sequence.i0, "a"),
+            "i1": phasor(a.sequence.i1, "a"),
+            "i2": phasor(a.sequence.i2, "a"),
+        },
+        "current_unbalance": {
+            "negative_sequence_pct": num(cu.negative_sequence_pct),
+            "max_deviation_pct": num(cu.max_deviation_pct),
+            "zero_sequence_pct": num(cu.zero_sequence_pct),
+            "max_deviation_fundamental_pct": num(cu.max_deviation_fundamental_pct),
+        },
+        "voltage": _voltage(a),
+        "readings": _readings(a, schedule),
+        "findings": [
+            {"level": f.level, "message": f.message, "source": f.source} for f in a.findings
+        ],
+        "harmonics": {
+            "orders": list(a.orders),
+            "phases": {ph.label: [num(x) for x in ph.harmonic_a] for ph in a.phases},
+            "neutral": [num(x) for x in n.harmonic_a],
+        },
+        "nonlinear_share_pct": num(a.nonlinear_share_pct),
+        "circuits": circuits,
+        "unplaced": [c["name"] for c in circuits if not c["placed"]],
+        "caution": caution,
+    }
+
+
+def is_two_column(data: dict[str, Any]) -> bool:
+    """True when the panel's circuits sit in numbered slots (two-column layout)."""
+    return data["panel"]["layout"] == TWO_COLUMN
