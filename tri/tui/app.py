@@ -151,7 +151,7 @@ class TriApp(App[int]):
         changed = entry.file_changed_since()
         message = (
             f"Unsaved edits of {s.title_name} were kept when tri last stopped "
-            f"({entry.edits} edit(s), written {entry.written_utc.replace('T', ' ')} UTC)."
+            f"({entry.edits} edit(s), written {entry.written_utc[:16].replace('T', ' ')} UTC)."
         )
         if changed:
             message += "\nThe file has changed on disk since; recovering replaces it on save."
@@ -172,6 +172,7 @@ class TriApp(App[int]):
                 message,
                 [("r", "recover them", "recover"), ("d", "discard them", "discard")],
                 cancel="later",
+                cancel_label="decide later (the file is shown as saved)",
             ),
             answer,
         )
@@ -192,7 +193,9 @@ class TriApp(App[int]):
         if self.session is not None and self.session.journal_error:
             self.set_status(self.session.journal_error, error=True)
         self.request_analysis()
-        self.refresh_screens()
+        # The table and results redraw once, when the engine's figures arrive
+        # (well under a frame later); only the title changes at once.
+        self.refresh_screens(title_only=True)
 
     def request_analysis(self) -> None:
         """Run the engine on the current schedule in a worker thread."""
@@ -224,10 +227,13 @@ class TriApp(App[int]):
         """True when ``analysis`` belongs to the schedule on screen."""
         return self.analysed_generation == self.generation
 
-    def refresh_screens(self) -> None:
+    def refresh_screens(self, title_only: bool = False) -> None:
         """Ask every screen on the stack that shows the schedule to redraw."""
         for screen in self.screen_stack:
-            refresh = getattr(screen, "refresh_view", None)
+            if title_only:
+                refresh = getattr(screen, "refresh_title", None)
+            else:
+                refresh = getattr(screen, "refresh_view", None)
             if refresh is not None:
                 refresh()
 

@@ -28,8 +28,10 @@ class ChoiceScreen(ModalScreen[Any]):
         answers: list[tuple[str, str, Any]],
         cancel: Any = None,
         classes: str = "",
+        cancel_label: str = "cancel",
     ) -> None:
         super().__init__(classes=classes)
+        self.cancel_label = cancel_label
         self.title_text = title
         self.message = message
         self.answers = answers
@@ -41,7 +43,7 @@ class ChoiceScreen(ModalScreen[Any]):
             yield Static(self.message, id="choice-message", markup=False)
             for key, label, _ in self.answers:
                 yield Static(f"  [{key}] {label}", classes="choice-answer", markup=False)
-            yield Static("  [Esc] cancel", classes="choice-answer", markup=False)
+            yield Static(f"  [Esc] {self.cancel_label}", classes="choice-answer", markup=False)
 
     def on_key(self, event: Any) -> None:
         for key, _label, value in self.answers:

@@ -72,8 +72,10 @@ class MainScreen(Screen[None]):
     def schedule(self) -> Schedule:
         return self.app.session.schedule
 
-    def refresh_view(self, keep_index: int | None = None) -> None:
-        """Redraw title, table and results from the app's session and analysis."""
+    _keep: int | None = None
+
+    def refresh_title(self) -> None:
+        """Redraw the title bar only (saved / modified)."""
         app: Any = self.app
         session = app.session
         if session is None or not self._ready:
@@ -90,9 +92,18 @@ class MainScreen(Screen[None]):
         bar = Text(left.ljust(room))
         bar.append(right)
         self.query_one("#title-bar", Static).update(bar)
+
+    def refresh_view(self, keep_index: int | None = None) -> None:
+        """Redraw title, table and results from the app's session and analysis."""
+        app: Any = self.app
+        if app.session is None or not self._ready:
+            return
+        self.refresh_title()
+        if keep_index is None:
+            keep_index, self._keep = self._keep, None
         current = app.analysis_current
         table = self.query_one(CircuitTable)
-        table.show(s, app.analysis if current else None, keep_index)
+        table.show(app.session.schedule, app.analysis if current else None, keep_index)
         results = self.query_one(ResultsPanel)
         if app.analysis is None:
             results.show(None, app.analysis_error or "Analysing…")
@@ -120,7 +131,7 @@ class MainScreen(Screen[None]):
         app.session.apply(new, label)
         app.schedule_changed(f"{label}. u undoes.")
         if keep is not None:
-            self.refresh_view(keep_index=keep)
+            self._keep = keep
 
     # ------------------------------------------------------------ actions
 
