@@ -1,0 +1,178 @@
+"""Findings (levels, sources, labels) and the readings comparison."""
+
+from __future__ import annotations
+
+import subprocess
+import sys
+
+import numpy as np
+import pytest
+
+from tri.engine import FindingLimits, analyse
+from tri.engine.inputs import (
+    LINE_TO_NEUTRAL,
+    CircuitArrays,
+    MeasuredReadings,
+    Ratings,
+    SupplyImpedance,
+    SystemVoltages,
+)
+from tri.engine.profiles import profile_matrix
+
+SYS = SystemVoltages(v_ll=400.0, v_ln=230.0, frequency_hz=50.0)
+L123 = ("L1", "L2", "L3")
+
+
+def ln_panel(watts, phases, profile="linear", continuous=None) -> CircuitArrays:
+    n = len(watts)
+    harm, orders = profile_matrix([profile] * n, np.ones(n), np.full(n, 230.0), {})
+    return CircuitArrays(
+        s_va=np.asarray(watts, dtype=complex),
+        connection=np.full(n, LINE_TO_NEUTRAL),
+        phase_p=np.asarray(phases),
+        phase_q=np.asarray(phases),
+        harmonics=harm,
+        orders=orders,
+        continuous=np.zeros(n, bool) if continuous is None else np.asarray(continuous),
+    )
+
+
+def levels(a) -> dict[str, list[str]]:
+    out: dict[str, list[str]] = {}
+    for f in a.findings:
+        out.setdefault(f.level, []).append(f.message)
+    return out
+
+
+def test_every_finding_cites_a_source_and_uses_given_labels():
+    c = ln_panel([23000, 2000, 2000], [0, 1, 2], profile="electronics")
+    a = analyse(c, SYS, Ratings(bus_a=100.0, main_a=80.0), phase_labels=L123)
+    assert a.findings
+    for f in a.findings:
+        assert f.level in ("info", "warning", "limit")
+        assert f.source.strip()
+    text = " ".join(f.message for f in a.findings)
+    assert "L1" in text and "Phase A " not in text
+    assert a.phase("L2").rms_a == a.phases[1].rms_a
+    # ordered: limits first
+    order = [f.level for f in a.findings]
+    assert order == sorted(order, key=["limit", "warning", "info"].index)
+
+
+def test_overload_and_continuous_sizing():
+    """Over the rating → limit; continuous at 125 % pushing over → limit citing the NEC.
+
+    17 kW on L1 at 230 V = 73.9 A (92 % of 80 A → warning only);
+    continuous ×1.25 = 92.4 A → over 80 A → limit citing 215.2(A) (from memory).
+    """
+    c = ln_panel([17000], [0], continuous=[True])
+    a = analyse(c, SYS, Ratings(bus_a=100.0, main_a=80.0), phase_labels=L123)
+    assert a.phases[0].design_a == pytest.approx(1.25 * 17000 / 230)
+    lim = [f for f in a.findings if f.level == "limit"]
+    assert len(lim) == 1 and "215.2(A)" in lim[0].source and "L1" in lim[0].message
+    c = ln_panel([17000], [0], continuous=[False])
+    a = analyse(c, SYS, Ratings(bus_a=100.0, main_a=80.0))
+    assert "limit" not in levels(a)
+    assert any("headroom" in m for m in levels(a)["warning"])
+    c = ln_panel([20000], [0])
+    a = analyse(c, SYS, Ratings(bus_a=100.0, main_a=80.0))
+    assert any("carries" in m for m in levels(a)["limit"])
+
+
+def test_continuous_factor_is_a_setting():
+    c = ln_panel([1000], [0], continuous=[True])
+    a = analyse(c, SYS, Ratings(bus_a=100.0, continuous_factor=1.0))
+    assert a.phases[0].design_a == pytest.approx(a.phases[0].rms_a)
+
+
+def test_neutral_rules():
+    """Non-linear major portion → NEC 310.15(E); neutral > phases → warning; over rating."""
+    c = ln_panel([5000, 5000, 5000], [0, 1, 2], profile="electronics")
+    a = analyse(c, SYS, Ratings(bus_a=100.0, neutral_a=30.0))
+    assert any("310.15(E)" in f.source for f in a.findings)
+    assert any("exceeds the largest phase" in f.message for f in a.findings)
+    assert any("Neutral carries" in f.message and f.level == "limit" for f in a.findings)
+    assert a.neutral.loading_pct == pytest.approx(100 * a.neutral.rms_a / 30.0)
+
+
+def test_limits_are_settings():
+    c = ln_panel([3000, 2000, 2000], [0, 1, 2])
+    default = analyse(c, SYS, Ratings(bus_a=100.0))
+    assert any("deviate" in f.message for f in default.findings)
+    relaxed = analyse(c, SYS, Ratings(bus_a=100.0), limits=FindingLimits(deviation_warn_pct=50))
+    assert not any("deviate" in f.message for f in relaxed.findings)
+
+
+def test_voltage_unbalance_findings():
+    """A weak supply and a lopsided panel: VUF over 2-3 %, NEMA derating reported."""
+    c = ln_panel([30000, 0, 0], [0, 1, 2])
+    weak = SupplyImpedance(
+        transformer_kva=45.0,
+        transformer_z_pct=6.0,
+        transformer_x_r=1.5,
+        feeder_length_m=60,
+        feeder_r_ohm_per_km=0.3,
+        neutral_r_ohm_per_km=0.3,
+    )
+    a = analyse(c, SYS, Ratings(bus_a=200.0), weak)
+    v = a.voltage
+    assert v.vuf_pct > 2.0
+    srcs = " ".join(f.source for f in a.findings)
+    assert "EN 50160" in srcs or "ANSI C84.1" in srcs
+    assert "NEMA MG 1" in srcs
+    if v.motor_derating is None:
+        assert v.line_deviation_pct > 5.0
+        assert any("not recommended" in f.message for f in a.findings)
+
+
+class TestReadings:
+    c = ln_panel([9200, 6900, 6900], [0, 1, 2])  # 40 / 30 / 30 A at 230 V
+
+    def test_close_readings_no_warning(self):
+        r = MeasuredReadings(phase_amps=(41.0, 29.0, 30.5), neutral_amps=10.5)
+        a = analyse(self.c, SYS, Ratings(bus_a=100.0), readings=r)
+        rc = a.readings
+        assert rc.phases[0].difference_pct == pytest.approx(100 * (41 - 40) / 40)
+        assert rc.neutral_computed_fundamental_a == pytest.approx(10.0)
+        assert not any("measured" in f.message.lower() for f in a.findings)
+
+    def test_stale_schedule(self):
+        r = MeasuredReadings(phase_amps=(60.0, None, 30.0))
+        a = analyse(self.c, SYS, Ratings(bus_a=100.0), readings=r, phase_labels=L123)
+        assert a.readings.phases[1].difference_pct is None
+        assert any("L1 measured" in f.message and "stale" in f.message for f in a.findings)
+
+    def test_neutral_far_above_points_to_harmonics(self):
+        r = MeasuredReadings(phase_amps=(40.0, 30.0, 30.0), neutral_amps=35.0)
+        a = analyse(self.c, SYS, Ratings(bus_a=100.0), readings=r)
+        assert any("triplen" in f.message and f.level == "warning" for f in a.findings)
+
+    def test_measured_voltage_unbalance_by_beta(self):
+        """NEMA example 460, 467, 450 V [published]: 1.96 %; β-formula VUF 2.1465 % [computed]."""
+        r = MeasuredReadings(volts_ll=(460.0, 467.0, 450.0), volts_ln=(265.0, 270.0, 262.0))
+        a = analyse(self.c, SYS, Ratings(bus_a=100.0), readings=r)
+        rc = a.readings
+        assert rc.line_deviation_pct == pytest.approx(1.96, abs=5e-3)
+        assert rc.vuf_pct == pytest.approx(2.1465, abs=5e-5)
+        assert rc.motor_derating == pytest.approx(0.95, abs=0.01)
+        # mean (265 + 270 + 262)/3 = 265.67; largest deviation 270 − 265.67 = 4.33 V
+        assert rc.phase_deviation_pct == pytest.approx(100 * (270 - 797 / 3) / (797 / 3))
+        assert rc.computed_vuf_pct is None
+        assert any(f.message.startswith("Measured voltage unbalance") for f in a.findings)
+
+    def test_impossible_line_voltages(self):
+        r = MeasuredReadings(volts_ll=(100.0, 100.0, 400.0))
+        a = analyse(self.c, SYS, Ratings(bus_a=100.0), readings=r)
+        assert a.readings.vuf_pct is None
+        assert any("cannot close a triangle" in f.message for f in a.findings)
+
+
+def test_engine_imports_no_ui_or_io_libraries():
+    """conventions.md: the engine never imports textual or rich (checked in a fresh interpreter)."""
+    code = (
+        "import sys, tri.engine, tri.engine.analysis, tri.engine.profiles;"
+        "bad = [m for m in ('textual', 'rich', 'tomlkit') if m in sys.modules];"
+        "print(bad); sys.exit(1 if bad else 0)"
+    )
+    done = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True)
+    assert done.returncode == 0, done.stdout + done.stderr
