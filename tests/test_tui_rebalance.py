@@ -1,0 +1,149 @@
+"""Pilot tests of the rebalance screen: worker, progress, cancel, work order, apply, undo.
+
+Until the rebalancer has an entry point these tests run the screen against a
+stand-in with the same calling convention (progress callback, cancel event)
+that returns a fixed proposal; the figures shown are still the engine's.
+"""
+
+from __future__ import annotations
+
+import shutil
+import threading
+import time
+from pathlib import Path
+from types import SimpleNamespace
+
+import pytest
+from textual.widgets import DataTable
+
+from tri.cli.common import SAFETY_CAUTION
+from tri.schedule.to_engine import analyse_schedule
+from tri.tui import rebalance_bridge as bridge
+from tri.tui.app import TriApp
+from tri.tui.screens.main import MainScreen
+from tri.tui.screens.rebalance import RebalanceScreen
+
+DATA = Path(__file__).parent / "data" / "tui"
+
+
+@pytest.fixture(autouse=True)
+def _state(tmp_path: Path, monkeypatch: pytest.MonkeyPatch) -> None:
+    monkeypatch.setenv("XDG_STATE_HOME", str(tmp_path / "state"))
+
+
+@pytest.fixture
+def small(tmp_path: Path) -> Path:
+    target = tmp_path / "small.toml"
+    shutil.copy(DATA / "small.toml", target)
+    return target
+
+
+def index_of(schedule, name: str) -> int:
+    return next(i for i, c in enumerate(schedule.circuits) if c.name == name)
+
+
+def stand_in(schedule, *, target_pct=None, max_moves=None, place_new=True, time_limit_s=3.0,
+             progress=None, cancel=None):  # fmt: skip
+    """Moves the dishwasher from B (slot 4) to C (slot 11), places the espresso in slot 12."""
+    if progress is not None:
+        progress(0.5, "stand-in searching")
+    s = schedule
+    i = index_of(s, "Dishwasher")
+    s = s.with_circuit(i, s.circuits[i].at_slot(11))
+    j = index_of(s, "Future espresso")
+    s = s.with_circuit(j, s.circuits[j].at_slot(12))
+    return SimpleNamespace(status="optimal", objective="fewest moves", schedule=s, bound=None)
+
+
+def slow_stand_in(schedule, *, progress=None, cancel=None, **_):
+    while not cancel.is_set():
+        progress(None, "still searching")
+        time.sleep(0.01)
+    raise RuntimeError("cancelled")
+
+
+async def settle(pilot) -> None:
+    await pilot.pause()
+    await pilot.app.workers.wait_for_complete()
+    await pilot.pause()
+
+
+async def test_run_shows_work_order_and_applies_all_then_undo(
+    small: Path, monkeypatch: pytest.MonkeyPatch
+) -> None:
+    monkeypatch.setattr(bridge, "find_entry", lambda: stand_in)
+    app = TriApp(small, journal=False)
+    async with app.run_test(size=(80, 24)) as pilot:
+        await settle(pilot)
+        before = app.session.schedule
+        await pilot.press("b")
+        screen = app.screen
+        assert isinstance(screen, RebalanceScreen)
+        assert SAFETY_CAUTION in str(screen.query_one("#rb-caution").render())
+        await pilot.press("ctrl+r")
+        await settle(pilot)
+        assert screen.plan is not None
+        assert [m.before.name for m in screen.plan.moves] == ["Dishwasher", "Future espresso"]
+        table = screen.query_one("#rb-moves-table", DataTable)
+        order = str(table.get_row_at(0)[2])
+        assert order == "Move 'Dishwasher' from slot 4 (B) to slot 11 (C)"
+        assert "Place new 'Future espresso' in slot 12 (C)" in str(table.get_row_at(1)[2])
+        figures = str(screen.query_one("#rb-figures").render())
+        after = analyse_schedule(screen.plan.after)
+        b = after.phase_labels.index("B")
+        assert f"{after.phases[b].rms_a:.1f} A" in figures
+        await pilot.press("A")
+        await settle(pilot)
+        assert isinstance(app.screen, MainScreen)
+        assert app.session.schedule == screen.plan.after
+        assert app.analysis == analyse_schedule(screen.plan.after)
+        await pilot.press("u")
+        await settle(pilot)
+        assert app.session.schedule == before
+
+
+async def test_apply_some_moves(small: Path, monkeypatch: pytest.MonkeyPatch) -> None:
+    monkeypatch.setattr(bridge, "find_entry", lambda: stand_in)
+    app = TriApp(small, journal=False)
+    async with app.run_test(size=(80, 24)) as pilot:
+        await settle(pilot)
+        await pilot.press("b", "ctrl+r")
+        await settle(pilot)
+        await pilot.press("space", "a")  # clear move 1, apply move 2 only
+        await settle(pilot)
+        s = app.session.schedule
+        assert s.circuits[index_of(s, "Dishwasher")].slot == 4
+        assert s.circuits[index_of(s, "Future espresso")].slot == 12
+
+
+async def test_cancel_stops_the_worker(small: Path, monkeypatch: pytest.MonkeyPatch) -> None:
+    monkeypatch.setattr(bridge, "find_entry", lambda: slow_stand_in)
+    app = TriApp(small, journal=False)
+    async with app.run_test(size=(80, 24)) as pilot:
+        await settle(pilot)
+        before = app.session.schedule
+        await pilot.press("b", "ctrl+r")
+        await pilot.pause(0.1)
+        screen = app.screen
+        assert screen.running
+        assert "still searching" in str(screen.query_one("#rb-state").render())
+        await pilot.press("escape")
+        await settle(pilot)
+        assert not screen.running
+        assert "Cancelled" in str(screen.query_one("#rb-state").render())
+        assert app.session.schedule == before
+        assert threading.active_count() < 10
+
+
+async def test_waiting_message_without_rebalancer(
+    small: Path, monkeypatch: pytest.MonkeyPatch
+) -> None:
+    monkeypatch.setattr(bridge, "find_entry", lambda: None)
+    app = TriApp(small, journal=False)
+    async with app.run_test(size=(80, 24)) as pilot:
+        await settle(pilot)
+        await pilot.press("b", "ctrl+r")
+        await settle(pilot)
+        assert "not in this build" in str(app.screen.query_one("#rb-state").render())
+        await pilot.press("escape")
+        assert isinstance(app.screen, MainScreen)

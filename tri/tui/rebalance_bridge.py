@@ -1,0 +1,187 @@
+"""The UI's door to the rebalancer (``tri.rebalance``), kept in one place.
+
+The rebalancer's result is turned into a :class:`Plan`: the moves as
+circuits before and after, found by comparing the schedule before with the
+schedule the rebalancer proposes, so the work order always matches what
+applying it does. The before/after figures shown are the engine's own
+(``analyse_schedule``) on both schedules; nothing is recomputed here.
+"""
+
+from __future__ import annotations
+
+import inspect
+import threading
+from collections.abc import Callable
+from dataclasses import dataclass, replace
+from typing import Any
+
+from tri.schedule.model import Circuit, Schedule
+from tri.schedule.validate import check_schedule
+
+ENTRY_NAMES = ("suggest", "rebalance", "suggest_moves", "plan_moves")
+
+
+class RebalancerMissing(Exception):
+    """``tri.rebalance`` has no entry point in this build yet."""
+
+
+@dataclass(frozen=True)
+class Options:
+    """What the user asked for.
+
+    Attributes
+    ----------
+    target_pct : float or None
+        Max deviation of phase RMS currents from their mean [%]; None: best balance.
+    max_moves : int or None
+        At most this many moves; None: no limit.
+    place_new : bool
+        Also find slots for the circuits not placed yet.
+    time_limit_s : float
+        Search budget [s].
+    """
+
+    target_pct: float | None = 5.0
+    max_moves: int | None = None
+    place_new: bool = True
+    time_limit_s: float = 3.0
+
+
+@dataclass(frozen=True)
+class Move:
+    """One breaker to relocate (or a new circuit to place)."""
+
+    index: int
+    before: Circuit
+    after: Circuit
+
+    @property
+    def is_placement(self) -> bool:
+        """True for a new circuit being placed (not counted as a move)."""
+        return not self.before.is_placed
+
+
+@dataclass(frozen=True)
+class Plan:
+    """A proposal: status, what was minimised, the moves, and the schedule after all of them."""
+
+    status: str
+    objective: str
+    moves: tuple[Move, ...]
+    after: Schedule
+    bound: float | None = None
+
+
+def find_entry() -> Callable[..., Any] | None:
+    """The rebalancer's entry function, or ``None`` when it is not built yet."""
+    try:
+        import tri.rebalance as rb
+    except ImportError:
+        return None
+    for name in ENTRY_NAMES:
+        fn = getattr(rb, name, None)
+        if callable(fn):
+            return fn
+    return None
+
+
+def _kwargs(fn: Callable[..., Any], options: Options, progress: Any, cancel: Any) -> dict[str, Any]:
+    wanted = {
+        ("target_pct", "target"): options.target_pct,
+        ("max_moves",): options.max_moves,
+        ("place_new",): options.place_new,
+        ("time_limit_s", "time_limit"): options.time_limit_s,
+        ("progress", "on_progress"): progress,
+        ("cancel", "cancel_event", "should_stop"): cancel,
+    }
+    params = inspect.signature(fn).parameters
+    out: dict[str, Any] = {}
+    for names, value in wanted.items():
+        for name in names:
+            if name in params:
+                out[name] = value
+                break
+    return out
+
+
+def _after_schedule(before: Schedule, result: Any) -> Schedule:
+    for attr in ("schedule", "after_schedule", "new_schedule"):
+        s = getattr(result, attr, None)
+        if isinstance(s, Schedule):
+            return s
+    # Only moves given: apply them by circuit name.
+    after = before
+    for m in getattr(result, "moves", ()) or ():
+        name = getattr(m, "circuit", None) or (m.get("circuit") if isinstance(m, dict) else None)
+        get = (
+            (lambda k, m=m: m.get(k))
+            if isinstance(m, dict)
+            else (lambda k, m=m: getattr(m, k, None))
+        )
+        idx = next((i for i, c in enumerate(after.circuits) if c.name == name), None)
+        if idx is None:
+            continue
+        c = after.circuits[idx]
+        if before.panel.uses_slots:
+            moved = c.at_slot(get("to_slot"))
+        else:
+            from tri.schedule.model import parse_phase_text
+
+            text = get("to_phases")
+            moved = c.on_phases(parse_phase_text(text, before.labels) if text else None)
+        after = after.with_circuit(idx, moved)
+    return after
+
+
+def to_plan(before: Schedule, result: Any) -> Plan:
+    """The rebalancer's result as a :class:`Plan` (moves found by comparing schedules)."""
+    after = _after_schedule(before, result)
+    moves = tuple(
+        Move(i, b, a)
+        for i, (b, a) in enumerate(zip(before.circuits, after.circuits, strict=False))
+        if (b.slot, b.phases) != (a.slot, a.phases)
+    )
+    status = str(getattr(result, "status", "best-found"))
+    objective = str(getattr(result, "objective", "") or "")
+    bound = getattr(result, "bound", None)
+    return Plan(status, objective, moves, after, bound if isinstance(bound, int | float) else None)
+
+
+def run(
+    schedule: Schedule,
+    options: Options,
+    progress: Callable[[float | None, str], None],
+    cancel: threading.Event,
+) -> Plan:
+    """Run the rebalancer (call it from a worker thread).
+
+    Raises
+    ------
+    RebalancerMissing
+        When ``tri.rebalance`` has no entry point yet.
+    """
+    fn = find_entry()
+    if fn is None:
+        raise RebalancerMissing(
+            "The rebalancer is not in this build yet: this screen is waiting for it."
+        )
+    result = fn(schedule, **_kwargs(fn, options, progress, cancel))
+    return to_plan(schedule, result)
+
+
+def apply_moves(schedule: Schedule, plan: Plan, chosen: set[int]) -> tuple[Schedule | None, str]:
+    """``schedule`` with the moves numbered ``chosen`` (positions in ``plan.moves``) applied.
+
+    Returns ``(None, reason)`` when that subset does not fit on its own (for
+    example a move into a slot that only another, unchosen move frees).
+    """
+    new = schedule
+    for k, m in enumerate(plan.moves):
+        if k in chosen:
+            current = new.circuits[m.index]
+            moved = replace(current, slot=m.after.slot, phases=m.after.phases)
+            new = new.with_circuit(m.index, moved)
+    issues = check_schedule(new)
+    if issues:
+        return None, f"these moves do not fit on their own: {issues[0].message}"
+    return new, ""
