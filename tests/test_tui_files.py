@@ -219,3 +219,21 @@ async def test_help_lists_keys_and_the_caution(small: Path) -> None:
         assert isinstance(app.screen, TextScreen)
         for finding in app.analysis.findings:
             assert finding.message in str(app.screen.body)
+
+
+DEMOS = sorted((Path(__file__).resolve().parents[1] / "panels_demo").glob("*.toml"))
+
+
+@pytest.mark.parametrize("demo", DEMOS, ids=lambda p: p.stem)
+async def test_each_demo_opens_with_the_engines_figures(demo: Path) -> None:
+    app = TriApp(demo, journal=False)
+    async with app.run_test(size=(80, 24)) as pilot:
+        await settle(pilot)
+        assert isinstance(app.screen, MainScreen)
+        expected = analyse_schedule(load_schedule(demo).schedule)
+        assert app.analysis == expected
+        await pilot.press("v")
+        await settle(pilot)
+        legend = str(app.screen.query_one("#phasor-legend").render())
+        for ph in expected.phases:
+            assert f"{ph.current_a:.1f} A ∠{ph.current_deg:.1f}°" in legend

@@ -86,13 +86,16 @@ class PhasorScreen(Screen[None]):
         views = self.available_views()
         if self.view not in views:
             self.view = "currents"
-        title = Text(f" Phasors · {app.session.schedule.panel.name} │ view:")
+        name = app.session.schedule.panel.name
+        room = max(self.size.width - 46, 0)
+        name = name if len(name) <= room else name[: max(room - 1, 0)] + "…"
+        title = Text(f" Phasors{' · ' + name if name else ''} │ view:")
         for v in views:
             title.append(" ")
             title.append(
                 f"[{v}]" if v == self.view else v, style="reverse" if v == self.view else ""
             )
-        title.append("  (Tab: next)")
+        title.append("  Tab")
         self.query_one("#phasor-title", Static).update(title)
         if a is None:
             diagram.show([], "")

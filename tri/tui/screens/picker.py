@@ -20,9 +20,9 @@ from tri.tui import recent
 from tri.tui.screens.form import Field, FormScreen, Values
 
 INTRO = (
-    "tri balances three-phase panels: it shows each phase's current, the neutral and\n"
-    "the unbalance, and finds the fewest breaker moves to even them out.\n"
-    "Choose a demo panel (opened as an unsaved copy) or a recent file; Enter opens."
+    "tri balances three-phase panels: it shows each phase's current, the neutral and "
+    "the unbalance, and finds the fewest breaker moves to even them out. "
+    "Choose a demo panel (opened as an unsaved copy) or a recent file; ↑↓ and Enter."
 )
 
 
@@ -47,7 +47,7 @@ class PickerScreen(Screen[None]):
 
     BINDINGS: ClassVar[list[BindingType]] = [
         Binding("o", "open_path", "Open path", id="picker.open"),
-        Binding("q,escape", "app.quit", "Quit", id="picker.quit"),
+        Binding("q,escape", "app.quit", "Quit", show=False, id="picker.quit"),
     ]
 
     def compose(self) -> ComposeResult:

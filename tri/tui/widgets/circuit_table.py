@@ -60,17 +60,30 @@ class CircuitTable(DataTable[Any]):
         super().__init__(cursor_type="row", zebra_stripes=True, cell_padding=1, **kwargs)
         self._order: list[int] = []
         self._wide: bool | None = None
+        self._shape: tuple[bool, bool, bool] | None = None
+        self.name_width = 17
 
-    def _columns_for(self, wide: bool) -> None:
-        if self._wide == wide:
+    def _columns_for(self, wide: bool, schedule: Schedule) -> None:
+        slots = schedule.panel.uses_slots
+        long_labels = any(len(x) > 1 for x in schedule.labels)
+        shape = (wide, slots, long_labels)
+        if self._shape == shape:
             return
         self.clear(columns=True)
+        self.name_width = (26 if wide else 17) - (2 if long_labels else 0)
         for key, label, width, wide_only in COLUMNS:
             if wide_only and not wide:
                 continue
-            w = 26 if (wide and key == "name") else width
+            w = width
+            if key == "name":
+                w = self.name_width
+            elif key == "phases" and long_labels:
+                w = 5
+            elif key == "slot" and not slots:
+                label = "No."
             self.add_column(label, width=w, key=key)
         self._wide = wide
+        self._shape = shape
 
     def _cells(
         self, c: Circuit, i: int, schedule: Schedule, analysis: Any, wide: bool
@@ -81,13 +94,18 @@ class CircuitTable(DataTable[Any]):
                 amps = f"{analysis.circuit_rms_a[i]:.1f}" if c.is_placed else "-"
             except (AttributeError, IndexError):
                 amps = "?"
-        name_width = 26 if wide else 17
+        name_width = self.name_width
         name = c.name if len(c.name) <= name_width else c.name[: name_width - 1] + "…"
+        if schedule.panel.uses_slots or not c.is_placed:
+            place = fmt.place_text(c, schedule)
+        else:
+            place = str(i + 1)
+        phases = "3ph" if c.poles == 3 and c.is_placed else schedule.phase_text(c.phases)
         cells: list[Any] = [
-            Text(fmt.place_text(c, schedule), justify="right"),
+            Text(place, justify="right"),
             Text(name),
             str(c.poles),
-            schedule.phase_text(c.phases),
+            phases,
             Text(fmt.load_text(c), justify="right"),
             Text(fmt.pf_text(c), justify="right"),
             Text(c.profile[:11]),
@@ -108,7 +126,7 @@ class CircuitTable(DataTable[Any]):
         if keep_index is None:
             keep_index = self.current_index
         row_before = self.cursor_row
-        self._columns_for(wide)
+        self._columns_for(wide, schedule)
         self.clear()
         self._order = display_order(schedule)
         for i in self._order:
