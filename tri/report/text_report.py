@@ -18,6 +18,7 @@ terminals without UTF-8.
 from __future__ import annotations
 
 import io
+import unicodedata
 from typing import Any
 
 from rich import box
@@ -210,10 +211,11 @@ def _currents(d: dict[str, Any], g: _Glyphs) -> RenderableType:
     )
     parts: list[RenderableType] = [t, notes]
     if n["present"]:
+        i_sum = " + ".join(f"I_{lab}" for lab in d["phase_order"])
         parts.append(
             Text(
                 f"Neutral: fundamental {_f(n['current_a'])} A {g.angle}{_f(n['current_deg'])}"
-                f"{g.deg} (the phasor sum I_A + I_B + I_C = 3{g.times}I0); true RMS "
+                f"{g.deg} (the phasor sum {i_sum} = 3{g.times}I0); true RMS "
                 f"{_f(n['rms_a'])} A with harmonics, {n['ratio_to_max_phase']:.2f} {g.times} "
                 f"the largest phase. Non-linear load: {d['nonlinear_share_pct']:.0f} % of the "
                 "connected VA."
@@ -461,6 +463,8 @@ def text_renderables(data: dict[str, Any], *, ascii_only: bool = False) -> list[
         Print them in order on one console.
     """
     g = _Glyphs(ascii_only)
+    if ascii_only:
+        data = _ascii_data(data)
     out: list[RenderableType] = [_heading(data, g)]
     out += [_section("Phase and neutral currents (estimate)", g), _currents(data, g)]
     out += [_section("Symmetrical components and current unbalance", g), _sequence(data, g)]
@@ -485,6 +489,46 @@ def text_renderables(data: dict[str, Any], *, ascii_only: bool = False) -> list[
         ),
     ]
     return out
+
+
+_ASCII = str.maketrans(
+    {
+        "…": "...",
+        "–": "-",
+        "—": "-",
+        "−": "-",
+        "·": "*",
+        "∠": "@",
+        "°": " deg",
+        "×": "x",
+        "≤": "<=",
+        "≥": ">=",
+        "±": "+/-",
+        "’": "'",
+        "“": '"',
+        "”": '"',
+    }
+)
+
+
+def to_ascii(text: str) -> str:
+    """``text`` with the report's symbols spelled in ASCII and accents dropped."""
+    text = unicodedata.normalize("NFKD", text.translate(_ASCII))
+    return (
+        "".join(ch for ch in text if not unicodedata.combining(ch))
+        .encode("ascii", "replace")
+        .decode("ascii")
+    )
+
+
+def _ascii_data(x: Any) -> Any:
+    if isinstance(x, str):
+        return to_ascii(x)
+    if isinstance(x, dict):
+        return {k: _ascii_data(v) for k, v in x.items()}
+    if isinstance(x, list):
+        return [_ascii_data(v) for v in x]
+    return x
 
 
 def print_text(data: dict[str, Any], console: Console) -> None:
@@ -531,6 +575,8 @@ def render_text(
     for item in text_renderables(data, ascii_only=ascii_only):
         console.print(item)
     text = buf.getvalue()
+    if ascii_only:
+        text = to_ascii(text)
     if not color:
         text = "\n".join(line.rstrip() for line in text.splitlines()) + "\n"
     return text
