@@ -37,6 +37,9 @@ class Options:
         At most this many moves; None: no limit.
     place_new : bool
         Also find slots for the circuits not placed yet.
+    mode : str
+        ``"fewest-moves"`` (to the target), ``"balance"`` (best with at most
+        ``max_moves``) or ``"place-new"`` (only place new circuits).
     time_limit_s : float
         Search budget [s].
     """
@@ -45,6 +48,7 @@ class Options:
     max_moves: int | None = None
     place_new: bool = True
     time_limit_s: float = 3.0
+    mode: str = "fewest-moves"
 
 
 @dataclass(frozen=True)
@@ -90,6 +94,7 @@ def _kwargs(fn: Callable[..., Any], options: Options, progress: Any, cancel: Any
         ("target_pct", "target"): options.target_pct,
         ("max_moves",): options.max_moves,
         ("place_new",): options.place_new,
+        ("mode",): options.mode,
         ("time_limit_s", "time_limit"): options.time_limit_s,
         ("progress", "on_progress"): progress,
         ("cancel", "cancel_event", "should_stop"): cancel,

@@ -25,13 +25,21 @@ from tri.schedule.to_engine import analyse_schedule
 from tri.tui import rebalance_bridge as bridge
 from tri.tui.fmt import parse_number
 from tri.tui.messages import RebalanceDone, RebalanceProgress
-from tri.tui.widgets.toggle import Toggle
+from tri.tui.widgets.cycle import Cycle
+
+MODES = (
+    ("fewest moves to target", "fewest-moves"),
+    ("best balance ≤ moves", "balance"),
+    ("place new only", "place-new"),
+)
 
 REBALANCE_HELP = """\
-Finds the fewest breaker moves that bring the phase currents within the
-target (largest deviation of a phase's RMS current from the mean), or the
-best balance with at most the given number of moves (leave the target
-blank), and optionally the best free slots for circuits not placed yet.
+Three modes (← → on the mode field): fewest breaker moves that bring the
+phase currents within the target (largest deviation of a phase's RMS
+current from the mean); the best balance with at most the given number of
+moves; or only the best free slots for circuits not placed yet. New
+circuits are placed in the first two modes too. Ctrl+R (or F5, or Enter in
+a number field) runs; Esc cancels a run, or goes back.
 Locked circuits never move. The result is a work order: each line is one
 breaker to relocate. Space selects or clears a move; a applies the selected
 moves, A applies all of them; u in the main view undoes. Before and after
@@ -63,10 +71,9 @@ class RebalanceScreen(Screen[None]):
         with Horizontal(id="rb-mode"):
             yield Label("Target %", classes="rb-label")
             yield Input("5", id="rb-target", compact=True, classes="rb-num")
-            yield Label("Max moves", classes="rb-label")
+            yield Label("Moves", classes="rb-label")
             yield Input("", id="rb-moves", placeholder="any", compact=True, classes="rb-num")
-            yield Label("Place new", classes="rb-label")
-            yield Toggle(True, id="rb-place")
+            yield Cycle(MODES, "fewest-moves", id="rb-mode-choice")
         with Horizontal(id="rb-progress-row"):
             yield ProgressBar(total=1.0, show_eta=False, id="rb-progress")
             yield Static("", id="rb-state")
@@ -107,12 +114,16 @@ class RebalanceScreen(Screen[None]):
             return "Target: expected a percent above 0 and below 100, or blank for best balance."
         if moves is not None and (not isinstance(moves, int) or moves < 0):
             return "Max moves: expected a whole number, 0 or more, or blank for any."
-        if target is None and moves is None:
-            return "Give a target %, a number of moves, or both."
+        mode = self.query_one("#rb-mode-choice", Cycle).value
+        if mode == "fewest-moves" and target is None:
+            return "Fewest moves needs a target %; or choose best balance (← → on the mode)."
+        if mode == "balance" and moves is None:
+            return "Best balance needs a number of moves; or choose fewest moves to a target."
         return bridge.Options(
             target_pct=None if target is None else float(target),
             max_moves=moves if isinstance(moves, int) else None,
-            place_new=self.query_one("#rb-place", Toggle).value,
+            place_new=True,
+            mode=mode,
         )
 
     def on_input_submitted(self, event: Input.Submitted) -> None:
