@@ -237,3 +237,29 @@ async def test_each_demo_opens_with_the_engines_figures(demo: Path) -> None:
         legend = str(app.screen.query_one("#phasor-legend").render())
         for ph in expected.phases:
             assert f"{ph.current_a:.1f} A ∠{ph.current_deg:.1f}°" in legend
+
+
+@pytest.mark.parametrize("demo", [DATA / "small.toml", *DEMOS], ids=lambda p: p.stem)
+def test_journal_data_round_trip(demo: Path) -> None:
+    from tri.schedule.journal import schedule_from_data, schedule_to_data
+
+    schedule = load_schedule(demo).schedule
+    back = schedule_from_data(schedule_to_data(schedule))
+    assert back == schedule
+    assert [c.source_index for c in back.circuits] == [c.source_index for c in schedule.circuits]
+
+
+def test_journal_module_stays_headless() -> None:
+    import subprocess
+    import sys
+
+    code = "import sys, tri.schedule.journal; print('textual' in sys.modules)"
+    out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True)
+    assert out.stdout.strip() == "False"
+
+
+def test_unreadable_journal_is_ignored(small: Path) -> None:
+    target = journal_path(small)
+    target.parent.mkdir(parents=True, exist_ok=True)
+    target.write_text("{not json")
+    assert read_journal(target) is None
