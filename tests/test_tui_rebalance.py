@@ -147,3 +147,29 @@ async def test_waiting_message_without_rebalancer(
         assert "not in this build" in str(app.screen.query_one("#rb-state").render())
         await pilot.press("escape")
         assert isinstance(app.screen, MainScreen)
+
+
+@pytest.mark.skipif(bridge.find_entry() is None, reason="tri.rebalance has no entry point yet")
+async def test_real_rebalancer_plan_is_applied_with_the_engines_figures(small: Path) -> None:
+    app = TriApp(small, journal=False)
+    async with app.run_test(size=(80, 24)) as pilot:
+        await settle(pilot)
+        before = app.session.schedule
+        await pilot.press("b", "ctrl+r")
+        for _ in range(100):  # the search has a time limit of a few seconds
+            await settle(pilot)
+            if not app.screen.running:
+                break
+        screen = app.screen
+        assert screen.plan is not None, str(screen.query_one("#rb-state").render())
+        assert screen.plan.status in ("optimal", "best-found", "infeasible", "already-balanced")
+        locked = {c.name for c in before.circuits if c.locked}
+        assert not any(m.before.name in locked for m in screen.plan.moves)
+        await pilot.press("A")
+        await settle(pilot)
+        if screen.plan.moves:
+            assert app.session.schedule == screen.plan.after
+            assert app.analysis == analyse_schedule(screen.plan.after)
+            await pilot.press("u")
+            await settle(pilot)
+        assert app.session.schedule == before

@@ -170,7 +170,22 @@ def run(
         raise RebalancerMissing(
             "The rebalancer is not in this build yet: this screen is waiting for it."
         )
-    result = fn(schedule, **_kwargs(fn, options, progress, cancel))
+    params = inspect.signature(fn).parameters
+    options_cls = getattr(inspect.getmodule(fn), "SuggestOptions", None)
+    if "options" in params and options_cls is not None:
+        # tri.rebalance.suggest(schedule, SuggestOptions(...), progress=, cancel=):
+        # the mode follows from which fields are set.
+        fields = {
+            "fewest-moves": {"target_pct": options.target_pct, "max_moves": options.max_moves},
+            "balance": {"max_moves": options.max_moves},
+            "place-new": {},
+        }.get(options.mode, {})
+        suggest_options = options_cls(
+            place_new=options.place_new, time_limit_s=options.time_limit_s, **fields
+        )
+        result = fn(schedule, suggest_options, progress=progress, cancel=cancel)
+    else:
+        result = fn(schedule, **_kwargs(fn, options, progress, cancel))
     return to_plan(schedule, result)
 
 
