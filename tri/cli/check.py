@@ -13,6 +13,7 @@ import argparse
 import json
 import math
 import sys
+import textwrap
 from typing import Any
 
 from tri.cli.common import EXIT_ERROR, EXIT_LIMIT, EXIT_OK, SAFETY_CAUTION, CliError, print_error
@@ -30,14 +31,26 @@ from tri.schedule.to_engine import DEFAULT_CONTINUOUS_FACTOR
 
 def add_parser(sub: Any) -> None:
     """Register ``tri check``."""
-    lines = [f"  {x.option} PCT  default {x.default_pct:g} %: {x.source}" for x in LIMITS]
+    lines = []
+    for x in LIMITS:
+        lines += textwrap.wrap(
+            f"{x.option} {x.default_pct:g} %: {x.source}",
+            width=78,
+            initial_indent="  ",
+            subsequent_indent="      ",
+        )
+    description = textwrap.fill(
+        "Check one or more schedules against limits and exit 0 when all pass, 1 when any "
+        "limit is exceeded, 2 when a file cannot be read. Each limit is printed with the "
+        "value, pass/fail and where its default comes from. Figures are estimates; local "
+        "codes and a licensed practitioner decide.",
+        width=78,
+    )
     p = sub.add_parser(
         "check",
         help="exit 0 within limits, 1 when a limit is exceeded",
-        description="Check one or more schedules against limits and exit 0 when all pass, "
-        "1 when any limit is exceeded, 2 when a file cannot be read. Each limit is printed "
-        "with the value, pass/fail and where its default comes from.",
-        epilog="limits (a value equal to the limit passes):\n" + "\n".join(lines),
+        description=description,
+        epilog="default limits (a value equal to the limit passes):\n" + "\n".join(lines),
         formatter_class=argparse.RawDescriptionHelpFormatter,
     )
     p.add_argument("files", nargs="+", metavar="FILE", help="schedule file(s) (.toml)")
@@ -48,7 +61,7 @@ def add_parser(sub: Any) -> None:
             default=x.default_pct,
             metavar="PCT",
             dest=f"max_{x.key}",
-            help=f"{x.title} (default {x.default_pct:g} %%)",
+            help=f"maximum: {x.title} (default {x.default_pct:g} %)".replace("%", "%%"),
         )
     p.add_argument("--format", choices=("text", "json"), default="text", help="output format")
     p.add_argument(
