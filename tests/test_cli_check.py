@@ -191,3 +191,12 @@ def test_a_value_equal_to_the_limit_passes() -> None:
     assert all(r.status == "pass" for r in results), results
     nudged = {k: v * (1 - 1e-9) for k, v in exact.items()}
     assert any(r.status == "fail" for r in evaluate(data, nudged))
+
+
+def test_partial_line_voltages_are_reported_as_not_checked() -> None:
+    data = build_data(GARAGE, iterate=False, continuous_factor=1.25)
+    first = next(iter(data["readings"]["volts_ll"]))
+    data["readings"]["volts_ll"][first] = None
+    data["readings"]["vuf_pct"] = None
+    (vuf,) = [r for r in evaluate(data) if r.key == "vuf"]
+    assert vuf.status == "skipped" and "only some line voltages" in vuf.where

@@ -204,6 +204,17 @@ def evaluate(data: dict[str, Any], maxima: dict[str, float] | None = None) -> li
             vuf_rows.append(
                 _result(lim, m["vuf"], r["vuf_pct"], "measured line voltages, [readings]")
             )
+    partial = r is not None and any(x is not None for x in r["volts_ll"].values())
+    if partial and not any("measured" in x.where for x in vuf_rows):
+        vuf_rows.append(
+            _result(
+                lim,
+                m["vuf"],
+                None,
+                "",
+                skip="measured: only some line voltages are in [readings]; VUF needs all three",
+            )
+        )
     if not vuf_rows:
         vuf_rows.append(
             _result(

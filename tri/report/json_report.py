@@ -1,7 +1,8 @@
 """JSON report: the contract of ``tri report FILE --format json``.
 
 The object is :func:`tri.report.data.report_data` written as JSON: UTF-8,
-two-space indent, keys in the order the contract lists them, ``null`` for
+two-space indent, the contract's keys in the contract's order with the
+added keys (documented in :mod:`tri.report.data`) beside them, ``null`` for
 missing figures and never ``NaN`` (strict JSON that any parser reads).
 """
 
