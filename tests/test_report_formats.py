@@ -12,6 +12,8 @@ from __future__ import annotations
 import csv
 import io
 import re
+import subprocess
+import sys
 from pathlib import Path
 from typing import Any
 
@@ -189,3 +191,17 @@ def test_csv_quotes_names_with_commas(datas: dict[str, Any]) -> None:
     unplaced = [r for r in csv.DictReader(io.StringIO(text, newline="")) if r["placed"] == "false"]
     assert [r["name"] for r in unplaced] == ["EV charger, bay 3 (planned)"]
     assert unplaced[0]["phases"] == "" and unplaced[0]["slot"] == ""
+
+
+def test_report_layer_imports_neither_textual_nor_the_cli() -> None:
+    # conventions.md: the report layer sits below the CLI and the UI.
+    code = (
+        "import sys\n"
+        "import tri.report.data, tri.report.json_report, tri.report.text_report\n"
+        "import tri.report.markdown_report, tri.report.csv_report, tri.report.check_report\n"
+        "bad = [m for m in sys.modules if m == 'textual' or m.startswith(('textual.', 'tri.cli', "
+        "'tri.tui'))]\n"
+        "assert not bad, bad\n"
+    )
+    r = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, timeout=60)
+    assert r.returncode == 0, r.stderr

@@ -96,7 +96,9 @@ def _panel_facts(d: dict[str, Any]) -> list[str]:
     return _table(["Panel", md_escape(p["name"])], rows)
 
 
-def _slot_cells(d: dict[str, Any], slot: int, owner: dict[int, tuple[dict[str, Any], int]]):
+def _slot_cells(
+    d: dict[str, Any], slot: int, owner: dict[int, tuple[dict[str, Any], int]]
+) -> list[str]:
     """(circuit, poles, breaker, VA) cells for one slot."""
     if slot > d["panel"]["spaces"]:
         return ["", "", "", ""]
