@@ -103,8 +103,10 @@ def check_inputs(circuits: CircuitArrays, system: SystemVoltages, ratings: Ratin
         raise ValueError("harmonics must have shape (..., n, len(orders))")
     if h[0] and np.any(np.asarray(circuits.orders) < 2):
         raise ValueError("harmonic orders must be > 1 (the fundamental is implicit)")
+    if np.any(np.diff(np.asarray(circuits.orders)) <= 0):
+        raise ValueError("harmonic orders must be strictly increasing")
     conn = np.asarray(circuits.connection)
-    if not np.all(np.isin(conn, (UNPLACED, LINE_TO_NEUTRAL, LINE_TO_LINE, THREE_PHASE))):
+    if np.any((conn < UNPLACED) | (conn > THREE_PHASE)):
         raise ValueError("unknown connection code")
     placed = (conn == LINE_TO_NEUTRAL) | (conn == LINE_TO_LINE)
     for name in ("phase_p", "phase_q"):
@@ -113,8 +115,8 @@ def check_inputs(circuits: CircuitArrays, system: SystemVoltages, ratings: Ratin
             raise ValueError(f"{name} must be 0, 1 or 2 on placed circuits")
     if np.any((conn == LINE_TO_LINE) & (circuits.phase_p == circuits.phase_q)):
         raise ValueError("a line-to-line circuit needs two different phases")
-    if not np.all(np.isfinite(circuits.s_va)) or not np.all(np.isfinite(circuits.harmonics)):
-        raise ValueError("loads and harmonics must be finite numbers")
+    if not np.all(np.isfinite(circuits.s_va)):
+        raise ValueError("loads must be finite numbers")
     if not system.has_neutral and np.any(conn == LINE_TO_NEUTRAL):
         raise ValueError("line-to-neutral circuit on a 3-wire system (no neutral)")
     if not system.v_ll > 0 or (system.v_ln is not None and not system.v_ln > 0):
@@ -183,6 +185,8 @@ def analyse_batch(
 
     weights = continuous_weights(circuits.continuous, ratings.continuous_factor)
     oc = order_currents(circuits, i_e, weights if np.any(circuits.continuous) else None)
+    if not (np.all(np.isfinite(oc.phase)) and np.all(np.isfinite(oc.circuit_rms_a))):
+        raise ValueError("harmonics must be finite numbers")
     scale = np.sum(oc.circuit_rms_a, axis=-1)
     phase_spec = _snap(oc.phase, scale, 2)
     neutral_spec = _snap(oc.neutral, scale, 1)
@@ -198,15 +202,11 @@ def analyse_batch(
 
     s_abs = np.abs(np.asarray(circuits.s_va))
     placed = conn != UNPLACED
-    nonlinear = np.any(np.abs(circuits.harmonics) > 0, axis=-1) & placed
+    nonlinear = (oc.harmonic_power_pu > 0) & placed
     total_va = np.sum(np.where(placed, s_abs, 0.0), axis=-1)
     nl_va = np.sum(np.where(nonlinear, s_abs, 0.0), axis=-1)
     nl_share = np.where(total_va > 0, 100.0 * nl_va / np.where(total_va > 0, total_va, 1.0), 0.0)
-    triplen_cols = np.asarray(circuits.orders) % 3 == 0
-    tp_triplen = np.any(
-        (conn == THREE_PHASE) & np.any(np.abs(circuits.harmonics[..., triplen_cols]) > 0, -1),
-        axis=-1,
-    )
+    tp_triplen = np.any((conn == THREE_PHASE) & (oc.triplen_power_pu > 0), axis=-1)
 
     volt: dict[str, np.ndarray | None] = {}
     if sol is not None:

@@ -34,6 +34,10 @@ import numpy as np
 from tri.engine.inputs import CircuitArrays
 from tri.engine.phasors import PHASE_ANGLES, connection_masks, incidence
 
+#: Spectrum elements (circuits × orders) processed per chunk of the batch, so
+#: the working arrays stay in the CPU cache [-].
+CHUNK_ELEMENTS = 1 << 16
+
 
 def all_orders(orders: np.ndarray) -> np.ndarray:
     """Orders including the fundamental.
@@ -75,33 +79,47 @@ def three_wire_rotation(orders_all: np.ndarray) -> np.ndarray:
     return rot
 
 
-def element_spectrum(
-    i_element: np.ndarray, harmonics: np.ndarray, orders: np.ndarray
-) -> np.ndarray:
-    """Element current of every circuit at every order.
+def unit_powers(unit: np.ndarray, orders: np.ndarray, out: np.ndarray | None = None) -> np.ndarray:
+    """Integer powers ``u^h`` of unit phasors, one array pass per order.
 
     Parameters
     ----------
-    i_element : complex ndarray, shape (..., n)
-        Fundamental element currents ``I_e`` [A].
-    harmonics : complex ndarray, shape (..., n, h)
-        ``m_h·e^{jδ_h}`` per circuit [pu, rad].
+    unit : complex ndarray, shape (...)
+        Unit phasors ``e^{jθ}`` (or 0).
     orders : int ndarray, shape (h,)
-        Harmonic orders of the columns.
+        Orders, ascending, ≥ 1.
+    out : complex ndarray, shape (..., h), optional
+        Where to write the result.
 
     Returns
     -------
-    complex ndarray, shape (..., n, h + 1)
-        Column 0 is ``I_e``; column k is ``m_h·|I_e|·e^{j(h·θ + δ_h)}`` [A].
+    complex ndarray, shape (..., h)
+        ``e^{j·h·θ}`` for each order [-].
+
+    Notes
+    -----
+    ``u^{h_k} = u^{h_{k-1}}·u^{h_k − h_{k−1}}``, the step powers cached and
+    built by squaring: one complex multiplication per order instead of a
+    complex exponential per element (about 10× faster). The round-off grows
+    by about one unit in the last place per multiplication, i.e. ~1e-14 at
+    order 50.
     """
-    i_e = np.asarray(i_element, dtype=complex)
-    harm = np.asarray(harmonics, dtype=complex)
-    orders = np.asarray(orders, dtype=float)
-    mag = np.abs(i_e)
-    theta = np.angle(i_e)
-    out = np.empty((*np.broadcast_shapes(i_e.shape, harm.shape[:-1]), orders.size + 1), complex)
-    out[..., 0] = i_e
-    out[..., 1:] = (mag[..., None] * harm) * np.exp(1j * theta[..., None] * orders)
+    orders = [int(h) for h in np.asarray(orders)]
+    if out is None:
+        out = np.empty((*np.shape(unit), len(orders)), dtype=complex)
+    cache: dict[int, np.ndarray] = {1: unit}
+
+    def power(d: int) -> np.ndarray:
+        if d not in cache:
+            half = power(d // 2)
+            cache[d] = half * half if d % 2 == 0 else half * half * unit
+        return cache[d]
+
+    prev, acc = 0, None
+    for k, h in enumerate(orders):
+        acc = power(h) if acc is None else acc * power(h - prev)
+        out[..., k] = acc
+        prev = h
     return out
 
 
@@ -125,6 +143,11 @@ class OrderCurrents:
     phase_weighted : complex ndarray, shape (..., 3, H), or None
         Line currents with each circuit's current multiplied by ``weights``
         [A]; None when no weights were given.
+    harmonic_power_pu : float ndarray, shape (..., n)
+        ``Σ_{h>1} m_h²`` of each circuit's profile [pu²] (> 0: non-linear).
+    triplen_power_pu : float ndarray, shape (..., n)
+        The triplen part of it, computed for 3-pole circuits (0 elsewhere when
+        there are none) [pu²].
     """
 
     orders: np.ndarray
@@ -133,6 +156,8 @@ class OrderCurrents:
     circuit_fundamental_a: np.ndarray
     circuit_rms_a: np.ndarray
     phase_weighted: np.ndarray | None = None
+    harmonic_power_pu: np.ndarray | None = None
+    triplen_power_pu: np.ndarray | None = None
 
 
 def order_currents(
@@ -159,38 +184,84 @@ def order_currents(
 
     Notes
     -----
-    ``I_p,h = Σ_c M_c,p·E_c,h + R_p,h·Σ_{c∈3P} E_c,h`` with ``M`` the
-    incidence (+1 on p, −1 on q), ``E`` the element spectrum and ``R`` from
-    :func:`three_wire_rotation`; ``I_N,h = Σ_{c∈1P} E_c,h`` [2].
+    Element spectrum ``E_c,h = m_h·e^{jδ_h}·|I_e|·u^h`` with
+    ``u = I_e/|I_e| = e^{jθ}`` (so ``∠E = h·θ + δ_h``), and
+
+    ``I_p,h = Σ_c M_c,p·E_c,h + R_p,h·Σ_{c∈3P} E_c,h``,
+    ``I_N,h = Σ_{c∈1P} E_c,h`` [2],
+
+    with ``M`` the incidence (+1 on p, −1 on q) and ``R`` from
+    :func:`three_wire_rotation`. The sums are one real matrix product per
+    chunk of panels (``|I_e|`` folded into the collector matrix); the per-unit
+    spectrum ``m_h·e^{jδ_h}·u^h`` is built with one multiplication per order
+    (:func:`unit_powers`). Per-circuit RMS:
+    ``|I_e|·sqrt(1 + Σ m_h²)`` (triplens left out for 3-pole circuits).
     """
     ln, _, tp = connection_masks(circuits)
-    orders_all = all_orders(circuits.orders)
-    spec = element_spectrum(i_element, circuits.harmonics, circuits.orders)
-    # one collector matrix: rows 0-2 the 1-/2-pole incidence, row 3 picks the
-    # 3-pole circuits, row 4 the line-to-neutral ones (the neutral)
-    collect = np.concatenate(
-        [np.swapaxes(incidence(circuits), -1, -2), tp[..., None, :], ln[..., None, :]], axis=-2
-    ).astype(complex)
+    orders = np.asarray(circuits.orders, dtype=int)
+    orders_all = all_orders(orders)
     rot = three_wire_rotation(orders_all)
+    i_e = np.asarray(i_element, dtype=complex)
+    batch, n, n_h = i_e.shape[:-1], i_e.shape[-1], orders.size
+    harm = np.ascontiguousarray(
+        np.broadcast_to(np.asarray(circuits.harmonics, dtype=complex), (*batch, n, n_h))
+    )
+    mag = np.abs(i_e)
+    # unit phasor u = I_e/|I_e| (1 where I_e = 0); real divisions stay exact
+    # for subnormal currents, where a complex division would overflow
+    safe = np.where(mag > 0, mag, 1.0)
+    unit = np.where(mag > 0, i_e.real / safe + 1j * (i_e.imag / safe), 1.0)
 
-    def lines(s: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
-        summed = collect @ s
-        return summed[..., :3, :] + summed[..., 3:4, :] * rot, summed[..., 4, :]
+    # Collector matrix, scaled by |I_e| so the spectrum below is per unit:
+    # rows 0-2 the 1-/2-pole incidence (+1 on p, -1 on q), row 3 picks 3-pole
+    # circuits, row 4 line-to-neutral ones (the neutral); rows 5-8 repeat 0-3
+    # with the weights.
+    rows = [incidence(circuits), tp[..., None, :], ln[..., None, :]]
+    if weights is not None:
+        w = np.asarray(weights, dtype=float)[..., None, :]
+        rows += [rows[0] * w, rows[1] * w]
+    collect = np.concatenate(rows, axis=-2) * mag[..., None, :]
+    n_rows = collect.shape[-2]
 
-    phase, neutral = lines(spec)
+    sums = np.empty((*batch, n_rows, n_h + 1), dtype=complex)
+    sums[..., 0] = (collect @ unit[..., None])[..., 0]  # the fundamental
+    if n_h:
+        flat = int(np.prod(batch, dtype=int))
+        sums_h = sums.reshape(flat, n_rows, n_h + 1)[..., 1:]
+        collect_f = collect.reshape(flat, n_rows, n)
+        unit_f = unit.reshape(flat, n)
+        harm_f = harm.reshape(flat, n, n_h)
+        step = max(1, CHUNK_ELEMENTS // (n * n_h or 1))
+        for lo in range(0, flat, step):
+            hi = min(flat, lo + step)
+            spec = unit_powers(unit_f[lo:hi], orders)  # u^h, (m, n, h)
+            np.multiply(spec, harm_f[lo:hi], out=spec)  # m_h e^{jδ_h} u^h = E_h / |I_e|
+            # real view: a real matrix product, half the work of a complex one
+            sums_h[lo:hi] = (collect_f[lo:hi] @ spec.view(np.float64)).view(complex)
+
+    phase = sums[..., :3, :] + sums[..., 3:4, :] * rot
     weighted = None
     if weights is not None:
-        weighted = lines(spec * np.asarray(weights, dtype=float)[..., None])[0]
-    # per-circuit line currents: |E| on each line; 3-pole lose their triplens
-    power = np.abs(spec) ** 2
-    power = np.where(tp[..., None], power * np.abs(rot[0]) ** 2, power)
+        weighted = sums[..., 5:8, :] + sums[..., 8:9, :] * rot
+
+    # per-circuit RMS: |E_h| = m_h·|I_e|; 3-pole circuits lose their triplens
+    hf = harm.view(np.float64)
+    power = np.einsum("...k,...k->...", hf, hf)  # Σ_{h>1} m_h²
+    triplen = np.zeros_like(power)
+    tri_cols = np.flatnonzero(orders % 3 == 0)
+    if tri_cols.size and np.any(tp):
+        t = harm[tp][:, tri_cols]  # 3-pole rows only
+        triplen[tp] = np.sum(t.real**2 + t.imag**2, axis=-1)
+    rms_pu = np.sqrt(1.0 + np.where(tp, np.maximum(power - triplen, 0.0), power))
     return OrderCurrents(
         orders=orders_all,
         phase=phase,
-        neutral=neutral,
-        circuit_fundamental_a=np.abs(spec[..., 0]),
-        circuit_rms_a=np.sqrt(np.sum(power, axis=-1)),
+        neutral=sums[..., 4, :],
+        circuit_fundamental_a=mag,
+        circuit_rms_a=mag * rms_pu,
         phase_weighted=weighted,
+        harmonic_power_pu=power,
+        triplen_power_pu=triplen,
     )
 
 

@@ -116,6 +116,27 @@ def connection_masks(circuits: CircuitArrays) -> tuple[np.ndarray, np.ndarray, n
     return conn == LINE_TO_NEUTRAL, conn == LINE_TO_LINE, conn == THREE_PHASE
 
 
+def line_masks(circuits: CircuitArrays) -> tuple[np.ndarray, np.ndarray]:
+    """Which lines each 1- or 2-pole circuit feeds and returns by.
+
+    Parameters
+    ----------
+    circuits : CircuitArrays
+        Circuits, shape (..., n).
+
+    Returns
+    -------
+    out_on, back_on : bool ndarray, shape (..., 3, n)
+        ``out_on[k, c]``: circuit c is 1- or 2-pole with ``phase_p == k``;
+        ``back_on[k, c]``: circuit c is 2-pole with ``phase_q == k``.
+    """
+    ln, ll, _ = connection_masks(circuits)
+    k = np.arange(3)[:, None]
+    out_on = (np.asarray(circuits.phase_p)[..., None, :] == k) & (ln | ll)[..., None, :]
+    back_on = (np.asarray(circuits.phase_q)[..., None, :] == k) & ll[..., None, :]
+    return out_on, back_on
+
+
 def incidence(circuits: CircuitArrays) -> np.ndarray:
     """Line incidence of 1-pole and 2-pole circuits.
 
@@ -126,21 +147,21 @@ def incidence(circuits: CircuitArrays) -> np.ndarray:
 
     Returns
     -------
-    float ndarray, shape (..., n, 3)
+    float ndarray, shape (..., 3, n)
         ``+1`` on line p, ``-1`` on line q of a 2-pole circuit, 0 elsewhere
-        [-]. Three-phase and unplaced rows are all zero (three-phase circuits
-        are added by rotation, see :mod:`tri.engine.harmonics`).
+        [-] (lines × circuits). Three-phase and unplaced columns are all zero
+        (three-phase circuits are added by rotation, see
+        :mod:`tri.engine.harmonics`).
     """
-    ln, ll, _ = connection_masks(circuits)
-    k = np.arange(3)
-    p = np.asarray(circuits.phase_p)[..., None] == k
-    q = np.asarray(circuits.phase_q)[..., None] == k
-    return p * (ln | ll)[..., None].astype(float) - q * ll[..., None].astype(float)
+    out_on, back_on = line_masks(circuits)
+    return out_on.astype(float) - back_on
 
 
 def _take(v_phase: np.ndarray, index: np.ndarray) -> np.ndarray:
     """``v_phase[..., index]`` with ``v_phase`` broadcast to the batch shape."""
     index = np.clip(np.asarray(index, dtype=np.intp), 0, 2)
+    if v_phase.ndim == 1:
+        return v_phase[index]
     v = np.broadcast_to(v_phase, (*index.shape[:-1], 3))
     return np.take_along_axis(v, index, axis=-1)
 
@@ -214,14 +235,8 @@ def schedule_va(circuits: CircuitArrays) -> np.ndarray:
         third of each 3-pole circuit touching it [VA] (the panel-schedule
         bookkeeping, not ``|I_p|·V_p``).
     """
-    ln, ll, tp = connection_masks(circuits)
+    _, ll, tp = connection_masks(circuits)
     s = np.abs(np.asarray(circuits.s_va, dtype=complex))
-    k = np.arange(3)
-    p = np.asarray(circuits.phase_p)[..., None] == k
-    q = np.asarray(circuits.phase_q)[..., None] == k
-    share = (
-        p * ln[..., None]
-        + 0.5 * (p | q) * ll[..., None]
-        + (1.0 / 3.0) * np.broadcast_to(tp[..., None], p.shape)
-    )
-    return np.einsum("...n,...nk->...k", s, share)
+    out_on, back_on = line_masks(circuits)
+    share = (out_on | back_on) * (1.0 - 0.5 * ll)[..., None, :] + (tp / 3.0)[..., None, :]
+    return (share @ s[..., None])[..., 0]

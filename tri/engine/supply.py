@@ -188,7 +188,7 @@ class VoltageSolution:
 def _fundamental(circuits: CircuitArrays, i_e: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
     """Fundamental line currents (..., 3) and neutral (...) from element currents."""
     ln, _, tp = connection_masks(circuits)
-    i_line = np.einsum("...nk,...n->...k", incidence(circuits), i_e)
+    i_line = (incidence(circuits) @ i_e[..., None])[..., 0]
     i_line = i_line + np.sum(np.where(tp, i_e, 0), axis=-1)[..., None] * PHASE_UNIT
     return i_line, np.sum(np.where(ln, i_e, 0), axis=-1)
 
