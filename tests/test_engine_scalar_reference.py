@@ -209,6 +209,8 @@ def test_engine_equals_scalar_reference(circuits):
     close(b.phase_design_a, ref["design"], scale)
     close(b.neutral_rms_a, ref["neutral_rms"], scale)
     close(b.sequence, ref["seq"], scale)
+    # I_N = 3·I_0 (engine.md): 2-pole and 3-pole circuits add nothing to the neutral
+    close(b.neutral_spectrum[0], 3 * b.sequence[0], scale)
     close(b.circuit_current_a, ref["circ_fund"], scale)
     close(b.circuit_rms_a, ref["circ_rms"], scale)
     close(b.phase_loading_pct, np.array(ref["rms"]) / 300 * 100, scale)

@@ -32,7 +32,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from tri.engine.inputs import CircuitArrays
-from tri.engine.phasors import PHASE_ANGLES, connection_masks, incidence
+from tri.engine.phasors import PHASE_ANGLES, connection_masks, line_masks
 
 #: Spectrum elements (circuits × orders) processed per chunk of the batch, so
 #: the working arrays stay in the CPU cache [-].
@@ -146,8 +146,7 @@ class OrderCurrents:
     harmonic_power_pu : float ndarray, shape (..., n)
         ``Σ_{h>1} m_h²`` of each circuit's profile [pu²] (> 0: non-linear).
     triplen_power_pu : float ndarray, shape (..., n)
-        The triplen part of it, computed for 3-pole circuits (0 elsewhere when
-        there are none) [pu²].
+        The triplen part of it for 3-pole circuits (0 for the others) [pu²].
     """
 
     orders: np.ndarray
@@ -216,18 +215,31 @@ def order_currents(
     # rows 0-2 the 1-/2-pole incidence (+1 on p, -1 on q), row 3 picks 3-pole
     # circuits, row 4 line-to-neutral ones (the neutral); rows 5-8 repeat 0-3
     # with the weights.
-    rows = [incidence(circuits), tp[..., None, :], ln[..., None, :]]
+    out_on, back_on = line_masks(circuits)
+    n_rows = 5 if weights is None else 9
+    collect = np.empty((*batch, n_rows, n))
+    np.subtract(out_on, back_on, out=collect[..., :3, :], dtype=float)
+    collect[..., 3, :] = tp
+    collect[..., 4, :] = ln
     if weights is not None:
-        w = np.asarray(weights, dtype=float)[..., None, :]
-        rows += [rows[0] * w, rows[1] * w]
-    collect = np.concatenate(rows, axis=-2) * mag[..., None, :]
-    n_rows = collect.shape[-2]
+        np.multiply(
+            collect[..., :4, :], np.asarray(weights, float)[..., None, :], out=collect[..., 5:, :]
+        )
+    collect *= mag[..., None, :]
+
+    # per-unit spectrum powers for the per-circuit RMS: column 0 Σ_{h>1} m_h²,
+    # column 1 its triplen part (3-pole circuits cannot draw it)
+    pick = np.stack([np.ones(n_h), (orders % 3 == 0).astype(float)], axis=-1)
+    pick = np.repeat(pick, 2, axis=0)  # rows for the real and imaginary parts
 
     sums = np.empty((*batch, n_rows, n_h + 1), dtype=complex)
-    sums[..., 0] = (collect @ unit[..., None])[..., 0]  # the fundamental
+    unit_pairs = unit.view(np.float64).reshape(*batch, n, 2)
+    sums[..., 0] = (collect @ unit_pairs).view(complex)[..., 0]  # the fundamental
+    power = np.zeros((*batch, n, 2))
     if n_h:
         flat = int(np.prod(batch, dtype=int))
         sums_h = sums.reshape(flat, n_rows, n_h + 1)[..., 1:]
+        power_f = power.reshape(flat, n, 2)
         collect_f = collect.reshape(flat, n_rows, n)
         unit_f = unit.reshape(flat, n)
         harm_f = harm.reshape(flat, n, n_h)
@@ -237,7 +249,10 @@ def order_currents(
             spec = unit_powers(unit_f[lo:hi], orders)  # u^h, (m, n, h)
             np.multiply(spec, harm_f[lo:hi], out=spec)  # m_h e^{jδ_h} u^h = E_h / |I_e|
             # real view: a real matrix product, half the work of a complex one
-            sums_h[lo:hi] = (collect_f[lo:hi] @ spec.view(np.float64)).view(complex)
+            pairs = spec.view(np.float64)
+            sums_h[lo:hi] = (collect_f[lo:hi] @ pairs).view(complex)
+            sq = np.square(pairs, out=pairs).reshape(-1, 2 * n_h)  # one 2-D product
+            power_f[lo:hi] = (sq @ pick).reshape(hi - lo, n, 2)  # Σ |E_h/|I_e||² = Σ m_h²
 
     phase = sums[..., :3, :] + sums[..., 3:4, :] * rot
     weighted = None
@@ -245,14 +260,8 @@ def order_currents(
         weighted = sums[..., 5:8, :] + sums[..., 8:9, :] * rot
 
     # per-circuit RMS: |E_h| = m_h·|I_e|; 3-pole circuits lose their triplens
-    hf = harm.view(np.float64)
-    power = np.einsum("...k,...k->...", hf, hf)  # Σ_{h>1} m_h²
-    triplen = np.zeros_like(power)
-    tri_cols = np.flatnonzero(orders % 3 == 0)
-    if tri_cols.size and np.any(tp):
-        t = harm[tp][:, tri_cols]  # 3-pole rows only
-        triplen[tp] = np.sum(t.real**2 + t.imag**2, axis=-1)
-    rms_pu = np.sqrt(1.0 + np.where(tp, np.maximum(power - triplen, 0.0), power))
+    harmonic, triplen = power[..., 0], np.where(tp, power[..., 1], 0.0)
+    rms_pu = np.sqrt(1.0 + np.maximum(harmonic - triplen, 0.0))
     return OrderCurrents(
         orders=orders_all,
         phase=phase,
@@ -260,7 +269,7 @@ def order_currents(
         circuit_fundamental_a=mag,
         circuit_rms_a=mag * rms_pu,
         phase_weighted=weighted,
-        harmonic_power_pu=power,
+        harmonic_power_pu=harmonic,
         triplen_power_pu=triplen,
     )
 
