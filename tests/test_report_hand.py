@@ -10,8 +10,8 @@ compared with the JSON report of the demo. Conventions are engine.md's
 h-th harmonic is ``m_h·|I_1|∠(h·θ + δ_h)`` with θ the angle of its line
 current. The engine takes line voltages as phasor differences, so
 ``|V_LL| = √3·V_LN`` (207.85 V on a "208Y/120" system, 479.78 V on
-"480Y/277"), while a load given in amperes is converted with the nameplate
-V_LL (208 V, 480 V) as the schedule format says.
+"480Y/277"), and a load given in amperes is converted to VA with that same
+|V_LL|, so that the amperes written in the schedule come back unchanged.
 
 Slots (two-column panels, common practice): slot n is in row (n+1)//2 and the
 rows cycle A, B, C, so slots 1-2 A, 3-4 B, 5-6 C, 7-8 A, …; a 2-pole breaker
@@ -92,8 +92,8 @@ def test_bakery_phase_a() -> None:
     # Scheduled VA on A (all of a 1-pole, half a 2-pole, a third of a 3-pole):
     #   deck oven     slot 1 3P  14000 W pf 1           14000/3        = 4666.67
     #   proofer       slot 7 2P A-B 2800 W              2800/2         = 1400
-    #   spiral mixer  slot 11 3P 18 A: 18·208·√3=6484.8  6484.80/3     = 2161.60
-    #   walk-in       slot 17 2P C-A 16 A·208 = 3328     3328/2        = 1664
+    #   spiral mixer  slot 11 3P 18 A: 18·207.85·√3=6480.0  6480.00/3  = 2160.00
+    #   walk-in       slot 17 2P C-A 16 A·207.85 = 3325.5  3325.5/2    = 1662.77
     #   reach-in 1    slot 25 1P 7.5 A·120               = 900
     #   dishwasher    slot 29 2P C-A 5500 W              5500/2        = 2750
     #   espresso      slot 2 2P A-B 5200 W               5200/2        = 2600
@@ -101,30 +101,30 @@ def test_bakery_phase_a() -> None:
     #   water heater  slot 12 2P C-A 4500 W              4500/2        = 2250
     #   dough divider slot 20 1P 8 A·120                 = 960
     #   ice machine   slot 26 1P 9 A·120                 = 1080
-    #   total                                             = 21332.27 VA
+    #   total                                             = 21329.44 VA
     va = (
-        14000 / 3 + 2800 / 2 + 18 * 208 * SQRT3 / 3 + 3328 / 2 + 900
+        14000 / 3 + 2800 / 2 + 18 * vll * SQRT3 / 3 + 16 * vll / 2 + 900
         + 5500 / 2 + 5200 / 2 + 900 + 4500 / 2 + 960 + 1080
     )  # fmt: skip
-    assert va == pytest.approx(21332.27, abs=0.01)
+    assert va == pytest.approx(21329.44, abs=0.01)
     assert a["va"] == pytest.approx(va, rel=REL)
     # Fundamental line current of A, one phasor per circuit:
     #   deck oven     14000/3/120 = 38.889 ∠0°
     #   proofer       +I_AB = 2800/207.85 = 13.472 ∠30°
-    #   spiral mixer  6484.80/3/120 = 18.013 ∠-34.92° (pf 0.82)
-    #   walk-in       -I_CA, I_CA = 3328/207.85 = 16.012 ∠(150-31.79)° → 16.012 ∠-61.79°
+    #   spiral mixer  6480.00/3/120 = 18.000 ∠-34.92° (pf 0.82)
+    #   walk-in       -I_CA, I_CA = 16 A ∠(150-31.79)° → 16.000 ∠-61.79°
     #   reach-in 1    7.5 ∠-36.87° (pf 0.8)
     #   dishwasher    -I_CA = 5500/207.85 = 26.462 ∠(150-180)° = ∠-30°
     #   espresso      +I_AB = 5200/207.85 = 25.019 ∠30°
     #   office PCs    900/120 = 7.5 ∠-18.19° (pf 0.95)
     #   water heater  -I_CA = 4500/207.85 = 21.651 ∠-30°
     #   dough divider 8 ∠-36.87°;  ice machine 9 ∠-31.79° (pf 0.85)
-    #   sum ≈ 169.65 A ∠-15.60°
+    #   sum ≈ 169.63 A ∠-15.59°
     i_a = (
         polar(14000 / 3 / 120, 0)
         + polar(2800 / vll, 30)
-        + polar(18 * 208 * SQRT3 / 3 / 120, -phi(0.82))
-        - polar(3328 / vll, 150 - phi(0.85))
+        + polar(18, -phi(0.82))
+        - polar(16, 150 - phi(0.85))
         + polar(7.5, -phi(0.8))
         - polar(5500 / vll, 150)
         + polar(5200 / vll, 30)
@@ -133,7 +133,7 @@ def test_bakery_phase_a() -> None:
         + polar(8, -phi(0.8))
         + polar(9, -phi(0.85))
     )
-    assert abs(i_a) == pytest.approx(169.65, abs=0.01)
+    assert abs(i_a) == pytest.approx(169.63, abs=0.01)
     assert a["current_a"] == pytest.approx(abs(i_a), rel=REL)
     assert a["current_deg"] == pytest.approx(math.degrees(cmath.phase(i_a)), abs=1e-6)
     # Harmonics on A: the office PCs (electronics, 7.5 A) are the only non-linear circuit
@@ -141,8 +141,8 @@ def test_bakery_phase_a() -> None:
     # so every order is that one circuit's m_h·7.5 A:
     #   Σm² = .81² + .606² + .37² + .157² + .024² + .063² + .079² = 1.195671
     #   harmonic RMS = 7.5·√1.195671 = 8.2010 A
-    #   RMS = √(169.65² + 8.2010²) = 169.85 A;  THD = 8.2010/169.65 = 4.83 %
-    #   loading = 169.85 / 200 A main = 84.92 %
+    #   RMS = √(169.63² + 8.2010²) = 169.83 A;  THD = 8.2010/169.63 = 4.83 %
+    #   loading = 169.83 / 200 A main = 84.91 %
     sum_m2 = sum(m * m for m, _ in ELECTRONICS.values())
     assert sum_m2 == pytest.approx(1.195671, abs=1e-9)
     harm = 7.5 * math.sqrt(sum_m2)
@@ -150,7 +150,7 @@ def test_bakery_phase_a() -> None:
     assert a["rms_a"] == pytest.approx(rms, rel=REL)
     assert a["thd_pct"] == pytest.approx(100 * harm / abs(i_a), rel=REL)
     assert a["loading_pct"] == pytest.approx(100 * rms / 200, rel=REL)
-    assert rms == pytest.approx(169.85, abs=0.01)
+    assert rms == pytest.approx(169.83, abs=0.01)
 
 
 def test_garage_phase_c() -> None:
@@ -160,41 +160,41 @@ def test_garage_phase_c() -> None:
     vll = 120 * SQRT3
     # Scheduled VA on C:
     #   office receptacles slot 5 1P 1200 VA                     = 1200
-    #   air compressor slot 11 3P 15.2 A·208·√3 = 5476.05 VA / 3   = 1825.35
+    #   air compressor slot 11 3P 15.2 A·207.85·√3 = 5472.0 VA / 3 = 1824.00
     #   tire changer slot 17 1P 8 A·120                          = 960
     #   water heater slot 6 2P C-A (6 → C, 8 → A) 4500 W / 2      = 2250
-    #   vehicle lift 2 slot 10 2P B-C (10 → B, 12 → C) 16·208/2   = 1664
+    #   vehicle lift 2 slot 10 2P B-C (10 → B, 12 → C) 16·207.85/2 = 1662.77
     #   door operators slot 24 1P 6 A·120                        = 720
-    #   total                                                     = 8619.35 VA
+    #   total                                                     = 8616.77 VA
     # The planned EV charger has no slot: it is unplaced and counts nowhere.
-    va = 1200 + 15.2 * 208 * SQRT3 / 3 + 960 + 4500 / 2 + 16 * 208 / 2 + 720
-    assert va == pytest.approx(8619.35, abs=0.01)
+    va = 1200 + 15.2 * vll * SQRT3 / 3 + 960 + 4500 / 2 + 16 * vll / 2 + 720
+    assert va == pytest.approx(8616.77, abs=0.01)
     assert c["va"] == pytest.approx(va, rel=REL)
     # Fundamental of C (V_C at +120°):
     #   office receptacles  1200/120 = 10 ∠(120-18.19)° = ∠101.81°
-    #   air compressor      5476.05/3/120 = 15.211 ∠(120-31.79)° = ∠88.21°
+    #   air compressor      5472.0/3/120 = 15.200 ∠(120-31.79)° = ∠88.21°
     #   tire changer        8 ∠(120-36.87)° = ∠83.13°
     #   water heater        +I_CA = 4500/207.85 = 21.651 ∠150°
-    #   vehicle lift 2      -I_BC, I_BC = 3328/207.85 = 16.012 ∠(-90-36.87)° → 16.012 ∠53.13°
+    #   vehicle lift 2      -I_BC, I_BC = 16 A ∠(-90-36.87)° → 16.000 ∠53.13°
     #   door operators      6 ∠(120-41.41)° = ∠78.59°
-    #   sum ≈ 63.04 A ∠97.81°
+    #   sum ≈ 63.02 A ∠97.82°
     i_c = (
         polar(10, 120 - phi(0.95))
-        + polar(15.2 * 208 * SQRT3 / 3 / 120, 120 - phi(0.85))
+        + polar(15.2, 120 - phi(0.85))
         + polar(8, 120 - phi(0.8))
         + polar(4500 / vll, 150)
-        - polar(3328 / vll, -90 - phi(0.8))
+        - polar(16, -90 - phi(0.8))
         + polar(6, 120 - phi(0.75))
     )
-    assert abs(i_c) == pytest.approx(63.04, abs=0.01)
+    assert abs(i_c) == pytest.approx(63.02, abs=0.01)
     assert c["current_a"] == pytest.approx(abs(i_c), rel=REL)
     assert c["current_deg"] == pytest.approx(math.degrees(cmath.phase(i_c)), abs=1e-6)
     # Harmonics on C: only the office receptacles (electronics, 10 A) are non-linear here
     # (the compressor is scheduled linear), so harmonic RMS = 10·√1.195671 = 10.935 A,
-    # RMS = √(63.04² + 10.935²) = 63.98 A, THD = 17.35 %, loading 63.98/150 = 42.65 %.
+    # RMS = √(63.02² + 10.935²) = 63.96 A, THD = 17.35 %, loading 63.96/150 = 42.64 %.
     harm = 10 * math.sqrt(sum(m * m for m, _ in ELECTRONICS.values()))
     rms = math.sqrt(abs(i_c) ** 2 + harm**2)
-    assert rms == pytest.approx(63.98, abs=0.01)
+    assert rms == pytest.approx(63.96, abs=0.01)
     assert c["rms_a"] == pytest.approx(rms, rel=REL)
     assert c["thd_pct"] == pytest.approx(100 * harm / abs(i_c), rel=REL)
     assert c["loading_pct"] == pytest.approx(100 * rms / 150, rel=REL)
@@ -205,33 +205,33 @@ def test_machine_shop_phase_a_and_neutral() -> None:
     d = report("machine_shop_480.toml")
     a = d["phases"]["A"]
     vll = 277 * SQRT3  # 479.78 V
-    k = 480 * SQRT3  # VA per ampere of a 3-pole load on 480 V: 831.38
+    k = vll * SQRT3  # VA per ampere of a 3-pole load: √3·479.78 = 831.00
     # Scheduled VA on A:
     #   1-pole LED on A: slot 1 3600 + slot 14 1200 + slot 32 2000       = 6800
-    #   welder 1 slot 31 2P A-B (31 → A, 33 → B) 28·480/2                = 6720
-    #   welder 2 slot 35 2P C-A (35 → C, 37 → A) 28·480/2                = 6720
-    #   3-pole: (28+28+35+31+14+12+22) A·831.38 + 28000 + 18000 = 187335.3, /3 = 62445.1
-    #   total                                                            = 82685.1 VA
+    #   welder 1 slot 31 2P A-B (31 → A, 33 → B) 28·479.78/2             = 6716.90
+    #   welder 2 slot 35 2P C-A (35 → C, 37 → A) 28·479.78/2             = 6716.90
+    #   3-pole: (28+28+35+31+14+12+22) A·831.00 + 28000 + 18000 = 187000.0, /3 = 62333.3
+    #   total                                                            = 82657.1 VA
     three_pole_va = (28 + 28 + 35 + 31 + 14 + 12 + 22) * k + 28000 + 18000
-    va = 6800 + 6720 + 6720 + three_pole_va / 3
-    assert va == pytest.approx(82685.1, abs=0.05)
+    va = 6800 + 28 * vll / 2 + 28 * vll / 2 + three_pole_va / 3
+    assert va == pytest.approx(82657.1, abs=0.05)
     assert a["va"] == pytest.approx(va, rel=REL)
-    # Fundamental of A (3-pole: S/3/277 ∠-φ; nameplate amperes ×480/479.78):
+    # Fundamental of A (3-pole: S/3/277 ∠-φ, i.e. the scheduled amperes):
     #   LED 6800/277 = 24.549 ∠-18.19°
-    #   welder 1 +I_AB = 13440/479.78 = 28.013 ∠(30-45.57)°
-    #   welder 2 -I_CA = 28.013 ∠(150-45.57-180)° = ∠-75.57°
-    #   mills 2×28, lathe 35, compressor 31 A (pf .95): 122.057 ∠-18.19°  (vfd)
+    #   welder 1 +I_AB = 28 A ∠(30-45.57)°
+    #   welder 2 -I_CA = 28 A ∠(150-45.57-180)° = ∠-75.57°
+    #   mills 2×28, lathe 35, compressor 31 A (pf .95): 122 A ∠-18.19°  (vfd)
     #   T-1 28000/3/277 = 33.694 ∠-25.84° (pf .9, electronics)
-    #   dust collector 14.0065 ∠-31.79°;  oven 18000/3/277 = 21.661 ∠0°
-    #   crane 12.0056 ∠-36.87° (vfd);  make-up air 22.0102 ∠-31.79° (vfd)
-    #   sum ≈ 291.84 A ∠-24.56°
-    s = 480 / vll  # nameplate-to-engine ampere ratio, 1.000463
+    #   dust collector 14 ∠-31.79°;  oven 18000/3/277 = 21.661 ∠0°
+    #   crane 12 ∠-36.87° (vfd);  make-up air 22 ∠-31.79° (vfd)
+    #   sum ≈ 291.74 A ∠-24.56°
+    s = 1.0  # scheduled amperes come back unchanged
     mills_etc = (28 + 28 + 35 + 31) * s
     t1 = 28000 / 3 / 277
     i_a = (
         polar(6800 / 277, -phi(0.95))
-        + polar(13440 / vll, 30 - phi(0.7))
-        - polar(13440 / vll, 150 - phi(0.7))
+        + polar(28, 30 - phi(0.7))
+        - polar(28, 150 - phi(0.7))
         + polar(mills_etc, -phi(0.95))
         + polar(t1, -phi(0.9))
         + polar(14 * s, -phi(0.85))
@@ -239,11 +239,11 @@ def test_machine_shop_phase_a_and_neutral() -> None:
         + polar(12 * s, -phi(0.8))
         + polar(22 * s, -phi(0.85))
     )
-    assert abs(i_a) == pytest.approx(291.84, abs=0.01)
+    assert abs(i_a) == pytest.approx(291.74, abs=0.01)
     assert a["current_a"] == pytest.approx(abs(i_a), rel=REL)
     # Harmonics on A, order by order (θ = line-A angle of each circuit):
     #   LED 24.549 A at θ -18.19° (led-driver, all orders 3-15)
-    #   vfd: 122.057 A at -18.19°, crane 12.006 A at -36.87°, make-up air 22.010 A at -31.79°
+    #   vfd: 122 A at -18.19°, crane 12 A at -36.87°, make-up air 22 A at -31.79°
     #   T-1 33.694 A at -25.84°, electronics WITHOUT h3, h9, h15: a 3-pole load has no
     #   neutral, so its zero-sequence (triplen) currents cannot flow [computed].
     t1_profile = {h: v for h, v in ELECTRONICS.items() if h % 3}
@@ -257,7 +257,7 @@ def test_machine_shop_phase_a_and_neutral() -> None:
             (t1, -phi(0.9), t1_profile),
         ],
     )
-    assert rms == pytest.approx(294.66, abs=0.01)
+    assert rms == pytest.approx(294.56, abs=0.01)
     assert a["rms_a"] == pytest.approx(rms, rel=REL)
     assert a["thd_pct"] == pytest.approx(thd, rel=REL)
     assert a["loading_pct"] == pytest.approx(100 * rms / 400, rel=REL)

@@ -55,12 +55,19 @@ def test_phase_text(text: str, labels: tuple[str, str, str], expected: tuple | N
 
 
 def test_load_in_amperes_is_line_current() -> None:
-    # schedule-format.md: VA = I*V_LN for 1 pole, I*V_LL for 2, sqrt(3)*I*V_LL for 3.
+    # schedule-format.md: VA = I*V_LN for 1 pole, I*V_LL for 2, sqrt(3)*I*V_LL for 3,
+    # with V_LL the magnitude of the nominal phasors V_A - V_B = sqrt(3)*120 V
+    # (engine.md) [computed], so that amps in give the same amps out.
     s = SYSTEMS["208Y/120"]
+    v_ll = math.sqrt(3) * 120
     assert Circuit("x", poles=1, load_kind="a", load_value=10).apparent_power_va(s) == 1200
-    assert Circuit("x", poles=2, load_kind="a", load_value=10).apparent_power_va(s) == 2080
+    two = Circuit("x", poles=2, load_kind="a", load_value=10).apparent_power_va(s)
+    assert two == pytest.approx(10 * v_ll, rel=1e-12)
     three = Circuit("x", poles=3, load_kind="a", load_value=10).apparent_power_va(s)
-    assert three == pytest.approx(math.sqrt(3) * 2080, rel=1e-12)
+    assert three == pytest.approx(math.sqrt(3) * 10 * v_ll, rel=1e-12)
+    # 480D has no neutral: its line voltage is the system's own 480 V.
+    delta = Circuit("x", poles=2, load_kind="a", load_value=10).apparent_power_va(SYSTEMS["480D"])
+    assert delta == pytest.approx(4800, rel=1e-12)
 
 
 def test_load_in_watts_uses_power_factor_and_sign_of_q() -> None:

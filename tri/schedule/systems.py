@@ -56,10 +56,16 @@ class SupplySystem:
 
         Line-to-neutral for 1 pole (derived ``V_LL/sqrt(3)`` on a 3-wire
         system), line-to-line for 2 and 3 poles.
+
+        Notes
+        -----
+        On a wye system the line-to-line magnitude used here is that of the
+        engine's nominal phasors, ``|V_A - V_B| = sqrt(3) * V_LN`` (207.85 V
+        on 208Y/120, 398.4 V on 400Y/230), not the rounded name of the
+        system. A load given in amperes then gives back exactly that current.
         """
-        if poles == 1:
-            return self.v_ln if self.v_ln is not None else self.v_ll / math.sqrt(3.0)
-        return self.v_ll
+        v_ln = self.v_ln if self.v_ln is not None else self.v_ll / math.sqrt(3.0)
+        return v_ln if poles == 1 else v_ln * math.sqrt(3.0)
 
 
 def _wye(v_ll: float, v_ln: float, f: float, where: str) -> SupplySystem:
