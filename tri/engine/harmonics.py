@@ -1,8 +1,10 @@
 """Per-order line and neutral currents, RMS and THD.
 
-The fundamental is treated as order 1 of the same computation, so the whole
-spectrum is one vectorised pass over a ``(..., n, H+1)`` array: no Python
-loop over circuits or orders.
+The fundamental is treated as order 1 of the same computation. There is no
+Python loop over circuits: the per-unit spectrum of every circuit of every
+panel is built with one array multiplication per harmonic order, and the
+line and neutral sums are one matrix product per chunk of panels (chunks
+keep the working arrays in the CPU cache; results do not depend on them).
 
 Rules (``shared/spec/engine.md``):
 

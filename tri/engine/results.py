@@ -381,7 +381,17 @@ class PanelAnalysis:
     unplaced_count: int
 
     def phase(self, label: str) -> PhaseResult:
-        """The phase with this label."""
+        """The phase with this label.
+
+        Parameters
+        ----------
+        label : str
+            One of ``phase_labels``.
+
+        Returns
+        -------
+        PhaseResult
+        """
         return self.phases[self.phase_labels.index(label)]
 
 
@@ -464,7 +474,18 @@ class BatchAnalysis:
         return tuple(np.shape(self.neutral_rms_a))
 
     def take(self, index: int | tuple[int, ...]) -> BatchAnalysis:
-        """The figures of one panel (arrays without the batch dimensions)."""
+        """The figures of one panel.
+
+        Parameters
+        ----------
+        index : int or tuple of int
+            Position in the batch shape ``B``.
+
+        Returns
+        -------
+        BatchAnalysis
+            The same fields without the batch dimensions (``orders`` shared).
+        """
         idx = index if isinstance(index, tuple) else (index,)
         values = {}
         for name in self.__dataclass_fields__:
