@@ -1,0 +1,407 @@
+"""Greedy start and local search (moves and swaps), with exact figures at every step.
+
+The heuristic gives the search a good plan at once; the mixed-integer
+program then improves it or proves it. Every candidate is scored with the
+exact phase and neutral RMS currents (superposition of the engine's
+per-option currents, :func:`tri.rebalance.problem.spectra`), vectorised
+over all candidates of a step.
+
+Steps
+-----
+1. *Insertion*: circuits that have no slot yet (and, for a full re-layout,
+   every free circuit) are added one at a time, largest current first, each
+   on the option that scores best (the longest-processing-time rule of
+   number partitioning [1]).
+2. *Descent*: repeatedly apply the best single change (one circuit to
+   another option) or, when no single change helps, the best swap (two
+   circuits with the same pole count exchange options, which never needs
+   a free slot), within the move budget and the slot capacity.
+3. *Pruning*: undo moves that are not needed (the target still met, or
+   the largest phase current no larger).
+
+Scores (lexicographic, smaller is better): for *balance*, the largest phase
+RMS current (plus a penalty on neutral current above the limit), then the
+sum of squared phase RMS currents (which spreads the rest evenly); for a
+*target*, the deviation above the target (plus the relative neutral
+excess), then the largest phase RMS current.
+
+References
+----------
+1. R. L. Graham, "Bounds on multiprocessing timing anomalies", *SIAM J.
+   Appl. Math.* 17 (1969) 416-429 (the LPT rule).
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+
+from tri.rebalance.control import Control
+from tri.rebalance.problem import Problem, rms
+
+#: Neutral excess weight in the balance score [A of phase per A of neutral].
+NEUTRAL_WEIGHT = 1.0e3
+#: Largest number of candidate pairs scored at once (memory bound) [-].
+_CHUNK = 400_000
+
+
+@dataclass(frozen=True)
+class Goal:
+    """What the search aims at.
+
+    Attributes
+    ----------
+    target : float or None
+        Largest allowed deviation of phase RMS currents from their mean, as
+        a fraction [-]; None for *balance* (minimise the largest phase RMS).
+    neutral_max_a : float or None
+        Largest allowed neutral RMS current [A].
+    max_moves : int or None
+        Largest number of moves; None for no limit.
+    """
+
+    target: float | None = None
+    neutral_max_a: float | None = None
+    max_moves: int | None = None
+
+
+def measures(
+    problem: Problem, goal: Goal, v: np.ndarray, n: np.ndarray
+) -> tuple[np.ndarray, np.ndarray]:
+    """Primary and secondary scores of candidate plans.
+
+    Parameters
+    ----------
+    problem : Problem
+    goal : Goal
+    v : complex ndarray, shape (..., 3, H)
+        Phase currents per order [A].
+    n : complex ndarray, shape (..., H)
+        Neutral currents per order [A].
+
+    Returns
+    -------
+    primary, secondary : float ndarray, shape (...)
+        Balance: ``max R_p + w·neutral excess`` [A] and ``Σ R_p²`` [A²].
+        Target: ``max(0, deviation - target) + neutral excess / limit`` [-]
+        and ``max R_p`` [A].
+    """
+    r = rms(v)
+    top = r.max(axis=-1)
+    excess = np.zeros_like(top)
+    if goal.neutral_max_a is not None and problem.has_neutral:
+        excess = np.maximum(0.0, rms(n) - goal.neutral_max_a)
+    if goal.target is None:
+        return top + NEUTRAL_WEIGHT * excess, np.sum(r * r, axis=-1)
+    mean = r.mean(axis=-1)
+    dev = np.max(np.abs(r - mean[..., None]), axis=-1) / np.where(mean > 0, mean, 1.0)
+    viol = np.maximum(0.0, dev - goal.target)
+    if goal.neutral_max_a is not None:
+        viol = viol + excess / max(goal.neutral_max_a, 1e-9)
+    return viol, top
+
+
+class LocalSearch:
+    """Mutable search state over the options of a :class:`Problem`.
+
+    ``assign[i] == -1`` means circuit i is not in the plan yet (only during
+    insertion). Capacity counters always hold for the present circuits.
+    """
+
+    def __init__(self, problem: Problem, goal: Goal, control: Control, assign: np.ndarray):
+        self.pr = problem
+        self.goal = goal
+        self.control = control
+        self.assign = np.array(assign, dtype=int, copy=True)
+        present = self.assign >= 0
+        a = self.assign[present]
+        self.v = problem.base + problem.contrib[a].sum(axis=0)
+        self.n = problem.nbase + problem.ncontrib[a].sum(axis=0)
+        self.cells = problem.use_cells[a].sum(axis=0)
+        self.multi = problem.use_multi[a].sum(axis=0)
+        self.win = problem.use_window[a].sum(axis=0)
+        self.cap_total = problem.cap_cells.sum(axis=1)
+        self.moved = problem.movable & present & (self.assign != problem.current)
+        scale = max(problem.floor_a, 1e-9)
+        self.tol = (1e-12 if goal.target is not None else 1e-9 * scale, 1e-9 * scale * scale)
+        self.sizes = np.sqrt(
+            np.sum(np.abs(problem.contrib[problem.starts[:-1]]) ** 2, axis=(-1, -2))
+        )
+
+    # -- bookkeeping -----------------------------------------------------------------
+    @property
+    def moves(self) -> int:
+        """Moves in the current plan [-]."""
+        return int(np.sum(self.moved))
+
+    def score(self) -> tuple[float, float]:
+        """(primary, secondary) of the current plan."""
+        p, s = measures(self.pr, self.goal, self.v, self.n)
+        return float(p), float(s)
+
+    def _moved_if(self, i: np.ndarray, o: np.ndarray) -> np.ndarray:
+        return self.pr.movable[i] & (o != self.pr.current[i])
+
+    def _fits(self, i: np.ndarray, o: np.ndarray) -> np.ndarray:
+        """Whether moving circuits ``i`` to options ``o`` (one at a time) keeps capacity."""
+        pr = self.pr
+        if not pr.slots:
+            return np.ones(o.shape, dtype=bool)
+        old = self.assign[i]
+        has = old >= 0
+        oldc = np.where(has, old, 0)
+        w = has[:, None].astype(int)
+        cells = self.cells - pr.use_cells[oldc] * w + pr.use_cells[o]
+        ok = np.all(cells <= self.cap_total, axis=-1)
+        multi = self.multi - pr.use_multi[oldc] * w[:, :, None] + pr.use_multi[o]
+        ok &= np.all(multi <= pr.cap_cells, axis=(-1, -2))
+        win = self.win - pr.use_window[oldc] * w + pr.use_window[o]
+        ok &= np.all(win <= pr.cap_window, axis=-1)
+        return ok
+
+    def set(self, i: int, o: int) -> None:
+        """Put free circuit ``i`` on option ``o`` (``-1``: take it out)."""
+        pr = self.pr
+        old = int(self.assign[i])
+        if old >= 0:
+            self.v = self.v - pr.contrib[old]
+            self.n = self.n - pr.ncontrib[old]
+            self.cells = self.cells - pr.use_cells[old]
+            self.multi = self.multi - pr.use_multi[old]
+            self.win = self.win - pr.use_window[old]
+        if o >= 0:
+            self.v = self.v + pr.contrib[o]
+            self.n = self.n + pr.ncontrib[o]
+            self.cells = self.cells + pr.use_cells[o]
+            self.multi = self.multi + pr.use_multi[o]
+            self.win = self.win + pr.use_window[o]
+        self.assign[i] = o
+        self.moved[i] = bool(pr.movable[i] and o >= 0 and o != pr.current[i])
+
+    def _better(self, p: float, s: float, ref: tuple[float, float]) -> bool:
+        tp, ts = self.tol
+        return p < ref[0] - tp or (p <= ref[0] + tp and s < ref[1] - ts)
+
+    def _pick(self, p: np.ndarray, s: np.ndarray) -> int:
+        """Index of the lexicographically smallest (p, s) within tolerance."""
+        tp = self.tol[0]
+        near = p <= p.min() + tp
+        idx = np.flatnonzero(near)
+        return int(idx[np.argmin(s[idx])])
+
+    # -- insertion -----------------------------------------------------------------
+    def insert_missing(self) -> bool:
+        """Add every absent circuit, largest first, on its best option.
+
+        Returns False when some circuit fits nowhere (not enough free slots).
+        """
+        pr = self.pr
+        order = [int(i) for i in np.argsort(-self.sizes, kind="stable") if self.assign[i] < 0]
+        for i in order:
+            opts = np.arange(pr.starts[i], pr.starts[i + 1])
+            ii = np.full(opts.size, i)
+            ok = self._fits(ii, opts)
+            if not np.any(ok):
+                return False
+            opts = opts[ok]
+            p, s = measures(pr, self.goal, self.v + pr.contrib[opts], self.n + pr.ncontrib[opts])
+            # prefer staying where it is when that scores as well
+            stay = (opts == pr.current[i]).astype(float)
+            s = s - stay * (abs(float(s.max())) + 1.0) * 1e-6
+            self.set(i, int(opts[self._pick(p, s)]))
+        return True
+
+    # -- candidate steps -------------------------------------------------------------
+    def _budget_ok(self, dmoves: np.ndarray) -> np.ndarray:
+        if self.goal.max_moves is None:
+            return np.ones(dmoves.shape, dtype=bool)
+        return self.moves + dmoves <= self.goal.max_moves
+
+    def best_single(self) -> tuple[float, float, tuple[tuple[int, int], ...]] | None:
+        """Best single change: (primary, secondary, ((circuit, option),))."""
+        pr = self.pr
+        o = np.arange(pr.n_options)
+        i = pr.owner
+        cur = self.assign[i]
+        keep = (o != cur) & (cur >= 0)
+        o, i, cur = o[keep], i[keep], cur[keep]
+        if o.size == 0:
+            return None
+        dmoves = self._moved_if(i, o).astype(int) - self.moved[i].astype(int)
+        ok = self._budget_ok(dmoves) & self._fits(i, o)
+        o, i, cur = o[ok], i[ok], cur[ok]
+        if o.size == 0:
+            return None
+        v = self.v + (pr.contrib[o] - pr.contrib[cur])
+        n = self.n + (pr.ncontrib[o] - pr.ncontrib[cur])
+        p, s = measures(pr, self.goal, v, n)
+        k = self._pick(p, s)
+        return float(p[k]), float(s[k]), ((int(i[k]), int(o[k])),)
+
+    def best_swap(self) -> tuple[float, float, tuple[tuple[int, int], ...]] | None:
+        """Best exchange of options between two circuits of the same pole count."""
+        pr = self.pr
+        best: tuple[float, float, tuple[tuple[int, int], ...]] | None = None
+        present = self.assign >= 0
+        kinds_now = np.where(present, pr.kind[np.maximum(self.assign, 0)], -1)
+        for poles in (1, 2):
+            members = np.flatnonzero(present & (pr.poles == poles))
+            if members.size < 2:
+                continue
+            n_kinds = int(pr.starts[members[0] + 1] - pr.starts[members[0]])
+            for a in range(n_kinds):
+                ia = members[kinds_now[members] == a]
+                if ia.size == 0:
+                    continue
+                for b in range(a + 1, n_kinds):
+                    jb = members[kinds_now[members] == b]
+                    if jb.size == 0:
+                        continue
+                    found = self._swap_block(ia, jb, a, b)
+                    if found is not None and (
+                        best is None or self._better(found[0], found[1], best[:2])
+                    ):
+                        best = found
+        return best
+
+    def _swap_block(
+        self, ia: np.ndarray, jb: np.ndarray, a: int, b: int
+    ) -> tuple[float, float, tuple[tuple[int, int], ...]] | None:
+        pr = self.pr
+        oia, ojb = pr.starts[ia] + b, pr.starts[jb] + a  # new options
+        di = pr.contrib[oia] - pr.contrib[self.assign[ia]]
+        dj = pr.contrib[ojb] - pr.contrib[self.assign[jb]]
+        ndi = pr.ncontrib[oia] - pr.ncontrib[self.assign[ia]]
+        ndj = pr.ncontrib[ojb] - pr.ncontrib[self.assign[jb]]
+        mi = self._moved_if(ia, oia).astype(int) - self.moved[ia].astype(int)
+        mj = self._moved_if(jb, ojb).astype(int) - self.moved[jb].astype(int)
+        h = pr.orders.size
+        rows = max(1, _CHUNK // max(1, jb.size * 3 * h))
+        best = None
+        for r0 in range(0, ia.size, rows):
+            sl = slice(r0, r0 + rows)
+            dm = mi[sl, None] + mj[None, :]
+            ok = self._budget_ok(dm)
+            if not np.any(ok):
+                continue
+            v = self.v + di[sl, None] + dj[None, :]
+            n = self.n + ndi[sl, None] + ndj[None, :]
+            p, s = measures(pr, self.goal, v, n)
+            p = np.where(ok, p, np.inf)
+            flat = self._pick(p.ravel(), np.where(ok, s, np.inf).ravel())
+            x, y = divmod(flat, jb.size)
+            cand = (
+                float(p[x, y]),
+                float(s[x, y]),
+                ((int(ia[r0 + x]), int(oia[r0 + x])), (int(jb[y]), int(ojb[y]))),
+            )
+            if np.isfinite(cand[0]) and (best is None or self._better(cand[0], cand[1], best[:2])):
+                best = cand
+        return best
+
+    # -- search loops ----------------------------------------------------------------
+    def done(self) -> bool:
+        """Nothing left to gain: target met, or the largest phase at the floor."""
+        p, _ = self.score()
+        if self.goal.target is not None:
+            return p <= 0.0
+        return p <= self.pr.floor_a * (1 + 1e-12)
+
+    def descend(self, max_steps: int | None = None, swaps: bool = True) -> int:
+        """Steepest descent with single changes, then swaps; returns steps taken."""
+        steps = 0
+        limit = max_steps if max_steps is not None else 50 * max(1, self.pr.n_free) + 100
+        while steps < limit and not self.done() and not self.control.stop():
+            ref = self.score()
+            step = self.best_single()
+            if (step is None or not self._better(step[0], step[1], ref)) and swaps:
+                swap = self.best_swap()
+                if swap is not None and (step is None or self._better(swap[0], swap[1], step[:2])):
+                    step = swap
+            if step is None or not self._better(step[0], step[1], ref):
+                break
+            for i, o in step[2]:
+                self.set(i, o)
+            steps += 1
+        return steps
+
+    def prune(self) -> int:
+        """Undo moves that are not needed; returns how many were undone."""
+        pr = self.pr
+        undone = 0
+        changed = True
+        while changed and not self.control.stop():
+            changed = False
+            moved = np.flatnonzero(self.moved)
+            for i in moved[np.argsort(self.sizes[moved], kind="stable")]:
+                o_back = int(pr.current[i])
+                if not self._fits(np.array([i]), np.array([o_back]))[0]:
+                    continue
+                ref = self.score()
+                old = int(self.assign[i])
+                self.set(int(i), o_back)
+                p, _s = self.score()
+                if self.goal.target is not None:
+                    ok = p <= 0.0 or p <= ref[0]
+                else:
+                    ok = p <= ref[0] + self.tol[0]
+                if ok:
+                    undone += 1
+                    changed = True
+                else:
+                    self.set(int(i), old)
+        return undone
+
+
+def heuristic_plan(
+    problem: Problem,
+    goal: Goal,
+    control: Control,
+    *,
+    from_scratch: bool = False,
+    swaps: bool = True,
+) -> np.ndarray | None:
+    """A good plan at once: insertion, descent, pruning (module notes).
+
+    Parameters
+    ----------
+    problem : Problem
+    goal : Goal
+    control : Control
+        Time limit and cancel hook (the search stops early, keeping its best).
+    from_scratch : bool
+        Also build a plan by inserting every free circuit afresh (full
+        re-layout) and keep the better one.
+    swaps : bool
+        Allow swaps in the descent.
+
+    Returns
+    -------
+    int ndarray, shape (F,) or None
+        Option of each free circuit; None when the new circuits do not fit.
+    """
+    start = np.where(problem.current >= 0, problem.current, -1)
+    plans = []
+    ls = LocalSearch(problem, goal, control, start)
+    if ls.insert_missing():
+        ls.descend(swaps=swaps)
+        ls.prune()
+        plans.append(ls)
+    if from_scratch and problem.n_free:
+        fresh = LocalSearch(problem, goal, control, np.full(problem.n_free, -1))
+        if fresh.insert_missing():
+            fresh.descend(swaps=swaps)
+            fresh.prune()
+            plans.append(fresh)
+    if not plans:
+        return None
+    best = plans[0]
+    for other in plans[1:]:
+        p, s = other.score()
+        bp, bs = best.score()
+        if best._better(p, s, (bp, bs)) or (
+            p <= bp + best.tol[0] and s <= bs + best.tol[1] and other.moves < best.moves
+        ):
+            best = other
+    return best.assign.copy()

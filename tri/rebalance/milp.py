@@ -1,0 +1,1024 @@
+"""Mixed-integer programs for the rebalancer, solved by HiGHS through ``scipy.optimize.milp``.
+
+Variables
+---------
+* ``x_o ∈ {0, 1}``: free circuit ``owner[o]`` takes option ``o``; each
+  free circuit takes exactly one option.
+* ``V_p,h`` (real and imaginary parts): line current of phase p at order h,
+  ``V = base + Σ_o x_o·contrib_o`` — linear in ``x`` because the engine's
+  currents add (:mod:`tri.rebalance.problem`).
+* ``N_h``: neutral current at the non-triplen orders (when a neutral limit
+  is set; the triplen part is the same for every plan).
+
+Constraints shared by every model: one option per circuit; the move budget
+``Σ_{placed} (1 - x_current) ≤ K``; slot capacity on two-column panels
+(slots per phase; slots per phase and column and disjoint windows of
+consecutive rows for 2- and 3-pole breakers); the neutral limit as cuts
+``<N, u> ≤ N_max'`` (Theorem 3 of :mod:`tri.rebalance.polygon`).
+
+Balance model (:func:`solve_balance`)
+-------------------------------------
+Minimise ``T`` subject to ``T ≥ <V_p, u>`` for unit vectors ``u``: the
+36-sided polygon in the plane of the fundamental (error 0.382 % by
+Theorem 1), polygon directions tilted towards the harmonic content of a
+reference plan, and outer-approximation cuts at every plan the solver
+proposes (exact there, Theorem 3). Every cut is a valid lower bound on the
+phase RMS current, so the program is a relaxation: its optimum (or HiGHS's
+dual bound) is a proven lower bound on the largest phase RMS current of
+every plan, and a plan whose exact value reaches it is optimal.
+
+Target model (:func:`solve_target`)
+-----------------------------------
+Minimise the number of moves subject to the target on the *exact*
+deviation ``|R_p - mean R| ≤ t·mean R`` for every phase. ``R_p`` is a
+magnitude on both sides, so the program must bound it from above too,
+which a magnitude (a convex function) only allows piecewise: the angles
+the phase current can take within the move budget (from the support
+function of its reachable set, :func:`tri.rebalance.polygon.reach_from_support`)
+are cut into sectors, and a binary per sector says which one holds the
+current, where Theorem 2 bounds ``|z|`` from above. Harmonics: the phase
+RMS is ``R = sqrt(|z|² + G²)`` with ``G`` the RMS of the harmonic orders;
+``G`` lies below a bound ``G_max`` (triangle inequality over the allowed
+moves), and on the interval of possible ``|z|`` the convex function
+``sqrt(s² + G_max²)`` lies below its chord, a linear upper bound. With
+these, **every plan that meets the target exactly satisfies the program**
+(it is a relaxation): when the program has no solution with ``k`` moves,
+no plan with ``k`` moves exists, which is how ``optimal`` is proven. A plan
+the program proposes is then checked exactly; if it fails (it is within the
+sectors' slack of the target), the sectors are refined and, at the finest
+level, the plan is excluded by a no-good cut.
+
+The approximations are only in what the program accepts; every figure a
+plan reports is computed exactly (and again by the engine on the final
+schedule).
+
+HiGHS runs with its log off (``disp=False``); the command line also sends
+the process's standard output elsewhere while it runs, since the native
+library can print outside Python's control.
+"""
+
+from __future__ import annotations
+
+import math
+import warnings
+from collections.abc import Callable
+from dataclasses import dataclass, field
+
+import numpy as np
+from scipy.optimize import Bounds, LinearConstraint, milp
+from scipy.sparse import coo_matrix
+
+from tri.rebalance.control import Control
+from tri.rebalance.heuristic import Goal
+from tri.rebalance.polygon import (
+    DEFAULT_SIDES,
+    Reach,
+    polygon_directions,
+    reach_from_support,
+    sectors,
+)
+from tri.rebalance.problem import Problem, rms, spectra
+from tri.rebalance.realise import occupants, windows
+
+#: Sector widths of the target model, coarse to fine [deg]; upper-bound
+#: errors ``1/cos(w/2) - 1`` of 0.24 %, 0.034 %, 0.0038 % (levels pair with
+#: :data:`TANGENT_ERRORS` in the exact-square model).
+SECTOR_WIDTHS_DEG = (8.0, 3.0, 1.0)
+#: Directions used for the reachable-set support function [-].
+REACH_DIRECTIONS = 72
+#: Relative improvement the balance model must find over the incumbent [-].
+IMPROVE = 1e-7
+#: Relative gap at which a balance plan counts as proven optimal [-].
+PROVEN_GAP = 1e-6
+
+Verifier = Callable[[np.ndarray], tuple[bool, bool]]
+"""``verify(assign) -> (meets the goal and the budget exactly, realisable in slots)``."""
+Counter = Callable[[np.ndarray], int]
+"""``count(assign) -> breakers relocated`` (slot realisation included)."""
+
+
+@dataclass
+class Outcome:
+    """What a solver loop found.
+
+    Attributes
+    ----------
+    assign : int ndarray or None
+        Best plan (option per free circuit), None if none meets the goal.
+    proven : bool
+        True when the plan is proven optimal (or, with no plan, the goal is
+        proven impossible).
+    bound : float or None
+        Proven lower bound on the objective: moves (target) or the largest
+        phase RMS current [A] (balance).
+    solver_calls : int
+        HiGHS calls made.
+    notes : list of str
+        Plain remarks for the report.
+    """
+
+    assign: np.ndarray | None
+    proven: bool
+    bound: float | None
+    solver_calls: int = 0
+    notes: list[str] = field(default_factory=list)
+
+
+# -- model assembly ------------------------------------------------------------------
+class _Model:
+    """Sparse rows and typed variables, assembled for one ``milp`` call."""
+
+    def __init__(self) -> None:
+        self.lb: list[np.ndarray] = []
+        self.ub: list[np.ndarray] = []
+        self.integer: list[np.ndarray] = []
+        self.n = 0
+        self.rows: list[np.ndarray] = []
+        self.cols: list[np.ndarray] = []
+        self.vals: list[np.ndarray] = []
+        self.row_lo: list[float] = []
+        self.row_hi: list[float] = []
+
+    def var(self, count: int, lb, ub, integer: bool = False) -> int:
+        start = self.n
+        self.lb.append(np.broadcast_to(np.asarray(lb, dtype=float), (count,)).copy())
+        self.ub.append(np.broadcast_to(np.asarray(ub, dtype=float), (count,)).copy())
+        self.integer.append(np.full(count, 1 if integer else 0, dtype=np.uint8))
+        self.n += count
+        return start
+
+    def row(self, cols, vals, lo: float, hi: float) -> None:
+        r = len(self.row_lo)
+        cols = np.asarray(cols, dtype=np.int64).ravel()
+        self.rows.append(np.full(cols.size, r, dtype=np.int64))
+        self.cols.append(cols)
+        self.vals.append(np.asarray(vals, dtype=float).ravel())
+        self.row_lo.append(lo)
+        self.row_hi.append(hi)
+
+    def solve(self, cost: np.ndarray, time_limit: float, gap: float = 1e-6):
+        n_rows = len(self.row_lo)
+        a = coo_matrix(
+            (np.concatenate(self.vals), (np.concatenate(self.rows), np.concatenate(self.cols))),
+            shape=(n_rows, self.n),
+        ).tocsr()
+        with warnings.catch_warnings():
+            warnings.simplefilter("ignore")
+            return milp(
+                cost,
+                integrality=np.concatenate(self.integer),
+                bounds=Bounds(np.concatenate(self.lb), np.concatenate(self.ub)),
+                constraints=LinearConstraint(a, np.array(self.row_lo), np.array(self.row_hi)),
+                options={
+                    "disp": False,
+                    "time_limit": max(0.01, float(time_limit)),
+                    "mip_rel_gap": gap,
+                    "presolve": True,
+                },
+            )
+
+
+@dataclass
+class _Vars:
+    x: int
+    v: int  # 3·H·2: index v + (p·H + h)·2 + {0 re, 1 im}
+    n: int | None  # neutral, 2·H
+    h: int
+    disp: list[int] = field(default_factory=list)  # displaced 1-pole breakers (a move each)
+
+
+def _windows_block(m: _Model, pr: Problem, x: int) -> list[int]:
+    """Exact window geometry for 2- and 3-pole breakers that move or are placed.
+
+    Binary ``y_w`` per window clear of fixed circuits: windows sharing a slot
+    exclude each other; a window over a breaker that keeps its option needs
+    that breaker gone — impossible for a 2-/3-pole one, a *displacement*
+    ``d_j`` (one more move) for a 1-pole one; each moving multi-pole option
+    of a type needs one window of that type. Returns the ``d`` columns.
+    """
+    wins = windows(pr)
+    occ = occupants(pr)
+    y = m.var(len(wins), 0.0, 1.0, integer=True)
+    singles = sorted({occ[s] for w in wins for s in w.cells if s in occ and pr.poles[occ[s]] == 1})
+    d = m.var(len(singles), 0.0, 1.0, integer=True)
+    dcol = {j: d + k for k, j in enumerate(singles)}
+    by_cell: dict[int, list[int]] = {}
+    for k, w in enumerate(wins):
+        for s in w.cells:
+            by_cell.setdefault(s, []).append(y + k)
+        for j in sorted({occ[s] for s in w.cells if s in occ}):
+            cur = x + int(pr.current[j])
+            if pr.poles[j] > 1:
+                m.row([y + k, cur], [1.0, 1.0], -np.inf, 1.0)
+            else:
+                m.row([y + k, cur, dcol[j]], [1.0, 1.0, -1.0], -np.inf, 1.0)
+    for ks in by_cell.values():
+        if len(ks) > 1:
+            m.row(ks, np.ones(len(ks)), -np.inf, 1.0)
+    for j in singles:
+        m.row([dcol[j], x + int(pr.current[j])], [1.0, -1.0], -np.inf, 0.0)
+    current = set(pr.current[pr.current >= 0].tolist())
+    for t in range(pr.use_window.shape[1]):
+        opts = [int(o) for o in np.flatnonzero(pr.use_window[:, t]) if int(o) not in current]
+        if not opts:
+            continue
+        ys = [y + k for k, w in enumerate(wins) if w.type == t]
+        m.row(
+            np.concatenate([x + np.array(opts), np.array(ys, dtype=int)]),
+            np.concatenate([np.ones(len(opts)), -np.ones(len(ys))]),
+            -np.inf,
+            0.0,
+        )
+    return [dcol[j] for j in singles]
+
+
+def _base_model(
+    pr: Problem, goal: Goal, budget: int | None, nogoods: list[np.ndarray], neutral: bool
+) -> tuple[_Model, _Vars]:
+    m = _Model()
+    h = pr.orders.size
+    x = m.var(pr.n_options, 0.0, 1.0, integer=True)
+    v = m.var(6 * h, -np.inf, np.inf)
+    nv = m.var(2 * h, -np.inf, np.inf) if neutral else None
+    # one option per circuit
+    for i in range(pr.n_free):
+        o = np.arange(pr.starts[i], pr.starts[i + 1])
+        m.row(x + o, np.ones(o.size), 1.0, 1.0)
+    # currents: V_p,h - Σ x_o·contrib = base
+    for p in range(3):
+        for k in range(h):
+            c = pr.contrib[:, p, k]
+            for part, (coef, rhs) in enumerate(
+                ((c.real, pr.base[p, k].real), (c.imag, pr.base[p, k].imag))
+            ):
+                nz = np.flatnonzero(coef)
+                m.row(
+                    np.concatenate([[v + (p * h + k) * 2 + part], x + nz]),
+                    np.concatenate([[1.0], -coef[nz]]),
+                    rhs,
+                    rhs,
+                )
+    if nv is not None:
+        for k in range(h):
+            c = pr.ncontrib[:, k]
+            for part, (coef, rhs) in enumerate(
+                ((c.real, pr.nbase[k].real), (c.imag, pr.nbase[k].imag))
+            ):
+                nz = np.flatnonzero(coef)
+                m.row(
+                    np.concatenate([[nv + 2 * k + part], x + nz]),
+                    np.concatenate([[1.0], -coef[nz]]),
+                    rhs,
+                    rhs,
+                )
+    disp: list[int] = []
+    if pr.slots and np.any(pr.use_window):
+        disp = _windows_block(m, pr, x)
+    # move budget: Σ_placed x_current - Σ displaced ≥ n_placed - K
+    placed = np.flatnonzero(pr.movable)
+    if budget is not None and placed.size and budget < placed.size + len(disp):
+        m.row(
+            np.concatenate([x + pr.current[placed], np.array(disp, dtype=int)]),
+            np.concatenate([np.ones(placed.size), -np.ones(len(disp))]),
+            placed.size - budget,
+            np.inf,
+        )
+    # slot capacity
+    if pr.slots:
+        total = pr.cap_cells.sum(axis=1)
+        for p in range(3):
+            nz = np.flatnonzero(pr.use_cells[:, p])
+            if nz.size:
+                m.row(x + nz, pr.use_cells[nz, p], -np.inf, float(total[p]))
+            for col in (0, 1):
+                nz = np.flatnonzero(pr.use_multi[:, p, col])
+                if nz.size:
+                    m.row(x + nz, pr.use_multi[nz, p, col], -np.inf, float(pr.cap_cells[p, col]))
+        for t in range(pr.use_window.shape[1]):
+            nz = np.flatnonzero(pr.use_window[:, t])
+            if nz.size:
+                m.row(x + nz, np.ones(nz.size), -np.inf, float(pr.cap_window[t]))
+    for bad in nogoods:
+        m.row(x + bad, np.ones(bad.size), -np.inf, bad.size - 1.0)
+    return m, _Vars(x=x, v=v, n=nv, h=h, disp=disp)
+
+
+def _phase_cols(vars_: _Vars, p: int) -> np.ndarray:
+    """Columns of the real/imaginary parts of phase p, order by order."""
+    return vars_.v + (p * vars_.h) * 2 + np.arange(2 * vars_.h)
+
+
+def _unit_rows(u: np.ndarray) -> np.ndarray:
+    """Complex direction per order -> interleaved real coefficients (re, im)."""
+    u = np.asarray(u, dtype=complex)
+    return np.column_stack([u.real, u.imag]).ravel()
+
+
+def _neutral_cuts(
+    m: _Model, vars_: _Vars, pr: Problem, limit: float, directions: list[np.ndarray]
+) -> None:
+    """``<N_nontriplen, u> ≤ limit`` for each direction (a relaxation of ``||N|| ≤ limit``)."""
+    assert vars_.n is not None
+    cols = vars_.n + np.arange(2 * vars_.h)
+    for u in directions:
+        m.row(cols, _unit_rows(u), -np.inf, limit)
+
+
+def _tilted(pr: Problem, ref: np.ndarray, p: int, base_dirs: np.ndarray) -> list[np.ndarray]:
+    """Polygon directions of the fundamental, tilted towards the reference harmonics."""
+    h = pr.orders.size
+    out = []
+    g = ref[p, 1:]
+    gn = float(np.sqrt(np.sum(np.abs(g) ** 2)))
+    z = abs(ref[p, 0])
+    beta = math.atan2(gn, z) if gn > 0 else 0.0
+    for d in base_dirs:
+        u = np.zeros(h, dtype=complex)
+        u[0] = d * math.cos(beta)
+        if gn > 0:
+            u[1:] = g / gn * math.sin(beta)
+        out.append(u)
+    return out
+
+
+def _oa(vec: np.ndarray) -> np.ndarray | None:
+    """Unit vector along a spectrum (an outer-approximation cut there)."""
+    nrm = float(np.sqrt(np.sum(np.abs(vec) ** 2)))
+    return None if nrm <= 0 else vec / nrm
+
+
+def _neutral_limit(pr: Problem, goal: Goal) -> float | None:
+    """Limit on the non-triplen neutral RMS [A]; -1 when triplens alone exceed it."""
+    if goal.neutral_max_a is None or not pr.has_neutral:
+        return None
+    _, n = spectra(pr, pr.current_assignment())
+    trip = float(rms(n[pr.orders % 3 == 0]))
+    if trip > goal.neutral_max_a:
+        return -1.0
+    return math.sqrt(goal.neutral_max_a**2 - trip**2)
+
+
+def _decode(pr: Problem, x: np.ndarray, start: int) -> np.ndarray:
+    vals = np.asarray(x[start : start + pr.n_options])
+    out = np.empty(pr.n_free, dtype=int)
+    for i in range(pr.n_free):
+        seg = vals[pr.starts[i] : pr.starts[i + 1]]
+        out[i] = pr.starts[i] + int(np.argmax(seg))
+    return out
+
+
+def _neutral_dirs(pr: Problem) -> list[np.ndarray]:
+    h = pr.orders.size
+    out = []
+    for d in polygon_directions(DEFAULT_SIDES):
+        u = np.zeros(h, dtype=complex)
+        u[0] = d
+        out.append(u)
+    return out
+
+
+def _nontriplen(pr: Problem, n: np.ndarray) -> np.ndarray:
+    out = np.array(n, dtype=complex, copy=True)
+    out[pr.orders % 3 == 0] = 0
+    return out
+
+
+def _dual_bound(res) -> float | None:
+    b = getattr(res, "mip_dual_bound", None)
+    if b is None or not np.isfinite(b):
+        return None
+    return float(b)
+
+
+# -- balance ---------------------------------------------------------------------------
+def solve_balance(
+    pr: Problem,
+    goal: Goal,
+    control: Control,
+    incumbent: np.ndarray | None,
+    verify: Verifier,
+    *,
+    stop_gap: float = 1e-3,
+) -> Outcome:
+    """Minimise the largest phase RMS current within the move budget (module notes).
+
+    Parameters
+    ----------
+    pr : Problem
+    goal : Goal
+        ``target`` is ignored; ``max_moves`` and ``neutral_max_a`` apply.
+    control : Control
+    incumbent : int ndarray or None
+        A plan to beat (from the heuristic); it must be realisable.
+    verify : callable
+        Exact check of a plan (neutral limit, realisable in slots).
+    stop_gap : float
+        Stop once the incumbent is within this fraction of the floor
+        ``F`` or of the proven bound [-].
+
+    Returns
+    -------
+    Outcome
+        ``bound`` is a proven lower bound on the largest phase RMS [A].
+    """
+    out = Outcome(assign=incumbent, proven=False, bound=pr.floor_a)
+    nlim = _neutral_limit(pr, goal)
+    if nlim is not None and nlim < 0:
+        out.proven = True
+        out.assign = None
+        out.notes.append("triplen harmonics alone exceed the neutral limit")
+        return out
+
+    def value(a: np.ndarray) -> float:
+        v, _ = spectra(pr, a)
+        return float(rms(v).max())
+
+    best = value(incumbent) if incumbent is not None else math.inf
+    lower = pr.floor_a
+    if best <= lower * (1 + PROVEN_GAP):
+        out.proven = True
+        out.bound = lower
+        return out
+    polygon = polygon_directions(DEFAULT_SIDES)
+    ref_v, _ = spectra(pr, incumbent if incumbent is not None else pr.current_assignment())
+    cuts: list[list[np.ndarray]] = [_tilted(pr, ref_v, p, polygon) for p in range(3)]
+    if pr.orders.size > 1:
+        for p in range(3):
+            for d in polygon:
+                u = np.zeros(pr.orders.size, dtype=complex)
+                u[0] = d
+                cuts[p].append(u)
+    ncuts = _neutral_dirs(pr) if nlim is not None else []
+    if incumbent is not None:
+        v, n = spectra(pr, incumbent)
+        for p in range(3):
+            u = _oa(v[p])
+            if u is not None:
+                cuts[p].append(u)
+    nogoods: list[np.ndarray] = []
+    exact_proof = True
+    slice_s = 0.25
+    while not control.stop():
+        if best <= max(lower, pr.floor_a) * (1 + stop_gap):
+            break
+        m, vars_ = _base_model(pr, goal, goal.max_moves, nogoods, nlim is not None)
+        t = m.var(1, lower, np.inf)
+        for p in range(3):
+            cols = _phase_cols(vars_, p)
+            for u in cuts[p]:
+                m.row(
+                    np.concatenate([[t], cols]), np.concatenate([[1.0], -_unit_rows(u)]), 0, np.inf
+                )
+        if nlim is not None:
+            _neutral_cuts(m, vars_, pr, nlim, ncuts)
+        if math.isfinite(best):
+            m.row([t], [1.0], -np.inf, best * (1 - IMPROVE))
+        cost = np.zeros(m.n)
+        cost[t] = 1.0
+        control.report(f"solver: looking for a plan below {best:.2f} A (bound {lower:.2f} A)")
+        res = m.solve(cost, min(slice_s, control.remaining()), gap=PROVEN_GAP / 10)
+        out.solver_calls += 1
+        if res.status == 2:  # nothing better than the incumbent exists
+            if math.isfinite(best) and exact_proof:
+                lower = max(lower, best * (1 - IMPROVE))
+            elif exact_proof:
+                out.proven = True  # no plan at all fits
+            break
+        db = _dual_bound(res)
+        if res.status == 0 and res.fun is not None:
+            lower = max(lower, float(res.fun))
+        elif db is not None:
+            lower = max(lower, db)
+        if res.x is None:
+            slice_s *= 2
+            continue
+        a = _decode(pr, res.x, vars_.x)
+        v, n = spectra(pr, a)
+        val = float(rms(v).max())
+        for p in range(3):
+            u = _oa(v[p])
+            if u is not None:
+                cuts[p].append(u)
+        if nlim is not None:
+            u = _oa(_nontriplen(pr, n))
+            if u is not None:
+                ncuts.append(u)
+        ok, realisable = verify(a)
+        if not realisable:
+            nogoods.append(a)
+            exact_proof = False
+        elif ok and val < best:
+            best = val
+            out.assign = a
+        if res.status == 0 and best <= lower * (1 + PROVEN_GAP):
+            out.proven = True
+            break
+        if res.status != 0:
+            slice_s *= 2
+    out.bound = max(lower, pr.floor_a)
+    if out.assign is not None and best <= out.bound * (1 + PROVEN_GAP):
+        out.proven = True
+    if not exact_proof:
+        out.notes.append("a plan could not be fitted into the slots and was skipped")
+    return out
+
+
+# -- fewest moves to a target -------------------------------------------------------
+def phase_reach(pr: Problem, p: int, budget: int) -> tuple[Reach, float, np.ndarray]:
+    """Where phase p's fundamental can go with at most ``budget`` moves.
+
+    Parameters
+    ----------
+    pr : Problem
+    p : int
+        Phase index.
+    budget : int
+        Largest number of moves [-].
+
+    Returns
+    -------
+    reach : Reach
+        Bounds on the fundamental phasor [A, rad].
+    g_max : float
+        Upper bound on the RMS of phase p's harmonic orders [A].
+    support : float ndarray
+        The support values used [A].
+
+    Notes
+    -----
+    Support in direction n: ``<z_now, n>`` plus, for each new circuit, its
+    best option's projection, plus the ``budget`` largest positive gains
+    ``max_o <c_o - c_now, n>`` of placed circuits: an upper bound on
+    ``max <z, n>`` over every plan (capacity ignored, so a superset).
+    """
+    dirs = polygon_directions(REACH_DIRECTIONS)
+    c = pr.contrib[:, p, 0]
+    proj = np.real(np.conj(dirs)[None, :] * c[:, None])  # (O, m)
+    best = np.maximum.reduceat(proj, pr.starts[:-1], axis=0) if pr.n_free else proj[:0]
+    placed = pr.movable
+    cur = np.where(pr.current >= 0, pr.current, 0)
+    now = pr.base[p, 0] + np.sum(c[cur[placed]])
+    support = np.real(np.conj(dirs) * now)
+    new = ~placed
+    if np.any(new):
+        support = support + best[new].sum(axis=0)
+    gains = np.maximum(0.0, best[placed] - proj[cur[placed]])
+    k = min(budget, gains.shape[0])
+    if k > 0:
+        top = -np.partition(-gains, k - 1, axis=0)[:k]
+        support = support + top.sum(axis=0)
+    reach = reach_from_support(dirs, support)
+    # harmonic RMS bound by the triangle inequality
+    g = pr.contrib[:, p, 1:]
+    g_now = pr.base[p, 1:] + np.sum(g[cur[placed]], axis=0)
+    g_max = float(np.sqrt(np.sum(np.abs(g_now) ** 2)))
+    if g.shape[1]:
+        gn = np.sqrt(np.sum(np.abs(g) ** 2, axis=-1))
+        if np.any(new):
+            seg = np.maximum.reduceat(gn, pr.starts[:-1]) if pr.n_free else gn[:0]
+            g_max += float(np.sum(seg[new]))
+        diff = np.sqrt(np.sum(np.abs(g - g[cur[pr.owner]]) ** 2, axis=-1))
+        worst = np.maximum.reduceat(diff, pr.starts[:-1]) if pr.n_free else diff[:0]
+        wp = np.sort(worst[placed])[::-1][:k]
+        g_max += float(np.sum(wp))
+    return reach, g_max, support
+
+
+#: Largest number of option pairs per phase modelled exactly (McCormick) [-].
+MAX_PAIRS = 4000
+
+
+@dataclass
+class HarmonicSquare:
+    """``q = const + Σ_o lin_o·x_o + Σ pair coef·x_o·x_o'`` with ``q ≥ G²`` for every plan.
+
+    Attributes
+    ----------
+    lin : float ndarray, shape (O,)
+        Linear coefficients [A²].
+    const : float
+        Constant [A²].
+    pairs : list of (int, int, float)
+        Products of options of different circuits and their coefficients
+        [A²]; empty when the bound is linear.
+    q_lo : float
+        ``q ≥ q_lo ≥ 0`` for every plan within the budget [A²].
+    exact : bool
+        True when ``q = G²`` exactly at every plan (products kept).
+    """
+
+    lin: np.ndarray
+    const: float
+    pairs: list[tuple[int, int, float]]
+    q_lo: float
+    exact: bool
+
+
+def harmonic_square_bound(pr: Problem, p: int, budget: int) -> HarmonicSquare:
+    """The square of phase p's harmonic RMS current as a function of the options.
+
+    Parameters
+    ----------
+    pr : Problem
+    p : int
+        Phase index.
+    budget : int
+        Largest number of moves [-].
+
+    Returns
+    -------
+    HarmonicSquare
+
+    Notes
+    -----
+    With ``g`` the harmonic vector of the reference plan (new circuits on
+    their first option) and ``δ_o`` what option ``o`` changes,
+    ``G² = ||g + Σ_o x_o·δ_o||² = ||g||² + Σ_o x_o·(2·Re<g, δ_o> + ||δ_o||²)
+    + Σ_{o≠o'} x_o·x_o'·Re<δ_o, δ_o'>`` (``x_o² = x_o`` for binaries; two
+    options of one circuit are never both taken). The products are kept
+    (and linearised exactly at integer points by McCormick's inequalities
+    in the model) when there are at most :data:`MAX_PAIRS`; otherwise the
+    Cauchy-Schwarz bound ``||Σ_{i∈S} δ_i||² ≤ |S|·Σ_{i∈S} ||δ_i||²`` over
+    the at most ``budget`` moved (and every new) circuits replaces them.
+    ``q_lo = max(0, ||g|| - D)²`` with ``D`` the largest total change
+    (triangle inequality).
+    """
+    ref = pr.current_assignment()
+    g = pr.contrib[:, p, 1:]
+    n_opt = pr.n_options
+    if g.shape[1] == 0 or pr.n_free == 0:
+        g_ref = pr.base[p, 1:] + (np.sum(g[ref], axis=0) if pr.n_free else 0)
+        c = float(np.sum(np.abs(g_ref) ** 2)) if g.shape[1] else 0.0
+        return HarmonicSquare(np.zeros(n_opt), c, [], c, True)
+    g_ref = pr.base[p, 1:] + np.sum(g[ref], axis=0)
+    delta = g - g[ref[pr.owner]]
+    size2 = np.sum(np.abs(delta) ** 2, axis=-1)
+    lin = 2.0 * np.real(np.sum(np.conj(g_ref)[None, :] * delta, axis=-1))
+    starts = pr.starts[:-1]
+    worst = np.sqrt(np.maximum.reduceat(size2, starts))
+    placed, new = pr.movable, ~pr.movable
+    k = min(budget, int(np.sum(placed)))
+    d = float(np.sum(worst[new])) + float(np.sum(np.sort(worst[placed])[::-1][:k]))
+    g_norm = float(np.sqrt(np.sum(np.abs(g_ref) ** 2)))
+    q_lo = max(0.0, g_norm - d) ** 2
+    scale = max(g_norm, float(np.max(np.sqrt(size2))), 1e-12)
+    active = np.flatnonzero(size2 > (1e-9 * scale) ** 2)
+    n_pairs = active.size * (active.size - 1) // 2
+    const = g_norm**2
+    if n_pairs <= MAX_PAIRS:
+        pairs = []
+        gram = np.real(delta[active] @ np.conj(delta[active]).T)
+        own = pr.owner[active]
+        for a_i in range(active.size):
+            for b_i in range(a_i + 1, active.size):
+                if own[a_i] != own[b_i] and gram[a_i, b_i] != 0.0:
+                    pairs.append((int(active[a_i]), int(active[b_i]), 2.0 * float(gram[a_i, b_i])))
+        return HarmonicSquare(lin + size2, const, pairs, q_lo, True)
+    moved_circuits = np.unique(pr.owner[active])
+    count = min(k, int(np.sum(placed[moved_circuits]))) + int(np.sum(new[moved_circuits]))
+    return HarmonicSquare(lin + max(1, count) * size2, const, [], q_lo, False)
+
+
+#: Largest number of option products for the exact-square target model [-].
+MAX_PRODUCTS = 5000
+#: Tangent-envelope error of sqrt in the exact-square model, coarse to fine [-].
+TANGENT_ERRORS = (1e-3, 1e-4, 1e-5)
+
+
+def square_terms(
+    pr: Problem,
+) -> tuple[list[tuple[float, np.ndarray]], dict[tuple[int, int], list[float]]]:
+    """``R_p² = const_p + Σ_o lin_p,o·x_o + Σ_{o<o'} coef_p,oo'·x_o·x_o'`` exactly.
+
+    Parameters
+    ----------
+    pr : Problem
+
+    Returns
+    -------
+    linear : list of (const [A²], lin [A²] shape (O,)), one per phase
+    products : dict
+        ``(o, o') -> [coef for phase 0, 1, 2]`` [A²], options of different
+        circuits whose changes to some phase are not orthogonal.
+
+    Notes
+    -----
+    ``v_p = v_ref + Σ_o x_o·δ_o`` with ``δ_o`` the change option ``o`` makes to
+    phase p's spectrum (0 for the reference option). Expanding
+    ``||v_p||²`` and using ``x_o² = x_o`` and ``x_o·x_o' = 0`` for two options
+    of one circuit gives the stated form.
+    """
+    ref = pr.current_assignment()
+    linear = []
+    products: dict[tuple[int, int], list[float]] = {}
+    for p in range(3):
+        c = pr.contrib[:, p, :]
+        v_ref = pr.base[p] + (np.sum(c[ref], axis=0) if pr.n_free else 0)
+        delta = c - c[ref[pr.owner]] if pr.n_free else c
+        size2 = np.sum(np.abs(delta) ** 2, axis=-1)
+        lin = 2.0 * np.real(np.sum(np.conj(v_ref)[None, :] * delta, axis=-1)) + size2
+        linear.append((float(np.sum(np.abs(v_ref) ** 2)), lin))
+        scale = max(float(np.sqrt(np.max(size2, initial=0.0))), 1e-300)
+        active = np.flatnonzero(size2 > (1e-9 * scale) ** 2)
+        if active.size > 2 * math.isqrt(2 * MAX_PRODUCTS) + 2:
+            products[(-1, -1)] = [0.0, 0.0, 0.0]  # too many: signal the caller
+            continue
+        gram = 2.0 * np.real(delta[active] @ np.conj(delta[active]).T)
+        own = pr.owner[active]
+        ia, ib = np.triu_indices(active.size, 1)
+        keep = (own[ia] != own[ib]) & (gram[ia, ib] != 0.0)
+        for a_i, b_i in zip(ia[keep], ib[keep], strict=True):
+            key = (int(active[a_i]), int(active[b_i]))
+            products.setdefault(key, [0.0, 0.0, 0.0])[p] = float(gram[a_i, b_i])
+    return linear, products
+
+
+def _target_model(
+    pr: Problem,
+    goal: Goal,
+    target: float,
+    budget: int,
+    level: int,
+    nogoods: list[np.ndarray],
+    cuts: list[list[np.ndarray]],
+    ncuts: list[np.ndarray],
+    nlim: float | None,
+    exact_square: bool = False,
+) -> tuple[_Model, _Vars, np.ndarray]:
+    m, vars_ = _base_model(pr, goal, budget, nogoods, nlim is not None)
+    width = math.radians(SECTOR_WIDTHS_DEG[level])
+    linear, products = square_terms(pr) if exact_square else ([], {})
+    reaches = [phase_reach(pr, p, budget) for p in range(3)]
+    g_maxes = [g for _, g, _ in reaches]
+    r_maxes = [math.hypot(r.max_abs, g) * (1 + 1e-9) + 1e-9 for r, g, _ in reaches]
+    # every plan meeting the target has R_p ≥ (1 - t)·mean ≥ (1 - t)·F (problem notes)
+    r_min = min((1.0 - target) * pr.floor_a * (1 - 1e-9), min(r_maxes))
+    r0 = m.var(3, max(0.0, r_min), r_maxes)
+    ref_v, _ = spectra(pr, pr.current_assignment())
+    for p in range(3):
+        reach = reaches[p][0]
+        r_max = r_maxes[p]
+        cols = _phase_cols(vars_, p)
+        fund = cols[:2]
+        # lower bounds: polygon over the reachable angles (+ one sector each side)
+        lo, hi = reach.angle_start - width, reach.angle_stop + width
+        n_dirs = max(2, math.ceil((hi - lo) / width) + 1)
+        base_dirs = np.exp(1j * np.linspace(lo, hi, n_dirs))
+        if reach.angle_stop - reach.angle_start >= 2 * np.pi - 1e-9:
+            base_dirs = polygon_directions(max(3, math.ceil(2 * np.pi / width)))
+        for u in [*_tilted(pr, ref_v, p, base_dirs), *cuts[p]]:
+            m.row(
+                np.concatenate([[r0 + p], cols]), np.concatenate([[1.0], -_unit_rows(u)]), 0, np.inf
+            )
+        if pr.orders.size > 1:
+            for d in base_dirs:
+                m.row([r0 + p, *fund], [1.0, -d.real, -d.imag], 0, np.inf)
+        if exact_square:
+            continue
+        # upper bounds: sectors (Theorem 2) for |z|, harmonics through q ≥ G²
+        sec = sectors(reach.angle_start, reach.angle_stop, width)
+        hs = harmonic_square_bound(pr, p, budget)
+        # a plan meeting the target has R_p ≥ (1 - t)·mean ≥ (1 - t)·F, so
+        # |z_p| = sqrt(R_p² - G_p²) ≥ sqrt(((1 - t)·F)² - G_max²)
+        floor_r = (1.0 - target) * pr.floor_a
+        s_floor = math.sqrt(max(0.0, floor_r**2 - g_maxes[p] ** 2))
+        s_lo = max(reach.min_abs, s_floor)
+        s_hi = max(reach.max_abs, s_lo + 1e-9)
+        q0 = hs.q_lo
+        f_lo, f_hi = math.sqrt(s_lo**2 + q0), math.sqrt(s_hi**2 + q0)
+        slope = (f_hi - f_lo) / (s_hi - s_lo) if q0 > 0 else 1.0
+        icpt = f_lo - slope * s_lo if q0 > 0 else 0.0
+        q_cols: list[int] = []
+        q_vals: list[float] = []
+        q_max = (
+            hs.const
+            + float(np.sum(np.maximum(hs.lin, 0)))
+            + sum(max(c, 0.0) for _, _, c in hs.pairs)
+        )
+        if q_max > 0 and f_lo > 0:
+            c_q = 0.5 / f_lo
+            nz = np.flatnonzero(hs.lin)
+            q_cols = (vars_.x + nz).tolist()
+            q_vals = (-c_q * hs.lin[nz]).tolist()
+            if hs.pairs:
+                y0 = m.var(len(hs.pairs), 0.0, 1.0)
+                for k, (o1, o2, c) in enumerate(hs.pairs):
+                    if c > 0:  # y ≤ x_o, y ≤ x_o'
+                        m.row([y0 + k, vars_.x + o1], [1.0, -1.0], -np.inf, 0.0)
+                        m.row([y0 + k, vars_.x + o2], [1.0, -1.0], -np.inf, 0.0)
+                    else:  # y ≥ x_o + x_o' - 1
+                        m.row([y0 + k, vars_.x + o1, vars_.x + o2], [1.0, -1.0, -1.0], -1.0, np.inf)
+                    q_cols.append(y0 + k)
+                    q_vals.append(-c_q * c)
+            icpt += c_q * (hs.const - q0)
+        elif q_max > 0:  # |z| may vanish: R ≤ |z| + sqrt(q_max)
+            c_q = 0.0
+            icpt += math.sqrt(q_max)
+        else:
+            c_q = 0.0
+        big_z = reach.max_abs * 1.01 + 1e-6
+        w0 = m.var(sec.count, 0.0, 1.0, integer=True) if sec.count > 1 else None
+        coef = slope * sec.upper_factor
+        q_span = float(np.sum(np.abs(hs.lin))) + sum(abs(c) for _, _, c in hs.pairs)
+        big_u = r_max + coef * big_z + abs(icpt) + c_q * q_span + 1.0
+        for j in range(sec.count):
+            cj = sec.centres[j]
+            cols_u = np.concatenate([[r0 + p], fund, np.array(q_cols, dtype=int)])
+            vals_u = np.concatenate([[1.0, -coef * cj.real, -coef * cj.imag], q_vals])
+            if w0 is None:
+                m.row(cols_u, vals_u, -np.inf, icpt)
+                continue
+            w = w0 + j
+            m.row(np.append(cols_u, w), np.append(vals_u, big_u), -np.inf, icpt + big_u)
+            for nrm in (sec.lower_normals[j], sec.upper_normals[j]):
+                m.row([*fund, w], [nrm.real, nrm.imag, -big_z], -big_z, np.inf)
+        if w0 is not None:
+            m.row(w0 + np.arange(sec.count), np.ones(sec.count), 1.0, 1.0)
+    if exact_square:
+        _exact_square_rows(m, vars_, r0, linear, products, r_min, r_maxes, level)
+    # the target on the deviation from the mean
+    for p in range(3):
+        up = np.full(3, -(1 + target) / 3.0)
+        up[p] += 1.0
+        m.row(r0 + np.arange(3), up, -np.inf, 0.0)
+        down = np.full(3, (1 - target) / 3.0)
+        down[p] -= 1.0
+        m.row(r0 + np.arange(3), down, -np.inf, 0.0)
+    if nlim is not None:
+        _neutral_cuts(m, vars_, pr, nlim, ncuts)
+    cost = np.zeros(m.n)
+    placed = np.flatnonzero(pr.movable)
+    cost[vars_.x + pr.current[placed]] = -1.0
+    cost[vars_.disp] = 1.0
+    return m, vars_, cost
+
+
+def _exact_square_rows(
+    m: _Model,
+    vars_: _Vars,
+    r0: int,
+    linear: list[tuple[float, np.ndarray]],
+    products: dict[tuple[int, int], list[float]],
+    r_min: float,
+    r_maxes: list[float],
+    level: int,
+) -> None:
+    """Upper bounds ``R_p ≤ (T_p + ρ²)/(2ρ)`` with ``T_p = R_p²`` exact at integer points.
+
+    ``T_p`` is :func:`square_terms` with each product ``x_o·x_o'`` replaced by
+    ``y ∈ [0, 1]`` under McCormick's inequalities (``y ≤ x_o``, ``y ≤ x_o'``
+    where a coefficient is positive, ``y ≥ x_o + x_o' - 1`` where negative):
+    at integer ``x`` the only values allowed make ``T_p`` at most the exact
+    square. ``sqrt`` is concave, so each tangent ``(T + ρ²)/(2ρ)`` lies above
+    it; tangents on a geometric grid of ``ρ`` from the smallest RMS a plan
+    meeting the target can have up to the largest possible keep the envelope
+    within :data:`TANGENT_ERRORS` of ``sqrt(T)`` over that range.
+    """
+    keys = list(products)
+    y0 = m.var(len(keys), 0.0, 1.0)
+    for k, (o1, o2) in enumerate(keys):
+        coefs = products[(o1, o2)]
+        if any(c > 0 for c in coefs):
+            m.row([y0 + k, vars_.x + o1], [1.0, -1.0], -np.inf, 0.0)
+            m.row([y0 + k, vars_.x + o2], [1.0, -1.0], -np.inf, 0.0)
+        if any(c < 0 for c in coefs):
+            m.row([y0 + k, vars_.x + o1, vars_.x + o2], [1.0, -1.0, -1.0], -1.0, np.inf)
+    t0 = m.var(3, 0.0, np.inf)
+    ratio = 1.0 + math.sqrt(8.0 * TANGENT_ERRORS[level])
+    for p in range(3):
+        const, lin = linear[p]
+        nz = np.flatnonzero(lin)
+        ky = [k for k, key in enumerate(keys) if products[key][p] != 0.0]
+        m.row(
+            np.concatenate([[t0 + p], vars_.x + nz, y0 + np.array(ky, dtype=int)]),
+            np.concatenate([[1.0], -lin[nz], -np.array([products[keys[k]][p] for k in ky])]),
+            const,
+            const,
+        )
+        rho = max(r_min, 1e-9 * max(1.0, r_maxes[p]))
+        while True:
+            m.row([r0 + p, t0 + p], [1.0, -0.5 / rho], -np.inf, 0.5 * rho)
+            if rho >= r_maxes[p]:
+                break
+            rho *= ratio
+
+
+def solve_target(
+    pr: Problem,
+    goal: Goal,
+    control: Control,
+    incumbent: np.ndarray | None,
+    verify: Verifier,
+    count: Counter,
+    repair: Callable[[np.ndarray, int], np.ndarray | None],
+) -> Outcome:
+    """Fewest moves that meet the target (module notes).
+
+    Parameters
+    ----------
+    pr : Problem
+    goal : Goal
+        ``target`` (fraction), optional ``neutral_max_a`` and ``max_moves``.
+    control : Control
+    incumbent : int ndarray or None
+        A realisable plan that meets the target (from the heuristic).
+    verify : callable
+        Exact check of a plan.
+    count : callable
+        Breakers a plan relocates (with slot realisation).
+    repair : callable
+        ``repair(assign, k)`` tries to turn a near plan into one that meets
+        the target with at most k moves (local search), or returns None.
+
+    Returns
+    -------
+    Outcome
+        ``bound`` is a proven lower bound on the number of moves.
+    """
+    assert goal.target is not None
+    n_placed = pr.n_movable
+    cap = n_placed if goal.max_moves is None else min(goal.max_moves, n_placed)
+    out = Outcome(assign=incumbent, proven=False, bound=0.0)
+    nlim = _neutral_limit(pr, goal)
+    if nlim is not None and nlim < 0:
+        out.assign, out.proven = None, True
+        out.notes.append("triplen harmonics alone exceed the neutral limit")
+        return out
+    best_k = count(incumbent) if incumbent is not None else None
+    lower = 0
+    # refinement levels: (level, exact-square model?). With harmonics the
+    # exact-square model is tighter; the sector model is faster without them.
+    square_ok = False
+    if pr.orders.size > 1:
+        _, prods = square_terms(pr)
+        square_ok = (-1, -1) not in prods and len(prods) <= MAX_PRODUCTS
+    stages = [(0, False), (1, square_ok), (2, square_ok)]
+    stage = 0
+    exact_proof = True
+    nogoods: list[np.ndarray] = []
+    cuts: list[list[np.ndarray]] = [[], [], []]
+    ncuts = _neutral_dirs(pr) if nlim is not None else []
+    while not control.stop():
+        budget = cap if best_k is None else min(cap, best_k - 1)
+        if budget < lower:
+            break
+        m, vars_, cost = _target_model(
+            pr,
+            goal,
+            goal.target,
+            budget,
+            stages[stage][0],
+            nogoods,
+            cuts,
+            ncuts,
+            nlim,
+            exact_square=stages[stage][1],
+        )
+        what = f"at most {budget} move{'s' if budget != 1 else ''}"
+        control.report(f"solver: looking for a plan with {what}")
+        res = m.solve(cost, control.remaining(), gap=0.0)
+        out.solver_calls += 1
+        if res.status == 2:
+            lower = budget + 1
+            break
+        db = _dual_bound(res)
+        fun = float(res.fun) if res.status == 0 and res.fun is not None else db
+        if fun is not None:
+            lower = max(lower, math.ceil(n_placed + fun - 1e-6))
+        if res.x is None:
+            break
+        a = _decode(pr, res.x, vars_.x)
+        ok, realisable = verify(a)
+        if ok and realisable:
+            out.assign, best_k = a, count(a)
+            continue
+        v, n = spectra(pr, a)
+        for p in range(3):
+            u = _oa(v[p])
+            if u is not None:
+                cuts[p].append(u)
+        if nlim is not None:
+            u = _oa(_nontriplen(pr, n))
+            if u is not None:
+                ncuts.append(u)
+        fixed = repair(a, budget) if realisable else None
+        if fixed is not None:
+            fk = count(fixed)
+            if best_k is None or fk < best_k:
+                out.assign, best_k = fixed, fk
+                continue
+        if not realisable:
+            exact_proof = False
+            nogoods.append(a)
+        elif stage + 1 < len(stages):
+            stage += 1
+        else:
+            nogoods.append(a)
+    out.bound = float(lower)
+    if out.assign is not None:
+        out.proven = exact_proof and lower >= count(out.assign)
+    else:
+        out.proven = exact_proof and lower > cap
+    if not exact_proof:
+        out.notes.append("a plan could not be fitted into the slots and was skipped")
+    return out
