@@ -413,8 +413,8 @@ def solve_balance(
     verify : callable
         Exact check of a plan (neutral limit, realisable in slots).
     stop_gap : float
-        Stop once the incumbent is within this fraction of the floor
-        ``F`` or of the proven bound [-].
+        Stop once the incumbent is within this fraction of the floor ``F``
+        (the solver rarely proves tighter gaps on this min-max problem) [-].
 
     Returns
     -------
@@ -459,7 +459,7 @@ def solve_balance(
     exact_proof = True
     slice_s = 0.25
     while not control.stop():
-        if best <= max(lower, pr.floor_a) * (1 + stop_gap):
+        if best <= pr.floor_a * (1 + stop_gap) or best <= lower * (1 + PROVEN_GAP):
             break
         m, vars_ = _base_model(pr, goal, goal.max_moves, nogoods, nlim is not None)
         t = m.var(1, lower, np.inf)

@@ -1,0 +1,286 @@
+"""Renderers of a rebalancer suggestion: the JSON contract and a printable work order.
+
+JSON (``tri suggest FILE --format json``) follows the rebalancer contract in
+``shared/spec/schedule-format.md``::
+
+    {"status", "objective", "moves": [{"circuit", "from_slot", "to_slot",
+     "from_phases", "to_phases"}], "before": {"phases_rms_a", "neutral_rms_a",
+     "max_deviation_pct"}, "after": {...}, "bound"}
+
+with these added keys beside them: ``mode``; ``bound_unit`` (``"moves"`` or
+``"A"``); ``target_pct``, ``target_met``, ``neutral_max_a``, ``max_moves``;
+``floor_a`` (no arrangement brings the largest phase RMS current below it);
+``relocations``; per move ``poles``, ``changes_phase`` and
+``set_aside_first`` (take it out before the others, install it last: a
+swap); ``unplaced_left``; ``notes``; ``caution``. Numbers are SI (A, %),
+rounded to 9 significant digits; phases by the panel's labels; ``null``
+for "no slot" or "not placed".
+
+Text is a work order a person can follow, step by step, with the safety
+caution first and last. It proposes; it never says the work may go ahead.
+"""
+
+from __future__ import annotations
+
+import io
+import json
+from typing import Any
+
+from rich import box
+from rich.console import Console, Group, RenderableType
+from rich.rule import Rule
+from rich.table import Table
+from rich.text import Text
+
+from tri.rebalance import Figures, Move, Suggestion
+from tri.report.data import num
+from tri.report.text_report import to_ascii
+from tri.schedule.model import Schedule
+
+_STATUS_TEXT = {
+    "optimal": "optimal: proven that no plan does better",
+    "best-found": "best found in the time limit (not proven optimal)",
+    "infeasible": "target out of reach (proven); shown: the best balance found",
+    "already-balanced": "already balanced: no move needed",
+}
+
+
+def _figures(f: Figures, labels: tuple[str, str, str]) -> dict[str, Any]:
+    return {
+        "phases_rms_a": {lab: num(v) for lab, v in zip(labels, f.phases_rms_a, strict=True)},
+        "neutral_rms_a": num(f.neutral_rms_a),
+        "max_deviation_pct": num(f.max_deviation_pct),
+    }
+
+
+def _phases(schedule: Schedule, phases: tuple[int, ...] | None) -> str | None:
+    return None if phases is None else schedule.phase_text(phases)
+
+
+def _set_aside(s: Suggestion) -> set[int]:
+    return {st.circuit_index for st in s.steps if st.action == "take-out"}
+
+
+def suggestion_data(s: Suggestion, before: Schedule, caution: str) -> dict[str, Any]:
+    """The JSON contract as a plain dict.
+
+    Parameters
+    ----------
+    s : Suggestion
+        From :func:`tri.rebalance.suggest`.
+    before : Schedule
+        The schedule the suggestion was made for (labels, names).
+    caution : str
+        The safety caution carried with the output.
+
+    Returns
+    -------
+    dict
+        Contract keys first, then the added keys (module notes); [A], [%].
+    """
+    labels = before.labels
+    aside = _set_aside(s)
+    moves = [
+        {
+            "circuit": m.circuit,
+            "from_slot": m.from_slot,
+            "to_slot": m.to_slot,
+            "from_phases": _phases(before, m.from_phases),
+            "to_phases": _phases(before, m.to_phases),
+            "poles": m.poles,
+            "changes_phase": m.changes_phase,
+            "set_aside_first": m.circuit_index in aside,
+        }
+        for m in s.moves
+    ]
+    return {
+        "status": s.status,
+        "objective": s.objective,
+        "moves": moves,
+        "before": _figures(s.before, labels),
+        "after": _figures(s.after, labels),
+        "bound": num(s.bound),
+        "bound_unit": "moves" if s.mode == "fewest-moves" else "A",
+        "mode": s.mode,
+        "target_pct": num(s.target_pct),
+        "target_met": s.target_met,
+        "neutral_max_a": num(s.neutral_max_a),
+        "max_moves": s.max_moves,
+        "floor_a": num(s.floor_a),
+        "relocations": s.relocations,
+        "unplaced_left": list(s.unplaced_left),
+        "notes": list(s.notes),
+        "caution": caution,
+    }
+
+
+def render_suggestion_json(data: dict[str, Any]) -> str:
+    """Strict JSON text (two-space indent, newline at the end) of :func:`suggestion_data`."""
+    return json.dumps(data, indent=2, ensure_ascii=False, allow_nan=False) + "\n"
+
+
+def _where(schedule: Schedule, slot: int | None, phases: tuple[int, ...] | None) -> str:
+    ph = schedule.phase_text(phases) if phases is not None else "-"
+    word = "phase" if phases is not None and len(phases) == 1 else "phases"
+    if slot is None:
+        return f"{word} {ph}"
+    return f"slot {slot} ({word} {ph})"
+
+
+def work_order_lines(s: Suggestion, before: Schedule) -> list[str]:
+    """The numbered steps of the work order, as plain sentences."""
+    by_index: dict[int, Move] = {m.circuit_index: m for m in s.moves}
+    lines = []
+    for n, st in enumerate(s.steps, start=1):
+        m = by_index[st.circuit_index]
+        name = f'"{m.circuit}" ({m.poles}-pole)'
+        here = _where(before, m.from_slot, m.from_phases)
+        there = _where(before, m.to_slot, m.to_phases)
+        if st.action == "move":
+            text = f"Move breaker {name} from {here} to {there}."
+            if not m.changes_phase:
+                text += " Same phases: this only makes room."
+        elif st.action == "take-out":
+            text = f"Take out breaker {name} from {here} and set it aside (a swap)."
+        elif st.action == "install":
+            text = f"Install the set-aside breaker {name} in {there}."
+        elif st.action == "place":
+            text = f"Install the new circuit's breaker {name} in {there}."
+        elif st.action == "connect":
+            text = f"Connect the new circuit {name} to {there}."
+        else:
+            text = f"Reconnect circuit {name} from {here} to {there}."
+        lines.append(f"{n:>2}. {text}")
+    return lines
+
+
+def _figures_table(s: Suggestion, labels: tuple[str, str, str], ascii_only: bool) -> Table:
+    t = Table(box=box.ASCII if ascii_only else box.SIMPLE_HEAD, pad_edge=False)
+    t.add_column("")
+    t.add_column("Before", justify="right")
+    t.add_column("After", justify="right")
+    for k, lab in enumerate(labels):
+        t.add_row(
+            f"Phase {lab} RMS [A]",
+            f"{s.before.phases_rms_a[k]:.1f}",
+            f"{s.after.phases_rms_a[k]:.1f}",
+        )
+    t.add_row("Neutral RMS [A]", f"{s.before.neutral_rms_a:.1f}", f"{s.after.neutral_rms_a:.1f}")
+    t.add_row(
+        "Largest deviation from the mean [%]",
+        f"{s.before.max_deviation_pct:.2f}",
+        f"{s.after.max_deviation_pct:.2f}",
+    )
+    return t
+
+
+def _status_line(s: Suggestion) -> str:
+    text = _STATUS_TEXT[s.status]
+    if s.status == "best-found" and s.bound is not None:
+        if s.mode == "fewest-moves":
+            text += f"; proven: at least {s.bound:g} moves are needed"
+        else:
+            text += f"; proven: no plan brings the largest phase below {s.bound:.2f} A"
+    if s.target_pct is not None and s.status == "best-found" and not s.target_met:
+        text += "; the target was not reached"
+    return text
+
+
+def suggestion_renderables(
+    s: Suggestion, before: Schedule, caution: str, *, ascii_only: bool = False
+) -> list[RenderableType]:
+    """The work order's sections as Rich renderables (print them in order)."""
+    labels = before.labels
+    rule = "-" if ascii_only else "─"
+    out: list[RenderableType] = [
+        Text(f"Proposed breaker moves: {before.panel.name}", style="bold"),
+        Text(f"Caution: {caution}"),
+        Rule(characters=rule),
+        Text(f"Status: {_status_line(s)}."),
+        Text(_nbsp(f"Minimised: {s.objective}.")),
+    ]
+    if s.target_pct is not None:
+        met = "met" if s.target_met else "not met"
+        out.append(
+            Text(f"Target: within {s.target_pct:g}\u00a0% of the mean ({met} after the moves).")
+        )
+    if s.neutral_max_a is not None:
+        out.append(Text(f"Neutral limit: {s.neutral_max_a:g} A."))
+    out.append(Text("Figures from the engine on the schedule before and after (estimates):"))
+    out.append(_figures_table(s, labels, ascii_only))
+    top = s.after.max_phase_rms_a
+    gap = 100.0 * (top - s.floor_a) / s.floor_a if s.floor_a > 0 else 0.0
+    out.append(
+        Text(
+            f"No arrangement can bring the largest phase below {s.floor_a:.1f} A (its share of "
+            f"the positive-sequence current, harmonics included); after the moves it is "
+            f"{top:.1f}\u00a0A, {gap:.2f}\u00a0% above."
+        )
+    )
+    out.append(Rule(characters=rule))
+    if s.moves:
+        kind = "rail board: circuits change phases" if not before.panel.uses_slots else "slots"
+        count = f"{s.relocations} breaker{'s' if s.relocations != 1 else ''} relocated"
+        placed = sum(1 for m in s.moves if m.is_placement)
+        if placed:
+            count += f", {placed} new circuit{'s' if placed != 1 else ''} placed"
+        out.append(Text(f"Work order ({count}; {kind}), for a qualified person to review:"))
+        steps = Table.grid(padding=(0, 1))
+        steps.add_column(justify="right", no_wrap=True)
+        steps.add_column()
+        for line in work_order_lines(s, before):
+            n, _, text = line.strip().partition(". ")
+            steps.add_row(f"{n}.", to_ascii(text) if ascii_only else text)
+        out.append(steps)
+        out.append(
+            Text(
+                "Before any move: de-energise and lock out the panel and prove it dead. "
+                "For each moved circuit check that its conductors reach the new position "
+                "and that the breaker suits it; afterwards update the panel directory "
+                "(circuit numbers and phases change) and measure the phase and neutral "
+                "currents again (common practice)."
+            )
+        )
+    else:
+        out.append(Text("No breaker moves are proposed."))
+    if s.unplaced_left:
+        out.append(
+            Text("Not placed (use --place-new to find them slots): " + ", ".join(s.unplaced_left))
+        )
+    for note in s.notes:
+        out.append(Text(f"Note: {note}."))
+    out.append(Rule(characters=rule))
+    out.append(Text(f"Caution: {caution}"))
+    if ascii_only:
+        out = [Text(to_ascii(x.plain)) if isinstance(x, Text) else x for x in out]
+    return out
+
+
+def _nbsp(text: str) -> str:
+    """Keep a number with its unit on one line."""
+    return text.replace(" %", "\u00a0%").replace(" A", "\u00a0A")
+
+
+def render_suggestion_text(
+    s: Suggestion,
+    before: Schedule,
+    caution: str,
+    *,
+    width: int = 80,
+    ascii_only: bool = False,
+) -> str:
+    """The work order as plain text (no colour), lines without trailing spaces."""
+    buf = io.StringIO()
+    console = Console(
+        file=buf, width=width, color_system=None, highlight=False, emoji=False, markup=False
+    )
+    for item in suggestion_renderables(s, before, caution, ascii_only=ascii_only):
+        console.print(item)
+    text = "\n".join(line.rstrip() for line in buf.getvalue().splitlines())
+    return text + "\n"
+
+
+def print_suggestion(s: Suggestion, before: Schedule, caution: str, console: Console) -> None:
+    """Print the work order on a Rich console."""
+    ascii_only = not console.encoding.lower().startswith("utf")
+    console.print(Group(*suggestion_renderables(s, before, caution, ascii_only=ascii_only)))
