@@ -142,6 +142,26 @@ class TestReadings:
         assert a.readings.phases[1].difference_pct is None
         assert any("L1 measured" in f.message and "stale" in f.message for f in a.findings)
 
+    def test_uniform_demand_below_connected_load_is_not_stale(self):
+        """Demand below connected load is normal (diversity, common practice): 70 % on
+        every phase gives an info note and no warning."""
+        r = MeasuredReadings(phase_amps=(28.0, 21.0, 21.0))
+        a = analyse(self.c, SYS, Ratings(bus_a=100.0), readings=r, phase_labels=L123)
+        assert not any(f.level == "warning" for f in a.findings if "measured" in f.message)
+        assert any(f.level == "info" and "70 % of the scheduled" in f.message for f in a.findings)
+
+    def test_one_phase_out_of_step_is_flagged_alone(self):
+        """Ratios 0.70 / 0.40 / 0.70 of schedule [computed]: L2 draws 43 % less than the
+        other phases relative to its schedule; L1 and L3 are within 25 % of the others."""
+        r = MeasuredReadings(phase_amps=(28.0, 12.0, 21.0))
+        a = analyse(self.c, SYS, Ratings(bus_a=100.0), readings=r, phase_labels=L123)
+        stale = [f for f in a.findings if "stale" in f.message]
+        assert len(stale) == 1
+        assert (
+            stale[0].message.startswith("Phase L2 measured 12.0 A")
+            and "43 % less" in stale[0].message
+        )
+
     def test_neutral_far_above_points_to_harmonics(self):
         r = MeasuredReadings(phase_amps=(40.0, 30.0, 30.0), neutral_amps=35.0)
         a = analyse(self.c, SYS, Ratings(bus_a=100.0), readings=r)

@@ -35,6 +35,73 @@ def _closes_triangle(u: tuple[float, float, float]) -> bool:
     return a + b >= c and c > 0
 
 
+def _phase_share_findings(
+    a: PanelAnalysis, readings: MeasuredReadings, mism: float
+) -> list[Finding]:
+    """Judge measured phase currents against the schedule by shares, not totals.
+
+    A schedule lists connected load; a clamp meter sees demand, which is
+    normally lower because not everything runs at once (diversity). So the
+    total is only reported, and a phase is flagged when its ratio of
+    measured to scheduled current departs by more than ``mism`` percent
+    from the median ratio of the three phases (with two phases measured,
+    from the other one's): that pattern, not the total, points to a stale
+    schedule on that phase.
+    """
+    out: list[Finding] = []
+    pairs = [
+        (ph.label, float(m), ph.rms_a)
+        for ph, m in zip(a.phases, readings.phase_amps, strict=True)
+        if m is not None and ph.rms_a > 0
+    ]
+    if not pairs:
+        return out
+    source = f"comparison with readings; NEC 408.4 directory kept current (from memory); {LOCAL}"
+    ratios = [m / c for _, m, c in pairs]
+    if len(pairs) >= 2:
+        middle = sorted(ratios)[1] if len(ratios) == 3 else None
+        for k, (label, m, c) in enumerate(pairs):
+            others = [r for j, r in enumerate(ratios) if j != k]
+            ref = middle if middle is not None else others[0]
+            if ref <= 0:
+                continue
+            share = 100.0 * (ratios[k] / ref - 1.0)
+            if abs(share) > mism:
+                more = "more" if share > 0 else "less"
+                out.append(
+                    Finding(
+                        "warning",
+                        f"Phase {label} measured {m:.1f} A against {c:.1f} A scheduled: "
+                        f"{abs(share):.0f} % {more}, relative to its schedule, than the "
+                        f"{'middle phase' if middle is not None else 'other measured phase'}. "
+                        "The schedule may be "
+                        "stale for this phase, or its loads run differently than scheduled.",
+                        source,
+                    )
+                )
+    overall = sum(m for _, m, _ in pairs) / sum(c for _, _, c in pairs)
+    if overall > 1.0 + mism / 100.0:
+        out.append(
+            Finding(
+                "warning",
+                f"Measured phase currents are {100.0 * (overall - 1.0):.0f} % above the "
+                "scheduled load: loads missing from the schedule, or values set too low.",
+                source,
+            )
+        )
+    elif overall < 1.0 - mism / 100.0 and len(pairs) >= 2:
+        out.append(
+            Finding(
+                "info",
+                f"Measured phase currents are {100.0 * overall:.0f} % of the scheduled "
+                "connected load; demand below connected load is normal (not everything runs "
+                "at once), so the phases are compared by their shares.",
+                "comparison with readings; diversity of connected load (common practice)",
+            )
+        )
+    return out
+
+
 def compare_readings(
     a: PanelAnalysis, readings: MeasuredReadings, limits: FindingLimits
 ) -> tuple[ReadingsComparison, list[Finding]]:
@@ -69,18 +136,7 @@ def compare_readings(
         if meas is not None and ph.rms_a > 0:
             diff = 100.0 * (meas - ph.rms_a) / ph.rms_a
         phases.append(PhaseReading(ph.label, meas, ph.rms_a, diff))
-        if diff is not None and abs(diff) > mism:
-            out.append(
-                Finding(
-                    "warning",
-                    f"Phase {ph.label} measured {meas:.1f} A against {ph.rms_a:.1f} A computed "
-                    f"({diff:+.0f} %): the schedule may be stale, or loads run at other than "
-                    "their scheduled values.",
-                    f"comparison with readings; NEC 408.4 directory kept current (from memory); "
-                    f"{LOCAL}",
-                )
-            )
-        elif meas is not None and meas > 0 and ph.rms_a == 0:
+        if meas is not None and meas > 0 and ph.rms_a == 0:
             out.append(
                 Finding(
                     "warning",
@@ -89,6 +145,7 @@ def compare_readings(
                     f"comparison with readings; NEC 408.4 (from memory); {LOCAL}",
                 )
             )
+    out.extend(_phase_share_findings(a, readings, mism))
 
     n = a.neutral
     nm = readings.neutral_amps
