@@ -16,7 +16,10 @@ Steps
    another option) or, when no single change helps, the best swap (two
    circuits with the same pole count exchange options, which never needs
    a free slot), within the move budget and the slot capacity.
-3. *Pruning*: undo moves that are not needed (the target still met, or
+3. *Kicks* (iterated local search [2]): a few random changes, descent
+   again, keep the result if it is better; until 30 kicks bring nothing,
+   the floor is reached, or a quarter of the remaining time is used.
+4. *Pruning*: undo moves that are not needed (the target still met, or
    the largest phase current no larger).
 
 Scores (lexicographic, smaller is better): for *balance*, the largest phase
@@ -29,6 +32,8 @@ References
 ----------
 1. R. L. Graham, "Bounds on multiprocessing timing anomalies", *SIAM J.
    Appl. Math.* 17 (1969) 416-429 (the LPT rule).
+2. H. R. Lourenço, O. C. Martin, T. Stützle, "Iterated local search", in
+   *Handbook of Metaheuristics* (2003) 320-353.
 """
 
 from __future__ import annotations
@@ -119,7 +124,6 @@ class LocalSearch:
         self.v = problem.base + problem.contrib[a].sum(axis=0)
         self.n = problem.nbase + problem.ncontrib[a].sum(axis=0)
         self.cells = problem.use_cells[a].sum(axis=0)
-        self.multi = problem.use_multi[a].sum(axis=0)
         self.win = problem.use_window[a].sum(axis=0)
         self.cap_total = problem.cap_cells.sum(axis=1)
         self.moved = problem.movable & present & (self.assign != problem.current)
@@ -154,8 +158,6 @@ class LocalSearch:
         w = has[:, None].astype(int)
         cells = self.cells - pr.use_cells[oldc] * w + pr.use_cells[o]
         ok = np.all(cells <= self.cap_total, axis=-1)
-        multi = self.multi - pr.use_multi[oldc] * w[:, :, None] + pr.use_multi[o]
-        ok &= np.all(multi <= pr.cap_cells, axis=(-1, -2))
         win = self.win - pr.use_window[oldc] * w + pr.use_window[o]
         ok &= np.all(win <= pr.cap_window, axis=-1)
         return ok
@@ -168,13 +170,11 @@ class LocalSearch:
             self.v = self.v - pr.contrib[old]
             self.n = self.n - pr.ncontrib[old]
             self.cells = self.cells - pr.use_cells[old]
-            self.multi = self.multi - pr.use_multi[old]
             self.win = self.win - pr.use_window[old]
         if o >= 0:
             self.v = self.v + pr.contrib[o]
             self.n = self.n + pr.ncontrib[o]
             self.cells = self.cells + pr.use_cells[o]
-            self.multi = self.multi + pr.use_multi[o]
             self.win = self.win + pr.use_window[o]
         self.assign[i] = o
         self.moved[i] = bool(pr.movable[i] and o >= 0 and o != pr.current[i])
@@ -326,6 +326,59 @@ class LocalSearch:
             steps += 1
         return steps
 
+    def load(self, assign: np.ndarray) -> None:
+        """Replace the plan by ``assign`` (every circuit present)."""
+        for i in np.flatnonzero(self.assign != assign):
+            self.set(int(i), int(assign[i]))
+
+    def kick(self, rng: np.random.Generator, changes: int) -> None:
+        """Apply a few random changes that keep capacity and the budget."""
+        pr = self.pr
+        done = attempts = 0
+        while done < changes and attempts < 10 * changes:
+            attempts += 1
+            i = int(rng.integers(pr.n_free))
+            o = int(rng.integers(pr.starts[i], pr.starts[i + 1]))
+            if self.assign[i] < 0 or o == self.assign[i]:
+                continue
+            gain = int(pr.movable[i] and o != pr.current[i]) - int(self.moved[i])
+            if self.goal.max_moves is not None and self.moves + gain > self.goal.max_moves:
+                back = [int(j) for j in np.flatnonzero(self.moved) if j != i]
+                back = [j for j in back if self._fits(np.array([j]), pr.current[[j]])[0]]
+                if not back:
+                    continue
+                j = back[int(rng.integers(len(back)))]
+                self.set(j, int(pr.current[j]))
+            if self._fits(np.array([i]), np.array([o]))[0]:
+                self.set(i, o)
+                done += 1
+
+    def iterate(self, rng: np.random.Generator, patience: int = 30, share: float = 0.25) -> int:
+        """Iterated local search: kick, descend, keep the better plan.
+
+        Stops after ``patience`` kicks without improvement, at the floor, or
+        after ``share`` of the remaining time. Returns the improvements made.
+        """
+        best = self.assign.copy()
+        ref = self.score()
+        stop_at = self.control.elapsed() + share * max(0.0, self.control.remaining())
+        idle = improved = 0
+        while idle < patience and not self.done() and not self.control.stop():
+            if self.control.elapsed() > stop_at:
+                break
+            self.kick(rng, int(rng.integers(1, 4)))
+            self.descend()
+            p, s = self.score()
+            within = self.goal.max_moves is None or self.moves <= self.goal.max_moves
+            if within and self._better(p, s, ref):
+                best, ref, idle = self.assign.copy(), (p, s), 0
+                improved += 1
+            else:
+                self.load(best)
+                idle += 1
+        self.load(best)
+        return improved
+
     def prune(self) -> int:
         """Undo moves that are not needed; returns how many were undone."""
         pr = self.pr
@@ -361,6 +414,8 @@ def heuristic_plan(
     *,
     from_scratch: bool = False,
     swaps: bool = True,
+    kicks: bool = True,
+    seed: int = 0,
 ) -> np.ndarray | None:
     """A good plan at once: insertion, descent, pruning (module notes).
 
@@ -375,6 +430,11 @@ def heuristic_plan(
         re-layout) and keep the better one.
     swaps : bool
         Allow swaps in the descent.
+    kicks : bool
+        Follow the descent by an iterated local search (random kicks, fixed
+        ``seed`` so results repeat).
+    seed : int
+        Seed of the kicks.
 
     Returns
     -------
@@ -383,15 +443,20 @@ def heuristic_plan(
     """
     start = np.where(problem.current >= 0, problem.current, -1)
     plans = []
+    rng = np.random.default_rng(seed)
     ls = LocalSearch(problem, goal, control, start)
     if ls.insert_missing():
         ls.descend(swaps=swaps)
+        if kicks:
+            ls.iterate(rng)
         ls.prune()
         plans.append(ls)
     if from_scratch and problem.n_free:
         fresh = LocalSearch(problem, goal, control, np.full(problem.n_free, -1))
         if fresh.insert_missing():
             fresh.descend(swaps=swaps)
+            if kicks:
+                fresh.iterate(rng)
             fresh.prune()
             plans.append(fresh)
     if not plans:

@@ -12,8 +12,8 @@ Variables
 
 Constraints shared by every model: one option per circuit; the move budget
 ``Σ_{placed} (1 - x_current) ≤ K``; slot capacity on two-column panels
-(slots per phase; slots per phase and column and disjoint windows of
-consecutive rows for 2- and 3-pole breakers); the neutral limit as cuts
+(slots per phase, and the exact window geometry of 2- and 3-pole
+breakers: consecutive rows of one column, see ``_windows_block``); the neutral limit as cuts
 ``<N, u> ≤ N_max'`` (Theorem 3 of :mod:`tri.rebalance.polygon`).
 
 Balance model (:func:`solve_balance`)
@@ -83,7 +83,10 @@ from tri.rebalance.realise import occupants, windows
 #: Sector widths of the target model, coarse to fine [deg]; upper-bound
 #: errors ``1/cos(w/2) - 1`` of 0.24 %, 0.034 %, 0.0038 % (levels pair with
 #: :data:`TANGENT_ERRORS` in the exact-square model).
-SECTOR_WIDTHS_DEG = (8.0, 3.0, 1.0)
+SECTOR_WIDTHS_DEG = (4.0, 2.0, 1.0)
+#: Spacing of the lower-bound polygon over a phase's reachable angles [deg]
+#: (error ``1 - cos(0.5°)`` = 0.0038 %).
+LOWER_STEP_DEG = 1.0
 #: Directions used for the reachable-set support function [-].
 REACH_DIRECTIONS = 72
 #: Relative improvement the balance model must find over the incumbent [-].
@@ -290,10 +293,6 @@ def _base_model(
             nz = np.flatnonzero(pr.use_cells[:, p])
             if nz.size:
                 m.row(x + nz, pr.use_cells[nz, p], -np.inf, float(total[p]))
-            for col in (0, 1):
-                nz = np.flatnonzero(pr.use_multi[:, p, col])
-                if nz.size:
-                    m.row(x + nz, pr.use_multi[nz, p, col], -np.inf, float(pr.cap_cells[p, col]))
         for t in range(pr.use_window.shape[1]):
             nz = np.flatnonzero(pr.use_window[:, t])
             if nz.size:
@@ -341,6 +340,20 @@ def _tilted(pr: Problem, ref: np.ndarray, p: int, base_dirs: np.ndarray) -> list
     return out
 
 
+def _lower_directions(reach: Reach) -> np.ndarray:
+    """Polygon directions every :data:`LOWER_STEP_DEG` over a reachable cone (Theorem 1).
+
+    Within the cone (widened by one step each side) the nearest direction is
+    at most half a step away, so ``max_j <z, u_j> ≥ |z|·cos(step/2)``; outside
+    it no plan goes. The whole circle when the cone is.
+    """
+    step = math.radians(LOWER_STEP_DEG)
+    if reach.angle_stop - reach.angle_start >= 2 * np.pi - 1e-9:
+        return polygon_directions(max(3, math.ceil(2 * np.pi / step)))
+    lo, hi = reach.angle_start - step, reach.angle_stop + step
+    return np.exp(1j * np.linspace(lo, hi, max(2, math.ceil((hi - lo) / step) + 1)))
+
+
 def _oa(vec: np.ndarray) -> np.ndarray | None:
     """Unit vector along a spectrum (an outer-approximation cut there)."""
     nrm = float(np.sqrt(np.sum(np.abs(vec) ** 2)))
@@ -381,6 +394,16 @@ def _nontriplen(pr: Problem, n: np.ndarray) -> np.ndarray:
     out = np.array(n, dtype=complex, copy=True)
     out[pr.orders % 3 == 0] = 0
     return out
+
+
+def _infeasible(res) -> bool:
+    """True only when HiGHS proved the model infeasible (not on a model error)."""
+    return res.status == 2 and "nfeasible" in str(getattr(res, "message", ""))
+
+
+def _failed(res) -> bool:
+    """True when HiGHS stopped on an error rather than a result or a limit."""
+    return res.status in (2, 3, 4) and not _infeasible(res)
 
 
 def _dual_bound(res) -> float | None:
@@ -439,12 +462,14 @@ def solve_balance(
         out.proven = True
         out.bound = lower
         return out
-    polygon = polygon_directions(DEFAULT_SIDES)
     ref_v, _ = spectra(pr, incumbent if incumbent is not None else pr.current_assignment())
-    cuts: list[list[np.ndarray]] = [_tilted(pr, ref_v, p, polygon) for p in range(3)]
-    if pr.orders.size > 1:
-        for p in range(3):
-            for d in polygon:
+    budget = pr.n_movable if goal.max_moves is None else min(goal.max_moves, pr.n_movable)
+    cuts: list[list[np.ndarray]] = []
+    for p in range(3):
+        dirs = _lower_directions(phase_reach(pr, p, budget)[0])
+        cuts.append(_tilted(pr, ref_v, p, dirs))
+        if pr.orders.size > 1:
+            for d in dirs:
                 u = np.zeros(pr.orders.size, dtype=complex)
                 u[0] = d
                 cuts[p].append(u)
@@ -478,7 +503,10 @@ def solve_balance(
         control.report(f"solver: looking for a plan below {best:.2f} A (bound {lower:.2f} A)")
         res = m.solve(cost, min(slice_s, control.remaining()), gap=PROVEN_GAP / 10)
         out.solver_calls += 1
-        if res.status == 2:  # nothing better than the incumbent exists
+        if _failed(res):
+            out.notes.append(f"the solver stopped: {res.message}")
+            break
+        if _infeasible(res):  # nothing better than the incumbent exists
             if math.isfinite(best) and exact_proof:
                 lower = max(lower, best * (1 - IMPROVE))
             elif exact_proof:
@@ -585,7 +613,7 @@ def phase_reach(pr: Problem, p: int, budget: int) -> tuple[Reach, float, np.ndar
 
 
 #: Largest number of option pairs per phase modelled exactly (McCormick) [-].
-MAX_PAIRS = 4000
+MAX_PAIRS = 300
 
 
 @dataclass
@@ -663,20 +691,37 @@ def harmonic_square_bound(pr: Problem, p: int, budget: int) -> HarmonicSquare:
     q_lo = max(0.0, g_norm - d) ** 2
     scale = max(g_norm, float(np.max(np.sqrt(size2))), 1e-12)
     active = np.flatnonzero(size2 > (1e-9 * scale) ** 2)
-    n_pairs = active.size * (active.size - 1) // 2
     const = g_norm**2
-    if n_pairs <= MAX_PAIRS:
-        pairs = []
-        gram = np.real(delta[active] @ np.conj(delta[active]).T)
-        own = pr.owner[active]
-        for a_i in range(active.size):
-            for b_i in range(a_i + 1, active.size):
-                if own[a_i] != own[b_i] and gram[a_i, b_i] != 0.0:
-                    pairs.append((int(active[a_i]), int(active[b_i]), 2.0 * float(gram[a_i, b_i])))
+    if active.size < 2:
+        return HarmonicSquare(lin + size2, const, [], q_lo, True)
+    gram = 2.0 * np.real(delta[active] @ np.conj(delta[active]).T)
+    own = pr.owner[active]
+    ia, ib = np.triu_indices(active.size, 1)
+    keep = (own[ia] != own[ib]) & (gram[ia, ib] != 0.0)
+    ia, ib = ia[keep], ib[keep]
+    coef = gram[ia, ib]
+    if ia.size <= MAX_PAIRS:
+        pairs = [
+            (int(active[a]), int(active[b]), float(c)) for a, b, c in zip(ia, ib, coef, strict=True)
+        ]
         return HarmonicSquare(lin + size2, const, pairs, q_lo, True)
+    # the largest products exactly; the rest bounded linearly: c·x·x' ≤ c·(x + x')/2
+    # for c > 0 and ≤ 0 for c < 0 (binaries)
+    order = np.argsort(-np.abs(coef), kind="stable")
+    top, rest = order[:MAX_PAIRS], order[MAX_PAIRS:]
+    extra = np.zeros(n_opt)
+    pos = rest[coef[rest] > 0]
+    np.add.at(extra, active[ia[pos]], coef[pos] / 2)
+    np.add.at(extra, active[ib[pos]], coef[pos] / 2)
+    hybrid = lin + size2 + extra
     moved_circuits = np.unique(pr.owner[active])
     count = min(k, int(np.sum(placed[moved_circuits]))) + int(np.sum(new[moved_circuits]))
-    return HarmonicSquare(lin + max(1, count) * size2, const, [], q_lo, False)
+    cs = lin + max(1, count) * size2
+    # whichever linear bound adds less in total over the options
+    if float(np.sum(extra)) <= float(np.sum((max(1, count) - 1) * size2)):
+        pairs = [(int(active[ia[t]]), int(active[ib[t]]), float(coef[t])) for t in top]
+        return HarmonicSquare(hybrid, const, pairs, q_lo, False)
+    return HarmonicSquare(cs, const, [], q_lo, False)
 
 
 #: Largest number of option products for the exact-square target model [-].
@@ -760,12 +805,8 @@ def _target_model(
         r_max = r_maxes[p]
         cols = _phase_cols(vars_, p)
         fund = cols[:2]
-        # lower bounds: polygon over the reachable angles (+ one sector each side)
-        lo, hi = reach.angle_start - width, reach.angle_stop + width
-        n_dirs = max(2, math.ceil((hi - lo) / width) + 1)
-        base_dirs = np.exp(1j * np.linspace(lo, hi, n_dirs))
-        if reach.angle_stop - reach.angle_start >= 2 * np.pi - 1e-9:
-            base_dirs = polygon_directions(max(3, math.ceil(2 * np.pi / width)))
+        # lower bounds: a fine polygon over the reachable angles (rows only)
+        base_dirs = _lower_directions(reach)
         for u in [*_tilted(pr, ref_v, p, base_dirs), *cuts[p]]:
             m.row(
                 np.concatenate([[r0 + p], cols]), np.concatenate([[1.0], -_unit_rows(u)]), 0, np.inf
@@ -795,7 +836,7 @@ def _target_model(
             + float(np.sum(np.maximum(hs.lin, 0)))
             + sum(max(c, 0.0) for _, _, c in hs.pairs)
         )
-        if q_max > 0 and f_lo > 0:
+        if q_max > 0 and f_lo > 1e-3 * r_max:
             c_q = 0.5 / f_lo
             nz = np.flatnonzero(hs.lin)
             q_cols = (vars_.x + nz).tolist()
@@ -834,6 +875,16 @@ def _target_model(
                 m.row([*fund, w], [nrm.real, nrm.imag, -big_z], -big_z, np.inf)
         if w0 is not None:
             m.row(w0 + np.arange(sec.count), np.ones(sec.count), 1.0, 1.0)
+            span = reach.angle_stop - reach.angle_start
+            if span < math.radians(170.0):
+                # the whole reachable cone as one sector: looser, but needs no
+                # binary, so it also holds in the LP relaxation (a much better
+                # bound in the root node)
+                whole = sectors(reach.angle_start, reach.angle_stop, 2 * np.pi)
+                cw = slope * whole.upper_factor * whole.centres[0]
+                cols_u = np.concatenate([[r0 + p], fund, np.array(q_cols, dtype=int)])
+                vals_u = np.concatenate([[1.0, -cw.real, -cw.imag], q_vals])
+                m.row(cols_u, vals_u, -np.inf, icpt)
     if exact_square:
         _exact_square_rows(m, vars_, r0, linear, products, r_min, r_maxes, level)
     # the target on the deviation from the mean
@@ -978,7 +1029,10 @@ def solve_target(
         control.report(f"solver: looking for a plan with {what}")
         res = m.solve(cost, control.remaining(), gap=0.0)
         out.solver_calls += 1
-        if res.status == 2:
+        if _failed(res):
+            out.notes.append(f"the solver stopped: {res.message}")
+            break
+        if _infeasible(res):
             lower = budget + 1
             break
         db = _dual_bound(res)

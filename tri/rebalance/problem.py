@@ -7,14 +7,18 @@ other circuit is *fixed* and only adds its currents and occupies its slots.
 
 Options of a free circuit (``kind`` numbers them within a pole count):
 
-==========  ==========================================  =====================
-poles       two-column panel                            rail board ("phases")
-==========  ==========================================  =====================
-1           phase A, B or C (kind = phase)              the same
-2           rows A-B, B-C or C-A, left or right column  pair A-B, B-C or C-A
-            (kind = 2·pair + column)                    (kind = pair)
-3           left or right column (kind = column)        one option
-==========  ==========================================  =====================
+==========  ==================================  =====================
+poles       two-column panel                    rail board ("phases")
+==========  ==================================  =====================
+1           phase A, B or C (kind = phase)      the same
+2           rows A-B, B-C or C-A (kind = pair)  pair A-B, B-C or C-A
+3           one option (any three rows)         one option
+==========  ==================================  =====================
+
+Which column and rows a breaker takes is left to the slot realisation
+(:mod:`tri.rebalance.realise`), whose window geometry the mixed-integer
+program models exactly; options never differ by column alone, so no two
+options are electrically identical.
 
 What an option adds to the phase and neutral currents at every harmonic
 order comes from the engine itself (:func:`tri.engine.analyse_batch` on a
@@ -58,8 +62,8 @@ from tri.schedule.to_engine import circuit_arrays, ratings, system_voltages
 
 #: The three phase pairs of 2-pole options, in row order of a two-column panel [-].
 PAIRS: tuple[tuple[int, int], ...] = ((0, 1), (1, 2), (2, 0))
-#: Number of window types: (left, right) × (2-pole starting on A, B, C; 3-pole) [-].
-WINDOW_TYPES = 8
+#: Number of window types: 2-pole breakers starting on row A, B or C; 3-pole [-].
+WINDOW_TYPES = 4
 _A = np.exp(2j * np.pi / 3)
 #: Weights of the order-invariant sequence component for h mod 3 = 0, 1, 2 [-].
 _SEQ_WEIGHTS = np.array([[1, 1, 1], [1, _A, _A**2], [1, _A**2, _A]], dtype=complex) / 3.0
@@ -100,7 +104,7 @@ class Problem:
     phases : tuple of tuple of int, length O
         Phases of each option, in pole order.
     column : int ndarray, shape (O,)
-        0 left, 1 right, -1 either (1-pole options, rail boards).
+        Column an option is tied to; -1 (either) for every option.
     current : int ndarray, shape (F,)
         Option each free circuit has now; -1 for new circuits.
     orders : int ndarray, shape (H,)
@@ -119,12 +123,11 @@ class Problem:
         Slots per phase and column not taken by fixed circuits [-].
     use_cells : int ndarray, shape (O, 3)
         Slots per phase an option takes [-].
-    use_multi : int ndarray, shape (O, 3, 2)
-        Slots per phase and column a multi-pole option takes [-].
-    use_window : int ndarray, shape (O, 8)
-        One-hot window type of a multi-pole option (column × start row) [-].
-    cap_window : int ndarray, shape (8,)
-        Disjoint free windows of each type [-].
+    use_window : int ndarray, shape (O, 4)
+        One-hot window type of a multi-pole option (start row A, B, C; 3-pole) [-].
+    cap_window : int ndarray, shape (4,)
+        Free windows of each type, both columns (same-type windows never
+        overlap within a column) [-].
     floor_a : float
         ``F``: no plan's largest phase RMS current is below it [A] (module notes).
     """
@@ -148,7 +151,6 @@ class Problem:
     slots: bool
     cap_cells: np.ndarray
     use_cells: np.ndarray
-    use_multi: np.ndarray
     use_window: np.ndarray
     cap_window: np.ndarray
     floor_a: float
@@ -186,16 +188,12 @@ def _options(c: Circuit, slots: bool) -> list[tuple[int, tuple[int, ...], int]]:
     if c.poles == 1:
         return [(p, (p,), -1) for p in range(3)]
     if c.poles == 2:
-        if not slots:
-            out = []
-            for k, pair in enumerate(PAIRS):
-                keep = c.phases is not None and set(c.phases) == set(pair)
-                out.append((k, tuple(c.phases) if keep else pair, -1))  # type: ignore[arg-type]
-            return out
-        return [(2 * k + col, pair, col) for k, pair in enumerate(PAIRS) for col in (0, 1)]
-    if not slots:
-        return [(0, (0, 1, 2), -1)]
-    return [(col, (0, 1, 2), col) for col in (0, 1)]
+        out = []
+        for k, pair in enumerate(PAIRS):
+            keep = not slots and c.phases is not None and set(c.phases) == set(pair)
+            out.append((k, tuple(c.phases) if keep else pair, -1))  # type: ignore[arg-type]
+        return out
+    return [(0, (0, 1, 2), -1)]
 
 
 def _current_kind(c: Circuit, slots: bool) -> int:
@@ -203,11 +201,9 @@ def _current_kind(c: Circuit, slots: bool) -> int:
         return -1
     if c.poles == 1:
         return c.phases[0]
-    col = column_of(c.slot) if (slots and c.slot is not None) else 0
     if c.poles == 2:
-        k = pair_index(c.phases)
-        return 2 * k + col if slots else k
-    return col if slots else 0
+        return pair_index(c.phases)
+    return 0
 
 
 def _connection(poles: int) -> int:
@@ -242,13 +238,13 @@ def _capacity(schedule: Schedule, fixed: Sequence[int]) -> tuple[np.ndarray, np.
         free = [slot_at(r, col) not in blocked for r in range(1, rows + 1)]
         for r in range(rows - 1):
             if free[r] and free[r + 1]:
-                win[4 * col + r % 3] += 1  # row r+1 (1-based) has phase r % 3
+                win[r % 3] += 1  # row r+1 (1-based) has phase r % 3
         run = 0
         for f in [*free, False]:
             if f:
                 run += 1
             else:
-                win[4 * col + 3] += run // 3
+                win[3] += run // 3
                 run = 0
     return cap, win, blocked
 
@@ -348,16 +344,12 @@ def build_problem(schedule: Schedule, free: Sequence[int]) -> Problem:
         ncontrib = np.zeros((0, h), dtype=complex)
 
     use_cells = np.zeros((n_opt, 3), dtype=int)
-    use_multi = np.zeros((n_opt, 3, 2), dtype=int)
     use_window = np.zeros((n_opt, WINDOW_TYPES), dtype=int)
-    for o, (ph, col) in enumerate(zip(phases, column, strict=True)):
+    for o, ph in enumerate(phases):
         for p in ph:
             use_cells[o, p] += 1
-        if len(ph) > 1 and col >= 0:
-            for p in ph:
-                use_multi[o, p, col] += 1
-            start = 3 if len(ph) == 3 else ph[0]
-            use_window[o, 4 * col + start] = 1
+        if len(ph) > 1 and slots:
+            use_window[o, 3 if len(ph) == 3 else ph[0]] = 1
     if slots:
         cap, win, _ = _capacity(schedule, fixed)
     else:
@@ -384,7 +376,6 @@ def build_problem(schedule: Schedule, free: Sequence[int]) -> Problem:
         slots=slots,
         cap_cells=cap,
         use_cells=use_cells,
-        use_multi=use_multi,
         use_window=use_window,
         cap_window=win,
         floor_a=0.0,

@@ -9,7 +9,7 @@ Realisation
 -----------
 Circuits whose option did not change stay where they are. Multi-pole
 breakers that must move are placed first, in windows (consecutive rows of
-the right phases in the chosen column) picked by a small exact program
+the right phases in either column) picked by a small exact program
 that displaces the fewest 1-pole breakers, then keeps breakers near where
 they were. Then every 1-pole breaker that is free to
 choose gets a slot by a linear assignment problem [1]
@@ -82,8 +82,8 @@ class Window:
     Attributes
     ----------
     type : int
-        ``4·column + start phase`` for 2-pole windows, ``4·column + 3`` for
-        3-pole windows (the ``use_window`` columns of a Problem).
+        Start phase (0, 1, 2) of a 2-pole window, 3 for a 3-pole window
+        (the ``use_window`` columns of a Problem); either column.
     first : int
         First slot [-].
     cells : tuple of int
@@ -118,7 +118,7 @@ def windows(problem: Problem) -> list[Window]:
                 cells = occupied_slots(first, poles)
                 if cells[-1] > spaces or blocked.intersection(cells):
                     continue
-                t = 4 * col + (3 if poles == 3 else slot_phase(first))
+                t = 3 if poles == 3 else slot_phase(first)
                 if t in wanted:
                     out.append(Window(t, first, cells))
     return out

@@ -218,16 +218,23 @@ class _Checker:
 
 
 def _heuristic(
-    pr: Problem, goal: Goal, control: Control, checker: _Checker, from_scratch: bool = False
+    pr: Problem,
+    goal: Goal,
+    control: Control,
+    checker: _Checker,
+    from_scratch: bool = False,
+    kicks: bool = True,
 ) -> np.ndarray | None:
     """The heuristic plan, within the budget once slots are fitted (fewer moves if needed)."""
-    plan = heuristic_plan(pr, goal, control, from_scratch=from_scratch)
+    plan = heuristic_plan(pr, goal, control, from_scratch=from_scratch, kicks=kicks)
     if plan is None or checker.good(plan) or goal.max_moves is None:
         return plan if checker.good(plan) else None
     for k in range(goal.max_moves - 1, -1, -1):
         if control.stop():
             break
-        plan = heuristic_plan(pr, replace(goal, max_moves=k), control, from_scratch=from_scratch)
+        plan = heuristic_plan(
+            pr, replace(goal, max_moves=k), control, from_scratch=from_scratch, kicks=kicks
+        )
         if checker.good(plan):
             return plan
     return None
@@ -343,7 +350,7 @@ def suggest(
         plan = _heuristic(pr, goal_target, control, checker_t)
         # the balance heuristic often reaches tight targets too, and is the
         # fallback when the target cannot be met
-        fallback = _heuristic(pr, goal_balance, control, checker_b)
+        fallback = _heuristic(pr, goal_balance, control, checker_b, kicks=False)
         if (
             fallback is not None
             and checker_t.good(fallback)
