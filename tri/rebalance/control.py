@@ -52,6 +52,11 @@ class Control:
         self._progress = progress
         self._cancel = cancel
 
+    @property
+    def can_cancel(self) -> bool:
+        """True when a cancel hook was given (solver calls are then cut into slices)."""
+        return self._cancel is not None
+
     def elapsed(self) -> float:
         """Seconds since the start [s]."""
         return time.perf_counter() - self.start

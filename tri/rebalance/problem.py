@@ -83,6 +83,26 @@ def pair_index(phases: Sequence[int]) -> int:
     raise ValueError(f"not a pair of distinct phases: {phases!r}")
 
 
+@dataclass(frozen=True)
+class Window:
+    """Consecutive rows of one column where a 2- or 3-pole breaker can go.
+
+    Attributes
+    ----------
+    type : int
+        Start phase (0, 1, 2) of a 2-pole window, 3 for a 3-pole window
+        (the ``use_window`` columns of a Problem); either column.
+    first : int
+        First slot [-].
+    cells : tuple of int
+        Every slot the breaker takes.
+    """
+
+    type: int
+    first: int
+    cells: tuple[int, ...]
+
+
 @dataclass(frozen=True, eq=False)
 class Problem:
     """Everything the search needs about one panel, as arrays.
@@ -130,6 +150,8 @@ class Problem:
         overlap within a column) [-].
     floor_a : float
         ``F``: no plan's largest phase RMS current is below it [A] (module notes).
+    windows : tuple of Window
+        Windows clear of fixed circuits, of the types free circuits use.
     """
 
     schedule: Schedule
@@ -154,6 +176,7 @@ class Problem:
     use_window: np.ndarray
     cap_window: np.ndarray
     floor_a: float
+    windows: tuple[Window, ...] = ()
 
     @property
     def n_free(self) -> int:
@@ -247,6 +270,34 @@ def _capacity(schedule: Schedule, fixed: Sequence[int]) -> tuple[np.ndarray, np.
                 win[3] += run // 3
                 run = 0
     return cap, win, blocked
+
+
+def fixed_slots(problem: Problem) -> set[int]:
+    """Slots taken by circuits that are not free."""
+    free_set = set(problem.free.tolist())
+    out: set[int] = set()
+    for idx, c in enumerate(problem.schedule.circuits):
+        if c.slot is not None and idx not in free_set:
+            out.update(occupied_slots(c.slot, c.poles))
+    return out
+
+
+def _windows(problem: Problem) -> tuple[Window, ...]:
+    spaces = problem.schedule.panel.spaces
+    blocked = fixed_slots(problem)
+    wanted = set(np.flatnonzero(problem.use_window.sum(axis=0)).tolist())
+    out = []
+    for col in (0, 1):
+        for row in range(1, column_rows(spaces, col) + 1):
+            first = slot_at(row, col)
+            for poles in (2, 3):
+                cells = occupied_slots(first, poles)
+                if cells[-1] > spaces or blocked.intersection(cells):
+                    continue
+                t = 3 if poles == 3 else slot_phase(first)
+                if t in wanted:
+                    out.append(Window(t, first, cells))
+    return tuple(out)
 
 
 def _single_circuit_batch(ca: CircuitArrays, rows: np.ndarray, conn, p, q) -> CircuitArrays:
@@ -381,7 +432,11 @@ def build_problem(schedule: Schedule, free: Sequence[int]) -> Problem:
         floor_a=0.0,
     )
     v, _ = spectra(problem, problem.current_assignment())
-    return replace(problem, floor_a=floor_of(v, orders))
+    return replace(
+        problem,
+        floor_a=floor_of(v, orders),
+        windows=_windows(problem) if slots and np.any(use_window) else (),
+    )
 
 
 def floor_of(spectrum: np.ndarray, orders: np.ndarray) -> float:

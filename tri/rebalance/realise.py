@@ -43,9 +43,9 @@ import numpy as np
 from scipy.optimize import Bounds, LinearConstraint, linear_sum_assignment, milp
 from scipy.sparse import coo_matrix
 
-from tri.rebalance.problem import Problem, column_of, column_rows, slot_at
+from tri.rebalance.problem import Problem, Window, column_of, fixed_slots
 from tri.schedule.model import Schedule
-from tri.schedule.slots import occupied_slots, slot_phase, slot_row
+from tri.schedule.slots import occupied_slots, slot_row
 
 _FORBIDDEN = 1.0e9
 
@@ -75,53 +75,9 @@ def _distance(slot: int, old: int | None, scale: float) -> float:
     return scale * (abs(slot_row(slot) - slot_row(old)) + other_column)
 
 
-@dataclass(frozen=True)
-class Window:
-    """Consecutive rows of one column where a 2- or 3-pole breaker can go.
-
-    Attributes
-    ----------
-    type : int
-        Start phase (0, 1, 2) of a 2-pole window, 3 for a 3-pole window
-        (the ``use_window`` columns of a Problem); either column.
-    first : int
-        First slot [-].
-    cells : tuple of int
-        Every slot the breaker takes.
-    """
-
-    type: int
-    first: int
-    cells: tuple[int, ...]
-
-
-def fixed_slots(problem: Problem) -> set[int]:
-    """Slots taken by circuits that are not free."""
-    free_set = set(problem.free.tolist())
-    out: set[int] = set()
-    for idx, c in enumerate(problem.schedule.circuits):
-        if c.slot is not None and idx not in free_set:
-            out.update(occupied_slots(c.slot, c.poles))
-    return out
-
-
-def windows(problem: Problem) -> list[Window]:
+def windows(problem: Problem) -> tuple[Window, ...]:
     """Every window clear of fixed circuits, of the types free circuits can use."""
-    spaces = problem.schedule.panel.spaces
-    blocked = fixed_slots(problem)
-    wanted = set(np.flatnonzero(problem.use_window.sum(axis=0)).tolist())
-    out = []
-    for col in (0, 1):
-        for row in range(1, column_rows(spaces, col) + 1):
-            first = slot_at(row, col)
-            for poles in (2, 3):
-                cells = occupied_slots(first, poles)
-                if cells[-1] > spaces or blocked.intersection(cells):
-                    continue
-                t = 3 if poles == 3 else slot_phase(first)
-                if t in wanted:
-                    out.append(Window(t, first, cells))
-    return out
+    return problem.windows
 
 
 def occupants(problem: Problem) -> dict[int, int]:
@@ -259,30 +215,42 @@ def realise_slots(problem: Problem, assign: np.ndarray) -> dict[int, int] | None
     for m, w in placed.items():
         result[int(problem.free[m])] = w.first
         taken.update(w.cells)
-    # 1-pole breakers: assignment problem over the slots left
-    cells = [s for s in range(1, spaces + 1) if s not in taken]
-    if len(single) > len(cells):
+    # 1-pole breakers that keep their phase and were not displaced stay (the
+    # slot counts per phase leave room for the others, so keeping them costs
+    # nothing); the rest get slots by an assignment problem over the slots left
+    rest = []
+    for i in single:
+        idx = int(problem.free[i])
+        c = circuits[idx]
+        stays = bool(problem.movable[i]) and int(assign[i]) == int(problem.current[i])
+        if stays and i not in displaced and c.slot is not None and c.slot not in taken:
+            result[idx] = c.slot
+            taken.add(c.slot)
+        else:
+            rest.append(i)
+    cells = np.array([s for s in range(1, spaces + 1) if s not in taken], dtype=int)
+    if len(rest) > cells.size:
         return None
-    if single:
-        cost = np.full((len(single), len(cells)), _FORBIDDEN)
-        cell_arr = np.array(cells)
-        cell_phase = np.array([slot_phase(s) for s in cells])
-        for r, i in enumerate(single):
-            idx = int(problem.free[i])
-            c = circuits[idx]
-            p = problem.phases[int(assign[i])][0]
-            ok = cell_phase == p
-            base = 1.0 if problem.movable[i] else 0.0
-            dist = np.array([_distance(int(s), c.slot, scale) for s in cell_arr[ok]])
-            row = np.full(int(ok.sum()), base) + dist
-            if problem.movable[i] and c.slot is not None and i not in displaced:
-                row[cell_arr[ok] == c.slot] = 0.0
-            cost[r, ok] = row
+    if rest:
+        cell_phase = ((cells + 1) // 2 - 1) % 3
+        cell_row = (cells + 1) // 2
+        cell_col = (cells + 1) % 2  # 0 left (odd), 1 right (even)
+        old = np.array([circuits[int(problem.free[i])].slot or 0 for i in rest])
+        want = np.array([problem.phases[int(assign[i])][0] for i in rest])
+        moved = np.array([bool(problem.movable[i]) for i in rest])
+        dist = np.where(
+            (old > 0)[:, None],
+            np.abs(cell_row[None, :] - ((old + 1) // 2)[:, None])
+            + 3 * (cell_col[None, :] != ((old + 1) % 2)[:, None]),
+            cells[None, :],
+        )
+        cost = np.where(moved, 1.0, 0.0)[:, None] + scale * dist
+        cost = np.where(cell_phase[None, :] == want[:, None], cost, _FORBIDDEN)
         rows, cols = linear_sum_assignment(cost)
         if np.any(cost[rows, cols] >= _FORBIDDEN):
             return None
         for r, k in zip(rows, cols, strict=True):
-            result[int(problem.free[single[r]])] = int(cells[k])
+            result[int(problem.free[rest[r]])] = int(cells[k])
     return result
 
 
