@@ -359,6 +359,8 @@ class LocalSearch:
         Stops after ``patience`` kicks without improvement, at the floor, or
         after ``share`` of the remaining time. Returns the improvements made.
         """
+        if self.pr.n_free == 0:
+            return 0
         best = self.assign.copy()
         ref = self.score()
         stop_at = self.control.elapsed() + share * max(0.0, self.control.remaining())

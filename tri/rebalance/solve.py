@@ -448,7 +448,13 @@ def suggest(
     if mode == "relayout":
         plan = _fewer_relocations(pr, goal_balance, control, plan, checker_b)
     status = "optimal" if outcome.proven else "best-found"
-    if status == "optimal" and checker_b.relocations(plan) == 0 and mode != "place-new":
+    if (
+        status == "optimal"
+        and checker_b.relocations(plan) == 0
+        and not has_new
+        and mode != "place-new"
+        and pr.n_free > 0
+    ):
         status = "already-balanced"
     bound = None if outcome.proven else outcome.bound
     return _finish(
