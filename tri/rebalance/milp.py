@@ -11,50 +11,72 @@ Variables
   is set; the triplen part is the same for every plan).
 
 Constraints shared by every model: one option per circuit; the move budget
-``Σ_{placed} (1 - x_current) ≤ K``; slot capacity on two-column panels
-(slots per phase, and the exact window geometry of 2- and 3-pole
-breakers: consecutive rows of one column, see ``_windows_block``); the neutral limit as cuts
-``<N, u> ≤ N_max'`` (Theorem 3 of :mod:`tri.rebalance.polygon`).
+``Σ_{placed} (1 - x_current) + Σ displaced ≤ K``; slot capacity on
+two-column panels (slots per phase, and the exact window geometry of 2-
+and 3-pole breakers — consecutive rows of one column, a breaker that stays
+blocks its window, a 1-pole one can be displaced at the cost of a move;
+see ``_windows_block``); the neutral limit as cuts ``<N, u> ≤ N_max'``
+(Theorem 3 of :mod:`tri.rebalance.polygon`).
 
 Balance model (:func:`solve_balance`)
 -------------------------------------
-Minimise ``T`` subject to ``T ≥ <V_p, u>`` for unit vectors ``u``: the
-36-sided polygon in the plane of the fundamental (error 0.382 % by
-Theorem 1), polygon directions tilted towards the harmonic content of a
-reference plan, and outer-approximation cuts at every plan the solver
-proposes (exact there, Theorem 3). Every cut is a valid lower bound on the
-phase RMS current, so the program is a relaxation: its optimum (or HiGHS's
-dual bound) is a proven lower bound on the largest phase RMS current of
-every plan, and a plan whose exact value reaches it is optimal.
+Minimise ``T`` subject to ``T ≥ <V_p, u>`` for unit vectors ``u``: a
+polygon in the plane of the fundamental, one direction per degree over the
+angles the phase current can reach (error 0.0038 %, Theorem 1), the same
+directions tilted towards the harmonic content of a reference plan, and
+outer-approximation cuts at every plan the solver proposes (exact there,
+Theorem 3). Every cut is a valid lower bound on the phase RMS current, so
+the program is a relaxation: its optimum (or HiGHS's dual bound) is a
+proven lower bound on the largest phase RMS current of every plan, and a
+plan whose exact value reaches it is optimal. The floor ``F`` is a second
+bound. This min-max problem is like number partitioning: proofs at tight
+gaps are rare, so the search stops once a plan is within ``stop_gap`` of
+``F``.
 
 Target model (:func:`solve_target`)
 -----------------------------------
 Minimise the number of moves subject to the target on the *exact*
 deviation ``|R_p - mean R| ≤ t·mean R`` for every phase. ``R_p`` is a
 magnitude on both sides, so the program must bound it from above too,
-which a magnitude (a convex function) only allows piecewise: the angles
-the phase current can take within the move budget (from the support
-function of its reachable set, :func:`tri.rebalance.polygon.reach_from_support`)
-are cut into sectors, and a binary per sector says which one holds the
-current, where Theorem 2 bounds ``|z|`` from above. Harmonics: the phase
-RMS is ``R = sqrt(|z|² + G²)`` with ``G`` the RMS of the harmonic orders;
-``G`` lies below a bound ``G_max`` (triangle inequality over the allowed
-moves), and on the interval of possible ``|z|`` the convex function
-``sqrt(s² + G_max²)`` lies below its chord, a linear upper bound. With
-these, **every plan that meets the target exactly satisfies the program**
-(it is a relaxation): when the program has no solution with ``k`` moves,
-no plan with ``k`` moves exists, which is how ``optimal`` is proven. A plan
-the program proposes is then checked exactly; if it fails (it is within the
-sectors' slack of the target), the sectors are refined and, at the finest
-level, the plan is excluded by a no-good cut.
+which a magnitude (a convex function) only allows piecewise:
+
+* *Lower side*: ``R_p ≥ <V_p, u>`` as in the balance model; and
+  ``R_p ≥ (1 - t)·F`` (a plan meeting the target has ``R_p ≥ (1-t)·mean``
+  and the mean is at least ``F``).
+* *Upper side, sector model*: the angles the fundamental can take within
+  the move budget (support function of its reachable set,
+  :func:`tri.rebalance.polygon.reach_from_support`) are cut into sectors; a
+  binary per sector says which one holds the current, where Theorem 2
+  bounds ``|z|`` from above; one extra row bounds it over the whole cone
+  without a binary (looser, but it holds in the LP relaxation, which makes
+  the root bound useful). Harmonics: ``R = sqrt(|z|² + G²)`` with
+  ``G² ≤ q``, a function of the options that is exact with products of
+  options (McCormick's inequalities, exact at integer points) for the
+  :data:`MAX_PAIRS` largest products and bounded linearly for the rest
+  (:func:`harmonic_square_bound`); ``sqrt(s² + q)`` is bounded by its
+  tangent in ``q`` and its chord in ``s``.
+* *Upper side, exact-square model* (small panels with harmonics): ``R_p²``
+  itself is written exactly with products of options
+  (:func:`square_terms`) and ``R_p ≤ (R_p² + ρ²)/(2ρ)`` for a grid of
+  ``ρ`` (tangents of the concave square root).
+
+With these, **every plan that meets the target exactly satisfies the
+program** (it is a relaxation): when the program has no solution with
+``k`` moves, no plan with ``k`` moves exists, which is how ``optimal`` is
+proven. A plan the program proposes is checked exactly; if it fails (it is
+within the slack of the target), the model is refined (narrower sectors,
+the exact-square model, denser tangents) and, at the finest level, the plan
+is excluded by a no-good cut. Each refinement and cut keeps the program a
+relaxation, so its optimum stays a proven lower bound on the moves.
 
 The approximations are only in what the program accepts; every figure a
 plan reports is computed exactly (and again by the engine on the final
 schedule).
 
-HiGHS runs with its log off (``disp=False``); the command line also sends
-the process's standard output elsewhere while it runs, since the native
-library can print outside Python's control.
+HiGHS runs with its log off (``disp=False``); the native library can still
+print a stray line outside Python's control, so the command line sends the
+process's standard output elsewhere while it runs (a user interface should
+do the same, or run the search in a subprocess).
 """
 
 from __future__ import annotations

@@ -21,12 +21,22 @@ Modes
 
 Harmonics
 ---------
-Every figure the search compares is the exact RMS (all harmonic orders,
-summed order by order as phasors, as the engine does); approximations are
-only inside the mixed-integer programs (:mod:`tri.rebalance.milp`), whose
-proposals are re-checked exactly, and the before/after figures reported
-come from the engine run on the schedules themselves
-(:func:`tri.schedule.to_engine.analyse_schedule`).
+A phase's RMS current is ``R = sqrt(|I_1|² + Σ_h |I_h|²)``, each order a
+phasor sum over the circuits on the phase (triplen orders of 1-pole
+circuits add in phase on the neutral whatever the phase; moves cannot
+change them). The greedy start, the local search and every acceptance test
+use this exact RMS, by superposition of the engine's per-circuit currents.
+The approximation is only inside the mixed-integer programs
+(:mod:`tri.rebalance.milp`): there ``R`` is bounded from below by
+projections of the whole spectrum (exact at every plan visited) and from
+above by a sector bound on the fundamental plus a bound on the harmonic
+part's square that is exact with products of options where there are few
+and linear otherwise. Every proposal is re-checked with the exact RMS, and
+the before/after figures reported come from the engine run on the
+schedules themselves (:func:`tri.schedule.to_engine.analyse_schedule`). On
+large panels with many non-linear circuits the upper bound can stay loose,
+so a proof may not close in the time limit: the plan is still exact and
+verified, and the status says ``best-found`` with the proven bound.
 
 Anytime
 -------

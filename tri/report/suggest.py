@@ -61,6 +61,12 @@ def _set_aside(s: Suggestion) -> set[int]:
     return {st.circuit_index for st in s.steps if st.action == "take-out"}
 
 
+def _bound(s: Suggestion) -> float | int | None:
+    if s.bound is None:
+        return None
+    return round(s.bound) if s.mode == "fewest-moves" else num(s.bound)
+
+
 def suggestion_data(s: Suggestion, before: Schedule, caution: str) -> dict[str, Any]:
     """The JSON contract as a plain dict.
 
@@ -99,7 +105,7 @@ def suggestion_data(s: Suggestion, before: Schedule, caution: str) -> dict[str, 
         "moves": moves,
         "before": _figures(s.before, labels),
         "after": _figures(s.after, labels),
-        "bound": num(s.bound),
+        "bound": _bound(s),
         "bound_unit": "moves" if s.mode == "fewest-moves" else "A",
         "mode": s.mode,
         "target_pct": num(s.target_pct),
