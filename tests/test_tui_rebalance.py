@@ -86,8 +86,8 @@ async def test_run_shows_work_order_and_applies_all_then_undo(
         assert [m.before.name for m in screen.plan.moves] == ["Dishwasher", "Future espresso"]
         table = screen.query_one("#rb-moves-table", DataTable)
         order = str(table.get_row_at(0)[2])
-        assert order == "Move 'Dishwasher' from slot 4 (B) to slot 11 (C)"
-        assert "Place new 'Future espresso' in slot 12 (C)" in str(table.get_row_at(1)[2])
+        assert order == 'Move "Dishwasher": slot 4 (B) → slot 11 (C)'
+        assert 'Place new "Future espresso" in slot 12 (C)' in str(table.get_row_at(1)[2])
         figures = str(screen.query_one("#rb-figures").render())
         after = analyse_schedule(screen.plan.after)
         b = after.phase_labels.index("B")
@@ -173,3 +173,25 @@ async def test_real_rebalancer_plan_is_applied_with_the_engines_figures(small: P
             await pilot.press("u")
             await settle(pilot)
         assert app.session.schedule == before
+
+
+def test_work_order_follows_the_rebalancers_steps_with_set_aside(small: Path) -> None:
+    """A swap through a set-aside breaker is shown as take-out, moves, install, in the
+    rebalancer's order; selecting either line selects the whole move."""
+    from tri.schedule.load import load_schedule
+
+    schedule = load_schedule(small).schedule
+    i, j = index_of(schedule, "Dishwasher"), index_of(schedule, "Future espresso")
+    after = schedule.with_circuit(i, schedule.circuits[i].at_slot(11))
+    after = after.with_circuit(j, after.circuits[j].at_slot(12))
+    steps = (
+        SimpleNamespace(action="take-out", circuit_index=i),
+        SimpleNamespace(action="place", circuit_index=j),
+        SimpleNamespace(action="install", circuit_index=i),
+    )
+    result = SimpleNamespace(status="optimal", objective="x", schedule=after, steps=steps)
+    plan = bridge.to_plan(schedule, result)
+    assert [m.index for m in plan.moves] == [i, j]
+    assert [s.move for s in plan.steps] == [0, 1, 0]
+    assert plan.steps[0].text == 'Take out "Dishwasher" from slot 4 (B), set it aside'
+    assert plan.steps[2].text == 'Install set-aside "Dishwasher" in slot 11 (C)'

@@ -20,16 +20,13 @@ limit, 2 for bad input or options.
 from __future__ import annotations
 
 import argparse
-import contextlib
-import io
 import math
-import os
 import sys
-from collections.abc import Iterator
 from pathlib import Path
 from typing import Any
 
 from tri.cli.common import EXIT_LIMIT, EXIT_OK, SAFETY_CAUTION, CliError, load
+from tri.native_output import native_stdout_to_devnull
 
 #: Largest accepted --time-limit [s].
 MAX_TIME_LIMIT_S = 3600.0
@@ -131,33 +128,6 @@ def _check_write_target(target: str) -> None:
     parent = out.parent if str(out.parent) else Path(".")
     if not parent.is_dir():
         raise CliError(f"--write {target}: folder {parent} does not exist")
-
-
-@contextlib.contextmanager
-def native_stdout_to_devnull() -> Iterator[None]:
-    """Send the process's standard output (file descriptor 1) to the null device.
-
-    HiGHS is native code and may print outside Python's control; this keeps
-    JSON on standard output clean. Python's own ``sys.stdout`` is flushed
-    before and after.
-    """
-    try:
-        fd = sys.stdout.fileno()
-    except (AttributeError, OSError, io.UnsupportedOperation):
-        yield
-        return
-    sys.stdout.flush()
-    saved = os.dup(fd)
-    devnull = os.open(os.devnull, os.O_WRONLY)
-    try:
-        os.dup2(devnull, fd)
-        yield
-    finally:
-        with contextlib.suppress(Exception):
-            sys.stdout.flush()
-        os.dup2(saved, fd)
-        os.close(saved)
-        os.close(devnull)
 
 
 class _Progress:

@@ -133,11 +133,11 @@ def _where(schedule: Schedule, slot: int | None, phases: tuple[int, ...] | None)
     return f"slot {slot} ({word} {ph})"
 
 
-def work_order_lines(s: Suggestion, before: Schedule) -> list[str]:
-    """The numbered steps of the work order, as plain sentences."""
+def work_order_steps(s: Suggestion, before: Schedule) -> list[tuple[int, str]]:
+    """The work order as ``(circuit_index, sentence)`` pairs, in the order to do them."""
     by_index: dict[int, Move] = {m.circuit_index: m for m in s.moves}
-    lines = []
-    for n, st in enumerate(s.steps, start=1):
+    out = []
+    for st in s.steps:
         m = by_index[st.circuit_index]
         name = f'"{m.circuit}" ({m.poles}-pole)'
         here = _where(before, m.from_slot, m.from_phases)
@@ -156,8 +156,13 @@ def work_order_lines(s: Suggestion, before: Schedule) -> list[str]:
             text = f"Connect the new circuit {name} to {there}."
         else:
             text = f"Reconnect circuit {name} from {here} to {there}."
-        lines.append(f"{n:>2}. {text}")
-    return lines
+        out.append((st.circuit_index, text))
+    return out
+
+
+def work_order_lines(s: Suggestion, before: Schedule) -> list[str]:
+    """The numbered steps of the work order, as plain sentences."""
+    return [f"{n:>2}. {text}" for n, (_, text) in enumerate(work_order_steps(s, before), start=1)]
 
 
 def _figures_table(s: Suggestion, labels: tuple[str, str, str], ascii_only: bool) -> Table:

@@ -2,8 +2,9 @@
 
 The rebalancer's result is turned into a :class:`Plan`: the moves as
 circuits before and after, found by comparing the schedule before with the
-schedule the rebalancer proposes, so the work order always matches what
-applying it does. The before/after figures shown are the engine's own
+schedule the rebalancer proposes (so applying always matches what is
+shown), ordered and worded as the rebalancer's own work order (set-aside
+swaps included). The before/after figures shown are the engine's own
 (``analyse_schedule``) on both schedules; nothing is recomputed here.
 """
 
@@ -15,6 +16,7 @@ from collections.abc import Callable
 from dataclasses import dataclass, replace
 from typing import Any
 
+from tri.native_output import native_stdout_to_devnull
 from tri.schedule.model import Circuit, Schedule
 from tri.schedule.validate import check_schedule
 
@@ -66,14 +68,23 @@ class Move:
 
 
 @dataclass(frozen=True)
+class Step:
+    """One line of the work order: which move it belongs to and what to do."""
+
+    move: int
+    text: str
+
+
+@dataclass(frozen=True)
 class Plan:
-    """A proposal: status, what was minimised, the moves, and the schedule after all of them."""
+    """A proposal: status, what was minimised, the moves, the work order, the schedule after."""
 
     status: str
     objective: str
     moves: tuple[Move, ...]
     after: Schedule
     bound: float | None = None
+    steps: tuple[Step, ...] = ()
 
 
 def find_entry() -> Callable[..., Any] | None:
@@ -138,18 +149,76 @@ def _after_schedule(before: Schedule, result: Any) -> Schedule:
     return after
 
 
+NAME_WIDTH = 30  #: longest circuit name shown in a work-order line (fits 80 columns)
+
+
+def _where(schedule: Schedule, c: Circuit) -> str:
+    ph = schedule.phase_text(c.phases)
+    return f"slot {c.slot} ({ph})" if c.slot is not None else (ph if c.phases else "-")
+
+
+def _name(c: Circuit) -> str:
+    name = c.name if len(c.name) <= NAME_WIDTH else c.name[: NAME_WIDTH - 1] + "…"
+    return f'"{name}"'
+
+
+def step_text(action: str, move: Move, schedule: Schedule) -> str:
+    """One work-order line, short enough for an 80-column screen."""
+    name, here, there = (
+        _name(move.before),
+        _where(schedule, move.before),
+        _where(schedule, move.after),
+    )
+    if action == "take-out":
+        return f"Take out {name} from {here}, set it aside"
+    if action == "install":
+        return f"Install set-aside {name} in {there}"
+    if action in ("place", "connect") or move.is_placement:
+        return f"Place new {name} in {there}"
+    return f"Move {name}: {here} → {there}"
+
+
 def to_plan(before: Schedule, result: Any) -> Plan:
-    """The rebalancer's result as a :class:`Plan` (moves found by comparing schedules)."""
+    """The rebalancer's result as a :class:`Plan`.
+
+    The moves are found by comparing the schedules (so applying matches
+    what is shown) and put in the order of the rebalancer's work order
+    (``result.steps``: move, take-out, install, place ...) where it has one.
+    """
     after = _after_schedule(before, result)
-    moves = tuple(
-        Move(i, b, a)
+    changed = {
+        i: Move(i, b, a)
         for i, (b, a) in enumerate(zip(before.circuits, after.circuits, strict=False))
         if (b.slot, b.phases) != (a.slot, a.phases)
+    }
+    actions = [
+        (str(st.action), int(st.circuit_index))
+        for st in (getattr(result, "steps", None) or ())
+        if int(st.circuit_index) in changed
+    ]
+    order: list[int] = []
+    for _, index in actions:
+        if index not in order:
+            order.append(index)
+    order += [i for i in sorted(changed) if i not in order]
+    moves = tuple(changed[i] for i in order)
+    position = {m.index: k for k, m in enumerate(moves)}
+    listed = {i for _, i in actions}
+    actions += [("move", m.index) for m in moves if m.index not in listed]
+    steps = tuple(
+        Step(position[i], step_text(action, moves[position[i]], before)) for action, i in actions
     )
     status = str(getattr(result, "status", "best-found"))
     objective = str(getattr(result, "objective", "") or "")
     bound = getattr(result, "bound", None)
-    return Plan(status, objective, moves, after, bound if isinstance(bound, int | float) else None)
+    return Plan(
+        status,
+        objective,
+        moves,
+        after,
+        bound if isinstance(bound, int | float) else None,
+        steps,
+    )
 
 
 def run(
@@ -183,7 +252,8 @@ def run(
         suggest_options = options_cls(
             place_new=options.place_new, time_limit_s=options.time_limit_s, **fields
         )
-        result = fn(schedule, suggest_options, progress=progress, cancel=cancel)
+        with native_stdout_to_devnull():
+            result = fn(schedule, suggest_options, progress=progress, cancel=cancel)
     else:
         result = fn(schedule, **_kwargs(fn, options, progress, cancel))
     return to_plan(schedule, result)

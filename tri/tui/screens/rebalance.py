@@ -196,27 +196,15 @@ class RebalanceScreen(Screen[None]):
 
     # ------------------------------------------------------------ the work order
 
-    def _line(self, k: int, m: bridge.Move) -> str:
-        app: Any = self.app
-        s = app.session.schedule
-
-        def where(c: Any) -> str:
-            ph = s.phase_text(c.phases)
-            return f"slot {c.slot} ({ph})" if c.slot is not None else (ph if c.phases else "-")
-
-        if m.is_placement:
-            return f"Place new {m.before.name!r} in {where(m.after)}"
-        return f"Move {m.before.name!r} from {where(m.before)} to {where(m.after)}"
-
     def _show_plan(self) -> None:
         table = self.query_one("#rb-moves-table", DataTable)
         table.clear()
         assert self.plan is not None
         if not self.plan.moves:
             table.add_row("", "", Text("No move needed: the panel already meets the target."))
-        for k, m in enumerate(self.plan.moves):
-            sel = "[x]" if k in self.chosen else "[ ]"
-            table.add_row(Text(sel), str(k + 1), Text(self._line(k, m)), key=str(k))
+        for n, step in enumerate(self.plan.steps):
+            sel = "[x]" if step.move in self.chosen else "[ ]"
+            table.add_row(Text(sel), str(n + 1), Text(step.text), key=str(n))
         self._show_figures()
 
     def _show_figures(self) -> None:
@@ -239,7 +227,9 @@ class RebalanceScreen(Screen[None]):
         if self.plan is None or not self.plan.moves:
             return
         row = self.query_one("#rb-moves-table", DataTable).cursor_row
-        self.chosen ^= {row}
+        if not 0 <= row < len(self.plan.steps):
+            return
+        self.chosen ^= {self.plan.steps[row].move}
         self._show_plan()
         self.query_one("#rb-moves-table", DataTable).move_cursor(row=row)
 
