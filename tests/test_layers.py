@@ -12,6 +12,8 @@ HEADLESS = [
     "tri.schedule.load",
     "tri.schedule.save",
     "tri.schedule.to_engine",
+    "tri.rebalance",
+    "tri.report.text_report",
     "tri.cli",
 ]
 
