@@ -11,6 +11,7 @@ import math
 from dataclasses import dataclass, field, replace
 from typing import Literal
 
+from tri.engine.inputs import SupplyImpedance
 from tri.schedule.slots import TWO_COLUMN, slot_phases
 from tri.schedule.systems import SYSTEMS, SupplySystem
 
@@ -72,21 +73,10 @@ class PanelInfo:
         return self.layout == TWO_COLUMN
 
 
-@dataclass(frozen=True)
-class Supply:
-    """The optional ``[supply]`` table: transformer and feeder behind the panel.
-
-    Units: kVA, %, -, m, ohm/km (see :class:`tri.engine.inputs.SupplyImpedance`).
-    """
-
-    transformer_kva: float
-    transformer_z_pct: float
-    transformer_x_r: float
-    feeder_length_m: float = 0.0
-    feeder_r_ohm_per_km: float = 0.0
-    feeder_x_ohm_per_km: float = 0.0
-    neutral_r_ohm_per_km: float = 0.0
-    neutral_x_ohm_per_km: float = 0.0
+#: The optional ``[supply]`` table: transformer and feeder behind the panel.
+#: The file's keys are exactly the engine's input fields (kVA, %, -, m, ohm/km),
+#: so the model uses the engine's frozen dataclass as it is.
+Supply = SupplyImpedance
 
 
 Triple = tuple[float | None, float | None, float | None]

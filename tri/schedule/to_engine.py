@@ -80,10 +80,7 @@ def ratings(schedule: Schedule, continuous_factor: float = DEFAULT_CONTINUOUS_FA
 
 def supply_impedance(schedule: Schedule) -> SupplyImpedance | None:
     """The ``[supply]`` table for the engine, or ``None``."""
-    s = schedule.supply
-    if s is None:
-        return None
-    return SupplyImpedance(**vars(s))
+    return schedule.supply
 
 
 def measured(schedule: Schedule) -> MeasuredReadings | None:
