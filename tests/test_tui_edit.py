@@ -220,3 +220,30 @@ async def test_panel_supply_and_readings_forms(small: Path) -> None:
         await pilot.press("escape")
         await settle(pilot)
         assert app.session.schedule.readings is None
+
+
+def _burst(app: TriApp, keys: list[str]) -> None:
+    """Post keys at once, as a laggy SSH link delivers them (no waiting between keys)."""
+    from textual import events
+
+    for key in keys:
+        char = key if len(key) == 1 else None
+        app.post_message(events.Key(key, char))
+
+
+async def test_keys_arriving_in_a_burst_act_in_order(small: Path) -> None:
+    """Backspaces before digits, and field changes before typing, act in arrival order
+    (works around Textualize/textual issue 6605: bindings used to run after later
+    characters, turning a typed 3600 into 3, or typing into the wrong field)."""
+    app = TriApp(small, journal=False)
+    async with app.run_test(size=(80, 24)) as pilot:
+        await settle(pilot)
+        await goto(pilot, "Dishwasher")
+        await pilot.press("enter")
+        assert isinstance(app.screen, FormScreen)
+        _burst(app, ["down", "down", "down", "ctrl+u", "a", "b", "c"])
+        _burst(app, ["backspace"] * 3 + ["3", "6", "0", "0", "enter"])
+        await settle(pilot)
+        assert isinstance(app.screen, MainScreen)
+        c = next(c for c in app.session.schedule.circuits if c.name == "Dishwasher")
+        assert c.load_value == 3600

@@ -21,6 +21,7 @@ from textual.widget import Widget
 from textual.widgets import Input, Label, Static
 
 from tri.tui.widgets.cycle import Cycle
+from tri.tui.widgets.ordered_input import OrderedInput
 from tri.tui.widgets.toggle import Toggle
 
 Values = dict[str, Any]
@@ -64,8 +65,10 @@ class FormScreen(ModalScreen[Any]):
     BINDINGS: ClassVar[list[BindingType]] = [
         Binding("escape", "cancel", "Cancel", id="form.cancel"),
         Binding("ctrl+s", "accept", "Accept", id="form.accept"),
-        Binding("down", "app.focus_next", "Next", show=False),
-        Binding("up", "app.focus_previous", "Previous", show=False),
+        # Priority: field-to-field keys act when they arrive, before the keys
+        # after them are handed to a field (a burst over SSH stays in order).
+        Binding("down,tab", "app.focus_next", "Next", show=False, priority=True),
+        Binding("up,shift+tab", "app.focus_previous", "Previous", show=False, priority=True),
     ]
 
     def __init__(self, title: str, fields: list[Field], validate: Validator, help_text: str = ""):
@@ -98,7 +101,7 @@ class FormScreen(ModalScreen[Any]):
             return Toggle(bool(f.value), id=wid, disabled=f.disabled, classes="form-input")
         if f.kind == "choice":
             return Cycle(f.choices, str(f.value), id=wid, disabled=f.disabled, classes="form-input")
-        widget = Input(
+        widget = OrderedInput(
             str(f.value),
             placeholder=f.hint,
             id=wid,

@@ -22,7 +22,9 @@ from tri.tui.screens.form import Field, FormScreen, Values
 INTRO = (
     "tri balances three-phase panels: it shows each phase's current, the neutral and "
     "the unbalance, and finds the fewest breaker moves to even them out. "
-    "Choose a demo panel (opened as an unsaved copy) or a recent file; ↑↓ and Enter."
+    "Choose a demo panel (opened as an unsaved copy) or a recent file; ↑↓ and Enter. "
+    "Figures are estimates; panel work is for qualified persons on de-energised "
+    "equipment, and the local electrical code decides."
 )
 
 
@@ -40,6 +42,15 @@ def demo_files() -> list[Path]:
 
     folder = demo_folder()
     return sorted(folder.glob("*.toml")) if folder.is_dir() else []
+
+
+def demo_label(path: Path) -> str:
+    """``"Panel name · system · N circuits"`` for a demo file (its stem if unreadable)."""
+    try:
+        s = load_schedule(path).schedule
+    except ScheduleError:
+        return path.stem
+    return f"{s.panel.name} · {s.panel.system} · {len(s.circuits)} circuits"
 
 
 class PickerScreen(Screen[None]):
@@ -63,7 +74,7 @@ class PickerScreen(Screen[None]):
         options.add_option(Option("── Demo panels ──", disabled=True))
         if demos:
             for p in demos:
-                options.add_option(Option(Text(f"  {p.stem}"), id=f"demo:{p}"))
+                options.add_option(Option(Text(f"  {demo_label(p)}"), id=f"demo:{p}"))
         else:
             options.add_option(Option("  (no demo panels in this installation)", disabled=True))
         options.add_option(Option("── Recent files ──", disabled=True))

@@ -26,6 +26,7 @@ from tri.tui import rebalance_bridge as bridge
 from tri.tui.fmt import parse_number
 from tri.tui.messages import RebalanceDone, RebalanceProgress
 from tri.tui.widgets.cycle import Cycle
+from tri.tui.widgets.ordered_input import OrderedInput
 
 MODES = (
     ("fewest moves to target", "fewest-moves"),
@@ -70,9 +71,9 @@ class RebalanceScreen(Screen[None]):
         yield Static("", id="rb-title", classes="title-bar")
         with Horizontal(id="rb-mode"):
             yield Label("Target %", classes="rb-label")
-            yield Input("5", id="rb-target", compact=True, classes="rb-num")
+            yield OrderedInput("5", id="rb-target", compact=True, classes="rb-num")
             yield Label("Moves", classes="rb-label")
-            yield Input("", id="rb-moves", placeholder="any", compact=True, classes="rb-num")
+            yield OrderedInput("", id="rb-moves", placeholder="any", compact=True, classes="rb-num")
             yield Cycle(MODES, "fewest-moves", id="rb-mode-choice")
         with Horizontal(id="rb-progress-row"):
             yield ProgressBar(total=1.0, show_eta=False, id="rb-progress")
