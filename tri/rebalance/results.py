@@ -67,12 +67,17 @@ class Figures:
         Largest deviation of a phase RMS current from their mean [%].
     negative_sequence_pct : float
         ``|I_2| / |I_1|`` of the fundamental [%].
+    limits : tuple of str
+        The engine's findings at level ``limit`` (ratings exceeded), worded
+        as in ``tri report``: balancing may leave a phase or the neutral over
+        its rating, and a work order must say so.
     """
 
     phases_rms_a: tuple[float, float, float]
     neutral_rms_a: float
     max_deviation_pct: float
     negative_sequence_pct: float
+    limits: tuple[str, ...] = ()
 
     @property
     def max_phase_rms_a(self) -> float:
@@ -88,6 +93,7 @@ class Figures:
             neutral_rms_a=analysis.neutral.rms_a if analysis.neutral.present else 0.0,
             max_deviation_pct=analysis.current_unbalance.max_deviation_pct,
             negative_sequence_pct=analysis.current_unbalance.negative_sequence_pct,
+            limits=tuple(f.message for f in analysis.findings if f.level == "limit"),
         )
 
 

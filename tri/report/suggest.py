@@ -12,7 +12,9 @@ with these added keys beside them: ``mode``; ``bound_unit`` (``"moves"`` or
 ``floor_a`` (no arrangement brings the largest phase RMS current below it);
 ``relocations``; per move ``poles``, ``changes_phase`` and
 ``set_aside_first`` (take it out before the others, install it last: a
-swap); ``unplaced_left``; ``notes``; ``caution``. Numbers are SI (A, %),
+swap); in ``before`` and ``after``, ``limits`` (the engine's findings at
+level "limit": ratings still exceeded); ``unplaced_left``; ``notes``;
+``caution``. Numbers are SI (A, %),
 rounded to 9 significant digits; phases by the panel's labels; ``null``
 for "no slot" or "not placed".
 
@@ -50,6 +52,7 @@ def _figures(f: Figures, labels: tuple[str, str, str]) -> dict[str, Any]:
         "phases_rms_a": {lab: num(v) for lab, v in zip(labels, f.phases_rms_a, strict=True)},
         "neutral_rms_a": num(f.neutral_rms_a),
         "max_deviation_pct": num(f.max_deviation_pct),
+        "limits": list(f.limits),
     }
 
 
@@ -228,6 +231,13 @@ def suggestion_renderables(
             f"{top:.1f}\u00a0A, {gap:.2f}\u00a0% above."
         )
     )
+    if s.after.limits:
+        out.append(
+            Text(
+                "Still over a rating after the moves (balancing alone does not fix it; "
+                "see tri report): " + " ".join(s.after.limits)
+            )
+        )
     out.append(Rule(characters=rule))
     if s.moves:
         kind = "rail board: circuits change phases" if not before.panel.uses_slots else "slots"
