@@ -17,6 +17,7 @@ from dataclasses import dataclass, replace
 from typing import Any
 
 from tri.native_output import native_stdout_to_devnull
+from tri.rebalance import DEFAULT_TARGET_PCT
 from tri.schedule.model import Circuit, Schedule
 from tri.schedule.validate import check_schedule
 
@@ -46,7 +47,7 @@ class Options:
         Search budget [s].
     """
 
-    target_pct: float | None = 5.0
+    target_pct: float | None = DEFAULT_TARGET_PCT
     max_moves: int | None = None
     place_new: bool = True
     time_limit_s: float = 3.0

@@ -21,6 +21,7 @@ from textual.screen import Screen
 from textual.widgets import DataTable, Footer, Input, Label, ProgressBar, Static
 
 from tri.cli.common import SAFETY_CAUTION
+from tri.rebalance import DEFAULT_TARGET_PCT
 from tri.schedule.to_engine import analyse_schedule
 from tri.tui import rebalance_bridge as bridge
 from tri.tui.fmt import parse_number
@@ -71,7 +72,9 @@ class RebalanceScreen(Screen[None]):
         yield Static("", id="rb-title", classes="title-bar")
         with Horizontal(id="rb-mode"):
             yield Label("Target %", classes="rb-label")
-            yield OrderedInput("5", id="rb-target", compact=True, classes="rb-num")
+            yield OrderedInput(
+                f"{DEFAULT_TARGET_PCT:g}", id="rb-target", compact=True, classes="rb-num"
+            )
             yield Label("Moves", classes="rb-label")
             yield OrderedInput("", id="rb-moves", placeholder="any", compact=True, classes="rb-num")
             yield Cycle(MODES, "fewest-moves", id="rb-mode-choice")
