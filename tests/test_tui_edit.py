@@ -247,3 +247,21 @@ async def test_keys_arriving_in_a_burst_act_in_order(small: Path) -> None:
         assert isinstance(app.screen, MainScreen)
         c = next(c for c in app.session.schedule.circuits if c.name == "Dishwasher")
         assert c.load_value == 3600
+
+
+async def test_choices_and_toggles_in_a_burst_land_on_their_own_field(small: Path) -> None:
+    """→ on the poles choice and Space on the continuous toggle, typed in one burst with
+    the field changes around them, change those fields and no other; Enter on a toggle
+    accepts the form."""
+    app = TriApp(small, journal=False)
+    async with app.run_test(size=(80, 24)) as pilot:
+        await settle(pilot)
+        await pilot.press("a")
+        assert isinstance(app.screen, FormScreen)
+        keys = [*"Kiln", "down", "down", "right", "down", "ctrl+u", *"16", "down", "right"]
+        keys += ["right", "down", "down", "down", "down", "space", "enter"]
+        _burst(app, keys)
+        await settle(pilot)
+        assert isinstance(app.screen, MainScreen)
+        c = next(c for c in app.session.schedule.circuits if c.name == "Kiln")
+        assert (c.poles, c.load_value, c.load_kind, c.continuous) == (2, 16, "a", True)

@@ -349,8 +349,9 @@ def updated_document(schedule: Schedule, original: TOMLDocument | None = None) -
 
 
 def schedule_text(schedule: Schedule, original: TOMLDocument | None = None) -> str:
-    """The TOML text that :func:`save_schedule` would write."""
-    return updated_document(schedule, original).as_string()
+    """The TOML text that :func:`save_schedule` would write (ending with a newline)."""
+    text = updated_document(schedule, original).as_string()
+    return text if text.endswith("\n") else text + "\n"
 
 
 def write_atomic(path: str | Path, text: str, *, backup: bool = True) -> Path | None:
@@ -402,6 +403,6 @@ def save_schedule(
 
     Returns the document written, to be kept as the new ``original``.
     """
-    doc = updated_document(schedule, original)
-    write_atomic(path, doc.as_string())
-    return doc
+    text = schedule_text(schedule, original)
+    write_atomic(path, text)
+    return tomlkit.parse(text)

@@ -21,7 +21,7 @@ from textual.widget import Widget
 from textual.widgets import Input, Label, Static
 
 from tri.tui.widgets.cycle import Cycle
-from tri.tui.widgets.ordered_input import OrderedInput
+from tri.tui.widgets.in_order import OrderedInput
 from tri.tui.widgets.toggle import Toggle
 
 Values = dict[str, Any]
@@ -65,6 +65,7 @@ class FormScreen(ModalScreen[Any]):
     BINDINGS: ClassVar[list[BindingType]] = [
         Binding("escape", "cancel", "Cancel", id="form.cancel"),
         Binding("ctrl+s", "accept", "Accept", id="form.accept"),
+        Binding("enter", "accept", "Accept", show=False),
         # Priority: field-to-field keys act when they arrive, before the keys
         # after them are handed to a field (a burst over SSH stays in order).
         Binding("down,tab", "app.focus_next", "Next", show=False, priority=True),

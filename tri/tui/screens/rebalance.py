@@ -27,7 +27,7 @@ from tri.tui import rebalance_bridge as bridge
 from tri.tui.fmt import parse_number
 from tri.tui.messages import RebalanceDone, RebalanceProgress
 from tri.tui.widgets.cycle import Cycle
-from tri.tui.widgets.ordered_input import OrderedInput
+from tri.tui.widgets.in_order import OrderedInput
 
 MODES = (
     ("fewest moves to target", "fewest-moves"),

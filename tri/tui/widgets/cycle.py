@@ -10,8 +10,10 @@ from textual.message import Message
 from textual.reactive import reactive
 from textual.widget import Widget
 
+from tri.tui.widgets.in_order import KeysInOrder
 
-class Cycle(Widget, can_focus=True):
+
+class Cycle(KeysInOrder, Widget, can_focus=True):
     """``choices`` are ``(label, value)``; ``value`` is the chosen value."""
 
     BINDINGS: ClassVar[list[BindingType]] = [

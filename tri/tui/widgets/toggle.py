@@ -10,8 +10,10 @@ from textual.message import Message
 from textual.reactive import reactive
 from textual.widget import Widget
 
+from tri.tui.widgets.in_order import KeysInOrder
 
-class Toggle(Widget, can_focus=True):
+
+class Toggle(KeysInOrder, Widget, can_focus=True):
     """Space toggles; y / n set it."""
 
     BINDINGS: ClassVar[list[BindingType]] = [
