@@ -4,12 +4,12 @@ References
 ----------
 1. IEC 61000-4-30, *Testing and measurement techniques - Power quality
    measurement methods*, supply voltage unbalance: ``u2 = |U2|/|U1|`` and
-   the formula from the three line-voltage magnitudes (β).
+   the formula from the three line-voltage magnitudes (β) (published).
 2. NEMA MG 1, *Motors and Generators*, Part 14 (14.35, "Effects of
    unbalanced voltages on the performance of polyphase induction motors"),
    percent voltage unbalance = max deviation from the average / average,
    worked example 460, 467, 450 V → 1.96 %, and the derating figure
-   (Fig. 14-1).
+   (Fig. 14-1) (published; the clause and figure numbers are from memory).
 3. IEEE Std 112 / IEEE usage: phase-voltage unbalance rate on the
    line-to-neutral magnitudes (from memory).
 """
@@ -21,8 +21,10 @@ import numpy as np
 from tri.engine.sequence import sequence_components, unbalance_pct
 
 #: NEMA MG 1 Fig. 14-1 derating curve, points read off the published figure
-#: (percent voltage unbalance [%], derating factor [-]). Between points the
-#: factor is interpolated linearly; read-off accuracy about ±0.01.
+#: (percent voltage unbalance [%], derating factor [-]); at 3 % and 5 % the
+#: reading is a range (0.88-0.89, 0.75-0.76) and its middle is used. Between
+#: points the factor is interpolated linearly; read-off accuracy ±0.02, as
+#: ``shared/spec/check-values.md`` allows.
 NEMA_DERATING_POINTS: tuple[tuple[float, float], ...] = (
     (0.0, 1.00),
     (1.0, 1.00),
