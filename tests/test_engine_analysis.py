@@ -42,10 +42,18 @@ def test_208y120_mixed_example():
 
     [computed] check-values.md "Neutral current": I_A = 18.954∠14.71°,
     I_B = 18.954∠−134.71°, I_C = 10∠120°, neutral 0, I_1 = 15.556∠0°,
-    I_2 = 5.556∠60°. Recomputed here from the definitions:
-    I_AB = conj(2000 / 208∠30°) = 9.615∠30°; I_A = 10∠0° + 9.615∠30°.
-    Tolerance: 1e-9 relative (pure floating point; the only approximation is
-    round-off) on recomputed values, 0.01 on the 3-4 digit printed figures.
+    I_2 = 5.556∠60°. Recomputed here from the definitions, with the engine's
+    |V_AB| = |V_A − V_B| = 120·√3 = 207.85 V (engine.md; the nameplate 208 is
+    rounded): I_AB = conj(2000 / (207.85∠30°)) = 9.623∠30°;
+    I_A = 10∠0° + 9.623∠30°. (With a rounded 208 V it would be 9.615 A and
+    |I_A| = 18.947 A, outside the printed figure.) The 2-pole load alone gives
+    I_1 = I_AB·(1 − a)/3 and I_2 = I_AB·(1 − a²)/3, with |1 − a| = |1 − a²| = √3,
+    i.e. 2000/360 A at 0° and 60°; the 1-pole set adds 10 A to I_1 only.
+    Tolerances: 1e-9 relative on the recomputed phasors (round-off only), 1e-12
+    on the closed forms; printed magnitudes (3 decimals) to 1e-3 and angles
+    (2 decimals) to 0.01, one unit of the last digit: the definition gives
+    14.7047°, which rounds to 14.70°, so check-values.md's 14.71° is one unit
+    off and half a unit would reject it.
     """
     c = linear([1200, 1200, 1200, 2000], [1, 1, 1, 2], [0, 1, 2, 0], [0, 1, 2, 1])
     a = analyse(c, SYS_208, Ratings(bus_a=225.0, main_a=200.0))
@@ -65,10 +73,16 @@ def test_208y120_mixed_example():
     assert a.sequence.i1.deg == pytest.approx(0.0, abs=1e-9)
     assert a.sequence.i2.magnitude == pytest.approx(5.556, abs=1e-3)
     assert a.sequence.i2.deg == pytest.approx(60.0, abs=1e-9)
+    i2_closed = 2000 / 360  # |I_AB| / √3 = 2000 / (120·√3·√3)
+    assert a.sequence.i1.magnitude == pytest.approx(1200 / 120 + i2_closed, rel=1e-12)
+    assert a.sequence.i2.magnitude == pytest.approx(i2_closed, rel=1e-12)
+    # 35.7 % printed to 1 decimal (half a unit, 0.05); exactly 100·(50/9)/(140/9) = 500/14
     assert a.current_unbalance.negative_sequence_pct == pytest.approx(35.7, abs=0.05)
+    assert a.current_unbalance.negative_sequence_pct == pytest.approx(500 / 14, rel=1e-12)
     # schedule VA bookkeeping: A = 1200 + 2000/2 = 2200 VA, not |I_A|·120 = 2274.5 VA
+    # (sums of the inputs: exact up to round-off, pytest's default 1e-6 is ample)
     assert a.phases[0].va == pytest.approx(2200.0)
-    assert a.phases[0].current_a * 120 == pytest.approx(2274.5, abs=0.05)
+    assert a.phases[0].current_a * 120 == pytest.approx(2274.5, abs=0.05)  # half a unit
     assert a.phases[2].va == pytest.approx(1200.0)
 
 
@@ -78,7 +92,9 @@ def test_bird_415v_resistive_neutral():
     Bird, Electrical Circuit Theory and Technology [from memory for the book];
     100.17 / 75.13 / 50.08 A, neutral 43.37 A [computed]. Recomputed: I = P / V_LN,
     and the closed form I_N = sqrt(Ia² + Ib² + Ic² − IaIb − IbIc − IcIa) for equal
-    power factors. Tolerance 0.005 A: the book's figures have 2 decimals.
+    power factors. Tolerance 0.005 A: the listed figures (check-values.md,
+    [computed]; the book is named from memory) have 2 decimals, half a unit.
+    1e-12 relative against the recomputed values: round-off only.
     """
     c = linear([24e3, 18e3, 12e3], [1, 1, 1], [0, 1, 2])
     a = analyse(c, SYS_415, Ratings(bus_a=200.0))
@@ -97,6 +113,8 @@ def test_three_pole_balanced_is_positive_sequence_only():
 
     The engine works from the phase voltages: 208Y/120 means V_LN = 120 V and
     V_AB = |V_A − V_B| = 120·√3 = 207.85 V (the nameplate 208 is rounded).
+    Per line |I| = 10 kVA / (3·120 V) [computed]; 1e-12 relative (round-off);
+    angles to pytest's default 1e-6 relative.
     """
     s = 10e3 * complex(0.8, 0.6)  # 10 kVA at 0.8 lagging
     c = linear([s], [THREE_PHASE], [0])
@@ -112,7 +130,11 @@ def test_three_pole_balanced_is_positive_sequence_only():
 
 
 def test_line_to_line_has_no_neutral_and_splits_va():
-    """A 2-pole load: +I_pq on p, −I_pq on q, nothing in the neutral (engine.md)."""
+    """A 2-pole load: +I_pq on p, −I_pq on q, nothing in the neutral (engine.md).
+
+    [computed] |I_BC| = 3000 VA / (120·√3 V); VA split in half per line (the
+    schedule convention, schedule-format.md). Exact up to round-off.
+    """
     c = linear([3000 * complex(0.85, math.sin(math.acos(0.85)))], [LINE_TO_LINE], [1], [2])
     a = analyse(c, SYS_208, Ratings(bus_a=100.0))
     assert a.phases[0].current_a == 0.0
