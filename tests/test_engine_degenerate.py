@@ -73,7 +73,10 @@ def test_empty_panel():
     all_finite(a)
     assert [p.rms_a for p in a.phases] == [0.0, 0.0, 0.0]
     assert a.current_unbalance.negative_sequence_pct == 0.0
+    # no current, no drop: V = E, a balanced set whose V2 is round-off of 208 V phasors
+    # (~1e-14 %); 1e-12 % is that round-off with margin
     assert a.voltage.vuf_pct == pytest.approx(0.0, abs=1e-12)
+    # no unbalance, no derating: the NEMA MG 1 curve is flat at 1.00 up to 1 % [published]
     assert a.voltage.motor_derating == 1.0
     assert a.findings == ()
     assert a.circuit_current_a == ()
@@ -91,6 +94,8 @@ def test_all_on_one_phase():
     """All load on phase A: I0 = I1 = I2 = I_A/3, unbalance 100 %, deviation 200 % [computed].
 
     Mean of (I, 0, 0) is I/3; deviation of A is 2I/3, i.e. 200 % of the mean.
+    I = 3600 VA / 120 V. Tolerances pytest's default 1e-6 relative: the values are
+    exact up to round-off.
     """
     a = analyse(arrays([1200, 2400], [1, 1], [0, 0], h=1), SYS, RATINGS, SUPPLY)
     all_finite(a)
@@ -114,7 +119,8 @@ def test_three_wire_system():
     assert a.voltage.phase_deviation_pct is None
     assert a.voltage.z_neutral_ohm == 0
     # V_LN = 480/√3 for the phasors: a 3-pole 5 kVA draws 5000/(√3·480) per line
-    assert a.circuit_current_a[1] == pytest.approx(5e3 / (math.sqrt(3) * 480))
+    # [computed]; 1e-12 relative (round-off)
+    assert a.circuit_current_a[1] == pytest.approx(5e3 / (math.sqrt(3) * 480), rel=1e-12)
 
 
 def test_three_wire_refuses_line_to_neutral():
@@ -127,7 +133,7 @@ def test_unplaced_rows_contribute_nothing():
     """New circuits not yet placed are left out and counted (padding rows, S = 0, are not)."""
     c = arrays([1000, 5000, 0], [LINE_TO_NEUTRAL, UNPLACED, UNPLACED], [0, 0, 0])
     a = analyse(c, SYS, RATINGS)
-    assert a.phases[0].rms_a == pytest.approx(1000 / 120)
+    assert a.phases[0].rms_a == pytest.approx(1000 / 120, rel=1e-12)  # [computed], round-off
     assert a.unplaced_count == 1
     assert a.circuit_current_a[1] == 0.0
     assert any("not placed" in f.message for f in a.findings)

@@ -215,6 +215,9 @@ def test_engine_equals_scalar_reference(circuits):
     close(b.circuit_rms_a, ref["circ_rms"], scale)
     close(b.phase_loading_pct, np.array(ref["rms"]) / 300 * 100, scale)
     close(b.v_phase, ref["v_phase"], 277.0)
+    # VUF = 100·|V2|/|V1| from voltages that agree to round-off: rtol 1e-6 is generous
+    # for VUFs of a few %, and atol 1e-9 % covers near-balanced panels, where V2 is
+    # itself little more than round-off of ~480 V line voltages (~1e-13 V → 1e-14 %)
     np.testing.assert_allclose(float(b.vuf_pct), ref["vuf"], rtol=1e-6, atol=1e-9)
     # THD and deviation are ratios; compare where the denominator is not round-off
     fund = np.abs(np.array([ref["lines"][m][0] for m in range(3)]))
@@ -223,6 +226,9 @@ def test_engine_equals_scalar_reference(circuits):
     # (round-off); relative to a fundamental of at least 1e-6 of it that is 1e-6.
     np.testing.assert_allclose(b.phase_thd_pct[ok], np.array(ref["thd"])[ok], rtol=1e-6, atol=1e-4)
     if min(ref["rms"]) > 1e-6 * scale:
+        # the deviation is a difference of RMS currents that agree to 1e-9 of the panel
+        # current, divided by their mean: its error is amplified by scale / mean (≤ 1e6
+        # by the guard above) — rtol 1e-6 and atol 1e-7 % cover that round-off
         np.testing.assert_allclose(float(b.max_deviation_pct), ref["dev"], rtol=1e-6, atol=1e-7)
 
 
