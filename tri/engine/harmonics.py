@@ -22,9 +22,12 @@ Rules (``shared/spec/engine.md``):
 
 References
 ----------
-1. IEEE 519, definitions of harmonic order, RMS and THD.
+1. IEEE 519, definitions of harmonic order, RMS and THD (from memory; the
+   formulas used are those of ``shared/spec/engine.md``).
 2. R. C. Dugan et al., *Electrical Power Systems Quality*, ch. 5 (triplen
-   harmonics add in the neutral; 3-wire loads draw no triplens).
+   harmonics add in the neutral; 3-wire loads draw no triplens) (from
+   memory; both facts also follow from the sequence of each order,
+   [computed]).
 """
 
 from __future__ import annotations

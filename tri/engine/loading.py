@@ -13,13 +13,15 @@ References
    current-carrying conductor when the major portion of a 4-wire wye load
    is non-linear (published).
 2. EN 50160, supply voltage unbalance 2 % (95 % of 10-min values over a
-   week); IEC 61000-2-2 compatibility level 2 % (from memory).
+   week) (published); IEC 61000-2-2 compatibility level 2 % (from memory).
 3. ANSI C84.1, voltage unbalance 3 % at the meter under no load
    (published, secondary).
 4. NEMA MG 1 Part 14: motors rated for 1 % voltage unbalance, derating
    above it, operation above 5 % not recommended (published).
 5. R. C. Dugan et al., *Electrical Power Systems Quality*, ch. 5: triplen
-   harmonics add in the neutral.
+   harmonics add in the neutral (from memory; that a neutral can approach
+   √3 × the phase current is common practice and follows from the
+   definitions, see ``shared/spec/check-values.md``).
 """
 
 from __future__ import annotations
@@ -47,13 +49,17 @@ class FindingLimits:
         [%] (common practice rule of thumb, not a code requirement).
     nonlinear_major_pct : float
         Share of non-linear load above which the neutral counts as a
-        current-carrying conductor [%] (NEC 310.15(E): "major portion").
+        current-carrying conductor [%] (NEC 310.15(E): "major portion",
+        published; "major" read as more than half).
     vuf_warn_pct : float
-        Voltage unbalance warning [%] (EN 50160, IEC 61000-2-2: 2 %).
+        Voltage unbalance warning [%] (EN 50160, published; IEC 61000-2-2,
+        from memory: 2 %).
     vuf_limit_pct : float
-        Voltage unbalance limit [%] (ANSI C84.1: 3 % at the meter, no load).
+        Voltage unbalance limit [%] (ANSI C84.1: 3 % at the meter, no load;
+        published, secondary).
     motor_unbalance_pct : float
-        NEMA percent unbalance above which motors derate [%] (NEMA MG 1: 1 %).
+        NEMA percent unbalance above which motors derate [%] (NEMA MG 1: 1 %,
+        published).
     drop_warn_pct : float
         Voltage drop at the panel worth a note [%] (NEC informational
         notes: 3 % on a feeder, 5 % feeder plus branch; from memory).

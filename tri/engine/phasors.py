@@ -37,9 +37,9 @@ from an unbalanced supply is not modelled.
 References
 ----------
 1. H. Saadat, *Power System Analysis*, ch. 10 (phasor and sequence
-   conventions).
+   conventions) (from memory for the chapter).
 2. W. H. Kersting, *Distribution System Modeling and Analysis*, ch. 9
-   (line-to-line loads on a four-wire wye).
+   (line-to-line loads on a four-wire wye) (from memory for the chapter).
 """
 
 from __future__ import annotations

@@ -46,13 +46,18 @@ Built-in profiles and their sources (tags as in ``shared/spec/check-values.md``)
 References
 ----------
 1. IEC 61000-3-2, *Limits for harmonic current emissions (equipment input
-   current ≤ 16 A per phase)*, Tables 2 (Class C) and 3 (Class D).
+   current ≤ 16 A per phase)*, Tables 2 (Class C) and 3 (Class D) (limits
+   published; the table numbers are from memory).
 2. IEEE 519, *Recommended Practice and Requirements for Harmonic Control in
-   Electric Power Systems* (definitions of harmonic order and THD).
+   Electric Power Systems* (definitions of harmonic order and THD) (from
+   memory).
 3. R. C. Dugan, M. F. McGranaghan, S. Santoso, H. W. Beaty, *Electrical
-   Power Systems Quality*, ch. 5 (switch-mode power supply spectrum).
+   Power Systems Quality*, ch. 5 (switch-mode power supply spectrum) (from
+   memory).
 4. N. Mohan, T. M. Undeland, W. P. Robbins, *Power Electronics*, ch. 5
-   (line current of a three-phase diode bridge with a large DC inductance).
+   (line current of a three-phase diode bridge with a large DC inductance)
+   (from memory for the book and chapter; the ``sin(h·60°)/h`` coefficients
+   are [computed] from the ideal waveform).
 """
 
 from __future__ import annotations

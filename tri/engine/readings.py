@@ -9,8 +9,9 @@ needed).
 
 References
 ----------
-1. IEC 61000-4-30, voltage unbalance from line-voltage magnitudes.
-2. NEMA MG 1 Part 14, percent voltage unbalance and derating.
+1. IEC 61000-4-30, voltage unbalance from line-voltage magnitudes
+   (published formula).
+2. NEMA MG 1 Part 14, percent voltage unbalance and derating (published).
 3. NEC 408.4, circuit directory kept current (from memory).
 """
 

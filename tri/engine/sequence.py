@@ -6,9 +6,13 @@ voltages, AB, BC, CA); leading axes are batch dimensions.
 References
 ----------
 1. C. L. Fortescue, "Method of symmetrical co-ordinates applied to the
-   solution of polyphase networks", *AIEE Trans.* 37 (1918) 1027-1140.
-2. H. Saadat, *Power System Analysis*, sec. 10.2, eqs. (10.7)-(10.9).
-3. IEC 61000-4-30, unbalance: ``u2 = |U2| / |U1|``.
+   solution of polyphase networks", *AIEE Trans.* 37 (1918) 1027-1140
+   (from memory).
+2. H. Saadat, *Power System Analysis*, sec. 10.2, eqs. (10.7)-(10.9) (the
+   section and equation numbers are from memory; the equations are those of
+   ``shared/spec/engine.md``, and Examples 10.1-10.2 are the tests' check
+   values).
+3. IEC 61000-4-30, unbalance: ``u2 = |U2| / |U1|`` (published).
 """
 
 from __future__ import annotations

@@ -8,10 +8,12 @@ harmonic voltage drops are not modelled.
 References
 ----------
 1. J. D. Glover, M. S. Sarma, T. J. Overbye, *Power System Analysis and
-   Design*, ch. 3 (per-unit impedance, ``Z_base = V_LL² / S_3φ``).
+   Design*, ch. 3 (per-unit impedance, ``Z_base = V_LL² / S_3φ``) (from
+   memory; the formulas are checked [computed] in the tests).
 2. W. H. Kersting, *Distribution System Modeling and Analysis*, ch. 6 and 10
-   (forward sweep of constant-power loads).
-3. NFPA 70 (NEC) Chapter 9 Table 9 (conductor R and X per length).
+   (forward sweep of constant-power loads) (from memory).
+3. NFPA 70 (NEC) Chapter 9 Table 9 (conductor R and X per length, and its
+   "effective Z" at 0.85 PF) (published).
 """
 
 from __future__ import annotations

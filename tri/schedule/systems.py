@@ -1,7 +1,8 @@
 """Catalogue of supply systems a panel may be fed from.
 
-Nominal voltages per IEC 60038 (400/230 V) and North American practice
-(208Y/120, 480Y/277, 600Y/347 V) [common practice].
+Nominal voltages per IEC 60038 (400/230 V) [published] and North American
+practice (208Y/120, 480Y/277, 600Y/347 V) [common practice]; 415/240 V is an
+older IEC / Australian nominal [from memory].
 """
 
 from __future__ import annotations
