@@ -60,23 +60,28 @@ def test_load_in_amperes_is_line_current() -> None:
     # (engine.md) [computed], so that amps in give the same amps out.
     s = SYSTEMS["208Y/120"]
     v_ll = math.sqrt(3) * 120
+    # 10 A · 120 V: an exact product; tolerances 1e-12 relative below (round-off of √3)
     assert Circuit("x", poles=1, load_kind="a", load_value=10).apparent_power_va(s) == 1200
     two = Circuit("x", poles=2, load_kind="a", load_value=10).apparent_power_va(s)
     assert two == pytest.approx(10 * v_ll, rel=1e-12)
     three = Circuit("x", poles=3, load_kind="a", load_value=10).apparent_power_va(s)
     assert three == pytest.approx(math.sqrt(3) * 10 * v_ll, rel=1e-12)
-    # 480D has no neutral: its line voltage is the system's own 480 V.
+    # 480D has no neutral: its line voltage is the system's own 480 V (10 A · 480 V).
     delta = Circuit("x", poles=2, load_kind="a", load_value=10).apparent_power_va(SYSTEMS["480D"])
     assert delta == pytest.approx(4800, rel=1e-12)
 
 
 def test_load_in_watts_uses_power_factor_and_sign_of_q() -> None:
     s = SYSTEMS["480Y/277"]
+    # [computed] S = P / pf = 850 / 0.85 = 1000 VA, Q = S·sin(acos pf) > 0 lagging
+    # (engine.md); leading flips the sign of Q. Round-off only: 1e-12 relative.
     lag = Circuit("m", load_kind="w", load_value=850, pf=0.85)
     lead = Circuit("m", load_kind="w", load_value=850, pf=0.85, leading=True)
-    assert lag.apparent_power_va(s) == pytest.approx(1000)
-    assert lag.complex_power_va(s) == pytest.approx(complex(850, 1000 * math.sqrt(1 - 0.85**2)))
-    assert lead.complex_power_va(s).imag == pytest.approx(-lag.complex_power_va(s).imag)
+    assert lag.apparent_power_va(s) == pytest.approx(1000, rel=1e-12)
+    assert lag.complex_power_va(s) == pytest.approx(
+        complex(850, 1000 * math.sqrt(1 - 0.85**2)), rel=1e-12
+    )
+    assert lead.complex_power_va(s).imag == pytest.approx(-lag.complex_power_va(s).imag, rel=1e-12)
 
 
 def test_defaults_follow_the_format() -> None:
@@ -102,9 +107,11 @@ load_va = 100
         False,
         False,
     )
-    assert c.phases == (1,)  # slot 4 is on phase B
+    assert c.phases == (1,)  # slot 4 is on phase B: row (4 + 1)//2 = 2 [common practice]
+    # 60 Hz: the catalogue's frequency for 208Y/120 (North American practice [common
+    # practice]; schedule-format.md names no default) when the file gives none
     assert s.panel.frequency_hz == 60
-    assert s.panel.effective_neutral_a == 100
+    assert s.panel.effective_neutral_a == 100  # neutral_a defaults to bus_a (schedule-format.md)
     assert s.panel.phase_labels == ("A", "B", "C")
 
 
