@@ -111,8 +111,10 @@ def test_json_follows_the_contract_and_is_alone_on_stdout(panel_file: Path) -> N
         assert m["to_slot"] is None or isinstance(m["to_slot"], int)
     # before-figures are the engine's on the file [same engine as tri report]
     eng = analyse_schedule(load_schedule(panel_file).schedule)
+    # rel 1e-8: the JSON rounds to 9 significant digits
     assert data["before"]["phases_rms_a"]["A"] == pytest.approx(eng.phases[0].rms_a, rel=1e-8)
     if data["status"] in ("optimal", "best-found") and data["target_met"]:
+        # the --target 5 given above; 1e-9 %: round-off slack at the boundary
         assert data["after"]["max_deviation_pct"] <= 5.0 + 1e-9
     assert data["caution"] == SAFETY_CAUTION
     names = [m["circuit"] for m in data["moves"]]
@@ -162,6 +164,7 @@ def test_write_keeps_comments_and_moves_the_breakers(panel_file: Path, tmp_path:
     assert by_name["Planned welder outlet"].is_placed
     assert by_name["Bench sockets"].slot == 7
     eng = analyse_schedule(after)
+    # the engine on the written file; rel 1e-8: the JSON rounds to 9 significant digits
     assert data["after"]["max_deviation_pct"] == pytest.approx(
         eng.current_unbalance.max_deviation_pct, rel=1e-8
     )
