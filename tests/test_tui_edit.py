@@ -165,7 +165,7 @@ async def test_undo_redo_delete_and_lock(small: Path) -> None:
         await settle(pilot)
         moved = next(c for c in app.session.schedule.circuits if c.name == "Signage")
         assert moved.slot == 11
-        assert moved.phases == (2,)  # slot 11 is in row 6: phase C
+        assert moved.phases == (2,)  # slot 11 is in row 6: phase C [common practice]
         await pilot.press("ctrl+z", "ctrl+z", "ctrl+z")
         await settle(pilot)
         assert app.session.schedule == original

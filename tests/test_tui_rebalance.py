@@ -86,6 +86,8 @@ async def test_run_shows_work_order_and_applies_all_then_undo(
         assert [m.before.name for m in screen.plan.moves] == ["Dishwasher", "Future espresso"]
         table = screen.query_one("#rb-moves-table", DataTable)
         order = str(table.get_row_at(0)[2])
+        # phases from the slot geometry [common practice, check-values.md]: row (n + 1)//2,
+        # rows cycling A, B, C: slot 4 is row 2 (B); slots 11 and 12 are row 6 (C)
         assert order == 'Move "Dishwasher": slot 4 (B) → slot 11 (C)'
         assert 'Place new "Future espresso" in slot 12 (C)' in str(table.get_row_at(1)[2])
         figures = str(screen.query_one("#rb-figures").render())
