@@ -32,7 +32,8 @@ finite = st.floats(-1e4, 1e4, allow_nan=False)
 
 
 def test_default_polygon_error_is_below_half_a_percent() -> None:
-    # 1/cos(pi/36) - 1 = 0.003820 [computed]
+    # 1/cos(pi/36) - 1 = 0.003820 [computed] (DEFAULT_SIDES is 36); pytest's default
+    # 1e-6 relative: the same closed form, equal up to round-off
     assert polygon_error(DEFAULT_SIDES) == pytest.approx(1 / math.cos(math.pi / 36) - 1)
     assert polygon_error(DEFAULT_SIDES) < 0.005
 
@@ -60,6 +61,7 @@ def test_polygon_bound_is_attained_halfway_between_directions(m: int) -> None:
     z = 5.0 * complex(math.cos(math.pi / m), math.sin(math.pi / m))
     assert float(polygon_norm(z, m)) == pytest.approx(5.0 * math.cos(math.pi / m), rel=1e-12)
     # and the constraint set {P_m <= R} reaches R / cos(pi/m): relative error polygon_error(m)
+    # (rel 1e-9: "x - 1" of x ≈ 1.0005..1.08 keeps all but ~3 of the 16 digits)
     assert abs(z) / float(polygon_norm(z, m)) - 1 == pytest.approx(polygon_error(m), rel=1e-9)
 
 
@@ -72,7 +74,9 @@ def test_polygon_bound_is_attained_halfway_between_directions(m: int) -> None:
     width=st.floats(0.01, 0.5),
 )
 def test_sector_upper_bound(start: float, span: float, frac: float, mag: float, width: float):
-    # Theorem 2: inside its sector, |z| <= <z, centre> / cos(half-width)
+    # Theorem 2: inside its sector, |z| <= <z, centre> / cos(half-width) [computed]
+    # (tolerances 1e-9 relative and absolute: round-off of cos/sin of the drawn angles,
+    # far below the ≥ 0.01 rad sector widths drawn)
     sec = sectors(start, start + span, width)
     ang = start + frac * span
     z = mag * complex(math.cos(ang), math.sin(ang))
@@ -98,6 +102,9 @@ def test_reach_contains_every_point(pts: list[tuple[float, float]]) -> None:
     dirs = polygon_directions(72)
     support = np.max(np.real(np.conj(dirs)[:, None] * z[None, :]), axis=1)
     r = reach_from_support(dirs, support)
+    # tolerances 1e-9 relative + 1e-6 absolute: points up to |z| ≈ 1.4e4 and support
+    # values built from cos/sin of 72 directions, so round-off is ~1e-12 of that, with
+    # margin; a real miss would be of the order of the polygon error (≥ 1e-3 relative)
     assert np.all(np.abs(z) <= r.max_abs * (1 + 1e-9) + 1e-6)
     assert np.all(np.abs(z) >= r.min_abs * (1 - 1e-9) - 1e-6)
     if r.angle_stop - r.angle_start < 2 * math.pi - 1e-9:
@@ -139,7 +146,8 @@ def test_floor_is_invariant_and_below_every_phase(seed: int) -> None:
             [rng.integers(pr.starts[i], pr.starts[i + 1]) for i in range(pr.n_free)], dtype=int
         )
         v, n = spectra(pr, assign)
-        # F is the same for every plan (problem notes) [computed]
+        # F is the same for every plan (problem notes) [computed]; rel 1e-9: the same
+        # sums taken over differently assigned spectra (round-off only)
         assert floor_of(v, pr.orders) == pytest.approx(pr.floor_a, rel=1e-9)
         r = np.sqrt(np.sum(np.abs(v) ** 2, axis=1))
         assert r.max() >= pr.floor_a * (1 - 1e-12)
@@ -150,7 +158,8 @@ def test_floor_is_invariant_and_below_every_phase(seed: int) -> None:
 
 
 def test_floor_is_the_positive_sequence_current_for_linear_loads() -> None:
-    # with linear loads F = |I1|, the engine's positive-sequence magnitude
+    # with linear loads F = |I1|, the engine's positive-sequence magnitude [computed]
+    # (rel 1e-9: two routes to the same sums, round-off only)
     rng = np.random.default_rng(3)
     schedule = random_two_column(rng, 14, harmonics=False)
     pr = build_problem(schedule, [])
