@@ -39,6 +39,9 @@ def check_plan(before: Schedule, s: Suggestion) -> None:
     assert_sound(after)
     assert apply_moves(before, s.moves) == after
     eng = analyse_schedule(after)
+    # the plan's after-figures against the engine on the written schedule: rel 1e-12,
+    # the same engine arithmetic, so anything above round-off is a wrong figure;
+    # limits compared with (1 + 1e-9) + 1e-12 slack for round-off at the boundary
     assert s.after.phases_rms_a == pytest.approx([p.rms_a for p in eng.phases], rel=1e-12)
     assert s.after.max_deviation_pct == pytest.approx(
         eng.current_unbalance.max_deviation_pct, rel=1e-12
@@ -128,7 +131,8 @@ def test_full_panel_swaps_through_set_aside() -> None:
     # resistive VA at 120 V, so currents are VA/120 [computed]: A 6000, B 3600,
     # C 3600 VA. Four slots per phase; the best split puts two 1500 VA breakers
     # with two 900 VA on one phase (4800) and one with three (4200) on the
-    # others: mean 4400, deviation 9.1 % -> two swaps, four relocations.
+    # others: mean 4400, deviation 400/4400 = 9.1 % -> two swaps, four relocations.
+    # (rel 1e-9 below: the engine's RMS currents, round-off only)
     schedule = full_panel()
     s = suggest(schedule, SuggestOptions(target_pct=10.0, time_limit_s=5))
     check_plan(schedule, s)
@@ -140,7 +144,8 @@ def test_full_panel_swaps_through_set_aside() -> None:
 
 def test_full_panel_out_of_reach_is_infeasible() -> None:
     # 3000 VA breakers: the best split is 7200 / 4800 / 4800 VA, deviation 28.6 %
-    # [computed as above], so 10 % cannot be reached whatever moves
+    # [computed as above], so 10 % cannot be reached whatever moves: mean 5600,
+    # deviation 1600/5600 (rel 1e-9: round-off only)
     schedule = full_panel(3000.0, 600.0)
     s = suggest(schedule, SuggestOptions(target_pct=10.0, time_limit_s=5))
     check_plan(schedule, s)
@@ -163,7 +168,7 @@ def test_locked_circuits_stay_even_when_they_unbalance() -> None:
 
 def test_place_new_two_pole_needs_a_window() -> None:
     # a 2-pole breaker needs two consecutive rows in one column with phases A-B,
-    # B-C or C-A [common practice]
+    # B-C or C-A [common practice, check-values.md "Panel and code facts"]
     circuits = (
         circuit("Lights", 1500, slot=1),
         circuit("Sockets", 1500, slot=3),
@@ -193,6 +198,7 @@ def test_relayout_reaches_near_the_floor() -> None:
     s = suggest(schedule, SuggestOptions(relayout=True, time_limit_s=3))
     check_plan(schedule, s)
     # the floor is a lower bound (problem notes); a re-layout of 20 circuits gets close
+    # (1e-12 relative and 1e-9 A: round-off slack only)
     assert s.after.max_phase_rms_a >= s.floor_a * (1 - 1e-12)
     assert s.after.max_phase_rms_a <= s.before.max_phase_rms_a + 1e-9
 
