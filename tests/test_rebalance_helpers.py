@@ -142,6 +142,7 @@ class Exhaustive:
 
     def fewest_moves(self, target_pct: float, neutral_max: float | None = None) -> int | None:
         """Fewest moves meeting the target (None: no assignment meets it)."""
+        # (1 + 1e-9) + 1e-12: the same round-off slack the rebalancer's checks use
         ok = self.deviation <= target_pct * (1 + 1e-9) + 1e-12
         if neutral_max is not None:
             ok &= self.neutral <= neutral_max * (1 + 1e-9)
@@ -231,5 +232,5 @@ def test_exhaustive_reference_counts_every_assignment() -> None:
     ex = exhaustive_rail(s)
     assert ex.moves.shape == (27,)
     assert int(np.sum(ex.moves == 0)) == 1
-    # three equal resistive loads one per phase: balanced [computed]
+    # three equal resistive loads one per phase: balanced [computed] (3^3 = 27 assignments)
     assert ex.fewest_moves(0.0) == 0
