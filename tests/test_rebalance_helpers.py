@@ -142,7 +142,7 @@ class Exhaustive:
 
     def fewest_moves(self, target_pct: float, neutral_max: float | None = None) -> int | None:
         """Fewest moves meeting the target (None: no assignment meets it)."""
-        # (1 + 1e-9) + 1e-12: the same round-off slack the rebalancer's checks use
+        # (1 + 1e-9) + 1e-12: round-off slack at the target, the same the plan tests allow
         ok = self.deviation <= target_pct * (1 + 1e-9) + 1e-12
         if neutral_max is not None:
             ok &= self.neutral <= neutral_max * (1 + 1e-9)
