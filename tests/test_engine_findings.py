@@ -218,11 +218,9 @@ def test_finding_sources_carry_the_tags_of_check_values():
     """Where check-values.md tags a source, the finding's source repeats the tag.
 
     NEC 210.20(A)/215.2(A)/230.42(A) (125 % continuous) and NEC 408.4 are
-    [from memory]; NEC 310.15(E) and NEMA MG 1 Part 14 are [published].
-    (Not yet covered: the VUF sources "EN 50160 and IEC 61000-2-2" and
-    "ANSI C84.1" carry no tag in the finding text, nor do the Dugan et al.
-    citations; finding text is report output, so that is left to a change of
-    the engine's messages and goldens.)
+    [from memory]; NEC 310.15(E) and NEMA MG 1 Part 14 are [published];
+    EN 50160 [published], IEC 61000-2-2 [from memory], ANSI C84.1 [published,
+    secondary]; Dugan et al. is cited [from memory].
     """
     weak = SupplyImpedance(
         transformer_kva=45.0, transformer_z_pct=6.0, transformer_x_r=1.5, feeder_length_m=60
@@ -235,7 +233,13 @@ def test_finding_sources_carry_the_tags_of_check_values():
             TestReadings.c,
             SYS,
             Ratings(100.0),
-            readings=MeasuredReadings(phase_amps=(60.0, None, 30.0)),
+            readings=MeasuredReadings(phase_amps=(60.0, None, 30.0), neutral_amps=35.0),
+        ),
+        analyse(
+            TestReadings.c,
+            SYS,
+            Ratings(100.0),
+            readings=MeasuredReadings(volts_ll=(400.0, 400.0, 380.0)),
         ),
     ]
     sources = [f.source for a in runs for f in a.findings]
@@ -244,12 +248,39 @@ def test_finding_sources_carry_the_tags_of_check_values():
         "408.4": "from memory",
         "310.15(E)": "(published)",
         "NEMA MG 1": "(published)",
+        "EN 50160": "(published)",
+        "IEC 61000-2-2": "(from memory)",
+        "ANSI C84.1": "(published, secondary)",
+        "Dugan": "from memory",
     }
     for cited, tag in rules.items():
         hits = [src for src in sources if cited in src]
         assert hits, f"no finding cites {cited}"
         for src in hits:
             assert tag in src, f"{cited}: {src!r} lacks {tag!r}"
+
+
+def test_ansi_limit_is_judged_on_the_line_voltage_deviation_not_on_vuf():
+    """ANSI C84.1's 3 % uses the NEMA definition (largest deviation from the mean), not
+    |V2|/|V1| [published, secondary; check-values.md]. 480/497/471 V [computed]: VUF by
+    the beta formula 3.17 % (> 2 %, EN 50160 warning), deviation 2.97 % (< 3 %: no ANSI
+    limit); 400/400/380 V (check-values.md table): deviation 3.39 % > 3 %: the limit."""
+    u = (480.0, 497.0, 471.0)
+    mean = sum(u) / 3
+    dev = 100 * max(abs(x - mean) for x in u) / mean
+    assert dev == pytest.approx(2.97, abs=5e-3)
+    a = analyse(TestReadings.c, SYS, Ratings(bus_a=100.0), readings=MeasuredReadings(volts_ll=u))
+    assert a.readings.vuf_pct == pytest.approx(3.17, abs=5e-3)
+    assert any(f.level == "warning" and "EN 50160" in f.source for f in a.findings)
+    assert not any("ANSI C84.1" in f.source for f in a.findings)
+    b = analyse(
+        TestReadings.c,
+        SYS,
+        Ratings(bus_a=100.0),
+        readings=MeasuredReadings(volts_ll=(400.0, 400.0, 380.0)),
+    )
+    ansi = [f for f in b.findings if "ANSI C84.1" in f.source]
+    assert len(ansi) == 1 and ansi[0].level == "limit" and "3.39 %" in ansi[0].message
 
 
 def test_engine_imports_no_ui_or_io_libraries():

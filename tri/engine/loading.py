@@ -55,8 +55,10 @@ class FindingLimits:
         Voltage unbalance warning [%] (EN 50160, published; IEC 61000-2-2,
         from memory: 2 %).
     vuf_limit_pct : float
-        Voltage unbalance limit [%] (ANSI C84.1: 3 % at the meter, no load;
-        published, secondary).
+        Line-voltage unbalance limit [%], on the largest deviation of the
+        line-voltage magnitudes from their mean (the NEMA definition, which
+        ANSI C84.1 also uses): 3 % at the meter, no load (published,
+        secondary). Not compared with the VUF, which is a different figure.
     motor_unbalance_pct : float
         NEMA percent unbalance above which motors derate [%] (NEMA MG 1: 1 %,
         published).
@@ -191,7 +193,8 @@ def panel_findings(a: PanelAnalysis, limits: FindingLimits) -> list[Finding]:
                     f"Neutral RMS {_fmt(n.rms_a)} A exceeds the largest phase current "
                     f"({_fmt(max_phase)} A, ratio {n.ratio_to_max_phase:.2f}): triplen "
                     "harmonics add in the neutral.",
-                    "common practice; Dugan et al., Electrical Power Systems Quality, ch. 5; "
+                    "common practice; Dugan et al., Electrical Power Systems Quality, "
+                    "ch. 5 (from memory); "
                     + LOCAL,
                 )
             )
@@ -240,7 +243,8 @@ def three_pole_triplen_finding() -> Finding:
         "info",
         "Triplen harmonics (3rd, 9th, …) of 3-pole circuits were left out: a 3-wire load "
         "cannot draw zero-sequence current without a neutral.",
-        "circuit theory (zero-sequence current needs a return path); Dugan et al., ch. 5",
+        "circuit theory (zero-sequence current needs a return path); "
+        "Dugan et al., ch. 5 (from memory)",
     )
 
 
@@ -325,23 +329,24 @@ def unbalance_findings(
     """
     out: list[Finding] = []
     what = f"{prefix}voltage unbalance" if prefix else "Voltage unbalance"
-    if vuf is not None:
-        if vuf > limits.vuf_limit_pct:
-            out.append(
-                Finding(
-                    "limit",
-                    f"{what} (VUF) {vuf:.2f} % exceeds {limits.vuf_limit_pct:g} %.",
-                    f"ANSI C84.1 (3 % at the meter, no load); {LOCAL}",
-                )
+    if vuf is not None and vuf > limits.vuf_warn_pct:
+        out.append(
+            Finding(
+                "warning",
+                f"{what} (VUF) {vuf:.2f} % exceeds {limits.vuf_warn_pct:g} %.",
+                "EN 50160, 2 % (published); IEC 61000-2-2 compatibility level 2 % "
+                f"(from memory); {LOCAL}",
             )
-        elif vuf > limits.vuf_warn_pct:
-            out.append(
-                Finding(
-                    "warning",
-                    f"{what} (VUF) {vuf:.2f} % exceeds {limits.vuf_warn_pct:g} %.",
-                    f"EN 50160 and IEC 61000-2-2 (2 %); {LOCAL}",
-                )
+        )
+    if line_dev is not None and line_dev > limits.vuf_limit_pct:
+        out.append(
+            Finding(
+                "limit",
+                f"{what} {line_dev:.2f} % (largest deviation of the line voltages from "
+                f"their mean) exceeds {limits.vuf_limit_pct:g} %.",
+                f"ANSI C84.1, 3 % at the meter under no load (published, secondary); {LOCAL}",
             )
+        )
     if line_dev is not None and line_dev > limits.motor_unbalance_pct:
         if derating is None:
             out.append(

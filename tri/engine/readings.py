@@ -168,7 +168,7 @@ def compare_readings(
                         f"{fund:.1f} A; the harmonic profiles account for it (computed RMS "
                         f"{rms_c:.1f} A).",
                         "comparison with readings; triplen harmonics add in the neutral "
-                        "(Dugan et al., ch. 5)",
+                        "(Dugan et al., ch. 5, from memory)",
                     )
                 )
             else:
@@ -180,7 +180,7 @@ def compare_readings(
                         "from non-linear loads the schedule treats as linear, or a stale "
                         "schedule.",
                         "comparison with readings; triplen harmonics add in the neutral "
-                        f"(Dugan et al., ch. 5); {LOCAL}",
+                        f"(Dugan et al., ch. 5, from memory); {LOCAL}",
                     )
                 )
         elif fund > floor and nm < 0.5 * fund:
