@@ -7,10 +7,9 @@ engine's numbers for the schedule it shows, and that keys edit the right thing.
 
 from __future__ import annotations
 
-import shutil
 from pathlib import Path
 
-import pytest
+from tui_support import settle
 
 from tri.schedule.load import load_schedule
 from tri.schedule.to_engine import analyse_schedule
@@ -21,25 +20,6 @@ from tri.tui.widgets.circuit_table import CircuitTable
 from tri.tui.widgets.results_panel import ResultsPanel
 
 DATA = Path(__file__).parent / "data" / "tui"
-
-
-@pytest.fixture(autouse=True)
-def _state(tmp_path: Path, monkeypatch: pytest.MonkeyPatch) -> None:
-    monkeypatch.setenv("XDG_STATE_HOME", str(tmp_path / "state"))
-
-
-@pytest.fixture
-def small(tmp_path: Path) -> Path:
-    target = tmp_path / "small.toml"
-    shutil.copy(DATA / "small.toml", target)
-    return target
-
-
-async def settle(pilot) -> None:
-    """Let key handlers run, wait for the engine worker, then for its message."""
-    await pilot.pause()
-    await pilot.app.workers.wait_for_complete()
-    await pilot.pause()
 
 
 def results_text(app: TriApp) -> str:

@@ -2,10 +2,10 @@
 
 from __future__ import annotations
 
-import shutil
 from pathlib import Path
 
 import pytest
+from tui_support import settle
 
 from tri.schedule.journal import journal_path, read_journal
 from tri.schedule.load import load_schedule
@@ -19,24 +19,6 @@ from tri.tui.screens.picker import PickerScreen
 from tri.tui.screens.text_view import TextScreen
 
 DATA = Path(__file__).parent / "data" / "tui"
-
-
-@pytest.fixture(autouse=True)
-def _state(tmp_path: Path, monkeypatch: pytest.MonkeyPatch) -> None:
-    monkeypatch.setenv("XDG_STATE_HOME", str(tmp_path / "state"))
-
-
-@pytest.fixture
-def small(tmp_path: Path) -> Path:
-    target = tmp_path / "small.toml"
-    shutil.copy(DATA / "small.toml", target)
-    return target
-
-
-async def settle(pilot) -> None:
-    await pilot.pause()
-    await pilot.app.workers.wait_for_complete()
-    await pilot.pause()
 
 
 async def delete_first(pilot) -> str:

@@ -7,7 +7,6 @@ that returns a fixed proposal; the figures shown are still the engine's.
 
 from __future__ import annotations
 
-import shutil
 import threading
 import time
 from pathlib import Path
@@ -15,6 +14,7 @@ from types import SimpleNamespace
 
 import pytest
 from textual.widgets import DataTable
+from tui_support import settle
 
 from tri.cli.common import SAFETY_CAUTION
 from tri.schedule.to_engine import analyse_schedule
@@ -24,18 +24,6 @@ from tri.tui.screens.main import MainScreen
 from tri.tui.screens.rebalance import RebalanceScreen
 
 DATA = Path(__file__).parent / "data" / "tui"
-
-
-@pytest.fixture(autouse=True)
-def _state(tmp_path: Path, monkeypatch: pytest.MonkeyPatch) -> None:
-    monkeypatch.setenv("XDG_STATE_HOME", str(tmp_path / "state"))
-
-
-@pytest.fixture
-def small(tmp_path: Path) -> Path:
-    target = tmp_path / "small.toml"
-    shutil.copy(DATA / "small.toml", target)
-    return target
 
 
 def index_of(schedule, name: str) -> int:
@@ -60,12 +48,6 @@ def slow_stand_in(schedule, *, progress=None, cancel=None, **_):
         progress(None, "still searching")
         time.sleep(0.01)
     raise RuntimeError("cancelled")
-
-
-async def settle(pilot) -> None:
-    await pilot.pause()
-    await pilot.app.workers.wait_for_complete()
-    await pilot.pause()
 
 
 async def test_run_shows_work_order_and_applies_all_then_undo(

@@ -12,6 +12,7 @@ from __future__ import annotations
 from pathlib import Path
 
 import pytest
+from tui_support import settle
 
 from tri.tui.app import TriApp
 
@@ -19,19 +20,8 @@ DATA = Path(__file__).parent / "data" / "tui"
 SIZES = [(80, 24), (120, 40)]
 
 
-@pytest.fixture(autouse=True)
-def _state(tmp_path: Path, monkeypatch: pytest.MonkeyPatch) -> None:
-    monkeypatch.setenv("XDG_STATE_HOME", str(tmp_path / "state"))
-
-
 def make_app() -> TriApp:
     return TriApp(DATA / "small.toml", journal=False, theme="textual-dark")
-
-
-async def settle(pilot) -> None:
-    await pilot.pause()
-    await pilot.app.workers.wait_for_complete()
-    await pilot.pause()
 
 
 @pytest.mark.parametrize("size", SIZES, ids=lambda s: f"{s[0]}x{s[1]}")
