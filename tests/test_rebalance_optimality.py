@@ -21,7 +21,7 @@ from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 from test_rebalance_helpers import exhaustive_rail, random_rail
 
-from tri.rebalance import SuggestOptions, suggest
+from tri.rebalance import SuggestOptions, milp, suggest
 from tri.rebalance.milp import PROVEN_GAP
 from tri.schedule.to_engine import analyse_schedule
 
@@ -56,7 +56,15 @@ def _check_fewest(schedule, target: float, neutral_max: float | None = None) -> 
 
 @pytest.mark.parametrize("seed", SEEDS)
 @pytest.mark.parametrize("target", [3.0, 10.0])
-def test_fewest_moves_equal_exhaustive_minimum(seed: int, target: float) -> None:
+@pytest.mark.parametrize("proof", ["count", "solver"])
+def test_fewest_moves_equal_exhaustive_minimum(
+    seed: int, target: float, proof: str, monkeypatch: pytest.MonkeyPatch
+) -> None:
+    # "count": small budgets are proven by checking every plan
+    # (tri.rebalance.exhaust); "solver": that is switched off, so the
+    # mixed-integer program alone must prove the minimum
+    if proof == "solver":
+        monkeypatch.setattr(milp, "enumeration_fits", lambda pr, k: False)
     rng = np.random.default_rng(seed)
     schedule = random_rail(rng, 7)
     _check_fewest(schedule, target)

@@ -18,17 +18,24 @@ blocks its window, a 1-pole one can be displaced at the cost of a move;
 see ``_windows_block``); the neutral limit as cuts ``<N, u> ≤ N_max'``
 (Theorem 3 of :mod:`tri.rebalance.polygon`).
 
+Lower bounds on a phase RMS current (both models, :func:`_lower_block`)
+-----------------------------------------------------------------------
+Order by order: ``a_h ≥ <I_p,h, d>`` over polygon directions (the
+fundamental's every degree over the angles it can reach, error 0.0038 %,
+Theorem 1; each harmonic's around the circle), then a harmonic RMS
+``g ≥ Σ_{h>1} w_h·a_h`` over unit magnitude profiles ``w``, then
+``R_p ≥ cos β·a_1 + sin β·g`` over a grid of tilts β. Every row holds at
+every plan; the directions, profile and tilt of each plan the solver
+proposes are added, so the bound is exact there (like an
+outer-approximation cut, Theorem 3) and close wherever the *magnitudes*
+of the orders are like those of a plan seen, whatever their angles.
+
 Balance model (:func:`solve_balance`)
 -------------------------------------
-Minimise ``T`` subject to ``T ≥ <V_p, u>`` for unit vectors ``u``: a
-polygon in the plane of the fundamental, one direction per degree over the
-angles the phase current can reach (error 0.0038 %, Theorem 1), the same
-directions tilted towards the harmonic content of a reference plan, and
-outer-approximation cuts at every plan the solver proposes (exact there,
-Theorem 3). Every cut is a valid lower bound on the phase RMS current, so
-the program is a relaxation: its optimum (or HiGHS's dual bound) is a
-proven lower bound on the largest phase RMS current of every plan, and a
-plan whose exact value reaches it is optimal. The floor ``F`` is a second
+Minimise ``T`` subject to ``T ≥`` the lower bound of every phase. The
+program is a relaxation: its optimum (or HiGHS's dual bound) is a proven
+lower bound on the largest phase RMS current of every plan, and a plan
+whose exact value reaches it is optimal. The floor ``F`` is a second
 bound. This min-max problem is like number partitioning: proofs at tight
 gaps are rare, so the search stops once a plan is within ``stop_gap`` of
 ``F``.
@@ -40,34 +47,49 @@ deviation ``|R_p - mean R| ≤ t·mean R`` for every phase. ``R_p`` is a
 magnitude on both sides, so the program must bound it from above too,
 which a magnitude (a convex function) only allows piecewise:
 
-* *Lower side*: ``R_p ≥ <V_p, u>`` as in the balance model; and
-  ``R_p ≥ (1 - t)·F`` (a plan meeting the target has ``R_p ≥ (1-t)·mean``
-  and the mean is at least ``F``).
-* *Upper side, sector model*: the angles the fundamental can take within
+* *Lower side*: as above; and ``R_p ≥ (1 - t)·F`` (a plan meeting the
+  target has ``R_p ≥ (1-t)·mean`` and the mean is at least ``F``).
+* *Upper side, sector rows*: the angles the fundamental can take within
   the move budget (support function of its reachable set,
   :func:`tri.rebalance.polygon.reach_from_support`) are cut into sectors; a
   binary per sector says which one holds the current, where Theorem 2
   bounds ``|z|`` from above; one extra row bounds it over the whole cone
   without a binary (looser, but it holds in the LP relaxation, which makes
   the root bound useful). Harmonics: ``R = sqrt(|z|² + G²)`` with
-  ``G² ≤ q``, a function of the options that is exact with products of
-  options (McCormick's inequalities, exact at integer points) for the
-  :data:`MAX_PAIRS` largest products and bounded linearly for the rest
-  (:func:`harmonic_square_bound`); ``sqrt(s² + q)`` is bounded by its
-  tangent in ``q`` and its chord in ``s``.
-* *Upper side, exact-square model* (small panels with harmonics): ``R_p²``
-  itself is written exactly with products of options
-  (:func:`square_terms`) and ``R_p ≤ (R_p² + ρ²)/(2ρ)`` for a grid of
-  ``ρ`` (tangents of the concave square root).
+  ``G² ≤ q``, the square of the harmonic part as a function of the options
+  (:mod:`tri.rebalance.squares`: exact linear terms, the products of
+  options bounded by partner, count and Cauchy-Schwarz bounds, and
+  exactly — Glover's linearisation — for the options of plans the solver
+  proposed); ``sqrt(s² + q)`` is bounded by its tangent in ``q`` and its
+  chord in ``s``.
+* *Upper side, centred rows* (budgets of at most
+  :data:`CENTRED_MAX_CHANGED` changed circuits): ``R_p²`` itself, centred
+  on the current plan, with the same bounds on its products, and
+  ``R_p ≤ (R_p² + ρ²)/(2ρ)`` for a grid of ``ρ`` (tangents of the concave
+  square root). Exact for a phase no move touches and for a phase one
+  move touches — the cases where the sector rows are loosest, since a
+  phase's harmonic RMS enters them through its smallest possible
+  fundamental.
+* *Upper side, exact-square model* (small panels with harmonics, after a
+  failed proposal): ``R_p²`` with every product of options (McCormick's
+  inequalities, exact at integer points) and the same tangents.
 
 With these, **every plan that meets the target exactly satisfies the
 program** (it is a relaxation): when the program has no solution with
 ``k`` moves, no plan with ``k`` moves exists, which is how ``optimal`` is
 proven. A plan the program proposes is checked exactly; if it fails (it is
-within the slack of the target), the model is refined (narrower sectors,
-the exact-square model, denser tangents) and, at the finest level, the plan
-is excluded by a no-good cut. Each refinement and cut keeps the program a
-relaxation, so its optimum stays a proven lower bound on the moves.
+within the slack of the target), the model learns from it (lower-bound
+directions, exact products of its options, a tangent at its RMS
+currents), is refined (narrower sectors, the exact-square model) and, at
+the finest level, the plan is excluded by a no-good cut. Each step keeps
+the program a relaxation, so its optimum stays a proven lower bound on
+the moves.
+
+When the budget is small enough, the proof is instead a count of every
+plan with that many moves, each checked exactly
+(:mod:`tri.rebalance.exhaust`); it ignores slot capacity, so it rules out
+a superset. Once a plan is known, HiGHS's primal heuristics are off: the
+call is then a proof, and they took most of its time.
 
 The approximations are only in what the program accepts; every figure a
 plan reports is computed exactly (and again by the engine on the final
@@ -91,6 +113,7 @@ from scipy.optimize import Bounds, LinearConstraint, milp
 from scipy.sparse import coo_matrix
 
 from tri.rebalance.control import Control
+from tri.rebalance.exhaust import enumeration_fits, plans_within
 from tri.rebalance.heuristic import Goal
 from tri.rebalance.polygon import (
     DEFAULT_SIDES,
@@ -101,6 +124,7 @@ from tri.rebalance.polygon import (
 )
 from tri.rebalance.problem import Problem, rms, spectra
 from tri.rebalance.realise import occupants, windows
+from tri.rebalance.squares import CrossBound, SquareBound, changed_max, gram, square_bound
 
 #: Sector widths of the target model, coarse to fine [deg]; upper-bound
 #: errors ``1/cos(w/2) - 1`` of 0.24 %, 0.034 %, 0.0038 % (levels pair with
@@ -161,8 +185,9 @@ class _Model:
         self.rows: list[np.ndarray] = []
         self.cols: list[np.ndarray] = []
         self.vals: list[np.ndarray] = []
-        self.row_lo: list[float] = []
-        self.row_hi: list[float] = []
+        self.row_lo: list[np.ndarray] = []
+        self.row_hi: list[np.ndarray] = []
+        self.n_rows = 0
 
     def var(self, count: int, lb, ub, integer: bool = False) -> int:
         start = self.n
@@ -173,16 +198,37 @@ class _Model:
         return start
 
     def row(self, cols, vals, lo: float, hi: float) -> None:
-        r = len(self.row_lo)
         cols = np.asarray(cols, dtype=np.int64).ravel()
-        self.rows.append(np.full(cols.size, r, dtype=np.int64))
+        self.rows.append(np.full(cols.size, self.n_rows, dtype=np.int64))
         self.cols.append(cols)
         self.vals.append(np.asarray(vals, dtype=float).ravel())
-        self.row_lo.append(lo)
-        self.row_hi.append(hi)
+        self.row_lo.append(np.array([lo], dtype=float))
+        self.row_hi.append(np.array([hi], dtype=float))
+        self.n_rows += 1
 
-    def solve(self, cost: np.ndarray, time_limit: float, gap: float = 1e-6, presolve: bool = True):
-        n_rows = len(self.row_lo)
+    def block(self, cols, vals, lo, hi) -> None:
+        """Rows of equal length at once: ``cols`` and ``vals`` of shape (rows, k)."""
+        cols = np.atleast_2d(np.asarray(cols, dtype=np.int64))
+        vals = np.broadcast_to(np.asarray(vals, dtype=float), cols.shape)
+        k = cols.shape[0]
+        if k == 0:
+            return
+        self.rows.append(np.repeat(np.arange(self.n_rows, self.n_rows + k), cols.shape[1]))
+        self.cols.append(cols.ravel())
+        self.vals.append(np.ascontiguousarray(vals).ravel())
+        self.row_lo.append(np.broadcast_to(np.asarray(lo, dtype=float), (k,)).copy())
+        self.row_hi.append(np.broadcast_to(np.asarray(hi, dtype=float), (k,)).copy())
+        self.n_rows += k
+
+    def solve(
+        self,
+        cost: np.ndarray,
+        time_limit: float,
+        gap: float = 1e-6,
+        presolve: bool = True,
+        heuristics: bool = True,
+    ):
+        n_rows = self.n_rows
         a = coo_matrix(
             (np.concatenate(self.vals), (np.concatenate(self.rows), np.concatenate(self.cols))),
             shape=(n_rows, self.n),
@@ -193,14 +239,29 @@ class _Model:
                 cost,
                 integrality=np.concatenate(self.integer),
                 bounds=Bounds(np.concatenate(self.lb), np.concatenate(self.ub)),
-                constraints=LinearConstraint(a, np.array(self.row_lo), np.array(self.row_hi)),
+                constraints=LinearConstraint(
+                    a, np.concatenate(self.row_lo), np.concatenate(self.row_hi)
+                ),
                 options={
                     "disp": False,
                     "time_limit": max(0.01, float(time_limit)),
                     "mip_rel_gap": gap,
                     "presolve": presolve,
+                    **({} if heuristics else _NO_HEURISTICS),
                 },
             )
+
+
+#: HiGHS options (passed through by scipy) that turn its primal heuristics off [-].
+_NO_HEURISTICS = {
+    "mip_heuristic_effort": 0.0,
+    "mip_heuristic_run_feasibility_jump": False,
+    "mip_heuristic_run_rins": False,
+    "mip_heuristic_run_rens": False,
+    "mip_heuristic_run_root_reduced_cost": False,
+    "mip_heuristic_run_zi_round": False,
+    "mip_heuristic_run_shifting": False,
+}
 
 
 @dataclass
@@ -345,23 +406,6 @@ def _neutral_cuts(
         m.row(cols, _unit_rows(u), -np.inf, limit)
 
 
-def _tilted(pr: Problem, ref: np.ndarray, p: int, base_dirs: np.ndarray) -> list[np.ndarray]:
-    """Polygon directions of the fundamental, tilted towards the reference harmonics."""
-    h = pr.orders.size
-    out = []
-    g = ref[p, 1:]
-    gn = float(np.sqrt(np.sum(np.abs(g) ** 2)))
-    z = abs(ref[p, 0])
-    beta = math.atan2(gn, z) if gn > 0 else 0.0
-    for d in base_dirs:
-        u = np.zeros(h, dtype=complex)
-        u[0] = d * math.cos(beta)
-        if gn > 0:
-            u[1:] = g / gn * math.sin(beta)
-        out.append(u)
-    return out
-
-
 def _lower_directions(reach: Reach) -> np.ndarray:
     """Polygon directions every :data:`LOWER_STEP_DEG` over a reachable cone (Theorem 1).
 
@@ -374,6 +418,122 @@ def _lower_directions(reach: Reach) -> np.ndarray:
         return polygon_directions(max(3, math.ceil(2 * np.pi / step)))
     lo, hi = reach.angle_start - step, reach.angle_stop + step
     return np.exp(1j * np.linspace(lo, hi, max(2, math.ceil((hi - lo) / step) + 1)))
+
+
+#: Sides of the polygon bounding each harmonic order's magnitude from below
+#: (error ``1/cos(π/m) - 1`` = 0.095 % of that order, Theorem 1) [-].
+HARMONIC_SIDES = 72
+#: Spacing of the tilt between fundamental and harmonic RMS in the lower bound [deg].
+TILT_STEP_DEG = 0.5
+
+
+def _lower_block(
+    m: _Model,
+    pr: Problem,
+    vars_: _Vars,
+    p: int,
+    r_cols: list[int],
+    reach: Reach,
+    visited: list[np.ndarray],
+    budget: int,
+) -> None:
+    """Rows ``r ≥ (lower bound of R_p)`` for each column ``r`` of ``r_cols``, order by order.
+
+    Parameters
+    ----------
+    m : _Model
+    pr : Problem
+    vars_ : _Vars
+    p : int
+        Phase.
+    r_cols : list of int
+        Columns bounded from below by ``R_p``'s bound.
+    reach : Reach
+        Where phase p's fundamental can go within the budget.
+    visited : list of complex ndarray, shape (H,)
+        Unit spectra ``v/||v||`` of phase p at plans seen so far.
+    budget : int
+        Largest number of moves [-].
+
+    Notes
+    -----
+    Variables ``a_h ≥ <I_p,h, d>`` for polygon directions ``d`` of each order
+    h (the fundamental's over its reachable cone every
+    :data:`LOWER_STEP_DEG`; each harmonic's around the circle,
+    :data:`HARMONIC_SIDES`; plus order h's direction at every visited
+    plan), so at the true point ``a_h = max_d <I_p,h, d>`` lies between
+    ``cos(π/m)·|I_p,h|`` and ``|I_p,h|`` (Theorem 1 of
+    :mod:`tri.rebalance.polygon`). A harmonic variable
+    ``g ≥ Σ_{h>1} w_h·a_h`` for unit profiles ``w ≥ 0`` (each order alone,
+    and the order magnitudes of each visited plan) is at most
+    ``||(a_h)_{h>1}|| ≤ G_p`` (Cauchy-Schwarz). Finally
+    ``r ≥ cos β·a_1 + sin β·g`` for β on a grid of :data:`TILT_STEP_DEG` up
+    to the largest possible ``atan(G_p/|z_p|)``: at most
+    ``sqrt(a_1² + g²) ≤ R_p``, so the rows hold at every plan, and at least
+    ``cos(step/2)·sqrt(a_1² + g²)``; the tilt of every visited plan is on
+    the grid too. At a visited plan every step is exact (its own directions,
+    profile and tilt), so the bound equals ``R_p`` there, like a cut on the
+    whole spectrum (Theorem 3); elsewhere it is within the polygon errors
+    wherever the harmonic profile is one already seen, whatever the angles
+    of the harmonic orders, which change with every move.
+    """
+    cols = _phase_cols(vars_, p)
+    base_dirs = _lower_directions(reach)
+    h = pr.orders.size
+
+    def project(target: int, k: int, dirs: np.ndarray) -> None:
+        n = dirs.size
+        m.block(
+            np.column_stack(
+                [np.full(n, target), np.full(n, cols[2 * k]), np.full(n, cols[2 * k + 1])]
+            ),
+            np.column_stack([np.ones(n), -dirs.real, -dirs.imag]),
+            0.0,
+            np.inf,
+        )
+
+    seen = [u[0] / abs(u[0]) for u in visited if abs(u[0]) > 0]
+    fund_dirs = np.concatenate([base_dirs, np.array(seen, dtype=complex)])
+    if h == 1:
+        for r in r_cols:
+            project(r, 0, fund_dirs)
+        return
+    a0 = m.var(h, 0.0, np.inf)
+    project(a0, 0, fund_dirs)
+    ring = polygon_directions(HARMONIC_SIDES)
+    for k in range(1, h):
+        extra = np.array([u[k] / abs(u[k]) for u in visited if abs(u[k]) > 1e-12], dtype=complex)
+        project(a0 + k, k, np.concatenate([ring, extra]))
+    g = m.var(1, 0.0, np.inf)
+    profiles = [np.eye(h - 1)[k] for k in range(h - 1)]
+    for u in visited:
+        mag = np.abs(u[1:])
+        nrm = float(np.sqrt(np.sum(mag**2)))
+        if nrm > 1e-12:
+            profiles.append(mag / nrm)
+    prof = np.array(profiles)
+    m.block(
+        np.column_stack(
+            [np.full(len(prof), g), np.tile(a0 + 1 + np.arange(h - 1), (len(prof), 1))]
+        ),
+        np.column_stack([np.ones(len(prof)), -prof]),
+        0.0,
+        np.inf,
+    )
+    _, g_max, _ = phase_reach(pr, p, budget)
+    beta_max = math.atan2(g_max, max(reach.min_abs, 1e-9 * max(1.0, g_max)))
+    step = math.radians(TILT_STEP_DEG)
+    n_beta = max(1, math.ceil(beta_max / step))
+    # and the tilt of each visited plan, where the rows are then exact
+    tilts = [math.atan2(float(np.sqrt(np.sum(np.abs(u[1:]) ** 2))), abs(u[0])) for u in visited]
+    beta = np.concatenate([np.linspace(0.0, n_beta * step, n_beta + 1), tilts])
+    for r in r_cols:
+        m.block(
+            np.column_stack([np.full(beta.size, r), np.full(beta.size, a0), np.full(beta.size, g)]),
+            np.column_stack([np.ones(beta.size), -np.cos(beta), -np.sin(beta)]),
+            0.0,
+            np.inf,
+        )
 
 
 def _oa(vec: np.ndarray) -> np.ndarray | None:
@@ -486,22 +646,13 @@ def solve_balance(
         return out
     ref_v, _ = spectra(pr, incumbent if incumbent is not None else pr.current_assignment())
     budget = pr.n_movable if goal.max_moves is None else min(goal.max_moves, pr.n_movable)
-    cuts: list[list[np.ndarray]] = []
+    reaches = [phase_reach(pr, p, budget)[0] for p in range(3)]
+    visited: list[list[np.ndarray]] = [[], [], []]
     for p in range(3):
-        dirs = _lower_directions(phase_reach(pr, p, budget)[0])
-        cuts.append(_tilted(pr, ref_v, p, dirs))
-        if pr.orders.size > 1:
-            for d in dirs:
-                u = np.zeros(pr.orders.size, dtype=complex)
-                u[0] = d
-                cuts[p].append(u)
+        u = _oa(ref_v[p])
+        if u is not None:
+            visited[p].append(u)
     ncuts = _neutral_dirs(pr) if nlim is not None else []
-    if incumbent is not None:
-        v, n = spectra(pr, incumbent)
-        for p in range(3):
-            u = _oa(v[p])
-            if u is not None:
-                cuts[p].append(u)
     nogoods: list[np.ndarray] = []
     exact_proof = True
     slice_s = 0.25
@@ -511,11 +662,7 @@ def solve_balance(
         m, vars_ = _base_model(pr, goal, goal.max_moves, nogoods, nlim is not None)
         t = m.var(1, lower, np.inf)
         for p in range(3):
-            cols = _phase_cols(vars_, p)
-            for u in cuts[p]:
-                m.row(
-                    np.concatenate([[t], cols]), np.concatenate([[1.0], -_unit_rows(u)]), 0, np.inf
-                )
+            _lower_block(m, pr, vars_, p, [t], reaches[p], visited[p], budget)
         if nlim is not None:
             _neutral_cuts(m, vars_, pr, nlim, ncuts)
         if math.isfinite(best):
@@ -540,7 +687,10 @@ def solve_balance(
         elif db is not None:
             lower = max(lower, db)
         if res.x is None:
-            slice_s *= 2
+            # nothing found: the same model again would repeat the work, so
+            # the next call gets the rest of the time (or twice the slice when
+            # a cancel must be seen between calls)
+            slice_s = 2 * slice_s if control.can_cancel else control.remaining()
             continue
         a = _decode(pr, res.x, vars_.x)
         v, n = spectra(pr, a)
@@ -548,7 +698,7 @@ def solve_balance(
         for p in range(3):
             u = _oa(v[p])
             if u is not None:
-                cuts[p].append(u)
+                visited[p].append(u)
         if nlim is not None:
             u = _oa(_nontriplen(pr, n))
             if u is not None:
@@ -634,122 +784,16 @@ def phase_reach(pr: Problem, p: int, budget: int) -> tuple[Reach, float, np.ndar
     return reach, g_max, support
 
 
-#: Largest number of option pairs per phase modelled exactly (McCormick) [-].
-MAX_PAIRS = 300
-
-
-@dataclass
-class HarmonicSquare:
-    """``q = const + Σ_o lin_o·x_o + Σ pair coef·x_o·x_o'`` with ``q ≥ G²`` for every plan.
-
-    Attributes
-    ----------
-    lin : float ndarray, shape (O,)
-        Linear coefficients [A²].
-    const : float
-        Constant [A²].
-    pairs : list of (int, int, float)
-        Products of options of different circuits and their coefficients
-        [A²]; empty when the bound is linear.
-    q_lo : float
-        ``q ≥ q_lo ≥ 0`` for every plan within the budget [A²].
-    exact : bool
-        True when ``q = G²`` exactly at every plan (products kept).
-    """
-
-    lin: np.ndarray
-    const: float
-    pairs: list[tuple[int, int, float]]
-    q_lo: float
-    exact: bool
-
-
-def harmonic_square_bound(pr: Problem, p: int, budget: int) -> HarmonicSquare:
-    """The square of phase p's harmonic RMS current as a function of the options.
-
-    Parameters
-    ----------
-    pr : Problem
-    p : int
-        Phase index.
-    budget : int
-        Largest number of moves [-].
-
-    Returns
-    -------
-    HarmonicSquare
-
-    Notes
-    -----
-    With ``g`` the harmonic vector of the reference plan (new circuits on
-    their first option) and ``δ_o`` what option ``o`` changes,
-    ``G² = ||g + Σ_o x_o·δ_o||² = ||g||² + Σ_o x_o·(2·Re<g, δ_o> + ||δ_o||²)
-    + Σ_{o≠o'} x_o·x_o'·Re<δ_o, δ_o'>`` (``x_o² = x_o`` for binaries; two
-    options of one circuit are never both taken). The products are kept
-    (and linearised exactly at integer points by McCormick's inequalities
-    in the model) when there are at most :data:`MAX_PAIRS`; otherwise the
-    Cauchy-Schwarz bound ``||Σ_{i∈S} δ_i||² ≤ |S|·Σ_{i∈S} ||δ_i||²`` over
-    the at most ``budget`` moved (and every new) circuits replaces them.
-    ``q_lo = max(0, ||g|| - D)²`` with ``D`` the largest total change
-    (triangle inequality).
-    """
-    ref = pr.current_assignment()
-    g = pr.contrib[:, p, 1:]
-    n_opt = pr.n_options
-    if g.shape[1] == 0 or pr.n_free == 0:
-        g_ref = pr.base[p, 1:] + (np.sum(g[ref], axis=0) if pr.n_free else 0)
-        c = float(np.sum(np.abs(g_ref) ** 2)) if g.shape[1] else 0.0
-        return HarmonicSquare(np.zeros(n_opt), c, [], c, True)
-    g_ref = pr.base[p, 1:] + np.sum(g[ref], axis=0)
-    delta = g - g[ref[pr.owner]]
-    size2 = np.sum(np.abs(delta) ** 2, axis=-1)
-    lin = 2.0 * np.real(np.sum(np.conj(g_ref)[None, :] * delta, axis=-1))
-    starts = pr.starts[:-1]
-    worst = np.sqrt(np.maximum.reduceat(size2, starts))
-    placed, new = pr.movable, ~pr.movable
-    k = min(budget, int(np.sum(placed)))
-    d = float(np.sum(worst[new])) + float(np.sum(np.sort(worst[placed])[::-1][:k]))
-    g_norm = float(np.sqrt(np.sum(np.abs(g_ref) ** 2)))
-    q_lo = max(0.0, g_norm - d) ** 2
-    scale = max(g_norm, float(np.max(np.sqrt(size2))), 1e-12)
-    active = np.flatnonzero(size2 > (1e-9 * scale) ** 2)
-    const = g_norm**2
-    if active.size < 2:
-        return HarmonicSquare(lin + size2, const, [], q_lo, True)
-    gram = 2.0 * np.real(delta[active] @ np.conj(delta[active]).T)
-    own = pr.owner[active]
-    ia, ib = np.triu_indices(active.size, 1)
-    keep = (own[ia] != own[ib]) & (gram[ia, ib] != 0.0)
-    ia, ib = ia[keep], ib[keep]
-    coef = gram[ia, ib]
-    if ia.size <= MAX_PAIRS:
-        pairs = [
-            (int(active[a]), int(active[b]), float(c)) for a, b, c in zip(ia, ib, coef, strict=True)
-        ]
-        return HarmonicSquare(lin + size2, const, pairs, q_lo, True)
-    # the largest products exactly; the rest bounded linearly: c·x·x' ≤ c·(x + x')/2
-    # for c > 0 and ≤ 0 for c < 0 (binaries)
-    order = np.argsort(-np.abs(coef), kind="stable")
-    top, rest = order[:MAX_PAIRS], order[MAX_PAIRS:]
-    extra = np.zeros(n_opt)
-    pos = rest[coef[rest] > 0]
-    np.add.at(extra, active[ia[pos]], coef[pos] / 2)
-    np.add.at(extra, active[ib[pos]], coef[pos] / 2)
-    hybrid = lin + size2 + extra
-    moved_circuits = np.unique(pr.owner[active])
-    count = min(k, int(np.sum(placed[moved_circuits]))) + int(np.sum(new[moved_circuits]))
-    cs = lin + max(1, count) * size2
-    # whichever linear bound adds less in total over the options
-    if float(np.sum(extra)) <= float(np.sum((max(1, count) - 1) * size2)):
-        pairs = [(int(active[ia[t]]), int(active[ib[t]]), float(coef[t])) for t in top]
-        return HarmonicSquare(hybrid, const, pairs, q_lo, False)
-    return HarmonicSquare(cs, const, [], q_lo, False)
-
-
 #: Largest number of option products for the exact-square target model [-].
 MAX_PRODUCTS = 5000
 #: Tangent-envelope error of sqrt in the exact-square model, coarse to fine [-].
 TANGENT_ERRORS = (1e-3, 1e-4, 1e-5)
+#: Relative error of the tangent envelope of sqrt in the centred rows [-]
+#: (between tangent points ``ρ`` and ``ρ·q``, ``(R² + ρ²)/(2ρ) ≤ R·(1 + (q - 1)²/8)``).
+CENTRED_TANGENT_ERROR = 1e-5
+#: Largest number of changed circuits for which the centred rows are added: beyond
+#: it their bounds on the products are loose and only make the model larger [-].
+CENTRED_MAX_CHANGED = 8
 
 
 def square_terms(
@@ -790,14 +834,129 @@ def square_terms(
         if active.size > 2 * math.isqrt(2 * MAX_PRODUCTS) + 2:
             products[(-1, -1)] = [0.0, 0.0, 0.0]  # too many: signal the caller
             continue
-        gram = 2.0 * np.real(delta[active] @ np.conj(delta[active]).T)
+        g = gram(delta[active])
         own = pr.owner[active]
         ia, ib = np.triu_indices(active.size, 1)
-        keep = (own[ia] != own[ib]) & (gram[ia, ib] != 0.0)
+        keep = (own[ia] != own[ib]) & (g[ia, ib] != 0.0)
         for a_i, b_i in zip(ia[keep], ib[keep], strict=True):
             key = (int(active[a_i]), int(active[b_i]))
-            products.setdefault(key, [0.0, 0.0, 0.0])[p] = float(gram[a_i, b_i])
+            products.setdefault(key, [0.0, 0.0, 0.0])[p] = float(g[a_i, b_i])
     return linear, products
+
+
+def _exact_square_fits(pr: Problem) -> bool:
+    """True when the exact-square model is small enough (harmonics present)."""
+    if pr.orders.size == 1:
+        return False
+    _, prods = square_terms(pr)
+    return (-1, -1) not in prods and len(prods) <= MAX_PRODUCTS
+
+
+def _cross_rows(m: _Model, x: int, cb: CrossBound, lazy: set[int]) -> int | None:
+    """A column ``X`` with ``X ≤`` bounds A, B, C and (for ``lazy`` options) G.
+
+    Bounds of :mod:`tri.rebalance.squares`: every plan with at most
+    ``changed_max`` changed circuits satisfies them at its true cross term
+    (with ``w_o = x_o·ψ_o``, ``t = [m ≥ 1]``), so a row ``S ≤ ... + X`` keeps
+    the model a relaxation. None when no product can be nonzero.
+    """
+    opts = cb.touch
+    if opts.size < 2 or cb.changed_max < 2:
+        return None
+    big_x = m.var(1, cb.lower, np.inf)
+    is_lazy = np.isin(opts, np.fromiter(lazy, dtype=int, count=len(lazy)))
+    la = np.flatnonzero(is_lazy)
+    rest = np.flatnonzero(~is_lazy & (cb.partner != 0.0))
+    cols = [big_x, *(x + opts[rest]).tolist()]
+    vals = [1.0, *(-0.5 * cb.partner[rest]).tolist()]
+    if la.size:
+        w = m.var(la.size, -np.inf, np.inf)
+        cols += list(range(w, w + la.size))
+        vals += [-0.5] * la.size
+        # bound A for the lazy options: w ≤ T·x
+        m.block(
+            np.column_stack([w + np.arange(la.size), x + opts[la]]),
+            np.column_stack([np.ones(la.size), -cb.partner[la]]),
+            -np.inf,
+            0.0,
+        )
+        # bound G: w ≤ ψ(x) - ψ_lo·(1 - x)
+        for k, a in enumerate(la):
+            nz = np.flatnonzero(cb.gram[a])
+            m.row(
+                [w + k, *(x + opts[nz]).tolist(), x + int(opts[a])],
+                [1.0, *(-cb.gram[a, nz]).tolist(), -float(cb.psi_lo[a])],
+                -np.inf,
+                -float(cb.psi_lo[a]),
+            )
+    m.row(cols, vals, -np.inf, 0.0)
+    xs = (x + opts).tolist()
+    if cb.slope > 0:  # bound B with t = [m ≥ 1]
+        t = m.var(1, 0.0, 1.0, integer=True)
+        m.row([*xs, t], [*([1.0] * len(xs)), -float(cb.changed_max)], -np.inf, 0.0)
+        m.row([big_x, *xs, t], [1.0, *([-cb.slope] * len(xs)), cb.slope], -np.inf, 0.0)
+    # bound C
+    m.row([big_x, *xs], [1.0, *(-(cb.changed_max - 1) * cb.size2).tolist()], -np.inf, 0.0)
+    return big_x
+
+
+def _square_column(m: _Model, x: int, sb: SquareBound, lazy: set[int], lo: float, hi: float) -> int:
+    """A column ``S`` in ``[lo, hi]`` with ``S ≤ const + Σ_o lin_o·x_o + X`` (an upper bound)."""
+    s = m.var(1, lo, hi)
+    nz = np.flatnonzero(sb.lin)
+    cols = [s, *(x + nz).tolist()]
+    vals = [1.0, *(-sb.lin[nz]).tolist()]
+    big_x = _cross_rows(m, x, sb.cross, lazy)
+    if big_x is not None:
+        cols.append(big_x)
+        vals.append(-1.0)
+    m.row(cols, vals, -np.inf, sb.const)
+    return s
+
+
+def _square_max(sb: SquareBound) -> float:
+    """Largest value the bound on ``S`` can take [A²]."""
+    return sb.const + float(np.sum(np.maximum(sb.lin, 0.0))) + max(0.0, sb.cross.upper)
+
+
+def _tangent_points(r_min: float, r_max: float, extra: list[float]) -> np.ndarray:
+    """Tangent points ``ρ`` of sqrt from ``r_min`` to ``r_max``, and ``extra`` [A]."""
+    ratio = 1.0 + math.sqrt(8.0 * CENTRED_TANGENT_ERROR)
+    lo = max(r_min, 1e-9 * max(1.0, r_max))
+    count = max(1, math.ceil(math.log(max(r_max, lo) / lo) / math.log(ratio)) + 1)
+    pts = lo * ratio ** np.arange(count)
+    return np.unique(np.concatenate([pts, [v for v in extra if v > 0]]))
+
+
+@dataclass
+class _Refine:
+    """What the target loop learnt from proposals that failed the exact check.
+
+    Attributes
+    ----------
+    cuts : list of list of complex ndarray
+        Unit spectra of visited plans, per phase (lower bounds).
+    lazy : list of set of int
+        Options whose products are bounded exactly (bound G), per phase.
+    rms : list of list of float
+        Phase RMS currents of visited plans (tangent points) [A].
+    """
+
+    cuts: list[list[np.ndarray]] = field(default_factory=lambda: [[], [], []])
+    lazy: list[set[int]] = field(default_factory=lambda: [set(), set(), set()])
+    rms: list[list[float]] = field(default_factory=lambda: [[], [], []])
+
+    def learn(self, pr: Problem, assign: np.ndarray) -> None:
+        """Cuts, exact products and tangent points at a proposed plan."""
+        v, _ = spectra(pr, assign)
+        ref = pr.current_assignment()
+        changed = np.asarray(assign)[np.asarray(assign) != ref]
+        for p in range(3):
+            u = _oa(v[p])
+            if u is not None:
+                self.cuts[p].append(u)
+            self.rms[p].append(float(rms(v[p])))
+            self.lazy[p].update(int(o) for o in changed)
 
 
 def _target_model(
@@ -807,7 +966,7 @@ def _target_model(
     budget: int,
     level: int,
     nogoods: list[np.ndarray],
-    cuts: list[list[np.ndarray]],
+    refine: _Refine,
     ncuts: list[np.ndarray],
     nlim: float | None,
     exact_square: bool = False,
@@ -822,77 +981,65 @@ def _target_model(
     r_min = min((1.0 - target) * pr.floor_a * (1 - 1e-9), min(r_maxes))
     r0 = m.var(3, max(0.0, r_min), r_maxes)
     ref_v, _ = spectra(pr, pr.current_assignment())
+    harmonics = pr.orders.size > 1
     for p in range(3):
         reach = reaches[p][0]
         r_max = r_maxes[p]
-        cols = _phase_cols(vars_, p)
-        fund = cols[:2]
-        # lower bounds: a fine polygon over the reachable angles (rows only)
-        base_dirs = _lower_directions(reach)
-        for u in [*_tilted(pr, ref_v, p, base_dirs), *cuts[p]]:
-            m.row(
-                np.concatenate([[r0 + p], cols]), np.concatenate([[1.0], -_unit_rows(u)]), 0, np.inf
-            )
-        if pr.orders.size > 1:
-            for d in base_dirs:
-                m.row([r0 + p, *fund], [1.0, -d.real, -d.imag], 0, np.inf)
+        fund = _phase_cols(vars_, p)[:2]
+        # lower bounds: order by order over the reachable angles
+        ref_u = _oa(ref_v[p])
+        visited = [*([ref_u] if ref_u is not None else []), *refine.cuts[p]]
+        _lower_block(m, pr, vars_, p, [r0 + p], reach, visited, budget)
         if exact_square:
             continue
-        # upper bounds: sectors (Theorem 2) for |z|, harmonics through q ≥ G²
+        # upper bound 1: the square of R_p centred on the current plan, and
+        # tangents of sqrt (exact at the current plan and one change away)
+        if changed_max(pr, budget) <= CENTRED_MAX_CHANGED:
+            sq = square_bound(pr, p, budget)
+            s_col = _square_column(m, vars_.x, sq, refine.lazy[p], -np.inf, np.inf)
+            rhos = _tangent_points(r_min, r_max, [math.sqrt(sq.const), *refine.rms[p]])
+            m.block(
+                np.column_stack([np.full(rhos.size, r0 + p), np.full(rhos.size, s_col)]),
+                np.column_stack([np.ones(rhos.size), -0.5 / rhos]),
+                -np.inf,
+                0.5 * rhos,
+            )
+        # upper bound 2: sectors (Theorem 2) for |z|, harmonics through q ≥ G²
         sec = sectors(reach.angle_start, reach.angle_stop, width)
-        hs = harmonic_square_bound(pr, p, budget)
+        hs = square_bound(pr, p, budget, harmonics_only=True) if harmonics else None
         # a plan meeting the target has R_p ≥ (1 - t)·mean ≥ (1 - t)·F, so
         # |z_p| = sqrt(R_p² - G_p²) ≥ sqrt(((1 - t)·F)² - G_max²)
         floor_r = (1.0 - target) * pr.floor_a
         s_floor = math.sqrt(max(0.0, floor_r**2 - g_maxes[p] ** 2))
         s_lo = max(reach.min_abs, s_floor)
         s_hi = max(reach.max_abs, s_lo + 1e-9)
-        q0 = hs.q_lo
+        q0 = hs.lo if hs is not None else 0.0
         f_lo, f_hi = math.sqrt(s_lo**2 + q0), math.sqrt(s_hi**2 + q0)
         slope = (f_hi - f_lo) / (s_hi - s_lo) if q0 > 0 else 1.0
         icpt = f_lo - slope * s_lo if q0 > 0 else 0.0
-        q_cols: list[int] = []
-        q_vals: list[float] = []
-        q_max = (
-            hs.const
-            + float(np.sum(np.maximum(hs.lin, 0)))
-            + sum(max(c, 0.0) for _, _, c in hs.pairs)
-        )
-        if q_max > 0 and f_lo > 1e-3 * r_max:
+        q_max = _square_max(hs) if hs is not None else 0.0
+        q_col: list[int] = []
+        c_q = 0.0
+        if hs is not None and q_max > 0 and f_lo > 1e-3 * r_max:
+            # sqrt(s² + q) ≤ sqrt(s² + q0) + (q - q0)/(2·f_lo) for q ≥ q0, s ≥ s_lo
             c_q = 0.5 / f_lo
-            nz = np.flatnonzero(hs.lin)
-            q_cols = (vars_.x + nz).tolist()
-            q_vals = (-c_q * hs.lin[nz]).tolist()
-            if hs.pairs:
-                y0 = m.var(len(hs.pairs), 0.0, 1.0)
-                for k, (o1, o2, c) in enumerate(hs.pairs):
-                    if c > 0:  # y ≤ x_o, y ≤ x_o'
-                        m.row([y0 + k, vars_.x + o1], [1.0, -1.0], -np.inf, 0.0)
-                        m.row([y0 + k, vars_.x + o2], [1.0, -1.0], -np.inf, 0.0)
-                    else:  # y ≥ x_o + x_o' - 1
-                        m.row([y0 + k, vars_.x + o1, vars_.x + o2], [1.0, -1.0, -1.0], -1.0, np.inf)
-                    q_cols.append(y0 + k)
-                    q_vals.append(-c_q * c)
-            icpt += c_q * (hs.const - q0)
+            q_col = [_square_column(m, vars_.x, hs, refine.lazy[p], q0, q_max)]
+            icpt -= c_q * q0
         elif q_max > 0:  # |z| may vanish: R ≤ |z| + sqrt(q_max)
-            c_q = 0.0
             icpt += math.sqrt(q_max)
-        else:
-            c_q = 0.0
         big_z = reach.max_abs * 1.01 + 1e-6
         w0 = m.var(sec.count, 0.0, 1.0, integer=True) if sec.count > 1 else None
         coef = slope * sec.upper_factor
-        q_span = float(np.sum(np.abs(hs.lin))) + sum(abs(c) for _, _, c in hs.pairs)
-        big_u = r_max + coef * big_z + abs(icpt) + c_q * q_span + 1.0
+        big_u = r_max + coef * big_z + abs(icpt) + c_q * q_max + 1.0
         for j in range(sec.count):
             cj = sec.centres[j]
-            cols_u = np.concatenate([[r0 + p], fund, np.array(q_cols, dtype=int)])
-            vals_u = np.concatenate([[1.0, -coef * cj.real, -coef * cj.imag], q_vals])
+            cols_u = [r0 + p, *fund, *q_col]
+            vals_u = [1.0, -coef * cj.real, -coef * cj.imag, *([-c_q] if q_col else [])]
             if w0 is None:
                 m.row(cols_u, vals_u, -np.inf, icpt)
                 continue
             w = w0 + j
-            m.row(np.append(cols_u, w), np.append(vals_u, big_u), -np.inf, icpt + big_u)
+            m.row([*cols_u, w], [*vals_u, big_u], -np.inf, icpt + big_u)
             for nrm in (sec.lower_normals[j], sec.upper_normals[j]):
                 m.row([*fund, w], [nrm.real, nrm.imag, -big_z], -big_z, np.inf)
         if w0 is not None:
@@ -904,9 +1051,8 @@ def _target_model(
                 # bound in the root node)
                 whole = sectors(reach.angle_start, reach.angle_stop, 2 * np.pi)
                 cw = slope * whole.upper_factor * whole.centres[0]
-                cols_u = np.concatenate([[r0 + p], fund, np.array(q_cols, dtype=int)])
-                vals_u = np.concatenate([[1.0, -cw.real, -cw.imag], q_vals])
-                m.row(cols_u, vals_u, -np.inf, icpt)
+                vals_w = [1.0, -cw.real, -cw.imag, *([-c_q] if q_col else [])]
+                m.row([r0 + p, *fund, *q_col], vals_w, -np.inf, icpt)
     if exact_square:
         _exact_square_rows(m, vars_, r0, linear, products, r_min, r_maxes, level)
     # the target on the deviation from the mean
@@ -1019,23 +1165,35 @@ def solve_target(
         return out
     best_k = count(incumbent) if incumbent is not None else None
     lower = 0
-    # refinement levels: (level, exact-square model?). With harmonics the
-    # exact-square model is tighter; the sector model is faster without them.
-    square_ok = False
-    if pr.orders.size > 1:
-        _, prods = square_terms(pr)
-        square_ok = (-1, -1) not in prods and len(prods) <= MAX_PRODUCTS
-    stages = [(0, False), (1, square_ok), (2, square_ok)]
+    # refinement stages: (sector level, exact-square model?). The exact-square
+    # check costs as much as a small proof: done on the first refinement only
+    square_ok: bool | None = None
+    stages = [(0, False), (1, True), (2, True)]
     stage = 0
     slice_s = 0.5
     exact_proof = True
     nogoods: list[np.ndarray] = []
-    cuts: list[list[np.ndarray]] = [[], [], []]
+    refine = _Refine()
     ncuts = _neutral_dirs(pr) if nlim is not None else []
+    counted_out: set[int] = set()
     while not control.stop():
         budget = cap if best_k is None else min(cap, best_k - 1)
         if budget < lower:
             break
+        if budget not in counted_out and enumeration_fits(pr, budget):
+            # few moves: count every plan out exactly (tri.rebalance.exhaust)
+            counted_out.add(budget)
+            what = f"at most {budget} move{'s' if budget != 1 else ''}"
+            control.report(f"checking every plan with {what}")
+            found = plans_within(pr, goal.target, goal.neutral_max_a, budget)
+            if found is not None and not found:
+                lower = budget + 1
+                break
+            better = [a for a in found or [] if verify(a)[0] and count(a) <= budget]
+            if better:
+                out.assign = min(better, key=count)
+                best_k = count(out.assign)
+                continue
         m, vars_, cost = _target_model(
             pr,
             goal,
@@ -1043,19 +1201,27 @@ def solve_target(
             budget,
             stages[stage][0],
             nogoods,
-            cuts,
+            refine,
             ncuts,
             nlim,
-            exact_square=stages[stage][1],
+            exact_square=stages[stage][1] and square_ok is True,
         )
         what = f"at most {budget} move{'s' if budget != 1 else ''}"
         control.report(f"solver: looking for a plan with {what}")
         # with a cancel hook, time slices that double: a cancel is seen between
         # them, at the cost of at most about twice the work
         span = min(slice_s, control.remaining()) if control.can_cancel else control.remaining()
-        # HiGHS's presolve pays off with the harmonic products, not without them
-        # (measured on the benchmark panels: 4x faster proofs at 500 linear circuits)
-        res = m.solve(cost, span, gap=0.0, presolve=pr.orders.size > 1)
+        # HiGHS's presolve pays off with harmonics, not without them (measured
+        # on the benchmark panels: 4x faster proofs at 500 linear circuits).
+        # Its primal heuristics are off once a plan is known: the call is then
+        # a proof (or a refutation), and they took most of its time
+        res = m.solve(
+            cost,
+            span,
+            gap=0.0,
+            presolve=pr.orders.size > 1,
+            heuristics=best_k is None,
+        )
         out.solver_calls += 1
         if _failed(res):
             out.notes.append(f"the solver stopped: {res.message}")
@@ -1075,12 +1241,9 @@ def solve_target(
         if ok and realisable:
             out.assign, best_k = a, count(a)
             continue
-        v, n = spectra(pr, a)
-        for p in range(3):
-            u = _oa(v[p])
-            if u is not None:
-                cuts[p].append(u)
+        refine.learn(pr, a)
         if nlim is not None:
+            _, n = spectra(pr, a)
             u = _oa(_nontriplen(pr, n))
             if u is not None:
                 ncuts.append(u)
@@ -1095,6 +1258,8 @@ def solve_target(
             nogoods.append(a)
         elif stage + 1 < len(stages):
             stage += 1
+            if square_ok is None:
+                square_ok = _exact_square_fits(pr)
         else:
             nogoods.append(a)
     out.bound = float(lower)

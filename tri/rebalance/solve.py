@@ -27,13 +27,16 @@ circuits add in phase on the neutral whatever the phase; moves cannot
 change them). The greedy start, the local search and every acceptance test
 use this exact RMS, by superposition of the engine's per-circuit currents.
 The approximation is only inside the mixed-integer programs
-(:mod:`tri.rebalance.milp`): there ``R`` is bounded from below by
-projections of the whole spectrum (exact at every plan visited) and from
-above by a sector bound on the fundamental plus a bound on the harmonic
-part's square that is exact with products of options where there are few
-and linear otherwise. Every proposal is re-checked with the exact RMS, and
-the before/after figures reported come from the engine run on the
-schedules themselves (:func:`tri.schedule.to_engine.analyse_schedule`). On
+(:mod:`tri.rebalance.milp`): there ``R`` is bounded from below order by
+order (exact at every plan visited) and from above by a sector bound on
+the fundamental plus a bound on the harmonic part's square, and for small
+budgets by the whole square centred on the current plan
+(:mod:`tri.rebalance.squares`: products of options bounded linearly, and
+exactly for the options of every plan visited). Small budgets are proven
+by checking every plan (:mod:`tri.rebalance.exhaust`). Every proposal is
+re-checked with the exact RMS, and the before/after figures reported come
+from the engine run on the schedules themselves
+(:func:`tri.schedule.to_engine.analyse_schedule`). On
 large panels with many non-linear circuits the upper bound can stay loose,
 so a proof may not close in the time limit: the plan is still exact and
 verified, and the status says ``best-found`` with the proven bound.
