@@ -112,27 +112,45 @@ def _fixed_model(pr, assign: np.ndarray):
     return m, x
 
 
+def _fix_currents(m, pr, vars_, assign: np.ndarray) -> None:
+    """Equality rows holding the model's phase currents at those of a plan."""
+    v, _ = spectra(pr, assign)
+    for q in range(3):
+        parts = np.column_stack([v[q].real, v[q].imag]).ravel()
+        m.block(milp._phase_cols(vars_, q)[:, None], 1.0, parts, parts)
+
+
 @pytest.mark.parametrize("seed", range(3))
-def test_cross_rows_in_the_model_match_the_bounds(seed: int) -> None:
+@pytest.mark.parametrize("through_currents", [False, True])
+def test_cross_rows_in_the_model_match_the_bounds(seed: int, through_currents: bool) -> None:
     # the rows of _cross_rows, solved by HiGHS with the options fixed, allow
-    # exactly CrossBound.largest (bounds A, B, C and, for lazy options, G)
+    # exactly CrossBound.largest (bounds A, B, C and, for lazy options, G);
+    # bound G written with a coefficient per partner or through the currents
+    # (_glover_rows) allows the same
     pr, ex, plans = _panel(seed)
     rng = np.random.default_rng(seed)
     budget = 3
+    h = pr.orders.size
     picks = rng.choice(np.flatnonzero(ex.moves <= budget), size=6, replace=False)
     for p in range(3):
-        sb = square_bound(pr, p, budget)
-        for k, idx in enumerate(picks):
-            a = plans[idx]
-            lazy = set(a.tolist()) if k % 2 else set()
-            m, x = _fixed_model(pr, a)
-            col = milp._square_column(m, x, sb, lazy, -np.inf, np.inf)
-            cost = np.zeros(m.n)
-            cost[col] = -1.0
-            res = m.solve(cost, 10.0, gap=0.0)
-            assert res.status == 0
-            want = sb.largest(a, lazy)
-            assert -res.fun == pytest.approx(want, rel=1e-7, abs=1e-6)
+        for harmonics_only in (False, True):
+            sb = square_bound(pr, p, budget, harmonics_only=harmonics_only)
+            for k, idx in enumerate(picks):
+                a = plans[idx]
+                lazy = set(a.tolist()) if k % 2 else set()
+                m, x = _fixed_model(pr, a)
+                vcols = None
+                if through_currents:
+                    vars_ = milp._Vars(x=x, v=m.var(6 * h, -np.inf, np.inf), n=None, h=h)
+                    _fix_currents(m, pr, vars_, a)
+                    vcols = milp._phase_cols(vars_, p)
+                col = milp._square_column(m, x, sb, lazy, -np.inf, np.inf, vcols)
+                cost = np.zeros(m.n)
+                cost[col] = -1.0
+                res = m.solve(cost, 10.0, gap=0.0)
+                assert res.status == 0
+                want = sb.largest(a, lazy)
+                assert -res.fun == pytest.approx(want, rel=1e-7, abs=1e-6)
 
 
 @pytest.mark.parametrize("seed", range(4))
@@ -152,9 +170,7 @@ def test_lower_block_is_below_every_plan_and_exact_where_visited(seed: int) -> N
         for p in range(3):
             m, x = _fixed_model(pr, a)
             vars_ = milp._Vars(x=x, v=m.var(6 * h, -np.inf, np.inf), n=None, h=h)
-            for q in range(3):  # the currents, fixed by equality rows
-                parts = np.column_stack([v[q].real, v[q].imag]).ravel()
-                m.block(milp._phase_cols(vars_, q)[:, None], 1.0, parts, parts)
+            _fix_currents(m, pr, vars_, a)
             r = m.var(1, 0.0, np.inf)
             reach = milp.phase_reach(pr, p, pr.n_movable)[0]
             u = v_vis[p] / np.sqrt(np.sum(np.abs(v_vis[p]) ** 2))
@@ -270,3 +286,13 @@ def test_counting_out_declines_large_or_new_circuit_problems() -> None:
     unplaced = schedule.with_circuit(idx, schedule.circuits[idx].on_phases(None))
     pr2 = build_problem(unplaced, movable_rail(schedule))
     assert plans_within(pr2, 0.05, None, 2) is None
+
+
+def test_cross_bound_without_any_change() -> None:
+    # no option changes the phase (every δ is 0): no products, empty parts
+    from tri.rebalance.squares import cross_bound
+
+    cb = cross_bound(np.array([0, 0, 1]), np.zeros((3, 4), dtype=complex), 2)
+    assert cb.touch.size == 0 and cb.parts.shape == (0, 8)
+    assert cb.largest(np.zeros(0), np.zeros(0, dtype=bool)) == 0.0
+    assert cb.upper == 0.0

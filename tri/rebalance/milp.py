@@ -856,7 +856,13 @@ def _exact_square_fits(pr: Problem) -> bool:
     return (-1, -1) not in prods and len(prods) <= MAX_PRODUCTS
 
 
-def _cross_rows(m: _Model, x: int, cb: CrossBound, lazy: set[int]) -> int | None:
+def _cross_rows(
+    m: _Model,
+    x: int,
+    cb: CrossBound,
+    lazy: set[int],
+    dense: tuple[np.ndarray, np.ndarray] | None = None,
+) -> int | None:
     """A column ``X`` with ``X ≤`` bounds A, B, C and (for ``lazy`` options) G.
 
     Bounds of :mod:`tri.rebalance.squares`: every plan with at most
@@ -885,14 +891,17 @@ def _cross_rows(m: _Model, x: int, cb: CrossBound, lazy: set[int]) -> int | None
             0.0,
         )
         # bound G: w ≤ ψ(x) - ψ_lo·(1 - x)
-        for k, a in enumerate(la):
-            nz = np.flatnonzero(cb.gram[a])
-            m.row(
-                [w + k, *(x + opts[nz]).tolist(), x + int(opts[a])],
-                [1.0, *(-cb.gram[a, nz]).tolist(), -float(cb.psi_lo[a])],
-                -np.inf,
-                -float(cb.psi_lo[a]),
-            )
+        if dense is not None:
+            _glover_rows(m, x, cb, w, la, *dense)
+        else:
+            for k, a in enumerate(la):
+                nz = np.flatnonzero(cb.gram[a])
+                m.row(
+                    [w + k, *(x + opts[nz]).tolist(), x + int(opts[a])],
+                    [1.0, *(-cb.gram[a, nz]).tolist(), -float(cb.psi_lo[a])],
+                    -np.inf,
+                    -float(cb.psi_lo[a]),
+                )
     m.row(cols, vals, -np.inf, 0.0)
     xs = (x + opts).tolist()
     if cb.slope > 0:  # bound B with t = [m ≥ 1]
@@ -904,13 +913,55 @@ def _cross_rows(m: _Model, x: int, cb: CrossBound, lazy: set[int]) -> int | None
     return big_x
 
 
-def _square_column(m: _Model, x: int, sb: SquareBound, lazy: set[int], lo: float, hi: float) -> int:
+def _glover_rows(
+    m: _Model,
+    x: int,
+    cb: CrossBound,
+    w: int,
+    which: np.ndarray,
+    vcols: np.ndarray,
+    ref_parts: np.ndarray,
+) -> None:
+    """Bound G, ``w_k ≤ ψ_o(x) - ψ_lo,o·(1 - x_o)``, for the options ``cb.touch[which]``.
+
+    Written through the phase's currents, which are columns of the model:
+    ``ψ_o(x) = 2·<δ_o, Δ(x)> - Σ_{b of o's circuit} 2·<δ_o, δ_b>·x_b`` with
+    ``Δ(x) = V - v_ref = Σ_b x_b·δ_b`` (``vcols``: the parts of ``V`` in the
+    order of ``CrossBound.parts``; ``ref_parts``: those of ``v_ref``). The
+    Gram matrix has the rank of a spectrum (twice the number of orders), so
+    a row needs about that many coefficients instead of one per partner;
+    the rows allow the same points as the explicit ones.
+    """
+    opts = cb.touch
+    rhs = -2.0 * np.einsum("ik,k->i", cb.parts[which], ref_parts)
+    for k, a in enumerate(which.tolist()):
+        same = np.flatnonzero(cb.own == cb.own[a])  # options of a's circuit, a included
+        g_own = 2.0 * np.einsum("ik,k->i", cb.parts[same], cb.parts[a])
+        g_own[same == a] -= float(cb.psi_lo[a])
+        m.row(
+            [w + k, *vcols.tolist(), *(x + opts[same]).tolist()],
+            [1.0, *(-2.0 * cb.parts[a]).tolist(), *g_own.tolist()],
+            -np.inf,
+            float(rhs[k] - cb.psi_lo[a]),
+        )
+
+
+def _square_column(
+    m: _Model,
+    x: int,
+    sb: SquareBound,
+    lazy: set[int],
+    lo: float,
+    hi: float,
+    vcols: np.ndarray | None = None,
+) -> int:
     """A column ``S`` in ``[lo, hi]`` with ``S ≤ const + Σ_o lin_o·x_o + X`` (an upper bound)."""
     s = m.var(1, lo, hi)
     nz = np.flatnonzero(sb.lin)
     cols = [s, *(x + nz).tolist()]
     vals = [1.0, *(-sb.lin[nz]).tolist()]
-    big_x = _cross_rows(m, x, sb.cross, lazy)
+    dense = None if vcols is None else (vcols[2 * sb.first_order :], sb.ref_parts)
+    big_x = _cross_rows(m, x, sb.cross, lazy, dense)
     if big_x is not None:
         cols.append(big_x)
         vals.append(-1.0)
@@ -998,9 +1049,10 @@ def _target_model(
             continue
         # upper bound 1: the square of R_p centred on the current plan, and
         # tangents of sqrt (exact at the current plan and one change away)
+        pcols = _phase_cols(vars_, p)
         if changed_max(pr, budget) <= CENTRED_MAX_CHANGED:
             sq = square_bound(pr, p, budget)
-            s_col = _square_column(m, vars_.x, sq, refine.lazy[p], -np.inf, np.inf)
+            s_col = _square_column(m, vars_.x, sq, refine.lazy[p], -np.inf, np.inf, pcols)
             rhos = _tangent_points(r_min, r_max, [math.sqrt(sq.const), *refine.rms[p]])
             m.block(
                 np.column_stack([np.full(rhos.size, r0 + p), np.full(rhos.size, s_col)]),
@@ -1027,7 +1079,7 @@ def _target_model(
         if hs is not None and q_max > 0 and f_lo > 1e-3 * r_max:
             # sqrt(s² + q) ≤ sqrt(s² + q0) + (q - q0)/(2·f_lo) for q ≥ q0, s ≥ s_lo
             c_q = 0.5 / f_lo
-            q_col = [_square_column(m, vars_.x, hs, refine.lazy[p], q0, q_max)]
+            q_col = [_square_column(m, vars_.x, hs, refine.lazy[p], q0, q_max, pcols)]
             icpt -= c_q * q0
         elif q_max > 0:  # |z| may vanish: R ≤ |z| + sqrt(q_max)
             icpt += math.sqrt(q_max)

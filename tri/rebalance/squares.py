@@ -31,8 +31,11 @@ Bound G (products with one option, exact; Glover [1])
     are ``ψ_o(x)``; for ``x_o = 0`` the left is 0 and the right is
     ``ψ_o(x) - ψ_lo,o ≥ 0``. With bound A at ``x_o = 0`` (which gives 0),
     the product ``x_o·ψ_o(x)`` is bounded *exactly* at every integer point.
-    One row per option, with a coefficient per partner: added lazily, for
-    the options of plans the solver proposed (:mod:`tri.rebalance.milp`).
+    One row per option: added lazily, for the options of plans the solver
+    proposed, and written through the phase's currents, since
+    ``ψ_o(x) = 2·<δ_o, Δ(x)> - Σ_{b of o's circuit} 2·<δ_o, δ_b>·x_b`` with
+    ``Δ(x)`` the change of the currents, already columns of the model
+    (``tri.rebalance.milp._glover_rows``).
 
 Bound B (count)
     With ``m = |S|``, ``X ≤ C(m)`` where ``C(m)`` is half the sum of the
@@ -124,6 +127,12 @@ class CrossBound:
         ``M``: circuits that may differ from the reference plan [-].
     lower : float
         ``X`` is never below this [A²].
+    parts : float ndarray, shape (n, 2K)
+        ``δ_o`` of the options of :attr:`touch`, real and imaginary part of
+        each order in turn (the column order of a phase's currents in the
+        model) [A].
+    own : int ndarray, shape (n,)
+        Circuit of each option of :attr:`touch`.
     """
 
     touch: np.ndarray
@@ -134,6 +143,8 @@ class CrossBound:
     size2: np.ndarray
     changed_max: int
     lower: float
+    parts: np.ndarray
+    own: np.ndarray
 
     def largest(self, x_touch: np.ndarray, lazy: np.ndarray) -> float:
         """The largest ``X`` the model's rows allow at an integer point [A²].
@@ -194,16 +205,20 @@ def cross_bound(owner: np.ndarray, delta: np.ndarray, changed_max: int) -> Cross
     n = touch.size
     m_max = max(0, int(changed_max))
     zero = np.zeros(n)
+    d = delta[touch]
+    parts = np.stack([d.real, d.imag], axis=-1).reshape(n, 2 * delta.shape[1])
     if n == 0 or m_max == 0:
-        return CrossBound(touch, np.zeros((n, n)), zero, zero, 0.0, size2, m_max, 0.0)
+        return CrossBound(
+            touch, np.zeros((n, n)), zero, zero, 0.0, size2, m_max, 0.0, parts, owner[touch]
+        )
     own = owner[touch]
     first = np.flatnonzero(np.r_[True, own[1:] != own[:-1]])
     per_circuit_size = np.maximum.reduceat(size2, first)
     lower = -float(np.sum(np.sort(per_circuit_size)[::-1][:m_max]))
-    g = gram(delta[touch])
+    g = gram(d)
     g[own[:, None] == own[None, :]] = 0.0
     if first.size < 2:
-        return CrossBound(touch, g, zero, zero, 0.0, size2, m_max, lower)
+        return CrossBound(touch, g, zero, zero, 0.0, size2, m_max, lower, parts, own)
     hi = np.maximum.reduceat(np.maximum(g, 0.0), first, axis=1)  # (n, circuits)
     lo = np.minimum.reduceat(np.minimum(g, 0.0), first, axis=1)
     # an option's own circuit has 0 in hi and lo (zeroed above): harmless
@@ -218,7 +233,7 @@ def cross_bound(owner: np.ndarray, delta: np.ndarray, changed_max: int) -> Cross
             t_m = cum[:, min(mm - 2, k - 1)]
             best = np.sort(np.maximum.reduceat(t_m, first))[::-1][:mm]
             slope = max(slope, 0.5 * float(np.sum(best)) / (mm - 1))
-    return CrossBound(touch, g, partner, psi_lo, slope, size2, m_max, lower)
+    return CrossBound(touch, g, partner, psi_lo, slope, size2, m_max, lower, parts, own)
 
 
 @dataclass(frozen=True)
@@ -235,12 +250,18 @@ class SquareBound:
         Bounds on ``X``.
     lo : float
         ``S ≥ lo ≥ 0`` at every plan considered [A²].
+    ref_parts : float ndarray, shape (2K,)
+        The reference plan's spectrum, parts as in :attr:`CrossBound.parts` [A].
+    first_order : int
+        Index of the first order counted (0, or 1 for the harmonics alone).
     """
 
     const: float
     lin: np.ndarray
     cross: CrossBound
     lo: float
+    ref_parts: np.ndarray
+    first_order: int
 
     def value(self, assign: np.ndarray) -> float:
         """``S`` of a plan, exactly (the expansion of the module notes) [A²]."""
@@ -299,4 +320,5 @@ def square_bound(pr: Problem, p: int, budget: int, harmonics_only: bool = False)
         worst = np.sqrt(np.maximum.reduceat(size2, pr.starts[:-1]))
         d = float(np.sum(np.sort(worst)[::-1][:m_max]))
         lo = max(0.0, np.sqrt(const) - d) ** 2
-    return SquareBound(const, lin, cross, lo)
+    ref_parts = np.stack([v_ref.real, v_ref.imag], axis=-1).ravel()
+    return SquareBound(const, lin, cross, lo, ref_parts, 1 if harmonics_only else 0)
