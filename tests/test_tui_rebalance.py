@@ -179,3 +179,30 @@ def test_work_order_follows_the_rebalancers_steps_with_set_aside(small: Path) ->
     assert [s.move for s in plan.steps] == [0, 1, 0]
     assert plan.steps[0].text == 'Take out "Dishwasher" from slot 4 (B), set it aside'
     assert plan.steps[2].text == 'Install set-aside "Dishwasher" in slot 11 (C)'
+
+
+async def test_relayout_mode_runs_the_real_rebalancer(small: Path) -> None:
+    """Design mode: every unlocked circuit placed afresh; the plan applies as one edit."""
+    from tri.tui.widgets.cycle import Cycle
+
+    app = TriApp(small, journal=False)
+    async with app.run_test(size=(80, 24)) as pilot:
+        await settle(pilot)
+        before = app.session.schedule
+        await pilot.press("b")
+        screen = app.screen
+        screen.query_one("#rb-mode-choice", Cycle).index = 3
+        assert screen.query_one("#rb-mode-choice", Cycle).value == "relayout"
+        await pilot.press("ctrl+r")
+        for _ in range(100):  # bounded by the rebalancer's time limit
+            await settle(pilot)
+            if not screen.running:
+                break
+        assert screen.plan is not None, str(screen.query_one("#rb-state").render())
+        locked = {c.name for c in before.circuits if c.locked}
+        assert not any(m.before.name in locked for m in screen.plan.moves)
+        await pilot.press("A")
+        await settle(pilot)
+        if screen.plan.moves:
+            assert app.session.schedule == screen.plan.after
+            assert analyse_schedule(app.session.schedule) == app.analysis

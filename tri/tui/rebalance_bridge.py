@@ -42,7 +42,8 @@ class Options:
         Also find slots for the circuits not placed yet.
     mode : str
         ``"fewest-moves"`` (to the target), ``"balance"`` (best with at most
-        ``max_moves``) or ``"place-new"`` (only place new circuits).
+        ``max_moves``), ``"place-new"`` (only place new circuits) or
+        ``"relayout"`` (every unlocked circuit placed afresh, for design work).
     time_limit_s : float
         Search budget [s].
     """
@@ -249,6 +250,7 @@ def run(
             "fewest-moves": {"target_pct": options.target_pct, "max_moves": options.max_moves},
             "balance": {"max_moves": options.max_moves},
             "place-new": {},
+            "relayout": {"relayout": True},
         }.get(options.mode, {})
         suggest_options = options_cls(
             place_new=options.place_new, time_limit_s=options.time_limit_s, **fields

@@ -33,6 +33,7 @@ MODES = (
     ("fewest moves to target", "fewest-moves"),
     ("best balance ≤ moves", "balance"),
     ("place new only", "place-new"),
+    ("re-layout all (design)", "relayout"),
 )
 
 REBALANCE_HELP = """\
