@@ -194,8 +194,7 @@ def panel_findings(a: PanelAnalysis, limits: FindingLimits) -> list[Finding]:
                     f"({_fmt(max_phase)} A, ratio {n.ratio_to_max_phase:.2f}): triplen "
                     "harmonics add in the neutral.",
                     "common practice; Dugan et al., Electrical Power Systems Quality, "
-                    "ch. 5 (from memory); "
-                    + LOCAL,
+                    "ch. 5 (from memory); " + LOCAL,
                 )
             )
         if a.nonlinear_share_pct > limits.nonlinear_major_pct:
