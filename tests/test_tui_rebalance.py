@@ -43,6 +43,14 @@ def stand_in(schedule, *, target_pct=None, max_moves=None, place_new=True, time_
     return SimpleNamespace(status="optimal", objective="fewest moves", schedule=s, bound=None)
 
 
+async def search_done(pilot) -> None:
+    """Wait for the real rebalancer's search (bounded by its time limit of a few seconds)."""
+    for _ in range(100):
+        await settle(pilot)
+        if not pilot.app.screen.running:
+            return
+
+
 def slow_stand_in(schedule, *, progress=None, cancel=None, **_):
     while not cancel.is_set():
         progress(None, "still searching")
@@ -140,10 +148,7 @@ async def test_real_rebalancer_plan_is_applied_with_the_engines_figures(small: P
         await settle(pilot)
         before = app.session.schedule
         await pilot.press("b", "ctrl+r")
-        for _ in range(100):  # the search has a time limit of a few seconds
-            await settle(pilot)
-            if not app.screen.running:
-                break
+        await search_done(pilot)
         screen = app.screen
         assert screen.plan is not None, str(screen.query_one("#rb-state").render())
         assert screen.plan.status in ("optimal", "best-found", "infeasible", "already-balanced")
@@ -194,10 +199,7 @@ async def test_relayout_mode_runs_the_real_rebalancer(small: Path) -> None:
         screen.query_one("#rb-mode-choice", Cycle).index = 3
         assert screen.query_one("#rb-mode-choice", Cycle).value == "relayout"
         await pilot.press("ctrl+r")
-        for _ in range(100):  # bounded by the rebalancer's time limit
-            await settle(pilot)
-            if not screen.running:
-                break
+        await search_done(pilot)
         assert screen.plan is not None, str(screen.query_one("#rb-state").render())
         locked = {c.name for c in before.circuits if c.locked}
         assert not any(m.before.name in locked for m in screen.plan.moves)
