@@ -10,7 +10,7 @@ from tui_support import settle
 from tri.schedule.journal import journal_path, read_journal
 from tri.schedule.load import load_schedule
 from tri.schedule.to_engine import analyse_schedule
-from tri.tui import app as app_module
+from tri.tui import demos
 from tri.tui.app import TriApp
 from tri.tui.screens.choice import ChoiceScreen
 from tri.tui.screens.form import FormScreen
@@ -154,7 +154,7 @@ async def test_quit_without_edits_does_not_ask(small: Path) -> None:
 async def test_picker_opens_a_demo_as_an_unsaved_copy(
     monkeypatch: pytest.MonkeyPatch, tmp_path: Path
 ) -> None:
-    monkeypatch.setattr(app_module, "demo_folder", lambda: DATA)
+    monkeypatch.setattr(demos, "demo_folder", lambda: DATA)
     app = TriApp(None, journal=False)
     async with app.run_test(size=(80, 24)) as pilot:
         await settle(pilot)

@@ -28,13 +28,6 @@ from tri.tui.session import Session
 THEMES = ("textual-dark", "textual-light", "ansi-dark", "ansi-light")
 
 
-def demo_folder() -> Path:
-    """Where the demo panels live (``panels_demo/`` at the repository root)."""
-    import tri
-
-    return Path(tri.__file__).resolve().parents[1] / "panels_demo"
-
-
 class TriApp(App[int]):
     """Edit, analyse and rebalance one panel schedule from the keyboard."""
 

@@ -6,10 +6,10 @@ from typing import Any
 
 from rich.text import Text
 
+from tri.safety import SAFETY_CAUTION
 from tri.tui.screens.text_view import TextScreen
 from tri.tui.widgets.circuit_table import HELP as TABLE_HELP
 from tri.tui.widgets.results_panel import HELP as RESULTS_HELP
-from tri.tui.widgets.results_panel import LEVEL_WORD, sorted_findings
 
 CAUTION_TITLE = "Safety"
 
@@ -36,7 +36,6 @@ def _keys_of(screen_cls: Any) -> list[tuple[str, str]]:
 
 def help_screen(app: Any) -> TextScreen:
     """The help page for the app."""
-    from tri.cli.common import SAFETY_CAUTION
     from tri.tui.screens.main import MAIN_HELP, MainScreen
     from tri.tui.screens.phasor import PHASOR_HELP, PhasorScreen
     from tri.tui.screens.rebalance import REBALANCE_HELP, RebalanceScreen
@@ -79,17 +78,3 @@ def help_screen(app: Any) -> TextScreen:
     t.append(f"{CAUTION_TITLE}\n", style="bold underline")
     t.append(SAFETY_CAUTION + "\n")
     return TextScreen("Help: keys and what the screens show", t)
-
-
-def findings_screen(analysis: Any) -> TextScreen:
-    """Every finding of the engine, most serious first, with its source."""
-    t = Text()
-    findings = sorted_findings(analysis)
-    if not findings:
-        t.append("No findings.\n")
-    for f in findings:
-        word = LEVEL_WORD.get(f.level, f.level)
-        t.append(f"{word:5} ", style="bold red" if f.level == "limit" else "bold")
-        t.append(f.message + "\n")
-        t.append(f"      Source: {f.source}\n\n", style="dim")
-    return TextScreen(f"Findings ({len(findings)})", t)

@@ -289,13 +289,15 @@ class MainScreen(Screen[None]):
         self._edit_whole("readings_form", "Edited the readings")
 
     def action_findings(self) -> None:
-        from tri.tui.screens.help import findings_screen
+        from tri.tui.screens.findings import findings_screen
 
         app: Any = self.app
-        if app.analysis is None:
-            self.set_status(app.analysis_error or "No results yet.")
+        if app.analysis is None or not app.analysis_current:
+            self.set_status(app.analysis_error or "The results are being updated; press f again.")
             return
-        self.app.push_screen(findings_screen(app.analysis))
+        self.app.push_screen(
+            findings_screen(app.analysis, app.session.schedule, app.session.title_name)
+        )
 
     def action_phasors(self) -> None:
         from tri.tui.screens.phasor import PhasorScreen
