@@ -129,3 +129,24 @@ def form_problem(issue: ScheduleIssue, candidate: Schedule, edited: int) -> str:
     if issue.circuit_index is not None and issue.circuit_index != edited:
         return f"{circuit_label(candidate, issue.circuit_index)}: {text}"
     return text
+
+
+def circuit_details(schedule: Schedule, index: int) -> str:
+    """Everything about one circuit on one line, its full name first (the status line)."""
+    c = schedule.circuits[index]
+    parts = [circuit_label(schedule, index)]
+    if c.slot is not None and c.poles > 1:
+        poles = occupied_slots(c.slot, c.poles)
+        parts.append(f"{c.poles}-pole on {slots_words(poles)} ({schedule.phase_text(c.phases)})")
+    elif c.phases is not None:
+        parts.append(f"{c.poles}-pole on {schedule.phase_text(c.phases)}")
+    else:
+        parts.append(f"{c.poles}-pole, not placed")
+    parts.append("no rating given" if c.breaker_a is None else f"{c.breaker_a:g} A breaker")
+    if c.continuous:
+        parts.append("continuous (125 % for sizing)")
+    if c.locked:
+        parts.append("locked")
+    if c.note:
+        parts.append(f"note: {c.note}")
+    return " · ".join(parts)

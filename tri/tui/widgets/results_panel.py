@@ -13,6 +13,7 @@ from rich.text import Text
 from textual.widgets import Static
 
 from tri.tui import fmt
+from tri.tui.wording import plural
 
 HELP = """\
 Results (from the engine, updated after every edit): for each phase its
@@ -94,11 +95,17 @@ def results_lines(analysis: Any, width: int, finding_lines: int = 1) -> list[Tex
     v = analysis.voltage
     if v is not None:
         t.append(f"  VUF {v.vuf_pct:.2f} %")
-    lines.append(t)
-    t = Text(f"Rating {analysis.rating_a:g} A", style="dim")
+    rating = Text(f"Rating {analysis.rating_a:g} A", style="dim")
     if analysis.unplaced_count:
-        t.append(f"  {analysis.unplaced_count} new circuit(s) not placed, left out", style="")
-    lines.append(t)
+        rating.append(
+            f"  {plural(analysis.unplaced_count, 'new circuit')} not placed, left out", style=""
+        )
+    if t.cell_len + 2 + rating.cell_len <= width:
+        t.append("  ")
+        t.append_text(rating)
+        lines.append(t)
+    else:
+        lines += [t, rating]
     findings = sorted_findings(analysis)
     if not findings:
         lines.append(Text("No findings.", style="dim"))
