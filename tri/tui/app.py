@@ -24,6 +24,7 @@ from tri.schedule.model import Schedule
 from tri.tui import compute, recent
 from tri.tui.messages import AnalysisDone
 from tri.tui.session import Session
+from tri.tui.wording import issue_text, plural
 
 THEMES = ("textual-dark", "textual-light", "ansi-dark", "ansi-light")
 
@@ -123,7 +124,7 @@ class TriApp(App[int]):
             try:
                 session.save(path)
             except ScheduleError as exc:
-                self.show_problems(f"Cannot create {path.name}", exc)
+                self.show_problems(f"Cannot create {path.name}", exc, path.name, result)
                 return
             recent.remember(path)
             self.start_session(session)
@@ -142,9 +143,10 @@ class TriApp(App[int]):
         if entry is None or entry.schedule == s.schedule:
             return
         changed = entry.file_changed_since()
+        written = entry.written_utc[:16].replace("T", " ")
         message = (
             f"Unsaved edits of {s.title_name} were kept when tri last stopped "
-            f"({entry.edits} edit(s), written {entry.written_utc[:16].replace('T', ' ')} UTC)."
+            f"({plural(entry.edits, 'edit')}, written {written} UTC)."
         )
         if changed:
             message += "\nThe file has changed on disk since; recovering replaces it on save."
@@ -237,12 +239,15 @@ class TriApp(App[int]):
             if setter is not None:
                 setter(text, error)
 
-    def show_problems(self, title: str, exc: ScheduleError) -> None:
-        """Every located problem of a schedule, in a page the user closes."""
+    def show_problems(
+        self, title: str, exc: ScheduleError, file_name: str = "", schedule: Schedule | None = None
+    ) -> None:
+        """Every located problem of a schedule, each naming the file, in a page the user closes."""
         from tri.tui.screens.text_view import TextScreen
 
-        body = "\n".join(str(i) for i in exc.issues) or str(exc)
-        self.push_screen(TextScreen(title, Text(body)))
+        lines = [issue_text(i, file_name, schedule) for i in exc.issues]
+        body = "\n".join(lines) or str(exc)
+        self.push_screen(TextScreen(f"{title} ({plural(len(lines), 'problem')})", Text(body)))
 
     # ------------------------------------------------------------ saving
 
@@ -260,8 +265,10 @@ class TriApp(App[int]):
         try:
             self.session.save(path)
         except ScheduleError as exc:
-            self.set_status(f"Not saved: {exc.issues[0] if exc.issues else exc}", error=True)
-            self.show_problems("Not saved", exc)
+            shown = self.session.schedule
+            first = issue_text(exc.issues[0], path.name, shown) if exc.issues else str(exc)
+            self.set_status(f"{path.name} not saved: {first}", error=True)
+            self.show_problems(f"{path.name} not saved", exc, path.name, shown)
             return False
         recent.remember(path)
         self.set_status(f"Saved {path.name} (previous version kept as {path.name}.bak).")

@@ -61,7 +61,7 @@ class MainScreen(CircuitActions, Screen[None]):
         Binding("m", "move", "Move", id="main.move"),
         Binding("o", "take_off", "Take off", show=False, id="main.take_off"),
         Binding("l", "lock", "Lock", show=False, id="main.lock"),
-        Binding("u,ctrl+z", "undo", "Undo", id="main.undo"),
+        Binding("u,ctrl+z", "undo", "Undo", show=False, id="main.undo"),
         Binding("r,ctrl+y", "redo", "Redo", show=False, id="main.redo"),
         Binding("v", "phasors", "Phasors", id="main.phasors"),
         Binding("b", "rebalance", "Balance", id="main.rebalance"),
@@ -150,7 +150,8 @@ class MainScreen(CircuitActions, Screen[None]):
         if not self._ready:
             return
         status = self.query_one("#status", Static)
-        status.update(Text(("Error: " if error else "") + text))
+        prefix = "Error: " if error and not text.startswith("✗") else ""
+        status.update(Text(prefix + text))
         status.set_class(error, "-error")
 
     # ------------------------------------------------------------ the two views
