@@ -54,6 +54,7 @@ class TriApp(App[int]):
         self.session: Session | None = None
         self.analysis: Any = None
         self.analysis_error: str | None = None
+        self.checks: Any = ()
         self.generation = 0
         self.analysed_generation = -1
         self.quitting = False
@@ -201,19 +202,23 @@ class TriApp(App[int]):
 
     @work(thread=True, exclusive=True, group="analysis", exit_on_error=False)
     def _analyse(self, generation: int, schedule: Schedule) -> None:
+        checks: Any = ()
         try:
             result, error = compute.analyse_schedule(schedule), None
+            checks = compute.check_results(result, schedule)
         except ImportError:
             result, error = None, compute.ENGINE_MISSING
         except Exception as exc:  # an engine failure is a message, not a crash
             result, error = None, f"The engine could not analyse this schedule: {exc}"
-        self.call_from_thread(self.post_message, AnalysisDone(generation, result, error))
+        done = AnalysisDone(generation, result, error, checks)
+        self.call_from_thread(self.post_message, done)
 
     def on_analysis_done(self, message: AnalysisDone) -> None:
         if message.generation != self.generation:
             return
         self.analysis = message.analysis
         self.analysis_error = message.error
+        self.checks = message.checks
         self.analysed_generation = message.generation
         self.refresh_screens()
 

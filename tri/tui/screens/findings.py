@@ -12,6 +12,7 @@ from __future__ import annotations
 from typing import Any
 
 from rich.console import Group
+from rich.table import Table
 from rich.text import Text
 
 from tri.safety import SAFETY_CAUTION
@@ -20,25 +21,27 @@ from tri.tui.screens.text_view import TextScreen
 from tri.tui.widgets.results_panel import LEVEL_WORD, sorted_findings
 from tri.tui.wording import plural
 
-PAGE_WIDTH = 96
+PAGE_WIDTH = 100  #: the page's widest (tri.tcss .page max-width)
 
 
-def findings_text(analysis: Any) -> Text:
-    """Every finding, most serious first, each with its source."""
-    t = Text()
+def findings_text(analysis: Any) -> Group:
+    """Every finding, most serious first, each with its source (lines hang under the text)."""
     findings = sorted_findings(analysis)
     counts = ", ".join(
         f"{sum(1 for f in findings if f.level == lv)} {lv}" for lv in ("limit", "warning", "info")
     )
-    t.append(f"{plural(len(findings), 'finding')} ({counts})\n\n", style="bold")
-    if not findings:
-        t.append("No findings.\n")
+    head = Text(f"{plural(len(findings), 'finding')} ({counts})\n", style="bold")
+    grid = Table.grid(padding=(0, 1))
+    grid.add_column(width=5, no_wrap=True)
+    grid.add_column(ratio=1)
     for f in findings:
         word = LEVEL_WORD.get(f.level, f.level)
-        t.append(f"{word:5} ", style="bold red" if f.level == "limit" else "bold")
-        t.append(f.message + "\n")
-        t.append(f"      Source: {f.source}\n\n", style="dim")
-    return t
+        body = Text(f.message + "\n")
+        body.append(f"Source: {f.source}\n", style="dim")
+        grid.add_row(Text(word, style="bold red" if f.level == "limit" else "bold"), body)
+    if not findings:
+        return Group(head, Text("No findings."))
+    return Group(head, grid)
 
 
 def _report_data(analysis: Any, schedule: Schedule, file_name: str) -> dict[str, Any]:
@@ -71,12 +74,19 @@ def report_renderable(data: dict[str, Any]) -> Group:
     return Group(*text_renderables(data))
 
 
-def findings_screen(analysis: Any, schedule: Schedule, file_name: str) -> TextScreen:
-    """The page: findings, checks and the report of ``schedule`` (``analysis`` is its result)."""
+def findings_screen(
+    analysis: Any, schedule: Schedule, file_name: str, screen_width: int = 80
+) -> TextScreen:
+    """The page: findings, checks and the report of ``schedule`` (``analysis`` is its result).
+
+    ``screen_width`` [cells] sets where the checks' text wraps (the page's
+    border, padding and scroll bar take 6).
+    """
     data = _report_data(analysis, schedule, file_name)
+    text_width = min(screen_width, PAGE_WIDTH) - 6
     views: list[tuple[str, Any]] = [
         ("findings", findings_text(analysis)),
-        ("checks", checks_text(data, file_name, PAGE_WIDTH - 4)),
+        ("checks", checks_text(data, file_name, text_width)),
         ("report", report_renderable(data)),
     ]
     n = len(analysis.findings)

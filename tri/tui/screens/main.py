@@ -143,7 +143,7 @@ class MainScreen(CircuitActions, Screen[None]):
         if app.analysis is None:
             results.show(None, app.analysis_error or "Analysing…")
         else:
-            results.show(app.analysis, stale=not app.analysis_current)
+            results.show(app.analysis, stale=not app.analysis_current, checks=app.checks)
 
     def set_status(self, text: str, error: bool = False) -> None:
         """One line of feedback under the results (it stays until the cursor moves)."""
@@ -343,7 +343,9 @@ class MainScreen(CircuitActions, Screen[None]):
             self.set_status(app.analysis_error or "The results are being updated; press f again.")
             return
         self.app.push_screen(
-            findings_screen(app.analysis, app.session.schedule, app.session.title_name)
+            findings_screen(
+                app.analysis, app.session.schedule, app.session.title_name, self.app.size.width
+            )
         )
 
     def action_phasors(self) -> None:
