@@ -38,6 +38,7 @@ from tri.tui.panel_layout import (
 
 WIDE_AT = 110
 RAIL_INFO = 22  #: phases 6, rating 5, flags 2, gap 1, amps 8
+RAIL_LEAD = 4  #: indent, mark, gap
 BRACKET = {(1, 1): " ", (1, 2): "┌", (2, 2): "└", (1, 3): "┌", (2, 3): "│", (3, 3): "└"}
 
 
@@ -175,7 +176,7 @@ class PanelView(ScrollView, can_focus=True):
         return max((self._content_width() - 5) // 2, 20)
 
     def _rail_name_width(self) -> int:
-        return max(self._content_width() - 5 - RAIL_INFO - 1, 8)
+        return max(self._content_width() - RAIL_LEAD - RAIL_INFO - 2, 8)
 
     def on_resize(self) -> None:
         if self.schedule is not None:
@@ -329,7 +330,9 @@ class PanelView(ScrollView, can_focus=True):
         if s is None:
             return Text("")
         if not s.panel.uses_slots:
-            return Text(" Phase / circuit", style="bold")
+            name_w = self._rail_name_width()
+            return Text(f"{'':{RAIL_LEAD}}{'Circuit, under each phase it takes':<{name_w}} "
+                        f"{'Ph':<6} Brkr        Amps")  # fmt: skip
         half = self._half()
         info = "Brkr  Amps" if self._wide() else "Brkr"
         left = f"{'#':>3}  {'Circuit':<{half - 5 - len(info) - 1}}{info:>{len(info)}} "
@@ -428,24 +431,26 @@ class PanelView(ScrollView, can_focus=True):
         assert i is not None
         c = s.circuits[i]
         pos = cell.position
+        continues = pos is not None and pos.continues
         if cell.kind == "new":
-            lead, where = "   ", "new"
+            mark, where = " ", "new"
         else:
-            assert pos is not None
-            lead = "  " + BRACKET.get((pos.pole, pos.poles), "│").replace(" ", "─")
-            where = s.phase_text(c.phases)
+            mark = "╌" if continues else "─"
+            where = "3ph" if c.poles == 3 else s.phase_text(c.phases)
         flags = ("*" if c.continuous else " ") + ("#" if c.locked else " ")
-        name = self.names.get(i, c.name)
         amps = ""
-        if self.analysis is not None and c.is_placed:
+        if continues and pos is not None:
+            amps = f"pole {pos.pole}"
+        elif self.analysis is not None and c.is_placed:
             try:
                 amps = fmt.amps(self.analysis.circuit_rms_a[i])
             except (AttributeError, IndexError, TypeError):
                 amps = "?"
         info = f"{where:<6}{fmt.breaker_text(c):>5}{flags} {amps:>8}"
-        name_w = max(width - 3 - 1 - len(info) - 1, 8)
-        text = f"{lead} {fmt.shorten(name, name_w):<{name_w}} {info}"
-        style = "italic" if pos is not None and pos.continues else ""
+        name_w = self._rail_name_width()
+        name = fmt.shorten(self.names.get(i, c.name), name_w)
+        text = f"  {mark} {name:<{name_w}} {info}"
+        style = "italic" if continues else ""
         if self.picking == i:
             style = "dim"
         if selected:

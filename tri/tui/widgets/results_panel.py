@@ -70,6 +70,7 @@ def checks_line(checks: Any, width: int) -> Text | None:
     t.append("Checks ", style="bold")
     for word, status in (("FAIL", "fail"), ("PASS", "pass"), ("skipped", "skipped")):
         keys = [r.key for r in checks if r.status == status]
+        keys = [k if keys.count(k) == 1 else f"{k} ×{keys.count(k)}" for k in dict.fromkeys(keys)]
         if keys:
             if len(t) > 7:
                 t.append(" · ")
