@@ -11,7 +11,6 @@ from pathlib import Path
 
 from tui_support import settle
 
-from tri.schedule.load import load_schedule
 from tri.tui.app import TriApp
 from tri.tui.screens.form import FormScreen
 from tri.tui.screens.main import MainScreen

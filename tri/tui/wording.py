@@ -98,6 +98,14 @@ def issue_text(issue: ScheduleIssue, file_name: str, schedule: Schedule | None =
     return ": ".join(parts) + ": " + _name_circuits(issue.message, schedule)
 
 
+def issue_words(issue: ScheduleIssue, schedule: Schedule) -> str:
+    """A problem without the file: ``slot 9 "Signage": slot 9 is not on the panel ...``."""
+    text = _name_circuits(issue.message, schedule)
+    if issue.circuit_index is not None and 0 <= issue.circuit_index < len(schedule.circuits):
+        return f"{circuit_label(schedule, issue.circuit_index)}: {text}"
+    return text
+
+
 def form_problem(issue: ScheduleIssue, candidate: Schedule, edited: int) -> str:
     """A problem of an edit, worded from the edited circuit's side.
 

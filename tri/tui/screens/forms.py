@@ -26,7 +26,7 @@ from tri.schedule.validate import check_schedule
 from tri.tui.fmt import parse_number
 from tri.tui.rules import move_problems, move_summary, new_problems
 from tri.tui.screens.form import Field, FormScreen, Values
-from tri.tui.wording import circuit_label
+from tri.tui.wording import circuit_label, issue_words, plural
 
 #: The circuit keys the circuit form edits; any other key of the circuit is kept.
 FORM_KEYS = (
@@ -240,7 +240,8 @@ def panel_form(schedule: Schedule) -> FormScreen:
         if issues:
             first = issues[0]
             key = "spaces" if first.key == "slot" else ("system" if first.key == "poles" else "")
-            problems[key] = f"{first.where}: {first.message}"
+            more = f" (and {plural(len(issues) - 1, 'other problem')})" if len(issues) > 1 else ""
+            problems[key] = issue_words(first, candidate) + more
         return (None if problems else candidate), problems
 
     return FormScreen("Panel", fields, validate)
