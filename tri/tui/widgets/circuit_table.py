@@ -40,9 +40,18 @@ class Column:
 
 
 def columns_for(
-    width: int, slots: bool, long_labels: bool, profile_w: int, leading: bool = False
+    width: int,
+    slots: bool,
+    long_labels: bool,
+    profile_w: int,
+    leading: bool = False,
+    longest_name: int = 40,
 ) -> list[Column]:
-    """The columns at a terminal ``width`` [cells]; the name (and note) take what is left."""
+    """The columns at a terminal ``width`` [cells]; the name (and note) take what is left.
+
+    On a wide terminal the name gets what its longest needs (the note keeps at
+    least 12 cells), and the note the rest.
+    """
     wide = width >= WIDE_AT
     ph = 5 if long_labels else 3
     cols = [Column("slot", "Slot" if slots else "No.", 4, True), Column("name", "Circuit", 0)]
@@ -63,7 +72,7 @@ def columns_for(
     fixed = sum(c.width + 1 for c in cols) + 1 + SCROLLBAR
     spare = max(width - fixed, 0)
     if wide:
-        name_w = max(min(spare * 3 // 5, 44), 16)
+        name_w = max(min(longest_name, spare - 13), 16)
         note_w = max(spare - name_w - 1, 8)
     else:
         name_w, note_w = max(spare, 12), 0
@@ -131,12 +140,13 @@ class CircuitTable(DataTable[Any]):
         profile_w = max(profile_w, len("Profile"))
         long_labels = any(len(x) > 1 for x in schedule.labels)
         leading = any(c.leading and c.pf < 0.9995 for c in schedule.circuits)
-        shape = (width, schedule.panel.uses_slots, long_labels, profile_w, leading)
+        longest = max((len(c.name) for c in schedule.circuits), default=10)
+        shape = (width, schedule.panel.uses_slots, long_labels, profile_w, leading, longest)
         if self._shape == shape:
             return
         self.clear(columns=True)
         self.columns_shown = columns_for(
-            width, schedule.panel.uses_slots, long_labels, profile_w, leading
+            width, schedule.panel.uses_slots, long_labels, profile_w, leading, longest
         )
         for k, c in enumerate(self.columns_shown):
             self.add_column(_cell(c, c.label, k == 0), width=c.width + 1 + (k == 0), key=c.key)
