@@ -89,7 +89,7 @@ async def test_every_pole_shows_its_breaker_and_the_status_line_names_it(small: 
         assert cell.position.slot == 10
         assert cell.circuit == index_of(app, "Oven")
         assert cell.position.pole == 3
-        assert status(app).startswith('slot 6 "Oven" · 3-pole on slots 6, 8 and 10 (ABC)')
+        assert status(app).startswith('slot 6 "Oven" · 3-pole on slots 6, 8, 10 (ABC)')
         assert "20 A breaker" in status(app)
         await pilot.press("j")
         await pilot.pause()

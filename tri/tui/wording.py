@@ -145,7 +145,8 @@ def circuit_details(schedule: Schedule, index: int) -> str:
     parts = [circuit_label(schedule, index)]
     if c.slot is not None and c.poles > 1:
         poles = occupied_slots(c.slot, c.poles)
-        parts.append(f"{c.poles}-pole on {slots_words(poles)} ({schedule.phase_text(c.phases)})")
+        listed = ", ".join(str(x) for x in poles)
+        parts.append(f"{c.poles}-pole on slots {listed} ({schedule.phase_text(c.phases)})")
     elif c.phases is not None:
         parts.append(f"{c.poles}-pole on {schedule.phase_text(c.phases)}")
     else:

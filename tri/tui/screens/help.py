@@ -18,7 +18,14 @@ def _key_name(keys: str) -> str:
     names = []
     for k in keys.split(","):
         k = k.strip()
-        k = {"question_mark": "?", "delete": "Del", "escape": "Esc", "enter": "Enter"}.get(k, k)
+        k = {
+            "question_mark": "?",
+            "delete": "Del",
+            "escape": "Esc",
+            "enter": "Enter",
+            "tab": "Tab",
+            "shift+tab": "Shift+Tab",
+        }.get(k, k)
         if k.startswith("ctrl+"):
             k = "Ctrl+" + k[5:].upper()
         names.append(k)
@@ -26,11 +33,13 @@ def _key_name(keys: str) -> str:
 
 
 def _keys_of(screen_cls: Any) -> list[tuple[str, str]]:
+    """(keys, what they do) of a screen's bindings, in the screen's own words where it has them."""
+    words = getattr(screen_cls, "KEY_WORDS", {})
     out = []
     for b in getattr(screen_cls, "BINDINGS", []):
         if b.description in ("Down", "Up", "Page down", "Page up"):
             continue
-        out.append((_key_name(b.key), b.description))
+        out.append((_key_name(b.key), words.get(b.action, b.description)))
     return out
 
 
@@ -63,7 +72,9 @@ def help_screen(app: Any) -> TextScreen:
         "",
     )
     main_keys = [
-        ("Enter / e", "edit the circuit under the cursor"),
+        ("Enter / e", "edit the circuit under the cursor (on a space: add one there)"),
+        ("↑↓ j k", "move; PgUp PgDn a page; Home End g G first and last"),
+        ("← →", "panel view: the other column (rail board: the next phase)"),
         *[(k, d) for k, d in _keys_of(MainScreen) if d not in ("Edit",)],
     ]
     section("Main view", main_keys, MAIN_HELP + "\n\n" + TABLE_HELP + "\n\n" + RESULTS_HELP)

@@ -45,6 +45,29 @@ phase) and press Enter; the positions it would take show → (free) or ✗
 (taken, with the breaker that holds it). Esc puts it back. Enter on a space
 adds a circuit there."""
 
+#: What each key does, in words, for the help page (the footer keeps the short labels).
+KEY_WORDS = {
+    "toggle_view": "the list or the panel view (as built)",
+    "add": "add a circuit",
+    "duplicate": "copy the circuit (the copy goes to the first free slot)",
+    "delete": "delete the circuit (u undoes)",
+    "move": "move (list: a dialog; panel view: pick up, choose, Enter)",
+    "take_off": "take the breaker off the panel (asks first; it stays, not placed)",
+    "lock": "lock or unlock (the rebalancer never moves a locked breaker)",
+    "undo": "undo",
+    "redo": "redo",
+    "phasors": "phasor diagram",
+    "rebalance": "rebalance: fewest moves to a target, and more",
+    "panel": "edit the panel (name, system, spaces, ratings, labels)",
+    "supply": "edit the supply (transformer and feeder)",
+    "readings": "edit the site readings",
+    "findings": "findings, checks (as tri check) and the full report",
+    "app.save": "save (comments kept, previous file kept as .bak)",
+    "app.save_as": "save as",
+    "cancel_pick": "put back the breaker being moved",
+    "app.quit": "quit",
+}
+
 #: Actions allowed while a breaker is being moved on the panel view.
 PICKING_ACTIONS = {"cancel_pick", "quit", "help", "toggle_view"}
 
@@ -77,6 +100,7 @@ class MainScreen(CircuitActions, Screen[None]):
         Binding("q", "app.quit", "Quit", show=False, id="main.quit"),
     ]
 
+    KEY_WORDS = KEY_WORDS
     view = "list"
     picking: int | None = None
     _ready = False

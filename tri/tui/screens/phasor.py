@@ -24,7 +24,8 @@ and, when the file describes the supply, the phase voltages at the panel.
 Every arrow has a head and is named beside its tip, and is listed with its
 magnitude and angle. Arrows that point the same way (within 8°) are drawn
 side by side a few dots apart, so none hides another; a phasor too short
-to draw is named at the centre with "≈0". The neutral is dotted."""
+to draw at the scale of the others is named at the centre ("too short to
+draw"; its value is in the list). The neutral is dotted."""
 
 PHASE_STYLES = ("magenta", "cyan", "green")
 SEQ_STYLES = ("yellow", "blue", "red")
@@ -90,7 +91,7 @@ class PhasorScreen(Screen[None]):
         if self.view not in views:
             self.view = "currents"
         name = app.session.schedule.panel.name
-        room = max(self.size.width - 46, 0)
+        room = max(self.size.width - 28 - sum(len(v) + 3 for v in views), 0)
         name = name if len(name) <= room else name[: max(room - 1, 0)] + "…"
         title = Text(f" Phasors{' · ' + name if name else ''} │ view:")
         for v in views:

@@ -118,6 +118,7 @@ class PanelView(ScrollView, can_focus=True):
         if self.schedule is not None:
             self._fit_names()
             self.virtual_size = Size(0, len(self.lines) + 1)
+            self.call_after_refresh(self.scroll_to_cursor)
             self.refresh()
 
     # ------------------------------------------------------------ cursor
@@ -148,11 +149,15 @@ class PanelView(ScrollView, can_focus=True):
             while 0 <= self.row < n and not self.lines[self.row].cells:
                 self.row += -1 if step >= 0 else 1
 
-    def _moved(self, notify: bool = True) -> None:
-        if self.lines:
+    def scroll_to_cursor(self) -> None:
+        """Scroll so the cursor's line shows under the heading (only once the view has a size)."""
+        if self.lines and self.size.height > 2:
             self.scroll_to_region(
                 Region(0, self.row, max(self.size.width, 1), 2), animate=False, force=True
             )
+
+    def _moved(self, notify: bool = True) -> None:
+        self.scroll_to_cursor()
         self.refresh()
         if notify:
             self.post_message(self.CursorMoved(self.current))

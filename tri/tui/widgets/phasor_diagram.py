@@ -9,7 +9,8 @@ nothing about the values:
   side by side, a few dots apart, so a phasor never hides under another
   (phase C under the neutral, say), and each keeps its own label;
 - labels sit beside their tips and never overwrite each other;
-- a phasor too short to draw is named at the origin with "≈0".
+- a phasor too short to draw at this scale is named at the origin as such
+  (its value is in the legend).
 """
 
 from __future__ import annotations
@@ -116,7 +117,7 @@ def draw(arrows: list[Arrow], cols: int, rows: int, title: str = "") -> Text:
         canvas.label(col, row, a.label, f"bold {a.style}".strip())
         taken.update((col + k, row) for k in range(len(a.label)))
     if tiny:
-        text = ", ".join(tiny) + " ≈0"
+        text = ", ".join(tiny) + ": too short to draw"
         col, row = _place_label(canvas, taken, cols // 2 + 1, min(rows // 2 + 1, rows - 1), text)
         canvas.label(col, row, text, "bold")
     return canvas.render()
