@@ -2,9 +2,11 @@
 
 from __future__ import annotations
 
+import io
 from pathlib import Path
 
 import pytest
+from rich.console import Console
 from tui_support import settle
 
 from tri.schedule.journal import journal_path, read_journal
@@ -193,14 +195,24 @@ async def test_help_lists_keys_and_the_caution(small: Path) -> None:
         await pilot.press("question_mark")
         assert isinstance(app.screen, TextScreen)
         body = str(app.screen.body)
-        for words in ("Ctrl+Q", "Undo", "Rebalance", "nothing here is approval to work"):
+        for words in ("Ctrl+Q", "undo", "Rebalance", "nothing here is approval to work"):
             assert words in body
         await pilot.press("escape")
         assert isinstance(app.screen, MainScreen)
         await pilot.press("f")
         assert isinstance(app.screen, TextScreen)
+        shown = plain(app.screen.body)
         for finding in app.analysis.findings:
-            assert finding.message in str(app.screen.body)
+            assert " ".join(finding.message.split()) in shown
+        await pilot.press("tab")  # the checks, as tri check words them
+        assert "checks" in plain(app.screen.body) and "PASS" in plain(app.screen.body)
+
+
+def plain(renderable) -> str:
+    """What a renderable shows, as one line of words (wrapping undone)."""
+    console = Console(width=200, record=True, file=io.StringIO())
+    console.print(renderable)
+    return " ".join(console.export_text().split())
 
 
 DEMOS = sorted((Path(__file__).resolve().parents[1] / "panels_demo").glob("*.toml"))

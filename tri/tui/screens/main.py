@@ -161,8 +161,11 @@ class MainScreen(CircuitActions, Screen[None]):
         schedule = app.session.schedule
         if self.picking is not None and self.picking >= len(schedule.circuits):
             self._end_pick()
-        self.query_one(CircuitTable).show(schedule, analysis, keep_index)
-        self.query_one(PanelView).show(schedule, analysis, keep_index)
+        # Only the view on screen is redrawn; the other catches up when Tab shows it.
+        if self.view == "list":
+            self.query_one(CircuitTable).show(schedule, analysis, keep_index)
+        else:
+            self.query_one(PanelView).show(schedule, analysis, keep_index)
         results = self.query_one(ResultsPanel)
         if app.analysis is None:
             results.show(None, app.analysis_error or "Analysing…")
@@ -195,6 +198,7 @@ class MainScreen(CircuitActions, Screen[None]):
         self.view = "panel" if self.view == "list" else "list"
         recent.store_setting("view", self.view)
         self._show_view()
+        self.refresh_view(keep_index=index)
         if index is not None:
             if self.view == "list":
                 self.query_one(CircuitTable).select_index(index)

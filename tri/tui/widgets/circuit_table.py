@@ -100,13 +100,19 @@ def display_order(schedule: Schedule) -> list[int]:
     return sorted(range(len(schedule.circuits)), key=key)
 
 
-def _cell(col: Column, value: str, first: bool) -> Text:
-    """A cell padded by hand (one space after it, one before the first column)."""
+def _padded(col: Column, value: str, first: bool) -> str:
+    """A cell's text padded by hand (one space after it, one before the first column)."""
     value = fmt.shorten(value, col.width)
     padded = value.rjust(col.width) if col.right else value.ljust(col.width)
-    return Text(
-        (" " if first else "") + padded + " ", no_wrap=True, overflow="crop", justify="left"
-    )
+    return (" " if first else "") + padded + " "
+
+
+def _cell(col: Column, value: str, first: bool) -> Text:
+    return _text(_padded(col, value, first))
+
+
+def _text(padded: str) -> Text:
+    return Text(padded, no_wrap=True, overflow="crop", justify="left")
 
 
 def flags_text(c: Circuit) -> str:
@@ -130,6 +136,7 @@ class CircuitTable(DataTable[Any]):
     def __init__(self, **kwargs: Any) -> None:
         super().__init__(cursor_type="row", zebra_stripes=True, cell_padding=0, **kwargs)
         self._order: list[int] = []
+        self._rows: list[tuple[str, ...]] = []
         self._shape: tuple[Any, ...] | None = None
         self.columns_shown: list[Column] = []
 
@@ -154,7 +161,7 @@ class CircuitTable(DataTable[Any]):
 
     def _cells(
         self, c: Circuit, i: int, schedule: Schedule, analysis: Any, name: str, note: str
-    ) -> list[Text]:
+    ) -> tuple[str, ...]:
         amps = "…"
         if analysis is not None:
             try:
@@ -181,25 +188,40 @@ class CircuitTable(DataTable[Any]):
             "flags": flags_text(c),
             "note": note,
         }
-        return [_cell(col, values[col.key], k == 0) for k, col in enumerate(self.columns_shown)]
+        return tuple(
+            _padded(col, values[col.key], k == 0) for k, col in enumerate(self.columns_shown)
+        )
 
     def _width(self, key: str) -> int:
         return next((c.width for c in self.columns_shown if c.key == key), 10)
 
     def show(self, schedule: Schedule, analysis: Any, keep_index: int | None = None) -> None:
-        """Rebuild the rows; keep the cursor on circuit ``keep_index`` (default: same circuit)."""
+        """Redraw the rows; keep the cursor on circuit ``keep_index`` (default: same circuit).
+
+        Rows are keyed by position, not by circuit: an edit replaces only the
+        cells whose text changed and adds or removes rows at the end, so the
+        table never measures every cell again (what a rebuild costs).
+        """
         if keep_index is None:
             keep_index = self.current_index
         row_before = self.cursor_row
+        shape = self._shape
         self._set_columns(schedule)
-        self.clear()
-        self._order = display_order(schedule)
-        names = fmt.fit_names([schedule.circuits[i].name for i in self._order], self._width("name"))
+        order = display_order(schedule)
+        names = fmt.fit_names([schedule.circuits[i].name for i in order], self._width("name"))
         note_w = self._width("note")
-        for i, name in zip(self._order, names, strict=True):
+        rows = []
+        for i, name in zip(order, names, strict=True):
             c = schedule.circuits[i]
             note = fmt.shorten(c.note, note_w)
-            self.add_row(*self._cells(c, i, schedule, analysis, name, note), key=str(i))
+            rows.append(self._cells(c, i, schedule, analysis, name, note))
+        if shape != self._shape or not self._rows:
+            self.clear()
+            for r, cells in enumerate(rows):
+                self.add_row(*(_text(x) for x in cells), key=f"r{r}")
+        else:
+            self._update_rows(rows)
+        self._order, self._rows = order, rows
         if not self._order:
             return
         if keep_index is not None and keep_index in self._order:
@@ -207,6 +229,19 @@ class CircuitTable(DataTable[Any]):
         else:
             row = min(max(row_before, 0), len(self._order) - 1)
         self.move_cursor(row=row, animate=False)
+
+    def _update_rows(self, rows: list[tuple[str, ...]]) -> None:
+        keys = [c.key for c in self.columns_shown]
+        old = self._rows
+        for r, (before, after) in enumerate(zip(old, rows, strict=False)):
+            if before != after:
+                for key, a, b in zip(keys, before, after, strict=True):
+                    if a != b:
+                        self.update_cell(f"r{r}", key, _text(b))
+        for r in range(len(rows), len(old)):
+            self.remove_row(f"r{r}")
+        for r in range(len(old), len(rows)):
+            self.add_row(*(_text(x) for x in rows[r]), key=f"r{r}")
 
     @property
     def current_index(self) -> int | None:
