@@ -59,15 +59,12 @@ def _put(raw: dict[str, Any], key: str, text: str) -> None:
 # ---------------------------------------------------------------- circuit
 
 
-def circuit_form(schedule: Schedule, index: int | None, base: Circuit | None = None) -> FormScreen:
-    """Edit circuit ``index`` (``None``: a new circuit, prefilled from ``base``)."""
+def _circuit_fields(schedule: Schedule, c: Circuit) -> list[Field]:
+    """The circuit form's fields, filled from ``c``."""
     panel = schedule.panel
-    c = base if base is not None else (schedule.circuits[index] if index is not None else None)
-    c = c or Circuit(name="", load_value=0.0)
-    slots = panel.uses_slots
     place = (
         Field("slot", "Slot", _num_text(c.slot), hint=f"1..{panel.spaces}, blank = not placed")
-        if slots
+        if panel.uses_slots
         else Field(
             "phases",
             "Phases",
@@ -78,7 +75,7 @@ def circuit_form(schedule: Schedule, index: int | None, base: Circuit | None = N
     profiles = [*BUILTIN_PROFILES, *(p.name for p in schedule.profiles)]
     if c.profile not in profiles:
         profiles.append(c.profile)
-    fields = [
+    return [
         Field("name", "Name", c.name, hint="purpose, as in the panel directory"),
         place,
         Field(
@@ -104,6 +101,15 @@ def circuit_form(schedule: Schedule, index: int | None, base: Circuit | None = N
         Field("breaker_a", "Breaker A", _num_text(c.breaker_a), hint="rating, optional"),
         Field("note", "Note", c.note, hint="optional"),
     ]
+
+
+def circuit_form(schedule: Schedule, index: int | None, base: Circuit | None = None) -> FormScreen:
+    """Edit circuit ``index`` (``None``: a new circuit, prefilled from ``base``)."""
+    panel = schedule.panel
+    c = base if base is not None else (schedule.circuits[index] if index is not None else None)
+    c = c or Circuit(name="", load_value=0.0)
+    slots = panel.uses_slots
+    fields = _circuit_fields(schedule, c)
     position = index if index is not None else len(schedule.circuits)
     keys = {f.key for f in fields}
 
