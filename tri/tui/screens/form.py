@@ -102,7 +102,7 @@ class FormScreen(ModalScreen[Any]):
                         yield self._widget(f)
             yield Static("", id="form-message", classes="form-message")
             yield Static(
-                "Enter accept · Esc cancel · ↑↓ field (▶ marks it) · ←→ change",
+                "Enter accept · Esc cancel · ↑↓ field (▶ is here) · ←→ change",
                 classes="dialog-keys",
             )
 

@@ -256,6 +256,25 @@ class MainScreen(CircuitActions, Screen[None]):
         elif cell is not None and cell.kind == "group" and cell.phase is not None:
             self.set_status(f"phase {s.labels[cell.phase]}: Enter adds a circuit on it.")
 
+    def action_add(self) -> None:
+        """a: add a circuit; on a space of the panel view, in that space."""
+        cell = self.query_one(PanelView).current if self.view == "panel" else None
+        if cell is not None and cell.circuit is None:
+            self._add_at(cell)
+        else:
+            self.add_circuit()
+
+    def _add_at(self, cell: Cell) -> None:
+        from tri.tui.screens.forms import default_circuit
+
+        base = default_circuit(self.schedule)
+        if cell.kind == "slot" and cell.position is not None:
+            self.add_circuit(base.at_slot(cell.position.slot))
+        elif cell.kind == "group" and cell.phase is not None:
+            self.add_circuit(base.on_phases((cell.phase,)))
+        else:
+            self.add_circuit()
+
     def on_data_table_row_selected(self, event: DataTable.RowSelected) -> None:
         event.stop()
         self.action_edit()
@@ -269,14 +288,8 @@ class MainScreen(CircuitActions, Screen[None]):
             return
         elif cell.circuit is not None:
             self.action_edit()
-        elif cell.kind == "slot" and cell.position is not None:
-            from tri.tui.screens.forms import default_circuit
-
-            self.add_circuit(default_circuit(self.schedule).at_slot(cell.position.slot))
-        elif cell.kind == "group" and cell.phase is not None:
-            from tri.tui.screens.forms import default_circuit
-
-            self.add_circuit(default_circuit(self.schedule).on_phases((cell.phase,)))
+        else:
+            self._add_at(cell)
 
     # ------------------------------------------------------------ moving on the panel view
 

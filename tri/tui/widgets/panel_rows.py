@@ -276,7 +276,9 @@ class Frame:
                 amps = "?"
         info = f"{where:<6}{fmt.breaker_text(c):>5}{flags} {amps:>8}"
         name_w = self.rail_name_width
-        name = fmt.shorten(self.names.get(i, c.name), name_w)
+        # A circuit not placed yet has the whole line on a two-column panel.
+        fitted = c.name if cell.kind == "new" else self.names.get(i, c.name)
+        name = fmt.shorten(fitted, name_w)
         text = f"  {mark} {name:<{name_w}} {info}"
         style = "italic" if continues else ""
         if self.picking == i:
