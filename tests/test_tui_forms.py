@@ -314,3 +314,24 @@ async def test_save_as_form_rules(small: Path, tmp_path: Path) -> None:
         await pilot.press("enter")
         await settle(pilot)
     assert load_schedule(tmp_path / "copy.toml").schedule == app.session.schedule
+
+
+async def test_open_path_form_rules(tmp_path: Path) -> None:
+    from tri.tui.screens.picker import PickerScreen
+
+    app = TriApp(None, journal=False)
+    async with app.run_test(size=(80, 24)) as pilot:
+        await settle(pilot)
+        assert isinstance(app.screen, PickerScreen)
+        await pilot.press("o")
+        await pilot.pause()
+        form = app.screen
+        assert isinstance(form, FormScreen)
+        await set_field(pilot, form, "path", "")
+        assert "type the path" in form.problems["path"]
+        await set_field(pilot, form, "path", str(tmp_path))
+        assert "folder" in form.problems["path"]
+        await set_field(pilot, form, "path", str(tmp_path / "new.txt"))
+        assert "must end in .toml" in form.problems["path"]
+        await set_field(pilot, form, "path", str(tmp_path / "new.toml"))
+        assert form.problems == {}

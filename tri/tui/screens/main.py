@@ -94,7 +94,7 @@ class MainScreen(CircuitActions, Screen[None]):
         Binding("f", "findings", "Findings", show=False, id="main.findings"),
         Binding("ctrl+s", "app.save", "Save", id="main.save"),
         Binding("w", "app.save_as", "Save as", show=False, id="main.save_as"),
-        Binding("escape", "cancel_pick", "Put back", show=False, id="main.cancel_pick"),
+        Binding("escape", "cancel_pick", "Put back", id="main.cancel_pick"),
         Binding("j", "cursor(1)", "Down", show=False),
         Binding("k", "cursor(-1)", "Up", show=False),
         Binding("q", "app.quit", "Quit", show=False, id="main.quit"),
@@ -310,6 +310,7 @@ class MainScreen(CircuitActions, Screen[None]):
         view = self.query_one(PanelView)
         view.picking = index
         view.refresh()
+        self.refresh_bindings()
         self._pick_status()
 
     def _pick_target(self) -> Any:
@@ -364,6 +365,7 @@ class MainScreen(CircuitActions, Screen[None]):
         view = self.query_one(PanelView)
         view.picking = None
         view.refresh()
+        self.refresh_bindings()
 
     def action_cancel_pick(self) -> None:
         if self.picking is None:
