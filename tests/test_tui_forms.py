@@ -57,6 +57,16 @@ async def open_on(pilot, name: str, key: str) -> FormScreen:
     return form
 
 
+async def open_form(pilot, key: str) -> FormScreen:
+    """Press ``key`` in the main view and return the form it opens."""
+    await settle(pilot)
+    await pilot.press(key)
+    await pilot.pause()
+    form = pilot.app.screen
+    assert isinstance(form, FormScreen)
+    return form
+
+
 async def set_field(pilot, form: FormScreen, key: str, text: str) -> None:
     form.query_one(f"#field-{key}").value = text
     await pilot.pause()
@@ -197,10 +207,7 @@ async def test_three_wire_system_refuses_a_one_pole_circuit(tmp_path: Path) -> N
     )
     app = TriApp(path, journal=False)
     async with app.run_test(size=(80, 24)) as pilot:
-        await settle(pilot)
-        await pilot.press("a")
-        await pilot.pause()
-        form = app.screen
+        form = await open_form(pilot, "a")
         assert isinstance(form, FormScreen)
         await set_field(pilot, form, "name", "Pump")
         await set_field(pilot, form, "load", "5000")
@@ -233,10 +240,7 @@ async def test_focus_is_marked_and_a_rejected_enter_says_where_the_cursor_went(
 async def test_panel_form_refuses_fewer_spaces_than_the_breakers_use(small: Path) -> None:
     app = TriApp(small, journal=False)
     async with app.run_test(size=(80, 24)) as pilot:
-        await settle(pilot)
-        await pilot.press("p")
-        await pilot.pause()
-        form = app.screen
+        form = await open_form(pilot, "p")
         await set_field(pilot, form, "spaces", "8")
         problem = form.problems["spaces"]
         assert problem.startswith('slot 6 "Oven": a 3-pole breaker in slot 6 needs slot 10')
@@ -250,10 +254,7 @@ async def test_panel_form_refuses_a_three_wire_system_under_one_pole_circuits(
 ) -> None:
     app = TriApp(small, journal=False)
     async with app.run_test(size=(80, 24)) as pilot:
-        await settle(pilot)
-        await pilot.press("p")
-        await pilot.pause()
-        form = app.screen
+        form = await open_form(pilot, "p")
         form.query_one("#field-system").index = [k for _, k in form.fields[1].choices].index("480D")
         await pilot.pause()
         assert "no neutral" in form.problems["system"]
@@ -263,10 +264,7 @@ async def test_panel_form_refuses_a_three_wire_system_under_one_pole_circuits(
 async def test_supply_form_rules(small: Path) -> None:
     app = TriApp(small, journal=False)
     async with app.run_test(size=(80, 24)) as pilot:
-        await settle(pilot)
-        await pilot.press("s")
-        await pilot.pause()
-        form = app.screen
+        form = await open_form(pilot, "s")
         await set_field(pilot, form, "transformer_kva", "-75")
         assert "transformer_kva" in form.problems
         await set_field(pilot, form, "transformer_kva", "75")
@@ -283,10 +281,7 @@ async def test_supply_form_rules(small: Path) -> None:
 async def test_readings_form_rules(small: Path) -> None:
     app = TriApp(small, journal=False)
     async with app.run_test(size=(80, 24)) as pilot:
-        await settle(pilot)
-        await pilot.press("i")
-        await pilot.pause()
-        form = app.screen
+        form = await open_form(pilot, "i")
         await set_field(pilot, form, "amps_0", "lots")
         assert "amps_0" in form.problems
         await set_field(pilot, form, "amps_0", "52.5")
@@ -299,10 +294,7 @@ async def test_readings_form_rules(small: Path) -> None:
 async def test_save_as_form_rules(small: Path, tmp_path: Path) -> None:
     app = TriApp(small, journal=False)
     async with app.run_test(size=(80, 24)) as pilot:
-        await settle(pilot)
-        await pilot.press("w")
-        await pilot.pause()
-        form = app.screen
+        form = await open_form(pilot, "w")
         await set_field(pilot, form, "path", str(tmp_path / "x.txt"))
         assert "ending in .toml" in form.problems["path"]
         await set_field(pilot, form, "path", str(tmp_path / "nowhere" / "x.toml"))
