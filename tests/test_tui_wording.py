@@ -128,6 +128,22 @@ def test_a_problem_names_the_file_and_the_circuit_by_slot() -> None:
     assert clash.circuits[j].name in text or clash.circuits[i].name in text
 
 
+def test_a_file_that_cannot_be_read_still_names_circuits_by_place() -> None:
+    from tri.schedule.errors import ScheduleIssue
+
+    issue = ScheduleIssue(
+        "expected a number",
+        file="bad.toml",
+        line=12,
+        where='circuit 3 (slot 5, "Fryer")',
+        key="load_va",
+        circuit_index=2,
+    )
+    assert issue_text(issue, "ignored.toml") == (
+        "bad.toml:12: slot 5 \"Fryer\": key 'load_va': expected a number"
+    )
+
+
 def test_every_pole_is_checked_whichever_circuit_the_clash_is_reported_on() -> None:
     # A 2-pole breaker in slot 1 (taking 1 and 3) moved to slot 3 takes 3 and 5;
     # a breaker in 5 must refuse it, though the clash is found on the later circuit.

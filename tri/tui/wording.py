@@ -55,19 +55,24 @@ def slots_words(slots: tuple[int, ...] | list[int]) -> str:
     return f"slots {head} and {slots[-1]}"
 
 
-_ORDINAL = re.compile(r'circuit (\d+) \((?:[^"()]*, )?"((?:[^"\\]|\\.)*)"\)')
+_ORDINAL = re.compile(r'circuit (\d+) \((?:([^"()]*), )?"((?:[^"\\]|\\.)*)"\)')
 
 
 def _name_circuits(text: str, schedule: Schedule | None) -> str:
-    """Replace the loader's ``circuit 3 ("Oven")`` by ``slot 6 "Oven"`` (the screen's words)."""
-    if schedule is None:
-        return text
+    """Replace the loader's ``circuit 3 ("Oven")`` by ``slot 6 "Oven"`` (the screen's words).
+
+    Without a schedule (a file that could not be read) the place the loader
+    gives is kept: ``circuit 3 (slot 5, "Fryer")`` reads ``slot 5 "Fryer"``.
+    """
 
     def one(match: re.Match[str]) -> str:
-        k = int(match.group(1)) - 1
-        if 0 <= k < len(schedule.circuits) and schedule.circuits[k].name == match.group(2):
+        k, place, name = int(match.group(1)) - 1, match.group(2), match.group(3)
+        known = schedule is not None and 0 <= k < len(schedule.circuits)
+        if known and schedule is not None and schedule.circuits[k].name == name:
             return circuit_label(schedule, k)
-        return f'"{match.group(2)}"'
+        if place:
+            return f'{place.removeprefix("phases ")} "{name}"'
+        return f'"{name}"'
 
     return _ORDINAL.sub(one, text)
 
