@@ -24,6 +24,7 @@ from __future__ import annotations
 
 import dataclasses
 import math
+from dataclasses import dataclass
 
 import numpy as np
 
@@ -317,18 +318,97 @@ def analyse(
     """
     if np.ndim(circuits.s_va) != 1:
         raise ValueError("analyse() takes one panel; use analyse_batch() for a batch")
-    iterate_requested = iterate_voltage
-    iterate_voltage = iterate_voltage and supply is not None
-    limits = limits or FindingLimits()
     b = analyse_batch(
         circuits,
         system,
         ratings,
         supply,
-        iterate_voltage=iterate_voltage,
+        iterate_voltage=iterate_voltage and supply is not None,
         tol=tol,
         max_iter=max_iter,
     )
+    source = None
+    if supply is not None:
+        z_ph, z_n = supply_impedances(supply, system)
+        tx = transformer_impedance(
+            supply.transformer_kva, supply.transformer_z_pct, supply.transformer_x_r, system.v_ll
+        )
+        source = SourceFigures(complex(z_ph), complex(z_n), tx.full_load_a)
+    return describe_panel(
+        b,
+        system,
+        ratings,
+        source,
+        readings,
+        iterated=iterate_voltage and supply is not None,
+        iterate_requested=iterate_voltage,
+        phase_labels=phase_labels,
+        limits=limits,
+    )
+
+
+@dataclass(frozen=True)
+class SourceFigures:
+    """What is behind a panel, for its voltage result.
+
+    Attributes
+    ----------
+    z_phase_ohm, z_neutral_ohm : complex
+        Phase-path and neutral-path impedance of the source model
+        ``V_p = E_p − Z_phase·I_p − Z_neutral·I_N`` [Ω].
+    transformer_full_load_a : float
+        Rated secondary current of the transformer behind the panel [A].
+    """
+
+    z_phase_ohm: complex
+    z_neutral_ohm: complex
+    transformer_full_load_a: float
+
+
+def describe_panel(
+    b: BatchAnalysis,
+    system: SystemVoltages,
+    ratings: Ratings,
+    source: SourceFigures | None = None,
+    readings: MeasuredReadings | None = None,
+    *,
+    iterated: bool = False,
+    iterate_requested: bool = False,
+    phase_labels: tuple[str, str, str] = ("A", "B", "C"),
+    limits: FindingLimits | None = None,
+) -> PanelAnalysis:
+    """One panel's figures as plain numbers, with findings.
+
+    Parameters
+    ----------
+    b : BatchAnalysis
+        One panel's arrays (no batch dimensions), from :func:`analyse_batch`
+        or from the roll-up of a tree of panels.
+    system : SystemVoltages
+        Nominal voltages [V].
+    ratings : Ratings
+        Ratings [A].
+    source : SourceFigures, optional
+        Impedances behind the panel; the voltage result needs it and
+        ``b.v_phase``.
+    readings : MeasuredReadings, optional
+        Site readings.
+    iterated : bool
+        The currents were solved at the panel voltage (constant power).
+    iterate_requested : bool
+        Voltage iteration was asked for (an info finding says so when there
+        is no source to iterate against).
+    phase_labels : tuple of 3 str
+        Labels for results and messages.
+    limits : FindingLimits, optional
+        Thresholds for findings.
+
+    Returns
+    -------
+    PanelAnalysis
+    """
+    limits = limits or FindingLimits()
+    iterate_voltage = iterated and source is not None
     labels = tuple(phase_labels)
     if len(labels) != 3:
         raise ValueError("phase_labels needs three labels")
@@ -361,11 +441,7 @@ def analyse(
         harmonic_a=tuple(float(x) for x in np.abs(b.neutral_spectrum)),
     )
     voltage = None
-    if supply is not None:
-        z_ph, z_n = supply_impedances(supply, system)
-        tx = transformer_impedance(
-            supply.transformer_kva, supply.transformer_z_pct, supply.transformer_x_r, system.v_ll
-        )
+    if source is not None and b.v_phase is not None:
         vln = system.v_ln_or_derived
         derating = _f(b.motor_derating)
         phase_dev = _f(b.phase_deviation_pct)
@@ -377,9 +453,9 @@ def analyse(
             phase_deviation_pct=None if math.isnan(phase_dev) else phase_dev,
             motor_derating=None if math.isnan(derating) else derating,
             drop_pct=tuple(float(100.0 * (vln - abs(v)) / vln) for v in b.v_phase),  # type: ignore[arg-type]
-            z_phase_ohm=complex(z_ph),
-            z_neutral_ohm=complex(z_n),
-            transformer_full_load_a=tx.full_load_a,
+            z_phase_ohm=source.z_phase_ohm,
+            z_neutral_ohm=source.z_neutral_ohm,
+            transformer_full_load_a=source.transformer_full_load_a,
             iterated=iterate_voltage,
             iterations=int(b.iterations),
             converged=bool(b.converged),
@@ -415,7 +491,7 @@ def analyse(
     if bool(b.three_pole_triplens):
         findings.append(three_pole_triplen_finding())
     findings.extend(voltage_findings(a, limits))
-    if iterate_requested and supply is None:
+    if iterate_requested and source is None:
         findings.append(
             Finding(
                 "info",
