@@ -237,7 +237,10 @@ def _iterate(
 ) -> tuple[np.ndarray, int, bool]:
     """Fixed point of the whole tree on the fundamental: (voltages, sweeps, converged)."""
     orders1 = np.array([1])
-    v = nominal_voltages(tree)
+    # start from the voltages of the currents at nominal voltage (the
+    # non-iterated solution), as the single-panel solver does
+    total, _ = roll_up(tree, own_fundamental(tree.circuits, nominal_voltages(tree)), orders1)
+    v = voltages_down(tree, total.phase[..., 0], total.neutral[..., 0])
     converged = False
     sweeps = 0
     for sweeps in range(1, max_iter + 1):
