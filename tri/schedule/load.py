@@ -168,7 +168,7 @@ def build_schedule(
                 issue.message,
                 ("circuit", src),
                 issue.key,
-                circuit_where(src, circuits[i], model),
+                circuit_where(circuits[i], model),
                 src,
             )
     if r.issues:

@@ -11,6 +11,7 @@ from __future__ import annotations
 from collections.abc import Mapping
 from typing import Any
 
+from tri.schedule.errors import name_circuit
 from tri.schedule.locate import TableKey
 from tri.schedule.model import DEFAULT_LABELS, LOAD_KEYS, Circuit, PanelInfo, parse_phase_text
 from tri.schedule.read_panel import MAX_SPACES
@@ -52,17 +53,19 @@ _STAND_IN = {
 }
 
 
-def circuit_hint(raw: Any, index: int) -> str:
-    """How messages about the circuit at ``index`` of a file name it, before it is read."""
-    name_hint = raw.get("name") if isinstance(raw, dict) else None
-    slot_hint = raw.get("slot") if isinstance(raw, dict) else None
-    place = (
-        f"slot {slot_hint}, "
-        if isinstance(slot_hint, int) and not isinstance(slot_hint, bool)
-        else ""
-    )
-    shown = f'"{name_hint}"' if isinstance(name_hint, str) else "unnamed"
-    return f"circuit {index + 1} ({place}{shown})"
+def circuit_hint(raw: Any) -> str:
+    """How messages name a circuit table before it is read: its name and slot or phases."""
+    if not isinstance(raw, dict):
+        return "a [[circuit]] entry"
+    name = raw.get("name")
+    slot = raw.get("slot")
+    phases = raw.get("phases")
+    place = None
+    if isinstance(slot, int) and not isinstance(slot, bool):
+        place = f"slot {slot}"
+    elif isinstance(phases, str) and phases.strip():
+        place = f"phases {phases.strip()}"
+    return name_circuit(name if isinstance(name, str) else None, place)
 
 
 def read_circuit(
@@ -82,7 +85,7 @@ def read_circuit(
     (``r.issues`` is not empty then).
     """
     table: TableKey = ("circuit", index)
-    where = circuit_hint(raw, index)
+    where = circuit_hint(raw)
     if not isinstance(raw, dict):
         r.add(f"found {found(raw)}, expected a [[circuit]] table", table, None, where, index)
         return None
