@@ -17,7 +17,7 @@ impedance left out). The child's phases A, B, C are the parent's A, B, C.
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass, replace
+from dataclasses import dataclass, field, replace
 
 import numpy as np
 
@@ -89,7 +89,7 @@ class PanelLink:
 
     parent: int
     feeder_row: int
-    feeder: FeederImpedance = FeederImpedance()
+    feeder: FeederImpedance = field(default_factory=FeederImpedance)
     transformer: TransformerLink | None = None
 
 

@@ -255,11 +255,12 @@ def _write_circuit(table: Any, c: Circuit, schedule: Schedule) -> None:
     poles_default = len(c.phases) if (panel.layout == PHASES and c.phases) else 1
     if "poles" in table or c.poles != poles_default:
         _set(table, "poles", c.poles)
-    load_key = f"load_{c.load_kind}"
-    for key in ("load_va", "load_w", "load_a"):
-        if key != load_key and key in table:
-            del table[key]
-    _set(table, load_key, c.load_value)
+    if c.feed is None:  # a feeder circuit's load is its panel's; its feeds keys stay as written
+        load_key = f"load_{c.load_kind}"
+        for key in ("load_va", "load_w", "load_a"):
+            if key != load_key and key in table:
+                del table[key]
+        _set(table, load_key, c.load_value)
     _set(table, "pf", c.pf, 1.0)
     _set(table, "leading", c.leading, False)
     _set(table, "profile", c.profile, "linear")
