@@ -76,9 +76,12 @@ def check_continuous_factor(value: float) -> float:
 
 def build_data(path: str, *, iterate: bool, continuous_factor: float) -> dict[str, Any]:
     """Load, analyse and turn one schedule into report data (see :mod:`tri.report.data`)."""
+    from tri.cli.building import building_report_data, is_building_root
     from tri.report.data import report_data
 
     loaded = load(path)
+    if is_building_root(loaded):
+        return building_report_data(path, iterate=iterate, continuous_factor=continuous_factor)
     try:
         analysis = analyse_schedule(
             loaded.schedule, iterate_voltage=iterate, continuous_factor=continuous_factor
@@ -90,6 +93,15 @@ def build_data(path: str, *, iterate: bool, continuous_factor: float) -> dict[st
 
 def render(data: dict[str, Any], fmt: str, *, ascii_only: bool = False) -> str:
     """The report in ``fmt`` as text (text format: 80 columns, no colour)."""
+    if data.get("building") is not None:
+        from tri.report import building_render as b
+
+        if fmt == "text":
+            return b.render_building_text(data, ascii_only=ascii_only)
+        if fmt == "markdown":
+            return b.render_building_markdown(data)
+        if fmt == "csv":
+            return b.render_building_csv(data)
     if fmt == "json":
         from tri.report.json_report import render_json
 
@@ -163,7 +175,7 @@ def run(args: argparse.Namespace) -> int:
         write_file(args.output, render(data, fmt), args.file)
         print(f"Wrote the {fmt} report to {args.output}.", file=sys.stderr)
         return 0
-    if fmt == "text" and sys.stdout.isatty():
+    if fmt == "text" and sys.stdout.isatty() and data.get("building") is None:
         from rich.console import Console
 
         from tri.report.text_report import print_text
