@@ -223,3 +223,10 @@ def test_saving_a_moved_feeder_keeps_its_keys():
     text = schedule_text(moved, loaded.document)
     assert "slot = 25" in text
     assert 'feeds = "lp1_208.toml"' in text and "load_va" not in text.split("slot = 25")[1][:200]
+
+
+def test_a_parent_analysed_alone_says_what_it_leaves_out():
+    from tri.schedule.to_engine import analyse_schedule
+
+    a = analyse_schedule(load_schedule(DEMO).schedule)
+    assert any("feeds 3 panel(s)" in f.message and "leave" in f.message for f in a.findings)
