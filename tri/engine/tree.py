@@ -96,7 +96,10 @@ class TreeSolution:
         Per circuit row [A]; a feeder row carries the largest of its three
         line currents.
     phase_va : float ndarray, shape (N, 3)
-        Schedule VA per phase, children included [VA].
+        Schedule VA per phase, children included [VA]: a child without a
+        transformer adds its own phase VA phase by phase; through a
+        transformer its total VA is shared among the primary phases in
+        proportion to their fundamental currents (a bookkeeping convention).
     total_va, nonlinear_va : float ndarray, shape (N,)
         Placed connected VA and its non-linear part, children included [VA].
     three_pole_triplens : bool ndarray, shape (N,)
