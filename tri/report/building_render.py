@@ -100,8 +100,9 @@ def render_building_text(data: dict[str, Any], *, ascii_only: bool = False) -> s
 
     out = [render_text(data, ascii_only=ascii_only).rstrip("\n"), ""]
     out.append("Panels in this building (each panel's figures include what it feeds), RMS A")
+    cut = "..." if ascii_only else "…"
     for row in [HEAD, *summary_rows(data)]:
-        name = row[0] if len(row[0]) <= NAME_WIDTH else row[0][: NAME_WIDTH - 1] + "…"
+        name = row[0] if len(row[0]) <= NAME_WIDTH else row[0][: NAME_WIDTH - len(cut)] + cut
         cells = [name.ljust(NAME_WIDTH), row[1].ljust(SYSTEM_WIDTH)]
         cells += [x.rjust(FIGURE_WIDTH) for x in row[2:8]]
         out.append(" ".join(cells) + "  " + row[8])
