@@ -101,6 +101,21 @@ class LoadedLog:
         return t.isoformat(sep=" ", timespec=spec)
 
 
+def _not_utf8(path: Path, shown: str) -> ScheduleError:
+    """The error for a file that is not UTF-8, at the line of its first bad byte."""
+    line = None
+    with open(path, "rb") as fh:
+        for number, raw in enumerate(fh, start=1):
+            try:
+                raw.decode("utf-8")
+            except UnicodeDecodeError:
+                line = number
+                break
+    return ScheduleError(
+        [log_issue(shown, "is not UTF-8 text; export the log as CSV in UTF-8", line)]
+    )
+
+
 def _sniff(header: str, decimal: str) -> str:
     """The delimiter: the most frequent of , ; tab in the header line."""
     counts = {d: header.count(d) for d in (",", ";", "\t")}
@@ -119,9 +134,7 @@ def _read_header(path: Path, shown: str) -> str:
     except IsADirectoryError:
         raise ScheduleError([log_issue(shown, "is a folder, expected a CSV file")]) from None
     except UnicodeDecodeError:
-        raise ScheduleError(
-            [log_issue(shown, "is not UTF-8 text; export the log as CSV in UTF-8", line=1)]
-        ) from None
+        raise _not_utf8(path, shown) from None
     except OSError as exc:
         raise ScheduleError(
             [log_issue(shown, f"cannot read the log: {exc.strerror or exc}")]
@@ -199,7 +212,13 @@ def read_log(
     times, zone, offset = parse_times(frame[spec.time], lines, shown, spec)
     report(0.9, "placing rows on the interval grid")
     text = frame[spec.time]
-    placement = place_on_grid(times, lines, shown, describe=lambda i: str(text.iloc[i]))
+    placement = place_on_grid(
+        times,
+        lines,
+        shown,
+        describe=lambda i: str(text.iloc[i]),
+        zoned=zone is not None or offset is not None,
+    )
     start = placement.start_s - (placement.interval_s if spec.stamp == "end" else 0.0)
     arrays = LogArrays(
         interval_s=placement.interval_s,
@@ -256,9 +275,7 @@ def _read_frame(
             frame = _read_chunks(pd, path, options, cols, True, report)
             _locate_bad_numbers(pd, frame, numeric, shown, spec.decimal)
     except UnicodeDecodeError:
-        raise ScheduleError(
-            [log_issue(shown, "is not UTF-8 text; export the log as CSV in UTF-8")]
-        ) from None
+        raise _not_utf8(path, shown) from None
     except pd.errors.ParserError as exc:
         raise ScheduleError([log_issue(shown, f"is not a readable CSV file: {exc}")]) from None
     except OSError as exc:
@@ -299,9 +316,9 @@ def _read_chunks(
             chunks.append(chunk)
             report(min(0.8, 0.8 * reader.handles.handle.tell() / size), "reading the log")
     if not chunks:
-        return pd.DataFrame({c: [] for c in columns})
+        return pd.DataFrame({c: np.array([], dtype=float) for c in columns})
     frame = pd.concat(chunks, ignore_index=True) if len(chunks) > 1 else chunks[0]
-    if not as_text:
+    if not as_text and len(frame):
         for col in columns[1:]:
             if frame[col].dtype.kind not in "fiu":
                 raise ValueError(col)

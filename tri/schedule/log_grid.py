@@ -121,6 +121,8 @@ def place_on_grid(
     lines: np.ndarray,
     shown: str,
     describe: Callable[[int], str] | None = None,
+    *,
+    zoned: bool = True,
 ) -> GridPlacement:
     """Check the order of the times and place every row on the interval grid.
 
@@ -134,6 +136,9 @@ def place_on_grid(
         The file's name in messages.
     describe : callable, optional
         The time of row ``i`` as written (for messages).
+    zoned : bool
+        False for times without an offset or zone (a step back by about an
+        hour then suggests a clock set back for daylight saving).
 
     Returns
     -------
@@ -152,6 +157,10 @@ def place_on_grid(
     if back.size:
         i = int(back[0]) + 1
         more = f" ({back.size - 1} more places)" if back.size > 1 else ""
+        if not zoned and 0 < -step[i - 1] <= 3600.0:
+            more += (
+                "; if the logger's clock follows daylight saving, name its zone in [log] timezone"
+            )
         raise ScheduleError(
             [
                 log_issue(
