@@ -22,6 +22,7 @@ from tomlkit.toml_document import TOMLDocument
 from tri.engine.profiles import BUILTIN_PROFILES
 from tri.schedule.errors import ScheduleError, ScheduleIssue
 from tri.schedule.locate import LineIndex, TableKey
+from tri.schedule.log_spec import read_log_table
 from tri.schedule.model import (
     DEFAULT_LABELS,
     FORMAT_VERSION,
@@ -36,9 +37,10 @@ from tri.schedule.model import (
 )
 from tri.schedule.slots import LAYOUTS, PHASES, TWO_COLUMN, slot_phases
 from tri.schedule.systems import SYSTEMS
+from tri.schedule.use_factors import read_use
 from tri.schedule.validate import check_schedule, circuit_where
 
-TOP_KEYS = ("format", "panel", "supply", "readings", "profiles", "circuit")
+TOP_KEYS = ("format", "panel", "supply", "readings", "profiles", "log", "circuit")
 PANEL_KEYS = (
     "name",
     "system",
@@ -78,6 +80,7 @@ CIRCUIT_KEYS = (
     "locked",
     "breaker_a",
     "note",
+    "use",
 )
 MAX_SPACES = 420
 MAX_HARMONIC_ORDER = 100
@@ -645,6 +648,7 @@ def read_circuit(
     locked = val("locked", "bool", default=False)
     breaker = val("breaker_a", "number", check=_positive)
     note = val("note", "text", default="")
+    use = read_use(r.add, raw, table, where, index)
     slot = val("slot", "int", check=_between(1, MAX_SPACES, " (slot numbers start at 1)"))
     phases: Any = None
     if "phases" in raw:
@@ -707,6 +711,7 @@ def read_circuit(
         locked=locked,
         breaker_a=breaker,
         note=note,
+        use=use or (),
         source_index=index,
     )
 
@@ -820,6 +825,7 @@ def build_schedule(
     supply = _read_supply(r, data)
     readings = _read_readings(r, data, panel)
     profiles = _read_profiles(r, data)
+    log = read_log_table(r, data, panel.phase_labels if panel else DEFAULT_LABELS)
     raw_circuits = data.get("circuit", [])
     circuits: list[Circuit] = []
     if isinstance(raw_circuits, dict):
@@ -841,6 +847,7 @@ def build_schedule(
             supply=supply,
             readings=readings,
             profiles=profiles or (),
+            log=log,
         )
         for issue in check_schedule(model):
             i = issue.circuit_index

@@ -27,7 +27,6 @@ from dataclasses import dataclass
 from typing import Any, Literal, Protocol
 
 from tri.schedule.errors import ScheduleIssue
-from tri.schedule.model import parse_phase_text
 
 LOG_KEYS = (
     "file",
@@ -243,6 +242,8 @@ def _columns(
     r: IssueSink, raw: Mapping[str, Any], key: str, labels: tuple[str, str, str], *, pairs: bool
 ) -> tuple[tuple[str, ...] | None, str | None]:
     """Column names by phase (or line pair) from an inline table; all three needed."""
+    from tri.schedule.model import parse_phase_text
+
     sub = raw.get(key)
     if sub is None:
         return None, None

@@ -39,6 +39,7 @@ from tri.schedule.model import (
     parse_phase_text,
 )
 from tri.schedule.slots import PHASES, TWO_COLUMN
+from tri.schedule.use_factors import use_table
 
 BACKUP_SUFFIX = ".bak"
 
@@ -270,6 +271,8 @@ def _write_circuit(table: Any, c: Circuit, schedule: Schedule) -> None:
     _set(table, "breaker_a", c.breaker_a)
     if c.note or "note" in table:
         _set(table, "note", c.note or None)
+    if c.use or "use" in table:
+        _set(table, "use", use_table(c.use) if c.use else None)
 
 
 def _write_circuits(doc: TOMLDocument, schedule: Schedule) -> None:
