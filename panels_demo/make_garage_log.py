@@ -132,7 +132,7 @@ def main(argv: list[str] | None = None) -> int:
     parser.add_argument("-o", "--output", default="garage_logged_week_1min.csv")
     args = parser.parse_args(argv)
     start = dt.datetime.fromisoformat(args.start)
-    intervals = int(round(args.days * 1440 / args.minutes))
+    intervals = round(args.days * 1440 / args.minutes)
     write_csv(Path(args.output), series(start, intervals, args.minutes))
     print(f"wrote {intervals} rows to {args.output}", file=sys.stderr)
     return 0
