@@ -37,7 +37,7 @@ def worst_results(
     if len(per_case) == 1:
         return per_case[0][1]
     out = []
-    for i, first in enumerate(per_case[0][1]):
+    for i in range(len(per_case[0][1])):
         row = [(name, results[i]) for name, results in per_case if i < len(results)]
         name, worst = max(row, key=lambda nr: _rank(nr[1]))
         others = ", ".join(
