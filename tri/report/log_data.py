@@ -124,7 +124,8 @@ def log_data(
         np.array([p.mean_a for p in a.phases]), np.array([p.rms_a for p in panel.phases])
     )
     out: dict[str, Any] = {
-        "file": log.path,
+        # As written in [log] file (relative to the schedule): stable wherever it is run.
+        "file": schedule.log.file if schedule.log is not None else log.path,
         "rows": log.rows,
         "interval_s": num(log.interval_s),
         "start": log.time_text(0),
