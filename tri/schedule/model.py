@@ -13,6 +13,7 @@ from typing import Literal
 
 from tri.engine.inputs import SupplyImpedance
 from tri.schedule.feeds import Feed
+from tri.schedule.log_spec import LogSpec
 from tri.schedule.slots import TWO_COLUMN, slot_phases
 from tri.schedule.systems import SYSTEMS, SupplySystem
 
@@ -166,6 +167,9 @@ class Circuit:
         Breaker rating [A].
     note : str
         Free text.
+    use : tuple of (str, float)
+        Share of the load in each named scenario [-] (``use = { day = 0.2 }``);
+        empty: 1.0 in every scenario (see :mod:`tri.schedule.use_factors`).
     source_index : int or None
         Position of the circuit's table in the file it was loaded from; lets
         saving update that table in place. Not part of equality.
@@ -187,6 +191,7 @@ class Circuit:
     locked: bool = False
     breaker_a: float | None = None
     note: str = ""
+    use: tuple[tuple[str, float], ...] = ()
     source_index: int | None = field(default=None, compare=False)
     feed: Feed | None = None
 
@@ -235,6 +240,7 @@ class Schedule:
     """A whole panel schedule.
 
     ``circuits`` keep the order of the file; new circuits are appended.
+    ``log`` is the ``[log]`` table (:mod:`tri.schedule.log_spec`), or ``None``.
     """
 
     panel: PanelInfo
@@ -243,6 +249,7 @@ class Schedule:
     readings: Readings | None = None
     profiles: tuple[UserProfile, ...] = ()
     format: int = FORMAT_VERSION
+    log: LogSpec | None = None
 
     @property
     def system(self) -> SupplySystem:

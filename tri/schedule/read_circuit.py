@@ -19,6 +19,7 @@ from tri.schedule.read_panel import MAX_SPACES
 from tri.schedule.reader import MISSING, Reader, found
 from tri.schedule.rules import Rule, between, non_negative, positive, power_factor, read_rules
 from tri.schedule.slots import PHASES, TWO_COLUMN, slot_phases
+from tri.schedule.use_factors import read_use
 
 CIRCUIT_RULES: dict[str, Rule] = {
     "name": Rule("text", required=True),
@@ -41,6 +42,7 @@ CIRCUIT_KEYS = (
     *LOAD_KEYS,
     *(k for k in CIRCUIT_RULES if k not in _PLACEMENT_KEYS),
     *FEED_KEYS,
+    "use",
 )
 
 #: What a circuit whose only problems lie outside its placement stands in with.
@@ -102,6 +104,7 @@ def read_circuit(
         load_kind, load_value = "va", 0.0
     else:
         load_kind, load_value = _read_load(r, raw, table, where, index)
+    use = read_use(r.add, raw, table, where, index)
     phases: Any = None
     if "phases" in raw:
         phases = read_phases(r, raw["phases"], table, where, index, panel)
@@ -136,6 +139,7 @@ def read_circuit(
         locked=v["locked"],
         breaker_a=v["breaker_a"],
         note=v["note"],
+        use=use or (),
         source_index=index,
         feed=feed,
     )

@@ -37,6 +37,7 @@ from tri.schedule.read_readings import read_readings
 from tri.schedule.read_supply import read_supply
 from tri.schedule.reader import Reader
 from tri.schedule.slots import PHASES, TWO_COLUMN
+from tri.schedule.use_factors import use_table
 
 BACKUP_SUFFIX = ".bak"
 
@@ -269,6 +270,8 @@ def _write_circuit(table: Any, c: Circuit, schedule: Schedule) -> None:
     _set(table, "breaker_a", c.breaker_a)
     if c.note or "note" in table:
         _set(table, "note", c.note or None)
+    if c.use or "use" in table:
+        _set(table, "use", use_table(c.use) if c.use else None)
 
 
 def _write_circuits(doc: TOMLDocument, schedule: Schedule) -> None:
