@@ -12,6 +12,7 @@ an offset and without a zone are the logger's own clock, taken as they are.
 
 from __future__ import annotations
 
+import warnings
 from typing import Any
 
 import numpy as np
@@ -75,10 +76,15 @@ def parse_times(
             [log_issue(shown, f"time missing in column '{spec.time}'{_more(n)}", line, spec.time)]
         )
     try:
-        parsed = pd.to_datetime(text, format="ISO8601", errors="coerce")
-        mixed = False
-    except ValueError:  # offsets differ from row to row (daylight saving)
+        with warnings.catch_warnings():  # pandas 2.x warns of mixed offsets, then returns objects
+            warnings.simplefilter("ignore", FutureWarning)
+            parsed = pd.to_datetime(text, format="ISO8601", errors="coerce")
+        # pandas 3 raises on offsets that differ from row to row (daylight saving);
+        # pandas 2 returns an object column instead.
+        mixed = not pd.api.types.is_datetime64_any_dtype(parsed.dtype)
+    except ValueError:
         mixed = True
+    if mixed:
         with_offset = text.str.contains(OFFSET_PATTERN, regex=True).to_numpy()
         if not with_offset.all():
             _, line, n = _first_rows(~with_offset, lines)
