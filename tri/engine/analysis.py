@@ -39,14 +39,17 @@ from tri.engine.inputs import (
     SupplyImpedance,
     SystemVoltages,
 )
+from tri.engine.limits import LEVEL_RANK, FindingLimits
 from tri.engine.loading import (
-    FindingLimits,
+    breaker_findings,
+    calculated_load_a,
+    circuit_calculated_a,
     continuous_weights,
+    loading_findings,
     loading_pct,
-    panel_findings,
-    three_pole_triplen_finding,
-    voltage_findings,
+    neutral_calculated_load_a,
 )
+from tri.engine.neutral_rules import neutral_findings, three_pole_triplen_finding
 from tri.engine.phasors import (
     element_currents,
     line_voltages,
@@ -67,7 +70,12 @@ from tri.engine.results import (
 )
 from tri.engine.sequence import sequence_components, unbalance_pct
 from tri.engine.supply import solve_voltages, supply_impedances, transformer_impedance
-from tri.engine.unbalance import deviation_rate_pct, nema_derating, vuf_pct
+from tri.engine.unbalance import deviation_rate_pct, max_minus_min_pct, nema_derating, vuf_pct
+from tri.engine.unbalance_findings import (
+    deviation_findings,
+    phase_kva_findings,
+    voltage_findings,
+)
 
 #: Phasors smaller than this fraction of the panel's total circuit current are
 #: round-off and are set to exactly 0 (so a balanced neutral reads 0∠0°) [-].
@@ -95,7 +103,7 @@ def check_inputs(circuits: CircuitArrays, system: SystemVoltages, ratings: Ratin
     shape = np.shape(circuits.s_va)
     if not shape:
         raise ValueError("circuit arrays need at least one axis (circuits)")
-    for name in ("connection", "phase_p", "phase_q", "continuous"):
+    for name in ("connection", "phase_p", "phase_q", "continuous", "breaker_a"):
         if np.shape(getattr(circuits, name)) != shape:
             raise ValueError(f"{name} has shape {np.shape(getattr(circuits, name))}, not {shape}")
     h = np.shape(circuits.orders)
@@ -127,6 +135,9 @@ def check_inputs(circuits: CircuitArrays, system: SystemVoltages, ratings: Ratin
             raise ValueError(f"rating {name} must be > 0, got {value!r}")
     if not ratings.continuous_factor > 0:
         raise ValueError("continuous_factor must be > 0")
+    breakers = np.asarray(circuits.breaker_a, dtype=float)
+    if np.any(~np.isnan(breakers) & ~(breakers > 0)) or np.any(np.isinf(breakers)):
+        raise ValueError("breaker ratings must be > 0 and finite (NaN: none)")
 
 
 def _snap(x: np.ndarray, scale: np.ndarray, extra_dims: int) -> np.ndarray:
@@ -207,6 +218,13 @@ def analyse_batch(
     nl_va = np.sum(np.where(nonlinear, s_abs, 0.0), axis=-1)
     nl_share = np.where(total_va > 0, 100.0 * nl_va / np.where(total_va > 0, total_va, 1.0), 0.0)
     tp_triplen = np.any((conn == THREE_PHASE) & (oc.triplen_power_pu > 0), axis=-1)
+    nl_ln_va = np.sum(np.where(nonlinear & (conn == LINE_TO_NEUTRAL), s_abs, 0.0), axis=-1)
+    nl_ln_share = np.where(
+        total_va > 0, 100.0 * nl_ln_va / np.where(total_va > 0, total_va, 1.0), 0.0
+    )
+    factor = ratings.continuous_factor
+    v_ln = system.v_ln_or_derived
+    calculated = calculated_load_a(circuits, factor, v_ln)
 
     volt: dict[str, np.ndarray | None] = {}
     if sol is not None:
@@ -249,8 +267,40 @@ def analyse_batch(
         nonlinear_share_pct=nl_share,
         unplaced_count=np.sum((conn == UNPLACED) & (s_abs > 0), axis=-1),
         three_pole_triplens=tp_triplen,
+        phase_calculated_a=calculated,
+        phase_calculated_pct=loading_pct(calculated, rating),
+        neutral_calculated_a=neutral_calculated_load_a(circuits, v_ln),
+        circuit_calculated_a=circuit_calculated_a(circuits, factor, v_ln, system.v_ll),
+        nonlinear_ln_share_pct=nl_ln_share,
+        max_minus_min_pct=max_minus_min_pct(phase_rms),
         **volt,
     )
+
+
+def _findings(
+    a: PanelAnalysis,
+    circuits: CircuitArrays,
+    ratings: Ratings,
+    limits: FindingLimits,
+    names: tuple[str, ...],
+    wye: bool,
+) -> list[Finding]:
+    """Loading, breaker, neutral and balance findings of one panel (unsorted)."""
+    out = loading_findings(a, ratings, limits)
+    out += breaker_findings(a, circuits.breaker_a, circuits.continuous, names)
+    out += neutral_findings(a, limits, wye)
+    out += deviation_findings(a, limits)
+    out += phase_kva_findings(a, limits)
+    if a.unplaced_count:
+        out.append(
+            Finding(
+                "info",
+                f"{a.unplaced_count} circuit(s) not placed on a phase are left out of the "
+                "phase figures.",
+                "tri schedule convention",
+            )
+        )
+    return out
 
 
 def _f(x: np.ndarray | float) -> float:
@@ -271,6 +321,7 @@ def analyse(
     iterate_voltage: bool = False,
     phase_labels: tuple[str, str, str] = ("A", "B", "C"),
     limits: FindingLimits | None = None,
+    circuit_labels: tuple[str, ...] | None = None,
     tol: float = 1e-9,
     max_iter: int = 100,
 ) -> PanelAnalysis:
@@ -294,8 +345,10 @@ def analyse(
     phase_labels : tuple of 3 str
         Labels for results and messages (e.g. ``("L1", "L2", "L3")``).
     limits : FindingLimits, optional
-        Thresholds for findings (defaults: common practice and the cited
-        standards).
+        Thresholds for findings (defaults: :mod:`tri.engine.limits`).
+    circuit_labels : tuple of str, optional
+        How findings name each circuit row (slot or phases, and name);
+        default ``"circuit 1"``, ``"circuit 2"``, ...
     tol, max_iter : float, int
         Voltage iteration tolerance [pu of V_LN] and limit.
 
@@ -344,6 +397,8 @@ def analyse(
             loading_pct=_f(b.phase_loading_pct[k]),
             design_a=_f(b.phase_design_a[k]),
             design_loading_pct=_f(b.phase_design_loading_pct[k]),
+            calculated_a=_f(b.phase_calculated_a[k]),
+            calculated_pct=_f(b.phase_calculated_pct[k]),
             harmonic_a=tuple(float(x) for x in np.abs(b.phase_spectrum[k])),
         )
         for k in range(3)
@@ -359,6 +414,7 @@ def analyse(
         loading_pct=_f(b.neutral_loading_pct) if system.has_neutral else None,
         ratio_to_max_phase=neutral_rms / max_phase if max_phase > 0 else 0.0,
         harmonic_a=tuple(float(x) for x in np.abs(b.neutral_spectrum)),
+        calculated_a=_f(b.neutral_calculated_a) if system.has_neutral else None,
     )
     voltage = None
     if supply is not None:
@@ -402,6 +458,7 @@ def analyse(
             zero_sequence_pct=_f(b.zero_sequence_pct),
             max_deviation_pct=_f(b.max_deviation_pct),
             max_deviation_fundamental_pct=_f(b.max_deviation_fundamental_pct),
+            max_minus_min_pct=_f(b.max_minus_min_pct),
         ),
         voltage=voltage,
         readings=None,
@@ -410,8 +467,14 @@ def analyse(
         circuit_rms_a=tuple(float(x) for x in b.circuit_rms_a),
         nonlinear_share_pct=_f(b.nonlinear_share_pct),
         unplaced_count=int(b.unplaced_count),
+        nonlinear_ln_share_pct=_f(b.nonlinear_ln_share_pct),
+        circuit_calculated_a=tuple(float(x) for x in b.circuit_calculated_a),
     )
-    findings = panel_findings(a, limits)
+    n_rows = circuits.n_circuits
+    names = circuit_labels or tuple(f"circuit {k + 1}" for k in range(n_rows))
+    if len(names) != n_rows:
+        raise ValueError(f"circuit_labels has {len(names)} labels for {n_rows} circuits")
+    findings = _findings(a, circuits, ratings, limits, names, system.has_neutral)
     if bool(b.three_pole_triplens):
         findings.append(three_pole_triplen_finding())
     findings.extend(voltage_findings(a, limits))
@@ -428,6 +491,5 @@ def analyse(
     if readings is not None:
         comparison, more = compare_readings(a, readings, limits)
         findings.extend(more)
-    order = {"limit": 0, "warning": 1, "info": 2}
-    findings.sort(key=lambda f: order[f.level])
+    findings.sort(key=lambda f: LEVEL_RANK[f.level])
     return dataclasses.replace(a, readings=comparison, findings=tuple(findings))
