@@ -191,8 +191,8 @@ SRC_LIGHT_LOAD = (
     "ratings (the neutral has its own check)"
 )
 SRC_DEVIATION_DEFINITION = (
-    "deviation from the mean: the largest |I - mean| / mean (NEMA MG 1 definition, "
-    "published); many meters show (max - min) / mean instead, 1.5 to 2 times as large"
+    "deviation from the mean: the largest |I - mean| / mean, the NEMA MG 1 definition "
+    "(published); many meters show (max - min) / mean instead, 1.5 to 2 times as large"
 )
 SRC_PHASE_KVA = (
     f"some grid operators cap the apparent power between phases, e.g. {PHASE_KVA_EXAMPLE:g} "

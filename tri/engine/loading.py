@@ -215,7 +215,7 @@ def calculation_words(factor: float) -> str:
     return f"noncontinuous plus {factor * 100:g} % of continuous"
 
 
-def sizing_sources(frequency_hz: float, has_main: bool) -> tuple[str, str]:
+def sizing_sources(frequency_hz: float, has_main: bool, factor: float) -> tuple[str, str]:
     """Sources of the sizing rule against the panel and against a branch breaker.
 
     Parameters
@@ -224,13 +224,17 @@ def sizing_sources(frequency_hz: float, has_main: bool) -> tuple[str, str]:
         System frequency [Hz] (:func:`tri.engine.limits.practice_for`).
     has_main : bool
         The panel has a main breaker (else its bus is judged, 408.30).
+    factor : float
+        Continuous factor [-]: a factor other than 1 is the NEC's rule,
+        whatever the frequency.
 
     Returns
     -------
     panel, branch : str
-        Source texts with their tags.
+        Source texts with their tags: IEC 60364-4-43 on an IEC-practice
+        panel without a continuous factor, the NEC's clauses otherwise.
     """
-    if practice_for(frequency_hz) == IEC:
+    if practice_for(frequency_hz) == IEC and factor == 1.0:
         return SRC_IEC_SIZING, SRC_IEC_SIZING
     return (SRC_SIZING_MAIN if has_main else SRC_SIZING_BUS), SRC_BRANCH
 
@@ -273,7 +277,9 @@ def loading_findings(a: PanelAnalysis, ratings: Ratings, limits: FindingLimits) 
         listed = _phases_text(
             [f"{p.label} {p.calculated_a:.1f} A ({p.calculated_pct:.1f} %)" for p in sizing]
         )
-        source, _ = sizing_sources(a.frequency_hz, ratings.main_a is not None)
+        source, _ = sizing_sources(
+            a.frequency_hz, ratings.main_a is not None, a.continuous_factor
+        )
         out.append(
             Finding(
                 "limit",
@@ -341,7 +347,7 @@ def breaker_findings(
     """
     out: list[Finding] = []
     cf = a.continuous_factor
-    _, source = sizing_sources(a.frequency_hz, True)
+    _, source = sizing_sources(a.frequency_hz, True, cf)
     for k, rating in enumerate(np.asarray(breaker_a, dtype=float)):
         need = a.circuit_calculated_a[k]
         if not np.isfinite(rating) or need <= rating:

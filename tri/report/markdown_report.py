@@ -308,7 +308,7 @@ def _sizing(d: dict[str, Any]) -> str:
         if factor == 1
         else f"noncontinuous plus {factor * 100:g} % of continuous load"
     )
-    if b["practice"] != "NEC":
+    if b["practice"] != "NEC" and factor == 1:
         clause = "IEC 60364-4-43 433.1, from memory"
     elif p["main_a"] is not None:
         clause = "NEC 215.3, 215.2(A)(1), 230.42(A)(1)"

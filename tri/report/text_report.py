@@ -240,7 +240,7 @@ def _sizing_text(d: dict[str, Any]) -> Text:
         ph = d["phases"][lab]
         over = f" {OVER}" if ph["calculated_pct"] > 100.0 else ""
         phases.append(f"{lab} {_f(ph['calculated_a'])} A ({_f(ph['calculated_pct'])} %{over})")
-    nec = b["practice"] == "NEC"
+    nec = b["practice"] == "NEC" or factor != 1
     clause = (
         ("NEC 215.3, 215.2(A)(1), 230.42(A)(1)" if p["main_a"] is not None else "NEC 408.30")
         if nec
