@@ -237,14 +237,27 @@ class TestNeutralRules:
         assert any("not counted as current-carrying" in f.message for f in a.findings)
 
     def test_line_to_neutral_non_linear_major_portion_counts(self):
-        """15 kVA of electronics on 1-pole circuits, 100 % of the load > 50 %."""
+        """15 kVA of electronics on 1-pole circuits, 100 % of the load > 50 % (a 60 Hz
+        panel: NEC practice)."""
         c = ln_panel([5000, 5000, 5000], [0, 1, 2], profile="electronics")
-        a = analyse(c, SYS, Ratings(bus_a=100.0, neutral_a=30.0))
+        a = analyse(c, US, Ratings(bus_a=100.0, neutral_a=30.0))
         (count,) = [f for f in a.findings if "current-carrying conductor" in f.message]
         assert "310.15(E)" in count.source and "(published)" in count.source
         assert any("exceeds the largest phase" in f.message for f in a.findings)
         assert any("Neutral carries" in f.message and f.level == "limit" for f in a.findings)
         assert a.neutral.loading_pct == pytest.approx(100 * a.neutral.rms_a / 30.0)
+
+    def test_iec_practice_cites_iec_for_a_loaded_neutral(self):
+        """The same panel at 50 Hz (IEC practice): no NEC clause; the third-harmonic
+        content 81 % (the electronics profile, Dugan et al. [from memory]) is over 45 %,
+        so Annex E sizes on the neutral current and the neutral is a loaded conductor
+        (IEC 60364-5-52 523.6.3, read as quoted in Annex E)."""
+        c = ln_panel([5000, 5000, 5000], [0, 1, 2], profile="electronics")
+        a = analyse(c, SYS, Ratings(bus_a=100.0))
+        assert not any("310.15(E)" in f.source for f in a.findings)
+        (iec,) = [f for f in a.findings if "Annex E" in f.source]
+        assert "neutral current" in iec.message and "loaded conductor" in iec.message
+        assert "523.6.3" in iec.source
 
     @pytest.mark.parametrize(
         ("phases", "wye", "share", "counts"),
@@ -478,7 +491,7 @@ def test_finding_sources_carry_their_tags():
     220.61 [published, secondary]; NEC 310.15(E), NEMA MG 1 Part 14, EN 50160
     [published]; IEC 61000-2-2, NEC 408.4, Dugan et al., VDE-AR-N 4100 [from memory];
     ANSI C84.1 [published, secondary]; IEC 60364-5-52 Table E.52.1 [published,
-    secondary]."""
+    secondary]. (IEC 60364-5-52 Annex G's drop figures are [from memory].)"""
     weak = SupplyImpedance(
         transformer_kva=45.0, transformer_z_pct=6.0, transformer_x_r=1.5, feeder_length_m=60
     )
@@ -486,7 +499,8 @@ def test_finding_sources_carry_their_tags():
     runs = [
         analyse(ln_panel([17000], [0], continuous=[True]), SYS, Ratings(100.0, 80.0)),
         analyse(breaker, US, Ratings(100.0)),
-        analyse(ln_panel([5000] * 3, [0, 1, 2], "electronics"), SYS, Ratings(100.0, neutral_a=5)),
+        analyse(ln_panel([5000] * 3, [0, 1, 2], "electronics"), US, Ratings(100.0, neutral_a=5)),
+        analyse(ln_panel([5000] * 3, [0, 1, 2], "electronics"), SYS, Ratings(100.0)),
         analyse(ln_panel([12000, 2000, 2000], [0, 1, 2]), SYS, Ratings(200.0), weak),
         analyse(
             ln_panel([12000, 2000, 2000], [0, 1, 2]),
@@ -518,7 +532,7 @@ def test_finding_sources_carry_their_tags():
         "IEC 61000-2-2": "(from memory)",
         "ANSI C84.1": "(published, secondary)",
         "Dugan": "from memory",
-        "IEC 60364-5-52": "(published, secondary",
+        "Annex E, Table E.52.1": "(published, secondary",
         "VDE-AR-N 4100": "from memory",
     }
     for cited, tag in rules.items():

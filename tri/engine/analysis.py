@@ -270,7 +270,7 @@ def analyse_batch(
         phase_calculated_a=calculated,
         phase_calculated_pct=loading_pct(calculated, rating),
         neutral_calculated_a=neutral_calculated_load_a(circuits, v_ln),
-        circuit_calculated_a=circuit_calculated_a(circuits, factor, v_ln, system.v_ll),
+        circuit_calculated_a=circuit_calculated_a(circuits, factor, v_ln),
         nonlinear_ln_share_pct=nl_ln_share,
         max_minus_min_pct=max_minus_min_pct(phase_rms),
         **volt,

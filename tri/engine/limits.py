@@ -233,6 +233,14 @@ SRC_DROP = (
     "NEC informational notes to 210.19(A) and 215.2(A): 3 % feeder, 5 % total "
     "(from memory; advisory)"
 )
+SRC_IEC_LOADED_NEUTRAL = (
+    "IEC 60364-5-52 523.6.3: a neutral carrying current without a matching reduction in the "
+    "line conductors' load is taken into account (published, quoted in its Annex E)"
+)
+SRC_IEC_DROP = (
+    "IEC 60364-5-52 Annex G: 3 % lighting, 5 % other uses from a public low-voltage supply "
+    "(from memory; advisory)"
+)
 SRC_NONLINEAR_READING = (
     f"'major portion' read as more than {NONLINEAR_MAJOR_PCT:g} % (common practice)"
 )

@@ -95,36 +95,34 @@ def continuous_weights(continuous: np.ndarray, factor: float) -> np.ndarray:
     return np.where(np.asarray(continuous, dtype=bool), float(factor), 1.0)
 
 
-def scheduled_current_a(circuits: CircuitArrays, v_ln: float, v_ll: float) -> np.ndarray:
+def scheduled_current_a(circuits: CircuitArrays, v_ln: float) -> np.ndarray:
     """Each circuit's line current from its scheduled load at nominal voltage [A].
 
     Parameters
     ----------
     circuits : CircuitArrays
         Shape (..., n).
-    v_ln, v_ll : float
-        Nominal line-to-neutral and line-to-line voltages [V] (``v_ln`` is
-        ``v_ll/√3`` on a 3-wire system).
+    v_ln : float
+        Nominal line-to-neutral voltage [V] (``v_ll/√3`` on a 3-wire system).
 
     Returns
     -------
     ndarray, shape (..., n)
         ``|S|/V_LN`` (1 pole), ``|S|/V_LL`` (2 poles), ``|S|/(√3·V_LL)``
-        (3 poles), 0 unplaced [A]: the load as the schedule states it, the
-        figure the code's calculations use (nameplate loads, nominal
-        voltage), without the harmonic profile and whatever ``--iterate``.
+        (3 poles), 0 unplaced [A], with ``V_LL = √3·V_LN``, the magnitude of
+        the engine's nominal ``V_A − V_B`` (so a load given in amperes comes
+        back unchanged): the load as the schedule states it, the figure the
+        code's calculations use (nameplate loads, nominal voltage), without
+        the harmonic profile and whatever ``--iterate``.
     """
     ln, ll, tp = connection_masks(circuits)
-    volts = np.where(ln, v_ln, 1.0) * 1.0
-    volts = np.where(ll, v_ll, volts)
-    volts = np.where(tp, np.sqrt(3.0) * v_ll, volts)
+    v_ll = np.sqrt(3.0) * float(v_ln)
+    volts = np.where(ln, float(v_ln), np.where(ll, v_ll, np.sqrt(3.0) * v_ll))
     s = np.abs(np.asarray(circuits.s_va, dtype=complex))
     return np.where(ln | ll | tp, s / volts, 0.0)
 
 
-def circuit_calculated_a(
-    circuits: CircuitArrays, factor: float, v_ln: float, v_ll: float
-) -> np.ndarray:
+def circuit_calculated_a(circuits: CircuitArrays, factor: float, v_ln: float) -> np.ndarray:
     """Each circuit's calculated load for its breaker: continuous ones at the factor.
 
     Parameters
@@ -133,8 +131,8 @@ def circuit_calculated_a(
         Shape (..., n).
     factor : float
         Continuous factor [-].
-    v_ln, v_ll : float
-        Nominal voltages [V] (:func:`scheduled_current_a`).
+    v_ln : float
+        Nominal line-to-neutral voltage [V] (:func:`scheduled_current_a`).
 
     Returns
     -------
@@ -145,7 +143,7 @@ def circuit_calculated_a(
         one of the two).
     """
     weights = continuous_weights(circuits.continuous, factor)
-    return weights * scheduled_current_a(circuits, v_ln, v_ll)
+    return weights * scheduled_current_a(circuits, v_ln)
 
 
 def calculated_load_a(circuits: CircuitArrays, factor: float, v_ln: float) -> np.ndarray:
@@ -211,7 +209,7 @@ def neutral_calculated_load_a(circuits: CircuitArrays, v_ln: float) -> np.ndarra
 def calculation_words(factor: float) -> str:
     """What the calculated load is, in words, for a continuous factor [-]."""
     if factor == 1.0:
-        return "scheduled load"
+        return "scheduled load, no continuous-load factor"
     return f"noncontinuous plus {factor * 100:g} % of continuous"
 
 
@@ -277,9 +275,7 @@ def loading_findings(a: PanelAnalysis, ratings: Ratings, limits: FindingLimits) 
         listed = _phases_text(
             [f"{p.label} {p.calculated_a:.1f} A ({p.calculated_pct:.1f} %)" for p in sizing]
         )
-        source, _ = sizing_sources(
-            a.frequency_hz, ratings.main_a is not None, a.continuous_factor
-        )
+        source, _ = sizing_sources(a.frequency_hz, ratings.main_a is not None, a.continuous_factor)
         out.append(
             Finding(
                 "limit",

@@ -19,7 +19,9 @@ Whether the neutral counts as a current-carrying conductor (for ampacity
 adjustment) follows NEC 310.15(E): only from the share of non-linear
 *line-to-neutral* load on a 4-wire wye, or always for two phases and the
 neutral of a wye; a 3-wire load (a six-pulse drive on three poles) draws
-none of its harmonics through the neutral and never makes it count.
+none of its harmonics through the neutral and never makes it count. On an
+IEC-practice panel (50 Hz) the NEC rule is not cited: IEC 60364-5-52
+523.6.3 and its Annex E say when the neutral is a loaded conductor.
 
 References
 ----------
@@ -34,7 +36,9 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 from tri.engine.limits import (
+    IEC,
     LOCAL,
+    SRC_IEC_LOADED_NEUTRAL,
     SRC_IEC_NEUTRAL,
     SRC_NEUTRAL_CALCULATED,
     SRC_NEUTRAL_CURRENT_CARRYING,
@@ -43,6 +47,7 @@ from tri.engine.limits import (
     FindingLimits,
     HarmonicBand,
     iec_band,
+    practice_for,
 )
 from tri.engine.results import Finding, PanelAnalysis
 
@@ -170,9 +175,10 @@ def iec_neutral_basis(a: PanelAnalysis) -> IecNeutralBasis | None:
     return IecNeutralBasis(third, phase, band, basis, basis / band.factor)
 
 
-def _iec_finding(b: IecNeutralBasis) -> Finding | None:
+def _iec_finding(b: IecNeutralBasis, iec_practice: bool) -> Finding | None:
     if b.band.factor == 1.0 and b.band.basis == "line current":
         return None
+    loaded = " The neutral then counts as a loaded conductor." if iec_practice else ""
     level = "warning" if b.band.basis == "neutral current" else "info"
     size = (
         f"{b.basis_a:.1f} A / {b.band.factor:g} = {b.design_a:.1f} A"
@@ -184,8 +190,10 @@ def _iec_finding(b: IecNeutralBasis) -> Finding | None:
         f"Third-harmonic content of the line current up to {b.third_pct:.0f} % (phase "
         f"{b.phase}): IEC practice sizes a four- or five-core feeder on the {b.band.basis}"
         + (f" with a factor of {b.band.factor:g}" if b.band.factor != 1.0 else "")
-        + f": {size}.",
-        f"{SRC_IEC_NEUTRAL}; {LOCAL}",
+        + f": {size}.{loaded}",
+        f"{SRC_IEC_NEUTRAL}"
+        + (f"; {SRC_IEC_LOADED_NEUTRAL}" if iec_practice else "")
+        + f"; {LOCAL}",
     )
 
 
@@ -240,6 +248,19 @@ def neutral_findings(a: PanelAnalysis, limits: FindingLimits, wye: bool) -> list
                 f"{SRC_TRIPLENS}; {LOCAL}",
             )
         )
+    iec_practice = practice_for(a.frequency_hz) == IEC
+    if not iec_practice:
+        out.extend(_nec_count_findings(a, limits, wye))
+    basis = iec_neutral_basis(a)
+    iec = None if basis is None else _iec_finding(basis, iec_practice)
+    if iec is not None:
+        out.append(iec)
+    return out
+
+
+def _nec_count_findings(a: PanelAnalysis, limits: FindingLimits, wye: bool) -> list[Finding]:
+    """NEC 310.15(E) for the panel's feeder (three phases and the neutral)."""
+    out: list[Finding] = []
     rule = neutral_counts(3, wye, a.nonlinear_ln_share_pct, limits.nonlinear_major_pct)
     if rule.counts:
         out.append(
@@ -261,10 +282,6 @@ def neutral_findings(a: PanelAnalysis, limits: FindingLimits, wye: bool) -> list
                 f"{SRC_NEUTRAL_CURRENT_CARRYING}; {LOCAL}",
             )
         )
-    basis = iec_neutral_basis(a)
-    iec = None if basis is None else _iec_finding(basis)
-    if iec is not None:
-        out.append(iec)
     return out
 
 

@@ -26,11 +26,13 @@ from tri.engine.limits import (
     SRC_DEVIATION_DEFINITION,
     SRC_DROP,
     SRC_EN50160,
+    SRC_IEC_DROP,
     SRC_LIGHT_LOAD,
     SRC_NEMA_CURVE,
     SRC_NEMA_LIMIT,
     SRC_PHASE_KVA,
     FindingLimits,
+    practice_for,
 )
 from tri.engine.results import Finding, PanelAnalysis
 
@@ -237,7 +239,7 @@ def voltage_findings(a: PanelAnalysis, limits: FindingLimits) -> list[Finding]:
                 "info",
                 f"Voltage at the panel is {worst:.1f} % below nominal on phase {label} "
                 "(transformer and feeder).",
-                f"{SRC_DROP}; {LOCAL}",
+                f"{SRC_IEC_DROP if practice_for(a.frequency_hz) == 'IEC' else SRC_DROP}; {LOCAL}",
             )
         )
     if v.iterated:
