@@ -128,7 +128,7 @@ def test_defaults_and_their_sources_are_printed_end_to_end() -> None:
         ("--max-loading-pct", "80", {"loading": ["fail"]}),  # 86.49 % > 80 %
         ("--max-current-pct", "70", {"current": ["fail"]}),  # 73.64 % > 70 %
         ("--max-breaker-pct", "90", {"breakers": ["fail"]}),  # 90.21 % > 90 %
-        ("--max-phase-kva", "0.5", {"phase-kva": ["fail"]}),  # 1.20 kVA > 0.5 kVA
+        ("--max-phase-kva", "4.6", {"phase-kva": ["fail"]}),  # 8.12 kVA > 4.6 kVA
     ],
 )
 def test_each_limit_fails_in_turn(option: str, value: str, failing: dict[str, list[str]]) -> None:
@@ -153,7 +153,9 @@ def test_shop_figures_recomputed() -> None:
     assert data["phases"]["A"]["calculated_a"] == pytest.approx(a / 277, rel=1e-8)
     assert 100 * a / 277 / 400 == pytest.approx(86.49, abs=5e-3)
     va = [p["va"] for p in data["phases"].values()]
-    assert (max(va) - min(va)) / 1000 == pytest.approx(1.2, abs=5e-3)
+    (gap,) = [r for r in evaluate(data, {"phase-kva": 4.6}) if r.key == "phase-kva"]
+    assert gap.value == pytest.approx((max(va) - min(va)) / 1000, rel=1e-12)
+    assert gap.value == pytest.approx(8.12, abs=5e-3) and gap.status == "fail"
 
 
 def test_text_names_the_failed_limit() -> None:
