@@ -176,7 +176,11 @@ def iec_neutral_basis(a: PanelAnalysis) -> IecNeutralBasis | None:
 
 
 def _iec_finding(b: IecNeutralBasis, iec_practice: bool) -> Finding | None:
+    """The Annex E basis as a finding: from 15 % on IEC panels; on NEC ones only when
+    the neutral governs (over 33 %), the case that matters whatever the practice."""
     if b.band.factor == 1.0 and b.band.basis == "line current":
+        return None
+    if not iec_practice and b.band.basis == "line current":
         return None
     loaded = " The neutral then counts as a loaded conductor." if iec_practice else ""
     level = "warning" if b.band.basis == "neutral current" else "info"
