@@ -9,8 +9,9 @@ the same ones).
 limit        figure                                                     default
 ===========  ========================================================  ========
 deviation    largest ``|I − mean| / mean`` of the phase RMS currents    10 %
-             (NEMA definition); not judged when the heaviest phase is
-             below ``--light-load-pct`` (20 %) of the rating
+             (NEMA definition); over the limit, not judged (skipped)
+             when the heaviest phase is below ``--light-load-pct``
+             (20 %) of the rating
 vuf          ``|V2|/|V1|`` of the line voltages, computed (``[supply]``)  2 %
              and measured (``[readings]``); EN 50160's 2 % is a weekly
              statistic at the supply terminals, so both are indicative
@@ -245,7 +246,8 @@ def _deviation(data: dict[str, Any], m: dict[str, float | None], light: float) -
         f"{cu['max_minus_min_pct']:.1f} %"
     )
     heaviest = max(ph[lab]["loading_pct"] for lab in labels)
-    if heaviest < light:
+    within = m["deviation"] is not None and cu["max_deviation_pct"] <= m["deviation"]
+    if heaviest < light and not within:
         skip = (
             f"lightly loaded: heaviest phase {heaviest:.1f} % of the rating, below "
             f"{light:g} % (--light-load-pct); deviation {cu['max_deviation_pct']:.1f} % not "
