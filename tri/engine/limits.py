@@ -11,8 +11,10 @@ fact of the trade with no single source), or **tri's judgement** (a choice
 made here, with its reason).
 
 Comparisons: a figure *above* a threshold crosses it; a figure equal to it
-does not (``>`` everywhere, as ``tri check`` passes a value equal to its
-limit).
+does not, and neither does one above it by round-off alone (:func:`exceeds`:
+a 32 A continuous charger on a 40 A breaker needs exactly 40 A, however the
+floating-point sum lands), as ``tri check`` passes a value equal to its
+limit.
 
 References
 ----------
@@ -245,6 +247,30 @@ SRC_NONLINEAR_READING = (
     f"'major portion' read as more than {NONLINEAR_MAJOR_PCT:g} % (common practice)"
 )
 
+# ---- comparisons -----------------------------------------------------------
+
+#: Relative round-off allowed before a figure counts as above a threshold [-]:
+#: far above the ~1e-15 error of the few operations behind any figure here,
+#: far below any difference that matters.
+ROUND_OFF = 1e-12
+
+
+def exceeds(value: float, threshold: float) -> bool:
+    """True when ``value`` is above ``threshold`` by more than round-off.
+
+    Parameters
+    ----------
+    value, threshold : float
+        Figure and threshold, in the same unit.
+
+    Returns
+    -------
+    bool
+        ``value > threshold + ROUND_OFF·|threshold|``.
+    """
+    return value > threshold + ROUND_OFF * abs(threshold)
+
+
 # ---- status words ----------------------------------------------------------
 
 #: Above 100 % of the rating.
@@ -281,9 +307,9 @@ def loading_word(pct: float | None, headroom_pct: float = DESIGN_HEADROOM_PCT) -
     """
     if pct is None:
         return ""
-    if pct > RATING_PCT:
+    if exceeds(pct, RATING_PCT):
         return OVER
-    if pct > headroom_pct:
+    if exceeds(pct, headroom_pct):
         return NEAR
     return OK
 

@@ -33,6 +33,8 @@ from tri.engine.inputs import CircuitArrays, Ratings
 from tri.engine.limits import (
     IEC,
     LOCAL,
+    NEAR,
+    RATING_PCT,
     SRC_BRANCH,
     SRC_EQUIPMENT_RATING,
     SRC_IEC_SIZING,
@@ -40,6 +42,8 @@ from tri.engine.limits import (
     SRC_SIZING_BUS,
     SRC_SIZING_MAIN,
     FindingLimits,
+    exceeds,
+    loading_word,
     practice_for,
 )
 from tri.engine.phasors import connection_masks, schedule_va
@@ -237,8 +241,15 @@ def sizing_sources(frequency_hz: float, has_main: bool, factor: float) -> tuple[
     return (SRC_SIZING_MAIN if has_main else SRC_SIZING_BUS), SRC_BRANCH
 
 
-def _phases_text(items: list[str]) -> str:
+def _and(items: list[str]) -> str:
     return items[0] if len(items) == 1 else ", ".join(items[:-1]) + " and " + items[-1]
+
+
+def _lead(labels: list[str], figures: list[str]) -> str:
+    """``"Phase A 202.7 A"`` or ``"Phases A and B 204.5 A and 176.7 A"`` (figure first,
+    so a one-line view keeps it)."""
+    word = "Phase" if len(labels) == 1 else "Phases"
+    return f"{word} {_and(labels)} {_and(figures)}"
 
 
 def loading_findings(a: PanelAnalysis, ratings: Ratings, limits: FindingLimits) -> list[Finding]:
@@ -260,27 +271,30 @@ def loading_findings(a: PanelAnalysis, ratings: Ratings, limits: FindingLimits) 
     out: list[Finding] = []
     rating = a.rating_a
     what = "main" if ratings.main_a is not None else "bus (no main)"
-    over = [p for p in a.phases if p.loading_pct > 100.0]
+    over = [p for p in a.phases if exceeds(p.loading_pct, RATING_PCT)]
     if over:
-        listed = _phases_text([f"{p.label} {p.rms_a:.1f} A ({p.loading_pct:.1f} %)" for p in over])
+        lead = _lead(
+            [p.label for p in over], [f"{p.rms_a:.1f} A ({p.loading_pct:.1f} %)" for p in over]
+        )
         out.append(
             Finding(
                 "limit",
-                f"Phase RMS current over the {rating:g} A {what}: {listed}.",
+                f"{lead} RMS, over the {rating:g} A {what}.",
                 f"{SRC_EQUIPMENT_RATING}; {LOCAL}",
             )
         )
-    sizing = [p for p in a.phases if p.calculated_pct > 100.0]
+    sizing = [p for p in a.phases if exceeds(p.calculated_pct, RATING_PCT)]
     if sizing:
-        listed = _phases_text(
-            [f"{p.label} {p.calculated_a:.1f} A ({p.calculated_pct:.1f} %)" for p in sizing]
+        lead = _lead(
+            [p.label for p in sizing],
+            [f"{p.calculated_a:.1f} A ({p.calculated_pct:.1f} %)" for p in sizing],
         )
         source, _ = sizing_sources(a.frequency_hz, ratings.main_a is not None, a.continuous_factor)
         out.append(
             Finding(
                 "limit",
-                f"Calculated load ({calculation_words(a.continuous_factor)}) over the "
-                f"{rating:g} A {what}: {listed}.",
+                f"{lead} calculated load, over the {rating:g} A {what} "
+                f"({calculation_words(a.continuous_factor)}).",
                 f"{source}; {LOCAL}",
             )
         )
@@ -292,24 +306,24 @@ def loading_findings(a: PanelAnalysis, ratings: Ratings, limits: FindingLimits) 
                 f"{SRC_MAIN_ABOVE_BUS}; {LOCAL}",
             )
         )
-        bus_over = [p for p in a.phases if p.calculated_a > ratings.bus_a]
+        bus_over = [p for p in a.phases if exceeds(p.calculated_a, ratings.bus_a)]
         if bus_over:
-            listed = _phases_text([f"{p.label} {p.calculated_a:.1f} A" for p in bus_over])
+            lead = _lead([p.label for p in bus_over], [f"{p.calculated_a:.1f} A" for p in bus_over])
             out.append(
                 Finding(
                     "limit",
-                    f"Calculated load over the {ratings.bus_a:g} A bus: {listed}.",
+                    f"{lead} calculated load, over the {ratings.bus_a:g} A bus.",
                     f"{SRC_SIZING_BUS}; {LOCAL}",
                 )
             )
-    near = [p for p in a.phases if limits.headroom_pct < p.loading_pct <= 100.0]
+    near = [p for p in a.phases if loading_word(p.loading_pct, limits.headroom_pct) == NEAR]
     if near:
-        listed = _phases_text([f"{p.label} {p.loading_pct:.1f} %" for p in near])
+        lead = _lead([p.label for p in near], [f"{p.loading_pct:.1f} %" for p in near])
         out.append(
             Finding(
                 "warning",
-                f"Phase RMS current above the {limits.headroom_pct:g} % design headroom of the "
-                f"{rating:g} A {what}: {listed}; little room for added load.",
+                f"{lead} of the {rating:g} A {what}, above the {limits.headroom_pct:g} % design "
+                "headroom; little room for added load.",
                 f"design headroom of {limits.headroom_pct:g} % (common practice; a margin, "
                 f"not a code rule); {LOCAL}",
             )
@@ -346,18 +360,14 @@ def breaker_findings(
     _, source = sizing_sources(a.frequency_hz, True, cf)
     for k, rating in enumerate(np.asarray(breaker_a, dtype=float)):
         need = a.circuit_calculated_a[k]
-        if not np.isfinite(rating) or need <= rating:
+        if not np.isfinite(rating) or not exceeds(need, rating):
             continue
         cont = bool(continuous[k]) and cf != 1.0
-        how = (
-            f"continuous {need / cf:.1f} A at {cf * 100:g} % needs {need:.1f} A"
-            if cont
-            else f"scheduled {need:.1f} A"
-        )
+        how = f" (continuous {need / cf:.1f} A at {cf * 100:g} %)" if cont else ""
         out.append(
             Finding(
                 "limit",
-                f"{circuit_labels[k]}: {how}, over its {rating:g} A breaker.",
+                f"{circuit_labels[k]}: {need:.1f} A over its {rating:g} A breaker{how}.",
                 f"{source}; {LOCAL}",
             )
         )

@@ -46,6 +46,7 @@ from tri.engine.limits import (
     SRC_TRIPLENS,
     FindingLimits,
     HarmonicBand,
+    exceeds,
     iec_band,
     practice_for,
 )
@@ -222,7 +223,7 @@ def neutral_findings(a: PanelAnalysis, limits: FindingLimits, wye: bool) -> list
     if not n.present:
         return []
     out: list[Finding] = []
-    if n.loading_pct is not None and n.loading_pct > 100.0:
+    if n.loading_pct is not None and exceeds(n.loading_pct, 100.0):
         out.append(
             Finding(
                 "limit",
@@ -231,7 +232,11 @@ def neutral_findings(a: PanelAnalysis, limits: FindingLimits, wye: bool) -> list
                 f"equipment rating (common practice); {LOCAL}",
             )
         )
-    if n.calculated_a is not None and n.rating_a is not None and n.calculated_a > n.rating_a:
+    if (
+        n.calculated_a is not None
+        and n.rating_a is not None
+        and exceeds(n.calculated_a, n.rating_a)
+    ):
         out.append(
             Finding(
                 "limit",

@@ -32,6 +32,7 @@ from tri.engine.limits import (
     SRC_NEMA_LIMIT,
     SRC_PHASE_KVA,
     FindingLimits,
+    exceeds,
     practice_for,
 )
 from tri.engine.results import Finding, PanelAnalysis
@@ -72,7 +73,7 @@ def deviation_findings(a: PanelAnalysis, limits: FindingLimits) -> list[Finding]
         above it on a lightly loaded one; nothing within it.
     """
     cu = a.current_unbalance
-    if cu.max_deviation_pct <= limits.deviation_warn_pct:
+    if not exceeds(cu.max_deviation_pct, limits.deviation_warn_pct):
         return []
     rms = np.array([p.rms_a for p in a.phases])
     worst = a.phases[int(np.argmax(np.abs(rms - rms.mean())))]
@@ -123,7 +124,7 @@ def phase_kva_findings(a: PanelAnalysis, limits: FindingLimits) -> list[Finding]
     va = [p.va for p in a.phases]
     hi, lo = int(np.argmax(va)), int(np.argmin(va))
     gap = (va[hi] - va[lo]) / 1000.0
-    if gap <= limits.phase_kva_limit:
+    if not exceeds(gap, limits.phase_kva_limit):
         return []
     return [
         Finding(

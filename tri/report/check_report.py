@@ -55,6 +55,7 @@ from tri.engine.limits import (
     SRC_SIZING_BUS,
     SRC_SIZING_MAIN,
     VUF_PCT,
+    exceeds,
 )
 
 Status = Literal["pass", "fail", "skipped"]
@@ -227,7 +228,7 @@ def _result(
         return CheckResult(
             limit.key, limit.title, None, maximum, limit.unit, SKIPPED, why, source, default
         )
-    status: Status = PASS if value <= maximum else FAIL
+    status: Status = FAIL if exceeds(value, maximum) else PASS
     return CheckResult(
         limit.key, limit.title, value, maximum, limit.unit, status, where, source, default
     )
@@ -246,7 +247,7 @@ def _deviation(data: dict[str, Any], m: dict[str, float | None], light: float) -
         f"{cu['max_minus_min_pct']:.1f} %"
     )
     heaviest = max(ph[lab]["loading_pct"] for lab in labels)
-    within = m["deviation"] is not None and cu["max_deviation_pct"] <= m["deviation"]
+    within = m["deviation"] is not None and not exceeds(cu["max_deviation_pct"], m["deviation"])
     if heaviest < light and not within:
         skip = (
             f"lightly loaded: heaviest phase {heaviest:.1f} % of the rating, below "
@@ -324,7 +325,9 @@ def _breakers(data: dict[str, Any], maximum: float | None) -> CheckResult:
     where_slot = (
         f"slot {worst['slot']}" if worst["slot"] is not None else f"phases {worst['phases']}"
     )
-    over = sum(1 for c in rated if 100.0 * c["calculated_a"] / c["breaker_a"] > (maximum or 0))
+    over = sum(
+        1 for c in rated if exceeds(100.0 * c["calculated_a"] / c["breaker_a"], maximum or 0.0)
+    )
     where = (
         f"{where_slot} {worst['name']!r}: {worst['calculated_a']:.1f} A of "
         f"{worst['breaker_a']:g} A; {over} of {len(rated)} over"
