@@ -175,6 +175,11 @@ SRC_BRANCH = (
     "plus 125 % of the continuous load (published, secondary); assemblies listed for 100 % "
     "operation are excepted (set the continuous factor to 1 for them)"
 )
+#: Short names of the sizing clauses, for one-line summaries (sources above).
+CLAUSE_SIZING_MAIN = "NEC 215.3, 215.2(A)(1), 230.42(A)(1)"
+CLAUSE_SIZING_BUS = "NEC 408.30"
+CLAUSE_BRANCH = "NEC 210.20(A)"
+CLAUSE_IEC_SIZING = "IEC 60364-4-43 433.1, from memory"
 SRC_IEC_SIZING = (
     "IEC 60364-4-43 433.1: the design current not above the rated current of the protective "
     "device, no continuous-load factor (from memory)"

@@ -31,6 +31,10 @@ import numpy as np
 
 from tri.engine.inputs import CircuitArrays, Ratings
 from tri.engine.limits import (
+    CLAUSE_BRANCH,
+    CLAUSE_IEC_SIZING,
+    CLAUSE_SIZING_BUS,
+    CLAUSE_SIZING_MAIN,
     IEC,
     LOCAL,
     NEAR,
@@ -60,6 +64,8 @@ __all__ = [
     "loading_pct",
     "neutral_calculated_load_a",
     "scheduled_current_a",
+    "sizing_clauses",
+    "sizing_sources",
 ]
 
 
@@ -213,7 +219,7 @@ def neutral_calculated_load_a(circuits: CircuitArrays, v_ln: float) -> np.ndarra
 def calculation_words(factor: float) -> str:
     """What the calculated load is, in words, for a continuous factor [-]."""
     if factor == 1.0:
-        return "scheduled load, no continuous-load factor"
+        return "no continuous-load factor"
     return f"noncontinuous plus {factor * 100:g} % of continuous"
 
 
@@ -239,6 +245,13 @@ def sizing_sources(frequency_hz: float, has_main: bool, factor: float) -> tuple[
     if practice_for(frequency_hz) == IEC and factor == 1.0:
         return SRC_IEC_SIZING, SRC_IEC_SIZING
     return (SRC_SIZING_MAIN if has_main else SRC_SIZING_BUS), SRC_BRANCH
+
+
+def sizing_clauses(frequency_hz: float, has_main: bool, factor: float) -> tuple[str, str]:
+    """Short names of :func:`sizing_sources`' clauses (panel, branch), for summaries."""
+    if practice_for(frequency_hz) == IEC and factor == 1.0:
+        return CLAUSE_IEC_SIZING, CLAUSE_IEC_SIZING
+    return (CLAUSE_SIZING_MAIN if has_main else CLAUSE_SIZING_BUS), CLAUSE_BRANCH
 
 
 def _and(items: list[str]) -> str:

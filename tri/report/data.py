@@ -46,6 +46,14 @@ Added keys (beyond the contract)
     ``phases.*.va`` and ``phases.*.calculated_a`` mean, in words).
 ``supply``
     The ``[supply]`` table as given (kVA, %, -, m, Ω/km), or ``None``.
+``sizing``
+    The sizing rule in words: ``method`` (``"noncontinuous plus 125 % of
+    continuous"``, or ``"no continuous-load factor"``),
+    ``clause`` (short name of the rule against the main or bus) and
+    ``breaker_clause`` (against each breaker), ``over`` (labels of the
+    phases whose ``calculated_a`` is over ``panel.rating_a``),
+    ``breakers_rated`` and ``breakers_over`` (circuits with a breaker
+    rating, and those whose ``calculated_a`` is over it).
 ``phases.*``
     Also ``calculated_a`` [A] and ``calculated_pct`` [%]: the code's
     calculated load (``basis.calculated``: noncontinuous plus
@@ -118,7 +126,8 @@ import math
 from pathlib import Path
 from typing import Any
 
-from tri.engine.limits import DESIGN_HEADROOM_PCT, loading_word, practice_for
+from tri.engine.limits import DESIGN_HEADROOM_PCT, RATING_PCT, exceeds, loading_word, practice_for
+from tri.engine.loading import calculation_words, sizing_clauses
 from tri.engine.results import PanelAnalysis, Phasor
 from tri.schedule.model import Circuit, Schedule
 from tri.schedule.slots import TWO_COLUMN, occupied_slots
@@ -240,7 +249,7 @@ def _circuit(
         "rms_a": num(rms_a),
         "phase_va": {lab: num(v) for lab, v in share.items()},
         "calculated_a": num(calculated_a),
-        "over_breaker": None if c.breaker_a is None else calculated_a > c.breaker_a,
+        "over_breaker": None if c.breaker_a is None else exceeds(calculated_a, c.breaker_a),
     }
 
 
@@ -302,6 +311,21 @@ def _readings(a: PanelAnalysis, schedule: Schedule) -> dict[str, Any] | None:
         "phase_deviation_pct": num(r.phase_deviation_pct),
         "motor_derating": num(r.motor_derating),
         "computed_vuf_pct": num(r.computed_vuf_pct),
+    }
+
+
+def _sizing(a: PanelAnalysis, schedule: Schedule, circuits: list[dict[str, Any]]) -> dict[str, Any]:
+    clause, branch = sizing_clauses(
+        a.frequency_hz, schedule.panel.main_a is not None, a.continuous_factor
+    )
+    rated = [c for c in circuits if c["over_breaker"] is not None]
+    return {
+        "method": calculation_words(a.continuous_factor),
+        "clause": clause,
+        "breaker_clause": branch,
+        "over": [p.label for p in a.phases if exceeds(p.calculated_pct, RATING_PCT)],
+        "breakers_rated": len(rated),
+        "breakers_over": sum(1 for c in rated if c["over_breaker"]),
     }
 
 
@@ -375,6 +399,7 @@ def report_data(
             "calculated": CALCULATED_MEANING,
         },
         "supply": supply,
+        "sizing": _sizing(a, schedule, circuits),
         "phase_order": list(labels),
         "phases": {
             ph.label: {

@@ -301,29 +301,17 @@ def _results(d: dict[str, Any]) -> list[str]:
 
 def _sizing(d: dict[str, Any]) -> str:
     p = d["panel"]
-    b = d["basis"]
-    factor = b["continuous_factor"]
-    what = (
-        "no continuous-load factor"
-        if factor == 1
-        else f"noncontinuous plus {factor * 100:g} % of continuous load"
-    )
-    if b["practice"] != "NEC" and factor == 1:
-        clause = "IEC 60364-4-43 433.1, from memory"
-    elif p["main_a"] is not None:
-        clause = "NEC 215.3, 215.2(A)(1), 230.42(A)(1)"
-    else:
-        clause = "NEC 408.30"
-    rated = [c for c in d["circuits"] if c["over_breaker"] is not None]
-    over = sum(1 for c in rated if c["over_breaker"])
+    z = d["sizing"]
     breakers = (
-        f" Breakers: {len(rated)} circuit(s) with a rating judged the same way, {over} over."
-        if rated
+        f" Breakers: {z['breakers_rated']} circuit(s) with a rating judged the same way "
+        f"({z['breaker_clause']}), {z['breakers_over']} over."
+        if z["breakers_rated"]
         else " No circuit gives a breaker rating."
     )
     return (
-        f"Sizing rule: the calculated load is the scheduled VA per phase over V_LN, {what}, "
-        f"against the {p['rating_a']:g} A {md_escape(p['rating_basis'])} ({clause})." + breakers
+        f"Sizing rule: the calculated load is the scheduled VA per phase over V_LN, "
+        f"{z['method']}, against the {p['rating_a']:g} A {md_escape(p['rating_basis'])} "
+        f"({z['clause']})." + breakers
     )
 
 

@@ -228,37 +228,23 @@ def _neutral_text(d: dict[str, Any], g: _Glyphs) -> Text:
 
 def _sizing_text(d: dict[str, Any]) -> Text:
     p = d["panel"]
-    b = d["basis"]
-    factor = b["continuous_factor"]
-    what = (
-        "no continuous-load factor"
-        if factor == 1
-        else f"noncontinuous plus {factor * 100:g} % of continuous load"
-    )
+    z = d["sizing"]
     phases = []
     for lab in d["phase_order"]:
         ph = d["phases"][lab]
-        over = f" {OVER}" if ph["calculated_pct"] > 100.0 else ""
+        over = f" {OVER}" if lab in z["over"] else ""
         phases.append(f"{lab} {_f(ph['calculated_a'])} A ({_f(ph['calculated_pct'])} %{over})")
-    nec = b["practice"] == "NEC" or factor != 1
-    clause = (
-        ("NEC 215.3, 215.2(A)(1), 230.42(A)(1)" if p["main_a"] is not None else "NEC 408.30")
-        if nec
-        else "IEC 60364-4-43 433.1, from memory"
-    )
-    rated = [c for c in d["circuits"] if c["over_breaker"] is not None]
-    over = [c for c in rated if c["over_breaker"]]
     breakers = (
-        f" Breakers: {len(rated)} circuit(s) with a rating, each judged the same way "
-        f"({'NEC 210.20(A)' if nec else 'IEC 60364-4-43'}): "
-        + (f"{len(over)} over (see the findings)." if over else "none over.")
-        if rated
+        f" Breakers: {z['breakers_rated']} circuit(s) with a rating, each judged the same way "
+        f"({z['breaker_clause']}): "
+        + (f"{z['breakers_over']} over (see the findings)." if z["breakers_over"] else "none over.")
+        if z["breakers_rated"]
         else " No circuit gives a breaker rating, so no breaker was checked."
     )
     return Text(
         f"Sizing rule, the code's calculated load (scheduled VA per phase over V_LN, "
-        f"{what}): {'; '.join(phases)} of the {p['rating_a']:g} A {p['rating_basis']} "
-        f"({clause})." + breakers
+        f"{z['method']}): {'; '.join(phases)} of the {p['rating_a']:g} A {p['rating_basis']} "
+        f"({z['clause']})." + breakers
     )
 
 
