@@ -19,14 +19,8 @@ from typing import Any
 from tri.cli.common import EXIT_ERROR, EXIT_LIMIT, EXIT_OK, SAFETY_CAUTION, CliError, print_error
 from tri.cli.report import add_continuous_factor_option, build_data, check_continuous_factor, emit
 from tri.engine.limits import LIGHT_LOAD_PCT, SRC_LIGHT_LOAD
-from tri.report.check_report import (
-    LIMITS,
-    NOT_CHECKED,
-    evaluate,
-    panel_status,
-    render_check_text,
-    result_dict,
-)
+from tri.report.check_report import LIMITS, NOT_CHECKED, evaluate, panel_status, result_dict
+from tri.report.check_text import render_check_text
 from tri.schedule.errors import ScheduleError
 
 

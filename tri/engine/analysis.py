@@ -146,6 +146,32 @@ def _snap(x: np.ndarray, scale: np.ndarray, extra_dims: int) -> np.ndarray:
     return np.where(np.abs(x) <= SNAP_RELATIVE * s, 0, x)
 
 
+def _code_figures(
+    circuits: CircuitArrays,
+    system: SystemVoltages,
+    ratings: Ratings,
+    rating: float,
+    nonlinear: np.ndarray,
+    total_va: np.ndarray,
+) -> dict[str, np.ndarray]:
+    """The figures of the code's calculation (scheduled loads) and the non-linear
+    line-to-neutral share, as :class:`BatchAnalysis` fields."""
+    factor = ratings.continuous_factor
+    v_ln = system.v_ln_or_derived
+    calculated = calculated_load_a(circuits, factor, v_ln)
+    s_abs = np.abs(np.asarray(circuits.s_va))
+    ln = np.asarray(circuits.connection) == LINE_TO_NEUTRAL
+    nl_ln_va = np.sum(np.where(nonlinear & ln, s_abs, 0.0), axis=-1)
+    safe = np.where(total_va > 0, total_va, 1.0)
+    return {
+        "phase_calculated_a": calculated,
+        "phase_calculated_pct": loading_pct(calculated, rating),
+        "neutral_calculated_a": neutral_calculated_load_a(circuits, v_ln),
+        "circuit_calculated_a": circuit_calculated_a(circuits, factor, v_ln),
+        "nonlinear_ln_share_pct": np.where(total_va > 0, 100.0 * nl_ln_va / safe, 0.0),
+    }
+
+
 def analyse_batch(
     circuits: CircuitArrays,
     system: SystemVoltages,
@@ -218,13 +244,6 @@ def analyse_batch(
     nl_va = np.sum(np.where(nonlinear, s_abs, 0.0), axis=-1)
     nl_share = np.where(total_va > 0, 100.0 * nl_va / np.where(total_va > 0, total_va, 1.0), 0.0)
     tp_triplen = np.any((conn == THREE_PHASE) & (oc.triplen_power_pu > 0), axis=-1)
-    nl_ln_va = np.sum(np.where(nonlinear & (conn == LINE_TO_NEUTRAL), s_abs, 0.0), axis=-1)
-    nl_ln_share = np.where(
-        total_va > 0, 100.0 * nl_ln_va / np.where(total_va > 0, total_va, 1.0), 0.0
-    )
-    factor = ratings.continuous_factor
-    v_ln = system.v_ln_or_derived
-    calculated = calculated_load_a(circuits, factor, v_ln)
 
     volt: dict[str, np.ndarray | None] = {}
     if sol is not None:
@@ -267,11 +286,7 @@ def analyse_batch(
         nonlinear_share_pct=nl_share,
         unplaced_count=np.sum((conn == UNPLACED) & (s_abs > 0), axis=-1),
         three_pole_triplens=tp_triplen,
-        phase_calculated_a=calculated,
-        phase_calculated_pct=loading_pct(calculated, rating),
-        neutral_calculated_a=neutral_calculated_load_a(circuits, v_ln),
-        circuit_calculated_a=circuit_calculated_a(circuits, factor, v_ln),
-        nonlinear_ln_share_pct=nl_ln_share,
+        **_code_figures(circuits, system, ratings, rating, nonlinear, total_va),
         max_minus_min_pct=max_minus_min_pct(phase_rms),
         **volt,
     )

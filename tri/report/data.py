@@ -314,6 +314,40 @@ def _readings(a: PanelAnalysis, schedule: Schedule) -> dict[str, Any] | None:
     }
 
 
+def _phases(a: PanelAnalysis, headroom_pct: float) -> dict[str, Any]:
+    return {
+        ph.label: {
+            "va": num(ph.va),
+            "current_a": num(ph.current_a),
+            "current_deg": num(ph.current_deg),
+            "rms_a": num(ph.rms_a),
+            "thd_pct": num(ph.thd_pct),
+            "loading_pct": num(ph.loading_pct),
+            "design_a": num(ph.design_a),
+            "design_loading_pct": num(ph.design_loading_pct),
+            "calculated_a": num(ph.calculated_a),
+            "calculated_pct": num(ph.calculated_pct),
+            "status": loading_word(ph.loading_pct, headroom_pct),
+        }
+        for ph in a.phases
+    }
+
+
+def _neutral(a: PanelAnalysis, headroom_pct: float) -> dict[str, Any]:
+    n = a.neutral
+    return {
+        "current_a": num(n.current_a),
+        "current_deg": num(n.current_deg),
+        "rms_a": num(n.rms_a),
+        "loading_pct": num(n.loading_pct),
+        "present": n.present,
+        "rating_a": num(n.rating_a),
+        "ratio_to_max_phase": num(n.ratio_to_max_phase),
+        "calculated_a": num(n.calculated_a),
+        "status": loading_word(n.loading_pct, headroom_pct),
+    }
+
+
 def _sizing(a: PanelAnalysis, schedule: Schedule, circuits: list[dict[str, Any]]) -> dict[str, Any]:
     clause, branch = sizing_clauses(
         a.frequency_hz, schedule.panel.main_a is not None, a.continuous_factor
@@ -401,33 +435,8 @@ def report_data(
         "supply": supply,
         "sizing": _sizing(a, schedule, circuits),
         "phase_order": list(labels),
-        "phases": {
-            ph.label: {
-                "va": num(ph.va),
-                "current_a": num(ph.current_a),
-                "current_deg": num(ph.current_deg),
-                "rms_a": num(ph.rms_a),
-                "thd_pct": num(ph.thd_pct),
-                "loading_pct": num(ph.loading_pct),
-                "design_a": num(ph.design_a),
-                "design_loading_pct": num(ph.design_loading_pct),
-                "calculated_a": num(ph.calculated_a),
-                "calculated_pct": num(ph.calculated_pct),
-                "status": loading_word(ph.loading_pct, headroom_pct),
-            }
-            for ph in a.phases
-        },
-        "neutral": {
-            "current_a": num(n.current_a),
-            "current_deg": num(n.current_deg),
-            "rms_a": num(n.rms_a),
-            "loading_pct": num(n.loading_pct),
-            "present": n.present,
-            "rating_a": num(n.rating_a),
-            "ratio_to_max_phase": num(n.ratio_to_max_phase),
-            "calculated_a": num(n.calculated_a),
-            "status": loading_word(n.loading_pct, headroom_pct),
-        },
+        "phases": _phases(a, headroom_pct),
+        "neutral": _neutral(a, headroom_pct),
         "sequence": {
             "i0": phasor(a.sequence.i0, "a"),
             "i1": phasor(a.sequence.i1, "a"),
