@@ -155,7 +155,7 @@ def test_sizing_over_the_main_cites_the_feeder_and_service_clauses():
     a = analyse(c, SYS, Ratings(bus_a=100.0, main_a=80.0), phase_labels=L123)
     assert a.phases[0].calculated_a == pytest.approx(1.25 * 17000 / 230, rel=1e-12)
     (lim,) = [f for f in a.findings if f.level == "limit"]
-    assert lim.message.startswith("Phase L1 92.4 A (115.5 %) calculated load, over the 80 A")
+    assert lim.message.startswith("Phase L1 92.4 A (115.5 %) calculated load, over the 80 A rating")
     assert "noncontinuous plus 125 %" in lim.message
     assert "215.3" in lim.source and "230.42(A)(1)" in lim.source
     one = analyse(c, SYS, Ratings(bus_a=100.0, main_a=80.0, continuous_factor=1.0))
@@ -163,7 +163,7 @@ def test_sizing_over_the_main_cites_the_feeder_and_service_clauses():
     over = analyse(ln_panel([20000], [0]), SYS, Ratings(100.0, 80.0, continuous_factor=1.0))
     sources = [f.source for f in over.findings if f.level == "limit"]
     assert any("IEC 60364-4-43" in s and "from memory" in s for s in sources)
-    assert any(m.endswith("RMS, over the 80 A main.") for m in levels(over)["limit"])
+    assert any(m.endswith("RMS, over the 80 A rating of the main.") for m in levels(over)["limit"])
 
 
 def test_bus_without_main_and_a_main_above_the_bus():
@@ -174,6 +174,7 @@ def test_bus_without_main_and_a_main_above_the_bus():
     assert any("408.30" in f.source for f in mlo.findings if "calculated load" in f.message)
     big = analyse(c, US, Ratings(bus_a=225.0, main_a=250.0))
     assert any("408.36" in f.source and "above the 225 A bus" in f.message for f in big.findings)
+    assert any("rating of the bus" in f.message for f in big.findings)
     assert any("408.30" in f.source and "233.3 A" in f.message for f in big.findings)
 
 

@@ -292,7 +292,7 @@ def loading_findings(a: PanelAnalysis, ratings: Ratings, limits: FindingLimits) 
         out.append(
             Finding(
                 "limit",
-                f"{lead} RMS, over the {rating:g} A {what}.",
+                f"{lead} RMS, over the {rating:g} A rating of the {what}.",
                 f"{SRC_EQUIPMENT_RATING}; {LOCAL}",
             )
         )
@@ -306,7 +306,7 @@ def loading_findings(a: PanelAnalysis, ratings: Ratings, limits: FindingLimits) 
         out.append(
             Finding(
                 "limit",
-                f"{lead} calculated load, over the {rating:g} A {what} "
+                f"{lead} calculated load, over the {rating:g} A rating of the {what} "
                 f"({calculation_words(a.continuous_factor)}).",
                 f"{source}; {LOCAL}",
             )
@@ -325,7 +325,7 @@ def loading_findings(a: PanelAnalysis, ratings: Ratings, limits: FindingLimits) 
             out.append(
                 Finding(
                     "limit",
-                    f"{lead} calculated load, over the {ratings.bus_a:g} A bus.",
+                    f"{lead} calculated load, over the {ratings.bus_a:g} A rating of the bus.",
                     f"{SRC_SIZING_BUS}; {LOCAL}",
                 )
             )
@@ -335,7 +335,8 @@ def loading_findings(a: PanelAnalysis, ratings: Ratings, limits: FindingLimits) 
         out.append(
             Finding(
                 "warning",
-                f"{lead} of the {rating:g} A {what}, above the {limits.headroom_pct:g} % design "
+                f"{lead} of the {rating:g} A rating of the {what}, above the "
+                f"{limits.headroom_pct:g} % design "
                 "headroom; little room for added load.",
                 f"design headroom of {limits.headroom_pct:g} % (common practice; a margin, "
                 f"not a code rule); {LOCAL}",
