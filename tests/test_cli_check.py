@@ -220,7 +220,7 @@ class TestIssuePanels:
         assert tri("check", f, "--continuous-factor", "1").returncode == 0
         report = tri("report", f)
         flat = " ".join(report.stdout.split())
-        assert 'circuit 2 (slot 7, "Sign lighting"): 22.5 A over its 20 A breaker' in flat
+        assert 'circuit "Sign lighting" in slot 7: 22.5 A over its 20 A breaker' in flat
 
     def test_light_load_is_not_judged(self, tmp_path: Path) -> None:
         """400 A main, 30/25/25 A: deviation 12.5 % [computed: 3.33/26.67], heaviest

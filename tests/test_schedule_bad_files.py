@@ -35,9 +35,9 @@ CASES: dict[str, list[tuple[int | None, str]]] = {
     "pf_out_of_range.toml": [(13, "power factor above 0 and at most 1")],
     "pf_zero.toml": [(13, "power factor above 0 and at most 1")],
     "slot_out_of_range.toml": [(10, "slot 13 is not on the panel; expected 1 to 12")],
-    "slot_shared.toml": [(15, 'slot 3 is already taken by circuit 1 ("Copier")')],
+    "slot_shared.toml": [(15, 'slot 3 is already taken by circuit "Copier" in slot 3')],
     "two_pole_off_panel.toml": [(10, "needs slot 13, past the last space 12")],
-    "multipole_overlap.toml": [(16, 'slot 5 is already taken by circuit 1 ("Rooftop unit")')],
+    "multipole_overlap.toml": [(16, 'slot 5 is already taken by circuit "Rooftop unit" in slot 1')],
     "ln_on_3wire.toml": [(9, "480D system, which has no neutral")],
     "unknown_phase_label.toml": [(12, "unknown phase label in 'L4'; expected labels L1, L2, L3")],
     "unknown_profile.toml": [(13, "unknown harmonic profile 'servers'")],
@@ -59,7 +59,7 @@ CASES: dict[str, list[tuple[int | None, str]]] = {
     "not_utf8.toml": [(3, "not UTF-8")],
     "many_problems.toml": [
         (18, "key 'pf'"),
-        (21, 'slot 2 is already taken by circuit 2 ("Bad pf")'),
+        (21, 'slot 2 is already taken by circuit "Bad pf" in slot 2'),
         (26, "slot 40 is not on the panel"),
     ],
 }
@@ -88,7 +88,7 @@ def test_circuit_problems_name_the_circuit_slot_and_key() -> None:
     with pytest.raises(ScheduleError) as info:
         load_schedule(BAD / "pf_out_of_range.toml")
     text = str(info.value.issues[0])
-    assert 'circuit 1 (slot 1, "Motor")' in text
+    assert "circuit \"Motor\" in slot 1: key 'pf'" in text
     assert "key 'pf'" in text
     assert text.startswith(f"{BAD / 'pf_out_of_range.toml'}:13:")
 

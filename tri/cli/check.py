@@ -17,7 +17,7 @@ import textwrap
 from typing import Any
 
 from tri.cli.common import EXIT_ERROR, EXIT_LIMIT, EXIT_OK, SAFETY_CAUTION, CliError, print_error
-from tri.cli.report import add_continuous_factor_option, build_data, check_continuous_factor, emit
+from tri.cli.report import add_continuous_factor_option, build_all, check_continuous_factor, emit
 from tri.engine.limits import LIGHT_LOAD_PCT, SRC_LIGHT_LOAD
 from tri.report.check_report import LIMITS, NOT_CHECKED, evaluate, panel_status, result_dict
 from tri.report.check_text import render_check_text
@@ -104,24 +104,48 @@ def _check_one(
     iterate: bool,
     factor: float | None,
     light: float,
-) -> dict[str, Any]:
+) -> list[dict[str, Any]]:
     try:
-        data = build_data(path, iterate=iterate, continuous_factor=factor)
+        data, parts = build_all(path, iterate=iterate, continuous_factor=factor)
     except ScheduleError as exc:
         print_error(exc.summary())
-        return _error_entry(path, exc.summary())
+        return [_error_entry(path, exc.summary())]
     except CliError as exc:
         print_error(str(exc))
-        return _error_entry(path, str(exc))
-    results = evaluate(data, maxima, light_load_pct=light)
-    return {
-        "file": path,
-        "panel": data["panel"]["name"],
-        "status": panel_status(results),
-        "error": None,
-        "basis": data["basis"]["currents"],
-        "results": results,
-    }
+        return [_error_entry(path, str(exc))]
+    if data.get("building") is not None:  # every panel of the building, the service first
+        from tri.cli.building import check_entries
+
+        return check_entries(data, maxima, light_load_pct=light)
+    results = _scenario_results(path, data, parts, maxima, light)
+    return [
+        {
+            "file": path,
+            "panel": data["panel"]["name"],
+            "status": panel_status(results),
+            "error": None,
+            "basis": data["basis"]["currents"],
+            "results": results,
+        }
+    ]
+
+
+def _scenario_results(
+    path: str, data: dict[str, Any], parts: Any, maxima: dict[str, float | None], light: float
+) -> list[Any]:
+    """Each limit in the connected load and every scenario; the worst case decides."""
+    if len(parts.cases) < 2:
+        return evaluate(data, maxima, light_load_pct=light)
+    from tri.report.data import report_data
+    from tri.report.scenario_check import evaluate_cases
+    from tri.schedule.load import load_schedule
+
+    schedule = load_schedule(path).schedule
+    reports = [
+        (c.name, report_data(c.analysis, schedule, caution=SAFETY_CAUTION, file=path))
+        for c in parts.cases[1:]
+    ]
+    return evaluate_cases(data, reports, maxima, light_load_pct=light)
 
 
 def _error_entry(path: str, message: str) -> dict[str, Any]:
@@ -150,7 +174,9 @@ def run(args: argparse.Namespace) -> int:
     maxima = _maxima(args)
     light = _light_load(args)
     factor = check_continuous_factor(args.continuous_factor)
-    entries = [_check_one(path, maxima, args.iterate, factor, light) for path in args.files]
+    entries = [
+        e for path in args.files for e in _check_one(path, maxima, args.iterate, factor, light)
+    ]
     code = exit_code(entries)
     if args.format == "json":
         overall = {EXIT_OK: "pass", EXIT_LIMIT: "fail", EXIT_ERROR: "error"}[code]

@@ -102,17 +102,17 @@ def continuous_weights(continuous: np.ndarray, factor: float) -> np.ndarray:
     float ndarray, shape (..., n)
         ``factor`` on continuous rows, 1 elsewhere [-].
     """
-    return np.where(np.asarray(continuous, dtype=bool), float(factor), 1.0)
+    return np.where(np.asarray(continuous, dtype=bool), np.asarray(factor, dtype=float), 1.0)
 
 
-def scheduled_current_a(circuits: CircuitArrays, v_ln: float) -> np.ndarray:
+def scheduled_current_a(circuits: CircuitArrays, v_ln: float | np.ndarray) -> np.ndarray:
     """Each circuit's line current from its scheduled load at nominal voltage [A].
 
     Parameters
     ----------
     circuits : CircuitArrays
         Shape (..., n).
-    v_ln : float
+    v_ln : float or ndarray broadcasting against shape (..., n)
         Nominal line-to-neutral voltage [V] (``v_ll/√3`` on a 3-wire system).
 
     Returns
@@ -126,13 +126,16 @@ def scheduled_current_a(circuits: CircuitArrays, v_ln: float) -> np.ndarray:
         the harmonic profile and whatever ``--iterate``.
     """
     ln, ll, tp = connection_masks(circuits)
-    v_ll = np.sqrt(3.0) * float(v_ln)
-    volts = np.where(ln, float(v_ln), np.where(ll, v_ll, np.sqrt(3.0) * v_ll))
+    v = np.asarray(v_ln, dtype=float)
+    v_ll = np.sqrt(3.0) * v
+    volts = np.where(ln, v, np.where(ll, v_ll, np.sqrt(3.0) * v_ll))
     s = np.abs(np.asarray(circuits.s_va, dtype=complex))
     return np.where(ln | ll | tp, s / volts, 0.0)
 
 
-def circuit_calculated_a(circuits: CircuitArrays, factor: float, v_ln: float) -> np.ndarray:
+def circuit_calculated_a(
+    circuits: CircuitArrays, factor: float | np.ndarray, v_ln: float | np.ndarray
+) -> np.ndarray:
     """Each circuit's calculated load for its breaker: continuous ones at the factor.
 
     Parameters

@@ -18,7 +18,8 @@ class ScheduleIssue:
     line : int or None
         1-based line number, where it can be found.
     where : str or None
-        The table or circuit, e.g. ``"[panel]"`` or ``'circuit 3 (slot 5, "Fryer")'``.
+        The table or circuit, e.g. ``"[panel]"`` or ``'circuit "Fryer" in slot 5'``
+        (see :func:`name_circuit`).
     key : str or None
         The key at fault.
     circuit_index : int or None
@@ -42,6 +43,27 @@ class ScheduleIssue:
         if self.key:
             parts.append(f"key '{self.key}'")
         return ": ".join(parts) + ": " + self.message
+
+
+def name_circuit(name: str | None, place: str | None) -> str:
+    """How every message names a circuit: by its name and where it sits, never by a number.
+
+    Parameters
+    ----------
+    name : str or None
+        The circuit's name (``None`` or blank: unnamed).
+    place : str or None
+        ``"slot 5"``, ``"phases BC"``, or ``None`` for a circuit not placed yet.
+
+    Examples
+    --------
+    ``circuit "Fryer" in slot 5``, ``circuit "Sheeter" on phases BC``,
+    ``unnamed circuit in slot 7``, ``circuit "EV charger" (not placed)``.
+    """
+    who = f'circuit "{name}"' if name and name.strip() else "unnamed circuit"
+    if place is None:
+        return f"{who} (not placed)"
+    return f"{who} {'on' if place.startswith('phases') else 'in'} {place}"
 
 
 class ScheduleError(Exception):

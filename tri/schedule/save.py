@@ -20,14 +20,6 @@ from tomlkit.items import AoT, Table, Whitespace
 from tomlkit.toml_document import TOMLDocument
 
 from tri.schedule.errors import ScheduleError, ScheduleIssue
-from tri.schedule.load import (
-    _read_panel,
-    _read_profiles,
-    _read_readings,
-    _read_supply,
-    _Reader,
-    read_circuit,
-)
 from tri.schedule.model import (
     FORMAT_VERSION,
     Circuit,
@@ -38,7 +30,14 @@ from tri.schedule.model import (
     UserProfile,
     parse_phase_text,
 )
+from tri.schedule.read_circuit import read_circuit
+from tri.schedule.read_panel import read_panel
+from tri.schedule.read_profiles import read_profiles
+from tri.schedule.read_readings import read_readings
+from tri.schedule.read_supply import read_supply
+from tri.schedule.reader import Reader
 from tri.schedule.slots import PHASES, TWO_COLUMN
+from tri.schedule.use_factors import use_table
 
 BACKUP_SUFFIX = ".bak"
 
@@ -98,15 +97,15 @@ def _insert_table(doc: TOMLDocument, key: str, table: Table, after: tuple[str, .
     doc[key] = table
 
 
-def _quiet_reader() -> _Reader:
-    return _Reader(None, None)
+def _quiet_reader() -> Reader:
+    return Reader(None, None)
 
 
 def _write_panel(doc: TOMLDocument, panel: PanelInfo) -> None:
     existing = doc.get("panel")
     if (
         isinstance(existing, dict)
-        and _read_panel(_quiet_reader(), {"panel": existing.unwrap()}) == panel
+        and read_panel(_quiet_reader(), {"panel": existing.unwrap()}) == panel
     ):
         return
     created = not isinstance(existing, Table)
@@ -133,7 +132,7 @@ def _write_supply(doc: TOMLDocument, supply: Supply | None) -> None:
         return
     if (
         isinstance(existing, dict)
-        and _read_supply(_quiet_reader(), {"supply": existing.unwrap()}) == supply
+        and read_supply(_quiet_reader(), {"supply": existing.unwrap()}) == supply
     ):
         return
     created = not isinstance(existing, Table)
@@ -162,7 +161,7 @@ def _write_readings(doc: TOMLDocument, readings: Readings | None, panel: PanelIn
             del doc["readings"]
         return
     if isinstance(existing, dict):
-        old = _read_readings(_quiet_reader(), {"readings": existing.unwrap()}, panel)
+        old = read_readings(_quiet_reader(), {"readings": existing.unwrap()}, panel)
         if old == readings:
             return
     created = not isinstance(existing, Table)
@@ -201,7 +200,7 @@ def _profile_table(profile: UserProfile) -> Table:
 def _write_profiles(doc: TOMLDocument, profiles: tuple[UserProfile, ...]) -> None:
     existing = doc.get("profiles")
     if isinstance(existing, dict):
-        old = _read_profiles(_quiet_reader(), {"profiles": existing.unwrap()})
+        old = read_profiles(_quiet_reader(), {"profiles": existing.unwrap()})
         if old == profiles:
             return
     if not profiles:
@@ -219,7 +218,7 @@ def _write_profiles(doc: TOMLDocument, profiles: tuple[UserProfile, ...]) -> Non
     for name, profile in wanted.items():
         body = existing.get(name)
         if isinstance(body, dict):
-            old = _read_profiles(_quiet_reader(), {"profiles": {name: body.unwrap()}})
+            old = read_profiles(_quiet_reader(), {"profiles": {name: body.unwrap()}})
             if old == (profile,):
                 continue
             _set(body, "description", profile.description or None)
@@ -257,11 +256,12 @@ def _write_circuit(table: Any, c: Circuit, schedule: Schedule) -> None:
     poles_default = len(c.phases) if (panel.layout == PHASES and c.phases) else 1
     if "poles" in table or c.poles != poles_default:
         _set(table, "poles", c.poles)
-    load_key = f"load_{c.load_kind}"
-    for key in ("load_va", "load_w", "load_a"):
-        if key != load_key and key in table:
-            del table[key]
-    _set(table, load_key, c.load_value)
+    if c.feed is None:  # a feeder circuit's load is its panel's; its feeds keys stay as written
+        load_key = f"load_{c.load_kind}"
+        for key in ("load_va", "load_w", "load_a"):
+            if key != load_key and key in table:
+                del table[key]
+        _set(table, load_key, c.load_value)
     _set(table, "pf", c.pf, 1.0)
     _set(table, "leading", c.leading, False)
     _set(table, "profile", c.profile, "linear")
@@ -270,6 +270,8 @@ def _write_circuit(table: Any, c: Circuit, schedule: Schedule) -> None:
     _set(table, "breaker_a", c.breaker_a)
     if c.note or "note" in table:
         _set(table, "note", c.note or None)
+    if c.use or "use" in table:
+        _set(table, "use", use_table(c.use) if c.use else None)
 
 
 def _write_circuits(doc: TOMLDocument, schedule: Schedule) -> None:

@@ -6,6 +6,8 @@ contract (:mod:`tri.engine.inputs`).
 
 from __future__ import annotations
 
+import dataclasses
+
 import numpy as np
 
 from tri.engine.analysis import analyse
@@ -22,7 +24,7 @@ from tri.engine.inputs import (
 )
 from tri.engine.limits import CONTINUOUS_FACTOR, FindingLimits, continuous_factor_for, practice_for
 from tri.engine.profiles import profile_matrix
-from tri.engine.results import PanelAnalysis
+from tri.engine.results import Finding, PanelAnalysis
 from tri.schedule.model import Circuit, Schedule
 from tri.schedule.validate import circuit_where
 
@@ -69,8 +71,8 @@ def circuit_arrays(schedule: Schedule) -> CircuitArrays:
 
 
 def circuit_labels(schedule: Schedule) -> tuple[str, ...]:
-    """How findings name each circuit: number, slot or phases, and name."""
-    return tuple(circuit_where(k, c, schedule) for k, c in enumerate(schedule.circuits))
+    """How findings name each circuit: its name and its slot or phases, never a number."""
+    return tuple(circuit_where(c, schedule) for c in schedule.circuits)
 
 
 def system_voltages(schedule: Schedule) -> SystemVoltages:
@@ -135,7 +137,7 @@ def analyse_schedule(
     limits : FindingLimits, optional
         Thresholds for findings.
     """
-    return analyse(
+    result = analyse(
         circuit_arrays(schedule),
         system_voltages(schedule),
         ratings(schedule, continuous_factor),
@@ -146,3 +148,13 @@ def analyse_schedule(
         limits=limits,
         circuit_labels=circuit_labels(schedule),
     )
+    fed = [c.feed.path for c in schedule.circuits if c.feed is not None]
+    if fed:  # one panel of a building, analysed alone (the UI, tri suggest)
+        note = Finding(
+            "info",
+            f"This panel feeds {len(fed)} panel(s) ({', '.join(fed)}); these figures leave "
+            "them out. `tri report` on this file rolls the whole building up.",
+            "tri roll-up (feeder circuits carry no load of their own)",
+        )
+        result = dataclasses.replace(result, findings=(*result.findings, note))
+    return result

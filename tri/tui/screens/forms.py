@@ -1,7 +1,7 @@
 """The edit forms: circuit, panel, supply and readings.
 
 Each validator builds the same plain data a TOML file would hold and runs the
-schedule loader's own readers (``read_circuit``, ``_read_panel`` ...) and
+schedule loader's own readers (``read_circuit``, ``read_panel`` ...) and
 :func:`~tri.schedule.validate.check_schedule` on it, so the UI accepts exactly
 what a file may contain, with the same messages.
 """
@@ -12,14 +12,12 @@ from dataclasses import replace
 from typing import Any
 
 from tri.engine.profiles import BUILTIN_PROFILES
-from tri.schedule.load import (
-    _read_panel,
-    _read_readings,
-    _read_supply,
-    _Reader,
-    read_circuit,
-)
 from tri.schedule.model import Circuit, Schedule
+from tri.schedule.read_circuit import read_circuit
+from tri.schedule.read_panel import read_panel
+from tri.schedule.read_readings import read_readings
+from tri.schedule.read_supply import read_supply
+from tri.schedule.reader import Reader
 from tri.schedule.slots import TWO_COLUMN
 from tri.schedule.systems import SYSTEMS
 from tri.schedule.validate import check_schedule
@@ -35,7 +33,7 @@ def _num_text(value: float | None) -> str:
     return f"{value:g}"
 
 
-def _issues_by_key(reader: _Reader) -> dict[str, str]:
+def _issues_by_key(reader: Reader) -> dict[str, str]:
     out: dict[str, str] = {}
     for issue in reader.issues:
         out.setdefault(issue.key or "", issue.message)
@@ -117,7 +115,7 @@ def circuit_form(schedule: Schedule, index: int | None, base: Circuit | None = N
         _put(raw, "breaker_a", values["breaker_a"])
         if values["note"].strip():
             raw["note"] = values["note"].strip()
-        reader = _Reader(None, None)
+        reader = Reader(None, None)
         circuit = read_circuit(reader, raw, position, panel)
         problems = _issues_by_key(reader)
         if "load_va" in problems or "load_w" in problems or "load_a" in problems:
@@ -152,7 +150,7 @@ def move_form(schedule: Schedule, index: int) -> FormScreen:
         )
 
     def validate(values: Values) -> tuple[Circuit | None, dict[str, str]]:
-        reader = _Reader(None, None)
+        reader = Reader(None, None)
         if panel.uses_slots:
             value = parse_number(values["slot"])
             if value is None:
@@ -207,8 +205,8 @@ def panel_form(schedule: Schedule) -> FormScreen:
             labels = list(labels[0])
         raw["phase_labels"] = labels
         raw["layout"] = p.layout
-        reader = _Reader(None, None)
-        panel = _read_panel(reader, {"panel": raw})
+        reader = Reader(None, None)
+        panel = read_panel(reader, {"panel": raw})
         problems = _issues_by_key(reader)
         if panel is None:
             return None, problems or {"": "not a valid panel"}
@@ -250,8 +248,8 @@ def supply_form(schedule: Schedule) -> FormScreen:
             _put(raw, key, values[key])
         if not raw:
             return replace(schedule, supply=None), {}
-        reader = _Reader(None, None)
-        supply = _read_supply(reader, {"supply": raw})
+        reader = Reader(None, None)
+        supply = read_supply(reader, {"supply": raw})
         problems = _issues_by_key(reader)
         if supply is None:
             return None, problems or {"": "not a valid supply"}
@@ -298,8 +296,8 @@ def readings_form(schedule: Schedule) -> FormScreen:
             raw["taken"] = values["taken"].strip()
         if not raw:
             return replace(schedule, readings=None), {}
-        reader = _Reader(None, None)
-        readings = _read_readings(reader, {"readings": raw}, schedule.panel)
+        reader = Reader(None, None)
+        readings = read_readings(reader, {"readings": raw}, schedule.panel)
         problems: dict[str, str] = {}
         for issue in reader.issues:
             field_key = next(
