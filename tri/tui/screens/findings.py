@@ -52,7 +52,8 @@ def _report_data(analysis: Any, schedule: Schedule, file_name: str) -> dict[str,
 
 def checks_text(data: dict[str, Any], file_name: str, width: int) -> Text:
     """The limits of ``tri check`` on this panel, worded as ``tri check`` words them."""
-    from tri.report.check_report import evaluate, panel_status, render_check_text
+    from tri.report.check_report import evaluate, panel_status
+    from tri.report.check_text import render_check_text
 
     results = evaluate(data)
     entry = {
