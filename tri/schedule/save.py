@@ -8,10 +8,6 @@ the formatting of untouched parts survive.
 
 from __future__ import annotations
 
-import contextlib
-import os
-import shutil
-import tempfile
 from pathlib import Path
 from typing import Any
 
@@ -19,7 +15,7 @@ import tomlkit
 from tomlkit.items import AoT, Table, Whitespace
 from tomlkit.toml_document import TOMLDocument
 
-from tri.schedule.errors import ScheduleError, ScheduleIssue
+from tri.schedule.atomic import write_atomic
 from tri.schedule.model import (
     FORMAT_VERSION,
     Circuit,
@@ -37,8 +33,6 @@ from tri.schedule.read_readings import read_readings
 from tri.schedule.read_supply import read_supply
 from tri.schedule.reader import Reader
 from tri.schedule.slots import PHASES, TWO_COLUMN
-
-BACKUP_SUFFIX = ".bak"
 
 HEADER_COMMENT = (
     "Panel schedule for tri. Edit it by hand or with `tri FILE`; keep it in version control.",
@@ -352,52 +346,11 @@ def schedule_text(schedule: Schedule, original: TOMLDocument | None = None) -> s
     return text if text.endswith("\n") else text + "\n"
 
 
-def write_atomic(path: str | Path, text: str, *, backup: bool = True) -> Path | None:
-    """Write ``text`` to ``path`` atomically; keep the previous file as ``path.bak``.
-
-    The text goes to a temporary file in the same folder, is flushed and
-    synced, then renamed over the target, so a crash leaves either the old
-    or the new file, never half of one. Returns the backup path, if one was made.
-
-    Raises
-    ------
-    ScheduleError
-        When the folder cannot be written; the original file is untouched.
-    """
-    target = Path(path)
-    folder = target.parent if str(target.parent) else Path(".")
-    bak: Path | None = None
-    tmp_name = None
-    try:
-        fd, tmp_name = tempfile.mkstemp(prefix=f".{target.name}.", suffix=".tmp", dir=folder)
-        with os.fdopen(fd, "w", encoding="utf-8", newline="") as fh:
-            fh.write(text)
-            fh.flush()
-            os.fsync(fh.fileno())
-        if target.exists():
-            shutil.copymode(target, tmp_name)
-            if backup:
-                bak = target.with_name(target.name + BACKUP_SUFFIX)
-                shutil.copy2(target, bak)
-        else:
-            os.chmod(tmp_name, 0o644)
-        os.replace(tmp_name, target)
-        tmp_name = None
-    except OSError as exc:
-        raise ScheduleError(
-            [ScheduleIssue(f"cannot save: {exc.strerror or exc}", file=str(path))]
-        ) from None
-    finally:
-        if tmp_name is not None:
-            with contextlib.suppress(OSError):
-                os.unlink(tmp_name)
-    return bak
-
-
 def save_schedule(
     path: str | Path, schedule: Schedule, original: TOMLDocument | None = None
 ) -> TOMLDocument:
-    """Save ``schedule`` to ``path`` atomically, keeping comments of ``original``.
+    """Save ``schedule`` to ``path`` atomically (:func:`~tri.schedule.atomic.write_atomic`),
+    keeping the comments of ``original``.
 
     Returns the document written, to be kept as the new ``original``.
     """
