@@ -2,15 +2,15 @@
 
 Each case names the line the problem is on and words a practitioner would
 recognise; the command line answers with exit status 2 and no traceback.
+The command runs in-process for every file, and as a real process for a few.
 """
 
 from __future__ import annotations
 
-import subprocess
-import sys
 from pathlib import Path
 
 import pytest
+from cli_support import assert_clean_error, run_tri, spawn_tri
 
 from tri.schedule.errors import ScheduleError
 from tri.schedule.load import load_schedule
@@ -95,16 +95,14 @@ def test_circuit_problems_name_the_circuit_slot_and_key() -> None:
 
 @pytest.mark.parametrize("name", sorted(CASES))
 def test_cli_exits_2_without_traceback(name: str) -> None:
-    result = subprocess.run(
-        [sys.executable, "-m", "tri", "report", str(BAD / name)],
-        capture_output=True,
-        text=True,
-        timeout=60,
-    )
-    assert result.returncode == 2
-    assert "Traceback" not in result.stderr + result.stdout
-    assert result.stderr.startswith("tri: error:")
-    assert result.stdout == ""
+    assert_clean_error(run_tri("report", str(BAD / name)))
+
+
+@pytest.mark.parametrize("name", ["many_problems.toml", "not_utf8.toml", "syntax_error.toml"])
+def test_real_command_exits_2_without_traceback(name: str) -> None:
+    r = spawn_tri("report", str(BAD / name))
+    assert_clean_error(r)
+    assert f"{BAD / name}:" in r.stderr
 
 
 def test_loading_a_bad_file_writes_nothing(tmp_path: Path) -> None:
