@@ -15,7 +15,7 @@ from tri.schedule.errors import name_circuit
 from tri.schedule.locate import TableKey
 from tri.schedule.model import DEFAULT_LABELS, LOAD_KEYS, Circuit, PanelInfo, parse_phase_text
 from tri.schedule.read_panel import MAX_SPACES
-from tri.schedule.reader import MISSING, Reader, found
+from tri.schedule.reader import MISSING, Reader, found, shown
 from tri.schedule.rules import (
     BREAKER_A,
     LOAD_A,
@@ -77,7 +77,7 @@ def circuit_hint(raw: Any) -> str:
     phases = raw.get("phases")
     place = None
     if isinstance(slot, int) and not isinstance(slot, bool):
-        place = f"slot {slot}"
+        place = f"slot {shown(slot)}"
     elif isinstance(phases, str) and phases.strip():
         place = f"phases {phases.strip()}"
     return name_circuit(name if isinstance(name, str) else None, place)

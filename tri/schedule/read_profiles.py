@@ -62,8 +62,7 @@ def _read_profile(r: Reader, name: str, body: Any) -> UserProfile | None:
     problem = text_problem(name, short_text)
     if problem:
         r.add(f"profile name: {problem}", table, None, where)
-        return None
-    if name in BUILTIN_PROFILES:
+    elif name in BUILTIN_PROFILES:
         r.add(f"'{name}' is a built-in profile; give yours another name", table, None, where)
         return None
     if not isinstance(body, dict):
@@ -72,7 +71,7 @@ def _read_profile(r: Reader, name: str, body: Any) -> UserProfile | None:
     r.unknown_keys(body, PROFILE_KEYS, table, where)
     desc = r.value(body, "description", table, where, "text", default="")
     parsed = read_harmonic_rows(r, body.get("harmonics", MISSING), table, where)
-    if parsed is None or desc is MISSING:
+    if parsed is None or desc is MISSING or problem:
         return None
     return UserProfile(name=name, harmonics=parsed, description=desc)
 

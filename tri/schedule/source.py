@@ -45,7 +45,11 @@ def _os_problem(exc: OSError) -> str:
 
 
 def _size_text(n: int) -> str:
-    return f"{n / (1 << 20):.1f} MiB" if n >= 1 << 20 else f"{n / 1024:.0f} KiB"
+    """``1 MiB``, ``16 MiB``, ``512 KiB``, else bytes."""
+    for unit, size in (("MiB", 1 << 20), ("KiB", 1 << 10)):
+        if n % size == 0:
+            return f"{n // size} {unit}"
+    return f"{n:,} bytes".replace(",", " ")
 
 
 def read_limited(
@@ -61,6 +65,9 @@ def read_limited(
     """
     name = str(path)
     try:
+        # Look first (a socket cannot even be opened), then check again what was opened.
+        if not stat.S_ISREG(mode := os.stat(path).st_mode):
+            raise ScheduleError([ScheduleIssue(_kind_of(mode), file=name)])
         fd = os.open(path, _OPEN_FLAGS)
     except OSError as exc:
         raise ScheduleError([ScheduleIssue(_os_problem(exc), file=name)]) from None
@@ -69,8 +76,8 @@ def read_limited(
         if not stat.S_ISREG(info.st_mode):
             raise ScheduleError([ScheduleIssue(_kind_of(info.st_mode), file=name)])
         too_big = ScheduleIssue(
-            f"is {_size_text(max(info.st_size, limit + 1))}; a {what} file is at most "
-            f"{_size_text(limit)}",
+            f"is larger than {_size_text(limit)}, the most a {what} file may be "
+            "(is it the right file?)",
             file=name,
         )
         if info.st_size > limit:
