@@ -72,6 +72,16 @@ async def _open_edited_and_changed(pilot: object, app: TriApp, small: Path) -> b
     return small.read_bytes()
 
 
+async def _ask(pilot: object, app: TriApp, small: Path, key: str) -> None:
+    """Ask about the changed file, then answer with ``key``."""
+    ask_about_changed_file(app, small)
+    await settle(pilot)
+    assert isinstance(app.screen, ChoiceScreen)
+    assert "small.toml changed on disk" in app.screen.title_text
+    await pilot.press(key)  # type: ignore[attr-defined]
+    await settle(pilot)
+
+
 async def test_ctrl_s_on_a_changed_file_writes_nothing(small: Path) -> None:
     app = TriApp(small)
     async with app.run_test(size=(80, 24)) as pilot:
@@ -86,12 +96,7 @@ async def test_dialog_overwrite_keeps_the_disk_version_as_backup(small: Path) ->
     app = TriApp(small)
     async with app.run_test(size=(80, 24)) as pilot:
         changed = await _open_edited_and_changed(pilot, app, small)
-        ask_about_changed_file(app, small)
-        await settle(pilot)
-        assert isinstance(app.screen, ChoiceScreen)
-        assert "small.toml changed on disk" in app.screen.title_text
-        await pilot.press("o")
-        await settle(pilot)
+        await _ask(pilot, app, small, "o")
         assert isinstance(app.screen, MainScreen)
     assert load_schedule(small).schedule.circuits[0].name == "Edited in tri"
     assert (small.parent / "small.toml.bak").read_bytes() == changed
@@ -101,10 +106,7 @@ async def test_dialog_escape_saves_nothing(small: Path) -> None:
     app = TriApp(small)
     async with app.run_test(size=(80, 24)) as pilot:
         changed = await _open_edited_and_changed(pilot, app, small)
-        ask_about_changed_file(app, small)
-        await settle(pilot)
-        await pilot.press("escape")
-        await settle(pilot)
+        await _ask(pilot, app, small, "escape")
         assert small.read_bytes() == changed
         assert app.session is not None and app.session.dirty
 
@@ -113,10 +115,7 @@ async def test_dialog_save_as_opens_the_save_as_form(small: Path) -> None:
     app = TriApp(small)
     async with app.run_test(size=(80, 24)) as pilot:
         changed = await _open_edited_and_changed(pilot, app, small)
-        ask_about_changed_file(app, small)
-        await settle(pilot)
-        await pilot.press("a")
-        await settle(pilot)
+        await _ask(pilot, app, small, "a")
         assert isinstance(app.screen, FormScreen)
         assert small.read_bytes() == changed
 
@@ -126,10 +125,7 @@ async def test_dialog_reopen_offers_the_edits_back(small: Path) -> None:
     async with app.run_test(size=(80, 24)) as pilot:
         await _open_edited_and_changed(pilot, app, small)
         edited = app.session.schedule if app.session else None
-        ask_about_changed_file(app, small)
-        await settle(pilot)
-        await pilot.press("r")
-        await settle(pilot)
+        await _ask(pilot, app, small, "r")
         # The file is shown as it is on disk now, and the journal offers the edits.
         assert isinstance(app.screen, ChoiceScreen)
         assert "Recover unsaved edits?" in app.screen.title_text

@@ -24,7 +24,8 @@ from tri.schedule.journal import (
     state_dir,
     write_journal,
 )
-from tri.schedule.load import load_schedule
+from tri.schedule.load import ScheduleFile, load_schedule
+from tri.schedule.model import Schedule
 from tri.tui.session import Session
 
 SMALL = Path(__file__).parent / "data" / "tui" / "small.toml"
@@ -88,11 +89,17 @@ def test_a_second_tri_keeps_its_own_journal(panel: Path) -> None:
     assert not any(p != primary for p in primary.parent.glob("*.tri-journal"))
 
 
-def test_a_journal_left_by_a_tri_that_stopped_is_offered(panel: Path) -> None:
+def _crashed(panel: Path) -> tuple[ScheduleFile, Path, Schedule]:
+    """A journal of other edits of ``panel`` left by a tri that has stopped."""
     loaded = load_schedule(panel)
     primary = journal_path(panel)
     theirs = replace(loaded.schedule, panel=replace(loaded.schedule.panel, name="Crashed"))
     _write_owned_by(primary, theirs, _dead_pid())
+    return loaded, primary, theirs
+
+
+def test_a_journal_left_by_a_tri_that_stopped_is_offered(panel: Path) -> None:
+    loaded, primary, theirs = _crashed(panel)
     session = Session.from_file(loaded)
     assert session.journal_file == primary  # what the UI reads to offer recovery
     entry = read_journal(session.journal_file)
@@ -100,10 +107,7 @@ def test_a_journal_left_by_a_tri_that_stopped_is_offered(panel: Path) -> None:
 
 
 def test_a_journal_kept_for_later_is_not_overwritten_by_new_edits(panel: Path) -> None:
-    loaded = load_schedule(panel)
-    primary = journal_path(panel)
-    theirs = replace(loaded.schedule, panel=replace(loaded.schedule.panel, name="Crashed"))
-    _write_owned_by(primary, theirs, _dead_pid())
+    loaded, primary, _ = _crashed(panel)
     before = primary.read_bytes()
     session = Session.from_file(loaded)
     _edited(session)  # the user chose "decide later" and edited instead
@@ -114,10 +118,7 @@ def test_a_journal_kept_for_later_is_not_overwritten_by_new_edits(panel: Path) -
 
 
 def test_recovering_carries_on_in_the_recovered_journal(panel: Path) -> None:
-    loaded = load_schedule(panel)
-    primary = journal_path(panel)
-    theirs = replace(loaded.schedule, panel=replace(loaded.schedule.panel, name="Crashed"))
-    _write_owned_by(primary, theirs, _dead_pid())
+    loaded, primary, theirs = _crashed(panel)
     session = Session.from_file(loaded)
     session.apply(theirs, "recover unsaved edits")
     assert session.journal_file == primary
