@@ -206,3 +206,12 @@ def test_phase_labels_may_not_name_the_neutral(tmp_path: Path) -> None:
     path.write_text(HEAD + 'phase_labels = ["A", "N", "C"]\n')
     with pytest.raises(ScheduleError, match="'N' names the neutral"):
         load_schedule(path)
+
+
+def test_a_file_name_with_control_characters_is_refused(tmp_path: Path) -> None:
+    # The name is printed in every report's header, so it follows the text rule.
+    path = tmp_path / "a\x1b[7mX.toml"
+    path.write_text((ATTACK.parent / "tui" / "small.toml").read_text())
+    r = run_tri("report", str(path))
+    assert_clean_error(r)
+    assert "the file name holds control characters (\\x1b); rename it" in r.stderr

@@ -33,6 +33,7 @@ from tri.schedule.read_supply import read_supply
 from tri.schedule.reader import MISSING, Reader, found, is_kind, suggest
 from tri.schedule.rules import MAX_CIRCUITS
 from tri.schedule.source import read_limited
+from tri.schedule.text import escape_char, refused_chars
 from tri.schedule.validate import check_schedule, circuit_where
 
 TOP_KEYS = ("format", "panel", "supply", "readings", "profiles", "circuit")
@@ -196,6 +197,16 @@ def load_schedule(path: str | Path) -> ScheduleFile:
     """
     p = Path(path)
     name = str(path)
+    bad = refused_chars(name)
+    if bad:  # the name is shown in every report; refuse it like any other text
+        shown = ", ".join(escape_char(ch) for ch in bad)
+        raise ScheduleError(
+            [
+                ScheduleIssue(
+                    f"the file name holds control characters ({shown}); rename it", file=name
+                )
+            ]
+        )
     raw = read_limited(p)
     try:
         text = raw.decode("utf-8")
