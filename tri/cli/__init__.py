@@ -12,7 +12,10 @@ import os
 import sys
 from collections.abc import Sequence
 from types import ModuleType
-from typing import IO
+from typing import TYPE_CHECKING
+
+if TYPE_CHECKING:
+    from _typeshed import SupportsWrite
 
 from tri import __version__
 from tri.cli import check, new, open_ui, report, suggest
@@ -46,7 +49,7 @@ having jurisdiction decide."""
 class _Parser(argparse.ArgumentParser):
     """argparse, with whatever it quotes from the command line shown escaped."""
 
-    def _print_message(self, message: str, file: IO[str] | None = None) -> None:
+    def _print_message(self, message: str, file: SupportsWrite[str] | None = None) -> None:
         super()._print_message(escaped(message, keep_newlines=True), file)
 
 

@@ -153,7 +153,7 @@ def journal_owner_running(target: Path) -> str | None:
     except OSError:
         return None
     owner = payload.get("owner")
-    if not _owner_running(owner, written):
+    if not isinstance(owner, dict) or not _owner_running(owner, written):
         return None
     return f"process {owner['pid']} on {owner.get('host', '?')}"
 

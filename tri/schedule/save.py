@@ -49,6 +49,11 @@ def _clean(value: Any) -> Any:
     return value
 
 
+def _plain(value: Any) -> Any:
+    """A tomlkit item as plain Python data (dicts, lists, numbers, text)."""
+    return value.unwrap() if hasattr(value, "unwrap") else value
+
+
 def _same(a: Any, b: Any) -> bool:
     if isinstance(a, list | tuple) and isinstance(b, list | tuple):
         return len(a) == len(b) and all(_same(x, y) for x, y in zip(a, b, strict=True))
@@ -71,7 +76,7 @@ def _set(table: Any, key: str, value: Any, default: Any = None) -> None:
         table[key] = _clean(value)
         return
     current = table[key]
-    current = current.unwrap() if hasattr(current, "unwrap") else current
+    current = _plain(current)
     if not _same(current, value):
         table[key] = _clean(value)
 
@@ -95,10 +100,10 @@ def _quiet_reader() -> Reader:
 
 
 def _write_panel(doc: TOMLDocument, panel: PanelInfo) -> None:
-    existing = doc.get("panel")
+    existing: Any = doc.get("panel")
     if (
         isinstance(existing, dict)
-        and read_panel(_quiet_reader(), {"panel": existing.unwrap()}) == panel
+        and read_panel(_quiet_reader(), {"panel": _plain(existing)}) == panel
     ):
         return
     created = not isinstance(existing, Table)
@@ -118,14 +123,14 @@ def _write_panel(doc: TOMLDocument, panel: PanelInfo) -> None:
 
 
 def _write_supply(doc: TOMLDocument, supply: Supply | None) -> None:
-    existing = doc.get("supply")
+    existing: Any = doc.get("supply")
     if supply is None:
         if existing is not None:
             del doc["supply"]
         return
     if (
         isinstance(existing, dict)
-        and read_supply(_quiet_reader(), {"supply": existing.unwrap()}) == supply
+        and read_supply(_quiet_reader(), {"supply": _plain(existing)}) == supply
     ):
         return
     created = not isinstance(existing, Table)
@@ -148,13 +153,13 @@ def _triple_table(labels: list[str], values: tuple[Any, ...], extra: dict[str, A
 
 
 def _write_readings(doc: TOMLDocument, readings: Readings | None, panel: PanelInfo) -> None:
-    existing = doc.get("readings")
+    existing: Any = doc.get("readings")
     if readings is None:
         if existing is not None:
             del doc["readings"]
         return
     if isinstance(existing, dict):
-        old = read_readings(_quiet_reader(), {"readings": existing.unwrap()}, panel)
+        old = read_readings(_quiet_reader(), {"readings": _plain(existing)}, panel)
         if old == readings:
             return
     created = not isinstance(existing, Table)
@@ -191,9 +196,9 @@ def _profile_table(profile: UserProfile) -> Table:
 
 
 def _write_profiles(doc: TOMLDocument, profiles: tuple[UserProfile, ...]) -> None:
-    existing = doc.get("profiles")
+    existing: Any = doc.get("profiles")
     if isinstance(existing, dict):
-        old = read_profiles(_quiet_reader(), {"profiles": existing.unwrap()})
+        old = read_profiles(_quiet_reader(), {"profiles": _plain(existing)})
         if old == profiles:
             return
     if not profiles:
@@ -211,7 +216,7 @@ def _write_profiles(doc: TOMLDocument, profiles: tuple[UserProfile, ...]) -> Non
     for name, profile in wanted.items():
         body = existing.get(name)
         if isinstance(body, dict):
-            old = read_profiles(_quiet_reader(), {"profiles": {name: body.unwrap()}})
+            old = read_profiles(_quiet_reader(), {"profiles": {name: _plain(body)}})
             if old == (profile,):
                 continue
             _set(body, "description", profile.description or None)
@@ -225,7 +230,7 @@ def _write_profiles(doc: TOMLDocument, profiles: tuple[UserProfile, ...]) -> Non
 def _write_circuit(table: Any, c: Circuit, schedule: Schedule) -> None:
     panel = schedule.panel
     if isinstance(table, dict) and c.source_index is not None:
-        old = read_circuit(_quiet_reader(), table.unwrap(), c.source_index, panel)
+        old = read_circuit(_quiet_reader(), _plain(table), c.source_index, panel)
         if old == c:
             return
     if panel.layout == TWO_COLUMN:
@@ -265,7 +270,7 @@ def _write_circuit(table: Any, c: Circuit, schedule: Schedule) -> None:
 
 
 def _write_circuits(doc: TOMLDocument, schedule: Schedule) -> None:
-    existing = doc.get("circuit")
+    existing: Any = doc.get("circuit")
     if not schedule.circuits:
         if existing is not None:
             del doc["circuit"]
@@ -286,10 +291,10 @@ def _write_circuits(doc: TOMLDocument, schedule: Schedule) -> None:
         # Reordered: rebuild the array, reusing each original table once.
         used: set[int] = set()
         rebuilt = tomlkit.aot()
-        for k in order:
-            if k is not None and k < len(old_tables) and k not in used:
-                used.add(k)
-                rebuilt.append(old_tables[k])
+        for src in order:
+            if src is not None and src < len(old_tables) and src not in used:
+                used.add(src)
+                rebuilt.append(old_tables[src])
             else:
                 rebuilt.append(tomlkit.table())
         if existing is not None:
