@@ -256,8 +256,8 @@ class Session:
                 [
                     ScheduleIssue(
                         "changed on disk since it was opened (another editor, a git pull?); "
-                        "nothing was written. Save under another name, reopen it to see "
-                        "the change, or overwrite it on purpose",
+                        "nothing was written. Save your edits under another name, or "
+                        "reopen the file to see the change (your edits stay in the journal)",
                         file=str(target),
                     )
                 ]
