@@ -24,7 +24,8 @@ from tomlkit.toml_document import TOMLDocument
 
 from tri.schedule.errors import ScheduleError, ScheduleIssue
 from tri.schedule.locate import LineIndex
-from tri.schedule.model import FORMAT_VERSION, Circuit, Schedule
+from tri.schedule.log_spec import read_log_table
+from tri.schedule.model import DEFAULT_LABELS, FORMAT_VERSION, Circuit, Schedule
 from tri.schedule.read_circuit import read_circuit
 from tri.schedule.read_panel import read_panel
 from tri.schedule.read_profiles import read_profiles
@@ -36,7 +37,7 @@ from tri.schedule.source import read_limited
 from tri.schedule.text import escape_char, refused_chars
 from tri.schedule.validate import check_schedule, circuit_where
 
-TOP_KEYS = ("format", "panel", "supply", "readings", "profiles", "circuit")
+TOP_KEYS = ("format", "panel", "supply", "readings", "profiles", "log", "circuit")
 
 
 @dataclass(frozen=True, eq=False)
@@ -157,6 +158,7 @@ def build_schedule(
     supply = read_supply(r, data)
     readings = read_readings(r, data, panel)
     profiles = read_profiles(r, data)
+    log = read_log_table(r, data, panel.phase_labels if panel else DEFAULT_LABELS)
     circuits: list[Circuit] = []
     for index, raw in enumerate(_raw_circuits(r, data)):
         c = read_circuit(r, raw, index, panel, stand_in=True)
@@ -169,6 +171,7 @@ def build_schedule(
             supply=supply,
             readings=readings,
             profiles=profiles or (),
+            log=log,
         )
         for issue in check_schedule(model):
             i = issue.circuit_index

@@ -33,6 +33,7 @@ from tri.schedule.read_readings import read_readings
 from tri.schedule.read_supply import read_supply
 from tri.schedule.reader import Reader
 from tri.schedule.slots import PHASES, TWO_COLUMN
+from tri.schedule.use_factors import use_table
 
 HEADER_COMMENT = (
     "Panel schedule for tri. Edit it by hand or with `tri FILE`; keep it in version control.",
@@ -254,11 +255,12 @@ def _write_circuit(table: Any, c: Circuit, schedule: Schedule) -> None:
     poles_default = len(c.phases) if (panel.layout == PHASES and c.phases) else 1
     if "poles" in table or c.poles != poles_default:
         _set(table, "poles", c.poles)
-    load_key = f"load_{c.load_kind}"
-    for key in ("load_va", "load_w", "load_a"):
-        if key != load_key and key in table:
-            del table[key]
-    _set(table, load_key, c.load_value)
+    if c.feed is None:  # a feeder circuit's load is its panel's; its feeds keys stay as written
+        load_key = f"load_{c.load_kind}"
+        for key in ("load_va", "load_w", "load_a"):
+            if key != load_key and key in table:
+                del table[key]
+        _set(table, load_key, c.load_value)
     _set(table, "pf", c.pf, 1.0)
     _set(table, "leading", c.leading, False)
     _set(table, "profile", c.profile, "linear")
@@ -267,6 +269,8 @@ def _write_circuit(table: Any, c: Circuit, schedule: Schedule) -> None:
     _set(table, "breaker_a", c.breaker_a)
     if c.note or "note" in table:
         _set(table, "note", c.note or None)
+    if c.use or "use" in table:
+        _set(table, "use", use_table(c.use) if c.use else None)
 
 
 def _write_circuits(doc: TOMLDocument, schedule: Schedule) -> None:

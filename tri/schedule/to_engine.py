@@ -6,6 +6,8 @@ contract (:mod:`tri.engine.inputs`).
 
 from __future__ import annotations
 
+import dataclasses
+
 import numpy as np
 
 from tri.engine.analysis import analyse
@@ -22,7 +24,7 @@ from tri.engine.inputs import (
 )
 from tri.engine.loading import FindingLimits
 from tri.engine.profiles import profile_matrix
-from tri.engine.results import PanelAnalysis
+from tri.engine.results import Finding, PanelAnalysis
 from tri.schedule.model import Circuit, Schedule
 
 DEFAULT_CONTINUOUS_FACTOR = 1.25
@@ -116,7 +118,7 @@ def analyse_schedule(
     limits : FindingLimits, optional
         Thresholds for findings.
     """
-    return analyse(
+    result = analyse(
         circuit_arrays(schedule),
         system_voltages(schedule),
         ratings(schedule, continuous_factor),
@@ -126,3 +128,13 @@ def analyse_schedule(
         phase_labels=schedule.labels,
         limits=limits,
     )
+    fed = [c.feed.path for c in schedule.circuits if c.feed is not None]
+    if fed:  # one panel of a building, analysed alone (the UI, tri suggest)
+        note = Finding(
+            "info",
+            f"This panel feeds {len(fed)} panel(s) ({', '.join(fed)}); these figures leave "
+            "them out. `tri report` on this file rolls the whole building up.",
+            "tri roll-up (feeder circuits carry no load of their own)",
+        )
+        result = dataclasses.replace(result, findings=(*result.findings, note))
+    return result
