@@ -6,6 +6,7 @@ import sys
 
 from tri.safety import SAFETY_CAUTION as SAFETY_CAUTION  # its home; re-exported for the commands
 from tri.schedule.load import ScheduleFile, load_schedule
+from tri.schedule.text import escaped
 
 EXIT_OK = 0
 EXIT_LIMIT = 1  #: ``tri check`` found a limit exceeded
@@ -18,8 +19,8 @@ class CliError(Exception):
 
 
 def print_error(message: str) -> None:
-    """Print ``tri: error: ...`` to standard error."""
-    print(f"tri: error: {message}", file=sys.stderr)
+    """Print ``tri: error: ...`` to standard error (control characters shown escaped)."""
+    print(f"tri: error: {escaped(message, keep_newlines=True)}", file=sys.stderr)
 
 
 def load(path: str) -> ScheduleFile:

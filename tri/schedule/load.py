@@ -32,6 +32,9 @@ from tri.schedule.read_profiles import read_profiles
 from tri.schedule.read_readings import read_readings
 from tri.schedule.read_supply import read_supply
 from tri.schedule.reader import MISSING, Reader, found, is_kind, suggest
+from tri.schedule.rules import MAX_CIRCUITS
+from tri.schedule.source import read_limited
+from tri.schedule.text import escape_char, refused_chars
 from tri.schedule.validate import check_schedule, circuit_where
 
 TOP_KEYS = ("format", "panel", "supply", "readings", "profiles", "log", "circuit")
@@ -128,6 +131,14 @@ def _raw_circuits(r: Reader, data: Mapping[str, Any]) -> list[Any]:
     if not isinstance(raw, list):
         r.add(f"found {found(raw)}, expected [[circuit]] tables", (), "circuit", "top level")
         return []
+    if len(raw) > MAX_CIRCUITS:
+        r.add(
+            f"{len(raw)} [[circuit]] tables, expected at most {MAX_CIRCUITS}",
+            ("circuit", MAX_CIRCUITS),
+            None,
+            "top level",
+        )
+        return []
     return raw
 
 
@@ -180,7 +191,7 @@ def build_schedule(
 
 
 def load_schedule(path: str | Path) -> ScheduleFile:
-    """Read and check a schedule file.
+    """Read and check a schedule file (a regular file of at most 1 MiB, UTF-8).
 
     Raises
     ------
@@ -189,20 +200,17 @@ def load_schedule(path: str | Path) -> ScheduleFile:
     """
     p = Path(path)
     name = str(path)
-    try:
-        raw = p.read_bytes()
-    except FileNotFoundError:
-        raise ScheduleError([ScheduleIssue("no such file", file=name)]) from None
-    except IsADirectoryError:
+    bad = refused_chars(name)
+    if bad:  # the name is shown in every report; refuse it like any other text
+        shown = ", ".join(escape_char(ch) for ch in bad)
         raise ScheduleError(
-            [ScheduleIssue("is a folder, expected a .toml file", file=name)]
-        ) from None
-    except PermissionError:
-        raise ScheduleError(
-            [ScheduleIssue("permission denied reading the file", file=name)]
-        ) from None
-    except OSError as exc:
-        raise ScheduleError([ScheduleIssue(f"cannot read: {exc.strerror}", file=name)]) from None
+            [
+                ScheduleIssue(
+                    f"the file name holds control characters ({shown}); rename it", file=name
+                )
+            ]
+        )
+    raw = read_limited(p)
     try:
         text = raw.decode("utf-8")
     except UnicodeDecodeError as exc:

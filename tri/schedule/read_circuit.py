@@ -16,25 +16,40 @@ from tri.schedule.feeds import FEED_KEYS, check_feeder_circuit, read_feed
 from tri.schedule.locate import TableKey
 from tri.schedule.model import DEFAULT_LABELS, LOAD_KEYS, Circuit, PanelInfo, parse_phase_text
 from tri.schedule.read_panel import MAX_SPACES
-from tri.schedule.reader import MISSING, Reader, found
-from tri.schedule.rules import Rule, between, non_negative, positive, power_factor, read_rules
+from tri.schedule.reader import MISSING, Reader, found, shown
+from tri.schedule.rules import (
+    BREAKER_A,
+    LOAD_A,
+    LOAD_VA,
+    Rule,
+    between,
+    in_range,
+    power_factor,
+    read_rules,
+    short_text,
+    zero_or_in_range,
+)
 from tri.schedule.slots import PHASES, TWO_COLUMN, slot_phases
 from tri.schedule.use_factors import read_use
 
 CIRCUIT_RULES: dict[str, Rule] = {
-    "name": Rule("text", required=True),
+    "name": Rule("text", short_text, required=True),
     "poles": Rule("int", between(1, 3, " poles")),
     "pf": Rule("number", power_factor, default=1.0),
     "leading": Rule("bool", default=False),
-    "profile": Rule("text", default="linear"),
+    "profile": Rule("text", short_text, default="linear"),
     "continuous": Rule("bool", default=False),
     "locked": Rule("bool", default=False),
-    "breaker_a": Rule("number", positive),
+    "breaker_a": Rule("number", in_range(BREAKER_A, " A")),
     "note": Rule("text", default=""),
     "slot": Rule("int", between(1, MAX_SPACES, " (slot numbers start at 1)")),
 }
-#: The check of the one load key a circuit gives (VA, W or A).
-LOAD_CHECK = non_negative
+#: The check of each load key (a circuit gives exactly one).
+LOAD_CHECKS = {
+    "load_va": zero_or_in_range(LOAD_VA, " VA"),
+    "load_w": zero_or_in_range(LOAD_VA, " W"),
+    "load_a": zero_or_in_range(LOAD_A, " A"),
+}
 _PLACEMENT_KEYS = ("slot", "phases", "poles", "name")
 #: Every key a circuit may hold, placement first (the order of messages).
 CIRCUIT_KEYS = (
@@ -66,7 +81,7 @@ def circuit_hint(raw: Any) -> str:
     phases = raw.get("phases")
     place = None
     if isinstance(slot, int) and not isinstance(slot, bool):
-        place = f"slot {slot}"
+        place = f"slot {shown(slot)}"
     elif isinstance(phases, str) and phases.strip():
         place = f"phases {phases.strip()}"
     return name_circuit(name if isinstance(name, str) else None, place)
@@ -168,7 +183,8 @@ def _read_load(
             index,
         )
         return "va", MISSING
-    value = r.value(raw, given[0], table, where, "number", check=LOAD_CHECK, circuit_index=index)
+    check = LOAD_CHECKS[given[0]]
+    value = r.value(raw, given[0], table, where, "number", check=check, circuit_index=index)
     return LOAD_KEYS[given[0]], value
 
 

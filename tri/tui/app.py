@@ -23,7 +23,7 @@ from tri.schedule.load import ScheduleFile, load_schedule
 from tri.schedule.model import Schedule
 from tri.tui import compute, recent
 from tri.tui.messages import AnalysisDone
-from tri.tui.session import Session
+from tri.tui.session import FileChangedOnDisk, Session
 from tri.tui.wording import issue_text, plural
 
 THEMES = ("textual-dark", "textual-light", "ansi-dark", "ansi-light")
@@ -269,6 +269,12 @@ class TriApp(App[int]):
         assert self.session is not None
         try:
             self.session.save(path)
+        except FileChangedOnDisk:
+            from tri.tui.screens.changed_on_disk import ask_about_changed_file
+
+            self.set_status(f"{path.name} changed on disk since it was opened; nothing written.")
+            ask_about_changed_file(self, path, then_quit)
+            return False
         except ScheduleError as exc:
             shown = self.session.schedule
             first = issue_text(exc.issues[0], path.name, shown) if exc.issues else str(exc)
