@@ -121,21 +121,45 @@ def add_over_time(
         data["scenarios"] = scenarios
     spec = schedule.log
     if spec is not None:
-        from tri.engine.log_analysis import analyse_log
         from tri.report.log_data import log_data
         from tri.schedule.log_file import read_log
 
         base = loaded.path.parent if loaded.path is not None else None
         log = read_log(spec, base)
-        try:
-            figures = analyse_log(
-                log.arrays, demand_minutes=spec.demand_minutes, window=spec.demand_window
-            )
-        except ValueError as exc:
-            from tri.schedule.errors import ScheduleError
-            from tri.schedule.log_spec import log_issue
-
-            raise ScheduleError([log_issue(log.path, f"{exc}; set [log] demand_minutes")]) from None
+        figures = analyse_logged(log, spec)
         data["log"] = log_data(log, figures, analysis, schedule)
         return OverTimeParts(cases, log, figures)
     return OverTimeParts(cases)
+
+
+def analyse_logged(log: Any, spec: Any) -> Any:
+    """The engine's figures of a log read from ``[log]`` (``tri report`` and the UI share this).
+
+    Parameters
+    ----------
+    log : LoadedLog
+        From :func:`tri.schedule.log_file.read_log`.
+    spec : LogSpec
+        The schedule's ``[log]`` (demand window and its kind).
+
+    Returns
+    -------
+    LogAnalysis
+
+    Raises
+    ------
+    ScheduleError
+        When the demand window is not a whole number of the log's intervals
+        (located at the log file).
+    """
+    from tri.engine.log_analysis import analyse_log
+
+    try:
+        return analyse_log(
+            log.arrays, demand_minutes=spec.demand_minutes, window=spec.demand_window
+        )
+    except ValueError as exc:
+        from tri.schedule.errors import ScheduleError
+        from tri.schedule.log_spec import log_issue
+
+        raise ScheduleError([log_issue(log.path, f"{exc}; set [log] demand_minutes")]) from None

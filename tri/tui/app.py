@@ -52,7 +52,11 @@ class TriApp(App[int]):
         self.start_file = None if file is None else Path(file)
         self.journal_enabled = journal
         self.session: Session | None = None
-        self.analysis: Any = None
+        self.analysis: Any = None  #: the figures shown: the chosen case's
+        self.connected_analysis: Any = None  #: the connected load's (every use factor 1)
+        self.cases: Any = ()  #: the connected load and each scenario (to_scenarios.Case)
+        self.case_name = "connected"  #: the case the main view's figures show
+        self.log_cache: dict[Any, Any] = {}  #: (file, mtime, size, [log]) -> (log, figures)
         self.analysis_error: str | None = None
         self.checks: Any = ()
         self.generation = 0
@@ -102,6 +106,9 @@ class TriApp(App[int]):
         session.journal_enabled = self.journal_enabled
         self.session = session
         self.analysis = None
+        self.connected_analysis = None
+        self.cases = ()
+        self.case_name = "connected"
         self.analysed_generation = -1
         while len(self.screen_stack) > 1:
             self.pop_screen()
@@ -203,24 +210,48 @@ class TriApp(App[int]):
     @work(thread=True, exclusive=True, group="analysis", exit_on_error=False)
     def _analyse(self, generation: int, schedule: Schedule) -> None:
         checks: Any = ()
+        cases: Any = ()
         try:
             result, error = compute.analyse_schedule(schedule), None
-            checks = compute.check_results(result, schedule)
+            cases = compute.analyse_cases(schedule, result)
+            checks = compute.check_results(result, schedule, cases)
         except ImportError:
             result, error = None, compute.ENGINE_MISSING
         except Exception as exc:  # an engine failure is a message, not a crash
             result, error = None, f"The engine could not analyse this schedule: {exc}"
-        done = AnalysisDone(generation, result, error, checks)
+        done = AnalysisDone(generation, result, error, checks, cases)
         self.call_from_thread(self.post_message, done)
 
     def on_analysis_done(self, message: AnalysisDone) -> None:
         if message.generation != self.generation:
             return
-        self.analysis = message.analysis
+        self.connected_analysis = message.analysis
+        self.cases = message.cases
+        self.analysis = self._case_analysis()
         self.analysis_error = message.error
         self.checks = message.checks
         self.analysed_generation = message.generation
         self.refresh_screens()
+
+    def _case_analysis(self) -> Any:
+        """The chosen case's analysis (the connected load when that case is gone)."""
+        for case in self.cases:
+            if case.name == self.case_name:
+                return case.analysis
+        self.case_name = "connected"
+        return self.connected_analysis
+
+    def show_case(self, name: str) -> None:
+        """Show the figures of case ``name`` (``"connected"`` or a scenario) everywhere."""
+        self.case_name = name
+        if self.connected_analysis is not None:
+            self.analysis = self._case_analysis()
+        self.refresh_screens()
+
+    @property
+    def scenario_shown(self) -> str | None:
+        """The scenario whose figures are shown, ``None`` for the connected load."""
+        return None if self.case_name == "connected" else self.case_name
 
     @property
     def analysis_current(self) -> bool:

@@ -12,14 +12,27 @@ class AnalysisDone(Message):
 
     ``analysis`` is the engine's :class:`~tri.engine.results.PanelAnalysis`
     (``None`` when it failed or the engine is unavailable, with ``error`` saying why);
-    ``checks`` the limits of ``tri check`` judged on it.
+    ``checks`` the limits of ``tri check`` judged on it; ``cases`` the
+    connected load and each ``use`` scenario (:class:`~tri.schedule.to_scenarios.Case`);
+    ``tree`` the building's :class:`~tri.engine.tree_results.TreeAnalysis`
+    when a building is open (``analysis`` is then the current panel's node).
     """
 
-    def __init__(self, generation: int, analysis: Any, error: str | None, checks: Any = ()) -> None:
+    def __init__(
+        self,
+        generation: int,
+        analysis: Any,
+        error: str | None,
+        checks: Any = (),
+        cases: Any = (),
+        tree: Any = None,
+    ) -> None:
         self.generation = generation
         self.analysis = analysis
         self.error = error
         self.checks = checks
+        self.cases = cases
+        self.tree = tree
         super().__init__()
 
 
@@ -46,5 +59,31 @@ class RebalanceDone(Message):
     def __init__(self, plan: Any, error: str | None, cancelled: bool = False) -> None:
         self.plan = plan
         self.error = error
+        self.cancelled = cancelled
+        super().__init__()
+
+
+class LogProgress(Message):
+    """Progress of reading a logger's export in a worker thread (``fraction`` 0..1)."""
+
+    def __init__(self, fraction: float, text: str) -> None:
+        self.fraction = fraction
+        self.text = text
+        super().__init__()
+
+
+class LogRead(Message):
+    """Reading the log ended: ``log`` and ``figures`` (``None`` on error or cancel).
+
+    ``problems`` are the located problems (each naming the file and line)
+    when it could not be read.
+    """
+
+    def __init__(
+        self, log: Any, figures: Any, problems: list[str], cancelled: bool = False
+    ) -> None:
+        self.log = log
+        self.figures = figures
+        self.problems = problems
         self.cancelled = cancelled
         super().__init__()

@@ -56,6 +56,9 @@ class Session:
         The schedule as last read or written (``None`` if never saved).
     source_name : str
         What to call the schedule in the title when it has no path.
+    source_dir : Path or None
+        The folder files named in the schedule (its ``[log]`` file) are
+        relative to: the file's folder, or the folder an untitled copy came from.
     """
 
     schedule: Schedule
@@ -63,6 +66,7 @@ class Session:
     document: TOMLDocument | None = None
     saved: Schedule | None = None
     source_name: str = ""
+    source_dir: Path | None = None
     undo_stack: list[tuple[Schedule, str]] = field(default_factory=list)
     redo_stack: list[tuple[Schedule, str]] = field(default_factory=list)
     edits: int = 0
@@ -83,6 +87,7 @@ class Session:
             document=loaded.document,
             saved=loaded.schedule,
             base_digest=file_digest(loaded.path),
+            source_dir=None if loaded.path is None else loaded.path.parent,
         )
 
     @classmethod
@@ -94,6 +99,7 @@ class Session:
             document=loaded.document,
             saved=None,
             source_name=name,
+            source_dir=None if loaded.path is None else loaded.path.parent,
         )
 
     # ------------------------------------------------------------ state
@@ -270,6 +276,7 @@ class Session:
         written = build_schedule(document.unwrap())
         self.document = document
         self.path = target
+        self.source_dir = target.parent
         self.schedule = written
         self.saved = written
         self.base_digest = file_digest(target)

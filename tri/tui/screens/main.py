@@ -62,6 +62,8 @@ KEY_WORDS = {
     "supply": "edit the supply (transformer and feeder)",
     "readings": "edit the site readings",
     "findings": "findings, checks (as tri check) and the full report",
+    "log": "the log view: current over time, demand, duration (schedules with [log])",
+    "scenario": "the case the figures show: connected load or a use scenario",
     "app.save": "save (comments kept, previous file kept as .bak)",
     "app.save_as": "save as",
     "cancel_pick": "put back the breaker being moved",
@@ -92,6 +94,8 @@ class MainScreen(CircuitActions, Screen[None]):
         Binding("s", "supply", "Supply", show=False, id="main.supply"),
         Binding("i", "readings", "Readings", show=False, id="main.readings"),
         Binding("f", "findings", "Findings", show=False, id="main.findings"),
+        Binding("d", "log", "Log", id="main.log"),
+        Binding("n", "scenario", "Case", id="main.scenario"),
         Binding("ctrl+s", "app.save", "Save", id="main.save"),
         Binding("w", "app.save_as", "Save as", show=False, id="main.save_as"),
         Binding("escape", "cancel_pick", "Put back", id="main.cancel_pick"),
@@ -167,10 +171,20 @@ class MainScreen(CircuitActions, Screen[None]):
         else:
             self.query_one(PanelView).show(schedule, analysis, keep_index)
         results = self.query_one(ResultsPanel)
+        results.border_title = self._results_title()
+        self.refresh_bindings()
         if app.analysis is None:
             results.show(None, app.analysis_error or "Analysing…")
         else:
             results.show(app.analysis, stale=not app.analysis_current, checks=app.checks)
+
+    def _results_title(self) -> str:
+        app: Any = self.app
+        if len(app.cases) < 2:
+            return "Results"
+        case = app.scenario_shown
+        shown = "connected load" if case is None else f"scenario {case}"
+        return f"Results · {shown} (n: another case; checks: every case)"
 
     def set_status(self, text: str, error: bool = False) -> None:
         """One line of feedback under the results (it stays until the cursor moves)."""
@@ -227,6 +241,11 @@ class MainScreen(CircuitActions, Screen[None]):
         """While a breaker is being moved, only Enter, Esc, help and quit act."""
         if self.picking is not None and action not in PICKING_ACTIONS:
             return False
+        app: Any = self.app
+        if action == "log":
+            return app.session is not None and app.session.schedule.log is not None
+        if action == "scenario":
+            return len(app.cases) > 1
         return not (action == "cancel_pick" and self.picking is None)
 
     # ------------------------------------------------------------ cursor and status line
@@ -390,6 +409,36 @@ class MainScreen(CircuitActions, Screen[None]):
                 app.analysis, app.session.schedule, app.session.title_name, self.app.size.width
             )
         )
+
+    def action_log(self) -> None:
+        """d: the log view (current over time, demand, duration, the report's figures)."""
+        from tri.tui.screens.log_view import LogScreen
+
+        if self.schedule.log is None:
+            self.set_status("This schedule has no [log] table (README: Loads over time).")
+            return
+        self.app.push_screen(LogScreen())
+
+    def action_scenario(self) -> None:
+        """n: choose the case (connected load or a scenario) the figures show."""
+        from tri.tui.screens.scenario_choice import scenario_screen
+
+        app: Any = self.app
+        screen = scenario_screen(app.cases, app.case_name)
+        if screen is None:
+            self.set_status(
+                "This schedule has no use scenarios; the figures are the connected load."
+            )
+            return
+
+        def chosen(name: str | None) -> None:
+            if name is None:
+                return
+            app.show_case(name)
+            shown = "the connected load" if name == "connected" else f"scenario {name}"
+            self.set_status(f"The figures show {shown}; tri check's verdicts cover every case.")
+
+        self.app.push_screen(screen, chosen)
 
     def action_phasors(self) -> None:
         from tri.tui.screens.phasor import PhasorScreen

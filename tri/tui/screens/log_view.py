@@ -1,0 +1,490 @@
+"""The log view: current over time, hours above each current, and the report's figures.
+
+The schedule's ``[log]`` file is read in a worker thread by the file layer's
+own reader (:func:`tri.schedule.log_file.read_log`) with a progress bar; Esc
+cancels (a million rows take seconds). Its figures are the engine's
+(:func:`tri.report.over_time_data.analyse_logged`) and the report's
+(:func:`tri.tui.compute.log_report`), never recomputed here. Three views
+(Tab): current over time (← → move the cursor, + − zoom, PgUp PgDn scroll,
+p jumps to each demand peak), the demand-duration view (↑↓ choose a
+current), and the figures as ``tri report`` prints them.
+"""
+
+from __future__ import annotations
+
+import contextlib
+import threading
+import time
+from pathlib import Path
+from typing import Any, ClassVar
+
+import numpy as np
+from rich.text import Text
+from textual import work
+from textual.app import ComposeResult
+from textual.binding import Binding, BindingType
+from textual.containers import Horizontal, VerticalScroll
+from textual.screen import Screen
+from textual.widgets import Footer, ProgressBar, Static
+
+from tri.engine.over_time import envelope
+from tri.schedule.errors import ScheduleError
+from tri.tui import compute
+from tri.tui.log_plot import Plot, Window, column_range, duration_picture, legend, time_picture
+from tri.tui.log_summary import facts_line, summary_lines
+from tri.tui.messages import LogProgress, LogRead
+from tri.tui.wording import issue_text, plural
+
+LOG_HELP = """\
+The log view reads the schedule's [log] file (a logger's CSV export) in the
+background with a progress bar; Esc cancels, r reads it again. Current over
+time: each phase and the neutral (dotted) as the average of the intervals
+under each dot column; ▼ marks where each channel's highest demand window
+starts (p jumps to them in turn); the dim dotted line is the rating. ← →
+move the cursor (its time and values are written under the picture), + and
+− zoom in and out around it, PgUp PgDn scroll, Home End go to the ends, 0
+shows the whole log, 1 2 3 4 hide or show A, B, C and N. Duration: the
+hours each current was exceeded (interval values); ↑↓ choose a current.
+Figures: the report's own text (scenarios, log, demand, unbalance over
+time, NEC 220.87 capacity with its 'not a basis' wording, log against
+schedule). Every figure comes from the same functions as tri report."""
+
+VIEWS = ("current", "duration", "figures")
+
+
+class LogCancelled(Exception):
+    """The user cancelled reading the log."""
+
+
+class LogChart(Static):
+    """A picture drawn at the widget's own size by the screen's ``draw(cols, rows)``."""
+
+    def __init__(self, draw: Any, **kwargs: Any) -> None:
+        super().__init__("", **kwargs)
+        self.draw = draw
+
+    def render(self) -> Text:
+        cols = self.content_size.width or 78
+        rows = self.content_size.height or 12
+        return Text("\n").join(self.draw(cols, rows))
+
+
+class LogScreen(Screen[None]):
+    """Current over time, duration and figures of the schedule's log."""
+
+    BINDINGS: ClassVar[list[BindingType]] = [
+        Binding("escape", "cancel_or_back", "Back", id="log.back"),
+        Binding("tab", "view(1)", "View", id="log.view"),
+        Binding("shift+tab", "view(-1)", "Prev view", show=False),
+        Binding("left,h", "cursor(-1)", "Cursor", show=False),
+        Binding("right,l", "cursor(1)", "Cursor", show=False),
+        Binding("plus,equals_sign", "zoom(1)", "Zoom in", id="log.zoom_in"),
+        Binding("minus", "zoom(-1)", "Out", id="log.zoom_out"),
+        Binding("pageup", "pan(-1)", "Scroll", show=False),
+        Binding("pagedown", "pan(1)", "Scroll", show=False),
+        Binding("home", "edge(0)", "Start", show=False),
+        Binding("end", "edge(1)", "End", show=False),
+        Binding("0", "whole", "Whole log", show=False),
+        Binding("p", "peak", "Peak", id="log.peak"),
+        Binding("up,k", "level(1)", "Level", show=False),
+        Binding("down,j", "level(-1)", "Level", show=False),
+        Binding("1", "channel(0)", "A", show=False),
+        Binding("2", "channel(1)", "B", show=False),
+        Binding("3", "channel(2)", "C", show=False),
+        Binding("4", "channel(3)", "N", show=False),
+        Binding("r", "read", "Read again", show=False, id="log.read"),
+        Binding("q", "app.quit", "Quit", show=False),
+    ]
+    KEY_WORDS: ClassVar[dict[str, str]] = {
+        "cancel_or_back": "cancel reading, or back to the main view",
+        "view(1)": "current over time, duration, figures",
+        "zoom(1)": "zoom in around the cursor",
+        "zoom(-1)": "zoom out",
+        "peak": "jump to the next demand peak (A, B, C, N in turn)",
+        "read": "read the log again",
+    }
+
+    def __init__(self) -> None:
+        super().__init__()
+        self.view = "current"
+        self.logged: Any = None
+        self.figures: Any = None
+        self.stack: Any = None
+        self.data: dict[str, Any] | None = None
+        self.window = Window(0, 1)
+        self.cursor = 0
+        self.level = 0
+        self.shown = [True, True, True, True]
+        self.peak_turn = 0
+        self.reading = False
+        self.cancel: threading.Event | None = None
+        self.token = 0
+        self.problems: list[str] = []
+        self.note: Text | None = None  #: a demand peak's words, until the cursor moves
+        self._ready = False
+
+    def compose(self) -> ComposeResult:
+        yield Static("", id="log-title", classes="title-bar")
+        with Horizontal(id="log-progress-row"):
+            yield ProgressBar(total=1.0, show_eta=False, id="log-progress")
+            yield Static("", id="log-state")
+        yield LogChart(self._draw, id="log-chart")
+        yield Static("", id="log-readout")
+        yield Static("", id="log-summary")
+        with VerticalScroll(id="log-figures"):
+            yield Static("", id="log-figures-body")
+        yield Footer(show_command_palette=False)
+
+    def on_mount(self) -> None:
+        self._ready = True
+        self.query_one("#log-figures").display = False
+        self.action_read(use_cache=True)
+
+    # ------------------------------------------------------------ reading
+
+    def _cache_key(self, spec: Any, base: Path | None) -> Any:
+        path = Path(base or ".") / spec.file
+        try:
+            st = path.stat()
+        except OSError:
+            return None
+        return (str(path.resolve()), st.st_mtime_ns, st.st_size, spec)
+
+    def action_read(self, use_cache: bool = False) -> None:
+        """Read the schedule's log (from the cache when the file has not changed)."""
+        if self.reading:
+            return
+        app: Any = self.app
+        spec = app.session.schedule.log
+        if spec is None:
+            self._state("This schedule has no [log] table.")
+            return
+        base = app.session.source_dir
+        key = self._cache_key(spec, base)
+        if use_cache and key is not None and key in app.log_cache:
+            self._loaded(*app.log_cache[key])
+            return
+        self.reading, self.problems = True, []
+        self.token += 1
+        self.cancel = threading.Event()
+        self.query_one("#log-progress-row").display = True
+        self.query_one("#log-progress", ProgressBar).update(progress=0.0)
+        self._state(f"Reading {spec.file}… Esc cancels.")
+        self.refresh_view()
+        self._read(spec, base, key, self.token, self.cancel)
+
+    @work(thread=True, exclusive=True, group="log", exit_on_error=False)
+    def _read(self, spec: Any, base: Any, key: Any, token: int, cancel: threading.Event) -> None:
+        from tri.report.over_time_data import analyse_logged
+        from tri.schedule.log_file import read_log
+
+        last = [0.0]
+
+        def progress(fraction: float, what: str) -> None:
+            if cancel.is_set():
+                raise LogCancelled
+            now = time.perf_counter()
+            if now - last[0] >= 0.1 or fraction >= 1.0:
+                last[0] = now
+                self._post(LogProgress(fraction, what))
+
+        try:
+            log = read_log(spec, base, progress=progress)
+            progress(1.0, "working out demand, percentiles and durations")
+            figures = analyse_logged(log, spec)
+            message = LogRead(log, figures, [])
+            message.key, message.token = key, token  # type: ignore[attr-defined]
+        except LogCancelled:
+            message = LogRead(None, None, [], cancelled=True)
+        except ScheduleError as exc:
+            message = LogRead(None, None, [issue_text(i, spec.file) for i in exc.issues])
+        except Exception as exc:  # a message on screen, never a traceback
+            message = LogRead(None, None, [f"{spec.file}: the log could not be read: {exc}"])
+        if cancel.is_set():
+            message = LogRead(None, None, [], cancelled=True)
+        message.token = token  # type: ignore[attr-defined]
+        self._post(message)
+
+    def _post(self, message: Any) -> None:
+        with contextlib.suppress(RuntimeError):  # the app has stopped
+            self.app.call_from_thread(self.post_message, message)
+
+    def on_log_progress(self, message: LogProgress) -> None:
+        if not self.reading:
+            return
+        self.query_one("#log-progress", ProgressBar).update(progress=message.fraction)
+        self._state(f"{message.text[:1].upper()}{message.text[1:]}… Esc cancels.")
+
+    def on_log_read(self, message: LogRead) -> None:
+        if getattr(message, "token", None) != self.token or not self.reading:
+            return
+        self.reading = False
+        self.query_one("#log-progress-row").display = False
+        if message.cancelled:
+            self._state("Cancelled; nothing was read. r reads the log, Esc goes back.")
+        elif message.problems:
+            self.problems = message.problems
+            n = len(message.problems)
+            self._state(f"The log cannot be read ({plural(n, 'problem')}); r reads it again.")
+        else:
+            app: Any = self.app
+            key = getattr(message, "key", None)
+            if key is not None:
+                app.log_cache = {key: (message.log, message.figures)}
+            self._loaded(message.log, message.figures)
+            return
+        self.refresh_view()
+
+    def _loaded(self, log: Any, figures: Any) -> None:
+        self.logged, self.figures = log, figures
+        rows = [*log.arrays.phase_a]
+        neutral = log.arrays.neutral_a
+        rows.append(neutral if neutral is not None else np.full(log.arrays.n_intervals, np.nan))
+        self.stack = np.stack(rows)
+        self.shown[3] = neutral is not None
+        self.window = Window(0, max(log.arrays.n_intervals, 1))
+        self.cursor = 0
+        self.query_one("#log-progress-row").display = False
+        self._state("")
+        self.refresh_view()
+
+    def action_cancel_or_back(self) -> None:
+        if self.reading and self.cancel is not None:
+            self.cancel.set()
+            self.reading = False
+            self.query_one("#log-progress-row").display = False
+            self._state("Cancelled; nothing was read. r reads the log, Esc goes back.")
+            self.refresh_view()
+            return
+        self.app.pop_screen()
+
+    # ------------------------------------------------------------ drawing
+
+    def _state(self, text: str) -> None:
+        self.query_one("#log-state", Static).update(Text(text))
+        if not self.query_one("#log-progress-row").display:
+            self.query_one("#log-readout", Static).update(Text(text))
+
+    def refresh_view(self) -> None:
+        """Redraw from the app's latest figures (the schedule may have changed)."""
+        if not self._ready:
+            return
+        app: Any = self.app
+        if self.logged is not None and app.connected_analysis is not None and app.analysis_current:
+            self.data = compute.log_report(
+                app.session.schedule,
+                app.connected_analysis,
+                app.cases,
+                self.logged,
+                self.figures,
+                app.session.title_name,
+            )
+        self._title()
+        figures_view = self.view == "figures"
+        self.query_one("#log-chart").display = not figures_view
+        self.query_one("#log-readout").display = not figures_view
+        self.query_one("#log-summary").display = not figures_view
+        self.query_one("#log-figures").display = figures_view
+        self.query_one(LogChart).refresh()
+        self._readout()
+        self._summary()
+
+    def _title(self) -> None:
+        t = Text(" Log")
+        if self.data is not None:
+            t.append(" · " + facts_line(self.data["log"]))
+        views = Text(" │")
+        for v in VIEWS:
+            views.append(" ")
+            views.append(
+                f"[{v}]" if v == self.view else v, style="reverse" if v == self.view else ""
+            )
+        room = max(self.size.width - views.cell_len, 10)
+        if t.cell_len > room:
+            t.truncate(room - 1)
+            t.append("…")
+        t.append(" " * max(room - t.cell_len, 0))
+        self.query_one("#log-title", Static).update(t + views)
+
+    def _plot(self, cols: int, rows: int) -> Plot:
+        labels = tuple(self.app.session.schedule.labels)
+        return Plot(cols, rows, tuple(self.shown), (*labels, "N"), self.cursor)  # type: ignore[arg-type]
+
+    def _draw(self, cols: int, rows: int) -> list[Text]:
+        if self.logged is None:
+            return [Text(p) for p in self.problems] or [Text("")]
+        plot = self._plot(cols, rows)
+        self.cursor = min(self.cursor, plot.plot_cols - 1)
+        plot = self._plot(cols, rows)
+        if self.view == "duration":
+            return self._draw_duration(plot)
+        f = self.figures
+        channels = [*f.phases, f.neutral]
+        peaks = [(k, ch.start_index) for k, ch in enumerate(channels) if ch and ch.start_index >= 0]
+        rating = self.data["log"]["capacity"]["rating_a"] if self.data else None
+        return time_picture(
+            self.stack,
+            self.window,
+            plot,
+            rating_a=rating,
+            peaks=peaks,
+            time_label=lambda i: self.logged.time_at(i).strftime("%a %m-%d %H:%M"),
+        )
+
+    def _draw_duration(self, plot: Plot) -> list[Text]:
+        if self.data is None:
+            return [Text("Waiting for the figures…")]
+        d = self.data["log"]["duration"]
+        names = [*self.app.session.schedule.labels, "N"]
+        hours = [d["hours_above"].get(n) for n in names]
+        self.level = min(max(self.level, 0), len(d["levels_a"]) - 1)
+        return duration_picture(d["levels_a"], hours, plot, level_cursor=self.level)
+
+    def _readout(self) -> None:
+        if self.logged is None or self.reading:
+            return
+        present = [True, True, True, self.logged.arrays.neutral_a is not None]
+        plot = self._plot(self.query_one(LogChart).content_size.width or 78, 12)
+        t = legend(plot, present)
+        if self.view == "duration" and self.data is not None:
+            t.append_text(self._level_words())
+        elif self.view == "current":
+            t.append_text(self.note or self._cursor_words(plot))
+        self.query_one("#log-readout", Static).update(t)
+
+    def _cursor_words(self, plot: Plot) -> Text:
+        first, last = column_range(self.window, plot.plot_cols, self.cursor)
+        env = envelope(self.stack[:, first:last], 1)
+        t = Text(self.logged.time_at(first).strftime("%a %m-%d %H:%M"), style="bold")
+        for k, name in enumerate(plot.names):
+            value = env.mean[k, 0] if env.mean.shape[-1] else float("nan")
+            if np.isfinite(value):
+                t.append(f" {name} {value:.1f}")
+        t.append(" A")
+        return t
+
+    def _level_words(self) -> Text:
+        assert self.data is not None
+        d = self.data["log"]["duration"]
+        level = d["levels_a"][self.level]
+        t = Text(f"above {level:.1f} A:", style="bold")
+        for name, hours in d["hours_above"].items():
+            t.append(f" {name} {hours[self.level]:.1f} h")
+        return t
+
+    def _summary(self) -> None:
+        summary = self.query_one("#log-summary", Static)
+        body = self.query_one("#log-figures-body", Static)
+        if self.data is None:
+            summary.update(Text("\n".join(self.problems)))
+            body.update(Text("\n".join(self.problems)))
+            return
+        summary.update(Text("\n").join(summary_lines(self.data)))
+        if self.view == "figures":
+            from tri.report.over_time_text import render_over_time_text
+
+            width = max(self.size.width - 4, 40)
+            body.update(Text(render_over_time_text(self.data, width=width).strip("\n")))
+
+    # ------------------------------------------------------------ keys
+
+    def action_view(self, step: int) -> None:
+        self.view = VIEWS[(VIEWS.index(self.view) + step) % len(VIEWS)]
+        self.refresh_view()
+
+    def _plot_cols(self) -> int:
+        width = self.query_one(LogChart).content_size.width or 78
+        return self._plot(width, 12).plot_cols
+
+    def _cursor_index(self) -> int:
+        return column_range(self.window, self._plot_cols(), self.cursor)[0]
+
+    def _show_window(self, start: int, length: int, at: int | None = None) -> None:
+        """Show ``length`` intervals from ``start`` (clamped), the cursor on interval ``at``."""
+        total = self.stack.shape[-1]
+        length = min(max(length, min(self._plot_cols(), total)), total)
+        start = min(max(start, 0), total - length)
+        self.window = Window(start, start + length)
+        if at is not None:
+            cols = self._plot_cols()
+            self.cursor = min(max((at - start) * cols // length, 0), cols - 1)
+        self.refresh_view()
+
+    def action_cursor(self, step: int) -> None:
+        if self.logged is None or self.view != "current":
+            return
+        self.note = None
+        cols = self._plot_cols()
+        target = self.cursor + step
+        if 0 <= target < cols:
+            self.cursor = target
+            self.refresh_view()
+            return
+        w = self.window
+        shift = max(w.length // 4, 1) * step
+        self._show_window(w.start + shift, w.length, self._cursor_index() + w.length // cols * step)
+
+    def action_zoom(self, direction: int) -> None:
+        if self.logged is None or self.view != "current":
+            return
+        self.note = None
+        at = self._cursor_index()
+        w = self.window
+        length = w.length // 2 if direction > 0 else w.length * 2
+        share = (at - w.start) / max(w.length, 1)
+        self._show_window(round(at - share * length), length, at)
+
+    def action_pan(self, step: int) -> None:
+        if self.logged is not None and self.view == "current":
+            self._show_window(self.window.start + step * self.window.length, self.window.length)
+
+    def action_edge(self, end: int) -> None:
+        if self.logged is None:
+            return
+        if self.view == "figures":
+            scroll = self.query_one("#log-figures", VerticalScroll)
+            scroll.scroll_end(animate=False) if end else scroll.scroll_home(animate=False)
+            return
+        total = self.stack.shape[-1]
+        at = total - 1 if end else 0
+        self._show_window(at - self.window.length // 2, self.window.length, at)
+
+    def action_whole(self) -> None:
+        if self.logged is not None:
+            self._show_window(0, self.stack.shape[-1], self._cursor_index())
+
+    def action_peak(self) -> None:
+        """Jump to the next channel's highest demand window (its start under the cursor)."""
+        if self.logged is None:
+            return
+        f = self.figures
+        channels = [(k, ch) for k, ch in enumerate([*f.phases, f.neutral]) if ch is not None]
+        channels = [(k, ch) for k, ch in channels if ch.start_index >= 0]
+        if not channels:
+            self.app.bell()
+            return
+        k, ch = channels[self.peak_turn % len(channels)]
+        self.peak_turn += 1
+        self.view = "current"
+        w = self.window
+        self._show_window(ch.start_index - w.length // 2, w.length, ch.start_index)
+        name = self._plot(80, 12).names[k]
+        start = self.logged.time_at(ch.start_index).strftime("%a %m-%d %H:%M")
+        end = self.logged.time_at(ch.start_index + f.window_intervals).strftime("%H:%M")
+        self.note = Text(f"peak {name} {ch.value_a:.1f} A {start}-{end}", style="bold")
+        self.refresh_view()
+
+    def action_level(self, step: int) -> None:
+        if self.view == "figures":
+            self.query_one("#log-figures", VerticalScroll).scroll_relative(y=-step, animate=False)
+        elif self.view == "duration":
+            self.level += step
+            self.refresh_view()
+
+    def action_channel(self, k: int) -> None:
+        if k == 3 and (self.logged is None or self.logged.arrays.neutral_a is None):
+            return
+        self.shown[k] = not self.shown[k]
+        if not any(self.shown):
+            self.shown[k] = True
+        self.refresh_view()
