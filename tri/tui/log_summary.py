@@ -25,8 +25,11 @@ def _clock(text: str | None) -> str:
     return f"{date[5:]} {time[:5]}"
 
 
-def demand_lines(g: dict[str, Any], labels: list[str]) -> list[Text]:
-    """Highest demand of each phase and the neutral, its share of the rating and when."""
+def demand_lines(g: dict[str, Any], labels: list[str], width: int = 78) -> list[Text]:
+    """Highest demand of each phase and the neutral, its share of the rating and when.
+
+    As many channels on a line as ``width`` [cells] holds (two at 80 columns).
+    """
     dm = g["demand"]
     head = f"Demand {dm['minutes']:g} min {dm['window']}: "
     items = []
@@ -42,13 +45,13 @@ def demand_lines(g: dict[str, Any], labels: list[str]) -> list[Text]:
             load = f" {ch['loading_pct']:.0f} %" if ch["loading_pct"] is not None else ""
             t.append(f" {ch['a']:.1f} A{load} {_clock(ch['start'])}")
         items.append(t)
+    per = max(2, (width - len(head)) // (max(i.cell_len for i in items) + 3))
     lines = []
-    for k in range(0, len(items), 2):
+    for k in range(0, len(items), per):
         t = Text(head if k == 0 else " " * len(head), style="bold" if k == 0 else "")
-        t.append_text(items[k])
-        if k + 1 < len(items):
-            t.append(" · ")
-            t.append_text(items[k + 1])
+        for j, item in enumerate(items[k : k + per]):
+            t.append(" · " if j else "")
+            t.append_text(item)
         lines.append(t)
     return lines
 
@@ -100,12 +103,12 @@ def percentile_line(g: dict[str, Any]) -> Text:
     return t
 
 
-def summary_lines(d: dict[str, Any]) -> list[Text]:
-    """Every line under the picture, from a report dict that has ``log``."""
+def summary_lines(d: dict[str, Any], width: int = 78) -> list[Text]:
+    """Every line under the picture, from a report dict that has ``log`` (``width`` [cells])."""
     g = d["log"]
     labels = list(d["phase_order"])
     return [
-        *demand_lines(g, labels),
+        *demand_lines(g, labels, width),
         *capacity_lines(g, labels),
         shares_line(g, labels),
         percentile_line(g),

@@ -46,7 +46,9 @@ def _keys_of(screen_cls: Any) -> list[tuple[str, str]]:
 def help_screen(app: Any) -> TextScreen:
     """The help page for the app."""
     from tri.tui.screens.main import MAIN_HELP, MainScreen
+    from tri.tui.screens.log_view import LOG_HELP, LogScreen
     from tri.tui.screens.phasor import PHASOR_HELP, PhasorScreen
+    from tri.tui.screens.scenario_choice import SCENARIO_HELP
     from tri.tui.screens.rebalance import REBALANCE_HELP, RebalanceScreen
 
     t = Text()
@@ -77,7 +79,8 @@ def help_screen(app: Any) -> TextScreen:
         ("← →", "panel view: the other column (rail board: the next phase)"),
         *[(k, d) for k, d in _keys_of(MainScreen) if d not in ("Edit",)],
     ]
-    section("Main view", main_keys, MAIN_HELP + "\n\n" + TABLE_HELP + "\n\n" + RESULTS_HELP)
+    body = "\n\n".join((MAIN_HELP, TABLE_HELP, RESULTS_HELP, SCENARIO_HELP))
+    section("Main view", main_keys, body)
     section(
         "Forms",
         [("Tab / ↑↓", "next / previous field"), ("Enter / Ctrl+S", "accept"), ("Esc", "cancel")],
@@ -85,6 +88,7 @@ def help_screen(app: Any) -> TextScreen:
         "marked ✗ is refused, with the reason written under the form; what you typed stays.",
     )
     section("Phasor view", _keys_of(PhasorScreen), PHASOR_HELP)
+    section("Log view", _keys_of(LogScreen), LOG_HELP)
     section("Rebalance", _keys_of(RebalanceScreen), REBALANCE_HELP)
     t.append(f"{CAUTION_TITLE}\n", style="bold underline")
     t.append(SAFETY_CAUTION + "\n")

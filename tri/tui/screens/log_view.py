@@ -102,6 +102,20 @@ class LogScreen(Screen[None]):
         "zoom(-1)": "zoom out",
         "peak": "jump to the next demand peak (A, B, C, N in turn)",
         "read": "read the log again",
+        "view(-1)": "the previous view",
+        "cursor(-1)": "cursor back in time (at the edge the picture scrolls)",
+        "cursor(1)": "cursor on in time",
+        "pan(-1)": "scroll back one screen",
+        "pan(1)": "scroll on one screen",
+        "edge(0)": "the start of the log (figures: the top)",
+        "edge(1)": "the end of the log (figures: the end)",
+        "whole": "the whole log",
+        "level(1)": "duration: a higher current (figures: scroll up)",
+        "level(-1)": "duration: a lower current (figures: scroll down)",
+        "channel(0)": "hide or show the first phase",
+        "channel(1)": "hide or show the second phase",
+        "channel(2)": "hide or show the third phase",
+        "channel(3)": "hide or show the neutral",
     }
 
     def __init__(self) -> None:
@@ -113,7 +127,7 @@ class LogScreen(Screen[None]):
         self.data: dict[str, Any] | None = None
         self.window = Window(0, 1)
         self.cursor = 0
-        self.level = 0
+        self.level = -1  #: duration view: index of the level chosen (-1: the middle one)
         self.shown = [True, True, True, True]
         self.peak_turn = 0
         self.reading = False
@@ -337,8 +351,14 @@ class LogScreen(Screen[None]):
         d = self.data["log"]["duration"]
         names = [*self.app.session.schedule.labels, "N"]
         hours = [d["hours_above"].get(n) for n in names]
-        self.level = min(max(self.level, 0), len(d["levels_a"]) - 1)
-        return duration_picture(d["levels_a"], hours, plot, level_cursor=self.level)
+        return duration_picture(d["levels_a"], hours, plot, level_cursor=self._level_index())
+
+    def _level_index(self) -> int:
+        """The duration view's chosen level (the middle one until ↑↓ choose)."""
+        assert self.data is not None
+        n = len(self.data["log"]["duration"]["levels_a"])
+        self.level = n // 2 if self.level < 0 else min(self.level, n - 1)
+        return self.level
 
     def _readout(self) -> None:
         if self.logged is None or self.reading:
@@ -366,10 +386,10 @@ class LogScreen(Screen[None]):
     def _level_words(self) -> Text:
         assert self.data is not None
         d = self.data["log"]["duration"]
-        level = d["levels_a"][self.level]
-        t = Text(f"above {level:.1f} A:", style="bold")
+        k = self._level_index()
+        t = Text(f"above {d['levels_a'][k]:.1f} A:", style="bold")
         for name, hours in d["hours_above"].items():
-            t.append(f" {name} {hours[self.level]:.1f} h")
+            t.append(f" {name} {hours[k]:.1f} h")
         return t
 
     def _summary(self) -> None:
@@ -379,7 +399,8 @@ class LogScreen(Screen[None]):
             summary.update(Text("\n".join(self.problems)))
             body.update(Text("\n".join(self.problems)))
             return
-        summary.update(Text("\n").join(summary_lines(self.data)))
+        width = max(self.size.width - 2, 40)
+        summary.update(Text("\n").join(summary_lines(self.data, width)))
         if self.view == "figures":
             from tri.report.over_time_text import render_over_time_text
 
@@ -478,7 +499,7 @@ class LogScreen(Screen[None]):
         if self.view == "figures":
             self.query_one("#log-figures", VerticalScroll).scroll_relative(y=-step, animate=False)
         elif self.view == "duration":
-            self.level += step
+            self.level = max(self.level + step, 0)
             self.refresh_view()
 
     def action_channel(self, k: int) -> None:
