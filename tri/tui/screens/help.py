@@ -45,11 +45,11 @@ def _keys_of(screen_cls: Any) -> list[tuple[str, str]]:
 
 def help_screen(app: Any) -> TextScreen:
     """The help page for the app."""
-    from tri.tui.screens.main import MAIN_HELP, MainScreen
     from tri.tui.screens.log_view import LOG_HELP, LogScreen
+    from tri.tui.screens.main import MAIN_HELP, MainScreen
     from tri.tui.screens.phasor import PHASOR_HELP, PhasorScreen
-    from tri.tui.screens.scenario_choice import SCENARIO_HELP
     from tri.tui.screens.rebalance import REBALANCE_HELP, RebalanceScreen
+    from tri.tui.screens.scenario_choice import SCENARIO_HELP
 
     t = Text()
 
