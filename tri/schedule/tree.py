@@ -13,7 +13,7 @@ parent and names both files. Nothing is written.
 from __future__ import annotations
 
 import os
-from collections.abc import Callable
+from collections.abc import Callable, Sequence
 from dataclasses import dataclass
 from pathlib import Path
 
@@ -304,3 +304,79 @@ def _depth_first(panels: list[TreePanel]) -> tuple[TreePanel, ...]:
         parent = None if p.parent is None else new_index[p.parent]
         out.append(TreePanel(p.loaded, p.path, p.shown, parent, p.feeder_index))
     return tuple(out)
+
+
+def with_schedules(tree: ScheduleTree, schedules: Sequence[Schedule]) -> ScheduleTree:
+    """The same building with each panel's schedule replaced (edited in memory, not yet saved).
+
+    The files and their order stay those of ``tree``; each link is found
+    again from the edited parents' feeder circuits (``feeds`` resolved
+    against the parent's folder), so moving a feeder breaker or adding and
+    deleting circuits before it keeps its child. The loader's link rules are
+    checked again (a child's system against its parent's or the
+    transformer's secondary, the frequency, the neutral of the windings).
+
+    Parameters
+    ----------
+    tree : ScheduleTree
+        The building as read by :func:`load_tree`.
+    schedules : sequence of Schedule
+        One per panel of ``tree``, in its order.
+
+    Returns
+    -------
+    ScheduleTree
+
+    Raises
+    ------
+    ScheduleError
+        A panel no longer fed (its feeder circuit deleted, or its ``feeds``
+        changed), a ``feeds`` naming a file that is not in the building as
+        read, a panel fed twice or feeding the root, or a link rule broken;
+        each located at the parent's feeder circuit and naming both files.
+    """
+    b = _Builder(None)
+    for p, schedule in zip(tree.panels, schedules, strict=True):
+        loaded = ScheduleFile(schedule, p.loaded.document, p.loaded.path)
+        b.panels.append(TreePanel(loaded, p.path, p.shown))
+    index_of = {p.path: i for i, p in enumerate(b.panels)}
+    links: dict[int, tuple[int, int]] = {}
+    for i, p in enumerate(b.panels):
+        for k in feeder_circuits(p.schedule):
+            feed = p.schedule.circuits[k].feed
+            assert feed is not None
+            j = index_of.get((p.path.parent / feed.path).resolve())
+            shown = _shown(p.shown, feed.path)
+            if j is None:
+                b.at_feeder(
+                    i,
+                    k,
+                    "feeds",
+                    f"feeds {shown}, which is not in the building as it was opened; save, "
+                    "then open the top panel again to read it",
+                )
+            elif j <= i or j in links:
+                b.at_feeder(i, k, "feeds", f"feeds {shown}, which is already fed in this building")
+            else:
+                links[j] = (i, k)
+    for j in range(1, len(b.panels)):
+        if j not in links:
+            before = tree.panels[tree.panels[j].parent or 0]
+            b.issues.append(
+                ScheduleIssue(
+                    f"no circuit feeds {b.panels[j].shown} any more (it was fed from this "
+                    "panel): its feeder circuit was deleted or its feeds changed",
+                    before.shown,
+                )
+            )
+    if b.issues:
+        raise ScheduleError(b.issues)
+    out = list(b.panels)
+    for j, (i, k) in links.items():
+        out[j] = TreePanel(out[j].loaded, out[j].path, out[j].shown, i, k)
+    b.panels = out
+    for j, (i, k) in links.items():
+        _check_link(b, i, k, j)
+    if b.issues:
+        raise ScheduleError(b.issues)
+    return ScheduleTree(tuple(out))

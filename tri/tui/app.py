@@ -22,6 +22,7 @@ from tri.schedule.journal import read_journal, state_dir
 from tri.schedule.load import ScheduleFile, load_schedule
 from tri.schedule.model import Schedule
 from tri.tui import compute, recent
+from tri.tui.app_building import BuildingActions
 from tri.tui.messages import AnalysisDone
 from tri.tui.session import FileChangedOnDisk, Session
 from tri.tui.wording import issue_text, plural
@@ -29,8 +30,8 @@ from tri.tui.wording import issue_text, plural
 THEMES = ("textual-dark", "textual-light", "ansi-dark", "ansi-light")
 
 
-class TriApp(App[int]):
-    """Edit, analyse and rebalance one panel schedule from the keyboard."""
+class TriApp(BuildingActions, App[int]):
+    """Edit, analyse and rebalance a panel schedule (or a building of them) from the keyboard."""
 
     CSS_PATH = "tri.tcss"
     TITLE = "tri"
@@ -62,6 +63,7 @@ class TriApp(App[int]):
         self.generation = 0
         self.analysed_generation = -1
         self.quitting = False
+        self.opening_status: str | None = None  #: the main view's first status line
         settings = recent.load_settings()
         self.fixed_theme = theme
         wanted = theme or settings.get("theme")
@@ -85,11 +87,19 @@ class TriApp(App[int]):
 
     def open_path(self, path: Path) -> bool:
         """Load ``path`` and show it; problems become a message, never a traceback."""
+        from tri.schedule.tree import feeder_circuits
+
         try:
             loaded = load_schedule(path)
         except ScheduleError as exc:
             self.show_problems(f"Cannot open {path.name}", exc)
             return False
+        if feeder_circuits(loaded.schedule):
+            if not self.open_building(path):
+                return False
+            recent.remember(path)
+            self.offer_recovery()
+            return True
         self.start_session(Session.from_file(loaded))
         recent.remember(path)
         self.offer_recovery()
@@ -99,12 +109,20 @@ class TriApp(App[int]):
         """Open a demo panel as an unsaved copy (saving asks for a file name)."""
         self.start_session(Session.untitled(loaded, name))
 
-    def start_session(self, session: Session) -> None:
-        """Show ``session`` in the main screen (replacing whatever was open)."""
+    def start_session(self, session: Session, building: Any = None) -> None:
+        """Show ``session`` in the main screen (replacing whatever was open).
+
+        ``building`` is the :class:`~tri.tui.building.Building` the session's
+        panel belongs to, when a building is opened.
+        """
         from tri.tui.screens.main import MainScreen
 
         session.journal_enabled = self.journal_enabled
         self.session = session
+        self.building = building
+        self.tree_result = None
+        if building is not None:
+            building.visited = {building.current}
         self.analysis = None
         self.connected_analysis = None
         self.cases = ()
@@ -186,6 +204,11 @@ class TriApp(App[int]):
         """Make ``new`` the current schedule (undoable) and re-analyse."""
         if self.session is None:
             return
+        problem = self.edit_problem(new)
+        if problem is not None:
+            self.bell()
+            self.set_status(f"Not done: {problem}", error=True)
+            return
         self.session.apply(new, label)
         self.schedule_changed(status or f"{label}. u undoes.")
 
@@ -205,6 +228,9 @@ class TriApp(App[int]):
         if self.session is None:
             return
         self.generation += 1
+        if self.building is not None:
+            self.analyse_building()
+            return
         self._analyse(self.generation, self.session.schedule)
 
     @work(thread=True, exclusive=True, group="analysis", exit_on_error=False)
@@ -227,6 +253,8 @@ class TriApp(App[int]):
             return
         self.connected_analysis = message.analysis
         self.cases = message.cases
+        if message.tree is not None or self.building is None:
+            self.tree_result = message.tree
         self.analysis = self._case_analysis()
         self.analysis_error = message.error
         self.checks = message.checks
@@ -335,33 +363,41 @@ class TriApp(App[int]):
     # ------------------------------------------------------------ quitting, help, theme
 
     async def action_quit(self) -> None:
-        """Ctrl+Q from anywhere: asks first when there are unsaved edits."""
+        """Ctrl+Q from anywhere: asks first when any open panel has unsaved edits."""
         from tri.tui.screens.choice import ChoiceScreen
 
         if self.quitting:
             return
-        s = self.session
-        if s is None or not s.dirty:
+        dirty = self.unsaved_sessions()
+        if not dirty:
             self.exit(0)
             return
         self.quitting = True
+        s = self.session
+        several = len(dirty) > 1 or dirty[0] is not s
 
         def answer(value: str | None) -> None:
             self.quitting = False
-            if value == "save":
+            if value == "save" and several:
+                self.save_all_then_quit()
+            elif value == "save":
                 self.action_save_as(then_quit=True) if s.path is None else self._save_to(
                     s.path, then_quit=True
                 )
             elif value == "discard":
-                s.saved = s.schedule
-                s.journal()  # nothing to keep: removes the journal
+                for d in dirty:
+                    d.saved = d.schedule
+                    d.journal()  # nothing to keep: removes the journal
                 self.exit(0)
 
+        names = ", ".join(d.title_name for d in dirty)
+        message = f"{names} {'have' if len(dirty) > 1 else 'has'} unsaved edits."
+        save = "save every panel, then quit" if several else "save, then quit"
         self.push_screen(
             ChoiceScreen(
                 "Quit tri?",
-                f"{s.title_name} has unsaved edits.",
-                [("s", "save, then quit", "save"), ("d", "discard the edits and quit", "discard")],
+                message,
+                [("s", save, "save"), ("d", "discard the edits and quit", "discard")],
                 cancel=None,
             ),
             answer,

@@ -43,14 +43,18 @@ def power(value: float, unit: str) -> str:
 
 
 def load_text(circuit: Circuit) -> str:
-    """The load as the schedule gives it, with its unit."""
+    """The load as the schedule gives it, with its unit (``"feeder"`` for a feeder circuit)."""
+    if circuit.feed is not None:
+        return "feeder"
     if circuit.load_kind == "a":
         return f"{circuit.load_value:g} A"
     return power(circuit.load_value, "VA" if circuit.load_kind == "va" else "W")
 
 
 def pf_text(circuit: Circuit) -> str:
-    """``"0.95"`` (lagging) or ``"0.90ld"`` (leading); ``"1"`` for unity."""
+    """``"0.95"`` (lagging) or ``"0.90ld"`` (leading); ``"1"`` for unity; ``"-"`` for a feeder."""
+    if circuit.feed is not None:
+        return "-"
     if circuit.pf >= 0.9995:
         return "1"
     return f"{circuit.pf:.2f}" + ("ld" if circuit.leading else "")

@@ -157,6 +157,10 @@ def circuit_details(schedule: Schedule, index: int) -> str:
     else:
         parts.append(f"{c.poles}-pole, not placed")
     parts.append("no rating given" if c.breaker_a is None else f"{c.breaker_a:g} A breaker")
+    if c.feed is not None:
+        tx = c.feed.transformer
+        through = "" if tx is None else f" through a {tx.kva:g} kVA {tx.connection} transformer"
+        parts.append(f"feeds {c.feed.path}{through}")
     if c.continuous:
         parts.append("continuous (125 % for sizing)")
     if c.locked:

@@ -190,7 +190,10 @@ class CircuitActions:
     def _edit_whole(self, form_name: str, label: str) -> None:
         from tri.tui.screens import forms
 
-        form = getattr(forms, form_name)(self.schedule)
+        if form_name == "panel_form":  # a building's links depend on the panel's system
+            form = forms.panel_form(self.schedule, outside=self.app.edit_problem)
+        else:
+            form = getattr(forms, form_name)(self.schedule)
 
         def done(new: Schedule | None) -> None:
             if new is None:

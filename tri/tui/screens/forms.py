@@ -8,6 +8,7 @@ what a file may contain, with the same messages.
 
 from __future__ import annotations
 
+from collections.abc import Callable
 from dataclasses import replace
 from typing import Any
 
@@ -73,6 +74,8 @@ def _circuit_fields(schedule: Schedule, c: Circuit) -> list[Field]:
     profiles = [*BUILTIN_PROFILES, *(p.name for p in schedule.profiles)]
     if c.profile not in profiles:
         profiles.append(c.profile)
+    if c.feed is not None:
+        return _feeder_fields(c, place)
     return [
         Field("name", "Name", c.name, hint="purpose, as in the panel directory"),
         place,
@@ -101,6 +104,46 @@ def _circuit_fields(schedule: Schedule, c: Circuit) -> list[Field]:
     ]
 
 
+def _feeder_fields(c: Circuit, place: Field) -> list[Field]:
+    """A feeder circuit's fields: its load is the panel it feeds, so only these are edited."""
+    return [
+        Field("name", "Name", c.name, hint="purpose, as in the panel directory"),
+        place,
+        Field("feeds", "Feeds", c.feed.path if c.feed else "", disabled=True),
+        Field("continuous", "Continuous", c.continuous, kind="bool"),
+        Field("locked", "Locked", c.locked, kind="bool"),
+        Field("breaker_a", "Breaker A", _num_text(c.breaker_a), hint="rating, optional"),
+        Field("note", "Note", c.note, hint="optional"),
+    ]
+
+
+def _circuit_raw(values: Values, c: Circuit, slots: bool) -> tuple[dict[str, Any], dict[str, str]]:
+    """The circuit table the form's values make, as a file would hold it (or a problem)."""
+    raw: dict[str, Any] = {"name": values["name"]}
+    if slots:
+        _put(raw, "slot", values["slot"])
+    elif values["phases"].strip():
+        raw["phases"] = values["phases"].strip()
+    if c.feed is not None:
+        raw["feeds"] = c.feed.path  # its load is the panel it feeds; poles stay 3
+        raw["poles"] = c.poles
+    else:
+        raw["poles"] = int(values["poles"])
+        load = parse_number(values["load"])
+        if load is None:
+            return raw, {"load": "missing; type the load as a number (unit below)"}
+        raw[f"load_{values['unit']}"] = load
+        _put(raw, "pf", values["pf"])
+        raw["leading"] = bool(values["leading"])
+        raw["profile"] = values["profile"]
+    raw["continuous"] = bool(values["continuous"])
+    raw["locked"] = bool(values["locked"])
+    _put(raw, "breaker_a", values["breaker_a"])
+    if values["note"].strip():
+        raw["note"] = values["note"].strip()
+    return raw, {}
+
+
 def circuit_form(schedule: Schedule, index: int | None, base: Circuit | None = None) -> FormScreen:
     """Edit circuit ``index`` (``None``: a new circuit, prefilled from ``base``)."""
     panel = schedule.panel
@@ -112,24 +155,9 @@ def circuit_form(schedule: Schedule, index: int | None, base: Circuit | None = N
     keys = {f.key for f in fields}
 
     def validate(values: Values) -> tuple[Circuit | None, dict[str, str]]:
-        raw: dict[str, Any] = {"name": values["name"]}
-        if slots:
-            _put(raw, "slot", values["slot"])
-        elif values["phases"].strip():
-            raw["phases"] = values["phases"].strip()
-        raw["poles"] = int(values["poles"])
-        load = parse_number(values["load"])
-        if load is None:
-            return None, {"load": "missing; type the load as a number (unit below)"}
-        raw[f"load_{values['unit']}"] = load
-        _put(raw, "pf", values["pf"])
-        raw["leading"] = bool(values["leading"])
-        raw["profile"] = values["profile"]
-        raw["continuous"] = bool(values["continuous"])
-        raw["locked"] = bool(values["locked"])
-        _put(raw, "breaker_a", values["breaker_a"])
-        if values["note"].strip():
-            raw["note"] = values["note"].strip()
+        raw, missing = _circuit_raw(values, c, slots)
+        if missing:
+            return None, missing
         reader = Reader(None, None)
         parsed = read_circuit(reader, raw, position, panel)
         problems = _issues_by_key(reader)
@@ -209,8 +237,15 @@ def move_form(schedule: Schedule, index: int) -> FormScreen:
 # ---------------------------------------------------------------- panel
 
 
-def panel_form(schedule: Schedule) -> FormScreen:
-    """Edit the ``[panel]`` table (the layout is shown but fixed)."""
+def panel_form(
+    schedule: Schedule, outside: Callable[[Schedule], str | None] | None = None
+) -> FormScreen:
+    """Edit the ``[panel]`` table (the layout is shown but fixed).
+
+    ``outside`` says what the edited schedule would break beyond itself (a
+    building's links: a child's system against its transformer's
+    secondary), or ``None``; its words are shown like any other problem.
+    """
     p = schedule.panel
     fields = [
         Field("name", "Panel name", p.name),
@@ -246,6 +281,9 @@ def panel_form(schedule: Schedule) -> FormScreen:
             key = "spaces" if first.key == "slot" else ("system" if first.key == "poles" else "")
             more = f" (and {plural(len(issues) - 1, 'other problem')})" if len(issues) > 1 else ""
             problems[key] = issue_words(first, candidate) + more
+        beyond = outside(candidate) if outside is not None and not problems else None
+        if beyond:
+            problems["system"] = beyond
         return (None if problems else candidate), problems
 
     return FormScreen("Panel", fields, validate)

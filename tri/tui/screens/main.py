@@ -62,6 +62,7 @@ KEY_WORDS = {
     "supply": "edit the supply (transformer and feeder)",
     "readings": "edit the site readings",
     "findings": "findings, checks (as tri check) and the full report",
+    "building": "the building's tree: move to another panel (buildings only)",
     "log": "the log view: current over time, demand, duration (schedules with [log])",
     "scenario": "the case the figures show: connected load or a use scenario",
     "app.save": "save (comments kept, previous file kept as .bak)",
@@ -94,6 +95,7 @@ class MainScreen(CircuitActions, Screen[None]):
         Binding("s", "supply", "Supply", show=False, id="main.supply"),
         Binding("i", "readings", "Readings", show=False, id="main.readings"),
         Binding("f", "findings", "Findings", show=False, id="main.findings"),
+        Binding("T", "building", "Tree", id="main.building"),
         Binding("d", "log", "Log", id="main.log"),
         Binding("n", "scenario", "Case", id="main.scenario"),
         Binding("ctrl+s", "app.save", "Save", id="main.save"),
@@ -124,7 +126,11 @@ class MainScreen(CircuitActions, Screen[None]):
         self.view = "panel" if recent.load_settings().get("view") == "panel" else "list"
         self._show_view()
         self.refresh_view()
-        if not self.app.session.schedule.circuits:
+        app: Any = self.app
+        opening, app.opening_status = app.opening_status, None
+        if opening:
+            self.set_status(opening)
+        elif not app.session.schedule.circuits:
             self.set_status("No circuits yet: press a to add one, ? for every key.")
         else:
             self.set_status("? lists every key. Tab: list or panel view. Enter edits.")
@@ -145,7 +151,14 @@ class MainScreen(CircuitActions, Screen[None]):
         mark = "● modified" if session.dirty else "saved"
         main = f"main {p.main_a:g} A" if p.main_a else "main lugs"
         right = f"│ {session.title_name} · {mark} "
-        left = f" {p.name} · {p.system} · {p.spaces} spaces · bus {p.bus_a:g} A · {main} "
+        name = p.name
+        building = app.building
+        if building is not None:
+            name = building.path_words(building.current)
+            others = len([i for i in building.dirty() if i != building.current])
+            if others:
+                right = f"│ {session.title_name} · {mark} (+{others} panel{'s' * (others > 1)}) "
+        left = f" {name} · {p.system} · {p.spaces} spaces · bus {p.bus_a:g} A · {main} "
         room = max(self.size.width - len(right), 10)
         if len(left) > room:
             left = left[: room - 2] + "… "
@@ -172,6 +185,9 @@ class MainScreen(CircuitActions, Screen[None]):
             self.query_one(PanelView).show(schedule, analysis, keep_index)
         results = self.query_one(ResultsPanel)
         results.border_title = self._results_title()
+        # Keys of buildings, logs and scenarios join the footer: keep it on one line.
+        extra = app.building is not None, schedule.log is not None, len(app.cases) > 1
+        self.query_one(Footer).compact = sum(extra) > 0
         self.refresh_bindings()
         if app.analysis is None:
             results.show(None, app.analysis_error or "Analysing…")
@@ -180,6 +196,14 @@ class MainScreen(CircuitActions, Screen[None]):
 
     def _results_title(self) -> str:
         app: Any = self.app
+        b = app.building
+        if b is not None:
+            feeds = any(p.parent == b.current for p in b.tree.panels)
+            parent = b.parent(b.current)
+            words = ["everything it feeds included"] if feeds else []
+            if parent is not None:
+                words.append(f"fed from {b.sessions[parent].schedule.panel.name}")
+            return "Results · " + ", ".join(words) + " (T: the tree)"
         if len(app.cases) < 2:
             return "Results"
         case = app.scenario_shown
@@ -232,6 +256,11 @@ class MainScreen(CircuitActions, Screen[None]):
 
     def _apply(self, new: Schedule, label: str, keep: int | None = None) -> None:
         app: Any = self.app
+        problem = app.edit_problem(new)
+        if problem is not None:
+            self.app.bell()
+            self.set_status(f"Not done: {problem}", error=True)
+            return
         app.session.apply(new, label)
         app.schedule_changed(f"{label}. u undoes.")
         if keep is not None:
@@ -246,6 +275,8 @@ class MainScreen(CircuitActions, Screen[None]):
             return app.session is not None and app.session.schedule.log is not None
         if action == "scenario":
             return len(app.cases) > 1
+        if action == "building":
+            return app.building is not None
         return not (action == "cancel_pick" and self.picking is None)
 
     # ------------------------------------------------------------ cursor and status line
@@ -409,6 +440,22 @@ class MainScreen(CircuitActions, Screen[None]):
                 app.analysis, app.session.schedule, app.session.title_name, self.app.size.width
             )
         )
+
+    def panel_changed(self) -> None:
+        """Another panel of the building is shown: the cursor starts at its top."""
+        if self.picking is not None:
+            self._end_pick()
+        self.refresh_view(keep_index=0)
+
+    def action_building(self) -> None:
+        """T: the building's tree (buildings only)."""
+        from tri.tui.screens.building_tree import BuildingScreen
+
+        app: Any = self.app
+        if app.building is None:
+            self.set_status("This panel feeds no other panel; open the top panel to see a tree.")
+            return
+        self.app.push_screen(BuildingScreen())
 
     def action_log(self) -> None:
         """d: the log view (current over time, demand, duration, the report's figures)."""

@@ -180,7 +180,9 @@ class CircuitTable(DataTable[Any]):
             "phases": phases,
             "load": fmt.load_text(c),
             "pf": fmt.pf_text(c),
-            "profile": fmt.shorten(c.profile, self._width("profile")),
+            "profile": fmt.shorten(
+                c.profile if c.feed is None else "→" + c.feed.path, self._width("profile")
+            ),
             "amps": amps,
             "breaker": fmt.breaker_text(c),
             "cont": "yes" if c.continuous else "",
