@@ -64,6 +64,23 @@ def write_minute_log(path: Path, rows: int) -> None:
     path.write_text("Time,IA,IB,IC\n" + "\n".join(lines) + "\n", encoding="utf-8")
 
 
+def write_offset_log(path: Path, rows: int) -> None:
+    """``rows`` one-minute rows whose UTC offset changes halfway (a clock going back an hour).
+
+    Times with offsets that change within a log are the slow case of the
+    reader (pandas makes Python objects of them), the one a big log is read
+    in a child process for.
+    """
+    k = np.arange(rows)
+    utc = np.datetime64("2024-11-01T00:00") + k.astype("timedelta64[m]")
+    later = k >= rows // 2
+    local = utc - np.where(later, 6, 5).astype("timedelta64[h]")
+    text = np.char.add(np.datetime_as_string(local, unit="m"), np.where(later, "-06:00", "-05:00"))
+    amps = 20.0 + (k % 97) / 4.0
+    lines = [f"{t},{a:.2f},{a * 0.8:.2f},{a * 0.6:.2f}" for t, a in zip(text, amps, strict=True)]
+    path.write_text("Time,IA,IB,IC\n" + "\n".join(lines) + "\n", encoding="utf-8")
+
+
 async def open_log(pilot) -> LogScreen:
     await settle(pilot)
     await pilot.press("d")
@@ -182,6 +199,48 @@ async def test_a_long_read_is_cancelled_with_escape(tmp_path: Path, monkeypatch)
         assert screen.logged is not None and screen.logged.rows == 100_000
         # One row a minute, none missing [computed]: 100 000 one-minute intervals.
         assert screen.figures.n_intervals == 100_000
+
+
+async def test_a_big_log_is_read_in_a_child_process_and_cancelled_at_once(
+    tmp_path: Path, monkeypatch
+) -> None:
+    import multiprocessing
+
+    import tri.tui.log_reader as log_reader
+
+    monkeypatch.setattr(log_reader, "PROCESS_ABOVE_BYTES", 1_000)  # this file is "big"
+    write_offset_log(tmp_path / "big.csv", 200_000)
+    schedule = tmp_path / "logged.toml"
+    schedule.write_text(SCHEDULE_WITH_LOG.format(file="big.csv"), encoding="utf-8")
+    app = TriApp(schedule, journal=False)
+    async with app.run_test(size=(80, 24)) as pilot:
+        await settle(pilot)
+        await pilot.press("d")
+        await pilot.pause(0.3)  # the child is starting or reading (it takes seconds)
+        screen = app.screen
+        assert isinstance(screen, LogScreen) and screen.reading
+        await pilot.press("escape")
+        assert not screen.reading
+        await settle(pilot)
+        assert multiprocessing.active_children() == [], "cancelling ends the child at once"
+        assert screen.logged is None
+        # Read it to the end: the figures come back through the pipe unchanged.
+        await pilot.press("r")
+        await settle(pilot)
+        assert screen.logged is not None and screen.logged.rows == 200_000
+        assert screen.figures.n_intervals == 200_000  # one-minute rows, none missing [computed]
+        assert "UTC-05:00" in screen.data["log"]["zone"]
+
+
+async def test_the_child_process_gives_the_reports_figures(garage: Path, monkeypatch) -> None:
+    import tri.tui.log_reader as log_reader
+
+    monkeypatch.setattr(log_reader, "PROCESS_ABOVE_BYTES", 0)
+    report = build_all(str(garage), iterate=False)[0]
+    app = TriApp(garage, journal=False)
+    async with app.run_test(size=(80, 24)) as pilot:
+        screen = await open_log(pilot)
+        assert screen.data["log"] == report["log"]
 
 
 async def test_a_log_that_cannot_be_read_says_where(tmp_path: Path) -> None:

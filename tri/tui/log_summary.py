@@ -17,12 +17,12 @@ from rich.text import Text
 from tri.tui.wording import plural
 
 
-def _clock(text: str | None) -> str:
-    """``"2024-05-10 21:55-05:00"`` shown as ``"05-10 21:55"`` (date and time, no year or zone)."""
+def _clock(text: str | None, year: bool = False) -> str:
+    """``"2024-05-10 21:55-05:00"`` shown as ``"05-10 21:55"`` (no zone; the year when asked)."""
     if not text:
         return "-"
     date, _, time = text.partition(" ")
-    return f"{date[5:]} {time[:5]}"
+    return f"{date if year else date[5:]} {time[:5]}"
 
 
 def demand_lines(g: dict[str, Any], labels: list[str], width: int = 78) -> list[Text]:
@@ -31,6 +31,7 @@ def demand_lines(g: dict[str, Any], labels: list[str], width: int = 78) -> list[
     As many channels on a line as ``width`` [cells] holds (two at 80 columns).
     """
     dm = g["demand"]
+    year = g["span_days"] > 300
     head = f"Demand {dm['minutes']:g} min {dm['window']}: "
     items = []
     channels = [(lab, dm["phases"][lab]) for lab in labels]
@@ -43,7 +44,7 @@ def demand_lines(g: dict[str, Any], labels: list[str], width: int = 78) -> list[
             t.append(" no complete window")
         else:
             load = f" {ch['loading_pct']:.0f} %" if ch["loading_pct"] is not None else ""
-            t.append(f" {ch['a']:.1f} A{load} {_clock(ch['start'])}")
+            t.append(f" {ch['a']:.1f} A{load} {_clock(ch['start'], year)}")
         items.append(t)
     per = max(2, (width - len(head)) // (max(i.cell_len for i in items) + 3))
     lines = []

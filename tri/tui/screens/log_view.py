@@ -1,8 +1,9 @@
 """The log view: current over time, hours above each current, and the report's figures.
 
-The schedule's ``[log]`` file is read in a worker thread by the file layer's
-own reader (:func:`tri.schedule.log_file.read_log`) with a progress bar; Esc
-cancels (a million rows take seconds). Its figures are the engine's
+The schedule's ``[log]`` file is read away from the screen by the file layer's
+own reader (:func:`tri.schedule.log_file.read_log`; a big file in a child
+process, :mod:`tri.tui.log_reader`) with a progress bar; Esc cancels (a
+million rows take seconds). Its figures are the engine's
 (:func:`tri.report.over_time_data.analyse_logged`) and the report's
 (:func:`tri.tui.compute.log_report`), never recomputed here. Three views
 (Tab): current over time (← → move the cursor, + − zoom, PgUp PgDn scroll,
@@ -31,6 +32,7 @@ from tri.engine.over_time import envelope
 from tri.schedule.errors import ScheduleError
 from tri.tui import compute
 from tri.tui.log_plot import Plot, Window, column_range, duration_picture, legend, time_picture
+from tri.tui.log_reader import LogCancelled, read_and_analyse
 from tri.tui.log_summary import facts_line, summary_lines
 from tri.tui.messages import LogProgress, LogRead
 from tri.tui.wording import issue_text, plural
@@ -50,10 +52,6 @@ time, NEC 220.87 capacity with its 'not a basis' wording, log against
 schedule). Every figure comes from the same functions as tri report."""
 
 VIEWS = ("current", "duration", "figures")
-
-
-class LogCancelled(Exception):
-    """The user cancelled reading the log."""
 
 
 class LogChart(Static):
@@ -189,25 +187,18 @@ class LogScreen(Screen[None]):
 
     @work(thread=True, exclusive=True, group="log", exit_on_error=False)
     def _read(self, spec: Any, base: Any, key: Any, token: int, cancel: threading.Event) -> None:
-        from tri.report.over_time_data import analyse_logged
-        from tri.schedule.log_file import read_log
-
         last = [0.0]
 
         def progress(fraction: float, what: str) -> None:
-            if cancel.is_set():
-                raise LogCancelled
             now = time.perf_counter()
             if now - last[0] >= 0.1 or fraction >= 1.0:
                 last[0] = now
                 self._post(LogProgress(fraction, what))
 
         try:
-            log = read_log(spec, base, progress=progress)
-            progress(1.0, "working out demand, percentiles and durations")
-            figures = analyse_logged(log, spec)
+            log, figures = read_and_analyse(spec, base, progress, cancel)
             message = LogRead(log, figures, [])
-            message.key, message.token = key, token  # type: ignore[attr-defined]
+            message.key = key  # type: ignore[attr-defined]
         except LogCancelled:
             message = LogRead(None, None, [], cancelled=True)
         except ScheduleError as exc:
@@ -342,8 +333,15 @@ class LogScreen(Screen[None]):
             plot,
             rating_a=rating,
             peaks=peaks,
-            time_label=lambda i: self.logged.time_at(i).strftime("%a %m-%d %H:%M"),
+            time_label=lambda i: self.logged.time_at(i).strftime(self._clock_format()),
         )
+
+    def _clock_format(self) -> str:
+        """Times on the axis: with the year when the log spans most of one."""
+        days = self.window.length * self.logged.interval_s / 86400.0
+        if self.figures.span_days > 300:
+            return "%Y-%m-%d" if days > 3 else "%Y-%m-%d %H:%M"
+        return "%a %m-%d %H:%M" if days > 1 else "%a %H:%M"
 
     def _draw_duration(self, plot: Plot) -> list[Text]:
         if self.data is None:
@@ -375,7 +373,11 @@ class LogScreen(Screen[None]):
     def _cursor_words(self, plot: Plot) -> Text:
         first, last = column_range(self.window, plot.plot_cols, self.cursor)
         env = envelope(self.stack[:, first:last], 1)
-        t = Text(self.logged.time_at(first).strftime("%a %m-%d %H:%M"), style="bold")
+        long = self.figures.span_days > 300
+        t = Text(
+            self.logged.time_at(first).strftime("%Y-%m-%d %H:%M" if long else "%a %m-%d %H:%M"),
+            style="bold",
+        )
         for k, name in enumerate(plot.names):
             value = env.mean[k, 0] if env.mean.shape[-1] else float("nan")
             if np.isfinite(value):
