@@ -6,6 +6,14 @@
    the schedule (x deletes the circuit under the cursor, u undoes it), then wait
    until the engine's new figures are drawn, in the list and in the panel view
    (Tab). Target: under 50 ms per edit.
+3. A building: an edit in a child panel to the top panel's figures updated
+   (the whole tree re-analysed), on the demo brewery (4 panels) and on a
+   generated campus of 111 panels (a top panel feeding 10 panels that feed
+   10 each, 12 circuits per leaf).
+4. The log view: from the key to the picture of the demo garage's week of
+   5-minute data (read in a thread), and of 200 000 one-minute rows whose UTC
+   offset changes halfway (read in a child process; the slow parse of such
+   times is the file layer's).
 
 Run: ``.venv/bin/python bench/bench_tui.py`` (``--quick`` for CI: fewer repeats).
 """
@@ -98,6 +106,109 @@ async def measure(path: Path, edits: int, view: str = "list") -> dict[str, float
     return out
 
 
+async def edit_child(root: Path, edits: int) -> list[float]:
+    """Milliseconds from a key in the first leaf panel to the top panel's new figures."""
+    from textual import events
+
+    from tri.tui.app import TriApp
+
+    app = TriApp(root, journal=False, theme="textual-dark")
+    async with app.run_test(size=(80, 24)) as pilot:
+        while app.tree_result is None:
+            await pilot.pause(0)
+        leaf = len(app.building.sessions) - 1
+        app.switch_panel(leaf)
+        await pilot.pause()
+        while not app.analysis_current:
+            await pilot.pause(0)
+        times = []
+        for k in range(edits):
+            key = "x" if k % 2 == 0 else "u"
+            before = app.tree_result
+            t = time.perf_counter()
+            event = events.Key(key, key)
+            event.set_sender(app)
+            app._driver.send_message(event)
+            while app.tree_result is before or not app.analysis_current:
+                await asyncio.sleep(0.0005)
+            times.append((time.perf_counter() - t) * 1000)
+            await pilot.pause()
+    return times
+
+
+def write_campus(folder: Path) -> Path:
+    """A top panel feeding 10 panels that feed 10 panels each (111 schedules)."""
+
+    def panel(name: str, spaces: int, body: str) -> str:
+        return (
+            f'format = 1\n\n[panel]\nname = "{name}"\nsystem = "208Y/120"\n'
+            f"spaces = {spaces}\nbus_a = 2000\n\n{body}"
+        )
+
+    def feeder(slot: int, child: str) -> str:
+        return f'[[circuit]]\nslot = {slot}\nname = "Feeder {child}"\nfeeds = "{child}"\n\n'
+
+    def load(slot: int, va: int) -> str:
+        return f'[[circuit]]\nslot = {slot}\nname = "Load {slot}"\nload_va = {va}\n\n'
+
+    top = ""
+    for i in range(10):
+        mid = ""
+        for j in range(10):
+            leaf = f"leaf_{i}_{j}.toml"
+            body = "".join(load(s, 300 + 97 * ((i + j + s) % 13)) for s in range(1, 13))
+            (folder / leaf).write_text(panel(f"Leaf {i}.{j}", 12, body))
+            mid += feeder(1 + 6 * j, leaf)
+        (folder / f"mid_{i}.toml").write_text(panel(f"Panel {i}", 60, mid))
+        top += feeder(1 + 6 * i, f"mid_{i}.toml")
+    (folder / "top.toml").write_text(panel("Campus", 60, top))
+    return folder / "top.toml"
+
+
+async def open_log(path: Path) -> float:
+    """Milliseconds from d to the log view's picture of ``path``'s log."""
+    from tri.tui.app import TriApp
+    from tri.tui.screens.log_view import LogScreen
+
+    app = TriApp(path, journal=False, theme="textual-dark")
+    async with app.run_test(size=(80, 24)) as pilot:
+        while not app.analysis_current:
+            await pilot.pause(0)
+        t = time.perf_counter()
+        await pilot.press("d")
+        screen = app.screen
+        assert isinstance(screen, LogScreen)
+        while screen.reading or screen.data is None:
+            await pilot.pause(0.005)
+        return (time.perf_counter() - t) * 1000
+
+
+def log_cases(folder: Path) -> list[tuple[str, Path]]:
+    """The demo garage, and a schedule over 200 000 rows with a change of offset."""
+    import numpy as np
+
+    demo = Path(__file__).parents[1] / "panels_demo" / "garage_logged_208.toml"
+    rows = 200_000
+    k = np.arange(rows)
+    utc = np.datetime64("2024-11-01T00:00") + k.astype("timedelta64[m]")
+    later = k >= rows // 2
+    local = utc - np.where(later, 6, 5).astype("timedelta64[h]")
+    text = np.char.add(np.datetime_as_string(local, unit="m"), np.where(later, "-06:00", "-05:00"))
+    amps = 20.0 + (k % 97) / 4.0
+    lines = [f"{t},{a:.2f},{a * 0.8:.2f},{a * 0.6:.2f}" for t, a in zip(text, amps, strict=True)]
+    (folder / "rows.csv").write_text("Time,IA,IB,IC\n" + "\n".join(lines) + "\n")
+    (folder / "rows.toml").write_text(
+        'format = 1\n\n[panel]\nname = "Logged"\nsystem = "208Y/120"\nspaces = 12\n'
+        'bus_a = 100\n\n[log]\nfile = "rows.csv"\ntime = "Time"\n'
+        'amps = { A = "IA", B = "IB", C = "IC" }\n\n[[circuit]]\nslot = 1\n'
+        'name = "Lights"\nload_va = 1200\n'
+    )
+    return [
+        ("garage week, 2016 rows", demo),
+        ("200 000 rows, offset changes", folder / "rows.toml"),
+    ]
+
+
 def main(argv: list[str] | None = None) -> int:
     parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     parser.add_argument("--quick", action="store_true", help="few repeats (CI)")
@@ -133,6 +244,18 @@ def main(argv: list[str] | None = None) -> int:
     print(f"{'same on the panel view (Tab), median':<44}{statistics.median(panel_edit):>10.1f}")
     print(f"{'UI time over the engine alone (median ratio)':<44}{median / engine_ms:>9.1f}x")
     print(f"edits measured: {len(edit)}; target < 50 ms per edit")
+    brewery = Path(__file__).parents[1] / "panels_demo" / "brewery" / "mdp_480.toml"
+    with tempfile.TemporaryDirectory() as tmp:
+        os.environ["XDG_STATE_HOME"] = str(Path(tmp) / "state")
+        campus = write_campus(Path(tmp))
+        print(f"\n{'building: child edit to the top panel updated':<44}{'median ms':>10}")
+        for name, root in (("brewery, 4 panels", brewery), ("campus, 111 panels", campus)):
+            times = asyncio.run(edit_child(root, edits))
+            print(f"{'  ' + name:<44}{statistics.median(times):>10.1f}")
+        print(f"\n{'log view: key to picture':<44}{'ms':>10}")
+        for name, path in log_cases(Path(tmp)):
+            runs = [asyncio.run(open_log(path)) for _ in range(1 if args.quick else 3)]
+            print(f"{'  ' + name:<44}{statistics.median(runs):>10.1f}")
     return 0
 
 
