@@ -10,6 +10,7 @@ is fixed. Regenerate with ``pytest tests/test_tui_snapshot_log.py
 
 from __future__ import annotations
 
+import shutil
 from pathlib import Path
 
 import pytest
@@ -71,3 +72,16 @@ def test_scenario_question(snap_compare, size) -> None:
 @sizes
 def test_main_view_in_the_evening_scenario(snap_compare, size) -> None:
     assert snap_compare(garage(), terminal_size=size, run_before=keys("n", "2"))
+
+
+@sizes
+def test_log_that_cannot_be_read(snap_compare, size, tmp_path) -> None:
+    # A cell that is not a number: the reader's located problem, by file and line.
+    shutil.copy(DEMO, tmp_path / DEMO.name)
+    rows = (DEMO.parent / "garage_logged_week.csv").read_text().splitlines()
+    cells = rows[5].split(",")
+    cells[2] = "4o.7"  # a letter o typed for a zero, on line 6
+    rows[5] = ",".join(cells)
+    (tmp_path / "garage_logged_week.csv").write_text("\n".join(rows) + "\n")
+    app = TriApp(tmp_path / DEMO.name, journal=False, theme="textual-dark")
+    assert snap_compare(app, terminal_size=size, run_before=keys("d"))

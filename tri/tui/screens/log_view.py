@@ -202,7 +202,10 @@ class LogScreen(Screen[None]):
         except LogCancelled:
             message = LogRead(None, None, [], cancelled=True)
         except ScheduleError as exc:
-            message = LogRead(None, None, [issue_text(i, spec.file) for i in exc.issues])
+            # The log as the schedule names it, never the full path it was read from.
+            full = str(Path(base or ".") / spec.file)
+            words = [issue_text(i, spec.file).replace(full, spec.file) for i in exc.issues]
+            message = LogRead(None, None, words)
         except Exception as exc:  # a message on screen, never a traceback
             message = LogRead(None, None, [f"{spec.file}: the log could not be read: {exc}"])
         if cancel.is_set():
@@ -398,7 +401,8 @@ class LogScreen(Screen[None]):
         summary = self.query_one("#log-summary", Static)
         body = self.query_one("#log-figures-body", Static)
         if self.data is None:
-            summary.update(Text("\n".join(self.problems)))
+            hint = "Correct the log file (or [log] in the schedule), then r reads it again."
+            summary.update(Text(hint if self.problems else ""))
             body.update(Text("\n".join(self.problems)))
             return
         width = max(self.size.width - 2, 40)
