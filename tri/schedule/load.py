@@ -30,10 +30,11 @@ from tri.schedule.read_panel import read_panel
 from tri.schedule.read_profiles import read_profiles
 from tri.schedule.read_readings import read_readings
 from tri.schedule.read_supply import read_supply
+from tri.schedule.read_wiring import read_rcds
 from tri.schedule.reader import MISSING, Reader, found, is_kind, suggest
 from tri.schedule.validate import check_schedule, circuit_where
 
-TOP_KEYS = ("format", "panel", "supply", "readings", "profiles", "circuit")
+TOP_KEYS = ("format", "panel", "supply", "readings", "profiles", "rcd", "circuit")
 
 
 @dataclass(frozen=True, eq=False)
@@ -146,6 +147,7 @@ def build_schedule(
     supply = read_supply(r, data)
     readings = read_readings(r, data, panel)
     profiles = read_profiles(r, data)
+    rcds = read_rcds(r, data, panel)
     circuits: list[Circuit] = []
     for index, raw in enumerate(_raw_circuits(r, data)):
         c = read_circuit(r, raw, index, panel, stand_in=True)
@@ -158,6 +160,7 @@ def build_schedule(
             supply=supply,
             readings=readings,
             profiles=profiles or (),
+            rcds=rcds,
         )
         for issue in check_schedule(model):
             i = issue.circuit_index

@@ -6,6 +6,10 @@ the rows cycle A, B, C from the top (slots 1-2 on A, 3-4 on B, 5-6 on C,
 7-8 on A ...). A 2-pole breaker in slot ``n`` also takes slot ``n + 2`` (the
 next row of the same column), a 3-pole also ``n + 4`` [common practice].
 
+Some panelboards read C-B-A down the right column (``[panel] right_column
+= "CBA"``): the even slots then cycle C, B, A from the top while the odd
+slots still cycle A, B, C.
+
 Rail-mounted boards (layout ``"phases"``) have no slot geometry: each
 circuit names its phases.
 """
@@ -17,6 +21,10 @@ from collections.abc import Iterable
 TWO_COLUMN = "two-column"
 PHASES = "phases"
 LAYOUTS = (TWO_COLUMN, PHASES)
+#: Phase orders the right (even) column may read from the top.
+RIGHT_ABC = "ABC"
+RIGHT_CBA = "CBA"
+RIGHT_COLUMN_ORDERS = (RIGHT_ABC, RIGHT_CBA)
 
 
 def slot_row(slot: int) -> int:
@@ -24,9 +32,13 @@ def slot_row(slot: int) -> int:
     return (slot + 1) // 2
 
 
-def slot_phase(slot: int) -> int:
-    """Phase index 0..2 (A, B, C) of a slot in a two-column panel."""
-    return (slot_row(slot) - 1) % 3
+def slot_phase(slot: int, right_column: str = RIGHT_ABC) -> int:
+    """Phase index 0..2 (A, B, C) of a slot in a two-column panel.
+
+    With ``right_column = "CBA"`` the even slots read C, B, A from the top.
+    """
+    k = (slot_row(slot) - 1) % 3
+    return 2 - k if right_column == RIGHT_CBA and slot % 2 == 0 else k
 
 
 def slot_column(slot: int) -> str:
@@ -39,15 +51,21 @@ def occupied_slots(slot: int, poles: int) -> tuple[int, ...]:
     return tuple(slot + 2 * k for k in range(poles))
 
 
-def slot_phases(slot: int, poles: int) -> tuple[int, ...]:
+def slot_phases(slot: int, poles: int, right_column: str = RIGHT_ABC) -> tuple[int, ...]:
     """Phase indices a breaker in ``slot`` connects to, in pole order.
 
     A 3-pole breaker is reported as ``(0, 1, 2)`` whatever slot it starts in,
-    since it takes one pole on each phase.
+    since it takes one pole on each phase (:func:`pole_phases` gives the
+    order of its poles).
     """
     if poles >= 3:
         return (0, 1, 2)
-    return tuple(slot_phase(s) for s in occupied_slots(slot, poles))
+    return pole_phases(slot, poles, right_column)
+
+
+def pole_phases(slot: int, poles: int, right_column: str = RIGHT_ABC) -> tuple[int, ...]:
+    """Phase index of each pole of a breaker in ``slot``, first pole first (3-pole too)."""
+    return tuple(slot_phase(s, right_column) for s in occupied_slots(slot, poles))
 
 
 def fits(slot: int, poles: int, spaces: int) -> bool:
