@@ -255,3 +255,70 @@ rcd = "R2"
 
 def test_circuit_defaults_compare_equal() -> None:
     assert Circuit(name="a") == Circuit(name="a", neutral=False, spare=False)
+
+
+# --------------------------------------------------------------------------
+# saving the new keys, comments kept
+# --------------------------------------------------------------------------
+def test_unchanged_wiring_file_saves_byte_identical(tmp_path: Path) -> None:
+    from tri.schedule.save import save_schedule
+
+    for path in sorted(GOOD.glob("*.toml")):
+        loaded = load_schedule(path)
+        out = tmp_path / path.name
+        save_schedule(out, loaded.schedule, loaded.document)
+        assert out.read_text() == path.read_text(), path.name
+
+
+def test_edits_of_the_new_keys_round_trip_with_comments(tmp_path: Path) -> None:
+    from dataclasses import replace
+
+    from tri.schedule.save import save_schedule
+
+    path = GOOD / "mwbc_208.toml"
+    loaded = load_schedule(path)
+    s = loaded.schedule
+    c = list(s.circuits)
+    c[0] = replace(c[0], leg_values=(1500.0, 900.0), load_value=2400.0)
+    c[6] = replace(c[6], handle_tied=True)  # Copier joins its partner's handle tie
+    c[4] = replace(c[4], spare=False, load_value=300.0, name="Was spare")
+    edited = replace(
+        s,
+        circuits=tuple(c),
+        panel=replace(s.panel, fed_from="MDP-2, circuit 3", max_row_shift=2),
+    )
+    out = tmp_path / "out.toml"
+    save_schedule(out, edited, loaded.document)
+    text = out.read_text()
+    for line in path.read_text().splitlines():
+        if "#" in line:
+            assert line.split("#", 1)[1] in text, line
+    assert "load_va = [1500, 900]" in text
+    assert 'fed_from = "MDP-2, circuit 3"' in text and "max_row_shift = 2" in text
+    again = load_schedule(out).schedule
+    assert again == edited
+
+
+def test_high_leg_c_right_column_and_rcds_are_written(tmp_path: Path) -> None:
+    from dataclasses import replace
+
+    from tri.schedule.model import Rcd
+    from tri.schedule.save import save_schedule, schedule_text
+
+    s = parse_schedule(_panel(system="240/120D")).schedule
+    s = replace(s, panel=replace(s.panel, high_leg=2, right_column="CBA"))
+    text = schedule_text(s)
+    assert 'high_leg = "C"' in text and 'right_column = "CBA"' in text
+    assert parse_schedule(text).schedule == s
+    # the default high leg B is not written
+    assert "high_leg" not in schedule_text(replace(s, panel=replace(s.panel, high_leg=1)))
+
+    rail = parse_schedule(
+        'format = 1\n[panel]\nname = "R"\nsystem = "400Y/230"\nspaces = 6\nbus_a = 63\n'
+        'layout = "phases"\n'
+    ).schedule
+    rail = replace(rail, rcds=(Rcd("R1", 2, 0), Rcd("R2", 4, None)))
+    rail = rail.with_added(Circuit("Sockets", phases=(0,), load_value=900.0, rcd="R1"))
+    out = tmp_path / "rail.toml"
+    save_schedule(out, rail)
+    assert load_schedule(out).schedule == rail
