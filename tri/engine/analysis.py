@@ -28,6 +28,7 @@ import math
 import numpy as np
 
 from tri.engine.harmonics import order_currents, rms, thd_pct
+from tri.engine.high_leg import high_leg_caution, supply_phase_voltages
 from tri.engine.inputs import (
     LINE_TO_LINE,
     LINE_TO_NEUTRAL,
@@ -38,6 +39,12 @@ from tri.engine.inputs import (
     Ratings,
     SupplyImpedance,
     SystemVoltages,
+)
+from tri.engine.legs import (
+    breaker_results,
+    check_wiring_inputs,
+    shared_neutral_results,
+    wiring_spectra,
 )
 from tri.engine.loading import (
     FindingLimits,
@@ -50,7 +57,6 @@ from tri.engine.loading import (
 from tri.engine.phasors import (
     element_currents,
     line_voltages,
-    nominal_phase_voltages,
     schedule_va,
 )
 from tri.engine.readings import compare_readings
@@ -127,6 +133,7 @@ def check_inputs(circuits: CircuitArrays, system: SystemVoltages, ratings: Ratin
             raise ValueError(f"rating {name} must be > 0, got {value!r}")
     if not ratings.continuous_factor > 0:
         raise ValueError("continuous_factor must be > 0")
+    check_wiring_inputs(circuits, system)
 
 
 def _snap(x: np.ndarray, scale: np.ndarray, extra_dims: int) -> np.ndarray:
@@ -170,9 +177,14 @@ def analyse_batch(
         the panel analysed alone.
     """
     check_inputs(circuits, system, ratings)
+    if supply is not None and system.high_leg is not None:
+        raise ValueError(
+            "voltages at the panel are not modelled for a high-leg delta (the supply model is "
+            "a wye source)"
+        )
     batch = np.shape(circuits.s_va)[:-1]
     conn = np.asarray(circuits.connection)
-    e = nominal_phase_voltages(system.v_ln_or_derived)
+    e = supply_phase_voltages(system)
 
     sol = None
     if supply is not None:
@@ -227,6 +239,10 @@ def analyse_batch(
             "converged": sol.converged,
         }
 
+    wiring = {
+        k: _snap(v, scale, v.ndim - len(batch)) for k, v in wiring_spectra(circuits, i_e).items()
+    }
+
     return BatchAnalysis(
         orders=oc.orders,
         phase_va=schedule_va(circuits),
@@ -250,6 +266,7 @@ def analyse_batch(
         unplaced_count=np.sum((conn == UNPLACED) & (s_abs > 0), axis=-1),
         three_pole_triplens=tp_triplen,
         **volt,
+        **wiring,
     )
 
 
@@ -410,8 +427,12 @@ def analyse(
         circuit_rms_a=tuple(float(x) for x in b.circuit_rms_a),
         nonlinear_share_pct=_f(b.nonlinear_share_pct),
         unplaced_count=int(b.unplaced_count),
+        breakers=breaker_results(b),
+        shared_neutrals=shared_neutral_results(b),
     )
     findings = panel_findings(a, limits)
+    if system.high_leg is not None:
+        findings.append(high_leg_caution(labels[system.high_leg], system.v_ll))
     if bool(b.three_pole_triplens):
         findings.append(three_pole_triplen_finding())
     findings.extend(voltage_findings(a, limits))

@@ -315,6 +315,47 @@ class ReadingsComparison:
 
 
 @dataclass(frozen=True)
+class BreakerCurrents:
+    """Line currents one breaker carries (its legs summed), per phase in phase order.
+
+    Attributes
+    ----------
+    current : tuple of 3 Phasor
+        Fundamental line current on each phase [A, deg]; 0 on a phase the
+        breaker does not touch.
+    rms_a : tuple of 3 float
+        True-RMS line current on each phase [A].
+    """
+
+    current: tuple[Phasor, Phasor, Phasor]
+    rms_a: tuple[float, float, float]
+
+
+@dataclass(frozen=True)
+class SharedNeutralResult:
+    """Current in one neutral conductor shared by a group of legs.
+
+    Attributes
+    ----------
+    current : Phasor
+        Fundamental: the phasor sum of the legs' currents [A, deg].
+    rms_a : float
+        True RMS over every order [A].
+    harmonic_a : tuple of float
+        Magnitude at each order of ``PanelAnalysis.orders`` [A].
+    """
+
+    current: Phasor
+    rms_a: float
+    harmonic_a: tuple[float, ...]
+
+    @property
+    def current_a(self) -> float:
+        """Fundamental magnitude [A]."""
+        return self.current.magnitude
+
+
+@dataclass(frozen=True)
 class PanelAnalysis:
     """Everything the engine computes for one panel.
 
@@ -358,6 +399,12 @@ class PanelAnalysis:
         [%].
     unplaced_count : int
         Circuit rows not on any phase (left out of every figure).
+    breakers : tuple of BreakerCurrents
+        Per breaker number (``CircuitArrays.breaker``), when the input gave
+        them; empty otherwise.
+    shared_neutrals : tuple of SharedNeutralResult
+        Per shared neutral (``CircuitArrays.neutral_group``); empty when
+        none was given.
     """
 
     phase_labels: tuple[str, str, str]
@@ -379,6 +426,8 @@ class PanelAnalysis:
     circuit_rms_a: tuple[float, ...]
     nonlinear_share_pct: float
     unplaced_count: int
+    breakers: tuple[BreakerCurrents, ...] = ()
+    shared_neutrals: tuple[SharedNeutralResult, ...] = ()
 
     def phase(self, label: str) -> PhaseResult:
         """The phase with this label.
@@ -436,6 +485,12 @@ class BatchAnalysis:
         Shape (B...); [%], [%], [%] (NaN without a neutral), [-] (NaN above 5 %).
     iterations : int ndarray or None
     converged : bool ndarray or None
+    breaker_pole_spectrum : complex ndarray, shape (B..., nb, 3, H), or None
+        Line current of each breaker on each phase at each order [A]; None
+        unless the input numbered breakers (:mod:`tri.engine.legs`).
+    shared_neutral_spectrum : complex ndarray, shape (B..., G, H), or None
+        Current in each shared neutral at each order [A]; None unless the
+        input gave neutral groups.
     """
 
     orders: np.ndarray
@@ -467,6 +522,8 @@ class BatchAnalysis:
     motor_derating: np.ndarray | None = None
     iterations: np.ndarray | None = None
     converged: np.ndarray | None = None
+    breaker_pole_spectrum: np.ndarray | None = None
+    shared_neutral_spectrum: np.ndarray | None = None
 
     @property
     def batch_shape(self) -> tuple[int, ...]:
