@@ -427,7 +427,7 @@ def analyse(
         circuit_rms_a=tuple(float(x) for x in b.circuit_rms_a),
         nonlinear_share_pct=_f(b.nonlinear_share_pct),
         unplaced_count=int(b.unplaced_count),
-        breakers=breaker_results(b),
+        breakers=breaker_results(b, circuits.breaker),
         shared_neutrals=shared_neutral_results(b),
     )
     findings = panel_findings(a, limits)

@@ -96,19 +96,37 @@ def wiring_spectra(circuits: CircuitArrays, i_element: np.ndarray) -> dict[str, 
     return out
 
 
-def breaker_results(b: BatchAnalysis) -> tuple[BreakerCurrents, ...]:
-    """Per-breaker line currents of one panel's batch figures (empty without breakers)."""
-    if b.breaker_pole_spectrum is None:
+def breaker_results(b: BatchAnalysis, breaker: np.ndarray | None) -> tuple[BreakerCurrents, ...]:
+    """Per-breaker currents of one panel (empty without breaker numbers).
+
+    Parameters
+    ----------
+    b : BatchAnalysis
+        One panel's figures (no batch dimension).
+    breaker : int ndarray, shape (n,), or None
+        The breaker number of each row (``CircuitArrays.breaker``).
+    """
+    if b.breaker_pole_spectrum is None or breaker is None:
         return ()
     spec = b.breaker_pole_spectrum
     pole_rms = rms(spec)
-    return tuple(
-        BreakerCurrents(
-            current=(Phasor.of(spec[k, 0, 0]), Phasor.of(spec[k, 1, 0]), Phasor.of(spec[k, 2, 0])),
-            rms_a=(float(pole_rms[k, 0]), float(pole_rms[k, 1]), float(pole_rms[k, 2])),
+    breaker = np.asarray(breaker)
+    out = []
+    for k in range(spec.shape[0]):
+        legs = np.flatnonzero(breaker == k)
+        out.append(
+            BreakerCurrents(
+                current=(
+                    Phasor.of(spec[k, 0, 0]),
+                    Phasor.of(spec[k, 1, 0]),
+                    Phasor.of(spec[k, 2, 0]),
+                ),
+                rms_a=(float(pole_rms[k, 0]), float(pole_rms[k, 1]), float(pole_rms[k, 2])),
+                leg_current_a=tuple(float(b.circuit_current_a[r]) for r in legs),
+                leg_rms_a=tuple(float(b.circuit_rms_a[r]) for r in legs),
+            )
         )
-        for k in range(spec.shape[0])
-    )
+    return tuple(out)
 
 
 def shared_neutral_results(b: BatchAnalysis) -> tuple[SharedNeutralResult, ...]:

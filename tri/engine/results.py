@@ -325,10 +325,27 @@ class BreakerCurrents:
         breaker does not touch.
     rms_a : tuple of 3 float
         True-RMS line current on each phase [A].
+    leg_current_a : tuple of float
+        Fundamental current of each of the breaker's rows (its legs), in
+        input order [A].
+    leg_rms_a : tuple of float
+        True-RMS current of each leg [A].
     """
 
     current: tuple[Phasor, Phasor, Phasor]
     rms_a: tuple[float, float, float]
+    leg_current_a: tuple[float, ...] = ()
+    leg_rms_a: tuple[float, ...] = ()
+
+    @property
+    def max_current_a(self) -> float:
+        """Largest fundamental line current over the phases [A]."""
+        return max(p.magnitude for p in self.current)
+
+    @property
+    def max_rms_a(self) -> float:
+        """Largest true-RMS line current over the phases [A]."""
+        return max(self.rms_a)
 
 
 @dataclass(frozen=True)
