@@ -448,6 +448,8 @@ def analyse(
     comparison = None
     if readings is not None:
         comparison, more = compare_readings(a, readings, limits)
+        if system.high_leg is not None:  # unequal phase voltages by design: no deviation rate
+            comparison = dataclasses.replace(comparison, phase_deviation_pct=None)
         findings.extend(more)
     order = {"limit": 0, "warning": 1, "info": 2}
     findings.sort(key=lambda f: order[f.level])

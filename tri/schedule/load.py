@@ -30,7 +30,7 @@ from tri.schedule.read_panel import read_panel
 from tri.schedule.read_profiles import read_profiles
 from tri.schedule.read_readings import read_readings
 from tri.schedule.read_supply import read_supply
-from tri.schedule.read_wiring import read_rcds
+from tri.schedule.read_wiring import check_supply_system, read_rcds
 from tri.schedule.reader import MISSING, Reader, found, is_kind, suggest
 from tri.schedule.validate import check_schedule, circuit_where
 
@@ -147,6 +147,7 @@ def build_schedule(
     supply = read_supply(r, data)
     readings = read_readings(r, data, panel)
     profiles = read_profiles(r, data)
+    check_supply_system(r, panel, supply)
     rcds = read_rcds(r, data, panel)
     circuits: list[Circuit] = []
     for index, raw in enumerate(_raw_circuits(r, data)):

@@ -128,6 +128,19 @@ def _read_right_column(
     return order.strip().upper()
 
 
+def check_supply_system(r: Reader, panel: Any, supply: Any) -> None:
+    """A ``[supply]`` on a high-leg delta is refused: its voltages are not modelled yet."""
+    if panel is None or supply is None or not panel.supply_system.high_leg_delta:
+        return
+    r.add(
+        f"voltages at the panel are not modelled for a {panel.system} high-leg delta (the "
+        "supply model is a wye source); remove [supply] to report the currents",
+        ("supply",),
+        None,
+        "[supply]",
+    )
+
+
 def read_rcds(r: Reader, data: Mapping[str, Any], panel: Any) -> tuple[Rcd, ...]:
     """The ``[[rcd]]`` tables (rail boards only); reported ones are left out."""
     raw = data.get("rcd", [])
