@@ -137,7 +137,7 @@ def _check_voltages(
             r.add(f"a {system.key} system has no neutral to measure to", _TABLE, key, _WHERE)
         elif not 0.8 * nominal <= v <= 1.2 * nominal:
             r.add(
-                f"found {v:g} V, expected near the nominal {nominal:g} V {what} "
+                f"found {v:g} V, expected near the nominal {nominal:.4g} V {what} "
                 "of the panel's system",
                 _TABLE,
                 key,
