@@ -84,6 +84,36 @@ Added keys (beyond the contract)
     share of ``va`` the schedule puts on it} [VA].
 ``unplaced``
     Names of circuits not on any phase (left out of every figure).
+``panel`` (wiring, issue 12)
+    Also ``high_leg`` (the high leg's label on a 240/120D high-leg delta,
+    else ``None``), ``high_leg_to_neutral_v`` (its voltage to neutral,
+    √3/2·V_LL, 207.8 V; ``None`` without a high leg) [V], ``right_column``
+    (``"ABC"`` or ``"CBA"``), ``fed_from`` (source marking or ``None``),
+    ``max_row_shift`` (rows, or ``None``).
+``circuits`` (wiring, issue 12)
+    Also ``neutral`` (a 2-/3-pole breaker with a neutral), ``shared_neutral``
+    (name or ``None``), ``handle_tied``, ``spare``, ``load.legs`` (the
+    per-leg values as written, or ``None``), ``rcd`` (name or
+    ``None``), ``on_high_leg`` (a pole on the high leg), ``legs`` (the loads
+    the breaker feeds, in pole order: {kind (``line-to-neutral``,
+    ``line-to-line``, ``three-phase``), phases, va [VA], current_a, rms_a
+    [A]}; one entry for an ordinary circuit, none if unplaced) and
+    ``pole_currents`` ({phase: {current_a, current_deg, rms_a}} [A, deg] of a
+    breaker with several legs, its legs summed; ``None`` otherwise). For such
+    a breaker ``current_a`` and ``rms_a`` are those of its largest pole and
+    ``phase_va`` follows its legs.
+``shared_neutrals``
+    Every neutral shared by several legs: {name (the ``shared_neutral`` name,
+    or the breaker's name), shared_neutral, circuits (numbers), slots,
+    phases, common_trip (a multi-pole breaker, or every leg
+    ``handle_tied``), current_a, current_deg (fundamental), rms_a [A],
+    harmonic_a (magnitude at each order of ``harmonics.orders``) [A]}.
+``directory``
+    ``fed_from``, ``spares`` [{number, slot, name, breaker_a}] (breakers with
+    nothing connected) and ``spaces`` (empty slots of a two-column panel).
+``rcds``
+    RCD groups of a rail board: [{name, poles, phase (``None`` for 4-pole),
+    circuits (numbers)}].
 ``caution``
     The safety caution shown with every report.
 
@@ -94,45 +124,21 @@ measurement; it keeps the output identical from one machine to the next),
 
 from __future__ import annotations
 
-import math
 from pathlib import Path
 from typing import Any
 
 from tri.engine.results import PanelAnalysis, Phasor
+from tri.report import wiring_data
+from tri.report.numbers import num
 from tri.schedule.model import Circuit, Schedule
 from tri.schedule.slots import TWO_COLUMN, occupied_slots
 
 #: Version of the report's key layout (added key ``report_version``).
 REPORT_VERSION = 1
-#: Significant digits kept in every number [-].
-SIGNIFICANT_DIGITS = 9
-
 PHASE_VA_MEANING = (
     "connected apparent power the schedule attributes to the phase: all of each 1-pole "
     "circuit, half of each 2-pole, a third of each 3-pole (schedule bookkeeping, not |I|·V)"
 )
-
-
-def num(x: float | None) -> float | None:
-    """A number ready for the report: rounded, ``-0.0`` as ``0.0``, non-finite as ``None``.
-
-    Parameters
-    ----------
-    x : float or None
-        Any figure [any unit].
-
-    Returns
-    -------
-    float or None
-        ``x`` rounded to :data:`SIGNIFICANT_DIGITS` significant digits.
-    """
-    if x is None:
-        return None
-    x = float(x)
-    if not math.isfinite(x):
-        return None
-    r = float(f"{x:.{SIGNIFICANT_DIGITS}g}")
-    return 0.0 if r == 0 else r
 
 
 def phasor(p: Phasor, unit: str) -> dict[str, float | None]:
@@ -155,12 +161,8 @@ def _circuit(
     number: int, c: Circuit, schedule: Schedule, current_a: float, rms_a: float
 ) -> dict[str, Any]:
     system = schedule.system
-    labels = schedule.labels
     va = c.apparent_power_va(system)
-    share = {lab: 0.0 for lab in labels}
-    if c.phases is not None:
-        for p in set(c.phases):
-            share[labels[p]] = va / len(set(c.phases))
+    share = wiring_data.leg_phase_va(c, schedule)
     slots = list(occupied_slots(c.slot, c.poles)) if c.slot is not None else []
     return {
         "number": number,
@@ -278,7 +280,10 @@ def report_data(
     n = a.neutral
     cu = a.current_unbalance
     circuits = [
-        _circuit(i + 1, c, schedule, cur, rms)
+        {
+            **_circuit(i + 1, c, schedule, cur, rms),
+            **wiring_data.circuit_wiring(i, c, schedule, a),
+        }
         for i, (c, cur, rms) in enumerate(
             zip(schedule.circuits, a.circuit_current_a, a.circuit_rms_a, strict=True)
         )
@@ -303,6 +308,7 @@ def report_data(
             "spaces": p.spaces,
             "layout": p.layout,
             "file": None if file is None else Path(file).name,
+            **wiring_data.panel_wiring(schedule),
         },
         "basis": {
             "estimate": True,
@@ -359,6 +365,9 @@ def report_data(
         "nonlinear_share_pct": num(a.nonlinear_share_pct),
         "circuits": circuits,
         "unplaced": [c["name"] for c in circuits if not c["placed"]],
+        "shared_neutrals": wiring_data.shared_neutrals(a, schedule),
+        "directory": wiring_data.directory(schedule),
+        "rcds": wiring_data.rcds(schedule),
         "caution": caution,
     }
 
