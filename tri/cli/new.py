@@ -29,7 +29,12 @@ def add_parser(sub: Any) -> None:
         required=True,
         choices=list(SYSTEMS),
         metavar="SYSTEM",
-        help="supply system, e.g. 208Y/120, 480Y/277, 400Y/230, 480D",
+        help="supply system, e.g. 208Y/120, 480Y/277, 400Y/230, 480D, 240/120D",
+    )
+    p.add_argument(
+        "--high-leg",
+        choices=("B", "C"),
+        help="the high leg of a 240/120D high-leg delta (default B)",
     )
     p.add_argument("--spaces", type=int, default=42, help="circuit positions (default 42)")
     p.add_argument("--name", help="panel name (default: the file name)")
@@ -82,6 +87,11 @@ def run(args: argparse.Namespace) -> int:
             raise CliError(f"{flag} {value:g}: expected a rating above 0 A")
     if not 1 <= args.spaces <= 420:
         raise CliError(f"--spaces {args.spaces}: expected 1 to 420")
+    if args.high_leg is not None and not system.high_leg_delta:
+        raise CliError(f"--high-leg: a {system.key} system has no high leg (that is 240/120D)")
+    high_leg = None
+    if system.high_leg_delta:
+        high_leg = 2 if args.high_leg == "C" else 1
     panel = PanelInfo(
         name=args.name or path.stem.replace("_", " ").replace("-", " "),
         system=system.key,
@@ -92,6 +102,7 @@ def run(args: argparse.Namespace) -> int:
         neutral_a=args.neutral_a,
         phase_labels=_labels(args.labels, european),
         layout=args.layout or (PHASES if european else TWO_COLUMN),
+        high_leg=high_leg,
     )
     save_schedule(path, Schedule(panel=panel))
     print(
@@ -99,5 +110,10 @@ def run(args: argparse.Namespace) -> int:
     )
     if args.bus_a == DEFAULT_BUS_A:
         print(f"The bus rating {DEFAULT_BUS_A:g} A is a placeholder: set bus_a from the nameplate.")
+    if high_leg is not None:
+        print(
+            f"High leg: {panel.phase_labels[high_leg]} (208 V to neutral); 1-pole circuits go "
+            "on the other two phases only."
+        )
     print(f"Next: add circuits by hand or run 'tri {path}'.")
     return 0

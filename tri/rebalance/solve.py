@@ -66,6 +66,7 @@ from tri.rebalance.realise import WorkStep, order_work, rail_steps, realise_slot
 from tri.rebalance.results import Figures, Mode, Move, Status, Suggestion, apply_moves
 from tri.schedule.model import Schedule
 from tri.schedule.to_engine import analyse_schedule
+from tri.schedule.wiring import rebalancer_refusal
 
 #: Default target on the deviation [%]: the engine's warning level, so that
 #: ``tri suggest`` aims where ``tri report`` starts to warn.
@@ -310,11 +311,17 @@ def suggest(
     Raises
     ------
     ValueError
-        For options the panel cannot take (a neutral limit on a 3-wire system).
+        For options the panel cannot take (a neutral limit on a 3-wire system), or
+        wiring it cannot honour yet (shared neutrals, breakers with a load per leg,
+        a high leg, a C-B-A right column, a reach limit, RCD groups:
+        :func:`tri.schedule.wiring.rebalancer_refusal`).
     Cancelled
         When the cancel hook fired.
     """
     opts = options or SuggestOptions()
+    refusal = rebalancer_refusal(schedule)  # wiring it cannot honour yet (issue 12)
+    if refusal:
+        raise ValueError("; ".join(refusal))
     if opts.neutral_max_a is not None and not schedule.system.has_neutral:
         raise ValueError("a neutral limit needs a system with a neutral (this one is 3-wire)")
     control = Control(opts.time_limit_s, progress, cancel)

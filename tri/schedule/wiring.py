@@ -337,20 +337,18 @@ def rebalancer_refusal(schedule: Schedule) -> list[str]:
         )
     if panel.max_row_shift is not None:
         out.append("[panel] max_row_shift: reach limits are not yet honoured by the rebalancer")
-    for c in schedule.circuits:
-        where = _where(c, schedule)
-        if c.has_legs:
+    kinds = (
+        ("breakers with a neutral or one load per leg", lambda c: c.has_legs),
+        ("shared-neutral groups", lambda c: c.shared_neutral is not None),
+        ("RCD groups", lambda c: c.rcd is not None),
+    )
+    for what, test in kinds:
+        wheres = [_where(c, schedule) for c in schedule.circuits if test(c)]
+        if wheres:
+            more = f" and {len(wheres) - 3} more" if len(wheres) > 3 else ""
             out.append(
-                f"{where}: breakers with a neutral or one load per leg are not yet supported "
-                "by the rebalancer"
+                f"{what} are not yet supported by the rebalancer ({', '.join(wheres[:3])}{more})"
             )
-        if c.shared_neutral is not None:
-            out.append(
-                f'{where}: shared-neutral groups (shared_neutral = "{c.shared_neutral}") are '
-                "not yet supported by the rebalancer"
-            )
-        if c.rcd is not None:
-            out.append(f"{where}: RCD groups are not yet supported by the rebalancer")
     return out
 
 
