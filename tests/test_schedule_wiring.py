@@ -333,3 +333,18 @@ def test_high_leg_readings_and_supply() -> None:
     supply = "\n[supply]\ntransformer_kva = 75\ntransformer_z_pct = 4\ntransformer_x_r = 2\n"
     with pytest.raises(ScheduleError, match="not modelled for a 240/120D high-leg delta"):
         parse_schedule(_panel(system="240/120D") + supply)
+
+
+def test_journal_keeps_the_wiring_keys() -> None:
+    from dataclasses import replace
+
+    from tri.schedule.journal import schedule_from_data, schedule_to_data
+    from tri.schedule.model import Rcd
+
+    s = load_schedule(GOOD / "mwbc_208.toml").schedule
+    s = replace(
+        s,
+        panel=replace(s.panel, right_column="CBA", max_row_shift=3),
+        rcds=(Rcd("R1", 2, 0),),
+    )
+    assert schedule_from_data(schedule_to_data(s)) == s

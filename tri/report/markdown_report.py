@@ -132,7 +132,7 @@ def _two_column(d: dict[str, Any]) -> list[str]:
         right_no = str(right) if right <= spaces else ""
         order = d["panel"]["right_column"]
         on_right = labels[slot_phase(right, order)] if right <= spaces else None
-        middle = wm.row_phase(labels[slot_phase(left)], on_right)
+        middle = wm.row_phase(labels[slot_phase(left)], on_right, d["panel"]["high_leg"])
         rows.append([str(left), *lc, middle, *reversed(rc), right_no])
     head = ["Slot", "Circuit", "Poles", "Breaker", "VA", "Phase"]
     head += ["VA", "Breaker", "Poles", "Circuit", "Slot"]

@@ -77,7 +77,7 @@ def circuit_wiring(
                 "current_deg": num(breaker.current[k].deg),
                 "rms_a": num(breaker.rms_a[k]),
             }
-            for k in sorted(set(poles))
+            for k in dict.fromkeys(poles)
         },
         "on_high_leg": high is not None and high in poles,
     }

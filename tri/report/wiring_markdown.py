@@ -58,9 +58,16 @@ def rows_text(d: dict[str, Any]) -> str:
     return "two columns, rows A-B-C from the top"
 
 
-def row_phase(left: str, right: str | None) -> str:
-    """The middle cell of a directory row: one phase, or both when the columns differ."""
-    return left if right is None or right == left else f"{left} / {right}"
+def row_phase(left: str, right: str | None, high_leg: str | None = None) -> str:
+    """The middle cell of a directory row: one phase, or both when the columns differ.
+
+    The high leg of a high-leg delta is written ``B (high)``.
+    """
+
+    def mark(label: str) -> str:
+        return f"{label} (high)" if label == high_leg else label
+
+    return mark(left) if right is None or right == left else f"{mark(left)} / {mark(right)}"
 
 
 def spare_or_space(c: dict[str, Any] | None) -> str | None:
@@ -109,7 +116,7 @@ def shared_neutrals(
         "Each neutral shared by several legs, with the current it carries (the phasor sum "
         "of its legs at every harmonic order; legs on distinct phases).",
         "",
-        *table(["Neutral", "Phases", "Where", "Trip", "Fund. A", "RMS A"], rows, "lllrrr"),
+        *table(["Neutral", "Phases", "Where", "Trip", "Fund. A", "RMS A"], rows, "llllrr"),
     ]
 
 

@@ -40,11 +40,13 @@ from typing import Any
 from tri.schedule.model import (
     Circuit,
     PanelInfo,
+    Rcd,
     Readings,
     Schedule,
     Supply,
     UserProfile,
 )
+from tri.schedule.slots import RIGHT_ABC
 
 JOURNAL_VERSION = 1
 JOURNAL_SUFFIX = ".tri-journal"
@@ -96,7 +98,12 @@ def schedule_to_data(schedule: Schedule) -> dict[str, Any]:
             "neutral_a": p.neutral_a,
             "phase_labels": list(p.phase_labels),
             "layout": p.layout,
+            "high_leg": p.high_leg,
+            "right_column": p.right_column,
+            "fed_from": p.fed_from,
+            "max_row_shift": p.max_row_shift,
         },
+        "rcds": [{"name": r.name, "poles": r.poles, "phase": r.phase} for r in schedule.rcds],
         "supply": None if schedule.supply is None else dict(vars(schedule.supply)),
         "readings": None
         if schedule.readings is None
@@ -130,11 +137,21 @@ def schedule_to_data(schedule: Schedule) -> dict[str, Any]:
                 "locked": c.locked,
                 "breaker_a": c.breaker_a,
                 "note": c.note,
+                "neutral": c.neutral,
+                "leg_values": None if c.leg_values is None else list(c.leg_values),
+                "shared_neutral": c.shared_neutral,
+                "handle_tied": c.handle_tied,
+                "spare": c.spare,
+                "rcd": c.rcd,
                 "source_index": c.source_index,
             }
             for c in schedule.circuits
         ],
     }
+
+
+def _int_or_none(value: Any) -> int | None:
+    return None if value is None else int(value)
 
 
 def _triple(values: Any) -> tuple[float | None, float | None, float | None]:
@@ -165,6 +182,10 @@ def schedule_from_data(data: dict[str, Any]) -> Schedule:
             neutral_a=None if p["neutral_a"] is None else float(p["neutral_a"]),
             phase_labels=(labels[0], labels[1], labels[2]),
             layout=str(p["layout"]),
+            high_leg=_int_or_none(p.get("high_leg")),
+            right_column=str(p.get("right_column", RIGHT_ABC)),
+            fed_from=p.get("fed_from"),
+            max_row_shift=_int_or_none(p.get("max_row_shift")),
         )
         s = data.get("supply")
         supply = None if s is None else Supply(**{k: float(v) for k, v in s.items()})
@@ -203,9 +224,21 @@ def schedule_from_data(data: dict[str, Any]) -> Schedule:
                 locked=bool(c["locked"]),
                 breaker_a=None if c["breaker_a"] is None else float(c["breaker_a"]),
                 note=str(c.get("note", "")),
+                neutral=bool(c.get("neutral", False)),
+                leg_values=None
+                if c.get("leg_values") is None
+                else tuple(float(x) for x in c["leg_values"]),
+                shared_neutral=c.get("shared_neutral"),
+                handle_tied=bool(c.get("handle_tied", False)),
+                spare=bool(c.get("spare", False)),
+                rcd=c.get("rcd"),
                 source_index=None if c.get("source_index") is None else int(c["source_index"]),
             )
             for c in data["circuits"]
+        )
+        rcds = tuple(
+            Rcd(str(r["name"]), int(r["poles"]), _int_or_none(r["phase"]))
+            for r in data.get("rcds", [])
         )
         return Schedule(
             panel=panel,
@@ -214,6 +247,7 @@ def schedule_from_data(data: dict[str, Any]) -> Schedule:
             readings=readings,
             profiles=profiles,
             format=int(data.get("format", 1)),
+            rcds=rcds,
         )
     except (KeyError, TypeError, ValueError, IndexError) as exc:
         raise ValueError(f"not a readable journal: {exc}") from None
