@@ -17,7 +17,7 @@ import textwrap
 from typing import Any
 
 from tri.cli.common import EXIT_ERROR, EXIT_LIMIT, EXIT_OK, SAFETY_CAUTION, CliError, print_error
-from tri.cli.report import build_data, emit
+from tri.cli.report import build_all, emit
 from tri.report.check_report import (
     LIMITS,
     evaluate,
@@ -83,14 +83,14 @@ def _maxima(args: argparse.Namespace) -> dict[str, float]:
 
 def _check_one(path: str, maxima: dict[str, float], iterate: bool) -> dict[str, Any]:
     try:
-        data = build_data(path, iterate=iterate, continuous_factor=DEFAULT_CONTINUOUS_FACTOR)
+        data, parts = build_all(path, iterate=iterate, continuous_factor=DEFAULT_CONTINUOUS_FACTOR)
     except ScheduleError as exc:
         print_error(exc.summary())
         return _error_entry(path, exc.summary())
     except CliError as exc:
         print_error(str(exc))
         return _error_entry(path, str(exc))
-    results = evaluate(data, maxima)
+    results = _scenario_results(path, data, parts, maxima)
     return {
         "file": path,
         "panel": data["panel"]["name"],
@@ -99,6 +99,24 @@ def _check_one(path: str, maxima: dict[str, float], iterate: bool) -> dict[str, 
         "basis": data["basis"]["currents"],
         "results": results,
     }
+
+
+def _scenario_results(
+    path: str, data: dict[str, Any], parts: Any, maxima: dict[str, float]
+) -> list[Any]:
+    """Each limit in the connected load and every scenario; the worst case decides."""
+    if len(parts.cases) < 2:
+        return evaluate(data, maxima)
+    from tri.report.data import report_data
+    from tri.report.scenario_check import evaluate_cases
+    from tri.schedule.load import load_schedule
+
+    schedule = load_schedule(path).schedule
+    reports = [
+        (c.name, report_data(c.analysis, schedule, caution=SAFETY_CAUTION, file=path))
+        for c in parts.cases[1:]
+    ]
+    return evaluate_cases(data, reports, maxima)
 
 
 def _error_entry(path: str, message: str) -> dict[str, Any]:

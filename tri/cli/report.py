@@ -76,7 +76,13 @@ def check_continuous_factor(value: float) -> float:
 
 def build_data(path: str, *, iterate: bool, continuous_factor: float) -> dict[str, Any]:
     """Load, analyse and turn one schedule into report data (see :mod:`tri.report.data`)."""
+    return build_all(path, iterate=iterate, continuous_factor=continuous_factor)[0]
+
+
+def build_all(path: str, *, iterate: bool, continuous_factor: float) -> tuple[dict[str, Any], Any]:
+    """Report data and the parts behind its ``scenarios`` and ``log`` keys."""
     from tri.report.data import report_data
+    from tri.report.over_time_data import add_over_time
 
     loaded = load(path)
     try:
@@ -85,11 +91,73 @@ def build_data(path: str, *, iterate: bool, continuous_factor: float) -> dict[st
         )
     except ValueError as exc:
         raise CliError(f"{path}: cannot analyse this schedule: {exc}") from None
-    return report_data(analysis, loaded.schedule, caution=SAFETY_CAUTION, file=path)
+    data = report_data(analysis, loaded.schedule, caution=SAFETY_CAUTION, file=path)
+    parts = add_over_time(
+        data, loaded, analysis, iterate=iterate, continuous_factor=continuous_factor
+    )
+    return data, parts
 
 
-def render(data: dict[str, Any], fmt: str, *, ascii_only: bool = False) -> str:
+def render(
+    data: dict[str, Any],
+    fmt: str,
+    *,
+    ascii_only: bool = False,
+    images: dict[str, str] | None = None,
+) -> str:
     """The report in ``fmt`` as text (text format: 80 columns, no colour)."""
+    text = _render_base(data, fmt, ascii_only=ascii_only)
+    if fmt in ("text", "markdown") and ("scenarios" in data or "log" in data):
+        from tri.report import over_time_text as ot
+
+        extra = (
+            ot.render_over_time_markdown(data, images)
+            if fmt == "markdown"
+            else ot.render_over_time_text(data)
+        )
+        if ascii_only:
+            extra = extra.encode("ascii", "replace").decode("ascii")
+        text += extra
+    return text
+
+
+def write_pictures(parts: Any, data: dict[str, Any], report_path: str) -> dict[str, str]:
+    """Write the log's pictures beside ``report_path``; returns alt text -> file name."""
+    if parts.log is None:
+        return {}
+    from tri.report.log_svg import current_over_time_svg, duration_svg
+
+    out = Path(report_path)
+    labels = [*data["phase_order"], "N"]
+    name = data["panel"]["name"]
+    pictures = {
+        f"Phase and neutral current over time, {name}": (
+            out.with_name(f"{out.stem}-current.svg"),
+            current_over_time_svg(
+                parts.figures.picture,
+                parts.log.interval_s,
+                labels,
+                parts.log.time_text,
+                f"{name}: current over time",
+            ),
+        ),
+        f"Hours above each current, {name}": (
+            out.with_name(f"{out.stem}-duration.svg"),
+            duration_svg(
+                data["log"]["duration"]["levels_a"],
+                data["log"]["duration"]["hours_above"],
+                f"{name}: hours above each current",
+            ),
+        ),
+    }
+    written = {}
+    for alt, (path, svg) in pictures.items():
+        write_file(str(path), svg, report_path)
+        written[alt] = path.name
+    return written
+
+
+def _render_base(data: dict[str, Any], fmt: str, *, ascii_only: bool = False) -> str:
     if fmt == "json":
         from tri.report.json_report import render_json
 
@@ -152,7 +220,7 @@ def write_file(target: str, text: str, source: str) -> None:
 def run(args: argparse.Namespace) -> int:
     """Run ``tri report``; returns 0 (errors raise :class:`CliError` or ``ScheduleError``)."""
     factor = check_continuous_factor(args.continuous_factor)
-    data = build_data(args.file, iterate=args.iterate, continuous_factor=factor)
+    data, parts = build_all(args.file, iterate=args.iterate, continuous_factor=factor)
     if args.iterate and data["supply"] is None:
         print(
             "tri: warning: --iterate needs a [supply] table; currents are at nominal voltage.",
@@ -160,7 +228,8 @@ def run(args: argparse.Namespace) -> int:
         )
     fmt = args.format
     if args.output:
-        write_file(args.output, render(data, fmt), args.file)
+        images = write_pictures(parts, data, args.output) if fmt == "markdown" else None
+        write_file(args.output, render(data, fmt, images=images), args.file)
         print(f"Wrote the {fmt} report to {args.output}.", file=sys.stderr)
         return 0
     if fmt == "text" and sys.stdout.isatty():
@@ -169,6 +238,10 @@ def run(args: argparse.Namespace) -> int:
         from tri.report.text_report import print_text
 
         print_text(data, Console(highlight=False, emoji=False, markup=False))
+        if "scenarios" in data or "log" in data:
+            from tri.report.over_time_text import render_over_time_text
+
+            emit(render_over_time_text(data))
         return 0
     utf8 = fmt in ("json", "csv", "markdown")
     emit(render(data, fmt, ascii_only=not utf8 and not _is_utf8(sys.stdout)), utf8=utf8)

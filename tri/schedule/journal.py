@@ -27,6 +27,7 @@ from any UI library.
 from __future__ import annotations
 
 import contextlib
+import dataclasses
 import datetime as _dt
 import hashlib
 import json
@@ -37,6 +38,7 @@ from dataclasses import dataclass
 from pathlib import Path
 from typing import Any
 
+from tri.schedule.log_spec import LogSpec
 from tri.schedule.model import (
     Circuit,
     PanelInfo,
@@ -122,6 +124,7 @@ def schedule_to_data(schedule: Schedule) -> dict[str, Any]:
             }
             for u in schedule.profiles
         ],
+        "log": None if schedule.log is None else dataclasses.asdict(schedule.log),
         "circuits": [
             {
                 "name": c.name,
@@ -143,6 +146,7 @@ def schedule_to_data(schedule: Schedule) -> dict[str, Any]:
                 "handle_tied": c.handle_tied,
                 "spare": c.spare,
                 "rcd": c.rcd,
+                "use": [list(u) for u in c.use],
                 "source_index": c.source_index,
             }
             for c in schedule.circuits
@@ -157,6 +161,17 @@ def _int_or_none(value: Any) -> int | None:
 def _triple(values: Any) -> tuple[float | None, float | None, float | None]:
     a, b, c = (None if v is None else float(v) for v in values)
     return (a, b, c)
+
+
+def _log_from_data(raw: Any) -> LogSpec | None:
+    """The ``[log]`` table back from the journal (tuples where the model keeps them)."""
+    if raw is None:
+        return None
+    fields = dict(raw)
+    fields["amps"] = tuple(str(x) for x in fields["amps"])
+    if fields.get("volts_ll") is not None:
+        fields["volts_ll"] = tuple(str(x) for x in fields["volts_ll"])
+    return LogSpec(**fields)
 
 
 def schedule_from_data(data: dict[str, Any]) -> Schedule:
@@ -232,6 +247,7 @@ def schedule_from_data(data: dict[str, Any]) -> Schedule:
                 handle_tied=bool(c.get("handle_tied", False)),
                 spare=bool(c.get("spare", False)),
                 rcd=c.get("rcd"),
+                use=tuple((str(k), float(v)) for k, v in c.get("use", [])),
                 source_index=None if c.get("source_index") is None else int(c["source_index"]),
             )
             for c in data["circuits"]
@@ -248,6 +264,7 @@ def schedule_from_data(data: dict[str, Any]) -> Schedule:
             profiles=profiles,
             format=int(data.get("format", 1)),
             rcds=rcds,
+            log=_log_from_data(data.get("log")),
         )
     except (KeyError, TypeError, ValueError, IndexError) as exc:
         raise ValueError(f"not a readable journal: {exc}") from None

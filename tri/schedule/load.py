@@ -24,7 +24,8 @@ from tomlkit.toml_document import TOMLDocument
 
 from tri.schedule.errors import ScheduleError, ScheduleIssue
 from tri.schedule.locate import LineIndex
-from tri.schedule.model import FORMAT_VERSION, Circuit, Schedule
+from tri.schedule.log_spec import read_log_table
+from tri.schedule.model import DEFAULT_LABELS, FORMAT_VERSION, Circuit, Schedule
 from tri.schedule.read_circuit import read_circuit
 from tri.schedule.read_panel import read_panel
 from tri.schedule.read_profiles import read_profiles
@@ -34,7 +35,7 @@ from tri.schedule.read_wiring import check_supply_system, read_rcds
 from tri.schedule.reader import MISSING, Reader, found, is_kind, suggest
 from tri.schedule.validate import check_schedule, circuit_where
 
-TOP_KEYS = ("format", "panel", "supply", "readings", "profiles", "rcd", "circuit")
+TOP_KEYS = ("format", "panel", "supply", "readings", "profiles", "log", "rcd", "circuit")
 
 
 @dataclass(frozen=True, eq=False)
@@ -149,6 +150,7 @@ def build_schedule(
     profiles = read_profiles(r, data)
     check_supply_system(r, panel, supply)
     rcds = read_rcds(r, data, panel)
+    log = read_log_table(r, data, panel.phase_labels if panel else DEFAULT_LABELS)
     circuits: list[Circuit] = []
     for index, raw in enumerate(_raw_circuits(r, data)):
         c = read_circuit(r, raw, index, panel, stand_in=True)
@@ -162,6 +164,7 @@ def build_schedule(
             readings=readings,
             profiles=profiles or (),
             rcds=rcds,
+            log=log,
         )
         for issue in check_schedule(model):
             i = issue.circuit_index

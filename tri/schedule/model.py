@@ -12,6 +12,7 @@ from dataclasses import dataclass, field, replace
 from typing import Literal
 
 from tri.engine.inputs import SupplyImpedance
+from tri.schedule.log_spec import LogSpec
 from tri.schedule.slots import RIGHT_ABC, TWO_COLUMN, slot_phases
 from tri.schedule.systems import SYSTEMS, SupplySystem
 
@@ -205,6 +206,9 @@ class Circuit:
         A breaker installed with nothing connected (no load).
     rcd : str or None
         Name of the ``[[rcd]]`` the circuit sits behind (rail boards).
+    use : tuple of (str, float)
+        Share of the load in each named scenario [-] (``use = { day = 0.2 }``);
+        empty: 1.0 in every scenario (see :mod:`tri.schedule.use_factors`).
     source_index : int or None
         Position of the circuit's table in the file it was loaded from; lets
         saving update that table in place. Not part of equality.
@@ -229,6 +233,7 @@ class Circuit:
     handle_tied: bool = False
     spare: bool = False
     rcd: str | None = None
+    use: tuple[tuple[str, float], ...] = ()
     source_index: int | None = field(default=None, compare=False)
 
     @property
@@ -320,6 +325,7 @@ class Schedule:
     """A whole panel schedule.
 
     ``circuits`` keep the order of the file; new circuits are appended.
+    ``log`` is the ``[log]`` table (:mod:`tri.schedule.log_spec`), or ``None``.
     """
 
     panel: PanelInfo
@@ -329,6 +335,7 @@ class Schedule:
     profiles: tuple[UserProfile, ...] = ()
     format: int = FORMAT_VERSION
     rcds: tuple[Rcd, ...] = ()
+    log: LogSpec | None = None
 
     @property
     def system(self) -> SupplySystem:

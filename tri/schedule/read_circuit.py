@@ -19,6 +19,7 @@ from tri.schedule.read_wiring import read_leg_values
 from tri.schedule.reader import MISSING, Reader, found
 from tri.schedule.rules import Rule, between, non_negative, positive, power_factor, read_rules
 from tri.schedule.slots import PHASES, TWO_COLUMN, slot_phases
+from tri.schedule.use_factors import read_use
 
 CIRCUIT_RULES: dict[str, Rule] = {
     "name": Rule("text", required=True),
@@ -45,6 +46,7 @@ CIRCUIT_KEYS = (
     *_PLACEMENT_KEYS,
     *LOAD_KEYS,
     *(k for k in CIRCUIT_RULES if k not in _PLACEMENT_KEYS),
+    "use",
 )
 
 #: What a circuit whose only problems lie outside its placement stands in with.
@@ -106,6 +108,7 @@ def read_circuit(
     if isinstance(v["name"], str) and not v["name"].strip():
         r.add("found an empty name, expected the circuit's purpose", table, "name", where, index)
     load_kind, load_value = _read_load(r, raw, table, where, index, spare=v["spare"] is True)
+    use = read_use(r.add, raw, table, where, index)
     phases: Any = None
     if "phases" in raw:
         phases = read_phases(r, raw["phases"], table, where, index, panel)
@@ -146,6 +149,7 @@ def read_circuit(
         handle_tied=v["handle_tied"],
         spare=v["spare"],
         rcd=_name_or_none(v["rcd"]),
+        use=use or (),
         source_index=index,
     )
 

@@ -38,6 +38,7 @@ from tri.schedule.read_supply import read_supply
 from tri.schedule.read_wiring import read_rcds
 from tri.schedule.reader import Reader
 from tri.schedule.slots import PHASES, RIGHT_ABC, TWO_COLUMN
+from tri.schedule.use_factors import use_table
 
 BACKUP_SUFFIX = ".bak"
 
@@ -315,6 +316,8 @@ def _write_circuit(table: Any, c: Circuit, schedule: Schedule) -> None:
     _set(table, "handle_tied", c.handle_tied, False)
     _set(table, "spare", c.spare, False)
     _set(table, "rcd", c.rcd)
+    if c.use or "use" in table:
+        _set(table, "use", use_table(c.use) if c.use else None)
 
 
 def _write_circuits(doc: TOMLDocument, schedule: Schedule) -> None:
