@@ -19,7 +19,7 @@ from tri.schedule.load import load_schedule
 from tri.schedule.to_engine import analyse_schedule
 
 ROOT = Path(__file__).resolve().parents[1]
-DEMO = ROOT / "panels_demo" / "cabinet_shop_240d.toml"
+DEMO = ROOT / "panels_demo" / "woodshop_240d.toml"
 MWBC = ROOT / "tests" / "data" / "wiring" / "mwbc_208.toml"
 
 
