@@ -92,7 +92,8 @@ def circuit_arrays(schedule: Schedule) -> CircuitArrays:
     ).reshape(n, 3)
     s_va = np.array([_leg_power(schedule, circuits[i], leg) for i, leg in rows], dtype=complex)
     pf = np.array([circuits[i].pf for i, _ in rows], dtype=float)
-    volts = np.array([_leg_volts(schedule, circuits[i], leg) for i, leg in rows], dtype=float)
+    by_poles = {k: schedule.system.circuit_voltage(k) for k in (1, 2, 3)}
+    volts = np.array([by_poles[_leg_poles(circuits[i], leg)] for i, leg in rows], dtype=float)
     user = {p.name: p.harmonics for p in schedule.profiles}
     harmonics, orders = profile_matrix([circuits[i].profile for i, _ in rows], pf, volts, user)
     return CircuitArrays(
@@ -115,12 +116,11 @@ def _leg_power(schedule: Schedule, c: Circuit, leg: Leg | None) -> complex:
     return complex(leg.va * c.pf, (-1.0 if c.leading else 1.0) * leg.va * sin_phi)
 
 
-def _leg_volts(schedule: Schedule, c: Circuit, leg: Leg | None) -> float:
-    """Voltage across a leg [V] (what voltage-dependent profiles are scaled by)."""
+def _leg_poles(c: Circuit, leg: Leg | None) -> int:
+    """Pole count whose voltage a leg sees (what voltage-dependent profiles are scaled by)."""
     if leg is None:
-        return schedule.system.circuit_voltage(c.poles)
-    poles = {LEG_TO_NEUTRAL: 1, LEG_LINE_TO_LINE: 2}.get(leg.kind, 3)
-    return schedule.system.circuit_voltage(poles)
+        return c.poles
+    return {LEG_TO_NEUTRAL: 1, LEG_LINE_TO_LINE: 2}.get(leg.kind, 3)
 
 
 def _wiring_numbers(schedule: Schedule, rows: list[tuple[int, Leg | None]]) -> dict:

@@ -96,13 +96,13 @@ def circuit_pole_phases(circuit: Circuit, schedule: Schedule) -> tuple[int, ...]
 
 def legs_of(circuit: Circuit, schedule: Schedule) -> tuple[Leg, ...]:
     """The loads a placed breaker feeds (empty when it is not placed; see the module notes)."""
-    poles = circuit_pole_phases(circuit, schedule)
-    if poles is None:
+    if circuit.phases is None:
         return ()
     system = schedule.system
-    if not circuit.has_legs or len(poles) != circuit.poles:
+    poles = circuit_pole_phases(circuit, schedule) if circuit.has_legs else None
+    if poles is None or len(poles) != circuit.poles:
         kind = {1: LEG_TO_NEUTRAL, 2: LEG_LINE_TO_LINE}.get(circuit.poles, LEG_THREE_PHASE)
-        phases = poles if circuit.poles < 3 else (0, 1, 2)
+        phases = tuple(circuit.phases) if circuit.poles < 3 else (0, 1, 2)
         return (Leg(kind, phases, circuit.apparent_power_va(system)),)
     va = circuit.leg_va(system)
     if circuit.neutral:
