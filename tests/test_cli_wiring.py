@@ -113,3 +113,20 @@ def test_new_makes_a_high_leg_delta(tmp_path: Path) -> None:
     assert s.panel.effective_high_leg == 2
     r = tri("new", "q.toml", "--system", "208Y/120", "--high-leg", "B", cwd=tmp_path)
     assert r.returncode == 2 and "no high leg" in r.stderr
+
+
+def test_a_building_with_shared_neutrals_is_refused(tmp_path: Path) -> None:
+    import shutil
+
+    for f in (ROOT / "panels_demo" / "brewery").glob("*.toml"):
+        shutil.copy(f, tmp_path / f.name)
+    child = tmp_path / "lp1_208.toml"
+    child.write_text(
+        child.read_text()
+        + '\n[[circuit]]\nslot = 41\nname = "Leg 1"\nload_va = 500\nshared_neutral = "NX"\n'
+        + '\n[[circuit]]\nslot = 39\nname = "Leg 2"\nload_va = 500\nshared_neutral = "NX"\n'
+    )
+    r = tri("report", "mdp_480.toml", cwd=tmp_path)
+    assert r.returncode == 2 and "Traceback" not in r.stderr
+    assert "lp1_208.toml" in r.stderr and "not yet supported in a building" in r.stderr
+    assert tri("report", "lp1_208.toml", cwd=tmp_path).returncode == 0  # alone it is reported

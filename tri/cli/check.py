@@ -81,24 +81,30 @@ def _maxima(args: argparse.Namespace) -> dict[str, float]:
     return out
 
 
-def _check_one(path: str, maxima: dict[str, float], iterate: bool) -> dict[str, Any]:
+def _check_one(path: str, maxima: dict[str, float], iterate: bool) -> list[dict[str, Any]]:
     try:
         data, parts = build_all(path, iterate=iterate, continuous_factor=DEFAULT_CONTINUOUS_FACTOR)
     except ScheduleError as exc:
         print_error(exc.summary())
-        return _error_entry(path, exc.summary())
+        return [_error_entry(path, exc.summary())]
     except CliError as exc:
         print_error(str(exc))
-        return _error_entry(path, str(exc))
+        return [_error_entry(path, str(exc))]
+    if data.get("building") is not None:  # every panel of the building, the service first
+        from tri.cli.building import check_entries
+
+        return check_entries(data, maxima)
     results = _scenario_results(path, data, parts, maxima)
-    return {
-        "file": path,
-        "panel": data["panel"]["name"],
-        "status": panel_status(results),
-        "error": None,
-        "basis": data["basis"]["currents"],
-        "results": results,
-    }
+    return [
+        {
+            "file": path,
+            "panel": data["panel"]["name"],
+            "status": panel_status(results),
+            "error": None,
+            "basis": data["basis"]["currents"],
+            "results": results,
+        }
+    ]
 
 
 def _scenario_results(
@@ -143,7 +149,7 @@ def exit_code(entries: list[dict[str, Any]]) -> int:
 def run(args: argparse.Namespace) -> int:
     """Run ``tri check``; returns the exit status."""
     maxima = _maxima(args)
-    entries = [_check_one(path, maxima, args.iterate) for path in args.files]
+    entries = [e for path in args.files for e in _check_one(path, maxima, args.iterate)]
     code = exit_code(entries)
     if args.format == "json":
         overall = {EXIT_OK: "pass", EXIT_LIMIT: "fail", EXIT_ERROR: "error"}[code]

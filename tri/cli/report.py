@@ -80,11 +80,21 @@ def build_data(path: str, *, iterate: bool, continuous_factor: float) -> dict[st
 
 
 def build_all(path: str, *, iterate: bool, continuous_factor: float) -> tuple[dict[str, Any], Any]:
-    """Report data and the parts behind its ``scenarios`` and ``log`` keys."""
+    """Report data and the parts behind its ``scenarios`` and ``log`` keys.
+
+    A building (a schedule whose circuits feed other panels) gives the whole
+    tree's data and no scenario or log parts (those are judged per panel).
+    """
+    from tri.cli.building import building_report_data, is_building_root
     from tri.report.data import report_data
     from tri.report.over_time_data import add_over_time
 
     loaded = load(path)
+    if is_building_root(loaded):
+        from tri.report.over_time_data import OverTimeParts
+
+        data = building_report_data(path, iterate=iterate, continuous_factor=continuous_factor)
+        return data, OverTimeParts(cases=())
     try:
         analysis = analyse_schedule(
             loaded.schedule, iterate_voltage=iterate, continuous_factor=continuous_factor
@@ -106,6 +116,15 @@ def render(
     images: dict[str, str] | None = None,
 ) -> str:
     """The report in ``fmt`` as text (text format: 80 columns, no colour)."""
+    if data.get("building") is not None:
+        from tri.report import building_render as b
+
+        if fmt == "text":
+            return b.render_building_text(data, ascii_only=ascii_only)
+        if fmt == "markdown":
+            return b.render_building_markdown(data)
+        if fmt == "csv":
+            return b.render_building_csv(data)
     text = _render_base(data, fmt, ascii_only=ascii_only)
     if fmt in ("text", "markdown") and ("scenarios" in data or "log" in data):
         from tri.report import over_time_text as ot
@@ -232,7 +251,7 @@ def run(args: argparse.Namespace) -> int:
         write_file(args.output, render(data, fmt, images=images), args.file)
         print(f"Wrote the {fmt} report to {args.output}.", file=sys.stderr)
         return 0
-    if fmt == "text" and sys.stdout.isatty():
+    if fmt == "text" and sys.stdout.isatty() and data.get("building") is None:
         from rich.console import Console
 
         from tri.report.text_report import print_text

@@ -24,6 +24,7 @@ from __future__ import annotations
 
 import dataclasses
 import math
+from dataclasses import dataclass
 
 import numpy as np
 
@@ -49,7 +50,6 @@ from tri.engine.legs import (
 from tri.engine.loading import (
     FindingLimits,
     continuous_weights,
-    loading_pct,
     panel_findings,
     three_pole_triplen_finding,
     voltage_findings,
@@ -182,7 +182,6 @@ def analyse_batch(
             "voltages at the panel are not modelled for a high-leg delta (the supply model is "
             "a wye source)"
         )
-    batch = np.shape(circuits.s_va)[:-1]
     conn = np.asarray(circuits.connection)
     e = supply_phase_voltages(system)
 
@@ -200,17 +199,11 @@ def analyse_batch(
     if not (np.all(np.isfinite(oc.phase)) and np.all(np.isfinite(oc.circuit_rms_a))):
         raise ValueError("harmonics must be finite numbers")
     scale = np.sum(oc.circuit_rms_a, axis=-1)
-    phase_spec = _snap(oc.phase, scale, 2)
-    neutral_spec = _snap(oc.neutral, scale, 1)
-    design_spec = phase_spec if oc.phase_weighted is None else oc.phase_weighted
-
     rating = ratings.main_a if ratings.main_a is not None else ratings.bus_a
     neutral_rating = ratings.neutral_a if ratings.neutral_a is not None else ratings.bus_a
-    phase_rms = rms(phase_spec)
-    design_rms = rms(design_spec)
-    neutral_rms = rms(neutral_spec)
-    fund = phase_spec[..., 0]
-    seq = _snap(sequence_components(fund), scale, 1)
+    currents = current_figures(
+        oc.phase, oc.neutral, oc.phase_weighted, scale, rating, neutral_rating
+    )
 
     s_abs = np.abs(np.asarray(circuits.s_va))
     placed = conn != UNPLACED
@@ -222,52 +215,113 @@ def analyse_batch(
 
     volt: dict[str, np.ndarray | None] = {}
     if sol is not None:
-        v_line = line_voltages(sol.v_phase)
-        line_dev = deviation_rate_pct(np.abs(v_line))
-        volt = {
-            "v_phase": sol.v_phase,
-            "v_line": v_line,
-            "vuf_pct": vuf_pct(v_line),
-            "line_deviation_pct": line_dev,
-            "phase_deviation_pct": (
-                deviation_rate_pct(np.abs(sol.v_phase))
-                if system.has_neutral
-                else np.full(batch, np.nan)
-            ),
-            "motor_derating": nema_derating(line_dev),
-            "iterations": sol.iterations,
-            "converged": sol.converged,
-        }
+        volt = voltage_figures(sol.v_phase, system.has_neutral)
+        volt.update(iterations=sol.iterations, converged=sol.converged)
 
     wiring = {
-        k: _snap(v, scale, v.ndim - len(batch)) for k, v in wiring_spectra(circuits, i_e).items()
+        k: _snap(v, scale, v.ndim - np.ndim(scale))
+        for k, v in wiring_spectra(circuits, i_e).items()
     }
 
     return BatchAnalysis(
         orders=oc.orders,
         phase_va=schedule_va(circuits),
-        phase_spectrum=phase_spec,
-        phase_rms_a=phase_rms,
-        phase_thd_pct=thd_pct(phase_spec),
-        phase_loading_pct=loading_pct(phase_rms, rating),
-        phase_design_a=design_rms,
-        phase_design_loading_pct=loading_pct(design_rms, rating),
-        neutral_spectrum=neutral_spec,
-        neutral_rms_a=neutral_rms,
-        neutral_loading_pct=loading_pct(neutral_rms, neutral_rating),
-        sequence=seq,
-        negative_sequence_pct=unbalance_pct(seq, 2),
-        zero_sequence_pct=unbalance_pct(seq, 0),
-        max_deviation_pct=deviation_rate_pct(phase_rms),
-        max_deviation_fundamental_pct=deviation_rate_pct(np.abs(fund)),
         circuit_current_a=oc.circuit_fundamental_a,
         circuit_rms_a=oc.circuit_rms_a,
         nonlinear_share_pct=nl_share,
         unplaced_count=np.sum((conn == UNPLACED) & (s_abs > 0), axis=-1),
         three_pole_triplens=tp_triplen,
+        **currents,
         **volt,
         **wiring,
     )
+
+
+def current_figures(
+    phase: np.ndarray,
+    neutral: np.ndarray,
+    phase_weighted: np.ndarray | None,
+    scale: np.ndarray,
+    rating_a: float | np.ndarray,
+    neutral_rating_a: float | np.ndarray,
+) -> dict[str, np.ndarray]:
+    """Phase, neutral and sequence figures from line and neutral spectra.
+
+    Parameters
+    ----------
+    phase : complex ndarray, shape (B..., 3, H)
+        Line currents at each order, the fundamental first [A].
+    neutral : complex ndarray, shape (B..., H)
+        Neutral current at each order [A].
+    phase_weighted : complex ndarray, shape (B..., 3, H), or None
+        Line currents with continuous loads at the continuous factor [A]
+        (None: the same as ``phase``).
+    scale : float ndarray, shape (B...)
+        Sum of the circuits' RMS currents [A]; phasors below
+        ``SNAP_RELATIVE·scale`` are round-off and set to 0.
+    rating_a, neutral_rating_a : float or ndarray of shape (B...)
+        Phase rating (main, else bus) and neutral rating [A].
+
+    Returns
+    -------
+    dict
+        The :class:`~tri.engine.results.BatchAnalysis` fields ``phase_spectrum``
+        to ``max_deviation_fundamental_pct`` [A], [%].
+    """
+    phase_spec = _snap(phase, scale, 2)
+    neutral_spec = _snap(neutral, scale, 1)
+    design_spec = phase_spec if phase_weighted is None else phase_weighted
+    rating = np.asarray(rating_a, dtype=float)[..., None]
+    phase_rms = rms(phase_spec)
+    design_rms = rms(design_spec)
+    neutral_rms = rms(neutral_spec)
+    fund = phase_spec[..., 0]
+    seq = _snap(sequence_components(fund), scale, 1)
+    return {
+        "phase_spectrum": phase_spec,
+        "phase_rms_a": phase_rms,
+        "phase_thd_pct": thd_pct(phase_spec),
+        "phase_loading_pct": 100.0 * phase_rms / rating,
+        "phase_design_a": design_rms,
+        "phase_design_loading_pct": 100.0 * design_rms / rating,
+        "neutral_spectrum": neutral_spec,
+        "neutral_rms_a": neutral_rms,
+        "neutral_loading_pct": 100.0 * neutral_rms / np.asarray(neutral_rating_a, dtype=float),
+        "sequence": seq,
+        "negative_sequence_pct": unbalance_pct(seq, 2),
+        "zero_sequence_pct": unbalance_pct(seq, 0),
+        "max_deviation_pct": deviation_rate_pct(phase_rms),
+        "max_deviation_fundamental_pct": deviation_rate_pct(np.abs(fund)),
+    }
+
+
+def voltage_figures(v_phase: np.ndarray, has_neutral: bool | np.ndarray) -> dict[str, np.ndarray]:
+    """Voltage unbalance figures from panel phase voltages.
+
+    Parameters
+    ----------
+    v_phase : complex ndarray, shape (B..., 3)
+        Phase-to-neutral voltages at the panel [V].
+    has_neutral : bool or bool ndarray of shape (B...)
+        4-wire panels (the phase deviation is NaN on 3-wire ones).
+
+    Returns
+    -------
+    dict
+        The :class:`~tri.engine.results.BatchAnalysis` fields ``v_phase``,
+        ``v_line``, ``vuf_pct``, ``line_deviation_pct``,
+        ``phase_deviation_pct`` and ``motor_derating``.
+    """
+    v_line = line_voltages(v_phase)
+    line_dev = deviation_rate_pct(np.abs(v_line))
+    return {
+        "v_phase": v_phase,
+        "v_line": v_line,
+        "vuf_pct": vuf_pct(v_line),
+        "line_deviation_pct": line_dev,
+        "phase_deviation_pct": np.where(has_neutral, deviation_rate_pct(np.abs(v_phase)), np.nan),
+        "motor_derating": nema_derating(line_dev),
+    }
 
 
 def _f(x: np.ndarray | float) -> float:
@@ -334,18 +388,102 @@ def analyse(
     """
     if np.ndim(circuits.s_va) != 1:
         raise ValueError("analyse() takes one panel; use analyse_batch() for a batch")
-    iterate_requested = iterate_voltage
-    iterate_voltage = iterate_voltage and supply is not None
-    limits = limits or FindingLimits()
     b = analyse_batch(
         circuits,
         system,
         ratings,
         supply,
-        iterate_voltage=iterate_voltage,
+        iterate_voltage=iterate_voltage and supply is not None,
         tol=tol,
         max_iter=max_iter,
     )
+    source = None
+    if supply is not None:
+        z_ph, z_n = supply_impedances(supply, system)
+        tx = transformer_impedance(
+            supply.transformer_kva, supply.transformer_z_pct, supply.transformer_x_r, system.v_ll
+        )
+        source = SourceFigures(complex(z_ph), complex(z_n), tx.full_load_a)
+    return describe_panel(
+        b,
+        system,
+        ratings,
+        source,
+        readings,
+        iterated=iterate_voltage and supply is not None,
+        iterate_requested=iterate_voltage,
+        phase_labels=phase_labels,
+        limits=limits,
+        breaker=circuits.breaker,
+    )
+
+
+@dataclass(frozen=True)
+class SourceFigures:
+    """What is behind a panel, for its voltage result.
+
+    Attributes
+    ----------
+    z_phase_ohm, z_neutral_ohm : complex
+        Phase-path and neutral-path impedance of the source model
+        ``V_p = E_p − Z_phase·I_p − Z_neutral·I_N`` [Ω].
+    transformer_full_load_a : float
+        Rated secondary current of the transformer behind the panel [A].
+    """
+
+    z_phase_ohm: complex
+    z_neutral_ohm: complex
+    transformer_full_load_a: float
+
+
+def describe_panel(
+    b: BatchAnalysis,
+    system: SystemVoltages,
+    ratings: Ratings,
+    source: SourceFigures | None = None,
+    readings: MeasuredReadings | None = None,
+    *,
+    iterated: bool = False,
+    iterate_requested: bool = False,
+    phase_labels: tuple[str, str, str] = ("A", "B", "C"),
+    limits: FindingLimits | None = None,
+    breaker: np.ndarray | None = None,
+) -> PanelAnalysis:
+    """One panel's figures as plain numbers, with findings.
+
+    Parameters
+    ----------
+    b : BatchAnalysis
+        One panel's arrays (no batch dimensions), from :func:`analyse_batch`
+        or from the roll-up of a tree of panels.
+    system : SystemVoltages
+        Nominal voltages [V].
+    ratings : Ratings
+        Ratings [A].
+    source : SourceFigures, optional
+        Impedances behind the panel; the voltage result needs it and
+        ``b.v_phase``.
+    readings : MeasuredReadings, optional
+        Site readings.
+    iterated : bool
+        The currents were solved at the panel voltage (constant power).
+    iterate_requested : bool
+        Voltage iteration was asked for (an info finding says so when there
+        is no source to iterate against).
+    phase_labels : tuple of 3 str
+        Labels for results and messages.
+    limits : FindingLimits, optional
+        Thresholds for findings.
+    breaker : int ndarray, shape (n,), optional
+        ``CircuitArrays.breaker`` of the panel's rows (the legs of each
+        breaker in ``PanelAnalysis.breakers``).
+
+    Returns
+    -------
+    PanelAnalysis
+    """
+    limits = limits or FindingLimits()
+    iterate_voltage = iterated and source is not None
     labels = tuple(phase_labels)
     if len(labels) != 3:
         raise ValueError("phase_labels needs three labels")
@@ -378,11 +516,7 @@ def analyse(
         harmonic_a=tuple(float(x) for x in np.abs(b.neutral_spectrum)),
     )
     voltage = None
-    if supply is not None:
-        z_ph, z_n = supply_impedances(supply, system)
-        tx = transformer_impedance(
-            supply.transformer_kva, supply.transformer_z_pct, supply.transformer_x_r, system.v_ll
-        )
+    if source is not None and b.v_phase is not None:
         vln = system.v_ln_or_derived
         derating = _f(b.motor_derating)
         phase_dev = _f(b.phase_deviation_pct)
@@ -394,9 +528,9 @@ def analyse(
             phase_deviation_pct=None if math.isnan(phase_dev) else phase_dev,
             motor_derating=None if math.isnan(derating) else derating,
             drop_pct=tuple(float(100.0 * (vln - abs(v)) / vln) for v in b.v_phase),  # type: ignore[arg-type]
-            z_phase_ohm=complex(z_ph),
-            z_neutral_ohm=complex(z_n),
-            transformer_full_load_a=tx.full_load_a,
+            z_phase_ohm=source.z_phase_ohm,
+            z_neutral_ohm=source.z_neutral_ohm,
+            transformer_full_load_a=source.transformer_full_load_a,
             iterated=iterate_voltage,
             iterations=int(b.iterations),
             converged=bool(b.converged),
@@ -427,7 +561,7 @@ def analyse(
         circuit_rms_a=tuple(float(x) for x in b.circuit_rms_a),
         nonlinear_share_pct=_f(b.nonlinear_share_pct),
         unplaced_count=int(b.unplaced_count),
-        breakers=breaker_results(b, circuits.breaker),
+        breakers=breaker_results(b, breaker),
         shared_neutrals=shared_neutral_results(b),
     )
     findings = panel_findings(a, limits)
@@ -436,7 +570,7 @@ def analyse(
     if bool(b.three_pole_triplens):
         findings.append(three_pole_triplen_finding())
     findings.extend(voltage_findings(a, limits))
-    if iterate_requested and supply is None:
+    if iterate_requested and source is None:
         findings.append(
             Finding(
                 "info",

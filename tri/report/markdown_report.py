@@ -329,9 +329,13 @@ def _voltage(d: dict[str, Any]) -> list[str]:
     pdev = v["phase_deviation_pct"]
     return [
         *out,
-        f"From the `[supply]` table: transformer {s['transformer_kva']:g} kVA, "
-        f"{s['transformer_z_pct']:g} %, X/R {s['transformer_x_r']:g}; feeder "
-        f"{s['feeder_length_m']:g} m; {basis}.",
+        (
+            f"From the `[supply]` table: transformer {s['transformer_kva']:g} kVA, "
+            f"{s['transformer_z_pct']:g} %, X/R {s['transformer_x_r']:g}; feeder "
+            f"{s['feeder_length_m']:g} m; {basis}."
+            if s is not None
+            else f"Through what feeds it: {md_escape(str(v.get('source')))}; {basis}."
+        ),
         "",
         *_table(["Phase", "Phase voltage", "Drop", "Line", "Line voltage"], rows, "lrrlr"),
         "",

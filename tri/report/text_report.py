@@ -279,10 +279,15 @@ def _voltage(d: dict[str, Any], g: _Glyphs) -> RenderableType:
         )
     labels = d["phase_order"]
     lines = line_labels(tuple(labels))  # type: ignore[arg-type]
-    head = Text(
+    source = (
         f"Estimate from the [supply] table: transformer {s['transformer_kva']:g} kVA, "
         f"{s['transformer_z_pct']:g} % impedance, X/R {s['transformer_x_r']:g}; feeder "
         f"{s['feeder_length_m']:g} m. "
+        if s is not None
+        else f"Estimate through what feeds it: {v.get('source')}. "  # a panel of a building
+    )
+    head = Text(
+        source
         + (
             f"Loads iterated at the panel voltage ({v['iterations']} iterations"
             + ("" if v["converged"] else ", NOT converged")

@@ -12,6 +12,7 @@ from dataclasses import dataclass, field, replace
 from typing import Literal
 
 from tri.engine.inputs import SupplyImpedance
+from tri.schedule.feeds import Feed
 from tri.schedule.log_spec import LogSpec
 from tri.schedule.slots import RIGHT_ABC, TWO_COLUMN, slot_phases
 from tri.schedule.systems import SYSTEMS, SupplySystem
@@ -212,6 +213,9 @@ class Circuit:
     source_index : int or None
         Position of the circuit's table in the file it was loaded from; lets
         saving update that table in place. Not part of equality.
+    feed : Feed or None
+        For a feeder circuit: the panel it feeds, the feeder conductors and
+        any transformer (its load is that panel's; ``load_value`` is 0).
     """
 
     name: str
@@ -235,6 +239,7 @@ class Circuit:
     rcd: str | None = None
     use: tuple[tuple[str, float], ...] = ()
     source_index: int | None = field(default=None, compare=False)
+    feed: Feed | None = None
 
     @property
     def is_placed(self) -> bool:

@@ -12,6 +12,7 @@ from collections.abc import Mapping
 from typing import Any
 
 from tri.schedule.errors import name_circuit
+from tri.schedule.feeds import FEED_KEYS, check_feeder_circuit, read_feed
 from tri.schedule.locate import TableKey
 from tri.schedule.model import DEFAULT_LABELS, LOAD_KEYS, Circuit, PanelInfo, parse_phase_text
 from tri.schedule.read_panel import MAX_SPACES
@@ -46,6 +47,7 @@ CIRCUIT_KEYS = (
     *_PLACEMENT_KEYS,
     *LOAD_KEYS,
     *(k for k in CIRCUIT_RULES if k not in _PLACEMENT_KEYS),
+    *FEED_KEYS,
     "use",
 )
 
@@ -107,7 +109,12 @@ def read_circuit(
     v = read_rules(r, raw, CIRCUIT_RULES, table, where, index)
     if isinstance(v["name"], str) and not v["name"].strip():
         r.add("found an empty name, expected the circuit's purpose", table, "name", where, index)
-    load_kind, load_value = _read_load(r, raw, table, where, index, spare=v["spare"] is True)
+    feed = read_feed(r, raw, table, where, index)
+    if "feeds" in raw:  # a feeder's load is the panel it feeds
+        check_feeder_circuit(r, raw, v["poles"], table, where, index)
+        load_kind, load_value = "va", 0.0
+    else:
+        load_kind, load_value = _read_load(r, raw, table, where, index, spare=v["spare"] is True)
     use = read_use(r.add, raw, table, where, index)
     phases: Any = None
     if "phases" in raw:
@@ -121,7 +128,8 @@ def read_circuit(
             return None
         v.update(_STAND_IN, name=v["name"] if isinstance(v["name"], str) else "")
         load_kind, load_value = "va", 0.0
-    poles = v["poles"] if v["poles"] is not None else (len(phases) if phases else 1)
+    default_poles = 3 if "feeds" in raw else (len(phases) if phases else 1)
+    poles = v["poles"] if v["poles"] is not None else default_poles
     slot = v["slot"]
     legs = load_value if isinstance(load_value, tuple) else None
     placed: tuple[int, ...] | None = None
@@ -151,6 +159,7 @@ def read_circuit(
         rcd=_name_or_none(v["rcd"]),
         use=use or (),
         source_index=index,
+        feed=feed,
     )
 
 

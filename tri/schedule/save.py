@@ -297,12 +297,13 @@ def _write_circuit(table: Any, c: Circuit, schedule: Schedule) -> None:
     poles_default = len(c.phases) if (panel.layout == PHASES and c.phases) else 1
     if "poles" in table or c.poles != poles_default:
         _set(table, "poles", c.poles)
-    load_key = None if c.spare else f"load_{c.load_kind}"
-    for key in ("load_va", "load_w", "load_a"):
-        if key != load_key and key in table:
-            del table[key]
-    if load_key is not None:
-        _set(table, load_key, c.load_value if c.leg_values is None else c.leg_values)
+    if c.feed is None:  # a feeder circuit's load is its panel's; its feeds keys stay as written
+        load_key = None if c.spare else f"load_{c.load_kind}"
+        for key in ("load_va", "load_w", "load_a"):
+            if key != load_key and key in table:
+                del table[key]
+        if load_key is not None:
+            _set(table, load_key, c.load_value if c.leg_values is None else c.leg_values)
     _set(table, "pf", c.pf, 1.0)
     _set(table, "leading", c.leading, False)
     _set(table, "profile", c.profile, "linear")

@@ -26,7 +26,7 @@ from tri.engine.inputs import (
 from tri.engine.legs import shared_neutral_finding
 from tri.engine.loading import FindingLimits
 from tri.engine.profiles import profile_matrix
-from tri.engine.results import PanelAnalysis
+from tri.engine.results import Finding, PanelAnalysis
 from tri.schedule.model import Circuit, Schedule
 from tri.schedule.wiring import (
     LEG_LINE_TO_LINE,
@@ -193,7 +193,7 @@ def analyse_schedule(
     limits : FindingLimits, optional
         Thresholds for findings.
     """
-    analysis = analyse(
+    result = analyse(
         circuit_arrays(schedule),
         system_voltages(schedule),
         ratings(schedule, continuous_factor),
@@ -203,7 +203,17 @@ def analyse_schedule(
         phase_labels=schedule.labels,
         limits=limits,
     )
-    return per_circuit(analysis, schedule)
+    result = per_circuit(result, schedule)
+    fed = [c.feed.path for c in schedule.circuits if c.feed is not None]
+    if fed:  # one panel of a building, analysed alone (the UI, tri suggest)
+        note = Finding(
+            "info",
+            f"This panel feeds {len(fed)} panel(s) ({', '.join(fed)}); these figures leave "
+            "them out. `tri report` on this file rolls the whole building up.",
+            "tri roll-up (feeder circuits carry no load of their own)",
+        )
+        result = dataclasses.replace(result, findings=(*result.findings, note))
+    return result
 
 
 def per_circuit(analysis: PanelAnalysis, schedule: Schedule) -> PanelAnalysis:
@@ -240,7 +250,7 @@ def _group_text(group: NeutralGroup, schedule: Schedule) -> str:
     """``'N21' (slots 21, 23)`` or ``'N21' (Copier, Printer)`` on a rail board."""
     cs = [schedule.circuits[i] for i in group.circuits]
     if all(c.slot is not None for c in cs):
-        where = "slots " + ", ".join(str(c.slot) for c in cs)
+        where = "slots " + ", ".join(str(slot) for slot in sorted(c.slot for c in cs))
     else:
         where = ", ".join(c.name for c in cs)
     return f"'{group.label(schedule)}' ({where})"

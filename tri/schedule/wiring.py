@@ -25,7 +25,7 @@ from __future__ import annotations
 
 import itertools
 import math
-from collections.abc import Callable
+from collections.abc import Callable, Iterable
 from dataclasses import dataclass
 
 from tri.schedule.errors import ScheduleIssue
@@ -348,6 +348,26 @@ def rebalancer_refusal(schedule: Schedule) -> list[str]:
             more = f" and {len(wheres) - 3} more" if len(wheres) > 3 else ""
             out.append(
                 f"{what} are not yet supported by the rebalancer ({', '.join(wheres[:3])}{more})"
+            )
+    return out
+
+
+def building_refusal(panels: Iterable[tuple[str, Schedule]]) -> list[str]:
+    """What in a building (``(file, schedule)`` per panel) the roll-up cannot honour yet.
+
+    The building's roll-up takes every panel as a balanced wye source with
+    one current per circuit; a high-leg delta, a breaker with a load per leg
+    or a shared neutral would come out wrong, so such a building is refused
+    (each panel alone is still reported in full).
+    """
+    out = []
+    for shown, schedule in panels:
+        if schedule.panel.effective_high_leg is not None:
+            out.append(f"{shown}: a high-leg delta panel is not yet supported in a building")
+        if any(c.has_legs or c.shared_neutral is not None for c in schedule.circuits):
+            out.append(
+                f"{shown}: breakers with a neutral, one load per leg or shared neutrals are not "
+                "yet supported in a building"
             )
     return out
 
