@@ -187,7 +187,7 @@ def test_a_feeder_with_a_load_key(tmp_path):
     ("extra", "expected"),
     [
         ("feeder = 30", "expected an inline table"),
-        ("feeder = { length_m = -3 }", "length_m: found -3.0, expected 0 to 10000 m"),
+        ("feeder = { length_m = -3 }", "length_m: found -3, expected 0 to 10 000 m"),
         ("feeder = { lenght_m = 3 }", "did you mean 'length_m'"),
         (
             'transformer = { kva = 45, z_pct = 3.5, x_r = 2, connection = "Dzn", '

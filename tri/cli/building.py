@@ -74,14 +74,16 @@ def building_report_data(path: str, *, iterate: bool, continuous_factor: float) 
     return building_data(result, tree, caution=SAFETY_CAUTION)
 
 
-def check_entries(data: dict[str, Any], maxima: dict[str, float]) -> list[dict[str, Any]]:
+def check_entries(
+    data: dict[str, Any], maxima: dict[str, float | None], *, light_load_pct: float
+) -> list[dict[str, Any]]:
     """One ``tri check`` entry per panel of a building (the service first)."""
     from tri.report.check_report import evaluate, panel_status
 
     entries = []
     for p in data["building"]["panels"]:
         report = p["report"]
-        results = evaluate(report, maxima)
+        results = evaluate(report, maxima, light_load_pct=light_load_pct)
         if p["depth"]:  # a fed panel's voltage comes through its feeder, not a [supply]
             results = [
                 dataclasses.replace(r, where=r.where.replace("from [supply]", "through its feeder"))

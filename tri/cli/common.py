@@ -5,6 +5,7 @@ from __future__ import annotations
 import sys
 
 from tri.schedule.load import ScheduleFile, load_schedule
+from tri.schedule.text import escaped
 
 EXIT_OK = 0
 EXIT_LIMIT = 1  #: ``tri check`` found a limit exceeded
@@ -24,8 +25,8 @@ class CliError(Exception):
 
 
 def print_error(message: str) -> None:
-    """Print ``tri: error: ...`` to standard error."""
-    print(f"tri: error: {message}", file=sys.stderr)
+    """Print ``tri: error: ...`` to standard error (control characters shown escaped)."""
+    print(f"tri: error: {escaped(message, keep_newlines=True)}", file=sys.stderr)
 
 
 def load(path: str) -> ScheduleFile:

@@ -42,18 +42,23 @@ from tri.engine.inputs import (
     SystemVoltages,
 )
 from tri.engine.legs import (
+    breaker_calculated_a,
     breaker_results,
     check_wiring_inputs,
     shared_neutral_results,
     wiring_spectra,
 )
+from tri.engine.limits import LEVEL_RANK, FindingLimits
 from tri.engine.loading import (
-    FindingLimits,
+    breaker_findings,
+    calculated_load_a,
+    circuit_calculated_a,
     continuous_weights,
-    panel_findings,
-    three_pole_triplen_finding,
-    voltage_findings,
+    loading_findings,
+    loading_pct,
+    neutral_calculated_load_a,
 )
+from tri.engine.neutral_rules import neutral_findings, three_pole_triplen_finding
 from tri.engine.phasors import (
     element_currents,
     line_voltages,
@@ -73,7 +78,12 @@ from tri.engine.results import (
 )
 from tri.engine.sequence import sequence_components, unbalance_pct
 from tri.engine.supply import solve_voltages, supply_impedances, transformer_impedance
-from tri.engine.unbalance import deviation_rate_pct, nema_derating, vuf_pct
+from tri.engine.unbalance import deviation_rate_pct, max_minus_min_pct, nema_derating, vuf_pct
+from tri.engine.unbalance_findings import (
+    deviation_findings,
+    phase_kva_findings,
+    voltage_findings,
+)
 
 #: Phasors smaller than this fraction of the panel's total circuit current are
 #: round-off and are set to exactly 0 (so a balanced neutral reads 0∠0°) [-].
@@ -101,7 +111,7 @@ def check_inputs(circuits: CircuitArrays, system: SystemVoltages, ratings: Ratin
     shape = np.shape(circuits.s_va)
     if not shape:
         raise ValueError("circuit arrays need at least one axis (circuits)")
-    for name in ("connection", "phase_p", "phase_q", "continuous"):
+    for name in ("connection", "phase_p", "phase_q", "continuous", "breaker_a"):
         if np.shape(getattr(circuits, name)) != shape:
             raise ValueError(f"{name} has shape {np.shape(getattr(circuits, name))}, not {shape}")
     h = np.shape(circuits.orders)
@@ -133,6 +143,9 @@ def check_inputs(circuits: CircuitArrays, system: SystemVoltages, ratings: Ratin
             raise ValueError(f"rating {name} must be > 0, got {value!r}")
     if not ratings.continuous_factor > 0:
         raise ValueError("continuous_factor must be > 0")
+    breakers = np.asarray(circuits.breaker_a, dtype=float)
+    if np.any(~np.isnan(breakers) & ~(breakers > 0)) or np.any(np.isinf(breakers)):
+        raise ValueError("breaker ratings must be > 0 and finite (NaN: none)")
     check_wiring_inputs(circuits, system)
 
 
@@ -140,6 +153,34 @@ def _snap(x: np.ndarray, scale: np.ndarray, extra_dims: int) -> np.ndarray:
     """Zero phasors below ``SNAP_RELATIVE·scale`` (``scale`` per panel)."""
     s = np.reshape(scale, np.shape(scale) + (1,) * extra_dims)
     return np.where(np.abs(x) <= SNAP_RELATIVE * s, 0, x)
+
+
+def _code_figures(
+    circuits: CircuitArrays,
+    system: SystemVoltages,
+    ratings: Ratings,
+    rating: float,
+    nonlinear: np.ndarray,
+    total_va: np.ndarray,
+) -> dict[str, np.ndarray]:
+    """The figures of the code's calculation (scheduled loads) and the non-linear
+    line-to-neutral share, as :class:`BatchAnalysis` fields."""
+    factor = ratings.continuous_factor
+    e = supply_phase_voltages(system)
+    calculated = calculated_load_a(circuits, factor, e)
+    s_abs = np.abs(np.asarray(circuits.s_va))
+    ln = np.asarray(circuits.connection) == LINE_TO_NEUTRAL
+    nl_ln_va = np.sum(np.where(nonlinear & ln, s_abs, 0.0), axis=-1)
+    safe = np.where(total_va > 0, total_va, 1.0)
+    return {
+        "phase_calculated_a": calculated,
+        "phase_calculated_pct": loading_pct(calculated, rating),
+        "neutral_calculated_a": neutral_calculated_load_a(circuits, e),
+        "circuit_calculated_a": breaker_calculated_a(
+            circuits, circuit_calculated_a(circuits, factor, e), factor, e
+        ),
+        "nonlinear_ln_share_pct": np.where(total_va > 0, 100.0 * nl_ln_va / safe, 0.0),
+    }
 
 
 def analyse_batch(
@@ -232,9 +273,37 @@ def analyse_batch(
         unplaced_count=np.sum((conn == UNPLACED) & (s_abs > 0), axis=-1),
         three_pole_triplens=tp_triplen,
         **currents,
+        **_code_figures(circuits, system, ratings, rating, nonlinear, total_va),
         **volt,
         **wiring,
     )
+
+
+def _findings(
+    a: PanelAnalysis,
+    circuits: CircuitArrays | None,
+    ratings: Ratings,
+    limits: FindingLimits,
+    names: tuple[str, ...],
+    wye: bool,
+) -> list[Finding]:
+    """Loading, breaker, neutral and balance findings of one panel (unsorted)."""
+    out = loading_findings(a, ratings, limits)
+    if circuits is not None:
+        out += breaker_findings(a, circuits.breaker_a, circuits.continuous, names, circuits.breaker)
+    out += neutral_findings(a, limits, wye)
+    out += deviation_findings(a, limits)
+    out += phase_kva_findings(a, limits)
+    if a.unplaced_count:
+        out.append(
+            Finding(
+                "info",
+                f"{a.unplaced_count} circuit(s) not placed on a phase are left out of the "
+                "phase figures.",
+                "tri schedule convention",
+            )
+        )
+    return out
 
 
 def current_figures(
@@ -266,7 +335,7 @@ def current_figures(
     -------
     dict
         The :class:`~tri.engine.results.BatchAnalysis` fields ``phase_spectrum``
-        to ``max_deviation_fundamental_pct`` [A], [%].
+        to ``max_deviation_fundamental_pct`` and ``max_minus_min_pct`` [A], [%].
     """
     phase_spec = _snap(phase, scale, 2)
     neutral_spec = _snap(neutral, scale, 1)
@@ -292,6 +361,7 @@ def current_figures(
         "zero_sequence_pct": unbalance_pct(seq, 0),
         "max_deviation_pct": deviation_rate_pct(phase_rms),
         "max_deviation_fundamental_pct": deviation_rate_pct(np.abs(fund)),
+        "max_minus_min_pct": max_minus_min_pct(phase_rms),
     }
 
 
@@ -342,6 +412,7 @@ def analyse(
     iterate_voltage: bool = False,
     phase_labels: tuple[str, str, str] = ("A", "B", "C"),
     limits: FindingLimits | None = None,
+    circuit_labels: tuple[str, ...] | None = None,
     tol: float = 1e-9,
     max_iter: int = 100,
 ) -> PanelAnalysis:
@@ -365,8 +436,10 @@ def analyse(
     phase_labels : tuple of 3 str
         Labels for results and messages (e.g. ``("L1", "L2", "L3")``).
     limits : FindingLimits, optional
-        Thresholds for findings (defaults: common practice and the cited
-        standards).
+        Thresholds for findings (defaults: :mod:`tri.engine.limits`).
+    circuit_labels : tuple of str, optional
+        How findings name each circuit row (slot or phases, and name);
+        default ``"circuit 1"``, ``"circuit 2"``, ...
     tol, max_iter : float, int
         Voltage iteration tolerance [pu of V_LN] and limit.
 
@@ -414,7 +487,8 @@ def analyse(
         iterate_requested=iterate_voltage,
         phase_labels=phase_labels,
         limits=limits,
-        breaker=circuits.breaker,
+        circuits=circuits,
+        circuit_labels=circuit_labels,
     )
 
 
@@ -447,7 +521,8 @@ def describe_panel(
     iterate_requested: bool = False,
     phase_labels: tuple[str, str, str] = ("A", "B", "C"),
     limits: FindingLimits | None = None,
-    breaker: np.ndarray | None = None,
+    circuits: CircuitArrays | None = None,
+    circuit_labels: tuple[str, ...] | None = None,
 ) -> PanelAnalysis:
     """One panel's figures as plain numbers, with findings.
 
@@ -474,9 +549,15 @@ def describe_panel(
         Labels for results and messages.
     limits : FindingLimits, optional
         Thresholds for findings.
-    breaker : int ndarray, shape (n,), optional
-        ``CircuitArrays.breaker`` of the panel's rows (the legs of each
-        breaker in ``PanelAnalysis.breakers``).
+    circuits : CircuitArrays, optional
+        The panel's own circuit rows (breaker ratings and continuous flags
+        for the per-breaker check, in the row order of ``b``'s per-circuit
+        arrays; their ``breaker`` numbers gather the legs of each breaker in
+        ``PanelAnalysis.breakers``); without them no breaker is judged.
+    circuit_labels : tuple of str, optional
+        How findings name each circuit row (slot or phases, and name; the
+        legs of one breaker share its label); default ``"circuit 1"``,
+        ``"circuit 2"``, ...
 
     Returns
     -------
@@ -499,6 +580,8 @@ def describe_panel(
             loading_pct=_f(b.phase_loading_pct[k]),
             design_a=_f(b.phase_design_a[k]),
             design_loading_pct=_f(b.phase_design_loading_pct[k]),
+            calculated_a=_f(b.phase_calculated_a[k]),
+            calculated_pct=_f(b.phase_calculated_pct[k]),
             harmonic_a=tuple(float(x) for x in np.abs(b.phase_spectrum[k])),
         )
         for k in range(3)
@@ -514,6 +597,7 @@ def describe_panel(
         loading_pct=_f(b.neutral_loading_pct) if system.has_neutral else None,
         ratio_to_max_phase=neutral_rms / max_phase if max_phase > 0 else 0.0,
         harmonic_a=tuple(float(x) for x in np.abs(b.neutral_spectrum)),
+        calculated_a=_f(b.neutral_calculated_a) if system.has_neutral else None,
     )
     voltage = None
     if source is not None and b.v_phase is not None:
@@ -553,6 +637,7 @@ def describe_panel(
             zero_sequence_pct=_f(b.zero_sequence_pct),
             max_deviation_pct=_f(b.max_deviation_pct),
             max_deviation_fundamental_pct=_f(b.max_deviation_fundamental_pct),
+            max_minus_min_pct=_f(b.max_minus_min_pct),
         ),
         voltage=voltage,
         readings=None,
@@ -561,10 +646,19 @@ def describe_panel(
         circuit_rms_a=tuple(float(x) for x in b.circuit_rms_a),
         nonlinear_share_pct=_f(b.nonlinear_share_pct),
         unplaced_count=int(b.unplaced_count),
-        breakers=breaker_results(b, breaker),
+        breakers=breaker_results(b, None if circuits is None else circuits.breaker),
         shared_neutrals=shared_neutral_results(b),
+        nonlinear_ln_share_pct=_f(b.nonlinear_ln_share_pct),
+        circuit_calculated_a=tuple(float(x) for x in b.circuit_calculated_a),
     )
-    findings = panel_findings(a, limits)
+    n_rows = len(a.circuit_rms_a)
+    names = circuit_labels or tuple(f"circuit {k + 1}" for k in range(n_rows))
+    if len(names) != n_rows:
+        raise ValueError(f"circuit_labels has {len(names)} labels for {n_rows} circuits")
+    # 310.15(E) and IEC Annex E are written for the neutral of a wye; a high-leg delta's
+    # neutral is the centre tap of one winding
+    wye = system.has_neutral and system.high_leg is None
+    findings = _findings(a, circuits, ratings, limits, names, wye)
     if system.high_leg is not None:
         findings.append(high_leg_caution(labels[system.high_leg], system.v_ll))
     if bool(b.three_pole_triplens):
@@ -585,6 +679,5 @@ def describe_panel(
         if system.high_leg is not None:  # unequal phase voltages by design: no deviation rate
             comparison = dataclasses.replace(comparison, phase_deviation_pct=None)
         findings.extend(more)
-    order = {"limit": 0, "warning": 1, "info": 2}
-    findings.sort(key=lambda f: order[f.level])
+    findings.sort(key=lambda f: LEVEL_RANK[f.level])
     return dataclasses.replace(a, readings=comparison, findings=tuple(findings))

@@ -98,6 +98,10 @@ class CircuitArrays:
         panel neutral alone: rows with the same number share one neutral
         conductor (a multi-wire branch circuit), whose current the analysis
         adds at every order. ``None``: no shared neutrals.
+    breaker_a : float ndarray, shape (..., n)
+        Rating of each circuit's breaker [A]; NaN where none is given (the
+        circuit is then not checked against its breaker). The legs of one
+        breaker carry the same rating.
     """
 
     s_va: np.ndarray
@@ -109,10 +113,13 @@ class CircuitArrays:
     continuous: np.ndarray = field(default=None)  # type: ignore[assignment]
     breaker: np.ndarray | None = None
     neutral_group: np.ndarray | None = None
+    breaker_a: np.ndarray = field(default=None)  # type: ignore[assignment]
 
     def __post_init__(self) -> None:
         if self.continuous is None:
             object.__setattr__(self, "continuous", np.zeros(np.shape(self.s_va), dtype=bool))
+        if self.breaker_a is None:
+            object.__setattr__(self, "breaker_a", np.full(np.shape(self.s_va), np.nan))
 
     @property
     def n_circuits(self) -> int:

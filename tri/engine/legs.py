@@ -37,7 +37,7 @@ import numpy as np
 
 from tri.engine.harmonics import all_orders, polar_unit, rms, three_wire_rotation, unit_powers
 from tri.engine.inputs import CircuitArrays, SystemVoltages
-from tri.engine.phasors import connection_masks, incidence
+from tri.engine.phasors import PHASE_UNIT, connection_masks, element_currents, incidence
 from tri.engine.results import BatchAnalysis, BreakerCurrents, Finding, Phasor, SharedNeutralResult
 
 #: Source of the shared-neutral finding.
@@ -94,6 +94,58 @@ def wiring_spectra(circuits: CircuitArrays, i_element: np.ndarray) -> dict[str, 
     if circuits.neutral_group is not None:
         out["shared_neutral_spectrum"] = group_neutral_spectra(circuits, spectra)
     return out
+
+
+def breaker_calculated_a(
+    circuits: CircuitArrays,
+    row_calculated_a: np.ndarray,
+    factor: float,
+    v_phase: np.ndarray,
+) -> np.ndarray:
+    """Each row's calculated load for its breaker, a breaker with legs judged on its largest pole.
+
+    Parameters
+    ----------
+    circuits : CircuitArrays
+        Rows, shape (..., n); ``breaker`` optional.
+    row_calculated_a : ndarray, shape (..., n)
+        Each row's own calculated load
+        (:func:`tri.engine.loading.circuit_calculated_a`) [A].
+    factor : float
+        Continuous factor [-].
+    v_phase : complex ndarray, shape (3,)
+        Nominal phase-to-neutral phasors [V].
+
+    Returns
+    -------
+    ndarray, shape (..., n)
+        ``row_calculated_a`` where a row is its breaker's only one; for every
+        row of a breaker with several legs, the breaker's largest pole
+        current from the scheduled loads at nominal voltage,
+        ``max_k |Σ_{r∈b} w_r·M_k,r·I_r|`` [A] (``w`` the continuous factor on
+        continuous rows, ``M`` the incidence, ``I`` the nominal element
+        current): for legs to neutral, one per pole, that is the largest
+        leg's own current; for a delta load the phasor sum of the two
+        line-to-line loads on a pole (``√3`` times a leg's current when
+        balanced, the code's ``S/(√3·V_LL)``) [computed].
+    """
+    row = np.asarray(row_calculated_a, dtype=float)
+    if circuits.breaker is None:
+        return row
+    breaker = np.asarray(circuits.breaker)
+    nb = int(breaker.max()) + 1 if breaker.size else 0
+    weights = np.where(np.asarray(circuits.continuous, dtype=bool), factor, 1.0)
+    i_nominal = weights * element_currents(circuits, v_phase)
+    _, _, tp = connection_masks(circuits)
+    rotation = np.where(tp[..., None, :], PHASE_UNIT[:, None], 0.0)  # a 3-pole row: I·1∠φ_k
+    lines = (incidence(circuits) + rotation) * i_nominal[..., None, :]  # (..., 3, n)
+    member = _one_hot(breaker, nb)  # (..., nb, n)
+    pole_max = np.max(np.abs(member @ np.swapaxes(lines, -1, -2)), axis=-1)  # (..., nb)
+    legs = np.sum(member, axis=-1)  # rows per breaker
+    index = np.clip(breaker, 0, max(nb - 1, 0))
+    per_row = np.take_along_axis(pole_max, index, axis=-1)
+    several = np.take_along_axis(legs, index, axis=-1) > 1
+    return np.where(several, per_row, row)
 
 
 def breaker_results(b: BatchAnalysis, breaker: np.ndarray | None) -> tuple[BreakerCurrents, ...]:

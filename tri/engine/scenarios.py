@@ -75,15 +75,19 @@ def scale_circuits(circuits: CircuitArrays, factors: np.ndarray) -> CircuitArray
     def rep(x: np.ndarray) -> np.ndarray:
         return np.broadcast_to(np.asarray(x), (s, *np.shape(x))).copy()
 
-    return dataclasses.replace(
-        circuits,
-        s_va=np.asarray(circuits.s_va) * f,
-        connection=rep(circuits.connection),
-        phase_p=rep(circuits.phase_p),
-        phase_q=rep(circuits.phase_q),
-        harmonics=rep(circuits.harmonics),
-        continuous=rep(circuits.continuous),
-    )
+    per_circuit = {name: rep(getattr(circuits, name)) for name in _per_circuit_fields(circuits)}
+    return dataclasses.replace(circuits, s_va=np.asarray(circuits.s_va) * f, **per_circuit)
+
+
+def _per_circuit_fields(circuits: CircuitArrays) -> list[str]:
+    """Names of the per-circuit arrays besides ``s_va`` (whatever fields CircuitArrays gains)."""
+    shape = np.shape(circuits.s_va)
+    return [
+        fld.name
+        for fld in dataclasses.fields(circuits)
+        if fld.name not in ("s_va", "orders")
+        and np.shape(getattr(circuits, fld.name))[: len(shape)] == shape
+    ]
 
 
 def analyse_scenarios(
@@ -119,11 +123,7 @@ def analyse_scenarios(
         one = dataclasses.replace(
             batch,
             s_va=batch.s_va[k],
-            connection=batch.connection[k],
-            phase_p=batch.phase_p[k],
-            phase_q=batch.phase_q[k],
-            harmonics=batch.harmonics[k],
-            continuous=batch.continuous[k],
+            **{name: getattr(batch, name)[k] for name in _per_circuit_fields(batch)},
         )
         out.append(
             analyse(

@@ -259,6 +259,56 @@ def _iterate(
     return v, sweeps, converged
 
 
+def roll_up_phase_va(
+    tree: PackedTree, own_va: np.ndarray, fed_fund: np.ndarray, *, same_phase_only: bool = False
+) -> tuple[np.ndarray, np.ndarray]:
+    """A per-phase VA figure of every node with its whole subtree added.
+
+    Parameters
+    ----------
+    tree : PackedTree
+    own_va : float ndarray, shape (N, 3)
+        Each node's own figure per phase [VA].
+    fed_fund : float ndarray, shape (N, 3)
+        Magnitude of each node's fundamental feeder currents in its parent's
+        frame [A] (the weights of the split through a transformer).
+    same_phase_only : bool
+        For a figure that follows the neutral (line-to-neutral load): a child
+        adds phase by phase where zero sequence passes (no transformer, or
+        ``YNyn``) and nothing through any other transformer.
+
+    Returns
+    -------
+    total : float ndarray, shape (N, 3)
+        Own plus subtree [VA].
+    contribution : float ndarray, shape (N, 3)
+        What each node adds to its parent, per parent phase [VA] (0 for the
+        root).
+
+    Notes
+    -----
+    The schedule convention of ``TreeSolution.phase_va``: a child without a
+    transformer adds its phase VA phase by phase; through a transformer its
+    total is shared among the primary phases in proportion to their
+    fundamental currents.
+    """
+    total = np.array(own_va, dtype=float, copy=True)
+    contribution = np.zeros_like(total)
+    for idx in reversed(tree.levels[1:]):
+        parents = tree.parent[idx]
+        if same_phase_only:
+            passes = ~tree.has_tx[idx] | tree.zero_pass[idx]
+            child = np.where(passes[:, None], total[idx], 0.0)
+        else:
+            share = np.sum(total[idx], axis=-1, keepdims=True)
+            weight = np.sum(fed_fund[idx], axis=-1, keepdims=True)
+            split = np.where(weight > 0, fed_fund[idx] / np.where(weight > 0, weight, 1.0), 1 / 3)
+            child = np.where(tree.has_tx[idx, None], share * split, total[idx])
+        contribution[idx] = child
+        np.add.at(total, parents, child)
+    return total, contribution
+
+
 def _bookkeeping(tree: PackedTree, oc_rms: np.ndarray, oc, fed: Spectra, va: np.ndarray):
     """Per-circuit figures with feeder rows filled, and the VA roll-up."""
     circuits = tree.circuits
@@ -271,18 +321,13 @@ def _bookkeeping(tree: PackedTree, oc_rms: np.ndarray, oc, fed: Spectra, va: np.
     scale = np.sum(oc_rms, axis=-1)
     cur = oc.circuit_fundamental_a.copy()
     cur_rms = oc_rms.copy()
-    phase_va = va.copy()
     fed_fund = np.abs(fed.phase[..., 0])
     fed_rms = rms(fed.phase)
+    phase_va, _ = roll_up_phase_va(tree, va, fed_fund)
     for idx in reversed(tree.levels[1:]):
         parents, rows = tree.parent[idx], tree.feeder_row[idx]
         cur[parents, rows] = np.max(fed_fund[idx], axis=-1)
         cur_rms[parents, rows] = np.max(fed_rms[idx], axis=-1)
-        share = np.sum(phase_va[idx], axis=-1, keepdims=True)
-        weight = np.sum(fed_fund[idx], axis=-1, keepdims=True)
-        split = np.where(weight > 0, fed_fund[idx] / np.where(weight > 0, weight, 1.0), 1 / 3)
-        child_va = np.where(tree.has_tx[idx, None], share * split, phase_va[idx])
-        np.add.at(phase_va, parents, child_va)
         np.add.at(total_va, parents, total_va[idx])
         np.add.at(nl_va, parents, nl_va[idx])
         np.add.at(scale, parents, scale[idx])

@@ -24,9 +24,10 @@ import numpy as np
 from tri.engine.analysis import SourceFigures, current_figures, describe_panel, voltage_figures
 from tri.engine.harmonics import rms
 from tri.engine.inputs import MeasuredReadings
-from tri.engine.loading import LOCAL, FindingLimits
+from tri.engine.limits import LOCAL, RATING_PCT, FindingLimits, exceeds
 from tri.engine.results import BatchAnalysis, Finding, PanelAnalysis, Phasor
 from tri.engine.tree import Progress, TreeSolution, solve_tree
+from tri.engine.tree_code import tree_code_figures
 from tri.engine.tree_inputs import PackedTree, PanelLink, TreeInputs, pack_tree
 
 #: Zero-sequence current below this fraction of the transformer's rated
@@ -177,6 +178,7 @@ def tree_batch(tree: PackedTree, sol: TreeSolution) -> BatchAnalysis:
         iterations=np.full(count, sol.iterations),
         converged=np.full(count, sol.converged),
         **currents,
+        **tree_code_figures(tree, sol),
         **volt,
     )
 
@@ -187,6 +189,7 @@ def _take(b: BatchAnalysis, i: int, n_rows: int) -> BatchAnalysis:
         one,
         circuit_current_a=one.circuit_current_a[:n_rows],
         circuit_rms_a=one.circuit_rms_a[:n_rows],
+        circuit_calculated_a=one.circuit_calculated_a[:n_rows],
     )
 
 
@@ -253,7 +256,8 @@ def tree_findings(
     feeder : FeederResult or None
         The node's feeder figures.
     limits : FindingLimits
-        ``loading_warn_pct`` is also the transformer's headroom warning [%].
+        ``headroom_pct`` is also the transformer's headroom warning (a design
+        margin, not a code rule) [%].
 
     Returns
     -------
@@ -274,7 +278,7 @@ def tree_findings(
     if tx is None:
         return out
     name = f"The {tx.kva:g} kVA {tx.group} transformer feeding this panel"
-    if tx.loading_pct > 100.0:
+    if exceeds(tx.loading_pct, RATING_PCT):
         out.append(
             Finding(
                 "limit",
@@ -283,7 +287,7 @@ def tree_findings(
                 f"transformer nameplate rating (common practice); {LOCAL}",
             )
         )
-    elif tx.loading_pct > limits.loading_warn_pct:
+    elif exceeds(tx.loading_pct, limits.headroom_pct):
         out.append(
             Finding(
                 "warning",
@@ -326,6 +330,7 @@ def analyse_tree(
     *,
     readings: tuple[MeasuredReadings | None, ...] | None = None,
     phase_labels: tuple[tuple[str, str, str], ...] | None = None,
+    circuit_labels: tuple[tuple[str, ...], ...] | None = None,
     iterate_voltage: bool = False,
     limits: FindingLimits | None = None,
     tol: float = 1e-9,
@@ -342,6 +347,9 @@ def analyse_tree(
         Site readings per node.
     phase_labels : tuple of label triples, optional
         Per node (default ``("A", "B", "C")``).
+    circuit_labels : tuple of (tuple of str), optional
+        Per node, how findings name each circuit row (slot or phases, and
+        name); default ``"circuit 1"``, ...
     iterate_voltage : bool
         Solve every load as constant power at its panel's voltage.
     limits : FindingLimits, optional
@@ -383,6 +391,8 @@ def analyse_tree(
             iterate_requested=iterate_voltage,
             phase_labels=("A", "B", "C") if phase_labels is None else phase_labels[i],
             limits=limits,
+            circuits=node.circuits,
+            circuit_labels=None if circuit_labels is None else circuit_labels[i],
         )
         feeder = None if node.link is None else _feeder(packed, sol, i, node.link)
         extra = tree_findings(packed, sol, i, feeder, limits)

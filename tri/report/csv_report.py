@@ -47,8 +47,13 @@ column          meaning
                 leg: ``B: 208 V to neutral, no 120 V loads``; else empty
 ==============  ==========================================================
 
+After ``note``: ``calculated_a``, the circuit's calculated load (its
+scheduled line current, times the continuous factor when continuous [A]:
+what NEC 210.20(A) compares with the breaker; for a breaker with several
+legs, that of its largest pole), and ``over_breaker`` (``true`` when
+``calculated_a`` is above ``breaker_a``; empty without a breaker rating).
 The columns from ``neutral`` on describe the panel as it is wired; they
-come after the original columns so that scripts reading those keep working.
+come after the others so that scripts reading those keep working.
 
 Numbers are written as in the JSON report (9 significant digits); a
 missing value is an empty field. Per-phase and panel totals are in the JSON,
@@ -85,6 +90,8 @@ COLUMNS: tuple[str, ...] = (
     "rms_a",
     "placed",
     "note",
+    "calculated_a",
+    "over_breaker",
     "neutral",
     "shared_neutral",
     "handle_tied",
@@ -134,6 +141,8 @@ def csv_rows(data: dict[str, Any]) -> list[dict[str, str]]:
             "rms_a": c["rms_a"],
             "placed": c["placed"],
             "note": c["note"],
+            "calculated_a": c["calculated_a"],
+            "over_breaker": c["over_breaker"],
             **_wiring_cells(data, c),
         }
         rows.append({k: _cell(v) for k, v in row.items()})

@@ -1,4 +1,5 @@
-"""How every report writes a number: rounded, ``-0.0`` as ``0.0``, non-finite as ``None``."""
+"""How every report writes a number: rounded, ``-0.0`` as ``0.0``, non-finite as ``None``;
+fixed decimals without a negative zero."""
 
 from __future__ import annotations
 
@@ -28,3 +29,29 @@ def num(x: float | None) -> float | None:
         return None
     r = float(f"{x:.{SIGNIFICANT_DIGITS}g}")
     return 0.0 if r == 0 else r
+
+
+def fixed(x: float | None, digits: int = 1, *, signed: bool = False, none: str = "–") -> str:
+    """``x`` with ``digits`` decimals, never a negative zero (``-0.0`` is written ``0.0``).
+
+    Parameters
+    ----------
+    x : float or None
+        Any figure [any unit].
+    digits : int
+        Decimals.
+    signed : bool
+        Write ``+`` before a positive figure (a rounded zero has no sign).
+    none : str
+        Text for None.
+
+    Returns
+    -------
+    str
+    """
+    if x is None:
+        return none
+    text = f"{x:+.{digits}f}" if signed else f"{x:.{digits}f}"
+    if float(text) == 0:
+        return f"{0.0:.{digits}f}"
+    return text

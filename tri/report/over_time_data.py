@@ -94,7 +94,8 @@ def add_over_time(
     analysis: PanelAnalysis,
     *,
     iterate: bool = False,
-    continuous_factor: float = 1.25,
+    continuous_factor: float | None = None,
+    limits: Any = None,
 ) -> OverTimeParts:
     """Add ``scenarios`` and ``log`` to ``data`` in place; returns the parts behind them.
 
@@ -109,7 +110,11 @@ def add_over_time(
 
     schedule = loaded.schedule
     cases = analyse_cases(
-        schedule, analysis, iterate_voltage=iterate, continuous_factor=continuous_factor
+        schedule,
+        analysis,
+        iterate_voltage=iterate,
+        continuous_factor=continuous_factor,
+        limits=limits,
     )
     scenarios = scenarios_data(cases)
     if scenarios is not None:

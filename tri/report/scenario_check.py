@@ -16,7 +16,7 @@ from tri.report.check_report import CheckResult, evaluate
 
 def _rank(r: CheckResult) -> tuple[int, float]:
     order = {"fail": 2, "pass": 1, "skipped": 0}
-    return order[r.status], r.value_pct if r.value_pct is not None else float("-inf")
+    return order[r.status], r.value if r.value is not None else float("-inf")
 
 
 def worst_results(
@@ -41,7 +41,7 @@ def worst_results(
         row = [(name, results[i]) for name, results in per_case if i < len(results)]
         name, worst = max(row, key=lambda nr: _rank(nr[1]))
         others = ", ".join(
-            f"{n} {r.value_pct:.2f} %" for n, r in row if n != name and r.value_pct is not None
+            f"{n} {r.value:.2f} {r.unit}" for n, r in row if n != name and r.value is not None
         )
         judged = [n for n, r in row if r.status != "skipped"]
         if worst.status == "skipped" or len(judged) < 2:
@@ -53,7 +53,11 @@ def worst_results(
 
 
 def evaluate_cases(
-    data: dict[str, Any], case_reports: list[tuple[str, dict[str, Any]]], maxima: dict[str, float]
+    data: dict[str, Any],
+    case_reports: list[tuple[str, dict[str, Any]]],
+    maxima: dict[str, float | None],
+    *,
+    light_load_pct: float,
 ) -> list[CheckResult]:
     """Every limit over the connected load (``data``) and every scenario's report.
 
@@ -64,8 +68,12 @@ def evaluate_cases(
     case_reports : list of (name, dict)
         Each scenario's report (:func:`tri.report.data.report_data`).
     maxima : dict
-        Limit key -> maximum [%].
+        Limit key -> maximum [%] (None: not judged).
+    light_load_pct : float
+        Below this loading the deviation is not judged [%].
     """
-    per_case = [("connected", evaluate(data, maxima))]
-    per_case += [(name, evaluate(d, maxima)) for name, d in case_reports]
+    per_case = [("connected", evaluate(data, maxima, light_load_pct=light_load_pct))]
+    per_case += [
+        (name, evaluate(d, maxima, light_load_pct=light_load_pct)) for name, d in case_reports
+    ]
     return worst_results(per_case)

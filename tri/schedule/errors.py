@@ -4,6 +4,8 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
+from tri.schedule.text import escaped
+
 
 @dataclass(frozen=True)
 class ScheduleIssue:
@@ -32,6 +34,14 @@ class ScheduleIssue:
     where: str | None = None
     key: str | None = None
     circuit_index: int | None = None
+
+    def __post_init__(self) -> None:
+        # Text quoted from a file (a key, a name, a parser's message) is shown
+        # escaped, so no message can carry a control character to a terminal.
+        for name in ("message", "file", "where", "key"):
+            value = getattr(self, name)
+            if isinstance(value, str):
+                object.__setattr__(self, name, escaped(value))
 
     def __str__(self) -> str:
         head = self.file or "<schedule>"

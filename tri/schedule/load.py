@@ -33,6 +33,9 @@ from tri.schedule.read_readings import read_readings
 from tri.schedule.read_supply import read_supply
 from tri.schedule.read_wiring import check_supply_system, read_rcds
 from tri.schedule.reader import MISSING, Reader, found, is_kind, suggest
+from tri.schedule.rules import MAX_CIRCUITS
+from tri.schedule.source import read_limited
+from tri.schedule.text import escape_char, refused_chars
 from tri.schedule.validate import check_schedule, circuit_where
 
 TOP_KEYS = ("format", "panel", "supply", "readings", "profiles", "log", "rcd", "circuit")
@@ -129,6 +132,14 @@ def _raw_circuits(r: Reader, data: Mapping[str, Any]) -> list[Any]:
     if not isinstance(raw, list):
         r.add(f"found {found(raw)}, expected [[circuit]] tables", (), "circuit", "top level")
         return []
+    if len(raw) > MAX_CIRCUITS:
+        r.add(
+            f"{len(raw)} [[circuit]] tables, expected at most {MAX_CIRCUITS}",
+            ("circuit", MAX_CIRCUITS),
+            None,
+            "top level",
+        )
+        return []
     return raw
 
 
@@ -184,7 +195,7 @@ def build_schedule(
 
 
 def load_schedule(path: str | Path) -> ScheduleFile:
-    """Read and check a schedule file.
+    """Read and check a schedule file (a regular file of at most 1 MiB, UTF-8).
 
     Raises
     ------
@@ -193,20 +204,17 @@ def load_schedule(path: str | Path) -> ScheduleFile:
     """
     p = Path(path)
     name = str(path)
-    try:
-        raw = p.read_bytes()
-    except FileNotFoundError:
-        raise ScheduleError([ScheduleIssue("no such file", file=name)]) from None
-    except IsADirectoryError:
+    bad = refused_chars(name)
+    if bad:  # the name is shown in every report; refuse it like any other text
+        shown = ", ".join(escape_char(ch) for ch in bad)
         raise ScheduleError(
-            [ScheduleIssue("is a folder, expected a .toml file", file=name)]
-        ) from None
-    except PermissionError:
-        raise ScheduleError(
-            [ScheduleIssue("permission denied reading the file", file=name)]
-        ) from None
-    except OSError as exc:
-        raise ScheduleError([ScheduleIssue(f"cannot read: {exc.strerror}", file=name)]) from None
+            [
+                ScheduleIssue(
+                    f"the file name holds control characters ({shown}); rename it", file=name
+                )
+            ]
+        )
+    raw = read_limited(p)
     try:
         text = raw.decode("utf-8")
     except UnicodeDecodeError as exc:

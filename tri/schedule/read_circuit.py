@@ -17,30 +17,45 @@ from tri.schedule.locate import TableKey
 from tri.schedule.model import DEFAULT_LABELS, LOAD_KEYS, Circuit, PanelInfo, parse_phase_text
 from tri.schedule.read_panel import MAX_SPACES
 from tri.schedule.read_wiring import read_leg_values
-from tri.schedule.reader import MISSING, Reader, found
-from tri.schedule.rules import Rule, between, non_negative, positive, power_factor, read_rules
+from tri.schedule.reader import MISSING, Reader, found, shown
+from tri.schedule.rules import (
+    BREAKER_A,
+    LOAD_A,
+    LOAD_VA,
+    Rule,
+    between,
+    in_range,
+    power_factor,
+    read_rules,
+    short_text,
+    zero_or_in_range,
+)
 from tri.schedule.slots import PHASES, TWO_COLUMN, slot_phases
 from tri.schedule.use_factors import read_use
 
 CIRCUIT_RULES: dict[str, Rule] = {
-    "name": Rule("text", required=True),
+    "name": Rule("text", short_text, required=True),
     "poles": Rule("int", between(1, 3, " poles")),
     "pf": Rule("number", power_factor, default=1.0),
     "leading": Rule("bool", default=False),
-    "profile": Rule("text", default="linear"),
+    "profile": Rule("text", short_text, default="linear"),
     "continuous": Rule("bool", default=False),
     "locked": Rule("bool", default=False),
-    "breaker_a": Rule("number", positive),
+    "breaker_a": Rule("number", in_range(BREAKER_A, " A")),
     "note": Rule("text", default=""),
     "slot": Rule("int", between(1, MAX_SPACES, " (slot numbers start at 1)")),
     "neutral": Rule("bool", default=False),
-    "shared_neutral": Rule("text"),
+    "shared_neutral": Rule("text", short_text),
     "handle_tied": Rule("bool", default=False),
     "spare": Rule("bool", default=False),
-    "rcd": Rule("text"),
+    "rcd": Rule("text", short_text),
 }
-#: The check of the one load key a circuit gives (VA, W or A).
-LOAD_CHECK = non_negative
+#: The check of each load key (a circuit gives exactly one).
+LOAD_CHECKS = {
+    "load_va": zero_or_in_range(LOAD_VA, " VA"),
+    "load_w": zero_or_in_range(LOAD_VA, " W"),
+    "load_a": zero_or_in_range(LOAD_A, " A"),
+}
 _PLACEMENT_KEYS = ("slot", "phases", "poles", "name")
 #: Every key a circuit may hold, placement first (the order of messages).
 CIRCUIT_KEYS = (
@@ -77,7 +92,7 @@ def circuit_hint(raw: Any) -> str:
     phases = raw.get("phases")
     place = None
     if isinstance(slot, int) and not isinstance(slot, bool):
-        place = f"slot {slot}"
+        place = f"slot {shown(slot)}"
     elif isinstance(phases, str) and phases.strip():
         place = f"phases {phases.strip()}"
     return name_circuit(name if isinstance(name, str) else None, place)
@@ -212,10 +227,11 @@ def _read_load(
             index,
         )
         return "va", MISSING
+    check = LOAD_CHECKS[given[0]]
     if isinstance(raw[given[0]], list):
-        legs = read_leg_values(r, raw[given[0]], given[0], table, where, index)
+        legs = read_leg_values(r, raw[given[0]], given[0], table, where, index, check)
         return LOAD_KEYS[given[0]], legs
-    value = r.value(raw, given[0], table, where, "number", check=LOAD_CHECK, circuit_index=index)
+    value = r.value(raw, given[0], table, where, "number", check=check, circuit_index=index)
     return LOAD_KEYS[given[0]], value
 
 

@@ -14,19 +14,21 @@ from tri.schedule.locate import TableKey
 from tri.schedule.model import DEFAULT_LABELS, PanelInfo
 from tri.schedule.read_wiring import PANEL_WIRING_KEYS, read_panel_wiring
 from tri.schedule.reader import MISSING, Reader, found, suggest
-from tri.schedule.rules import Rule, between, positive, read_rules
+from tri.schedule.rules import RATING_A, Rule, between, in_range, read_rules, short_text
 from tri.schedule.slots import LAYOUTS, TWO_COLUMN
 from tri.schedule.systems import SYSTEMS
+from tri.schedule.text import plain_text_problem
 
 MAX_SPACES = 420
+MAX_LABEL_CHARS = 3
 
 #: Scalar keys of ``[panel]`` read after ``system`` (whose catalogue entry
 #: gives the default frequency).
 PANEL_RULES: dict[str, Rule] = {
     "spaces": Rule("int", between(1, MAX_SPACES), required=True),
-    "bus_a": Rule("number", positive, required=True),
-    "main_a": Rule("number", positive),
-    "neutral_a": Rule("number", positive),
+    "bus_a": Rule("number", in_range(RATING_A, " A"), required=True),
+    "main_a": Rule("number", in_range(RATING_A, " A")),
+    "neutral_a": Rule("number", in_range(RATING_A, " A")),
 }
 PANEL_KEYS = (
     "name",
@@ -53,7 +55,7 @@ def read_panel(r: Reader, data: Mapping[str, Any]) -> PanelInfo | None:
         r.add(f"found {found(raw)}, expected a [panel] table", (), "panel", _WHERE)
         return None
     r.unknown_keys(raw, PANEL_KEYS, _TABLE, _WHERE)
-    name = r.value(raw, "name", _TABLE, _WHERE, "text", required=True)
+    name = r.value(raw, "name", _TABLE, _WHERE, "text", required=True, check=short_text)
     system = _read_system(r, raw)
     default_f = SYSTEMS[system].default_frequency_hz if system is not MISSING else 60.0
     frequency = r.value(
@@ -115,7 +117,9 @@ def _read_layout(r: Reader, raw: Mapping[str, Any]) -> Any:
 def read_labels(r: Reader, raw: Mapping[str, Any], table: TableKey, where: str) -> Any:
     """``phase_labels`` of ``raw``: three distinct labels, none the start of another.
 
-    Returns the default ``("A", "B", "C")`` when absent, ``MISSING`` after reporting.
+    Each label is 1 to :data:`MAX_LABEL_CHARS` letters or digits, and not ``N``
+    (the neutral's name in readings). Returns the default ``("A", "B", "C")``
+    when absent, ``MISSING`` after reporting.
     """
     if "phase_labels" not in raw:
         return DEFAULT_LABELS
@@ -133,6 +137,11 @@ def read_labels(r: Reader, raw: Mapping[str, Any], table: TableKey, where: str) 
             where,
         )
         return MISSING
+    for x in labels:
+        problem = plain_text_problem(x)
+        if problem:
+            r.add(f"found {found(x)}, which {problem}", table, "phase_labels", where)
+            return MISSING
     cleaned = tuple(x.strip() for x in labels)
     upper = [x.upper() for x in cleaned]
     if len(set(upper)) != 3 or any(a != b and a.startswith(b) for a in upper for b in upper):
@@ -143,7 +152,16 @@ def read_labels(r: Reader, raw: Mapping[str, Any], table: TableKey, where: str) 
             where,
         )
         return MISSING
-    if any(ch in "-,/ _" for x in cleaned for ch in x):
-        r.add("labels may not contain '-', ',', '/', '_' or spaces", table, "phase_labels", where)
+    if not all(x.isalnum() and len(x) <= MAX_LABEL_CHARS for x in cleaned):
+        r.add(
+            f"found {cleaned!r}, expected labels of 1 to {MAX_LABEL_CHARS} letters or digits "
+            "(no '-', ',', '/', '_' or spaces)",
+            table,
+            "phase_labels",
+            where,
+        )
+        return MISSING
+    if "N" in upper:
+        r.add("'N' names the neutral; expected other phase labels", table, "phase_labels", where)
         return MISSING
     return cleaned

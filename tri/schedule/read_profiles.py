@@ -6,14 +6,20 @@ relative to the fundamental); orders run from 2 to :data:`MAX_HARMONIC_ORDER`.
 
 from __future__ import annotations
 
-import math
 from collections.abc import Mapping
 from typing import Any
 
 from tri.engine.profiles import BUILTIN_PROFILES
 from tri.schedule.locate import TableKey
 from tri.schedule.model import UserProfile
-from tri.schedule.reader import MISSING, Reader, found, is_kind
+from tri.schedule.reader import MISSING, Reader, found, is_kind, number_problem, text_problem
+from tri.schedule.rules import (
+    ANGLE_DEG,
+    HARMONIC_MAGNITUDE,
+    MAX_PROFILES,
+    in_range,
+    short_text,
+)
 
 PROFILE_KEYS = ("harmonics", "description")
 MAX_HARMONIC_ORDER = 100
@@ -31,6 +37,14 @@ def read_profiles(r: Reader, data: Mapping[str, Any]) -> tuple[UserProfile, ...]
     if not isinstance(raw, dict):
         r.add(f"found {found(raw)}, expected [profiles.NAME] tables", (), "profiles", "[profiles]")
         return None
+    if len(raw) > MAX_PROFILES:
+        r.add(
+            f"{len(raw)} profiles, expected at most {MAX_PROFILES}",
+            ("profiles",),
+            None,
+            "[profiles]",
+        )
+        return None
     out: list[UserProfile] = []
     ok = True
     for name, body in raw.items():
@@ -45,7 +59,10 @@ def read_profiles(r: Reader, data: Mapping[str, Any]) -> tuple[UserProfile, ...]
 def _read_profile(r: Reader, name: str, body: Any) -> UserProfile | None:
     table: TableKey = ("profiles", name)
     where = f"[profiles.{name}]"
-    if name in BUILTIN_PROFILES:
+    problem = text_problem(name, short_text)
+    if problem:
+        r.add(f"profile name: {problem}", table, None, where)
+    elif name in BUILTIN_PROFILES:
         r.add(f"'{name}' is a built-in profile; give yours another name", table, None, where)
         return None
     if not isinstance(body, dict):
@@ -54,7 +71,7 @@ def _read_profile(r: Reader, name: str, body: Any) -> UserProfile | None:
     r.unknown_keys(body, PROFILE_KEYS, table, where)
     desc = r.value(body, "description", table, where, "text", default="")
     parsed = read_harmonic_rows(r, body.get("harmonics", MISSING), table, where)
-    if parsed is None or desc is MISSING:
+    if parsed is None or desc is MISSING or problem:
         return None
     return UserProfile(name=name, harmonics=parsed, description=desc)
 
@@ -73,31 +90,40 @@ def read_harmonic_rows(
     seen: set[int] = set()
     ok = True
     for k, row in enumerate(rows, start=1):
-        good = (
+        if not (
             isinstance(row, list)
             and len(row) == 3
             and is_kind("int", row[0])
-            and all(is_kind("number", x) and math.isfinite(float(x)) for x in row[1:])
-        )
-        if not good:
+            and all(is_kind("number", x) for x in row[1:])
+        ):
             r.add(f"entry {k} is {found(row)}; {_EXPECTED_ROWS}", table, "harmonics", where)
             ok = False
             continue
-        order, mag, ang = int(row[0]), float(row[1]), float(row[2])
-        problem = _row_problem(order, mag, seen)
+        problem = _row_problem(row, seen)
         if problem:
             r.add(f"entry {k}: {problem}", table, "harmonics", where)
             ok = False
+            continue
+        order, mag, ang = int(row[0]), float(row[1]), float(row[2])
         seen.add(order)
         out.append((order, mag, ang))
     return tuple(out) if ok else None
 
 
-def _row_problem(order: int, mag: float, seen: set[int]) -> str | None:
+_MAGNITUDE_CHECK = in_range(HARMONIC_MAGNITUDE, " times the fundamental")
+_ANGLE_CHECK = in_range(ANGLE_DEG, " deg")
+
+
+def _row_problem(row: list[Any], seen: set[int]) -> str | None:
+    order = row[0]
     if not 2 <= order <= MAX_HARMONIC_ORDER:
-        return f"order {order}, expected 2 to {MAX_HARMONIC_ORDER}"
+        return f"order {found(order).split(' (')[0]}, expected 2 to {MAX_HARMONIC_ORDER}"
     if order in seen:
         return f"order {order} given twice"
-    if not 0 <= mag <= 5:
-        return f"magnitude {mag:g}, expected 0 to 5 times the fundamental"
+    _, problem = number_problem(row[1], _MAGNITUDE_CHECK)
+    if problem:
+        return f"magnitude {problem.removeprefix('found ')}"
+    _, problem = number_problem(row[2], _ANGLE_CHECK)
+    if problem:
+        return f"angle {problem.removeprefix('found ')}"
     return None

@@ -14,7 +14,8 @@ from typing import Any
 
 from tri.schedule.locate import TableKey
 from tri.schedule.model import DEFAULT_LABELS, PanelInfo, Readings, parse_phase_text
-from tri.schedule.reader import MISSING, Reader, found, is_kind
+from tri.schedule.reader import MISSING, Reader, found, number_problem, text_problem
+from tri.schedule.rules import READING_A, in_range, short_text
 from tri.schedule.systems import SYSTEMS, SupplySystem
 
 READINGS_KEYS = ("amps", "volts_ll", "volts_ln", "taken", "note")
@@ -23,6 +24,9 @@ _TABLE: TableKey = ("readings",)
 _WHERE = "[readings]"
 _PAIR_INDEX = {frozenset({0, 1}): 0, frozenset({1, 2}): 1, frozenset({0, 2}): 2}
 _Triple = tuple[Any, Any, Any]
+_AMPS_CHECK = in_range(READING_A, " A")
+#: Volts are first checked for sign and size, then against the system's nominal.
+_VOLTS_CHECK = in_range((0.0, 100_000.0), " V")
 
 
 def read_readings(r: Reader, data: Mapping[str, Any], panel: PanelInfo | None) -> Readings | None:
@@ -43,6 +47,8 @@ def read_readings(r: Reader, data: Mapping[str, Any], panel: PanelInfo | None) -
     taken = raw.get("taken")
     if taken is not None and not isinstance(taken, str | _dt.date | _dt.time):
         r.add(f"found {found(taken)}, expected text or a date", _TABLE, "taken", _WHERE)
+    elif isinstance(taken, str) and text_problem(taken, short_text):
+        r.add(str(text_problem(taken, short_text)), _TABLE, "taken", _WHERE)
     bad = len(r.issues) > start
     r.value(raw, "note", _TABLE, _WHERE, "text")
     if bad:
@@ -73,18 +79,15 @@ def _read_triple(
             _WHERE,
         )
         return (None, None, None), None
+    check = _AMPS_CHECK if key == "amps" else _VOLTS_CHECK
     for name, value in sub.items():
-        if not is_kind("number", value) or not math.isfinite(float(value)) or value < 0:
-            r.add(
-                f"{name} = {found(value)}, expected a finite number, 0 or more",
-                _TABLE,
-                key,
-                _WHERE,
-            )
+        number, problem = number_problem(value, check)
+        if problem:
+            r.add(f"{name} = {problem.removeprefix('found ')}", _TABLE, key, _WHERE)
             continue
         idx = parse_phase_text(str(name), labels)
         if key == "amps" and str(name).upper() == "N":
-            neutral = float(value)
+            neutral = number
             continue
         valid = idx is not None and (
             (pairs and len(idx) == 2 and idx[0] != idx[1]) or (not pairs and len(idx) == 1)
@@ -98,7 +101,7 @@ def _read_triple(
             )
             continue
         pos = _PAIR_INDEX[frozenset(idx)] if pairs else idx[0]
-        out[pos] = float(value)
+        out[pos] = number
     return (out[0], out[1], out[2]), neutral
 
 

@@ -16,8 +16,8 @@ from typing import Any
 
 from tri.schedule.locate import TableKey
 from tri.schedule.model import Rcd, parse_phase_text
-from tri.schedule.reader import MISSING, Reader, found, is_kind
-from tri.schedule.rules import Rule, between, read_rules
+from tri.schedule.reader import MISSING, Check, Reader, found, is_kind, number_problem
+from tri.schedule.rules import Rule, between, non_negative, read_rules, short_text
 from tri.schedule.slots import RIGHT_ABC, RIGHT_COLUMN_ORDERS, TWO_COLUMN
 from tri.schedule.systems import SYSTEMS
 
@@ -26,14 +26,14 @@ MAX_ROW_SHIFT = 210
 
 #: Plain ``[panel]`` keys of this module (one line per key).
 PANEL_WIRING_RULES: dict[str, Rule] = {
-    "fed_from": Rule("text"),
+    "fed_from": Rule("text", short_text),
     "max_row_shift": Rule("int", between(0, MAX_ROW_SHIFT, " rows")),
 }
 #: Every ``[panel]`` key of this module.
 PANEL_WIRING_KEYS = ("high_leg", "right_column", *PANEL_WIRING_RULES)
 
 RCD_RULES: dict[str, Rule] = {
-    "name": Rule("text", required=True),
+    "name": Rule("text", short_text, required=True),
     "poles": Rule("int", default=2),
     "note": Rule("text"),
 }
@@ -209,13 +209,22 @@ def _read_rcd(r: Reader, raw: Any, index: int, panel: Any) -> Rcd | None:
 
 
 def read_leg_values(
-    r: Reader, raw: list[Any], key: str, table: TableKey, where: str, index: int
+    r: Reader,
+    raw: list[Any],
+    key: str,
+    table: TableKey,
+    where: str,
+    index: int,
+    check: Check | None = None,
 ) -> tuple[float, ...] | Any:
     """A load key holding one number per leg, e.g. ``load_va = [1200, 800]``.
 
-    Returns the values [VA, W or A] or ``MISSING`` after reporting. How many
-    legs a breaker has is checked with the rest of the wiring
-    (:mod:`tri.schedule.wiring`), so that an edit of ``poles`` is judged too.
+    Returns the values [VA, W or A] or ``MISSING`` after reporting. Each leg
+    is a number as the single load is (finite, within float range, not a
+    denormal) and passes ``check``, the key's load bound
+    (:data:`tri.schedule.read_circuit.LOAD_CHECKS`). How many legs a breaker
+    has is checked with the rest of the wiring (:mod:`tri.schedule.wiring`),
+    so that an edit of ``poles`` is judged too.
     """
     if not 2 <= len(raw) <= 3:
         r.add(
@@ -228,11 +237,9 @@ def read_leg_values(
         return MISSING
     values = []
     for k, x in enumerate(raw, start=1):
-        if not is_kind("number", x) or x != x or x in (float("inf"), float("-inf")):
-            r.add(f"leg {k} is {found(x)}, expected a number", table, key, where, index)
+        value, problem = number_problem(x, check if check is not None else non_negative)
+        if problem is not None:
+            r.add(f"leg {k}: {problem}", table, key, where, index)
             return MISSING
-        if x < 0:
-            r.add(f"leg {k} is {x!r}, expected 0 or more", table, key, where, index)
-            return MISSING
-        values.append(float(x))
+        values.append(value)
     return tuple(values)

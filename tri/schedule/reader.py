@@ -18,9 +18,14 @@ from typing import Any
 
 from tri.schedule.errors import ScheduleIssue
 from tri.schedule.locate import LineIndex, TableKey
+from tri.schedule.text import plain_text_problem
 
 #: Returned by :meth:`Reader.value` for a value that is missing or was reported.
 MISSING: Any = object()
+#: Any number other than 0 must be at least this large in size [-].
+SMALLEST_NUMBER = 1e-6
+#: No text of a schedule (a note included) may be longer [characters].
+MAX_TEXT_CHARS = 2000
 
 Check = Callable[[Any], str | None]
 
@@ -62,12 +67,62 @@ def type_name(value: Any) -> str:
     return type(value).__name__
 
 
+def shown(value: Any) -> str:
+    """A value as quoted in a message: its repr, cut to 40 characters (long integers say
+    how many digits they have)."""
+    if isinstance(value, int) and not isinstance(value, bool) and abs(value) >= 10**30:
+        digits = len(str(abs(value))) if abs(value) < 10**4000 else "over 4000"
+        return f"{'-' if value < 0 else ''}{str(abs(value))[:6]}... ({digits} digits)"
+    text = repr(value)
+    return text if len(text) <= 40 else text[:37] + "..."
+
+
 def found(value: Any) -> str:
     """Describe a value found in a file, e.g. ``"'abc' (text)"``."""
-    shown = repr(value)
-    if len(shown) > 40:
-        shown = shown[:37] + "..."
-    return f"{shown} ({type_name(value)})"
+    return f"{shown(value)} ({type_name(value)})"
+
+
+def number_problem(value: Any, check: Check | None) -> tuple[Any, str | None]:
+    """``(float value, None)`` for a good number, else ``(MISSING, the problem in words)``.
+
+    A number must be a TOML integer or float (not true/false), finite, within
+    float range, pass ``check``, and be 0 or at least :data:`SMALLEST_NUMBER`
+    in size: smaller values are below any instrument's resolution and would
+    underflow in the engine.
+    """
+    if not _KIND_TEST["number"](value):
+        return MISSING, f"found {found(value)}, expected {KIND_TEXT['number']}"
+    try:
+        number = float(value)
+    except OverflowError:
+        bound = check(math.inf if value > 0 else -math.inf) if check else None
+        return MISSING, f"found {shown(value)}, {bound or 'expected a finite number'}"
+    if not math.isfinite(number):
+        return MISSING, f"found {number!r}, expected a finite number"
+    if check is not None:
+        problem = check(number)
+        if problem:
+            return MISSING, f"found {shown(value)}, {problem}"
+    if number != 0 and abs(number) < SMALLEST_NUMBER:
+        return MISSING, (
+            f"found {shown(value)}, expected 0 or a size of at least {SMALLEST_NUMBER:g} "
+            "(smaller is below any instrument's resolution)"
+        )
+    return number, None
+
+
+def text_problem(value: str, check: Check | None = None) -> str | None:
+    """Why text may not be in a schedule (control characters, length, ``check``), or ``None``."""
+    problem = plain_text_problem(value)
+    if problem:
+        return f"found {shown(value)}, which {problem}"
+    if len(value) > MAX_TEXT_CHARS:
+        return f"found {len(value)} characters of text, expected at most {MAX_TEXT_CHARS}"
+    if check is not None:
+        problem = check(value)
+        if problem:
+            return f"found {shown(value)}, {problem}"
+    return None
 
 
 def suggest(word: str, choices: tuple[str, ...] | list[str]) -> str:
@@ -169,26 +224,17 @@ class Reader:
                 return MISSING
             return default
         value = data[key]
-        ok = _KIND_TEST[kind](value)
-        if not ok:
-            self.add(
-                f"found {found(value)}, expected {KIND_TEXT[kind]}",
-                table,
-                key,
-                where,
-                circuit_index,
-            )
+        problem: str | None = None
+        if not _KIND_TEST[kind](value):
+            problem = f"found {found(value)}, expected {KIND_TEXT[kind]}"
+        elif kind == "number":
+            value, problem = number_problem(value, check)
+        elif kind == "text":
+            problem = text_problem(value, check)
+        elif check is not None:
+            detail = check(value)
+            problem = f"found {shown(value)}, {detail}" if detail else None
+        if problem:
+            self.add(problem, table, key, where, circuit_index)
             return MISSING
-        if kind == "number":
-            value = float(value)
-            if not math.isfinite(value):
-                self.add(
-                    f"found {value!r}, expected a finite number", table, key, where, circuit_index
-                )
-                return MISSING
-        if check is not None:
-            problem = check(value)
-            if problem:
-                self.add(f"found {value!r}, {problem}", table, key, where, circuit_index)
-                return MISSING
         return value

@@ -8,10 +8,6 @@ the formatting of untouched parts survive.
 
 from __future__ import annotations
 
-import contextlib
-import os
-import shutil
-import tempfile
 from pathlib import Path
 from typing import Any
 
@@ -19,7 +15,7 @@ import tomlkit
 from tomlkit.items import AoT, Table, Whitespace
 from tomlkit.toml_document import TOMLDocument
 
-from tri.schedule.errors import ScheduleError, ScheduleIssue
+from tri.schedule.atomic import write_atomic
 from tri.schedule.model import (
     FORMAT_VERSION,
     Circuit,
@@ -40,8 +36,6 @@ from tri.schedule.reader import Reader
 from tri.schedule.slots import PHASES, RIGHT_ABC, TWO_COLUMN
 from tri.schedule.use_factors import use_table
 
-BACKUP_SUFFIX = ".bak"
-
 HEADER_COMMENT = (
     "Panel schedule for tri. Edit it by hand or with `tri FILE`; keep it in version control.",
     "Units: VA, W, A, V, Hz. See the README's file reference for every key.",
@@ -55,6 +49,11 @@ def _clean(value: Any) -> Any:
     if isinstance(value, tuple):
         return [_clean(v) for v in value]
     return value
+
+
+def _plain(value: Any) -> Any:
+    """A tomlkit item as plain Python data (dicts, lists, numbers, text)."""
+    return value.unwrap() if hasattr(value, "unwrap") else value
 
 
 def _same(a: Any, b: Any) -> bool:
@@ -79,7 +78,7 @@ def _set(table: Any, key: str, value: Any, default: Any = None) -> None:
         table[key] = _clean(value)
         return
     current = table[key]
-    current = current.unwrap() if hasattr(current, "unwrap") else current
+    current = _plain(current)
     if not _same(current, value):
         table[key] = _clean(value)
 
@@ -103,10 +102,10 @@ def _quiet_reader() -> Reader:
 
 
 def _write_panel(doc: TOMLDocument, panel: PanelInfo) -> None:
-    existing = doc.get("panel")
+    existing: Any = doc.get("panel")
     if (
         isinstance(existing, dict)
-        and read_panel(_quiet_reader(), {"panel": existing.unwrap()}) == panel
+        and read_panel(_quiet_reader(), {"panel": _plain(existing)}) == panel
     ):
         return
     created = not isinstance(existing, Table)
@@ -166,14 +165,14 @@ def _write_rcds(doc: TOMLDocument, schedule: Schedule) -> None:
 
 
 def _write_supply(doc: TOMLDocument, supply: Supply | None) -> None:
-    existing = doc.get("supply")
+    existing: Any = doc.get("supply")
     if supply is None:
         if existing is not None:
             del doc["supply"]
         return
     if (
         isinstance(existing, dict)
-        and read_supply(_quiet_reader(), {"supply": existing.unwrap()}) == supply
+        and read_supply(_quiet_reader(), {"supply": _plain(existing)}) == supply
     ):
         return
     created = not isinstance(existing, Table)
@@ -196,13 +195,13 @@ def _triple_table(labels: list[str], values: tuple[Any, ...], extra: dict[str, A
 
 
 def _write_readings(doc: TOMLDocument, readings: Readings | None, panel: PanelInfo) -> None:
-    existing = doc.get("readings")
+    existing: Any = doc.get("readings")
     if readings is None:
         if existing is not None:
             del doc["readings"]
         return
     if isinstance(existing, dict):
-        old = read_readings(_quiet_reader(), {"readings": existing.unwrap()}, panel)
+        old = read_readings(_quiet_reader(), {"readings": _plain(existing)}, panel)
         if old == readings:
             return
     created = not isinstance(existing, Table)
@@ -239,9 +238,9 @@ def _profile_table(profile: UserProfile) -> Table:
 
 
 def _write_profiles(doc: TOMLDocument, profiles: tuple[UserProfile, ...]) -> None:
-    existing = doc.get("profiles")
+    existing: Any = doc.get("profiles")
     if isinstance(existing, dict):
-        old = read_profiles(_quiet_reader(), {"profiles": existing.unwrap()})
+        old = read_profiles(_quiet_reader(), {"profiles": _plain(existing)})
         if old == profiles:
             return
     if not profiles:
@@ -259,7 +258,7 @@ def _write_profiles(doc: TOMLDocument, profiles: tuple[UserProfile, ...]) -> Non
     for name, profile in wanted.items():
         body = existing.get(name)
         if isinstance(body, dict):
-            old = read_profiles(_quiet_reader(), {"profiles": {name: body.unwrap()}})
+            old = read_profiles(_quiet_reader(), {"profiles": {name: _plain(body)}})
             if old == (profile,):
                 continue
             _set(body, "description", profile.description or None)
@@ -273,7 +272,7 @@ def _write_profiles(doc: TOMLDocument, profiles: tuple[UserProfile, ...]) -> Non
 def _write_circuit(table: Any, c: Circuit, schedule: Schedule) -> None:
     panel = schedule.panel
     if isinstance(table, dict) and c.source_index is not None:
-        old = read_circuit(_quiet_reader(), table.unwrap(), c.source_index, panel)
+        old = read_circuit(_quiet_reader(), _plain(table), c.source_index, panel)
         if old == c:
             return
     if panel.layout == TWO_COLUMN:
@@ -322,7 +321,7 @@ def _write_circuit(table: Any, c: Circuit, schedule: Schedule) -> None:
 
 
 def _write_circuits(doc: TOMLDocument, schedule: Schedule) -> None:
-    existing = doc.get("circuit")
+    existing: Any = doc.get("circuit")
     if not schedule.circuits:
         if existing is not None:
             del doc["circuit"]
@@ -343,10 +342,10 @@ def _write_circuits(doc: TOMLDocument, schedule: Schedule) -> None:
         # Reordered: rebuild the array, reusing each original table once.
         used: set[int] = set()
         rebuilt = tomlkit.aot()
-        for k in order:
-            if k is not None and k < len(old_tables) and k not in used:
-                used.add(k)
-                rebuilt.append(old_tables[k])
+        for src in order:
+            if src is not None and src < len(old_tables) and src not in used:
+                used.add(src)
+                rebuilt.append(old_tables[src])
             else:
                 rebuilt.append(tomlkit.table())
         if existing is not None:
@@ -404,52 +403,11 @@ def schedule_text(schedule: Schedule, original: TOMLDocument | None = None) -> s
     return text if text.endswith("\n") else text + "\n"
 
 
-def write_atomic(path: str | Path, text: str, *, backup: bool = True) -> Path | None:
-    """Write ``text`` to ``path`` atomically; keep the previous file as ``path.bak``.
-
-    The text goes to a temporary file in the same folder, is flushed and
-    synced, then renamed over the target, so a crash leaves either the old
-    or the new file, never half of one. Returns the backup path, if one was made.
-
-    Raises
-    ------
-    ScheduleError
-        When the folder cannot be written; the original file is untouched.
-    """
-    target = Path(path)
-    folder = target.parent if str(target.parent) else Path(".")
-    bak: Path | None = None
-    tmp_name = None
-    try:
-        fd, tmp_name = tempfile.mkstemp(prefix=f".{target.name}.", suffix=".tmp", dir=folder)
-        with os.fdopen(fd, "w", encoding="utf-8", newline="") as fh:
-            fh.write(text)
-            fh.flush()
-            os.fsync(fh.fileno())
-        if target.exists():
-            shutil.copymode(target, tmp_name)
-            if backup:
-                bak = target.with_name(target.name + BACKUP_SUFFIX)
-                shutil.copy2(target, bak)
-        else:
-            os.chmod(tmp_name, 0o644)
-        os.replace(tmp_name, target)
-        tmp_name = None
-    except OSError as exc:
-        raise ScheduleError(
-            [ScheduleIssue(f"cannot save: {exc.strerror or exc}", file=str(path))]
-        ) from None
-    finally:
-        if tmp_name is not None:
-            with contextlib.suppress(OSError):
-                os.unlink(tmp_name)
-    return bak
-
-
 def save_schedule(
     path: str | Path, schedule: Schedule, original: TOMLDocument | None = None
 ) -> TOMLDocument:
-    """Save ``schedule`` to ``path`` atomically, keeping comments of ``original``.
+    """Save ``schedule`` to ``path`` atomically (:func:`~tri.schedule.atomic.write_atomic`),
+    keeping the comments of ``original``.
 
     Returns the document written, to be kept as the new ``original``.
     """

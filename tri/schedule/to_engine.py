@@ -24,10 +24,17 @@ from tri.engine.inputs import (
     SystemVoltages,
 )
 from tri.engine.legs import shared_neutral_finding
-from tri.engine.loading import FindingLimits
+from tri.engine.limits import (
+    CONTINUOUS_FACTOR,
+    LEVEL_RANK,
+    FindingLimits,
+    continuous_factor_for,
+    practice_for,
+)
 from tri.engine.profiles import profile_matrix
 from tri.engine.results import Finding, PanelAnalysis
 from tri.schedule.model import Circuit, Schedule
+from tri.schedule.validate import circuit_where
 from tri.schedule.wiring import (
     LEG_LINE_TO_LINE,
     LEG_TO_NEUTRAL,
@@ -37,7 +44,9 @@ from tri.schedule.wiring import (
     neutral_groups,
 )
 
-DEFAULT_CONTINUOUS_FACTOR = 1.25
+#: The continuous factor in NEC practice [-] (:data:`tri.engine.limits.CONTINUOUS_FACTOR`);
+#: the default follows the panel's practice (:func:`default_continuous_factor`).
+DEFAULT_CONTINUOUS_FACTOR = CONTINUOUS_FACTOR
 
 
 def connection_of(circuit: Circuit) -> tuple[int, int, int]:
@@ -104,8 +113,19 @@ def circuit_arrays(schedule: Schedule) -> CircuitArrays:
         harmonics=harmonics,
         orders=orders,
         continuous=np.array([circuits[i].continuous for i, _ in rows], dtype=bool),
+        breaker_a=np.array(
+            [np.nan if circuits[i].breaker_a is None else circuits[i].breaker_a for i, _ in rows],
+            dtype=float,
+        ),
         **_wiring_numbers(schedule, rows),
     )
+
+
+def circuit_labels(schedule: Schedule) -> tuple[str, ...]:
+    """How findings name each engine row: its circuit's name and slot or phases, never a
+    number (the legs of one breaker share its label; :func:`element_rows`)."""
+    where = [circuit_where(c, schedule) for c in schedule.circuits]
+    return tuple(where[i] for i, _ in element_rows(schedule))
 
 
 def _leg_power(schedule: Schedule, c: Circuit, leg: Leg | None) -> complex:
@@ -144,8 +164,15 @@ def system_voltages(schedule: Schedule) -> SystemVoltages:
     return v if high is None else dataclasses.replace(v, high_leg=high)
 
 
-def ratings(schedule: Schedule, continuous_factor: float = DEFAULT_CONTINUOUS_FACTOR) -> Ratings:
-    """Bus, main and neutral ratings of the panel [A]."""
+def default_continuous_factor(schedule: Schedule) -> float:
+    """The continuous factor of the panel's practice: 1.25 (NEC, 60 Hz), 1 (IEC, 50 Hz) [-]."""
+    return continuous_factor_for(practice_for(system_voltages(schedule).frequency_hz))
+
+
+def ratings(schedule: Schedule, continuous_factor: float | None = None) -> Ratings:
+    """Bus, main and neutral ratings of the panel [A] (factor None: the practice's)."""
+    if continuous_factor is None:
+        continuous_factor = default_continuous_factor(schedule)
     p = schedule.panel
     return Ratings(
         bus_a=p.bus_a,
@@ -177,7 +204,7 @@ def analyse_schedule(
     schedule: Schedule,
     *,
     iterate_voltage: bool = False,
-    continuous_factor: float = DEFAULT_CONTINUOUS_FACTOR,
+    continuous_factor: float | None = None,
     limits: FindingLimits | None = None,
 ) -> PanelAnalysis:
     """Run the engine on a schedule: the one call the CLI, the UI and the rebalancer share.
@@ -188,8 +215,9 @@ def analyse_schedule(
         The panel.
     iterate_voltage : bool
         With a ``[supply]``, solve loads as constant power at the panel voltage.
-    continuous_factor : float
-        Multiplier on continuous loads for the sizing check [-].
+    continuous_factor : float, optional
+        Multiplier on continuous loads for the sizing check [-]; default the
+        panel's practice (:func:`default_continuous_factor`).
     limits : FindingLimits, optional
         Thresholds for findings.
     """
@@ -202,6 +230,7 @@ def analyse_schedule(
         iterate_voltage=iterate_voltage,
         phase_labels=schedule.labels,
         limits=limits,
+        circuit_labels=circuit_labels(schedule),
     )
     result = per_circuit(result, schedule)
     fed = [c.feed.path for c in schedule.circuits if c.feed is not None]
@@ -220,12 +249,15 @@ def per_circuit(analysis: PanelAnalysis, schedule: Schedule) -> PanelAnalysis:
     """The analysis with one current per circuit and the shared-neutral findings added.
 
     A breaker with several legs gets its largest pole current (fundamental
-    and RMS); its legs stay in ``analysis.breakers``. A shared neutral whose
-    breakers do not trip together gets the NEC 210.4(B) finding.
+    and RMS) and its largest pole's calculated load (the engine's figure for
+    each of its rows); its legs stay in ``analysis.breakers``. A shared
+    neutral whose breakers do not trip together gets the NEC 210.4(B)
+    finding.
     """
     n = len(schedule.circuits)
     current = list(analysis.circuit_current_a[:n])
     rms = list(analysis.circuit_rms_a[:n])
+    calculated = analysis.circuit_calculated_a[:n]
     for i, b in enumerate(analysis.breakers):
         if schedule.circuits[i].has_legs and schedule.circuits[i].is_placed:
             current[i], rms[i] = b.max_current_a, b.max_rms_a
@@ -236,12 +268,12 @@ def per_circuit(analysis: PanelAnalysis, schedule: Schedule) -> PanelAnalysis:
         )
         if finding is not None:
             findings.append(finding)
-    order = {"limit": 0, "warning": 1, "info": 2}
-    findings.sort(key=lambda f: order[f.level])
+    findings.sort(key=lambda f: LEVEL_RANK[f.level])
     return dataclasses.replace(
         analysis,
         circuit_current_a=tuple(current),
         circuit_rms_a=tuple(rms),
+        circuit_calculated_a=calculated,
         findings=tuple(findings),
     )
 

@@ -18,7 +18,6 @@ from tri.engine.results import PanelAnalysis
 from tri.engine.scenarios import ScenarioSet, analyse_scenarios
 from tri.schedule.model import Schedule
 from tri.schedule.to_engine import (
-    DEFAULT_CONTINUOUS_FACTOR,
     analyse_schedule,
     circuit_arrays,
     element_rows,
@@ -78,7 +77,7 @@ def analyse_cases(
     connected: PanelAnalysis | None = None,
     *,
     iterate_voltage: bool = False,
-    continuous_factor: float = DEFAULT_CONTINUOUS_FACTOR,
+    continuous_factor: float | None = None,
     limits: FindingLimits | None = None,
 ) -> tuple[Case, ...]:
     """The connected load and every scenario, analysed.

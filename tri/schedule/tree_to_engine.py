@@ -20,8 +20,8 @@ from tri.engine.tree import Progress
 from tri.engine.tree_inputs import PanelLink, TreeInputs, TreeNode
 from tri.engine.tree_results import TreeAnalysis, analyse_tree
 from tri.schedule.to_engine import (
-    DEFAULT_CONTINUOUS_FACTOR,
     circuit_arrays,
+    circuit_labels,
     measured,
     ratings,
     system_voltages,
@@ -43,9 +43,7 @@ def _link(tree: ScheduleTree, index: int) -> PanelLink | None:
     return PanelLink(p.parent, p.feeder_index, c.feed.feeder, tx)
 
 
-def tree_inputs(
-    tree: ScheduleTree, continuous_factor: float = DEFAULT_CONTINUOUS_FACTOR
-) -> TreeInputs:
+def tree_inputs(tree: ScheduleTree, continuous_factor: float | None = None) -> TreeInputs:
     """The engine's inputs for every panel of the building, root first."""
     nodes = tuple(
         TreeNode(
@@ -73,7 +71,7 @@ def analyse_building(
     tree: ScheduleTree,
     *,
     iterate_voltage: bool = False,
-    continuous_factor: float = DEFAULT_CONTINUOUS_FACTOR,
+    continuous_factor: float | None = None,
     limits: FindingLimits | None = None,
     progress: Progress | None = None,
 ) -> TreeAnalysis:
@@ -98,6 +96,7 @@ def analyse_building(
         tree_inputs(tree, continuous_factor),
         readings=tuple(measured(p.schedule) for p in tree.panels),
         phase_labels=tuple(p.schedule.labels for p in tree.panels),
+        circuit_labels=tuple(circuit_labels(p.schedule) for p in tree.panels),
         iterate_voltage=iterate_voltage,
         limits=limits,
         progress=progress,

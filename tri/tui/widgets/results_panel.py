@@ -2,7 +2,8 @@
 
 Everything shown is read from the engine's ``PanelAnalysis``; nothing is
 recomputed here. Bars carry their numbers (amperes, percent of the rating)
-and the words OVER / NEAR beside them, so colour is never the only signal.
+and the words OVER / NEAR beside them (from :mod:`tri.engine.limits`, the
+same words and thresholds as the report), so colour is never the only signal.
 """
 
 from __future__ import annotations
@@ -12,6 +13,7 @@ from typing import Any
 from rich.text import Text
 from textual.widgets import Static
 
+from tri.engine.limits import LEVEL_RANK, LEVEL_WORD, NEAR, OK, OVER, loading_word
 from tri.tui import fmt
 
 HELP = """\
@@ -24,9 +26,7 @@ of a phase's RMS current from the mean of the three. VUF (voltage unbalance
 factor, IEC) appears when the file describes the supply. Findings follow,
 most serious first; press f for the full list."""
 
-LEVEL_WORD = {"limit": "LIMIT", "warning": "WARN", "info": "info"}
-LEVEL_RANK = {"limit": 0, "warning": 1, "info": 2}
-NEAR_PCT = 80.0
+_STYLE = {OVER: "bold red", NEAR: "yellow", OK: "green", "": "green"}
 
 
 def bar(fraction: float, width: int) -> str:
@@ -37,23 +37,13 @@ def bar(fraction: float, width: int) -> str:
 
 
 def _load_style(loading: float | None) -> str:
-    if loading is None:
-        return "green"
-    if loading > 100:
-        return "bold red"
-    if loading >= NEAR_PCT:
-        return "yellow"
-    return "green"
+    return _STYLE[loading_word(loading)]
 
 
 def _flag(loading: float | None) -> str:
-    if loading is None:
-        return "    "
-    if loading > 100:
-        return "OVER"
-    if loading >= NEAR_PCT:
-        return "NEAR"
-    return "    "
+    """OVER / NEAR (:func:`tri.engine.limits.loading_word`, as the report), blank when ok."""
+    word = loading_word(loading)
+    return word if word in (OVER, NEAR) else "    "
 
 
 def sorted_findings(analysis: Any) -> list[Any]:
