@@ -20,6 +20,7 @@ from tri.schedule.model import Schedule
 from tri.schedule.to_engine import (
     analyse_schedule,
     circuit_arrays,
+    circuit_labels,
     element_rows,
     per_circuit,
     ratings,
@@ -119,6 +120,7 @@ def analyse_cases(
         iterate_voltage=iterate_voltage,
         phase_labels=schedule.labels,
         limits=limits,
+        circuit_labels=circuit_labels(schedule),
     )
     cases.extend(
         Case(n, False, per_circuit(a, schedule))
