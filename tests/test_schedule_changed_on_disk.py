@@ -90,6 +90,13 @@ async def test_ctrl_s_on_a_changed_file_writes_nothing(small: Path) -> None:
         await settle(pilot)
         assert small.read_bytes() == changed
         assert app.session is not None and app.session.dirty
+        # Ctrl+S itself asks what to do (the dialog, not only a status line).
+        assert isinstance(app.screen, ChoiceScreen)
+        assert "small.toml changed on disk" in app.screen.title_text
+        await pilot.press("o")  # overwrite: the disk version is kept as the backup
+        await settle(pilot)
+    assert load_schedule(small).schedule.circuits[0].name == "Edited in tri"
+    assert (small.parent / "small.toml.bak").read_bytes() == changed
 
 
 async def test_dialog_overwrite_keeps_the_disk_version_as_backup(small: Path) -> None:

@@ -4,6 +4,7 @@ from __future__ import annotations
 
 import sys
 
+from tri.safety import SAFETY_CAUTION as SAFETY_CAUTION  # its home; re-exported for the commands
 from tri.schedule.load import ScheduleFile, load_schedule
 from tri.schedule.text import escaped
 
@@ -11,13 +12,6 @@ EXIT_OK = 0
 EXIT_LIMIT = 1  #: ``tri check`` found a limit exceeded
 EXIT_ERROR = 2  #: bad input: unreadable or invalid file, bad option
 EXIT_INTERNAL = 3  #: a bug in tri
-
-SAFETY_CAUTION = (
-    "Figures are engineering estimates from the schedule, not measurements. "
-    "Panel work can kill: de-energise and lock out before moving any breaker, "
-    "and let a qualified person do the work. The local electrical code and the "
-    "authority having jurisdiction decide; nothing here is approval to work."
-)
 
 
 class CliError(Exception):

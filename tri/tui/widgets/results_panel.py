@@ -15,6 +15,7 @@ from textual.widgets import Static
 
 from tri.engine.limits import LEVEL_RANK, LEVEL_WORD, NEAR, OK, OVER, loading_word
 from tri.tui import fmt
+from tri.tui.wording import plural
 
 HELP = """\
 Results (from the engine, updated after every edit): for each phase its
@@ -51,7 +52,29 @@ def sorted_findings(analysis: Any) -> list[Any]:
     return sorted(analysis.findings, key=lambda f: LEVEL_RANK.get(f.level, 3))
 
 
-def results_lines(analysis: Any, width: int, finding_lines: int = 1) -> list[Text]:
+def checks_line(checks: Any, width: int) -> Text | None:
+    """``tri check``'s verdicts in one line: FAIL and PASS by limit, skipped ones named."""
+    if not checks:
+        return None
+    t = Text()
+    t.append("Checks ", style="bold")
+    for word, status in (("FAIL", "fail"), ("PASS", "pass"), ("skipped", "skipped")):
+        keys = [r.key for r in checks if r.status == status]
+        keys = [k if keys.count(k) == 1 else f"{k} ×{keys.count(k)}" for k in dict.fromkeys(keys)]
+        if keys:
+            if len(t) > 7:
+                t.append(" · ")
+            t.append(word, style="bold" if status != "skipped" else "")
+            t.append(" " + ", ".join(keys))
+    tail = " (f: why)"
+    if t.cell_len + len(tail) <= width:
+        t.append(tail, style="dim")
+    return t
+
+
+def results_lines(
+    analysis: Any, width: int, finding_lines: int = 1, checks: Any = ()
+) -> list[Text]:
     """The panel's lines for a given width (cells) and room for findings."""
     labels = analysis.phase_labels
     lab_w = max(len(x) for x in (*labels, "N"))
@@ -84,11 +107,18 @@ def results_lines(analysis: Any, width: int, finding_lines: int = 1) -> list[Tex
     v = analysis.voltage
     if v is not None:
         t.append(f"  VUF {v.vuf_pct:.2f} %")
-    lines.append(t)
-    t = Text(f"Rating {analysis.rating_a:g} A", style="dim")
+    rating = Text(f"Rating {analysis.rating_a:g} A", style="dim")
     if analysis.unplaced_count:
-        t.append(f"  {analysis.unplaced_count} new circuit(s) not placed, left out", style="")
-    lines.append(t)
+        rating.append(f"  {plural(analysis.unplaced_count, 'circuit')} not placed", style="")
+    if t.cell_len + 2 + rating.cell_len <= width:
+        t.append("  ")
+        t.append_text(rating)
+        lines.append(t)
+    else:
+        lines += [t, rating]
+    verdicts = checks_line(checks, width)
+    if verdicts is not None:
+        lines.append(verdicts)
     findings = sorted_findings(analysis)
     if not findings:
         lines.append(Text("No findings.", style="dim"))
@@ -118,13 +148,15 @@ class ResultsPanel(Static):
         self.analysis: Any = None
         self.note: str = "Analysing…"
         self.stale = False
+        self.checks: Any = ()
         self.drawn: Any = None  #: the analysis last rendered (for the benchmark)
 
-    def show(self, analysis: Any, note: str = "", stale: bool = False) -> None:
-        """Display ``analysis`` (None: show ``note`` instead)."""
+    def show(self, analysis: Any, note: str = "", stale: bool = False, checks: Any = ()) -> None:
+        """Display ``analysis`` (None: show ``note`` instead) and ``tri check``'s verdicts."""
         self.analysis = analysis
         self.note = note
         self.stale = stale
+        self.checks = checks
         self.refresh(layout=True)
 
     def render(self) -> Text:
@@ -133,7 +165,7 @@ class ResultsPanel(Static):
         if self.analysis is None:
             return Text(self.note)
         rows = 3 if self.app.size.height >= 32 else 1
-        lines = results_lines(self.analysis, width, finding_lines=rows)
+        lines = results_lines(self.analysis, width, finding_lines=rows, checks=self.checks)
         if self.stale:
             lines.append(Text("(updating…)", style="dim"))
         return Text("\n").join(lines)
