@@ -334,7 +334,7 @@ def _sizing(a: PanelAnalysis, schedule: Schedule, circuits: list[dict[str, Any]]
     rated = [c for c in circuits if c["over_breaker"] is not None]
     per_phase = "scheduled VA per phase over V_LN"
     if schedule.panel.effective_high_leg is not None:
-        per_phase += " (the 2- and 3-pole shares over V_LL/√3)"
+        per_phase = "scheduled 1-pole VA per phase over V_LN and 2- and 3-pole shares over V_LL/√3"
     return {
         "per_phase": per_phase,
         "method": calculation_words(a.continuous_factor),
