@@ -125,7 +125,7 @@ class LocalSearch:
         self.n = problem.nbase + problem.ncontrib[a].sum(axis=0)
         self.cells = problem.use_cells[a].sum(axis=0)
         self.win = problem.use_window[a].sum(axis=0)
-        self.cap_total = problem.cap_cells.sum(axis=1)
+        self.cap_total = problem.cap_phase
         self.moved = problem.movable & present & (self.assign != problem.current)
         scale = max(problem.floor_a, 1e-9)
         self.tol = (1e-12 if goal.target is not None else 1e-9 * scale, 1e-9 * scale * scale)
