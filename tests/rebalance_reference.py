@@ -27,7 +27,7 @@ import numpy as np
 from tri.engine import analyse_batch
 from tri.engine.inputs import CircuitArrays
 from tri.schedule.model import Schedule
-from tri.schedule.slots import fits, occupied_slots
+from tri.schedule.slots import fits, occupied_slots, slot_phases
 from tri.schedule.to_engine import circuit_arrays, connection_of, ratings, system_voltages
 
 
@@ -128,23 +128,48 @@ class Enumerated:
 
 
 def enumerate_panel(schedule: Schedule, free: list[int]) -> Enumerated:
-    """Every arrangement of ``free`` and its figures (module notes)."""
+    """Every arrangement of ``free`` and its figures (module notes).
+
+    Arrangements that put every breaker on the same phases have the same
+    currents, so the engine runs once per distinct set of phases.
+    """
     slots = arrangements(schedule, free)
-    ca = circuit_arrays(schedule)
     n_arr = slots.shape[0]
+    old = [schedule.circuits[i].slot for i in free]
+    moved = np.zeros(n_arr, dtype=int)
+    codes = np.zeros((n_arr, len(free)), dtype=int)
+    first_phase = np.array([0, *(slot_phases(s, 1)[0] for s in range(1, schedule.panel.spaces + 1))])
+    for k, _i in enumerate(free):
+        codes[:, k] = first_phase[slots[:, k]]
+        if old[k] is not None:
+            moved += slots[:, k] != old[k]
+    uniq, back = np.unique(codes, axis=0, return_inverse=True)
+    first_slot = np.zeros_like(uniq)
+    for u in range(uniq.shape[0]):
+        first_slot[u] = slots[np.flatnonzero(back.ravel() == u)[0]]
+    rms, neutral, dev = _engine(schedule, free, first_slot)
+    back = back.ravel()
+    return Enumerated(
+        slots=slots,
+        relocations=moved,
+        phase_rms=rms[back],
+        neutral_rms=neutral[back],
+        deviation_pct=dev[back],
+    )
+
+
+def _engine(schedule: Schedule, free: list[int], first_slot: np.ndarray):
+    """Engine figures of the schedules with ``free`` at each row of first slots."""
+    ca = circuit_arrays(schedule)
+    n_arr = first_slot.shape[0]
     conn = np.tile(ca.connection, (n_arr, 1))
     pp = np.tile(ca.phase_p, (n_arr, 1))
     qq = np.tile(ca.phase_q, (n_arr, 1))
-    old = [schedule.circuits[i].slot for i in free]
-    moved = np.zeros(n_arr, dtype=int)
     for k, i in enumerate(free):
         c = schedule.circuits[i]
-        for s in np.unique(slots[:, k]):
-            code = connection_of(c.at_slot(int(s)))
-            rows = slots[:, k] == s
-            conn[rows, i], pp[rows, i], qq[rows, i] = code
-        if old[k] is not None:
-            moved += slots[:, k] != old[k]
+        for s in np.unique(first_slot[:, k]):
+            rows = first_slot[:, k] == s
+            conn[rows, i], pp[rows, i], qq[rows, i] = connection_of(c.at_slot(int(s)))
     batch = CircuitArrays(
         s_va=np.tile(ca.s_va, (n_arr, 1)),
         connection=conn,
@@ -155,12 +180,10 @@ def enumerate_panel(schedule: Schedule, free: list[int]) -> Enumerated:
         continuous=np.tile(ca.continuous, (n_arr, 1)),
     )
     res = analyse_batch(batch, system_voltages(schedule), ratings(schedule))
-    return Enumerated(
-        slots=slots,
-        relocations=moved,
-        phase_rms=np.asarray(res.phase_rms_a).reshape(n_arr, 3),
-        neutral_rms=np.asarray(res.neutral_rms_a).reshape(n_arr),
-        deviation_pct=np.asarray(res.max_deviation_pct).reshape(n_arr),
+    return (
+        np.asarray(res.phase_rms_a).reshape(n_arr, 3),
+        np.asarray(res.neutral_rms_a).reshape(n_arr),
+        np.asarray(res.max_deviation_pct).reshape(n_arr),
     )
 
 

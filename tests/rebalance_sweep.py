@@ -37,7 +37,7 @@ OPTIMAL_GAP = 1e-6 + EDGE
 PROFILES = ("linear", "linear", "linear", "electronics", "led-driver", "vfd")
 
 
-def dense_panel(rng: np.random.Generator, spaces: int, max_free: int = 7) -> Schedule:
+def dense_panel(rng: np.random.Generator, spaces: int, max_free: int = 6) -> Schedule:
     """A random tiling of ``spaces`` slots with 0-2 left empty (module notes).
 
     At most ``max_free`` breakers stay unlocked (the rest are locked), so
@@ -134,7 +134,7 @@ class Case:
 def cases_for(rng: np.random.Generator, schedule: Schedule) -> list[Case]:
     """One case of every mode for a panel (targets and budgets drawn at random)."""
     has_new = any(not c.is_placed for c in schedule.circuits)
-    target = float(rng.choice([1.0, 2.0, 3.0, 5.0, 10.0, 20.0]))
+    target = float(rng.choice([2.0, 5.0, 10.0, 20.0, 30.0]))
     out = [
         Case(schedule, "fewest-moves", target_pct=target, place_new=has_new and rng.random() < 0.5),
         Case(schedule, "fewest-moves", target_pct=target, max_moves=int(rng.integers(1, 3))),
@@ -171,7 +171,8 @@ def check_case(case: Case, s, enum: Enumerated | None = None) -> list[str]:
         assert t is not None
         strict = within & strict_n & (enum.deviation_pct <= t * (1 - EDGE))
         loose = within & loose_n & (enum.deviation_pct <= t * (1 + EDGE))
-        bad += _fewest_errors(s, enum, strict, loose, t)
+        placed = all(s.schedule.circuits[i].is_placed for i in free)
+        bad += _fewest_errors(s, enum, strict, loose, t, placed)
     else:
         feasible = within & strict_n
         best = float(enum.max_rms[feasible].min()) if np.any(feasible) else math.inf
@@ -196,10 +197,11 @@ def _plan_errors(sched: Schedule, free: list[int], s) -> list[str]:
     return bad
 
 
-def _fewest_errors(s, enum: Enumerated, strict, loose, t: float) -> list[str]:
+def _fewest_errors(s, enum: Enumerated, strict, loose, t: float, placed: bool) -> list[str]:
+    """False claims of a fewest-moves suggestion (``placed``: every free circuit has a slot)."""
     bad = []
     k_best = int(enum.relocations[strict].min()) if np.any(strict) else None
-    met = s.after.max_deviation_pct <= t * (1 + EDGE)
+    met = placed and s.after.max_deviation_pct <= t * (1 + EDGE)
     if s.target_met != met:
         bad.append(f"target_met {s.target_met} but the deviation after is {s.after.max_deviation_pct}")
     if s.status in ("optimal", "already-balanced"):

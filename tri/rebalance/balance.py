@@ -31,8 +31,14 @@ import numpy as np
 
 from tri.rebalance.control import Control
 from tri.rebalance.electrical import add_electrical, add_neutral_cuts, decode_options
+from tri.rebalance.exhaust import best_plans_within, enumeration_fits
 from tri.rebalance.heuristic import Goal
-from tri.rebalance.lower_bounds import add_rms_lower_bounds, phase_reach, unit_spectrum
+from tri.rebalance.lower_bounds import (
+    RESOLUTIONS,
+    add_rms_lower_bounds,
+    phase_reach,
+    unit_spectrum,
+)
 from tri.rebalance.model import Model
 from tri.rebalance.plans import Evaluator, Plan
 from tri.rebalance.problem import Problem, spectra
@@ -58,6 +64,7 @@ class _BalanceSearch:
         self.nlim, ndirs = neutral_setup(pr, goal)
         self.ncuts = list(ndirs)
         self.slice_s = 0.25
+        self.level = 0
         self.learn(pr.current_assignment())
 
     @property
@@ -87,7 +94,8 @@ class _BalanceSearch:
         sc.add_budget(m, self.budget)
         t = m.var(1, self.lower, np.inf)
         for p in range(3):
-            add_rms_lower_bounds(m, self.pr, el, p, [t], self.reaches[p], self.visited[p])
+            res = RESOLUTIONS[self.level]
+            add_rms_lower_bounds(m, self.pr, el, p, [t], self.reaches[p], self.visited[p], res)
         if self.nlim is not None:
             add_neutral_cuts(m, el, self.nlim, self.ncuts)
         if math.isfinite(self.best):
@@ -126,10 +134,50 @@ class _BalanceSearch:
         if plan is None:  # the slot block is exact: this would be a bug
             plan = self.ev.plan(a)
             self.out.notes.append("a solution's slots did not fit and were found again")
+        before = self.best
         self.offer(plan)
+        if self.best >= before:  # no better plan: finer polygons next time
+            self.level = min(self.level + 1, len(RESOLUTIONS) - 1)
         if sol.status != "optimal":
             self.slice_s *= 2
         return not self.done(stop_gap)
+
+    def count_out(self) -> bool:
+        """Settle the question by listing the best plans, when there are few.
+
+        Every plan within the budget has at most ``budget`` option changes,
+        so it is among those listed (:func:`tri.rebalance.exhaust.best_plans_within`)
+        unless its value is at least the last one listed. Taken in order,
+        the first that meets the goal exactly (its fewest relocations within
+        the budget, :func:`tri.rebalance.realise.realise`) is optimal, provided
+        every one before it was proven not to. Returns True when settled.
+        """
+        if not enumeration_fits(self.pr, self.budget):
+            return False
+        self.control.report("checking every plan")
+        ranked = best_plans_within(self.pr, self.goal.neutral_max_a, self.budget)
+        if ranked is None:
+            return False
+        sure = True
+        for a, value in zip(ranked.plans, ranked.values, strict=True):
+            if value >= self.best or self.control.stop():
+                break
+            plan = self.ev.plan(a)
+            if self.ev.good(plan):
+                self.offer(plan)
+                break
+            sure = sure and self.ev.proven(a)
+        else:
+            if sure and ranked.values and not ranked.complete:
+                self.lower = max(self.lower, ranked.values[-1] * (1 - 1e-9))
+            if not (sure and ranked.complete):
+                return False
+        if not sure or self.control.stop():
+            return False
+        self.out.proven = True
+        if self.out.plan is not None:
+            self.lower = max(self.lower, self.out.plan.max_rms_a * (1 - 1e-12))
+        return True
 
     def done(self, stop_gap: float) -> bool:
         if self.best <= self.lower * (1 + PROVEN_GAP):
@@ -146,6 +194,7 @@ def solve_balance(
     ev: Evaluator,
     *,
     stop_gap: float = 1e-3,
+    list_plans: bool = True,
 ) -> Outcome:
     """Minimise the largest phase RMS current within the relocation budget (module notes).
 
@@ -160,6 +209,8 @@ def solve_balance(
     ev : Evaluator
     stop_gap : float
         Stop once the best plan is within this fraction of the proven bound [-].
+    list_plans : bool
+        Settle small questions by listing every plan (:meth:`_BalanceSearch.count_out`).
 
     Returns
     -------
@@ -174,7 +225,8 @@ def solve_balance(
         out.notes.append("triplen harmonics alone exceed the neutral limit")
         return out
     search.offer(incumbent)
-    if not search.done(stop_gap):
+    settled = list_plans and search.count_out()
+    if not search.done(stop_gap) and not settled:
         while not control.stop() and search.step(stop_gap):
             pass
     out.bound = max(search.lower, pr.floor_a)

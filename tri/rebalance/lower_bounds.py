@@ -7,15 +7,16 @@ order by order from the polygon bounds of :mod:`tri.rebalance.polygon`.
 Rows (:func:`add_rms_lower_bounds`)
 -----------------------------------
 Variables ``a_h ≥ <I_p,h, d>`` for polygon directions ``d`` of each order
-h (the fundamental's over the angles it can reach within the budget every
-:data:`LOWER_STEP_DEG`; each harmonic's around the circle,
-:data:`HARMONIC_SIDES`; plus order h's direction at every visited plan),
+h (the fundamental's over the angles it can reach within the budget, one
+every ``step_deg``; each harmonic's around the circle, ``harmonic_sides``;
+plus order h's direction at every visited plan; the spacings are those of
+a :class:`Resolution`, coarse first, finer as the search asks),
 so at the true point ``a_h = max_d <I_p,h, d>`` lies between
 ``cos(π/m)·|I_p,h|`` and ``|I_p,h|`` (Theorem 1). A harmonic variable
 ``g ≥ Σ_{h>1} w_h·a_h`` for unit profiles ``w ≥ 0`` (each order alone, and
 the order magnitudes of each visited plan) is at most ``||(a_h)_{h>1}|| ≤
 G_p`` (Cauchy-Schwarz). Finally ``r ≥ cos β·a_1 + sin β·g`` for β on a grid
-of :data:`TILT_STEP_DEG` up to the largest possible ``atan(G_p/|z_p|)``,
+of ``tilt_deg`` up to the largest possible ``atan(G_p/|z_p|)``,
 and the tilt of every visited plan: at most ``sqrt(a_1² + g²) ≤ R_p``, so
 the rows hold at every plan. At a visited plan every step is exact (its
 own directions, profile and tilt), so the bound equals ``R_p`` there, like
@@ -48,16 +49,30 @@ from tri.rebalance.model import Model
 from tri.rebalance.polygon import Reach, polygon_directions, reach_from_support
 from tri.rebalance.problem import Problem
 
-#: Spacing of the lower-bound polygon over a phase's reachable angles [deg]
-#: (error ``1 - cos(0.5°)`` = 0.0038 %).
-LOWER_STEP_DEG = 1.0
-#: Sides of the polygon bounding each harmonic order's magnitude from below
-#: (error ``1/cos(π/m) - 1`` = 0.86 % of that order, Theorem 1; a harmonic
-#: order enters ``R_p`` about as its square over ``2·R_p``, so the error on
-#: ``R_p`` is a small fraction of that; visited plans make it exact there) [-].
-HARMONIC_SIDES = 24
-#: Spacing of the tilt between fundamental and harmonic RMS [deg].
-TILT_STEP_DEG = 0.5
+@dataclass(frozen=True)
+class Resolution:
+    """Spacings of the lower-bound polygons (module notes).
+
+    Attributes
+    ----------
+    step_deg : float
+        Between the fundamental's directions [deg]; error ``1 - cos(step/2)``.
+    harmonic_sides : int
+        Sides of each harmonic order's polygon [-]; error ``1/cos(π/m) - 1`` of
+        that order (a harmonic order enters ``R_p`` about as its square over
+        ``2·R_p``, so the error on ``R_p`` is a small fraction of that).
+    tilt_deg : float
+        Between the tilts of fundamental and harmonic RMS [deg].
+    """
+
+    step_deg: float
+    harmonic_sides: int
+    tilt_deg: float
+
+
+#: Coarse to fine (fundamental errors 0.061 %, 0.015 %, 0.0038 %): models
+#: start coarse and small, and refine where a proposal failed.
+RESOLUTIONS = (Resolution(4.0, 12, 2.0), Resolution(2.0, 24, 1.0), Resolution(1.0, 36, 0.5))
 #: Directions used for the reachable-set support function [-].
 REACH_DIRECTIONS = 72
 
@@ -125,14 +140,14 @@ def phase_reach(pr: Problem, p: int, budget: int) -> PhaseReach:
     return PhaseReach(reach, g_max)
 
 
-def lower_directions(reach: Reach) -> np.ndarray:
-    """Polygon directions every :data:`LOWER_STEP_DEG` over a reachable cone (Theorem 1).
+def lower_directions(reach: Reach, step_deg: float) -> np.ndarray:
+    """Polygon directions every ``step_deg`` over a reachable cone (Theorem 1).
 
     Within the cone (widened by one step each side) the nearest direction is
     at most half a step away, so ``max_j <z, u_j> ≥ |z|·cos(step/2)``; outside
     it no plan goes. The whole circle when the cone is.
     """
-    step = math.radians(LOWER_STEP_DEG)
+    step = math.radians(step_deg)
     if reach.angle_stop - reach.angle_start >= 2 * np.pi - 1e-9:
         return polygon_directions(max(3, math.ceil(2 * np.pi / step)))
     lo, hi = reach.angle_start - step, reach.angle_stop + step
@@ -158,6 +173,7 @@ def add_rms_lower_bounds(
     r_cols: list[int],
     reach: PhaseReach,
     visited: list[np.ndarray],
+    resolution: Resolution = RESOLUTIONS[-1],
 ) -> None:
     """Rows ``r ≥ (lower bound of R_p)`` for each column ``r`` of ``r_cols`` (module notes).
 
@@ -174,18 +190,21 @@ def add_rms_lower_bounds(
         Where phase p can go within the budget.
     visited : list of complex ndarray, shape (H,)
         Unit spectra ``v/||v||`` of phase p at plans seen so far.
+    resolution : Resolution
+        Spacings of the polygons.
     """
     cols = el.phase_cols(p)
     h = pr.orders.size
     seen = [u[0] / abs(u[0]) for u in visited if abs(u[0]) > 0]
-    fund_dirs = np.concatenate([lower_directions(reach.fundamental), np.array(seen, complex)])
+    base = lower_directions(reach.fundamental, resolution.step_deg)
+    fund_dirs = np.concatenate([base, np.array(seen, complex)])
     if h == 1:
         for r in r_cols:
             _project(m, r, int(cols[0]), int(cols[1]), fund_dirs)
         return
     a0 = m.var(h, 0.0, np.inf)
     _project(m, a0, int(cols[0]), int(cols[1]), fund_dirs)
-    ring = polygon_directions(HARMONIC_SIDES)
+    ring = polygon_directions(resolution.harmonic_sides)
     for k in range(1, h):
         extra = np.array([u[k] / abs(u[k]) for u in visited if abs(u[k]) > 1e-12], dtype=complex)
         _project(m, a0 + k, int(cols[2 * k]), int(cols[2 * k + 1]), np.concatenate([ring, extra]))
@@ -203,7 +222,7 @@ def add_rms_lower_bounds(
         0.0,
         np.inf,
     )
-    beta = _tilts(reach, visited)
+    beta = _tilts(reach, visited, resolution.tilt_deg)
     for r in r_cols:
         m.block(
             np.column_stack([np.full(beta.size, r), np.full(beta.size, a0), np.full(beta.size, g)]),
@@ -213,11 +232,11 @@ def add_rms_lower_bounds(
         )
 
 
-def _tilts(reach: PhaseReach, visited: list[np.ndarray]) -> np.ndarray:
+def _tilts(reach: PhaseReach, visited: list[np.ndarray], tilt_deg: float) -> np.ndarray:
     """Tilts β on a grid up to the largest possible, and those of visited plans [rad]."""
     g_max = reach.harmonic_max
     beta_max = math.atan2(g_max, max(reach.fundamental.min_abs, 1e-9 * max(1.0, g_max)))
-    step = math.radians(TILT_STEP_DEG)
+    step = math.radians(tilt_deg)
     n_beta = max(1, math.ceil(beta_max / step))
     tilts = [math.atan2(float(np.sqrt(np.sum(np.abs(u[1:]) ** 2))), abs(u[0])) for u in visited]
     return np.concatenate([np.linspace(0.0, n_beta * step, n_beta + 1), tilts])

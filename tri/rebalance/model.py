@@ -21,6 +21,7 @@ References
 
 from __future__ import annotations
 
+import os
 import warnings
 from dataclasses import dataclass
 from typing import Literal
@@ -181,7 +182,8 @@ class Model:
                 bounds=Bounds(np.concatenate(self.lb), np.concatenate(self.ub)),
                 constraints=constraints,
                 options={
-                    "disp": False,
+                    # TRI_HIGHS_LOG=1 shows HiGHS's log (for developers; it goes to stdout)
+                    "disp": bool(os.environ.get("TRI_HIGHS_LOG")),
                     "time_limit": max(0.01, float(time_limit)),
                     "mip_rel_gap": gap,
                     "presolve": presolve,

@@ -67,6 +67,10 @@ class SuggestOptions:
         fraction of the proven lower bound [-] (0: prove optimality).
     use_solver : bool
         False: greedy start and local search only (for comparisons).
+    list_plans : bool
+        Settle small questions by listing every plan
+        (:mod:`tri.rebalance.exhaust`); False leaves every proof to the
+        mixed-integer programs (for tests of those).
     """
 
     target_pct: float | None = None
@@ -77,6 +81,7 @@ class SuggestOptions:
     time_limit_s: float = DEFAULT_TIME_LIMIT_S
     floor_gap: float = DEFAULT_STOP_GAP
     use_solver: bool = True
+    list_plans: bool = True
 
     def __post_init__(self) -> None:
         problems = []

@@ -60,15 +60,23 @@ class Evaluator:
         self.pr = pr
         self.goal = goal
         self._cache: dict[bytes, Plan | None] = {}
+        self._proven: dict[bytes, bool] = {}
 
     def plan(self, assign: np.ndarray) -> Plan | None:
         """The plan of these options with the fewest relocations; None if they do not fit."""
         a = np.asarray(assign, dtype=int)
         key = a.tobytes()
         if key not in self._cache:
-            arr = realise(self.pr, a)
+            arr, proven = realise(self.pr, a)
             self._cache[key] = None if arr is None else Plan(a.copy(), arr, assess(self.pr, a))
+            self._proven[key] = proven
         return self._cache[key]
+
+    def proven(self, assign: np.ndarray) -> bool:
+        """Whether :meth:`plan` of these options is proven (fewest relocations, or no fit)."""
+        a = np.asarray(assign, dtype=int)
+        self.plan(a)
+        return self._proven.get(a.tobytes(), False)
 
     def from_solution(
         self, assign: np.ndarray, stays: np.ndarray, windows: list[Window]
@@ -81,9 +89,11 @@ class Evaluator:
         if arr is None:
             return None
         plan = Plan(a.copy(), arr, assess(self.pr, a))
-        cached = self._cache.get(a.tobytes())
-        if cached is None or plan.relocations < cached.relocations:
-            self._cache[a.tobytes()] = plan
+        key = a.tobytes()
+        cached = self._cache.get(key)
+        if key in self._cache and (cached is None or plan.relocations < cached.relocations):
+            # fewer than the realisation found: that one was not the fewest
+            self._cache[key], self._proven[key] = plan, False
         return plan
 
     def meets_target(self, figures: Assessment) -> bool:

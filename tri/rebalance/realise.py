@@ -29,7 +29,7 @@ References
 from __future__ import annotations
 
 from collections import defaultdict
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 
 import numpy as np
 
@@ -56,10 +56,14 @@ class Arrangement:
     relocations : int
         Placed breakers whose first slot changes (on a rail board: whose
         phases change) [-].
+    fewest : bool
+        Proven the fewest relocations these options allow (by the quick
+        fill, or by the realisation program solved to optimality).
     """
 
     first_slot: dict[int, int]
     relocations: int
+    fewest: bool = False
 
 
 def _near(b_home: int | None, slot: int, scale: float) -> float:
@@ -156,7 +160,7 @@ def _arrangement(pr: Problem, first: dict[int, int]) -> Arrangement:
     assert geo is not None
     out = {int(pr.free[b]): s for b, s in first.items()}
     moved = sum(1 for b, s in first.items() if pr.movable[b] and geo.home_first(b) != s)
-    return Arrangement(out, moved)
+    return Arrangement(out, moved, fewest=False)
 
 
 def _quick_fill(pr: Problem, assign: np.ndarray) -> Arrangement | None:
@@ -184,7 +188,7 @@ def _quick_fill(pr: Problem, assign: np.ndarray) -> Arrangement | None:
     return arrange(pr, assign, stays, chosen)
 
 
-def realise(pr: Problem, assign: np.ndarray) -> Arrangement | None:
+def realise(pr: Problem, assign: np.ndarray) -> tuple[Arrangement | None, bool]:
     """An arrangement of the options ``assign`` with the fewest relocations (module notes).
 
     Parameters
@@ -195,16 +199,18 @@ def realise(pr: Problem, assign: np.ndarray) -> Arrangement | None:
 
     Returns
     -------
-    Arrangement or None
-        None when no arrangement of these options fits the panel (proven by
-        the program).
+    arrangement : Arrangement or None
+        None when no arrangement of these options was found.
+    proven : bool
+        The answer is proven: the arrangement has the fewest relocations
+        there are, or (None) no arrangement of these options fits the panel.
     """
     assign = np.asarray(assign, dtype=int)
     if pr.geometry is None:
-        return Arrangement({}, pr.option_changes(assign))
+        return Arrangement({}, pr.option_changes(assign), fewest=True), True
     quick = _quick_fill(pr, assign)
-    if quick is not None:
-        return quick
+    if quick is not None and quick.relocations <= pr.option_changes(assign):
+        return replace(quick, fewest=True), True  # no arrangement has fewer
     m = Model()
     el = add_options(m, pr)
     sc = add_slots(m, pr, el)
@@ -215,7 +221,10 @@ def realise(pr: Problem, assign: np.ndarray) -> Arrangement | None:
     cost[sc.stay] -= 1.0
     sol = m.solve(cost, REALISE_TIME_S, gap=0.0)
     if sol.x is None:
-        return None
+        return None, sol.status == "infeasible"
     stays = np.zeros(pr.n_free, dtype=bool)
     stays[sc.placed] = sc.stays(sol.x)
-    return arrange(pr, assign, stays, sc.used_windows(sol.x))
+    arr = arrange(pr, assign, stays, sc.used_windows(sol.x))
+    if arr is None or sol.status != "optimal":
+        return arr, False
+    return replace(arr, fewest=True), True

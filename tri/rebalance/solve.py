@@ -32,6 +32,7 @@ from dataclasses import dataclass, field, replace
 import numpy as np
 
 from tri.rebalance.balance import solve_balance
+from tri.rebalance.exhaust import enumeration_fits
 from tri.rebalance.control import CancelHook, Cancelled, Control, ProgressCallback
 from tri.rebalance.heuristic import Goal, LocalSearch, heuristic_plan
 from tri.rebalance.options import SuggestOptions, objective_text
@@ -76,7 +77,9 @@ class _Run:
         return bool(np.any(~self.pr.movable)) if self.pr.n_free else False
 
 
-def _heuristic(run: _Run, goal: Goal, ev: Evaluator, from_scratch: bool = False) -> Plan | None:
+def _heuristic(
+    run: _Run, goal: Goal, ev: Evaluator, from_scratch: bool = False, kicks: bool = True
+) -> Plan | None:
     """The heuristic's plan, realised in slots and within the budget (fewer changes if needed)."""
     pr, control = run.pr, run.control
     if pr.n_free == 0:
@@ -85,7 +88,9 @@ def _heuristic(run: _Run, goal: Goal, ev: Evaluator, from_scratch: bool = False)
     for k in budgets:
         if control.stop():
             break
-        a = heuristic_plan(pr, replace(goal, max_moves=k), control, from_scratch=from_scratch)
+        a = heuristic_plan(
+            pr, replace(goal, max_moves=k), control, from_scratch=from_scratch, kicks=kicks
+        )
         plan = None if a is None else ev.plan(a)
         if ev.good(plan):
             return plan
@@ -106,13 +111,14 @@ def _fewest_moves(run: _Run) -> tuple[Plan | None, Status, float | None]:
     if now is not None and ev.good(now):
         return now, "already-balanced", None
     run.control.report("greedy start and local search")
-    plan = _heuristic(run, goal, ev)
+    # descents only: the proof below improves the plan where it can
+    plan = _heuristic(run, goal, ev, kicks=False)
     balance_goal = replace(goal, target=None)
-    fallback = _heuristic(run, balance_goal, Evaluator(pr, balance_goal))
+    fallback = _heuristic(run, balance_goal, Evaluator(pr, balance_goal), kicks=False)
     if ev.good(fallback) and (plan is None or fallback.relocations < plan.relocations):
         plan = fallback
     if run.opts.use_solver and pr.n_free:
-        out = solve_target(pr, goal, run.control, plan, ev)
+        out = solve_target(pr, goal, run.control, plan, ev, list_plans=run.opts.list_plans)
     else:
         out = Outcome(plan, proven=pr.n_free == 0, bound=0.0 if run.has_new else 1.0)
     run.calls += out.solver_calls
@@ -132,7 +138,10 @@ def _best_balance(run: _Run) -> tuple[Plan | None, Status, float | None]:
     goal = replace(run.goal, target=None)
     ev = Evaluator(pr, goal)
     control.report("greedy start and local search")
-    plan = _heuristic(run, goal, ev, from_scratch=opts.mode == "relayout")
+    budget = pr.n_movable if goal.max_moves is None else goal.max_moves
+    # when every plan will be listed, the descents suffice as a start
+    kicks = not (opts.list_plans and enumeration_fits(pr, budget))
+    plan = _heuristic(run, goal, ev, from_scratch=opts.mode == "relayout", kicks=kicks)
     now = _current_plan(run, ev)
     if plan is None and ev.good(now):
         plan = now
@@ -143,7 +152,9 @@ def _best_balance(run: _Run) -> tuple[Plan | None, Status, float | None]:
             else "nothing can move: every circuit is locked"
         )
     if opts.use_solver and pr.n_free:
-        out = solve_balance(pr, goal, control, plan, ev, stop_gap=opts.floor_gap)
+        out = solve_balance(
+            pr, goal, control, plan, ev, stop_gap=opts.floor_gap, list_plans=opts.list_plans
+        )
     else:
         out = Outcome(plan, proven=pr.n_free == 0 and plan is not None, bound=pr.floor_a)
     run.calls += out.solver_calls
@@ -269,6 +280,9 @@ def _finish(run: _Run, plan: Plan | None, status: Status, bound: float | None) -
         met = after.max_deviation_pct <= target_pct * (1 + TOL) + 1e-12
     if opts.neutral_max_a is not None:
         met = met and after.neutral_rms_a <= opts.neutral_max_a * (1 + TOL)
+    # new circuits asked to be placed but left without a slot: the goal is not met
+    new = pr.free[~pr.movable].tolist() if pr.n_free else []
+    met = met and all(after_schedule.circuits[i].is_placed for i in new)
     if moves and plan is not None:
         exact = plan.figures.phase_rms_a
         diff = max(abs(a - b) for a, b in zip(exact, after.phases_rms_a, strict=True))

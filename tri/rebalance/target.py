@@ -30,6 +30,7 @@ import numpy as np
 
 from tri.rebalance.control import Control
 from tri.rebalance.electrical import decode_options
+from tri.rebalance.exact_square import square_terms
 from tri.rebalance.exhaust import enumeration_fits, plans_within
 from tri.rebalance.heuristic import Goal, LocalSearch
 from tri.rebalance.model import Solution
@@ -89,8 +90,11 @@ def neutral_setup(pr: Problem, goal: Goal) -> tuple[float | None, list[np.ndarra
 class _TargetSearch:
     """State of one fewest-relocations search (module notes)."""
 
-    def __init__(self, pr: Problem, goal: Goal, control: Control, ev: Evaluator):
+    def __init__(
+        self, pr: Problem, goal: Goal, control: Control, ev: Evaluator, list_plans: bool = True
+    ):
         assert goal.target is not None
+        self.list_plans = list_plans
         self.pr, self.goal, self.control, self.ev = pr, goal, control, ev
         self.cap = pr.n_movable if goal.max_moves is None else min(goal.max_moves, pr.n_movable)
         self.out = Outcome(plan=None, proven=False, bound=0.0)
@@ -100,6 +104,7 @@ class _TargetSearch:
         self.counted_out: set[int] = set()
         self.slice_s = 0.5
         self.nlim, self.ndirs = neutral_setup(pr, goal)
+        self.squares = square_terms(pr)
 
     @property
     def best_k(self) -> int | None:
@@ -117,19 +122,28 @@ class _TargetSearch:
 
     def count_out(self, budget: int) -> bool | None:
         """Step 1 of the module notes: True if a better plan was found, False if the
-        budget is proven impossible, None if undecided."""
+        question is settled (the best plan proven optimal, or the budget impossible),
+        None if undecided."""
         self.counted_out.add(budget)
         what = f"at most {budget} phase change{'s' if budget != 1 else ''}"
         self.control.report(f"checking every plan with {what}")
-        found = plans_within(self.pr, self.goal.target, self.goal.neutral_max_a, budget)
-        if found is not None and not found:
-            self.lower = budget + 1
-            return False
-        improved = False
-        for a in found or []:
+        counted = plans_within(self.pr, self.goal.target, self.goal.neutral_max_a, budget)
+        if counted is None:
+            return None
+        improved, settled = False, counted.complete
+        for a, changes in zip(counted.plans, counted.changes, strict=True):
+            if self.best_k is not None and changes >= self.best_k:
+                break  # listed by changes: no later plan has fewer relocations
+            if self.control.stop():
+                return True if improved else None
             plan = self.ev.plan(a)
+            settled = settled and self.ev.proven(a)
             if plan is not None and plan.relocations <= budget and self.offer(plan):
                 improved = True
+        if settled:
+            # every plan with at most `budget` relocations was listed and realised exactly
+            self.lower = max(self.lower, budget + 1 if self.best_k is None else self.best_k)
+            return False
         return True if improved else None
 
     def ask_model(self, budget: int) -> bool:
@@ -142,6 +156,7 @@ class _TargetSearch:
             self.learnt,
             self.nlim,
             self.ndirs,
+            self.squares,
         )
         what = f"at most {budget} relocation{'s' if budget != 1 else ''}"
         self.control.report(f"solver: looking for a plan with {what}")
@@ -151,7 +166,7 @@ class _TargetSearch:
             tm.cost,
             span,
             gap=0.0,
-            presolve=self.pr.orders.size > 1,
+            presolve=self.best_k is not None,
             heuristics=self.best_k is None,
         )
         self.out.solver_calls += 1
@@ -205,7 +220,8 @@ class _TargetSearch:
             budget = self.cap if self.best_k is None else min(self.cap, self.best_k - 1)
             if budget < self.lower:
                 break
-            if budget not in self.counted_out and enumeration_fits(self.pr, budget):
+            listable = self.list_plans and enumeration_fits(self.pr, budget)
+            if budget not in self.counted_out and listable:
                 decided = self.count_out(budget)
                 if decided is False:
                     break
@@ -223,7 +239,13 @@ class _TargetSearch:
 
 
 def solve_target(
-    pr: Problem, goal: Goal, control: Control, incumbent: Plan | None, ev: Evaluator
+    pr: Problem,
+    goal: Goal,
+    control: Control,
+    incumbent: Plan | None,
+    ev: Evaluator,
+    *,
+    list_plans: bool = True,
 ) -> Outcome:
     """Fewest relocations that meet the target (module notes).
 
@@ -237,13 +259,15 @@ def solve_target(
         A plan that meets the goal (from the heuristic).
     ev : Evaluator
         Exact checks.
+    list_plans : bool
+        Settle small budgets by listing every plan (step 1).
 
     Returns
     -------
     Outcome
         ``bound`` is a proven lower bound on the relocations.
     """
-    search = _TargetSearch(pr, goal, control, ev)
+    search = _TargetSearch(pr, goal, control, ev, list_plans)
     if search.nlim is not None and search.nlim < 0:
         search.out.proven = True
         search.out.notes.append("triplen harmonics alone exceed the neutral limit")

@@ -39,7 +39,14 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from tri.rebalance.electrical import Electrical, add_electrical, add_neutral_cuts
-from tri.rebalance.lower_bounds import PhaseReach, add_rms_lower_bounds, phase_reach, unit_spectrum
+from tri.rebalance.exact_square import SquareTerms, add_exact_square_rows
+from tri.rebalance.lower_bounds import (
+    RESOLUTIONS,
+    PhaseReach,
+    add_rms_lower_bounds,
+    phase_reach,
+    unit_spectrum,
+)
 from tri.rebalance.model import Model
 from tri.rebalance.polygon import sectors
 from tri.rebalance.problem import Problem, spectra
@@ -124,6 +131,7 @@ def build_target_model(
     learnt: Learnt,
     neutral_limit: float | None,
     neutral_dirs: list[np.ndarray],
+    squares: SquareTerms | None = None,
 ) -> TargetModel:
     """The model of the module notes for at most ``budget`` relocations.
 
@@ -135,12 +143,16 @@ def build_target_model(
     budget : int
         Largest number of relocations [-].
     level : int
-        Index into :data:`SECTOR_WIDTHS_DEG`.
+        Index into :data:`SECTOR_WIDTHS_DEG` and
+        :data:`tri.rebalance.lower_bounds.RESOLUTIONS`.
     learnt : Learnt
     neutral_limit : float or None
         Limit on the non-triplen neutral RMS [A].
     neutral_dirs : list of complex ndarray
         Directions of the neutral rows (non-triplen orders only).
+    squares : SquareTerms, optional
+        The exact squares (:mod:`tri.rebalance.exact_square`): the upper side
+        then uses them instead of sectors and centred rows.
     """
     m = Model()
     el = add_electrical(m, pr, neutral_limit is not None)
@@ -156,10 +168,15 @@ def build_target_model(
     for p in range(3):
         ref_u = unit_spectrum(ref_v[p])
         visited = [*([ref_u] if ref_u is not None else []), *learnt.cuts[p]]
-        add_rms_lower_bounds(m, pr, el, p, [r0 + p], reaches[p], visited)
+        add_rms_lower_bounds(m, pr, el, p, [r0 + p], reaches[p], visited, RESOLUTIONS[level])
+        if squares is not None:
+            continue
         if changed_max(pr, budget) <= CENTRED_MAX_CHANGED:
             _centred_rows(m, pr, el, p, r0 + p, budget, learnt, r_min, r_maxes[p])
         _sector_rows(m, pr, el, p, r0 + p, budget, level, learnt, reaches[p], target)
+    if squares is not None:
+        cols = [r0 + p for p in range(3)]
+        add_exact_square_rows(m, el.x, cols, squares, r_min, r_maxes, level, learnt.rms)
     _deviation_rows(m, r0, target)
     if neutral_limit is not None:
         add_neutral_cuts(m, el, neutral_limit, neutral_dirs + learnt.neutral)
