@@ -30,7 +30,7 @@ from dataclasses import replace
 import numpy as np
 
 from tri.native_output import native_stdout_to_devnull
-from tri.rebalance import SuggestOptions, Suggestion, suggest
+from tri.rebalance import Suggestion, SuggestOptions, suggest
 from tri.schedule.model import Circuit, PanelInfo, Schedule
 from tri.schedule.slots import PHASES, slot_phases
 
@@ -108,7 +108,9 @@ def _cell(rows: list[tuple[float, bool, float]], fmt: str) -> str:
 
 def bench_fewest(sizes: list[int], seeds: range, target: float, limit: float) -> None:
     print(f"\nFewest moves to a {target:g} % target (time limit {limit:g} s)")
-    head = f"{'n':>4} | {'two-column: time proven moves':>29} | {'rail board: time proven moves':>29}"
+    head = (
+        f"{'n':>4} | {'two-column: time proven moves':>29} | {'rail board: time proven moves':>29}"
+    )
     print(head)
     print("-" * len(head))
     for n in sizes:
@@ -116,8 +118,10 @@ def bench_fewest(sizes: list[int], seeds: range, target: float, limit: float) ->
         for layout in ("two-column", PHASES):
             rows = []
             for seed in seeds:
-                s, t = run(random_panel(n, seed, layout), SuggestOptions(target_pct=target,
-                                                                        time_limit_s=limit))
+                s, t = run(
+                    random_panel(n, seed, layout),
+                    SuggestOptions(target_pct=target, time_limit_s=limit),
+                )
                 proven = s.status in ("optimal", "infeasible", "already-balanced")
                 rows.append((t, proven, float(s.relocations)))
             cells.append(_cell(rows, ".0f"))

@@ -138,7 +138,9 @@ def enumerate_panel(schedule: Schedule, free: list[int]) -> Enumerated:
     old = [schedule.circuits[i].slot for i in free]
     moved = np.zeros(n_arr, dtype=int)
     codes = np.zeros((n_arr, len(free)), dtype=int)
-    first_phase = np.array([0, *(slot_phases(s, 1)[0] for s in range(1, schedule.panel.spaces + 1))])
+    first_phase = np.array(
+        [0, *(slot_phases(s, 1)[0] for s in range(1, schedule.panel.spaces + 1))]
+    )
     for k, _i in enumerate(free):
         codes[:, k] = first_phase[slots[:, k]]
         if old[k] is not None:

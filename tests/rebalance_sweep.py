@@ -50,8 +50,11 @@ def dense_panel(rng: np.random.Generator, spaces: int, max_free: int = 6) -> Sch
     for cell in range(1, spaces + 1):
         if cell in used:
             continue
-        choices = [k for k in (1, 2, 3) if fits(cell, k, spaces) and not used.intersection(
-            occupied_slots(cell, k))]
+        choices = [
+            k
+            for k in (1, 2, 3)
+            if fits(cell, k, spaces) and not used.intersection(occupied_slots(cell, k))
+        ]
         if spare > 0 and rng.random() < 0.2:
             spare -= 1
             used.add(cell)
@@ -203,7 +206,9 @@ def _fewest_errors(s, enum: Enumerated, strict, loose, t: float, placed: bool) -
     k_best = int(enum.relocations[strict].min()) if np.any(strict) else None
     met = placed and s.after.max_deviation_pct <= t * (1 + EDGE)
     if s.target_met != met:
-        bad.append(f"target_met {s.target_met} but the deviation after is {s.after.max_deviation_pct}")
+        bad.append(
+            f"target_met {s.target_met} but the deviation after is {s.after.max_deviation_pct}"
+        )
     if s.status in ("optimal", "already-balanced"):
         if not met:
             bad.append(f"{s.status} but the target is not met")
@@ -227,12 +232,10 @@ def _fewest_errors(s, enum: Enumerated, strict, loose, t: float, placed: bool) -
 def _balance_errors(s, best: float, any_feasible: bool) -> list[str]:
     bad = []
     top = s.after.max_phase_rms_a
-    if s.status in ("optimal", "already-balanced"):
-        if top > best * (1 + OPTIMAL_GAP):
-            bad.append(f"{s.status} at {top:.6f} A, but {best:.6f} A is possible")
-    elif s.status == "infeasible":
-        if math.isfinite(best):
-            bad.append(f"infeasible, but a plan reaches {best:.6f} A")
+    if s.status in ("optimal", "already-balanced") and top > best * (1 + OPTIMAL_GAP):
+        bad.append(f"{s.status} at {top:.6f} A, but {best:.6f} A is possible")
+    elif s.status == "infeasible" and math.isfinite(best):
+        bad.append(f"infeasible, but a plan reaches {best:.6f} A")
     if s.bound is not None and s.bound > best * (1 + EDGE):
         bad.append(f"bound {s.bound:.6f} A above the optimum {best:.6f} A")
     if s.status != "infeasible" and not any_feasible and s.moves:

@@ -73,8 +73,9 @@ def test_every_claim_is_true_on_dense_panels(chunk: int) -> None:
     false = []
     for seed in range(chunk * CHUNK, (chunk + 1) * CHUNK):
         rng, sched = _panel(seed)
-        false += _false_claims(seed, sched, cases_for(rng, sched), "", time_limit_s=10.0,
-                               floor_gap=0.0)
+        false += _false_claims(
+            seed, sched, cases_for(rng, sched), "", time_limit_s=10.0, floor_gap=0.0
+        )
     assert not false
 
 
@@ -83,8 +84,15 @@ def test_every_claim_of_the_programs_alone_is_true(chunk: int) -> None:
     false = []
     for seed in range(10_000 + chunk * CHUNK, 10_000 + (chunk + 1) * CHUNK):
         rng, sched = _panel(seed)
-        false += _false_claims(seed, sched, cases_for(rng, sched), " (programs)",
-                               time_limit_s=0.5, floor_gap=0.0, list_plans=False)
+        false += _false_claims(
+            seed,
+            sched,
+            cases_for(rng, sched),
+            " (programs)",
+            time_limit_s=0.5,
+            floor_gap=0.0,
+            list_plans=False,
+        )
     assert not false
 
 
@@ -123,14 +131,17 @@ def test_the_checker_catches_false_claims() -> None:
     b = _run(balance, floor_gap=0.0)
     benum = enumerate_panel(sched, free_breakers(sched, "relayout", False))
     assert check_case(balance, b, benum) == []
-    assert check_case(balance, replace(b, status="best-found", bound=b.after.max_phase_rms_a * 1.01),
-                      benum)
+    assert check_case(
+        balance, replace(b, status="best-found", bound=b.after.max_phase_rms_a * 1.01), benum
+    )
 
 
 def _single_relocations(sched):
     """Every schedule one relocation away: a free breaker moved into empty slots."""
     spaces = sched.panel.spaces
-    taken = {s for c in sched.circuits if c.slot is not None for s in occupied_slots(c.slot, c.poles)}
+    taken = {
+        s for c in sched.circuits if c.slot is not None for s in occupied_slots(c.slot, c.poles)
+    }
     for i, c in enumerate(sched.circuits):
         if c.locked or c.slot is None:
             continue
@@ -150,14 +161,18 @@ def test_the_reported_repro_finds_two_relocations() -> None:
     its two decimals).
     """
     sched = load_schedule(DATA / "false-optimal.toml").schedule
-    singles = [analyse_schedule(s).current_unbalance.max_deviation_pct for s in
-               _single_relocations(sched)]
+    singles = [
+        analyse_schedule(s).current_unbalance.max_deviation_pct for s in _single_relocations(sched)
+    ]
     assert singles and min(singles) > 3.0
     case = Case(sched, "fewest-moves", target_pct=3.0)
     s = _run(case)
     assert s.status == "optimal"
     assert s.relocations == 2
-    assert {(m.circuit, m.from_slot, m.to_slot) for m in s.moves} == {("C4", 16, 18), ("C10", 20, 2)}
+    assert {(m.circuit, m.from_slot, m.to_slot) for m in s.moves} == {
+        ("C4", 16, 18),
+        ("C10", 20, 2),
+    }
     assert s.after.max_deviation_pct == pytest.approx(2.87, abs=0.005)
     # the programs alone prove the same
     m = _run(case, list_plans=False, time_limit_s=20.0)

@@ -1,4 +1,4 @@
-"""Rebalancer: fewest breaker relocations to a target, best balance in a budget, new-circuit placement.
+"""Rebalancer: fewest relocations to a target, best balance in a budget, new-circuit placement.
 
 Pure functions and frozen results, no I/O. Layer: uses :mod:`tri.engine` and
 :mod:`tri.schedule`; never imports a user-interface toolkit, and imports

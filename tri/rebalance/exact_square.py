@@ -134,10 +134,12 @@ def add_exact_square_rows(
     pos = np.flatnonzero(np.any(terms.coef > 0, axis=1))
     neg = np.flatnonzero(np.any(terms.coef < 0, axis=1))
     ones = np.ones(pos.size)
-    m.block(np.column_stack([y0 + pos, x + terms.a[pos]]), np.column_stack([ones, -ones]),
-            -np.inf, 0.0)
-    m.block(np.column_stack([y0 + pos, x + terms.b[pos]]), np.column_stack([ones, -ones]),
-            -np.inf, 0.0)
+    m.block(
+        np.column_stack([y0 + pos, x + terms.a[pos]]), np.column_stack([ones, -ones]), -np.inf, 0.0
+    )
+    m.block(
+        np.column_stack([y0 + pos, x + terms.b[pos]]), np.column_stack([ones, -ones]), -np.inf, 0.0
+    )
     m.block(
         np.column_stack([y0 + neg, x + terms.a[neg], x + terms.b[neg]]),
         np.column_stack([np.ones(neg.size), -np.ones(neg.size), -np.ones(neg.size)]),

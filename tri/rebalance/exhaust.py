@@ -99,9 +99,7 @@ class _Quantities:
         cur = pr.current_assignment()
         self.cur = cur
         v0, n0 = spectra(pr, cur)
-        self.others = np.array(
-            [o for o in range(pr.n_options) if o != cur[pr.owner[o]]], dtype=int
-        )
+        self.others = np.array([o for o in range(pr.n_options) if o != cur[pr.owner[o]]], dtype=int)
         self.circ = pr.owner[self.others] if self.others.size else np.zeros(0, dtype=int)
         self.moves = pr.movable[self.circ]  # a change of a placed circuit (a relocation)
         was = cur[self.circ]

@@ -49,6 +49,7 @@ from tri.rebalance.model import Model
 from tri.rebalance.polygon import Reach, polygon_directions, reach_from_support
 from tri.rebalance.problem import Problem
 
+
 @dataclass(frozen=True)
 class Resolution:
     """Spacings of the lower-bound polygons (module notes).
@@ -217,7 +218,9 @@ def add_rms_lower_bounds(
             profiles.append(mag / nrm)
     prof = np.array(profiles)
     m.block(
-        np.column_stack([np.full(len(prof), g), np.tile(a0 + 1 + np.arange(h - 1), (len(prof), 1))]),
+        np.column_stack(
+            [np.full(len(prof), g), np.tile(a0 + 1 + np.arange(h - 1), (len(prof), 1))]
+        ),
         np.column_stack([np.ones(len(prof)), -prof]),
         0.0,
         np.inf,

@@ -32,8 +32,8 @@ from dataclasses import dataclass, field, replace
 import numpy as np
 
 from tri.rebalance.balance import solve_balance
-from tri.rebalance.exhaust import enumeration_fits
 from tri.rebalance.control import CancelHook, Cancelled, Control, ProgressCallback
+from tri.rebalance.exhaust import enumeration_fits
 from tri.rebalance.heuristic import Goal, LocalSearch, heuristic_plan
 from tri.rebalance.options import SuggestOptions, objective_text
 from tri.rebalance.plans import TOL, Evaluator, Plan
@@ -124,8 +124,10 @@ def _fewest_moves(run: _Run) -> tuple[Plan | None, Status, float | None]:
     run.calls += out.solver_calls
     run.notes.extend(out.notes)
     if out.plan is not None:
-        return out.plan, ("optimal" if out.proven else "best-found"), (
-            None if out.proven else out.bound
+        return (
+            out.plan,
+            ("optimal" if out.proven else "best-found"),
+            (None if out.proven else out.bound),
         )
     shown = fallback if fallback is not None else now
     if shown is None:
@@ -169,9 +171,9 @@ def _best_balance(run: _Run) -> tuple[Plan | None, Status, float | None]:
     if opts.mode == "relayout":
         best = _fewer_relocations(run, goal, ev, best)
     status: Status = "optimal" if out.proven else "best-found"
-    if status == "optimal" and best.relocations == 0 and not run.has_new and pr.n_free:
-        if opts.mode == "balance":
-            status = "already-balanced"
+    unchanged = best.relocations == 0 and not run.has_new and pr.n_free > 0
+    if status == "optimal" and unchanged and opts.mode == "balance":
+        status = "already-balanced"
     return best, status, None if out.proven else out.bound
 
 

@@ -274,4 +274,3 @@ def solve_target(
         return search.out
     search.offer(incumbent)
     return search.run()
-

@@ -262,7 +262,9 @@ def _sector_rows(
     q_part = [-c_q] if q_col else []
     if sec.count == 1:
         c0 = sec.centres[0]
-        m.row([r_col, *fund, *q_col], [1.0, -coef * c0.real, -coef * c0.imag, *q_part], -np.inf, icpt)
+        m.row(
+            [r_col, *fund, *q_col], [1.0, -coef * c0.real, -coef * c0.imag, *q_part], -np.inf, icpt
+        )
         return
     w0 = m.binary(sec.count)
     for j in range(sec.count):
