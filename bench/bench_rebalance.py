@@ -178,6 +178,7 @@ def main() -> None:
         seeds, few, lay, limit = range(2), [42, 84], [42, 84], 2.0
     else:
         seeds, few, lay, limit = range(7), [42, 84, 168, 500], [42, 84, 168], 10.0
+    run(random_panel(12, 99), SuggestOptions(target_pct=10.0))  # warm up: scipy's import
     print("tri rebalancer benchmark: medians over", len(seeds), "panels per size (seeds 0..)")
     print("'proven' = optimal, infeasible or already balanced; 'ok' = proven or within the")
     print("stopping gap of the proven bound; time = wall clock per panel (median).")
