@@ -114,8 +114,16 @@ class LocalSearch:
     insertion). Capacity counters always hold for the present circuits.
     """
 
-    def __init__(self, problem: Problem, goal: Goal, control: Control, assign: np.ndarray):
+    def __init__(
+        self,
+        problem: Problem,
+        goal: Goal,
+        control: Control,
+        assign: np.ndarray,
+        stop_gap: float = 1e-12,
+    ):
         self.pr = problem
+        self.stop_gap = stop_gap
         self.goal = goal
         self.control = control
         self.assign = np.array(assign, dtype=int, copy=True)
@@ -302,11 +310,11 @@ class LocalSearch:
 
     # -- search loops ----------------------------------------------------------------
     def done(self) -> bool:
-        """Nothing left to gain: target met, or the largest phase at the floor."""
+        """Nothing left to gain: target met, or the largest phase within ``stop_gap`` of ``F``."""
         p, _ = self.score()
         if self.goal.target is not None:
             return p <= 0.0
-        return p <= self.pr.floor_a * (1 + 1e-12)
+        return p <= self.pr.floor_a * (1 + self.stop_gap)
 
     def descend(self, max_steps: int | None = None, swaps: bool = True) -> int:
         """Steepest descent with single changes, then swaps; returns steps taken."""
@@ -418,6 +426,7 @@ def heuristic_plan(
     swaps: bool = True,
     kicks: bool = True,
     seed: int = 0,
+    stop_gap: float = 1e-12,
 ) -> np.ndarray | None:
     """A good plan at once: insertion, descent, pruning (module notes).
 
@@ -437,6 +446,9 @@ def heuristic_plan(
         ``seed`` so results repeat).
     seed : int
         Seed of the kicks.
+    stop_gap : float
+        Balance: stop once the largest phase is within this fraction of the
+        floor ``F`` (a proven bound, so nothing more is needed) [-].
 
     Returns
     -------
@@ -446,7 +458,7 @@ def heuristic_plan(
     start = np.where(problem.current >= 0, problem.current, -1)
     plans = []
     rng = np.random.default_rng(seed)
-    ls = LocalSearch(problem, goal, control, start)
+    ls = LocalSearch(problem, goal, control, start, stop_gap)
     if ls.insert_missing():
         ls.descend(swaps=swaps)
         if kicks:
@@ -454,7 +466,7 @@ def heuristic_plan(
         ls.prune()
         plans.append(ls)
     if from_scratch and problem.n_free:
-        fresh = LocalSearch(problem, goal, control, np.full(problem.n_free, -1))
+        fresh = LocalSearch(problem, goal, control, np.full(problem.n_free, -1), stop_gap)
         if fresh.insert_missing():
             fresh.descend(swaps=swaps)
             if kicks:

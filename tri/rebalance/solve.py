@@ -78,7 +78,12 @@ class _Run:
 
 
 def _heuristic(
-    run: _Run, goal: Goal, ev: Evaluator, from_scratch: bool = False, kicks: bool = True
+    run: _Run,
+    goal: Goal,
+    ev: Evaluator,
+    from_scratch: bool = False,
+    kicks: bool = True,
+    stop_gap: float = 1e-12,
 ) -> Plan | None:
     """The heuristic's plan, realised in slots and within the budget (fewer changes if needed)."""
     pr, control = run.pr, run.control
@@ -89,7 +94,12 @@ def _heuristic(
         if control.stop():
             break
         a = heuristic_plan(
-            pr, replace(goal, max_moves=k), control, from_scratch=from_scratch, kicks=kicks
+            pr,
+            replace(goal, max_moves=k),
+            control,
+            from_scratch=from_scratch,
+            kicks=kicks,
+            stop_gap=stop_gap,
         )
         plan = None if a is None else ev.plan(a)
         if ev.good(plan):
@@ -143,7 +153,8 @@ def _best_balance(run: _Run) -> tuple[Plan | None, Status, float | None]:
     budget = pr.n_movable if goal.max_moves is None else goal.max_moves
     # when every plan will be listed, the descents suffice as a start
     kicks = not (opts.list_plans and enumeration_fits(pr, budget))
-    plan = _heuristic(run, goal, ev, from_scratch=opts.mode == "relayout", kicks=kicks)
+    relayout = opts.mode == "relayout"
+    plan = _heuristic(run, goal, ev, relayout, kicks, stop_gap=0.5 * opts.floor_gap)
     now = _current_plan(run, ev)
     if plan is None and ev.good(now):
         plan = now
