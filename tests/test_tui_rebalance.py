@@ -144,7 +144,7 @@ async def test_an_unreachable_target_says_so_as_the_cli_does(small: Path) -> Non
         s = screen.plan
         assert s is not None and s.status == "infeasible"
         text = " ".join(state(screen).split())
-        assert text.startswith("target out of reach (proven): no plan meets it")
+        assert text.startswith("target out of reach (proven): no plan meets the target")
 
 
 async def test_a_rating_still_exceeded_after_the_moves_is_said(tmp_path: Path) -> None:

@@ -155,7 +155,9 @@ class _BalanceSearch:
         if not enumeration_fits(self.pr, self.budget):
             return False
         self.control.report("checking every plan")
-        ranked = best_plans_within(self.pr, self.goal.neutral_max_a, self.budget)
+        ranked = best_plans_within(
+            self.pr, self.goal.neutral_max_a, self.budget, stop=self.control.stop
+        )
         if ranked is None:
             return False
         sure = True

@@ -28,6 +28,7 @@ is the optimum.
 
 from __future__ import annotations
 
+from collections.abc import Callable
 from dataclasses import dataclass
 
 import numpy as np
@@ -174,7 +175,13 @@ def _plan_of(q: _Quantities, row: np.ndarray) -> np.ndarray:
     return a
 
 
-def plans_within(pr: Problem, target: float, neutral_max_a: float | None, k: int) -> Counted | None:
+def plans_within(
+    pr: Problem,
+    target: float,
+    neutral_max_a: float | None,
+    k: int,
+    stop: Callable[[], bool] | None = None,
+) -> Counted | None:
     """Every plan with at most ``k`` option changes that meets the goal (module notes).
 
     Parameters
@@ -186,6 +193,8 @@ def plans_within(pr: Problem, target: float, neutral_max_a: float | None, k: int
         Largest neutral RMS current [A].
     k : int
         Largest number of placed circuits on another option [-].
+    stop : callable, optional
+        Checked between chunks; when it returns True the list ends, not complete.
 
     Returns
     -------
@@ -198,6 +207,8 @@ def plans_within(pr: Problem, target: float, neutral_max_a: float | None, k: int
     found: list[np.ndarray] = []
     sizes: list[int] = []
     for vals, use, rows in _chunks(q, _depth(pr, k)):
+        if stop is not None and stop():
+            return Counted(found, sizes, complete=False)
         r = np.sqrt(np.maximum(vals[:, :3], 0.0))
         mean = r.mean(axis=1)
         good = np.max(np.abs(r - mean[:, None]), axis=1) <= target * mean * (1 + SLACK) + 1e-12
@@ -240,14 +251,18 @@ class Ranked:
 
 
 def best_plans_within(
-    pr: Problem, neutral_max_a: float | None, k: int, limit: int = FOUND_LIMIT
+    pr: Problem,
+    neutral_max_a: float | None,
+    k: int,
+    limit: int = FOUND_LIMIT,
+    stop: Callable[[], bool] | None = None,
 ) -> Ranked | None:
     """The ``limit`` plans with at most ``k`` option changes of smallest largest-phase RMS.
 
     Plans over the neutral limit (within round-off) or the capacity counts are
     left out; with new circuits, plans with more than ``k`` changes of placed
     circuits may be listed too (they fail the budget when checked). None when
-    :func:`enumeration_fits` does not hold.
+    :func:`enumeration_fits` does not hold or ``stop()`` became true.
     """
     if not enumeration_fits(pr, k):
         return None
@@ -256,6 +271,8 @@ def best_plans_within(
     best_rows: list[np.ndarray] = []
     passing = 0
     for vals, use, rows in _chunks(q, _depth(pr, k)):
+        if stop is not None and stop():
+            return None
         top = np.sqrt(np.maximum(vals[:, :3], 0.0)).max(axis=1)
         good = np.all(use <= q.cap, axis=1)
         if vals.shape[1] > 3:

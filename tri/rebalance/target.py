@@ -127,7 +127,9 @@ class _TargetSearch:
         self.counted_out.add(budget)
         what = f"at most {budget} phase change{'s' if budget != 1 else ''}"
         self.control.report(f"checking every plan with {what}")
-        counted = plans_within(self.pr, self.goal.target, self.goal.neutral_max_a, budget)
+        counted = plans_within(
+            self.pr, self.goal.target, self.goal.neutral_max_a, budget, self.control.stop
+        )
         if counted is None:
             return None
         improved, settled = False, counted.complete

@@ -164,10 +164,21 @@ def work_order(s: Suggestion, before: Schedule) -> tuple[WorkLine, ...]:
 def _scope(s: Suggestion) -> str:
     """Which plans a balance claim is about."""
     if s.mode == "balance":
-        return f"with at most {plural(s.max_moves or 0, 'breaker')} relocated"
-    if s.mode == "place-new":
-        return "placing the new circuits in free slots"
-    return "of any arrangement"
+        scope = f"with at most {plural(s.max_moves or 0, 'breaker')} relocated"
+    elif s.mode == "place-new":
+        scope = "placing the new circuits in free slots"
+    else:
+        scope = "of any arrangement"
+    if s.neutral_max_a is not None:
+        scope += f" and the neutral at or below {s.neutral_max_a:g} A"
+    return scope
+
+
+def _goal(s: Suggestion) -> str:
+    """What a fewest-moves plan must meet."""
+    if s.neutral_max_a is None:
+        return "the target"
+    return f"the target and the neutral limit of {s.neutral_max_a:g} A"
 
 
 def status_words(s: Suggestion) -> str:
@@ -202,24 +213,26 @@ def status_words(s: Suggestion) -> str:
 
 def _fewest_words(s: Suggestion) -> str:
     budget = f" with at most {plural(s.max_moves, 'relocation')}" if s.max_moves is not None else ""
+    goal = _goal(s)
     if s.status == "already-balanced":
-        return "already balanced: the panel meets the target as it is; no move needed"
+        return f"already balanced: the panel meets {goal} as it is; no move needed"
     if s.status == "optimal":
-        return "optimal: proven that no plan with fewer breakers relocated meets the target"
+        return f"optimal: proven that no plan with fewer breakers relocated meets {goal}"
     if s.status == "infeasible":
         return (
-            f"target out of reach (proven): no plan{budget} meets it; shown: the best balance found"
+            f"target out of reach (proven): no plan{budget} meets {goal}; shown: the best "
+            "balance found"
         )
     bound = round(s.bound or 0)
     proven = (
-        f"proven: no plan with fewer than {plural(bound, 'relocation')} meets the target"
+        f"proven: no plan with fewer than {plural(bound, 'relocation')} meets {goal}"
         if bound > 0
         else "no lower bound on the relocations was proven"
     )
     if s.target_met:
         return f"best found in the time limit, not proven optimal; {proven}"
     return (
-        f"no plan{budget} meeting the target was found in the time limit (not proven "
+        f"no plan{budget} meeting {goal} was found in the time limit (not proven "
         f"impossible); {proven}; shown: the best balance found"
     )
 
