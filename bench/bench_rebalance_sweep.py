@@ -24,11 +24,11 @@ import numpy as np
 
 sys.path.insert(0, str(Path(__file__).resolve().parents[1] / "tests"))
 
-from rebalance_reference import enumerate_panel, free_breakers  # noqa: E402
-from rebalance_sweep import cases_for, check_case, dense_panel  # noqa: E402
+from rebalance_reference import enumerate_panel, free_breakers
+from rebalance_sweep import cases_for, check_case, dense_panel
 
-from tri.native_output import native_stdout_to_devnull  # noqa: E402
-from tri.rebalance import suggest  # noqa: E402
+from tri.native_output import native_stdout_to_devnull
+from tri.rebalance import suggest
 
 
 def sweep(panels: int, first_seed: int, **extra) -> None:

@@ -30,7 +30,8 @@ from tri.rebalance.exact_square import add_exact_square_rows, square_terms
 from tri.rebalance.exhaust import plans_count, plans_within
 from tri.rebalance.lower_bounds import RESOLUTIONS, add_rms_lower_bounds, phase_reach
 from tri.rebalance.model import Model
-from tri.rebalance.problem import PAIRS, build_problem, spectra
+from tri.rebalance.plan_currents import spectra
+from tri.rebalance.problem import PAIRS, build_problem
 from tri.rebalance.square_rows import TANGENT_ERROR, square_column, tangent_points
 from tri.rebalance.squares import changed_max, square_bound
 from tri.rebalance.target_model import Learnt, build_target_model

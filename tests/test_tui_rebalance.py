@@ -20,7 +20,7 @@ from tui_support import settle
 
 from tri.cli.common import SAFETY_CAUTION
 from tri.rebalance import Figures, Move, Suggestion, SuggestOptions, WorkStep, suggest
-from tri.report.suggest import count_words, status_words, work_order
+from tri.report.work_order import count_words, status_words, work_order
 from tri.schedule.load import load_schedule
 from tri.schedule.save import save_schedule
 from tri.schedule.to_engine import analyse_schedule

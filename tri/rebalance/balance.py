@@ -32,7 +32,7 @@ import numpy as np
 from tri.rebalance.control import Control
 from tri.rebalance.electrical import add_electrical, add_neutral_cuts, decode_options
 from tri.rebalance.exhaust import best_plans_within, enumeration_fits
-from tri.rebalance.heuristic import Goal
+from tri.rebalance.goal import Goal
 from tri.rebalance.lower_bounds import (
     RESOLUTIONS,
     add_rms_lower_bounds,
@@ -40,8 +40,9 @@ from tri.rebalance.lower_bounds import (
     unit_spectrum,
 )
 from tri.rebalance.model import Model
+from tri.rebalance.plan_currents import spectra
 from tri.rebalance.plans import Evaluator, Plan
-from tri.rebalance.problem import Problem, spectra
+from tri.rebalance.problem import Problem
 from tri.rebalance.slot_model import add_slots
 from tri.rebalance.target import Outcome, neutral_setup
 

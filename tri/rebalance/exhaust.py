@@ -33,7 +33,8 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from tri.rebalance.problem import Problem, spectra
+from tri.rebalance.plan_currents import spectra
+from tri.rebalance.problem import Problem
 from tri.rebalance.squares import gram
 
 #: Relative slack on the target and neutral checks: round-off only [-].
@@ -125,11 +126,17 @@ class _Quantities:
 
 
 def _chunks(q: _Quantities, k: int):
-    """Every plan with at most ``k`` changes, in chunks ``(vals, use, rows)`` by number of changes.
+    """Every plan with at most ``k`` changes, in chunks ``(vals, use, plans)`` by number of changes.
 
     ``vals`` (n, Q): the squared norms of the quantities; ``use`` (n, 7): the
-    capacity counts; ``rows(mask)``: the change indices of the selected plans.
+    capacity counts; ``plans(mask)``: the options of the selected plans.
     """
+    for vals, use, rows in _change_chunks(q, k):
+        yield vals, use, lambda sel, rows=rows: np.array([_plan_of(q, r) for r in rows(sel)])
+
+
+def _change_chunks(q: _Quantities, k: int):
+    """As :func:`_chunks`, with ``rows(mask)`` the change indices of the selected plans."""
     yield q.base2[None, :], q.use0[None, :], lambda sel: np.zeros((int(np.sum(sel)), 0), int)
     n = q.others.size
     if k < 1 or n == 0:
@@ -169,6 +176,73 @@ def _chunks(q: _Quantities, k: int):
             yield vals, use, rows
 
 
+#: Plans scored at once by the product walker [-].
+_BLOCK = 20_000
+
+
+def _product_chunks(pr: Problem, with_neutral: bool, k: int):
+    """Every plan (every option of every free circuit) with at most ``k`` relocations' worth of
+    changes of placed circuits, in blocks, as :func:`_chunks` yields them.
+
+    The plans are counted in mixed radix: the last circuits vary inside a
+    block (their sums computed once), the first ones from block to block.
+    """
+    counts = np.diff(pr.starts)
+    cur = pr.current_assignment()
+    parts = [pr.contrib[:, p, :] for p in range(3)]
+    bases = [pr.base[p] for p in range(3)]
+    if with_neutral:
+        parts.append(pr.ncontrib)
+        bases.append(pr.nbase)
+    use_of = np.concatenate([pr.use_cells, pr.use_window], axis=1)
+    cap_split = int(np.searchsorted(np.cumprod(counts[::-1]), _BLOCK, side="right"))
+    inner = list(range(pr.n_free - cap_split, pr.n_free))
+    outer = list(range(pr.n_free - cap_split))
+    inner_opts = _grid(pr, inner)  # (B, len(inner)) options
+    sums = [np.zeros((inner_opts.shape[0], q.shape[1]), complex) for q in parts]
+    for j in range(len(inner)):
+        for qk, q in enumerate(parts):
+            sums[qk] += q[inner_opts[:, j]]
+    inner_use = use_of[inner_opts].sum(axis=1) if inner else np.zeros((1, use_of.shape[1]))
+    inner_moves = np.sum(pr.movable[inner] & (inner_opts != cur[inner]), axis=1)
+    for combo in _grid(pr, outer):
+        moved = int(np.sum(pr.movable[outer] & (combo != cur[outer])))
+        if moved > k:
+            continue
+        ok = inner_moves + moved <= k
+        vals = np.stack(
+            [
+                np.sum(np.abs(b + q[combo].sum(axis=0) + sm) ** 2, axis=-1)
+                for b, q, sm in zip(bases, parts, sums, strict=True)
+            ],
+            axis=-1,
+        )
+        use = inner_use + use_of[combo].sum(axis=0)
+        use = np.where(ok[:, None], use, np.iinfo(np.int32).max)
+
+        def plans(sel, combo=combo):
+            rows = inner_opts[sel]
+            return np.column_stack([np.tile(combo, (rows.shape[0], 1)), rows]).astype(int)
+
+        yield vals, use, plans
+
+
+def _grid(pr: Problem, circuits: list[int]) -> np.ndarray:
+    """Every combination of options of ``circuits`` (int ndarray, shape (n, len)), in order."""
+    if not circuits:
+        return np.zeros((1, 0), dtype=int)
+    axes = [np.arange(pr.starts[i], pr.starts[i + 1]) for i in circuits]
+    mesh = np.meshgrid(*axes, indexing="ij")
+    return np.stack([g.ravel() for g in mesh], axis=-1)
+
+
+def _walk(pr: Problem, q: _Quantities, with_neutral: bool, k: int):
+    """The plan chunks: the product of every option when it is small, else by changes."""
+    if int(np.prod(np.diff(pr.starts).astype(float))) <= PLAN_LIMIT:
+        return _product_chunks(pr, with_neutral, k)
+    return _chunks(q, _depth(pr, k))
+
+
 def _plan_of(q: _Quantities, row: np.ndarray) -> np.ndarray:
     a = q.cur.copy()
     a[q.circ[row]] = q.others[row]
@@ -203,10 +277,11 @@ def plans_within(
     """
     if not enumeration_fits(pr, k):
         return None
-    q = _Quantities(pr, neutral_max_a is not None and pr.has_neutral)
+    with_neutral = neutral_max_a is not None and pr.has_neutral
+    q = _Quantities(pr, with_neutral)
     found: list[np.ndarray] = []
     sizes: list[int] = []
-    for vals, use, rows in _chunks(q, _depth(pr, k)):
+    for vals, use, plans in _walk(pr, q, with_neutral, k):
         if stop is not None and stop():
             return Counted(found, sizes, complete=False)
         r = np.sqrt(np.maximum(vals[:, :3], 0.0))
@@ -218,10 +293,10 @@ def plans_within(
         good &= np.all(use <= q.cap, axis=1)
         if not np.any(good):
             continue
-        for row in rows(good):
-            moved = int(np.sum(q.moves[row]))
+        for a in plans(good):
+            moved = int(np.sum(pr.movable & (a != pr.current)))
             if moved <= k:
-                found.append(_plan_of(q, row))
+                found.append(a)
                 sizes.append(moved)
         if len(found) > FOUND_LIMIT:
             return Counted(found[:FOUND_LIMIT], sizes[:FOUND_LIMIT], complete=False)
@@ -266,11 +341,12 @@ def best_plans_within(
     """
     if not enumeration_fits(pr, k):
         return None
-    q = _Quantities(pr, neutral_max_a is not None and pr.has_neutral)
+    with_neutral = neutral_max_a is not None and pr.has_neutral
+    q = _Quantities(pr, with_neutral)
     best_v = np.zeros(0)
     best_rows: list[np.ndarray] = []
     passing = 0
-    for vals, use, rows in _chunks(q, _depth(pr, k)):
+    for vals, use, plans in _walk(pr, q, with_neutral, k):
         if stop is not None and stop():
             return None
         top = np.sqrt(np.maximum(vals[:, :3], 0.0)).max(axis=1)
@@ -284,13 +360,13 @@ def best_plans_within(
         if not np.any(good):
             continue
         best_v = np.concatenate([best_v, top[good]])
-        best_rows.extend(rows(good))
+        best_rows.extend(plans(good))
         if best_v.size > 2 * limit:
             keep = np.argsort(best_v, kind="stable")[:limit]
             best_v, best_rows = best_v[keep], [best_rows[i] for i in keep]
     order = np.argsort(best_v, kind="stable")[:limit]
     return Ranked(
-        [_plan_of(q, best_rows[i]) for i in order],
+        [np.asarray(best_rows[i], dtype=int) for i in order],
         [float(best_v[i]) for i in order],
         complete=passing <= limit,
     )

@@ -16,8 +16,9 @@ from dataclasses import dataclass
 import numpy as np
 
 from tri.rebalance.geometry import Window
-from tri.rebalance.heuristic import Goal
-from tri.rebalance.problem import Assessment, Problem, assess
+from tri.rebalance.goal import Goal
+from tri.rebalance.plan_currents import Assessment, assess
+from tri.rebalance.problem import Problem
 from tri.rebalance.realise import Arrangement, arrange, realise
 
 #: Relative tolerance of the exact checks (round-off only) [-].

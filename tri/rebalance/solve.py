@@ -34,7 +34,8 @@ import numpy as np
 from tri.rebalance.balance import solve_balance
 from tri.rebalance.control import CancelHook, Cancelled, Control, ProgressCallback
 from tri.rebalance.exhaust import enumeration_fits
-from tri.rebalance.heuristic import Goal, LocalSearch, heuristic_plan
+from tri.rebalance.goal import Goal
+from tri.rebalance.heuristic import LocalSearch, heuristic_plan
 from tri.rebalance.options import SuggestOptions, objective_text
 from tri.rebalance.plans import TOL, Evaluator, Plan
 from tri.rebalance.problem import Problem, build_problem

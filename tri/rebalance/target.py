@@ -32,11 +32,13 @@ from tri.rebalance.control import Control
 from tri.rebalance.electrical import decode_options
 from tri.rebalance.exact_square import square_terms
 from tri.rebalance.exhaust import enumeration_fits, plans_within
-from tri.rebalance.heuristic import Goal, LocalSearch
+from tri.rebalance.goal import Goal
+from tri.rebalance.heuristic import LocalSearch
 from tri.rebalance.model import Solution
+from tri.rebalance.plan_currents import triplen_neutral_a
 from tri.rebalance.plans import Evaluator, Plan
 from tri.rebalance.polygon import polygon_directions
-from tri.rebalance.problem import Problem, triplen_neutral_a
+from tri.rebalance.problem import Problem
 from tri.rebalance.target_model import SECTOR_WIDTHS_DEG, Learnt, build_target_model
 
 

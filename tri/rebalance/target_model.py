@@ -48,8 +48,9 @@ from tri.rebalance.lower_bounds import (
     unit_spectrum,
 )
 from tri.rebalance.model import Model
+from tri.rebalance.plan_currents import spectra
 from tri.rebalance.polygon import sectors
-from tri.rebalance.problem import Problem, spectra
+from tri.rebalance.problem import Problem
 from tri.rebalance.slot_model import SlotColumns, add_slots
 from tri.rebalance.square_rows import square_column, square_max, tangent_points
 from tri.rebalance.squares import changed_max, square_bound

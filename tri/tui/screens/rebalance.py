@@ -34,7 +34,7 @@ from tri.rebalance import (
     apply_moves,
     suggest,
 )
-from tri.report.suggest import (
+from tri.report.work_order import (
     WorkLine,
     count_words,
     fixed,
