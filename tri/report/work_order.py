@@ -225,6 +225,27 @@ def floor_words(s: Suggestion) -> str:
     )
 
 
+def floor_brief(s: Suggestion) -> str:
+    """:func:`floor_words` in fewer words, for a small screen."""
+    top = s.after.max_phase_rms_a
+    gap = 100.0 * (top - s.floor_a) / s.floor_a if s.floor_a > 0 else 0.0
+    return (
+        f"Floor {fixed(s.floor_a, 1)} A (no arrangement goes below it); largest phase after: "
+        f"{fixed(top, 1)} A, {fixed(gap, 2)} % above."
+    )
+
+
+def limits_brief(s: Suggestion) -> str | None:
+    """:func:`limits_words` in fewer words, for a small screen (the findings counted)."""
+    n = len(s.after.limits)
+    if not n:
+        return None
+    return (
+        f"Still over a rating after the moves: {plural(n, 'finding')} (balancing alone does "
+        "not fix it; see the findings, f, or tri report)."
+    )
+
+
 def limits_words(s: Suggestion) -> str | None:
     """Ratings still exceeded after the moves, or None."""
     if not s.after.limits:

@@ -38,7 +38,9 @@ from tri.report.work_order import (
     WorkLine,
     count_words,
     fixed,
+    floor_brief,
     floor_words,
+    limits_brief,
     limits_words,
     status_words,
     work_order,
@@ -58,6 +60,8 @@ MODES = (
 )
 #: Search budget of the screen [s] (the command line's default is longer).
 TIME_LIMIT_S = 3.0
+#: Screen height from which the floor and the ratings are given in full sentences [rows].
+ROOMY_HEIGHT = 32
 
 REBALANCE_HELP = """\
 Four modes (← → on the mode field): the fewest breakers relocated that bring
@@ -113,6 +117,10 @@ def apply_chosen(
 
 class RebalanceScreen(Screen[None]):
     """Mode fields, a progress line, the status, the work order, before/after, the caution."""
+
+    DEFAULT_CSS = """
+    RebalanceScreen #rb-moves-table { min-height: 5; }
+    """
 
     BINDINGS: ClassVar[list[BindingType]] = [
         Binding("ctrl+r,f5", "run", "Run", id="rebalance.run"),
@@ -270,8 +278,9 @@ class RebalanceScreen(Screen[None]):
             f"\ndeviation {fixed(b.max_deviation_pct, 1)} → {fixed(a.max_deviation_pct, 1)} %"
             f"   I2/I1 {fixed(b.negative_sequence_pct, 1)} → {fixed(a.negative_sequence_pct, 1)} %"
         )
-        t.append("\n" + floor_words(s))
-        limits = limits_words(s)
+        roomy = self.app.size.height >= ROOMY_HEIGHT
+        t.append("\n" + (floor_words(s) if roomy else floor_brief(s)))
+        limits = limits_words(s) if roomy else limits_brief(s)
         if limits:
             t.append("\n" + limits, style="bold")
         self.query_one("#rb-figures", Static).update(t)
