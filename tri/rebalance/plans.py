@@ -15,11 +15,12 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from tri.rebalance.control import Control
 from tri.rebalance.geometry import Window
 from tri.rebalance.goal import Goal
 from tri.rebalance.plan_currents import Assessment, assess
 from tri.rebalance.problem import Problem
-from tri.rebalance.realise import Arrangement, arrange, realise
+from tri.rebalance.realise import REALISE_TIME_S, Arrangement, arrange, realise
 
 #: Relative tolerance of the exact checks (round-off only) [-].
 TOL = 1e-9
@@ -57,9 +58,10 @@ class Plan:
 class Evaluator:
     """Plans from options or solutions, and the exact checks (module notes)."""
 
-    def __init__(self, pr: Problem, goal: Goal) -> None:
+    def __init__(self, pr: Problem, goal: Goal, control: Control | None = None) -> None:
         self.pr = pr
         self.goal = goal
+        self.control = control
         self._cache: dict[bytes, Plan | None] = {}
         self._proven: dict[bytes, bool] = {}
 
@@ -68,7 +70,8 @@ class Evaluator:
         a = np.asarray(assign, dtype=int)
         key = a.tobytes()
         if key not in self._cache:
-            arr, proven = realise(self.pr, a)
+            left = self.control.remaining() if self.control is not None else REALISE_TIME_S
+            arr, proven = realise(self.pr, a, left)
             self._cache[key] = None if arr is None else Plan(a.copy(), arr, assess(self.pr, a))
             self._proven[key] = proven
         return self._cache[key]

@@ -188,7 +188,9 @@ def _quick_fill(pr: Problem, assign: np.ndarray) -> Arrangement | None:
     return arrange(pr, assign, stays, chosen)
 
 
-def realise(pr: Problem, assign: np.ndarray) -> tuple[Arrangement | None, bool]:
+def realise(
+    pr: Problem, assign: np.ndarray, time_limit: float = REALISE_TIME_S
+) -> tuple[Arrangement | None, bool]:
     """An arrangement of the options ``assign`` with the fewest relocations (module notes).
 
     Parameters
@@ -196,6 +198,8 @@ def realise(pr: Problem, assign: np.ndarray) -> tuple[Arrangement | None, bool]:
     pr : Problem
     assign : int ndarray, shape (F,)
         Option of each free circuit.
+    time_limit : float
+        Budget of the realisation program [s].
 
     Returns
     -------
@@ -219,7 +223,7 @@ def realise(pr: Problem, assign: np.ndarray) -> tuple[Arrangement | None, bool]:
     m.fix(np.arange(el.x, el.x + pr.n_options), x)
     cost = np.zeros(m.n)
     cost[sc.stay] -= 1.0
-    sol = m.solve(cost, REALISE_TIME_S, gap=0.0)
+    sol = m.solve(cost, min(REALISE_TIME_S, max(0.05, time_limit)), gap=0.0)
     if sol.x is None:
         return None, sol.status == "infeasible"
     stays = np.zeros(pr.n_free, dtype=bool)

@@ -117,7 +117,7 @@ def _current_plan(run: _Run, ev: Evaluator) -> Plan | None:
 
 def _fewest_moves(run: _Run) -> tuple[Plan | None, Status, float | None]:
     pr, goal = run.pr, run.goal
-    ev = Evaluator(pr, goal)
+    ev = Evaluator(pr, goal, run.control)
     now = _current_plan(run, ev)
     if now is not None and ev.good(now):
         return now, "already-balanced", None
@@ -125,7 +125,7 @@ def _fewest_moves(run: _Run) -> tuple[Plan | None, Status, float | None]:
     # descents only: the proof below improves the plan where it can
     plan = _heuristic(run, goal, ev, kicks=False)
     balance_goal = replace(goal, target=None)
-    fallback = _heuristic(run, balance_goal, Evaluator(pr, balance_goal), kicks=False)
+    fallback = _heuristic(run, balance_goal, Evaluator(pr, balance_goal, run.control), kicks=False)
     if ev.good(fallback) and (plan is None or fallback.relocations < plan.relocations):
         plan = fallback
     if run.opts.use_solver and pr.n_free:
@@ -149,7 +149,7 @@ def _fewest_moves(run: _Run) -> tuple[Plan | None, Status, float | None]:
 def _best_balance(run: _Run) -> tuple[Plan | None, Status, float | None]:
     pr, opts, control = run.pr, run.opts, run.control
     goal = replace(run.goal, target=None)
-    ev = Evaluator(pr, goal)
+    ev = Evaluator(pr, goal, run.control)
     control.report("greedy start and local search")
     budget = pr.n_movable if goal.max_moves is None else goal.max_moves
     # when every plan will be listed, the descents suffice as a start
