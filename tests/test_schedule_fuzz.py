@@ -9,7 +9,10 @@ from hypothesis import HealthCheck, example, given, settings
 from hypothesis import strategies as st
 
 from tri.schedule.errors import ScheduleError
-from tri.schedule.load import CIRCUIT_KEYS, PANEL_KEYS, SUPPLY_KEYS, parse_schedule
+from tri.schedule.load import parse_schedule
+from tri.schedule.read_circuit import CIRCUIT_KEYS
+from tri.schedule.read_panel import PANEL_KEYS
+from tri.schedule.read_supply import SUPPLY_KEYS
 
 FAST = settings(max_examples=300, deadline=None, suppress_health_check=[HealthCheck.too_slow])
 

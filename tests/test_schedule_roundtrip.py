@@ -13,6 +13,7 @@ from tri.schedule.load import load_schedule, parse_schedule
 from tri.schedule.model import Circuit, PanelInfo, Readings, Schedule, Supply, UserProfile
 from tri.schedule.save import save_schedule, schedule_text, write_atomic
 from tri.schedule.slots import PHASES, TWO_COLUMN, slot_phases
+from tri.schedule.text import plain_text_problem
 
 DEMOS = sorted((Path(__file__).parents[1] / "panels_demo").glob("*.toml"))
 
@@ -77,8 +78,15 @@ def test_reordered_circuits_round_trip() -> None:
 
 _names = st.text(
     alphabet=st.characters(codec="utf-8", exclude_categories=("Cs", "Cc")), min_size=1, max_size=20
-).filter(lambda t: t.strip() == t and t != "")
-_finite = st.floats(min_value=0, max_value=1e6, allow_nan=False, allow_infinity=False)
+).filter(lambda t: t.strip() == t and t != "" and plain_text_problem(t) is None)
+
+
+def _sized(lo: float, hi: float) -> st.SearchStrategy[float]:
+    """0, or a value the loader's bounds accept (nonzero values are at least 1e-6)."""
+    return st.just(0.0) | st.floats(min_value=lo, max_value=hi)
+
+
+_finite = _sized(1e-3, 1e4)
 _pf = st.floats(min_value=0.05, max_value=1.0)
 
 
@@ -133,15 +141,15 @@ def schedules(draw: st.DrawFn) -> Schedule:
             transformer_kva=st.floats(min_value=1, max_value=5000),
             transformer_z_pct=st.floats(min_value=0.5, max_value=25),
             transformer_x_r=st.floats(min_value=0.1, max_value=100),
-            feeder_length_m=st.floats(min_value=0, max_value=1000),
+            feeder_length_m=_sized(1e-3, 1000),
         )
     )
     readings = draw(
         st.none()
         | st.builds(
             Readings,
-            phase_amps=st.tuples(*[st.none() | _finite] * 3),
-            neutral_amps=st.none() | _finite,
+            phase_amps=st.tuples(*[st.none() | _sized(1e-3, 1e4)] * 3),
+            neutral_amps=st.none() | _sized(1e-3, 1e4),
         )
     )
     if system == "480D" and readings is not None:
@@ -154,8 +162,8 @@ def schedules(draw: st.DrawFn) -> Schedule:
                 harmonics=st.lists(
                     st.tuples(
                         st.integers(2, 50),
-                        st.floats(0, 5),
-                        st.floats(-360, 360),
+                        _sized(1e-6, 5),
+                        _sized(1e-6, 360) | _sized(1e-6, 360).map(lambda x: -x),
                     ),
                     unique_by=lambda row: row[0],
                     max_size=4,

@@ -108,7 +108,8 @@ async def test_slot_overlap_refused_with_the_loaders_message(small: Path) -> Non
         await pilot.pause()
         form = app.screen
         assert isinstance(form, FormScreen)
-        assert "already taken" in form.problems["slot"]
+        # Named by slot and name, as the screen shows it (not by its place in the file).
+        assert form.problems["slot"] == 'slot 2 is taken by slot 2 "Receptacles bar"'
         await pilot.press("enter")
         assert isinstance(app.screen, FormScreen)
         await pilot.press("escape")
@@ -141,7 +142,7 @@ async def test_undo_redo_delete_and_lock(small: Path) -> None:
         await pilot.press("m")
         await pilot.pause()
         assert isinstance(app.screen, MainScreen), "a locked circuit is not moved"
-        await pilot.press("l", "m", "1", "1", "enter")
+        await pilot.press("l", "m", "backspace", "1", "1", "enter")
         await settle(pilot)
         moved = next(c for c in app.session.schedule.circuits if c.name == "Signage")
         assert moved.slot == 11

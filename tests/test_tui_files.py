@@ -2,15 +2,17 @@
 
 from __future__ import annotations
 
+import io
 from pathlib import Path
 
 import pytest
+from rich.console import Console
 from tui_support import settle
 
 from tri.schedule.journal import journal_path, read_journal
 from tri.schedule.load import load_schedule
 from tri.schedule.to_engine import analyse_schedule
-from tri.tui import app as app_module
+from tri.tui import demos
 from tri.tui.app import TriApp
 from tri.tui.screens.choice import ChoiceScreen
 from tri.tui.screens.form import FormScreen
@@ -154,7 +156,7 @@ async def test_quit_without_edits_does_not_ask(small: Path) -> None:
 async def test_picker_opens_a_demo_as_an_unsaved_copy(
     monkeypatch: pytest.MonkeyPatch, tmp_path: Path
 ) -> None:
-    monkeypatch.setattr(app_module, "demo_folder", lambda: DATA)
+    monkeypatch.setattr(demos, "demo_folder", lambda: DATA)
     app = TriApp(None, journal=False)
     async with app.run_test(size=(80, 24)) as pilot:
         await settle(pilot)
@@ -193,14 +195,24 @@ async def test_help_lists_keys_and_the_caution(small: Path) -> None:
         await pilot.press("question_mark")
         assert isinstance(app.screen, TextScreen)
         body = str(app.screen.body)
-        for words in ("Ctrl+Q", "Undo", "Rebalance", "nothing here is approval to work"):
+        for words in ("Ctrl+Q", "undo", "Rebalance", "nothing here is approval to work"):
             assert words in body
         await pilot.press("escape")
         assert isinstance(app.screen, MainScreen)
         await pilot.press("f")
         assert isinstance(app.screen, TextScreen)
+        shown = plain(app.screen.body)
         for finding in app.analysis.findings:
-            assert finding.message in str(app.screen.body)
+            assert " ".join(finding.message.split()) in shown
+        await pilot.press("tab")  # the checks, as tri check words them
+        assert "checks" in plain(app.screen.body) and "PASS" in plain(app.screen.body)
+
+
+def plain(renderable) -> str:
+    """What a renderable shows, as one line of words (wrapping undone)."""
+    console = Console(width=200, record=True, file=io.StringIO())
+    console.print(renderable)
+    return " ".join(console.export_text().split())
 
 
 DEMOS = sorted((Path(__file__).resolve().parents[1] / "panels_demo").glob("*.toml"))

@@ -12,11 +12,16 @@ import os
 import sys
 from collections.abc import Sequence
 from types import ModuleType
+from typing import TYPE_CHECKING
+
+if TYPE_CHECKING:
+    from _typeshed import SupportsWrite
 
 from tri import __version__
 from tri.cli import check, new, open_ui, report, suggest
 from tri.cli.common import EXIT_ERROR, EXIT_INTERNAL, CliError, print_error
 from tri.schedule.errors import ScheduleError
+from tri.schedule.text import escaped
 
 COMMANDS: dict[str, ModuleType] = {
     "new": new,
@@ -41,9 +46,16 @@ qualified person do it, and let the local electrical code and the authority
 having jurisdiction decide."""
 
 
+class _Parser(argparse.ArgumentParser):
+    """argparse, with whatever it quotes from the command line shown escaped."""
+
+    def _print_message(self, message: str, file: SupportsWrite[str] | None = None) -> None:
+        super()._print_message(escaped(message, keep_newlines=True), file)
+
+
 def build_parser() -> argparse.ArgumentParser:
     """The full argument parser (commands as sub-parsers)."""
-    parser = argparse.ArgumentParser(
+    parser = _Parser(
         prog="tri",
         description=DESCRIPTION,
         formatter_class=argparse.RawDescriptionHelpFormatter,
@@ -65,6 +77,15 @@ def _normalise(argv: list[str]) -> list[str]:
     return ["open", *argv]
 
 
+def _silence_stdout() -> None:
+    """Point standard output at the null device so the exit flush cannot fail again."""
+    try:
+        devnull = os.open(os.devnull, os.O_WRONLY)
+        os.dup2(devnull, sys.stdout.fileno())
+    except (OSError, ValueError):
+        pass
+
+
 def main(argv: Sequence[str] | None = None) -> int:
     """Run the command line; returns the exit status (0 ok, 1 check failed, 2 bad input)."""
     args_list = _normalise(list(sys.argv[1:] if argv is None else argv))
@@ -72,7 +93,9 @@ def main(argv: Sequence[str] | None = None) -> int:
     try:
         args = parser.parse_args(args_list)
         module = COMMANDS[args.command]
-        return int(module.run(args) or 0)
+        status = int(module.run(args) or 0)
+        sys.stdout.flush()  # a full disk or closed pipe shows here, not at exit
+        return status
     except ScheduleError as exc:
         print_error(exc.summary())
         return EXIT_ERROR
@@ -84,11 +107,15 @@ def main(argv: Sequence[str] | None = None) -> int:
         return 130
     except BrokenPipeError:
         # Output piped into something that stopped reading (e.g. `head`).
-        devnull = os.open(os.devnull, os.O_WRONLY)
-        os.dup2(devnull, sys.stdout.fileno())
+        _silence_stdout()
         return 0
     except SystemExit as exc:
         return int(exc.code) if isinstance(exc.code, int) else (0 if exc.code is None else 2)
+    except OSError as exc:
+        # Writing standard output failed (a full disk, /dev/full, a closed terminal).
+        _silence_stdout()
+        print_error(f"cannot write the output: {exc.strerror or exc}")
+        return EXIT_ERROR
     except Exception as exc:  # never show a traceback to a user
         print_error(
             f"internal error: {type(exc).__name__}: {exc}\n"

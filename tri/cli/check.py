@@ -17,16 +17,11 @@ import textwrap
 from typing import Any
 
 from tri.cli.common import EXIT_ERROR, EXIT_LIMIT, EXIT_OK, SAFETY_CAUTION, CliError, print_error
-from tri.cli.report import build_data, emit
-from tri.report.check_report import (
-    LIMITS,
-    evaluate,
-    panel_status,
-    render_check_text,
-    result_dict,
-)
+from tri.cli.report import add_continuous_factor_option, build_all, check_continuous_factor, emit
+from tri.engine.limits import LIGHT_LOAD_PCT, SRC_LIGHT_LOAD
+from tri.report.check_report import LIMITS, NOT_CHECKED, evaluate, panel_status, result_dict
+from tri.report.check_text import render_check_text
 from tri.schedule.errors import ScheduleError
-from tri.schedule.to_engine import DEFAULT_CONTINUOUS_FACTOR
 
 
 def add_parser(sub: Any) -> None:
@@ -34,7 +29,7 @@ def add_parser(sub: Any) -> None:
     lines = []
     for x in LIMITS:
         lines += textwrap.wrap(
-            f"{x.option} {x.default_pct:g} %: {x.source}",
+            f"{x.option} {x.default_text}: {x.source}",
             width=78,
             initial_indent="  ",
             subsequent_indent="      ",
@@ -42,8 +37,9 @@ def add_parser(sub: Any) -> None:
     description = textwrap.fill(
         "Check one or more schedules against limits and exit 0 when all pass, 1 when any "
         "limit is exceeded, 2 when a file cannot be read. Each limit is printed with the "
-        "value, pass/fail and where its default comes from. Figures are estimates; local "
-        "codes and a licensed practitioner decide.",
+        "value, pass/fail and where its default comes from. A pass covers only the limits "
+        f"listed; not checked: {NOT_CHECKED}. Figures are estimates; local codes and a "
+        "licensed practitioner decide.",
         width=78,
     )
     p = sub.add_parser(
@@ -58,11 +54,20 @@ def add_parser(sub: Any) -> None:
         p.add_argument(
             x.option,
             type=float,
-            default=x.default_pct,
-            metavar="PCT",
-            dest=f"max_{x.key}",
-            help=f"maximum: {x.title} (default {x.default_pct:g} %)".replace("%", "%%"),
+            default=x.default,
+            metavar="PCT" if x.unit == "%" else x.unit.upper(),
+            dest=_dest(x.key),
+            help=f"maximum: {x.title} (default {x.default_text})".replace("%", "%%"),
         )
+    p.add_argument(
+        "--light-load-pct",
+        type=float,
+        default=LIGHT_LOAD_PCT,
+        metavar="PCT",
+        help=f"deviation not judged when the heaviest phase is below PCT of the rating "
+        f"(default {LIGHT_LOAD_PCT:g}; {SRC_LIGHT_LOAD})".replace("%", "%%"),
+    )
+    add_continuous_factor_option(p)
     p.add_argument("--format", choices=("text", "json"), default="text", help="output format")
     p.add_argument(
         "--iterate",
@@ -71,34 +76,76 @@ def add_parser(sub: Any) -> None:
     )
 
 
-def _maxima(args: argparse.Namespace) -> dict[str, float]:
-    out = {}
+def _dest(key: str) -> str:
+    return "max_" + key.replace("-", "_")
+
+
+def _maxima(args: argparse.Namespace) -> dict[str, float | None]:
+    out: dict[str, float | None] = {}
     for x in LIMITS:
-        value = getattr(args, f"max_{x.key}")
-        if not math.isfinite(value) or value < 0:
-            raise CliError(f"{x.option} {value:g}: expected a percentage of 0 or more")
+        value = getattr(args, _dest(x.key))
+        if value is not None and (not math.isfinite(value) or value < 0):
+            what = "a percentage" if x.unit == "%" else x.unit
+            raise CliError(f"{x.option} {value:g}: expected {what} of 0 or more")
         out[x.key] = value
     return out
 
 
-def _check_one(path: str, maxima: dict[str, float], iterate: bool) -> dict[str, Any]:
+def _light_load(args: argparse.Namespace) -> float:
+    value = args.light_load_pct
+    if not math.isfinite(value) or not 0 <= value <= 100:
+        raise CliError(f"--light-load-pct {value:g}: expected a percentage from 0 to 100")
+    return float(value)
+
+
+def _check_one(
+    path: str,
+    maxima: dict[str, float | None],
+    iterate: bool,
+    factor: float | None,
+    light: float,
+) -> list[dict[str, Any]]:
     try:
-        data = build_data(path, iterate=iterate, continuous_factor=DEFAULT_CONTINUOUS_FACTOR)
+        data, parts = build_all(path, iterate=iterate, continuous_factor=factor)
     except ScheduleError as exc:
         print_error(exc.summary())
-        return _error_entry(path, exc.summary())
+        return [_error_entry(path, exc.summary())]
     except CliError as exc:
         print_error(str(exc))
-        return _error_entry(path, str(exc))
-    results = evaluate(data, maxima)
-    return {
-        "file": path,
-        "panel": data["panel"]["name"],
-        "status": panel_status(results),
-        "error": None,
-        "basis": data["basis"]["currents"],
-        "results": results,
-    }
+        return [_error_entry(path, str(exc))]
+    if data.get("building") is not None:  # every panel of the building, the service first
+        from tri.cli.building import check_entries
+
+        return check_entries(data, maxima, light_load_pct=light)
+    results = _scenario_results(path, data, parts, maxima, light)
+    return [
+        {
+            "file": path,
+            "panel": data["panel"]["name"],
+            "status": panel_status(results),
+            "error": None,
+            "basis": data["basis"]["currents"],
+            "results": results,
+        }
+    ]
+
+
+def _scenario_results(
+    path: str, data: dict[str, Any], parts: Any, maxima: dict[str, float | None], light: float
+) -> list[Any]:
+    """Each limit in the connected load and every scenario; the worst case decides."""
+    if len(parts.cases) < 2:
+        return evaluate(data, maxima, light_load_pct=light)
+    from tri.report.data import report_data
+    from tri.report.scenario_check import evaluate_cases
+    from tri.schedule.load import load_schedule
+
+    schedule = load_schedule(path).schedule
+    reports = [
+        (c.name, report_data(c.analysis, schedule, caution=SAFETY_CAUTION, file=path))
+        for c in parts.cases[1:]
+    ]
+    return evaluate_cases(data, reports, maxima, light_load_pct=light)
 
 
 def _error_entry(path: str, message: str) -> dict[str, Any]:
@@ -125,7 +172,11 @@ def exit_code(entries: list[dict[str, Any]]) -> int:
 def run(args: argparse.Namespace) -> int:
     """Run ``tri check``; returns the exit status."""
     maxima = _maxima(args)
-    entries = [_check_one(path, maxima, args.iterate) for path in args.files]
+    light = _light_load(args)
+    factor = check_continuous_factor(args.continuous_factor)
+    entries = [
+        e for path in args.files for e in _check_one(path, maxima, args.iterate, factor, light)
+    ]
     code = exit_code(entries)
     if args.format == "json":
         overall = {EXIT_OK: "pass", EXIT_LIMIT: "fail", EXIT_ERROR: "error"}[code]
@@ -143,6 +194,7 @@ def run(args: argparse.Namespace) -> int:
                 }
                 for e in entries
             ],
+            "not_checked": NOT_CHECKED,
             "caution": SAFETY_CAUTION,
         }
         emit(json.dumps(payload, indent=2, ensure_ascii=False, allow_nan=False) + "\n", utf8=True)

@@ -4,19 +4,14 @@ from __future__ import annotations
 
 import sys
 
+from tri.safety import SAFETY_CAUTION as SAFETY_CAUTION  # its home; re-exported for the commands
 from tri.schedule.load import ScheduleFile, load_schedule
+from tri.schedule.text import escaped
 
 EXIT_OK = 0
 EXIT_LIMIT = 1  #: ``tri check`` found a limit exceeded
 EXIT_ERROR = 2  #: bad input: unreadable or invalid file, bad option
 EXIT_INTERNAL = 3  #: a bug in tri
-
-SAFETY_CAUTION = (
-    "Figures are engineering estimates from the schedule, not measurements. "
-    "Panel work can kill: de-energise and lock out before moving any breaker, "
-    "and let a qualified person do the work. The local electrical code and the "
-    "authority having jurisdiction decide; nothing here is approval to work."
-)
 
 
 class CliError(Exception):
@@ -24,8 +19,8 @@ class CliError(Exception):
 
 
 def print_error(message: str) -> None:
-    """Print ``tri: error: ...`` to standard error."""
-    print(f"tri: error: {message}", file=sys.stderr)
+    """Print ``tri: error: ...`` to standard error (control characters shown escaped)."""
+    print(f"tri: error: {escaped(message, keep_newlines=True)}", file=sys.stderr)
 
 
 def load(path: str) -> ScheduleFile:

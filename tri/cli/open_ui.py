@@ -3,7 +3,23 @@
 from __future__ import annotations
 
 import argparse
+import sys
 from typing import Any
+
+from tri.cli.common import EXIT_ERROR, print_error
+
+NO_TERMINAL = (
+    "the terminal UI needs a terminal on standard input and output; "
+    "in scripts use 'tri report', 'tri check' or 'tri suggest'"
+)
+
+
+def has_terminal() -> bool:
+    """True when standard input and output are both a terminal (the UI can draw and read keys)."""
+    try:
+        return sys.stdin.isatty() and sys.stdout.isatty()
+    except (AttributeError, ValueError):  # closed or replaced streams
+        return False
 
 
 def add_parser(sub: Any) -> None:
@@ -17,6 +33,9 @@ def add_parser(sub: Any) -> None:
 
 
 def run(args: argparse.Namespace) -> int:
+    if not has_terminal():
+        print_error(NO_TERMINAL)
+        return EXIT_ERROR
     try:
         from tri.tui.app import run_app  # imported late: headless commands never load textual
     except ImportError:

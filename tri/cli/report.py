@@ -19,12 +19,17 @@ from pathlib import Path
 from typing import Any
 
 from tri.cli.common import SAFETY_CAUTION, CliError, load
-from tri.schedule.to_engine import DEFAULT_CONTINUOUS_FACTOR, analyse_schedule
+from tri.engine.limits import (
+    CONTINUOUS_FACTOR,
+    CONTINUOUS_FACTOR_RANGE,
+    DESIGN_HEADROOM_PCT,
+    IEC_CONTINUOUS_FACTOR,
+    PHASE_KVA_EXAMPLE,
+    FindingLimits,
+)
+from tri.schedule.to_engine import analyse_schedule
 
 FORMATS = ("text", "json", "markdown", "csv")
-#: Accepted range of --continuous-factor [-]: below 1 would count continuous
-#: loads for less than their current; 3 is far above any code's 125 %.
-CONTINUOUS_FACTOR_RANGE = (1.0, 3.0)
 
 
 def add_parser(sub: Any) -> None:
@@ -47,14 +52,7 @@ def add_parser(sub: Any) -> None:
         help="with a [supply] table, solve loads as constant power at the panel voltage "
         "(default: currents at nominal voltage, as schedules are written)",
     )
-    p.add_argument(
-        "--continuous-factor",
-        type=float,
-        default=DEFAULT_CONTINUOUS_FACTOR,
-        metavar="F",
-        help=f"multiplier on continuous loads in the sizing check (default "
-        f"{DEFAULT_CONTINUOUS_FACTOR:g}, common North American practice)",
-    )
+    add_finding_options(p)
     p.add_argument(
         "--output",
         "-o",
@@ -63,8 +61,56 @@ def add_parser(sub: Any) -> None:
     )
 
 
-def check_continuous_factor(value: float) -> float:
-    """The continuous factor, or :class:`CliError` when outside the accepted range [-]."""
+def add_continuous_factor_option(p: argparse.ArgumentParser) -> None:
+    """``--continuous-factor`` (``tri report`` and ``tri check``)."""
+    p.add_argument(
+        "--continuous-factor",
+        type=float,
+        default=None,
+        metavar="F",
+        help=f"multiplier on continuous loads in the sizing rule (default "
+        f"{CONTINUOUS_FACTOR:g}, NEC practice, on 60 Hz panels; {IEC_CONTINUOUS_FACTOR:g}, IEC "
+        "practice, on 50 Hz panels)",
+    )
+
+
+def add_finding_options(p: argparse.ArgumentParser) -> None:
+    """``tri report``'s finding settings: the factor, the headroom, the kVA cap."""
+    add_continuous_factor_option(p)
+    p.add_argument(
+        "--headroom-pct",
+        type=float,
+        default=DESIGN_HEADROOM_PCT,
+        metavar="PCT",
+        help=f"design headroom: phase RMS loading above it is NEAR (default "
+        f"{DESIGN_HEADROOM_PCT:g}; a margin, not a code rule)".replace("%", "%%"),
+    )
+    p.add_argument(
+        "--max-phase-kva",
+        type=float,
+        default=None,
+        metavar="KVA",
+        help="largest difference of scheduled apparent power between phases, as some grid "
+        f"operators cap it (e.g. {PHASE_KVA_EXAMPLE:g}; default: not judged)",
+    )
+
+
+def finding_settings(args: argparse.Namespace) -> tuple[float | None, FindingLimits]:
+    """The continuous factor and finding limits of the options, or :class:`CliError`."""
+    factor = check_continuous_factor(args.continuous_factor)
+    headroom = args.headroom_pct
+    if not math.isfinite(headroom) or not 0 < headroom <= 100:
+        raise CliError(f"--headroom-pct {headroom:g}: expected a percentage above 0, at most 100")
+    kva = args.max_phase_kva
+    if kva is not None and (not math.isfinite(kva) or kva < 0):
+        raise CliError(f"--max-phase-kva {kva:g}: expected kVA of 0 or more")
+    return factor, FindingLimits(headroom_pct=headroom, phase_kva_limit=kva)
+
+
+def check_continuous_factor(value: float | None) -> float | None:
+    """The continuous factor (None: the panel's practice), or :class:`CliError` [-]."""
+    if value is None:
+        return None
     lo, hi = CONTINUOUS_FACTOR_RANGE
     if not math.isfinite(value) or not lo <= value <= hi:
         raise CliError(
@@ -74,22 +120,134 @@ def check_continuous_factor(value: float) -> float:
     return value
 
 
-def build_data(path: str, *, iterate: bool, continuous_factor: float) -> dict[str, Any]:
-    """Load, analyse and turn one schedule into report data (see :mod:`tri.report.data`)."""
-    from tri.report.data import report_data
+def build_data(
+    path: str,
+    *,
+    iterate: bool,
+    continuous_factor: float | None = None,
+    limits: FindingLimits | None = None,
+) -> dict[str, Any]:
+    """Load, analyse and turn one schedule into report data (see :mod:`tri.report.data`).
 
+    ``continuous_factor`` None takes the panel's practice; ``limits`` None the defaults.
+    """
+    return build_all(path, iterate=iterate, continuous_factor=continuous_factor, limits=limits)[0]
+
+
+def build_all(
+    path: str,
+    *,
+    iterate: bool,
+    continuous_factor: float | None = None,
+    limits: FindingLimits | None = None,
+) -> tuple[dict[str, Any], Any]:
+    """Report data and the parts behind its ``scenarios`` and ``log`` keys.
+
+    A building (a schedule whose circuits feed other panels) gives the whole
+    tree's data and no scenario or log parts (those are judged per panel).
+    """
+    from tri.cli.building import building_report_data, is_building_root
+    from tri.report.data import report_data
+    from tri.report.over_time_data import add_over_time
+
+    limits = limits or FindingLimits()
     loaded = load(path)
+    if is_building_root(loaded):
+        from tri.report.over_time_data import OverTimeParts
+
+        data = building_report_data(path, iterate=iterate, continuous_factor=continuous_factor)
+        return data, OverTimeParts(cases=())
     try:
         analysis = analyse_schedule(
-            loaded.schedule, iterate_voltage=iterate, continuous_factor=continuous_factor
+            loaded.schedule,
+            iterate_voltage=iterate,
+            continuous_factor=continuous_factor,
+            limits=limits,
         )
     except ValueError as exc:
         raise CliError(f"{path}: cannot analyse this schedule: {exc}") from None
-    return report_data(analysis, loaded.schedule, caution=SAFETY_CAUTION, file=path)
+    data = report_data(
+        analysis,
+        loaded.schedule,
+        caution=SAFETY_CAUTION,
+        file=path,
+        headroom_pct=limits.headroom_pct,
+    )
+    parts = add_over_time(
+        data, loaded, analysis, iterate=iterate, continuous_factor=continuous_factor, limits=limits
+    )
+    return data, parts
 
 
-def render(data: dict[str, Any], fmt: str, *, ascii_only: bool = False) -> str:
+def render(
+    data: dict[str, Any],
+    fmt: str,
+    *,
+    ascii_only: bool = False,
+    images: dict[str, str] | None = None,
+) -> str:
     """The report in ``fmt`` as text (text format: 80 columns, no colour)."""
+    if data.get("building") is not None:
+        from tri.report import building_render as b
+
+        if fmt == "text":
+            return b.render_building_text(data, ascii_only=ascii_only)
+        if fmt == "markdown":
+            return b.render_building_markdown(data)
+        if fmt == "csv":
+            return b.render_building_csv(data)
+    text = _render_base(data, fmt, ascii_only=ascii_only)
+    if fmt in ("text", "markdown") and ("scenarios" in data or "log" in data):
+        from tri.report import over_time_text as ot
+
+        extra = (
+            ot.render_over_time_markdown(data, images)
+            if fmt == "markdown"
+            else ot.render_over_time_text(data)
+        )
+        if ascii_only:
+            extra = extra.encode("ascii", "replace").decode("ascii")
+        text += extra
+    return text
+
+
+def write_pictures(parts: Any, data: dict[str, Any], report_path: str) -> dict[str, str]:
+    """Write the log's pictures beside ``report_path``; returns alt text -> file name."""
+    if parts.log is None:
+        return {}
+    from tri.report.log_svg import current_over_time_svg, duration_svg
+
+    out = Path(report_path)
+    labels = [*data["phase_order"], "N"]
+    name = data["panel"]["name"]
+    pictures = {
+        f"Phase and neutral current over time, {name}": (
+            out.with_name(f"{out.stem}-current.svg"),
+            current_over_time_svg(
+                parts.figures.picture,
+                parts.log.interval_s,
+                labels,
+                parts.log.time_text,
+                f"{name}: current over time",
+            ),
+        ),
+        f"Hours above each current, {name}": (
+            out.with_name(f"{out.stem}-duration.svg"),
+            duration_svg(
+                data["log"]["duration"]["levels_a"],
+                data["log"]["duration"]["hours_above"],
+                f"{name}: hours above each current",
+            ),
+        ),
+    }
+    written = {}
+    for alt, (path, svg) in pictures.items():
+        write_file(str(path), svg, report_path)
+        written[alt] = path.name
+    return written
+
+
+def _render_base(data: dict[str, Any], fmt: str, *, ascii_only: bool = False) -> str:
     if fmt == "json":
         from tri.report.json_report import render_json
 
@@ -151,8 +309,10 @@ def write_file(target: str, text: str, source: str) -> None:
 
 def run(args: argparse.Namespace) -> int:
     """Run ``tri report``; returns 0 (errors raise :class:`CliError` or ``ScheduleError``)."""
-    factor = check_continuous_factor(args.continuous_factor)
-    data = build_data(args.file, iterate=args.iterate, continuous_factor=factor)
+    factor, limits = finding_settings(args)
+    data, parts = build_all(
+        args.file, iterate=args.iterate, continuous_factor=factor, limits=limits
+    )
     if args.iterate and data["supply"] is None:
         print(
             "tri: warning: --iterate needs a [supply] table; currents are at nominal voltage.",
@@ -160,15 +320,20 @@ def run(args: argparse.Namespace) -> int:
         )
     fmt = args.format
     if args.output:
-        write_file(args.output, render(data, fmt), args.file)
+        images = write_pictures(parts, data, args.output) if fmt == "markdown" else None
+        write_file(args.output, render(data, fmt, images=images), args.file)
         print(f"Wrote the {fmt} report to {args.output}.", file=sys.stderr)
         return 0
-    if fmt == "text" and sys.stdout.isatty():
+    if fmt == "text" and sys.stdout.isatty() and data.get("building") is None:
         from rich.console import Console
 
         from tri.report.text_report import print_text
 
         print_text(data, Console(highlight=False, emoji=False, markup=False))
+        if "scenarios" in data or "log" in data:
+            from tri.report.over_time_text import render_over_time_text
+
+            emit(render_over_time_text(data))
         return 0
     utf8 = fmt in ("json", "csv", "markdown")
     emit(render(data, fmt, ascii_only=not utf8 and not _is_utf8(sys.stdout)), utf8=utf8)

@@ -6,7 +6,7 @@ Entry points: :func:`analyse` (one panel, with findings) and
 """
 
 from tri.engine.analysis import analyse, analyse_batch
-from tri.engine.loading import FindingLimits
+from tri.engine.limits import FindingLimits
 from tri.engine.results import BatchAnalysis, Finding, PanelAnalysis, Phasor
 
 __all__ = [

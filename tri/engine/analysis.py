@@ -24,6 +24,7 @@ from __future__ import annotations
 
 import dataclasses
 import math
+from dataclasses import dataclass
 
 import numpy as np
 
@@ -39,14 +40,17 @@ from tri.engine.inputs import (
     SupplyImpedance,
     SystemVoltages,
 )
+from tri.engine.limits import LEVEL_RANK, FindingLimits
 from tri.engine.loading import (
-    FindingLimits,
+    breaker_findings,
+    calculated_load_a,
+    circuit_calculated_a,
     continuous_weights,
+    loading_findings,
     loading_pct,
-    panel_findings,
-    three_pole_triplen_finding,
-    voltage_findings,
+    neutral_calculated_load_a,
 )
+from tri.engine.neutral_rules import neutral_findings, three_pole_triplen_finding
 from tri.engine.phasors import (
     element_currents,
     line_voltages,
@@ -67,7 +71,12 @@ from tri.engine.results import (
 )
 from tri.engine.sequence import sequence_components, unbalance_pct
 from tri.engine.supply import solve_voltages, supply_impedances, transformer_impedance
-from tri.engine.unbalance import deviation_rate_pct, nema_derating, vuf_pct
+from tri.engine.unbalance import deviation_rate_pct, max_minus_min_pct, nema_derating, vuf_pct
+from tri.engine.unbalance_findings import (
+    deviation_findings,
+    phase_kva_findings,
+    voltage_findings,
+)
 
 #: Phasors smaller than this fraction of the panel's total circuit current are
 #: round-off and are set to exactly 0 (so a balanced neutral reads 0∠0°) [-].
@@ -95,7 +104,7 @@ def check_inputs(circuits: CircuitArrays, system: SystemVoltages, ratings: Ratin
     shape = np.shape(circuits.s_va)
     if not shape:
         raise ValueError("circuit arrays need at least one axis (circuits)")
-    for name in ("connection", "phase_p", "phase_q", "continuous"):
+    for name in ("connection", "phase_p", "phase_q", "continuous", "breaker_a"):
         if np.shape(getattr(circuits, name)) != shape:
             raise ValueError(f"{name} has shape {np.shape(getattr(circuits, name))}, not {shape}")
     h = np.shape(circuits.orders)
@@ -127,12 +136,41 @@ def check_inputs(circuits: CircuitArrays, system: SystemVoltages, ratings: Ratin
             raise ValueError(f"rating {name} must be > 0, got {value!r}")
     if not ratings.continuous_factor > 0:
         raise ValueError("continuous_factor must be > 0")
+    breakers = np.asarray(circuits.breaker_a, dtype=float)
+    if np.any(~np.isnan(breakers) & ~(breakers > 0)) or np.any(np.isinf(breakers)):
+        raise ValueError("breaker ratings must be > 0 and finite (NaN: none)")
 
 
 def _snap(x: np.ndarray, scale: np.ndarray, extra_dims: int) -> np.ndarray:
     """Zero phasors below ``SNAP_RELATIVE·scale`` (``scale`` per panel)."""
     s = np.reshape(scale, np.shape(scale) + (1,) * extra_dims)
     return np.where(np.abs(x) <= SNAP_RELATIVE * s, 0, x)
+
+
+def _code_figures(
+    circuits: CircuitArrays,
+    system: SystemVoltages,
+    ratings: Ratings,
+    rating: float,
+    nonlinear: np.ndarray,
+    total_va: np.ndarray,
+) -> dict[str, np.ndarray]:
+    """The figures of the code's calculation (scheduled loads) and the non-linear
+    line-to-neutral share, as :class:`BatchAnalysis` fields."""
+    factor = ratings.continuous_factor
+    v_ln = system.v_ln_or_derived
+    calculated = calculated_load_a(circuits, factor, v_ln)
+    s_abs = np.abs(np.asarray(circuits.s_va))
+    ln = np.asarray(circuits.connection) == LINE_TO_NEUTRAL
+    nl_ln_va = np.sum(np.where(nonlinear & ln, s_abs, 0.0), axis=-1)
+    safe = np.where(total_va > 0, total_va, 1.0)
+    return {
+        "phase_calculated_a": calculated,
+        "phase_calculated_pct": loading_pct(calculated, rating),
+        "neutral_calculated_a": neutral_calculated_load_a(circuits, v_ln),
+        "circuit_calculated_a": circuit_calculated_a(circuits, factor, v_ln),
+        "nonlinear_ln_share_pct": np.where(total_va > 0, 100.0 * nl_ln_va / safe, 0.0),
+    }
 
 
 def analyse_batch(
@@ -170,7 +208,6 @@ def analyse_batch(
         the panel analysed alone.
     """
     check_inputs(circuits, system, ratings)
-    batch = np.shape(circuits.s_va)[:-1]
     conn = np.asarray(circuits.connection)
     e = nominal_phase_voltages(system.v_ln_or_derived)
 
@@ -188,17 +225,11 @@ def analyse_batch(
     if not (np.all(np.isfinite(oc.phase)) and np.all(np.isfinite(oc.circuit_rms_a))):
         raise ValueError("harmonics must be finite numbers")
     scale = np.sum(oc.circuit_rms_a, axis=-1)
-    phase_spec = _snap(oc.phase, scale, 2)
-    neutral_spec = _snap(oc.neutral, scale, 1)
-    design_spec = phase_spec if oc.phase_weighted is None else oc.phase_weighted
-
     rating = ratings.main_a if ratings.main_a is not None else ratings.bus_a
     neutral_rating = ratings.neutral_a if ratings.neutral_a is not None else ratings.bus_a
-    phase_rms = rms(phase_spec)
-    design_rms = rms(design_spec)
-    neutral_rms = rms(neutral_spec)
-    fund = phase_spec[..., 0]
-    seq = _snap(sequence_components(fund), scale, 1)
+    currents = current_figures(
+        oc.phase, oc.neutral, oc.phase_weighted, scale, rating, neutral_rating
+    )
 
     s_abs = np.abs(np.asarray(circuits.s_va))
     placed = conn != UNPLACED
@@ -210,47 +241,136 @@ def analyse_batch(
 
     volt: dict[str, np.ndarray | None] = {}
     if sol is not None:
-        v_line = line_voltages(sol.v_phase)
-        line_dev = deviation_rate_pct(np.abs(v_line))
-        volt = {
-            "v_phase": sol.v_phase,
-            "v_line": v_line,
-            "vuf_pct": vuf_pct(v_line),
-            "line_deviation_pct": line_dev,
-            "phase_deviation_pct": (
-                deviation_rate_pct(np.abs(sol.v_phase))
-                if system.has_neutral
-                else np.full(batch, np.nan)
-            ),
-            "motor_derating": nema_derating(line_dev),
-            "iterations": sol.iterations,
-            "converged": sol.converged,
-        }
+        volt = voltage_figures(sol.v_phase, system.has_neutral)
+        volt.update(iterations=sol.iterations, converged=sol.converged)
 
     return BatchAnalysis(
         orders=oc.orders,
         phase_va=schedule_va(circuits),
-        phase_spectrum=phase_spec,
-        phase_rms_a=phase_rms,
-        phase_thd_pct=thd_pct(phase_spec),
-        phase_loading_pct=loading_pct(phase_rms, rating),
-        phase_design_a=design_rms,
-        phase_design_loading_pct=loading_pct(design_rms, rating),
-        neutral_spectrum=neutral_spec,
-        neutral_rms_a=neutral_rms,
-        neutral_loading_pct=loading_pct(neutral_rms, neutral_rating),
-        sequence=seq,
-        negative_sequence_pct=unbalance_pct(seq, 2),
-        zero_sequence_pct=unbalance_pct(seq, 0),
-        max_deviation_pct=deviation_rate_pct(phase_rms),
-        max_deviation_fundamental_pct=deviation_rate_pct(np.abs(fund)),
         circuit_current_a=oc.circuit_fundamental_a,
         circuit_rms_a=oc.circuit_rms_a,
         nonlinear_share_pct=nl_share,
         unplaced_count=np.sum((conn == UNPLACED) & (s_abs > 0), axis=-1),
         three_pole_triplens=tp_triplen,
+        **currents,
+        **_code_figures(circuits, system, ratings, rating, nonlinear, total_va),
         **volt,
     )
+
+
+def _findings(
+    a: PanelAnalysis,
+    circuits: CircuitArrays | None,
+    ratings: Ratings,
+    limits: FindingLimits,
+    names: tuple[str, ...],
+    wye: bool,
+) -> list[Finding]:
+    """Loading, breaker, neutral and balance findings of one panel (unsorted)."""
+    out = loading_findings(a, ratings, limits)
+    if circuits is not None:
+        out += breaker_findings(a, circuits.breaker_a, circuits.continuous, names)
+    out += neutral_findings(a, limits, wye)
+    out += deviation_findings(a, limits)
+    out += phase_kva_findings(a, limits)
+    if a.unplaced_count:
+        out.append(
+            Finding(
+                "info",
+                f"{a.unplaced_count} circuit(s) not placed on a phase are left out of the "
+                "phase figures.",
+                "tri schedule convention",
+            )
+        )
+    return out
+
+
+def current_figures(
+    phase: np.ndarray,
+    neutral: np.ndarray,
+    phase_weighted: np.ndarray | None,
+    scale: np.ndarray,
+    rating_a: float | np.ndarray,
+    neutral_rating_a: float | np.ndarray,
+) -> dict[str, np.ndarray]:
+    """Phase, neutral and sequence figures from line and neutral spectra.
+
+    Parameters
+    ----------
+    phase : complex ndarray, shape (B..., 3, H)
+        Line currents at each order, the fundamental first [A].
+    neutral : complex ndarray, shape (B..., H)
+        Neutral current at each order [A].
+    phase_weighted : complex ndarray, shape (B..., 3, H), or None
+        Line currents with continuous loads at the continuous factor [A]
+        (None: the same as ``phase``).
+    scale : float ndarray, shape (B...)
+        Sum of the circuits' RMS currents [A]; phasors below
+        ``SNAP_RELATIVE·scale`` are round-off and set to 0.
+    rating_a, neutral_rating_a : float or ndarray of shape (B...)
+        Phase rating (main, else bus) and neutral rating [A].
+
+    Returns
+    -------
+    dict
+        The :class:`~tri.engine.results.BatchAnalysis` fields ``phase_spectrum``
+        to ``max_deviation_fundamental_pct`` and ``max_minus_min_pct`` [A], [%].
+    """
+    phase_spec = _snap(phase, scale, 2)
+    neutral_spec = _snap(neutral, scale, 1)
+    design_spec = phase_spec if phase_weighted is None else phase_weighted
+    rating = np.asarray(rating_a, dtype=float)[..., None]
+    phase_rms = rms(phase_spec)
+    design_rms = rms(design_spec)
+    neutral_rms = rms(neutral_spec)
+    fund = phase_spec[..., 0]
+    seq = _snap(sequence_components(fund), scale, 1)
+    return {
+        "phase_spectrum": phase_spec,
+        "phase_rms_a": phase_rms,
+        "phase_thd_pct": thd_pct(phase_spec),
+        "phase_loading_pct": 100.0 * phase_rms / rating,
+        "phase_design_a": design_rms,
+        "phase_design_loading_pct": 100.0 * design_rms / rating,
+        "neutral_spectrum": neutral_spec,
+        "neutral_rms_a": neutral_rms,
+        "neutral_loading_pct": 100.0 * neutral_rms / np.asarray(neutral_rating_a, dtype=float),
+        "sequence": seq,
+        "negative_sequence_pct": unbalance_pct(seq, 2),
+        "zero_sequence_pct": unbalance_pct(seq, 0),
+        "max_deviation_pct": deviation_rate_pct(phase_rms),
+        "max_deviation_fundamental_pct": deviation_rate_pct(np.abs(fund)),
+        "max_minus_min_pct": max_minus_min_pct(phase_rms),
+    }
+
+
+def voltage_figures(v_phase: np.ndarray, has_neutral: bool | np.ndarray) -> dict[str, np.ndarray]:
+    """Voltage unbalance figures from panel phase voltages.
+
+    Parameters
+    ----------
+    v_phase : complex ndarray, shape (B..., 3)
+        Phase-to-neutral voltages at the panel [V].
+    has_neutral : bool or bool ndarray of shape (B...)
+        4-wire panels (the phase deviation is NaN on 3-wire ones).
+
+    Returns
+    -------
+    dict
+        The :class:`~tri.engine.results.BatchAnalysis` fields ``v_phase``,
+        ``v_line``, ``vuf_pct``, ``line_deviation_pct``,
+        ``phase_deviation_pct`` and ``motor_derating``.
+    """
+    v_line = line_voltages(v_phase)
+    line_dev = deviation_rate_pct(np.abs(v_line))
+    return {
+        "v_phase": v_phase,
+        "v_line": v_line,
+        "vuf_pct": vuf_pct(v_line),
+        "line_deviation_pct": line_dev,
+        "phase_deviation_pct": np.where(has_neutral, deviation_rate_pct(np.abs(v_phase)), np.nan),
+        "motor_derating": nema_derating(line_dev),
+    }
 
 
 def _f(x: np.ndarray | float) -> float:
@@ -271,6 +391,7 @@ def analyse(
     iterate_voltage: bool = False,
     phase_labels: tuple[str, str, str] = ("A", "B", "C"),
     limits: FindingLimits | None = None,
+    circuit_labels: tuple[str, ...] | None = None,
     tol: float = 1e-9,
     max_iter: int = 100,
 ) -> PanelAnalysis:
@@ -294,8 +415,10 @@ def analyse(
     phase_labels : tuple of 3 str
         Labels for results and messages (e.g. ``("L1", "L2", "L3")``).
     limits : FindingLimits, optional
-        Thresholds for findings (defaults: common practice and the cited
-        standards).
+        Thresholds for findings (defaults: :mod:`tri.engine.limits`).
+    circuit_labels : tuple of str, optional
+        How findings name each circuit row (slot or phases, and name);
+        default ``"circuit 1"``, ``"circuit 2"``, ...
     tol, max_iter : float, int
         Voltage iteration tolerance [pu of V_LN] and limit.
 
@@ -317,18 +440,108 @@ def analyse(
     """
     if np.ndim(circuits.s_va) != 1:
         raise ValueError("analyse() takes one panel; use analyse_batch() for a batch")
-    iterate_requested = iterate_voltage
-    iterate_voltage = iterate_voltage and supply is not None
-    limits = limits or FindingLimits()
     b = analyse_batch(
         circuits,
         system,
         ratings,
         supply,
-        iterate_voltage=iterate_voltage,
+        iterate_voltage=iterate_voltage and supply is not None,
         tol=tol,
         max_iter=max_iter,
     )
+    source = None
+    if supply is not None:
+        z_ph, z_n = supply_impedances(supply, system)
+        tx = transformer_impedance(
+            supply.transformer_kva, supply.transformer_z_pct, supply.transformer_x_r, system.v_ll
+        )
+        source = SourceFigures(complex(z_ph), complex(z_n), tx.full_load_a)
+    return describe_panel(
+        b,
+        system,
+        ratings,
+        source,
+        readings,
+        iterated=iterate_voltage and supply is not None,
+        iterate_requested=iterate_voltage,
+        phase_labels=phase_labels,
+        limits=limits,
+        circuits=circuits,
+        circuit_labels=circuit_labels,
+    )
+
+
+@dataclass(frozen=True)
+class SourceFigures:
+    """What is behind a panel, for its voltage result.
+
+    Attributes
+    ----------
+    z_phase_ohm, z_neutral_ohm : complex
+        Phase-path and neutral-path impedance of the source model
+        ``V_p = E_p − Z_phase·I_p − Z_neutral·I_N`` [Ω].
+    transformer_full_load_a : float
+        Rated secondary current of the transformer behind the panel [A].
+    """
+
+    z_phase_ohm: complex
+    z_neutral_ohm: complex
+    transformer_full_load_a: float
+
+
+def describe_panel(
+    b: BatchAnalysis,
+    system: SystemVoltages,
+    ratings: Ratings,
+    source: SourceFigures | None = None,
+    readings: MeasuredReadings | None = None,
+    *,
+    iterated: bool = False,
+    iterate_requested: bool = False,
+    phase_labels: tuple[str, str, str] = ("A", "B", "C"),
+    limits: FindingLimits | None = None,
+    circuits: CircuitArrays | None = None,
+    circuit_labels: tuple[str, ...] | None = None,
+) -> PanelAnalysis:
+    """One panel's figures as plain numbers, with findings.
+
+    Parameters
+    ----------
+    b : BatchAnalysis
+        One panel's arrays (no batch dimensions), from :func:`analyse_batch`
+        or from the roll-up of a tree of panels.
+    system : SystemVoltages
+        Nominal voltages [V].
+    ratings : Ratings
+        Ratings [A].
+    source : SourceFigures, optional
+        Impedances behind the panel; the voltage result needs it and
+        ``b.v_phase``.
+    readings : MeasuredReadings, optional
+        Site readings.
+    iterated : bool
+        The currents were solved at the panel voltage (constant power).
+    iterate_requested : bool
+        Voltage iteration was asked for (an info finding says so when there
+        is no source to iterate against).
+    phase_labels : tuple of 3 str
+        Labels for results and messages.
+    limits : FindingLimits, optional
+        Thresholds for findings.
+    circuits : CircuitArrays, optional
+        The panel's own circuit rows (breaker ratings and continuous flags
+        for the per-breaker check, in the row order of ``b``'s per-circuit
+        arrays); without them no breaker is judged.
+    circuit_labels : tuple of str, optional
+        How findings name each circuit row (slot or phases, and name);
+        default ``"circuit 1"``, ``"circuit 2"``, ...
+
+    Returns
+    -------
+    PanelAnalysis
+    """
+    limits = limits or FindingLimits()
+    iterate_voltage = iterated and source is not None
     labels = tuple(phase_labels)
     if len(labels) != 3:
         raise ValueError("phase_labels needs three labels")
@@ -344,6 +557,8 @@ def analyse(
             loading_pct=_f(b.phase_loading_pct[k]),
             design_a=_f(b.phase_design_a[k]),
             design_loading_pct=_f(b.phase_design_loading_pct[k]),
+            calculated_a=_f(b.phase_calculated_a[k]),
+            calculated_pct=_f(b.phase_calculated_pct[k]),
             harmonic_a=tuple(float(x) for x in np.abs(b.phase_spectrum[k])),
         )
         for k in range(3)
@@ -359,13 +574,10 @@ def analyse(
         loading_pct=_f(b.neutral_loading_pct) if system.has_neutral else None,
         ratio_to_max_phase=neutral_rms / max_phase if max_phase > 0 else 0.0,
         harmonic_a=tuple(float(x) for x in np.abs(b.neutral_spectrum)),
+        calculated_a=_f(b.neutral_calculated_a) if system.has_neutral else None,
     )
     voltage = None
-    if supply is not None:
-        z_ph, z_n = supply_impedances(supply, system)
-        tx = transformer_impedance(
-            supply.transformer_kva, supply.transformer_z_pct, supply.transformer_x_r, system.v_ll
-        )
+    if source is not None and b.v_phase is not None:
         vln = system.v_ln_or_derived
         derating = _f(b.motor_derating)
         phase_dev = _f(b.phase_deviation_pct)
@@ -377,9 +589,9 @@ def analyse(
             phase_deviation_pct=None if math.isnan(phase_dev) else phase_dev,
             motor_derating=None if math.isnan(derating) else derating,
             drop_pct=tuple(float(100.0 * (vln - abs(v)) / vln) for v in b.v_phase),  # type: ignore[arg-type]
-            z_phase_ohm=complex(z_ph),
-            z_neutral_ohm=complex(z_n),
-            transformer_full_load_a=tx.full_load_a,
+            z_phase_ohm=source.z_phase_ohm,
+            z_neutral_ohm=source.z_neutral_ohm,
+            transformer_full_load_a=source.transformer_full_load_a,
             iterated=iterate_voltage,
             iterations=int(b.iterations),
             converged=bool(b.converged),
@@ -402,6 +614,7 @@ def analyse(
             zero_sequence_pct=_f(b.zero_sequence_pct),
             max_deviation_pct=_f(b.max_deviation_pct),
             max_deviation_fundamental_pct=_f(b.max_deviation_fundamental_pct),
+            max_minus_min_pct=_f(b.max_minus_min_pct),
         ),
         voltage=voltage,
         readings=None,
@@ -410,12 +623,18 @@ def analyse(
         circuit_rms_a=tuple(float(x) for x in b.circuit_rms_a),
         nonlinear_share_pct=_f(b.nonlinear_share_pct),
         unplaced_count=int(b.unplaced_count),
+        nonlinear_ln_share_pct=_f(b.nonlinear_ln_share_pct),
+        circuit_calculated_a=tuple(float(x) for x in b.circuit_calculated_a),
     )
-    findings = panel_findings(a, limits)
+    n_rows = len(a.circuit_rms_a)
+    names = circuit_labels or tuple(f"circuit {k + 1}" for k in range(n_rows))
+    if len(names) != n_rows:
+        raise ValueError(f"circuit_labels has {len(names)} labels for {n_rows} circuits")
+    findings = _findings(a, circuits, ratings, limits, names, system.has_neutral)
     if bool(b.three_pole_triplens):
         findings.append(three_pole_triplen_finding())
     findings.extend(voltage_findings(a, limits))
-    if iterate_requested and supply is None:
+    if iterate_requested and source is None:
         findings.append(
             Finding(
                 "info",
@@ -428,6 +647,5 @@ def analyse(
     if readings is not None:
         comparison, more = compare_readings(a, readings, limits)
         findings.extend(more)
-    order = {"limit": 0, "warning": 1, "info": 2}
-    findings.sort(key=lambda f: order[f.level])
+    findings.sort(key=lambda f: LEVEL_RANK[f.level])
     return dataclasses.replace(a, readings=comparison, findings=tuple(findings))

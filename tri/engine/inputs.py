@@ -80,6 +80,9 @@ class CircuitArrays:
     continuous : bool ndarray, shape (..., n)
         True for continuous loads (3 h or more), counted at the continuous
         factor in the sizing check.
+    breaker_a : float ndarray, shape (..., n)
+        Rating of each circuit's breaker [A]; NaN where none is given (the
+        circuit is then not checked against its breaker).
     """
 
     s_va: np.ndarray
@@ -89,10 +92,13 @@ class CircuitArrays:
     harmonics: np.ndarray
     orders: np.ndarray
     continuous: np.ndarray = field(default=None)  # type: ignore[assignment]
+    breaker_a: np.ndarray = field(default=None)  # type: ignore[assignment]
 
     def __post_init__(self) -> None:
         if self.continuous is None:
             object.__setattr__(self, "continuous", np.zeros(np.shape(self.s_va), dtype=bool))
+        if self.breaker_a is None:
+            object.__setattr__(self, "breaker_a", np.full(np.shape(self.s_va), np.nan))
 
     @property
     def n_circuits(self) -> int:

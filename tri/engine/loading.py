@@ -1,83 +1,72 @@
-"""Loading against ratings, and the findings a panel's figures call for.
+"""Loading against ratings: the code's sizing rule, per panel and per breaker.
 
-Every finding names its source and defers to local code: ``tri`` estimates,
-a licensed practitioner and the authority having jurisdiction decide.
-Messages use the phase labels passed in (default A, B, C), never labels
-read from a file.
+Two different questions, kept apart:
+
+* **Current**: the phase's true-RMS current against the main breaker (the
+  bus without a main). Above 100 % the equipment is overloaded (a limit);
+  above the design headroom (80 % by default) it is near (a warning named
+  as headroom, never as a code rule).
+* **Sizing** (the code's rule): the noncontinuous load plus 125 % of the
+  continuous load (the factor is a setting) against the main, the bus
+  (408.30) and each circuit's breaker (210.20(A)). Loads are the scheduled
+  ones at nominal voltage, added as the code's load calculation and panel
+  schedules add them (VA per phase); harmonics and the voltage iteration
+  change the physical current, not the calculation.
+
+Every finding names its source and defers to local code. Messages use the
+phase labels and circuit labels passed in, never text read from a file.
+Thresholds, factors and sources come from :mod:`tri.engine.limits`.
 
 References
 ----------
-1. NFPA 70, *National Electrical Code* (NEC): 210.19(A), 210.20(A),
-   215.2(A), 230.42(A) continuous loads at 125 % (from memory);
-   310.15(E) (310.15(B)(5) in earlier editions) neutral counted as a
-   current-carrying conductor when the major portion of a 4-wire wye load
-   is non-linear (published).
-2. EN 50160, supply voltage unbalance 2 % (95 % of 10-min values over a
-   week) (published); IEC 61000-2-2 compatibility level 2 % (from memory).
-3. ANSI C84.1, voltage unbalance 3 % at the meter under no load
-   (published, secondary).
-4. NEMA MG 1 Part 14: motors rated for 1 % voltage unbalance, derating
-   above it, operation above 5 % not recommended (published).
-5. R. C. Dugan et al., *Electrical Power Systems Quality*, ch. 5: triplen
-   harmonics add in the neutral (from memory; that a neutral can approach
-   √3 × the phase current is common practice and follows from the
-   definitions, see ``shared/spec/check-values.md``).
+1. NFPA 70 (NEC) 210.20(A), 215.2(A)(1), 215.3, 230.42(A)(1), 408.30,
+   408.36 (published, secondary); see :mod:`tri.engine.limits`.
 """
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import replace
 
 import numpy as np
 
+from tri.engine.inputs import CircuitArrays, Ratings
+from tri.engine.limits import (
+    CLAUSE_BRANCH,
+    CLAUSE_IEC_SIZING,
+    CLAUSE_SIZING_BUS,
+    CLAUSE_SIZING_MAIN,
+    IEC,
+    LOCAL,
+    NEAR,
+    RATING_PCT,
+    SRC_BRANCH,
+    SRC_EQUIPMENT_RATING,
+    SRC_IEC_SIZING,
+    SRC_MAIN_ABOVE_BUS,
+    SRC_SIZING_BUS,
+    SRC_SIZING_MAIN,
+    FindingLimits,
+    exceeds,
+    loading_word,
+    practice_for,
+)
+from tri.engine.phasors import connection_masks, schedule_va
 from tri.engine.results import Finding, PanelAnalysis
 
-LOCAL = "local code and a licensed practitioner decide"
-
-
-@dataclass(frozen=True)
-class FindingLimits:
-    """Thresholds for findings (all percent).
-
-    Attributes
-    ----------
-    loading_warn_pct : float
-        Warn when a phase's RMS loading passes this [%] (common practice:
-        keep headroom below 80 % of the rating).
-    deviation_warn_pct : float
-        Warn when phase RMS currents deviate more than this from their mean
-        [%] (common practice rule of thumb, not a code requirement).
-    nonlinear_major_pct : float
-        Share of non-linear load above which the neutral counts as a
-        current-carrying conductor [%] (NEC 310.15(E): "major portion",
-        published; "major" read as more than half).
-    vuf_warn_pct : float
-        Voltage unbalance warning [%] (EN 50160, published; IEC 61000-2-2,
-        from memory: 2 %).
-    vuf_limit_pct : float
-        Line-voltage unbalance limit [%], on the largest deviation of the
-        line-voltage magnitudes from their mean (the NEMA definition, which
-        ANSI C84.1 also uses): 3 % at the meter, no load (published,
-        secondary). Not compared with the VUF, which is a different figure.
-    motor_unbalance_pct : float
-        NEMA percent unbalance above which motors derate [%] (NEMA MG 1: 1 %,
-        published).
-    drop_warn_pct : float
-        Voltage drop at the panel worth a note [%] (NEC informational
-        notes: 3 % on a feeder, 5 % feeder plus branch; from memory).
-    readings_mismatch_pct : float
-        Measured vs computed current difference worth a warning [%]
-        (common practice for clamp readings against a schedule).
-    """
-
-    loading_warn_pct: float = 80.0
-    deviation_warn_pct: float = 10.0
-    nonlinear_major_pct: float = 50.0
-    vuf_warn_pct: float = 2.0
-    vuf_limit_pct: float = 3.0
-    motor_unbalance_pct: float = 1.0
-    drop_warn_pct: float = 3.0
-    readings_mismatch_pct: float = 25.0
+__all__ = [
+    "LOCAL",
+    "FindingLimits",
+    "breaker_findings",
+    "calculated_load_a",
+    "circuit_calculated_a",
+    "continuous_weights",
+    "loading_findings",
+    "loading_pct",
+    "neutral_calculated_load_a",
+    "scheduled_current_a",
+    "sizing_clauses",
+    "sizing_sources",
+]
 
 
 def loading_pct(current_a: np.ndarray, rating_a: float) -> np.ndarray:
@@ -99,42 +88,197 @@ def loading_pct(current_a: np.ndarray, rating_a: float) -> np.ndarray:
 
 
 def continuous_weights(continuous: np.ndarray, factor: float) -> np.ndarray:
-    """Multiplier on each circuit for the sizing check.
+    """Multiplier on each circuit for the sizing rule.
 
     Parameters
     ----------
     continuous : bool ndarray, shape (..., n)
         Continuous loads (3 h or more).
     factor : float
-        Continuous factor [-] (1.25 common North American practice [1]).
+        Continuous factor [-] (1.25, :data:`tri.engine.limits.CONTINUOUS_FACTOR`).
 
     Returns
     -------
     float ndarray, shape (..., n)
         ``factor`` on continuous rows, 1 elsewhere [-].
+    """
+    return np.where(np.asarray(continuous, dtype=bool), np.asarray(factor, dtype=float), 1.0)
+
+
+def scheduled_current_a(circuits: CircuitArrays, v_ln: float | np.ndarray) -> np.ndarray:
+    """Each circuit's line current from its scheduled load at nominal voltage [A].
+
+    Parameters
+    ----------
+    circuits : CircuitArrays
+        Shape (..., n).
+    v_ln : float or ndarray broadcasting against shape (..., n)
+        Nominal line-to-neutral voltage [V] (``v_ll/√3`` on a 3-wire system).
+
+    Returns
+    -------
+    ndarray, shape (..., n)
+        ``|S|/V_LN`` (1 pole), ``|S|/V_LL`` (2 poles), ``|S|/(√3·V_LL)``
+        (3 poles), 0 unplaced [A], with ``V_LL = √3·V_LN``, the magnitude of
+        the engine's nominal ``V_A − V_B`` (so a load given in amperes comes
+        back unchanged): the load as the schedule states it, the figure the
+        code's calculations use (nameplate loads, nominal voltage), without
+        the harmonic profile and whatever ``--iterate``.
+    """
+    ln, ll, tp = connection_masks(circuits)
+    v = np.asarray(v_ln, dtype=float)
+    v_ll = np.sqrt(3.0) * v
+    volts = np.where(ln, v, np.where(ll, v_ll, np.sqrt(3.0) * v_ll))
+    s = np.abs(np.asarray(circuits.s_va, dtype=complex))
+    return np.where(ln | ll | tp, s / volts, 0.0)
+
+
+def circuit_calculated_a(
+    circuits: CircuitArrays, factor: float | np.ndarray, v_ln: float | np.ndarray
+) -> np.ndarray:
+    """Each circuit's calculated load for its breaker: continuous ones at the factor.
+
+    Parameters
+    ----------
+    circuits : CircuitArrays
+        Shape (..., n).
+    factor : float
+        Continuous factor [-].
+    v_ln : float
+        Nominal line-to-neutral voltage [V] (:func:`scheduled_current_a`).
+
+    Returns
+    -------
+    ndarray, shape (..., n)
+        ``factor·I`` for continuous circuits, ``I`` otherwise, with ``I`` the
+        scheduled line current [A] (NEC 210.20(A): a circuit is either
+        continuous or not, so its "noncontinuous plus 125 % of continuous" is
+        one of the two).
+    """
+    weights = continuous_weights(circuits.continuous, factor)
+    return weights * scheduled_current_a(circuits, v_ln)
+
+
+def calculated_load_a(circuits: CircuitArrays, factor: float, v_ln: float) -> np.ndarray:
+    """The code's calculated load on each phase [A].
+
+    Parameters
+    ----------
+    circuits : CircuitArrays
+        Shape (..., n).
+    factor : float
+        Continuous factor [-].
+    v_ln : float
+        Nominal line-to-neutral voltage [V] (``v_ll/√3`` on a 3-wire system).
+
+    Returns
+    -------
+    ndarray, shape (..., 3)
+        ``Σ_c w_c·VA_c,p / V_LN`` [A]: the scheduled VA on each phase, with
+        ``w_c`` the continuous factor on continuous circuits and 1 on the
+        others.
 
     Notes
     -----
-    The sizing current of a phase is the RMS of the phasor sum with every
-    continuous circuit's current scaled by the factor: the phasor form of
-    "non-continuous load plus 125 % of continuous load" [1].
+    The code's load calculation adds VA per phase (NEC Article 220), as a
+    panel schedule does: all of a 1-pole circuit's VA on its phase, half of
+    a 2-pole's on each of its two, a third of a 3-pole's on each
+    (:func:`tri.engine.phasors.schedule_va`); dividing by ``V_LN`` gives
+    amperes. For a circuit of scheduled line current ``I`` that is ``I`` (1
+    pole; 3 poles on a wye, ``√3·V_LL·I/3/V_LN = I``) and ``I·V_LL/(2·V_LN)``
+    for 2 poles (``√3/2·I`` on a wye). Loads add arithmetically, as the
+    code's calculation does; the physical current (phasors, harmonics) is
+    the RMS phase current, judged separately against the rating.
     """
-    return np.where(np.asarray(continuous, dtype=bool), float(factor), 1.0)
+    weights = continuous_weights(circuits.continuous, factor)
+    weighted = replace(circuits, s_va=np.asarray(circuits.s_va) * weights)
+    return schedule_va(weighted) / float(v_ln)
 
 
-def _fmt(x: float, digits: int = 1) -> str:
-    return f"{x:.{digits}f}"
+def neutral_calculated_load_a(circuits: CircuitArrays, v_ln: float) -> np.ndarray:
+    """The neutral load of the code's calculation: the maximum unbalanced load [A].
+
+    Parameters
+    ----------
+    circuits : CircuitArrays
+        Shape (..., n).
+    v_ln : float
+        Nominal line-to-neutral voltage [V].
+
+    Returns
+    -------
+    ndarray, shape (...)
+        ``max_p Σ_{1-pole c on p} |S_c| / V_LN`` [A]: the largest scheduled
+        line-to-neutral load on any one phase, at 100 % (NEC 220.61(A); a
+        neutral not connected to an overcurrent device takes no 125 %,
+        215.2(A)(1) Exception No. 2). 2- and 3-pole circuits put no load on
+        the neutral.
+    """
+    ln, _, _ = connection_masks(circuits)
+    line_to_neutral = replace(circuits, s_va=np.where(ln, np.asarray(circuits.s_va), 0.0))
+    return np.max(schedule_va(line_to_neutral), axis=-1) / float(v_ln)
 
 
-def panel_findings(a: PanelAnalysis, limits: FindingLimits) -> list[Finding]:
-    """Findings on loading, neutral and current balance of one panel.
+def calculation_words(factor: float) -> str:
+    """What the calculated load is, in words, for a continuous factor [-]."""
+    if factor == 1.0:
+        return "no continuous-load factor"
+    return f"noncontinuous plus {factor * 100:g} % of continuous"
+
+
+def sizing_sources(frequency_hz: float, has_main: bool, factor: float) -> tuple[str, str]:
+    """Sources of the sizing rule against the panel and against a branch breaker.
+
+    Parameters
+    ----------
+    frequency_hz : float
+        System frequency [Hz] (:func:`tri.engine.limits.practice_for`).
+    has_main : bool
+        The panel has a main breaker (else its bus is judged, 408.30).
+    factor : float
+        Continuous factor [-]: a factor other than 1 is the NEC's rule,
+        whatever the frequency.
+
+    Returns
+    -------
+    panel, branch : str
+        Source texts with their tags: IEC 60364-4-43 on an IEC-practice
+        panel without a continuous factor, the NEC's clauses otherwise.
+    """
+    if practice_for(frequency_hz) == IEC and factor == 1.0:
+        return SRC_IEC_SIZING, SRC_IEC_SIZING
+    return (SRC_SIZING_MAIN if has_main else SRC_SIZING_BUS), SRC_BRANCH
+
+
+def sizing_clauses(frequency_hz: float, has_main: bool, factor: float) -> tuple[str, str]:
+    """Short names of :func:`sizing_sources`' clauses (panel, branch), for summaries."""
+    if practice_for(frequency_hz) == IEC and factor == 1.0:
+        return CLAUSE_IEC_SIZING, CLAUSE_IEC_SIZING
+    return (CLAUSE_SIZING_MAIN if has_main else CLAUSE_SIZING_BUS), CLAUSE_BRANCH
+
+
+def _and(items: list[str]) -> str:
+    return items[0] if len(items) == 1 else ", ".join(items[:-1]) + " and " + items[-1]
+
+
+def _lead(labels: list[str], figures: list[str]) -> str:
+    """``"Phase A 202.7 A"`` or ``"Phases A and B 204.5 A and 176.7 A"`` (figure first,
+    so a one-line view keeps it)."""
+    word = "Phase" if len(labels) == 1 else "Phases"
+    return f"{word} {_and(labels)} {_and(figures)}"
+
+
+def loading_findings(a: PanelAnalysis, ratings: Ratings, limits: FindingLimits) -> list[Finding]:
+    """Findings on the phases' current and the code's sizing rule.
 
     Parameters
     ----------
     a : PanelAnalysis
         The panel's figures (``findings`` not used).
+    ratings : Ratings
+        Bus and main [A] (which one ``a.rating_a`` is, and 408.36).
     limits : FindingLimits
-        Thresholds.
+        ``headroom_pct``.
 
     Returns
     -------
@@ -142,228 +286,106 @@ def panel_findings(a: PanelAnalysis, limits: FindingLimits) -> list[Finding]:
     """
     out: list[Finding] = []
     rating = a.rating_a
-    cf = a.continuous_factor
-    for ph in a.phases:
-        if ph.loading_pct > 100.0:
+    what = "main" if ratings.main_a is not None else "bus (no main)"
+    over = [p for p in a.phases if exceeds(p.loading_pct, RATING_PCT)]
+    if over:
+        lead = _lead(
+            [p.label for p in over], [f"{p.rms_a:.1f} A ({p.loading_pct:.1f} %)" for p in over]
+        )
+        out.append(
+            Finding(
+                "limit",
+                f"{lead} RMS, over the {rating:g} A rating of the {what}.",
+                f"{SRC_EQUIPMENT_RATING}; {LOCAL}",
+            )
+        )
+    sizing = [p for p in a.phases if exceeds(p.calculated_pct, RATING_PCT)]
+    if sizing:
+        lead = _lead(
+            [p.label for p in sizing],
+            [f"{p.calculated_a:.1f} A ({p.calculated_pct:.1f} %)" for p in sizing],
+        )
+        source, _ = sizing_sources(a.frequency_hz, ratings.main_a is not None, a.continuous_factor)
+        out.append(
+            Finding(
+                "limit",
+                f"{lead} calculated load, over the {rating:g} A rating of the {what} "
+                f"({calculation_words(a.continuous_factor)}).",
+                f"{source}; {LOCAL}",
+            )
+        )
+    if ratings.main_a is not None and ratings.main_a > ratings.bus_a:
+        out.append(
+            Finding(
+                "limit",
+                f"The {ratings.main_a:g} A main is rated above the {ratings.bus_a:g} A bus.",
+                f"{SRC_MAIN_ABOVE_BUS}; {LOCAL}",
+            )
+        )
+        bus_over = [p for p in a.phases if exceeds(p.calculated_a, ratings.bus_a)]
+        if bus_over:
+            lead = _lead([p.label for p in bus_over], [f"{p.calculated_a:.1f} A" for p in bus_over])
             out.append(
                 Finding(
                     "limit",
-                    f"Phase {ph.label} carries {_fmt(ph.rms_a)} A RMS, "
-                    f"{_fmt(ph.loading_pct)} % of the {rating:g} A rating.",
-                    f"equipment rating (common practice); {LOCAL}",
+                    f"{lead} calculated load, over the {ratings.bus_a:g} A rating of the bus.",
+                    f"{SRC_SIZING_BUS}; {LOCAL}",
                 )
             )
-        elif ph.design_loading_pct > 100.0:
-            out.append(
-                Finding(
-                    "limit",
-                    f"Phase {ph.label}: with continuous loads at {cf * 100:g} % it needs "
-                    f"{_fmt(ph.design_a)} A, {_fmt(ph.design_loading_pct)} % of the "
-                    f"{rating:g} A rating.",
-                    "NEC 210.20(A), 215.2(A), 230.42(A): continuous load at 125 % "
-                    f"(from memory); {LOCAL}",
-                )
-            )
-        elif ph.loading_pct > limits.loading_warn_pct:
-            out.append(
-                Finding(
-                    "warning",
-                    f"Phase {ph.label} is at {_fmt(ph.loading_pct)} % of the {rating:g} A "
-                    f"rating; little headroom for added load.",
-                    f"common practice ({limits.loading_warn_pct:g} % headroom rule); {LOCAL}",
-                )
-            )
-
-    n = a.neutral
-    if n.present:
-        if n.loading_pct is not None and n.loading_pct > 100.0:
-            out.append(
-                Finding(
-                    "limit",
-                    f"Neutral carries {_fmt(n.rms_a)} A RMS, {_fmt(n.loading_pct)} % of its "
-                    f"{n.rating_a:g} A rating.",
-                    f"equipment rating (common practice); {LOCAL}",
-                )
-            )
-        max_phase = max(p.rms_a for p in a.phases)
-        if max_phase > 0 and n.rms_a > max_phase * (1 + 1e-9):
-            out.append(
-                Finding(
-                    "warning",
-                    f"Neutral RMS {_fmt(n.rms_a)} A exceeds the largest phase current "
-                    f"({_fmt(max_phase)} A, ratio {n.ratio_to_max_phase:.2f}): triplen "
-                    "harmonics add in the neutral.",
-                    "common practice; Dugan et al., Electrical Power Systems Quality, "
-                    "ch. 5 (from memory); " + LOCAL,
-                )
-            )
-        if a.nonlinear_share_pct > limits.nonlinear_major_pct:
-            out.append(
-                Finding(
-                    "warning",
-                    f"{_fmt(a.nonlinear_share_pct, 0)} % of the connected load is non-linear: "
-                    "count the neutral as a current-carrying conductor when adjusting "
-                    "ampacity.",
-                    "NEC 310.15(E) (310.15(B)(5) in earlier editions), 4-wire wye with a major "
-                    f"portion of non-linear load (published); {LOCAL}",
-                )
-            )
-
-    cu = a.current_unbalance
-    if cu.max_deviation_pct > limits.deviation_warn_pct:
-        rms = np.array([p.rms_a for p in a.phases])
-        worst = a.phases[int(np.argmax(np.abs(rms - rms.mean())))]
+    near = [p for p in a.phases if loading_word(p.loading_pct, limits.headroom_pct) == NEAR]
+    if near:
+        lead = _lead([p.label for p in near], [f"{p.loading_pct:.1f} %" for p in near])
         out.append(
             Finding(
                 "warning",
-                f"Phase currents deviate up to {_fmt(cu.max_deviation_pct)} % from their mean "
-                f"(phase {worst.label} furthest, {_fmt(worst.rms_a)} A); negative-sequence "
-                f"current {_fmt(cu.negative_sequence_pct)} % of positive.",
-                f"common practice (about {limits.deviation_warn_pct:g} %; a rule of thumb, not "
-                f"a code requirement); {LOCAL}",
-            )
-        )
-
-    if a.unplaced_count:
-        out.append(
-            Finding(
-                "info",
-                f"{a.unplaced_count} circuit(s) not placed on a phase are left out of the "
-                "phase figures.",
-                "tri schedule convention",
+                f"{lead} of the {rating:g} A rating of the {what}, above the "
+                f"{limits.headroom_pct:g} % design "
+                "headroom; little room for added load.",
+                f"design headroom of {limits.headroom_pct:g} % (common practice; a margin, "
+                f"not a code rule); {LOCAL}",
             )
         )
     return out
 
 
-def three_pole_triplen_finding() -> Finding:
-    """Info finding: 3-pole circuits' triplen harmonics were removed."""
-    return Finding(
-        "info",
-        "Triplen harmonics (3rd, 9th, …) of 3-pole circuits were left out: a 3-wire load "
-        "cannot draw zero-sequence current without a neutral.",
-        "circuit theory (zero-sequence current needs a return path); "
-        "Dugan et al., ch. 5 (from memory)",
-    )
-
-
-def voltage_findings(a: PanelAnalysis, limits: FindingLimits) -> list[Finding]:
-    """Findings on the computed panel voltages (none without a supply).
+def breaker_findings(
+    a: PanelAnalysis,
+    breaker_a: np.ndarray,
+    continuous: np.ndarray,
+    circuit_labels: tuple[str, ...],
+) -> list[Finding]:
+    """Circuits whose calculated load is over their breaker (NEC 210.20(A)).
 
     Parameters
     ----------
     a : PanelAnalysis
-        Figures with ``voltage`` set.
-    limits : FindingLimits
-        Thresholds.
+        ``circuit_calculated_a``, ``continuous_factor``.
+    breaker_a : ndarray, shape (n,)
+        Breaker ratings [A]; NaN where none is given.
+    continuous : bool ndarray, shape (n,)
+        Continuous circuits.
+    circuit_labels : tuple of str
+        How messages name each circuit (slot or phases, and name).
 
     Returns
     -------
     list of Finding
-    """
-    v = a.voltage
-    if v is None:
-        return []
-    out: list[Finding] = []
-    out.extend(unbalance_findings(v.vuf_pct, v.line_deviation_pct, v.motor_derating, limits, ""))
-    worst = max(v.drop_pct)
-    if worst > limits.drop_warn_pct:
-        label = a.phase_labels[int(np.argmax(v.drop_pct))]
-        out.append(
-            Finding(
-                "info",
-                f"Voltage at the panel is {_fmt(worst)} % below nominal on phase {label} "
-                "(transformer and feeder).",
-                "NEC informational notes to 210.19(A) and 215.2(A): 3 % feeder, 5 % total "
-                f"(from memory; advisory); {LOCAL}",
-            )
-        )
-    if v.iterated:
-        if v.converged:
-            out.append(
-                Finding(
-                    "info",
-                    f"Currents solved at the panel voltage with constant-power loads "
-                    f"({v.iterations} iterations).",
-                    "tri engine option (iterated load flow)",
-                )
-            )
-        else:
-            out.append(
-                Finding(
-                    "warning",
-                    f"The constant-power voltage iteration did not converge in {v.iterations} "
-                    "iterations; voltages are unreliable (supply impedance too high?).",
-                    "tri engine option (iterated load flow)",
-                )
-            )
-    return out
-
-
-def unbalance_findings(
-    vuf: float | None,
-    line_dev: float | None,
-    derating: float | None,
-    limits: FindingLimits,
-    prefix: str,
-) -> list[Finding]:
-    """Findings for a voltage unbalance (computed or measured).
-
-    Parameters
-    ----------
-    vuf : float or None
-        IEC voltage unbalance factor [%].
-    line_dev : float or None
-        NEMA percent unbalance of the line voltages [%].
-    derating : float or None
-        NEMA MG 1 derating factor [-], None above 5 %.
-    limits : FindingLimits
-        Thresholds.
-    prefix : str
-        ``""`` or e.g. ``"Measured "`` to start the message.
-
-    Returns
-    -------
-    list of Finding
+        One limit per circuit over its breaker (equal passes).
     """
     out: list[Finding] = []
-    what = f"{prefix}voltage unbalance" if prefix else "Voltage unbalance"
-    if vuf is not None and vuf > limits.vuf_warn_pct:
-        out.append(
-            Finding(
-                "warning",
-                f"{what} (VUF) {vuf:.2f} % exceeds {limits.vuf_warn_pct:g} %.",
-                "EN 50160, 2 % (published); IEC 61000-2-2 compatibility level 2 % "
-                f"(from memory); {LOCAL}",
-            )
-        )
-    if line_dev is not None and line_dev > limits.vuf_limit_pct:
+    cf = a.continuous_factor
+    _, source = sizing_sources(a.frequency_hz, True, cf)
+    for k, rating in enumerate(np.asarray(breaker_a, dtype=float)):
+        need = a.circuit_calculated_a[k]
+        if not np.isfinite(rating) or not exceeds(need, rating):
+            continue
+        cont = bool(continuous[k]) and cf != 1.0
+        how = f" (continuous {need / cf:.1f} A at {cf * 100:g} %)" if cont else ""
         out.append(
             Finding(
                 "limit",
-                f"{what} {line_dev:.2f} % (largest deviation of the line voltages from "
-                f"their mean) exceeds {limits.vuf_limit_pct:g} %.",
-                f"ANSI C84.1, 3 % at the meter under no load (published, secondary); {LOCAL}",
+                f"{circuit_labels[k]}: {need:.1f} A over its {rating:g} A breaker{how}.",
+                f"{source}; {LOCAL}",
             )
         )
-    if line_dev is not None and line_dev > limits.motor_unbalance_pct:
-        if derating is None:
-            out.append(
-                Finding(
-                    "limit",
-                    f"{what} {line_dev:.2f} % (NEMA definition) is above 5 %: operating "
-                    "motors is not recommended.",
-                    f"NEMA MG 1 Part 14 (published); {LOCAL}",
-                )
-            )
-        else:
-            out.append(
-                Finding(
-                    "warning",
-                    f"{what} {line_dev:.2f} % (NEMA definition) is above "
-                    f"{limits.motor_unbalance_pct:g} %: derate 3-phase motors to "
-                    f"{derating:.2f} of rated load.",
-                    f"NEMA MG 1 Part 14 derating curve (published); {LOCAL}",
-                )
-            )
     return out

@@ -22,9 +22,10 @@ import math
 import numpy as np
 
 from tri.engine.inputs import MeasuredReadings
-from tri.engine.loading import LOCAL, FindingLimits, unbalance_findings
+from tri.engine.limits import LOCAL, FindingLimits
 from tri.engine.results import Finding, PanelAnalysis, PhaseReading, ReadingsComparison
 from tri.engine.unbalance import deviation_rate_pct, nema_derating, vuf_from_line_magnitudes
+from tri.engine.unbalance_findings import unbalance_findings
 
 
 def _all(values: tuple[float | None, ...]) -> bool:
@@ -202,7 +203,9 @@ def compare_readings(
             line_dev = float(deviation_rate_pct(np.array(u)))
             d = float(nema_derating(line_dev))
             derating = None if math.isnan(d) else d
-            out.extend(unbalance_findings(vuf, line_dev, derating, limits, "Measured "))
+            out.extend(
+                unbalance_findings(vuf, line_dev, derating, limits, "Measured ", measured=True)
+            )
         else:
             out.append(
                 Finding(

@@ -91,6 +91,16 @@ class PhaseResult:
         factor (the sizing check) [A].
     design_loading_pct : float
         ``design_a`` / main rating [%].
+    calculated_a : float
+        The code's calculated load on the phase: the scheduled noncontinuous
+        load plus the continuous factor times the scheduled continuous load,
+        added as panel schedules add it (all of each 1-pole circuit's VA,
+        half of each 2-pole's, a third of each 3-pole's, over ``V_LN``) [A].
+        For 1- and 3-pole circuits that is their line current; for a 2-pole
+        circuit ``I·V_LL/(2·V_LN)``. Harmonics and ``--iterate`` do not
+        change it (see :func:`tri.engine.loading.calculated_load_a`).
+    calculated_pct : float
+        ``calculated_a`` / main rating (bus without a main) [%].
     harmonic_a : tuple of float
         Magnitude at each order of ``PanelAnalysis.orders`` [A].
     """
@@ -103,6 +113,8 @@ class PhaseResult:
     loading_pct: float
     design_a: float
     design_loading_pct: float
+    calculated_a: float
+    calculated_pct: float
     harmonic_a: tuple[float, ...]
 
     @property
@@ -137,6 +149,10 @@ class NeutralResult:
         ``rms_a`` / the largest phase ``rms_a`` [-] (0 with no load).
     harmonic_a : tuple of float
         Magnitude at each order of ``PanelAnalysis.orders`` [A].
+    calculated_a : float or None
+        The neutral load of the code's calculation: the maximum unbalanced
+        load, the largest scheduled line-to-neutral load on any one phase,
+        at 100 % (NEC 220.61) [A]; None on a 3-wire system.
     """
 
     present: bool
@@ -146,6 +162,7 @@ class NeutralResult:
     loading_pct: float | None
     ratio_to_max_phase: float
     harmonic_a: tuple[float, ...]
+    calculated_a: float | None = None
 
     @property
     def current_a(self) -> float:
@@ -188,12 +205,16 @@ class CurrentUnbalance:
         percent of the mean (what a clamp meter shows) [%].
     max_deviation_fundamental_pct : float
         The same on the fundamental magnitudes [%].
+    max_minus_min_pct : float
+        ``(max − min) / mean`` of the phase RMS currents, the figure many
+        meters show (about twice the deviation from the mean) [%].
     """
 
     negative_sequence_pct: float
     zero_sequence_pct: float
     max_deviation_pct: float
     max_deviation_fundamental_pct: float
+    max_minus_min_pct: float = 0.0
 
 
 @dataclass(frozen=True)
@@ -358,6 +379,14 @@ class PanelAnalysis:
         [%].
     unplaced_count : int
         Circuit rows not on any phase (left out of every figure).
+    nonlinear_ln_share_pct : float
+        Share of the placed connected VA on line-to-neutral circuits with a
+        harmonic profile [%]: the non-linear load whose harmonics reach the
+        neutral (a 3-wire load's cannot).
+    circuit_calculated_a : tuple of float
+        Each circuit's calculated load: its scheduled line current at nominal
+        voltage, times the continuous factor when continuous [A] (0 for
+        unplaced rows).
     """
 
     phase_labels: tuple[str, str, str]
@@ -379,6 +408,8 @@ class PanelAnalysis:
     circuit_rms_a: tuple[float, ...]
     nonlinear_share_pct: float
     unplaced_count: int
+    nonlinear_ln_share_pct: float = 0.0
+    circuit_calculated_a: tuple[float, ...] = ()
 
     def phase(self, label: str) -> PhaseResult:
         """The phase with this label.
@@ -411,6 +442,9 @@ class BatchAnalysis:
         [A], [%], [%].
     phase_design_a, phase_design_loading_pct : ndarray, shape (B..., 3)
         With continuous loads at the continuous factor [A], [%].
+    phase_calculated_a, phase_calculated_pct : ndarray, shape (B..., 3)
+        The code's calculated load per phase (``PhaseResult.calculated_a``)
+        [A], [%].
     neutral_spectrum : complex ndarray, shape (B..., H)
         Neutral current at each order [A].
     neutral_rms_a : ndarray, shape (B...)
@@ -430,6 +464,12 @@ class BatchAnalysis:
     unplaced_count : int ndarray, shape (B...)
     three_pole_triplens : bool ndarray, shape (B...)
         True where a 3-pole circuit's profile had triplen orders (removed).
+    neutral_calculated_a : ndarray, shape (B...)
+        Maximum unbalanced load (``NeutralResult.calculated_a``) [A].
+    circuit_calculated_a : ndarray, shape (B..., n)
+        Per circuit row, continuous ones at the factor [A].
+    nonlinear_ln_share_pct, max_minus_min_pct : ndarray, shape (B...)
+        [%], [%].
     v_phase, v_line : complex ndarray, shape (B..., 3) or None
         Panel voltages [V]; None without a supply.
     vuf_pct, line_deviation_pct, phase_deviation_pct, motor_derating : ndarray or None
@@ -459,6 +499,12 @@ class BatchAnalysis:
     nonlinear_share_pct: np.ndarray
     unplaced_count: np.ndarray
     three_pole_triplens: np.ndarray
+    phase_calculated_a: np.ndarray
+    phase_calculated_pct: np.ndarray
+    neutral_calculated_a: np.ndarray
+    circuit_calculated_a: np.ndarray
+    nonlinear_ln_share_pct: np.ndarray
+    max_minus_min_pct: np.ndarray
     v_phase: np.ndarray | None = None
     v_line: np.ndarray | None = None
     vuf_pct: np.ndarray | None = None

@@ -1,30 +1,34 @@
-"""Pass/fail limits for ``tri check``: which limits, their default values and sources.
+"""Pass/fail limits for ``tri check``: which limits, their defaults and sources.
 
 Each limit compares one figure of the report (:func:`tri.report.data.report_data`)
-with a maximum; a value equal to the maximum passes.
+with a maximum; a value equal to the maximum passes. Defaults and sources
+come from :mod:`tri.engine.limits` (the findings, the report and the UI use
+the same ones).
 
-==================  =========================================  ===========  ====================
-limit (option)      figure                                     default      source of the default
-==================  =========================================  ===========  ====================
-deviation           largest deviation of a phase RMS current   10 %         common practice
-(--max-deviation)   from the mean of the three, % of the mean
-vuf (--max-vuf)     voltage unbalance factor ``|V2|/|V1|`` of  2 %          EN 50160 (published),
-                    the line voltages: computed at the panel                IEC 61000-2-2 (from
-                    from ``[supply]``, and measured from                    memory)
-                    ``[readings]`` line voltages (each checked;
-                    skipped when neither exists)
-neutral             neutral RMS current, % of its rating       100 %        equipment rating
-(--max-neutral-pct) (skipped on a 3-wire system)                            (common practice)
-loading             largest phase RMS current, % of the main   80 %         common practice;
-(--max-loading-pct) breaker (bus rating without a main)                     NEC 210.20(A),
-                                                                            215.2(A), 230.42(A)
-                                                                            (from memory)
-==================  =========================================  ===========  ====================
+===========  ========================================================  ========
+limit        figure                                                     default
+===========  ========================================================  ========
+deviation    largest ``|I − mean| / mean`` of the phase RMS currents    10 %
+             (NEMA definition); over the limit, not judged (skipped)
+             when the heaviest phase is below ``--light-load-pct``
+             (20 %) of the rating
+vuf          ``|V2|/|V1|`` of the line voltages, computed (``[supply]``)  2 %
+             and measured (``[readings]``); EN 50160's 2 % is a weekly
+             statistic at the supply terminals, so both are indicative
+neutral      neutral RMS current, % of its rating                       100 %
+loading      the code's sizing rule: calculated load (noncontinuous     100 %
+             plus 125 % of continuous, scheduled VA per phase) of the
+             heaviest phase, % of the main (bus without a main)
+current      largest phase RMS current, % of the main (bus); set 80     100 %
+             for the usual design headroom (not a code rule)
+breakers     largest circuit calculated load, % of its breaker          100 %
+             (NEC 210.20(A)); skipped when no circuit has ``breaker_a``
+phase-kva    largest minus smallest scheduled phase apparent power      off
+             [kVA] (some grid operators cap it, e.g. 4.6 kVA)
+===========  ========================================================  ========
 
-The 80 % loading limit is the everyday form of the continuous-load rule
-(continuous load at 125 % within the rating, i.e. at most 80 % of it);
-judged on the whole RMS current it is the stricter reading, so a panel that
-passes it also passes the 125 % sizing check.
+A PASS is a promise only about what is listed; :data:`NOT_CHECKED` says
+what is not. The text rendering is :mod:`tri.report.check_text`.
 """
 
 from __future__ import annotations
@@ -32,7 +36,37 @@ from __future__ import annotations
 from dataclasses import asdict, dataclass
 from typing import Any, Literal
 
+from tri.engine.limits import (
+    DEVIATION_TARGET_PCT,
+    FAIL,
+    LIGHT_LOAD_PCT,
+    PASS,
+    PHASE_KVA_EXAMPLE,
+    RATING_PCT,
+    SKIPPED,
+    SRC_BRANCH,
+    SRC_DEVIATION,
+    SRC_EN50160,
+    SRC_EQUIPMENT_RATING,
+    SRC_IEC_SIZING,
+    SRC_LIGHT_LOAD,
+    SRC_PHASE_KVA,
+    SRC_SIZING_BUS,
+    SRC_SIZING_MAIN,
+    VUF_PCT,
+    exceeds,
+)
+
 Status = Literal["pass", "fail", "skipped"]
+
+#: What ``tri check`` does not look at: a PASS says nothing about these.
+NOT_CHECKED = (
+    "conductor ampacity, terminal ratings and adjustment factors; Article 220 demand "
+    "factors (the calculated load is the scheduled load); equipment listed for 100 % "
+    "operation (set --continuous-factor 1); available fault current, breaker interrupting "
+    "ratings and coordination; harmonic voltage distortion; loads missing from the "
+    "schedule"
+)
 
 
 @dataclass(frozen=True)
@@ -42,57 +76,98 @@ class Limit:
     Attributes
     ----------
     key : str
-        Stable id (``deviation``, ``vuf``, ``neutral``, ``loading``).
+        Stable id (``deviation``, ``vuf``, ``neutral``, ``loading``,
+        ``current``, ``breakers``, ``phase-kva``).
     option : str
         Command-line option that sets it.
     title : str
         What is checked, in words.
-    default_pct : float
-        Default maximum [%].
+    default : float or None
+        Default maximum [``unit``]; None: not checked unless set.
+    unit : str
+        ``"%"`` or ``"kVA"``.
     source : str
-        Where the default comes from, with its tag (published / from memory /
-        common practice).
+        Where the default comes from, with its tag.
     """
 
     key: str
     option: str
     title: str
-    default_pct: float
+    default: float | None
+    unit: str
     source: str
+
+    @property
+    def default_text(self) -> str:
+        """The default as printed (``"10 %"``, ``"off"``)."""
+        return "off" if self.default is None else f"{self.default:g} {self.unit}"
 
 
 LIMITS: tuple[Limit, ...] = (
     Limit(
         "deviation",
         "--max-deviation",
-        "largest deviation of a phase RMS current from the mean of the three, % of the mean",
-        10.0,
-        "common practice: about 10 % of the phase mean is a usual balancing target "
-        "(a rule of thumb, not a code requirement)",
+        "largest deviation of a phase RMS current from the mean of the three, % of the "
+        "mean (|I - mean| / mean, the NEMA definition; (max - min) / mean is 1.5 to 2 times "
+        "larger); not judged below the light-load threshold",
+        DEVIATION_TARGET_PCT,
+        "%",
+        f"{SRC_DEVIATION}; light load: {SRC_LIGHT_LOAD}",
     ),
     Limit(
         "vuf",
         "--max-vuf",
         "voltage unbalance factor |V2|/|V1| of the line voltages, computed at the panel from "
-        "[supply] and measured from [readings] line voltages (skipped without either)",
-        2.0,
-        "EN 50160, 2 % for 95 % of 10-minute values over a week (published); "
-        "IEC 61000-2-2 compatibility level 2 % (from memory)",
+        "[supply] and measured from [readings] line voltages (skipped without either); "
+        "indicative, as EN 50160's limit is a weekly statistic at the supply terminals",
+        VUF_PCT,
+        "%",
+        SRC_EN50160,
     ),
     Limit(
         "neutral",
         "--max-neutral-pct",
         "neutral RMS current, % of the neutral rating (skipped on a 3-wire system)",
-        100.0,
+        RATING_PCT,
+        "%",
         "the neutral's own rating (equipment rating, common practice)",
     ),
     Limit(
         "loading",
         "--max-loading-pct",
-        "largest phase RMS current, % of the main breaker (bus rating without a main)",
-        80.0,
-        "common practice: continuous load at most 80 % of the main (bus without one), the "
-        "125 % continuous-load rule of NEC 210.20(A), 215.2(A), 230.42(A) (from memory)",
+        "the sizing rule: calculated load of the heaviest phase (noncontinuous plus the "
+        "continuous factor times continuous, scheduled VA over V_LN), % of the main "
+        "breaker (bus rating without a main)",
+        RATING_PCT,
+        "%",
+        f"60 Hz panels: {SRC_SIZING_MAIN}; without a main {SRC_SIZING_BUS}; 50 Hz panels: "
+        f"{SRC_IEC_SIZING}",
+    ),
+    Limit(
+        "current",
+        "--max-current-pct",
+        "largest phase RMS current, % of the main breaker (bus rating without a main); "
+        "80 is the usual design headroom (a margin, not a code rule)",
+        RATING_PCT,
+        "%",
+        SRC_EQUIPMENT_RATING,
+    ),
+    Limit(
+        "breakers",
+        "--max-breaker-pct",
+        "largest calculated load of a circuit (its scheduled current, times the continuous "
+        "factor when continuous), % of its breaker_a (skipped when no circuit gives one)",
+        RATING_PCT,
+        "%",
+        f"60 Hz panels: {SRC_BRANCH}; 50 Hz panels: {SRC_IEC_SIZING}",
+    ),
+    Limit(
+        "phase-kva",
+        "--max-phase-kva",
+        "largest minus smallest scheduled apparent power of the phases, kVA",
+        None,
+        "kVA",
+        SRC_PHASE_KVA + f" (e.g. --max-phase-kva {PHASE_KVA_EXAMPLE:g})",
     ),
 )
 LIMITS_BY_KEY: dict[str, Limit] = {x.key: x for x in LIMITS}
@@ -108,13 +183,15 @@ class CheckResult:
         Limit id (see :data:`LIMITS`).
     title : str
         What was checked.
-    value_pct : float or None
-        The panel's figure [%]; None when skipped.
-    limit_pct : float
-        The maximum used [%].
+    value : float or None
+        The panel's figure [``unit``]; None when skipped.
+    limit : float or None
+        The maximum used [``unit``]; None when the limit is off.
+    unit : str
+        ``"%"`` or ``"kVA"``.
     status : {"pass", "fail", "skipped"}
     where : str
-        Which phase, or computed / measured, or why it was skipped.
+        Which phase or circuit, or computed / measured, or why it was skipped.
     source : str
         Source of the maximum: the default's source, or the option that set it.
     default : bool
@@ -123,8 +200,9 @@ class CheckResult:
 
     key: str
     title: str
-    value_pct: float | None
-    limit_pct: float
+    value: float | None
+    limit: float | None
+    unit: str
     status: Status
     where: str
     source: str
@@ -132,39 +210,165 @@ class CheckResult:
 
 
 def _result(
-    limit: Limit, maximum: float, value: float | None, where: str, skip: str | None = None
+    limit: Limit,
+    maximum: float | None,
+    value: float | None,
+    where: str,
+    skip: str | None = None,
 ) -> CheckResult:
-    default = maximum == limit.default_pct
+    default = maximum == limit.default
     source = (
         limit.source
         if default
-        else f"set by {limit.option} (default {limit.default_pct:g} %: {limit.source})"
+        else f"set by {limit.option} (default {limit.default_text}: {limit.source})"
     )
-    if skip is not None or value is None:
+    if skip is not None or value is None or maximum is None:
+        why = skip or where
         return CheckResult(
-            limit.key, limit.title, None, maximum, "skipped", skip or where, source, default
+            limit.key, limit.title, None, maximum, limit.unit, SKIPPED, why, source, default
         )
-    status: Status = "pass" if value <= maximum else "fail"
-    return CheckResult(limit.key, limit.title, value, maximum, status, where, source, default)
+    status: Status = FAIL if exceeds(value, maximum) else PASS
+    return CheckResult(
+        limit.key, limit.title, value, maximum, limit.unit, status, where, source, default
+    )
 
 
-def _furthest(data: dict[str, Any]) -> str:
+def _deviation(data: dict[str, Any], m: dict[str, float | None], light: float) -> CheckResult:
+    lim = LIMITS_BY_KEY["deviation"]
     labels = data["phase_order"]
-    rms = [data["phases"][lab]["rms_a"] for lab in labels]
+    ph = data["phases"]
+    cu = data["current_unbalance"]
+    rms = [ph[lab]["rms_a"] for lab in labels]
     mean = sum(rms) / 3.0
     k = max(range(3), key=lambda i: abs(rms[i] - mean))
-    return f"phase {labels[k]} furthest: {rms[k]:.1f} A, mean {mean:.1f} A"
+    where = (
+        f"phase {labels[k]} furthest: {rms[k]:.1f} A, mean {mean:.1f} A; (max - min)/mean "
+        f"{cu['max_minus_min_pct']:.1f} %"
+    )
+    heaviest = max(ph[lab]["loading_pct"] for lab in labels)
+    within = m["deviation"] is not None and not exceeds(cu["max_deviation_pct"], m["deviation"])
+    if heaviest < light and not within:
+        skip = (
+            f"lightly loaded: heaviest phase {heaviest:.1f} % of the rating, below "
+            f"{light:g} % (--light-load-pct); deviation {cu['max_deviation_pct']:.1f} % not "
+            "judged"
+        )
+        return _result(lim, m["deviation"], None, "", skip=skip)
+    return _result(lim, m["deviation"], cu["max_deviation_pct"], where)
 
 
-def evaluate(data: dict[str, Any], maxima: dict[str, float] | None = None) -> list[CheckResult]:
+def _vuf(data: dict[str, Any], maximum: float | None) -> list[CheckResult]:
+    lim = LIMITS_BY_KEY["vuf"]
+    v, r = data["voltage"], data["readings"]
+    rows = []
+    if v is not None:
+        rows.append(_result(lim, maximum, v["vuf_pct"], "computed at the panel from [supply]"))
+    measured = r is not None and any(x is not None for x in r["volts_ll"].values())
+    if measured and all(x is not None for x in r["volts_ll"].values()):
+        if r["vuf_pct"] is None:
+            skip = "measured line voltages cannot close a triangle; check the readings"
+            rows.append(_result(lim, maximum, None, "", skip=skip))
+        else:
+            rows.append(_result(lim, maximum, r["vuf_pct"], "measured line voltages, [readings]"))
+    elif measured:
+        skip = "measured: only some line voltages are in [readings]; VUF needs all three"
+        rows.append(_result(lim, maximum, None, "", skip=skip))
+    if not rows:
+        skip = "no [supply] table and no measured line voltages in [readings]"
+        rows.append(_result(lim, maximum, None, "", skip=skip))
+    return rows
+
+
+def _neutral(data: dict[str, Any], maximum: float | None) -> CheckResult:
+    lim = LIMITS_BY_KEY["neutral"]
+    n = data["neutral"]
+    if not n["present"]:
+        return _result(lim, maximum, None, "", skip="3-wire system: no neutral")
+    where = f"{n['rms_a']:.1f} A RMS of {n['rating_a']:g} A"
+    return _result(lim, maximum, n["loading_pct"], where)
+
+
+def _phase_rows(data: dict[str, Any], m: dict[str, float | None]) -> list[CheckResult]:
+    labels = data["phase_order"]
+    ph = data["phases"]
+    p = data["panel"]
+    of = f"of {p['rating_a']:g} A {p['rating_basis']}"
+    k = max(range(3), key=lambda i: ph[labels[i]]["calculated_pct"])
+    calc = ph[labels[k]]
+    factor = data["basis"]["continuous_factor"]
+    how = "scheduled" if factor == 1 else f"continuous at {factor * 100:g} %"
+    loading = _result(
+        LIMITS_BY_KEY["loading"],
+        m["loading"],
+        calc["calculated_pct"],
+        f"phase {labels[k]}: {calc['calculated_a']:.1f} A calculated ({how}) {of}",
+    )
+    j = max(range(3), key=lambda i: ph[labels[i]]["loading_pct"])
+    cur = ph[labels[j]]
+    current = _result(
+        LIMITS_BY_KEY["current"],
+        m["current"],
+        cur["loading_pct"],
+        f"phase {labels[j]}: {cur['rms_a']:.1f} A RMS {of}",
+    )
+    return [loading, current]
+
+
+def _breakers(data: dict[str, Any], maximum: float | None) -> CheckResult:
+    lim = LIMITS_BY_KEY["breakers"]
+    rated = [c for c in data["circuits"] if c["breaker_a"] is not None and c["placed"]]
+    if not rated:
+        return _result(lim, maximum, None, "", skip="no circuit gives a breaker rating")
+    worst = max(rated, key=lambda c: c["calculated_a"] / c["breaker_a"])
+    pct = 100.0 * worst["calculated_a"] / worst["breaker_a"]
+    where_slot = (
+        f"slot {worst['slot']}" if worst["slot"] is not None else f"phases {worst['phases']}"
+    )
+    over = sum(
+        1 for c in rated if exceeds(100.0 * c["calculated_a"] / c["breaker_a"], maximum or 0.0)
+    )
+    where = (
+        f"{where_slot} {worst['name']!r}: {worst['calculated_a']:.1f} A of "
+        f"{worst['breaker_a']:g} A; {over} of {len(rated)} over"
+    )
+    return _result(lim, maximum, pct, where)
+
+
+def _phase_kva(data: dict[str, Any], maximum: float | None) -> CheckResult:
+    lim = LIMITS_BY_KEY["phase-kva"]
+    if maximum is None:
+        return _result(lim, None, None, "", skip=f"off (set {lim.option} to check)")
+    labels = data["phase_order"]
+    va = {lab: data["phases"][lab]["va"] for lab in labels}
+    hi = max(labels, key=lambda lab: va[lab])
+    lo = min(labels, key=lambda lab: va[lab])
+    gap = (va[hi] - va[lo]) / 1000.0
+    where = f"{hi} {va[hi] / 1000:.2f} kVA, {lo} {va[lo] / 1000:.2f} kVA"
+    return _result(lim, maximum, gap, where)
+
+
+def defaults() -> dict[str, float | None]:
+    """Limit key -> default maximum."""
+    return {x.key: x.default for x in LIMITS}
+
+
+def evaluate(
+    data: dict[str, Any],
+    maxima: dict[str, float | None] | None = None,
+    *,
+    light_load_pct: float = LIGHT_LOAD_PCT,
+) -> list[CheckResult]:
     """Check one panel's report against the limits.
 
     Parameters
     ----------
     data : dict
-        From :func:`tri.report.data.report_data` ([%], [A]).
+        From :func:`tri.report.data.report_data` ([%], [A], [VA]).
     maxima : dict, optional
-        Limit key -> maximum [%]; missing keys use the defaults.
+        Limit key -> maximum [%, or kVA for ``phase-kva``]; missing keys use
+        the defaults.
+    light_load_pct : float
+        Heaviest phase below this share of the rating: deviation not judged [%].
 
     Returns
     -------
@@ -172,181 +376,27 @@ def evaluate(data: dict[str, Any], maxima: dict[str, float] | None = None) -> li
         One per limit in :data:`LIMITS` order; ``vuf`` gives one result for the
         computed and one for the measured unbalance when both exist.
     """
-    m = {x.key: x.default_pct for x in LIMITS}
+    m = defaults()
     m.update(maxima or {})
-    out: list[CheckResult] = []
-
-    lim = LIMITS_BY_KEY["deviation"]
-    out.append(
-        _result(
-            lim, m["deviation"], data["current_unbalance"]["max_deviation_pct"], _furthest(data)
-        )
-    )
-
-    lim = LIMITS_BY_KEY["vuf"]
-    v = data["voltage"]
-    r = data["readings"]
-    vuf_rows = []
-    if v is not None:
-        vuf_rows.append(_result(lim, m["vuf"], v["vuf_pct"], "computed at the panel from [supply]"))
-    if r is not None and all(x is not None for x in r["volts_ll"].values()):
-        if r["vuf_pct"] is None:
-            vuf_rows.append(
-                _result(
-                    lim,
-                    m["vuf"],
-                    None,
-                    "",
-                    skip="measured line voltages cannot close a triangle; check the readings",
-                )
-            )
-        else:
-            vuf_rows.append(
-                _result(lim, m["vuf"], r["vuf_pct"], "measured line voltages, [readings]")
-            )
-    partial = r is not None and any(x is not None for x in r["volts_ll"].values())
-    if partial and not any("measured" in x.where for x in vuf_rows):
-        vuf_rows.append(
-            _result(
-                lim,
-                m["vuf"],
-                None,
-                "",
-                skip="measured: only some line voltages are in [readings]; VUF needs all three",
-            )
-        )
-    if not vuf_rows:
-        vuf_rows.append(
-            _result(
-                lim,
-                m["vuf"],
-                None,
-                "",
-                skip="no [supply] table and no measured line voltages in [readings]",
-            )
-        )
-    out.extend(vuf_rows)
-
-    lim = LIMITS_BY_KEY["neutral"]
-    n = data["neutral"]
-    if n["present"]:
-        out.append(
-            _result(
-                lim,
-                m["neutral"],
-                n["loading_pct"],
-                f"{n['rms_a']:.1f} A RMS of {n['rating_a']:g} A",
-            )
-        )
-    else:
-        out.append(_result(lim, m["neutral"], None, "", skip="3-wire system: no neutral"))
-
-    lim = LIMITS_BY_KEY["loading"]
-    labels = data["phase_order"]
-    k = max(range(3), key=lambda i: data["phases"][labels[i]]["loading_pct"])
-    ph = data["phases"][labels[k]]
-    p = data["panel"]
-    out.append(
-        _result(
-            lim,
-            m["loading"],
-            ph["loading_pct"],
-            f"phase {labels[k]}: {ph['rms_a']:.1f} A of {p['rating_a']:g} A {p['rating_basis']}",
-        )
-    )
+    out = [_deviation(data, m, light_load_pct), *_vuf(data, m["vuf"]), _neutral(data, m["neutral"])]
+    out += _phase_rows(data, m)
+    out += [_breakers(data, m["breakers"]), _phase_kva(data, m["phase-kva"])]
     return out
 
 
 def panel_status(results: list[CheckResult]) -> str:
     """``"fail"`` if any limit failed, else ``"pass"``."""
-    return "fail" if any(r.status == "fail" for r in results) else "pass"
+    return FAIL if any(r.status == FAIL for r in results) else PASS
 
 
 def result_dict(r: CheckResult) -> dict[str, Any]:
-    """A check result as JSON-ready data (``value_pct``, ``limit_pct`` in [%])."""
-    return asdict(r)
+    """A check result as JSON-ready data.
 
-
-def render_check_text(
-    entries: list[dict[str, Any]],
-    *,
-    caution: str,
-    maxima: dict[str, float] | None = None,
-    width: int = 80,
-) -> str:
-    """Plain text for ``tri check``: each file, each limit, value, pass/fail; then the sources.
-
-    Parameters
-    ----------
-    entries : list of dict
-        One per file: ``file``, ``panel`` (name or None), ``status``
-        (pass/fail/error), ``error`` (message or None), ``results`` (list of
-        :class:`CheckResult`), ``basis`` (current basis text or None).
-    caution : str
-        Printed once at the end.
-    maxima : dict, optional
-        Limit key -> maximum used [%] (for the closing list of limits).
-    width : int
-        Wrap width [columns].
-
-    Returns
-    -------
-    str
-        Ends with a newline.
+    ``value`` and ``limit`` are in ``unit``; ``value_pct`` and ``limit_pct``
+    repeat them for percentage limits (None for ``phase-kva``), as before.
     """
-    import textwrap
-
-    def wrap(text: str, indent: str, hang: str | None = None) -> list[str]:
-        return textwrap.wrap(
-            text,
-            width=width,
-            initial_indent=indent,
-            subsequent_indent=indent if hang is None else hang,
-            break_on_hyphens=False,
-        ) or [indent.rstrip()]
-
-    lines: list[str] = []
-    for e in entries:
-        head = f"{e['file']}"
-        if e["panel"]:
-            head += f" ({e['panel']})"
-        if e["status"] == "error":
-            error = " ".join(str(e["error"]).split())
-            lines += wrap(f"{head}: ERROR, not checked: {error}", "", "    ")
-            lines.append("")
-            continue
-        results: list[CheckResult] = e["results"]
-        failed = sum(1 for r in results if r.status == "fail")
-        checked = sum(1 for r in results if r.status != "skipped")
-        verdict = (
-            f"FAIL, {failed} of {checked} checks over the limit"
-            if failed
-            else f"PASS, all {checked} checks within limits"
-        )
-        lines += wrap(f"{head}: {verdict}", "", "    ")
-        for r in results:
-            if r.status == "skipped":
-                figure = "not checked"
-            else:
-                op = "<=" if r.status == "pass" else "> "
-                figure = f"{r.value_pct:6.2f} % {op} {r.limit_pct:g} %"
-            cells = f"  {r.status.upper():<8}{r.key:<10}{figure:<20}"
-            lines += wrap(f"{cells}{r.where}", "", " " * 40)
-        lines.append("")
-    m = {x.key: x.default_pct for x in LIMITS}
-    m.update(maxima or {})
-    basis = sorted({e["basis"] for e in entries if e.get("basis")})
-    lines.append("Limits (a value equal to the limit passes):")
-    for x in LIMITS:
-        used = m[x.key]
-        origin = (
-            f"default: {x.source}"
-            if used == x.default_pct
-            else f"set by {x.option}; the default {x.default_pct:g} % is {x.source}"
-        )
-        lines += wrap(f"{x.key} {used:g} % ({x.option}): {x.title}; {origin}.", "  ", "      ")
-    lines.append("")
-    if basis:
-        lines += wrap("Currents computed at " + " / ".join(basis) + ".", "")
-    lines += wrap(caution, "")
-    return "\n".join(lines) + "\n"
+    out = asdict(r)
+    pct = r.unit == "%"
+    out["value_pct"] = r.value if pct else None
+    out["limit_pct"] = r.limit if pct else None
+    return out

@@ -35,6 +35,12 @@ column          meaning
 ``note``        free text from the schedule
 ==============  ==========================================================
 
+After ``note``: ``calculated_a``, the circuit's calculated load (its
+scheduled line current, times the continuous factor when continuous [A]:
+what NEC 210.20(A) compares with the breaker), and ``over_breaker``
+(``true`` when ``calculated_a`` is above ``breaker_a``; empty without a
+breaker rating).
+
 Numbers are written as in the JSON report (9 significant digits); a
 missing value is an empty field. Per-phase and panel totals are in the JSON,
 text and Markdown reports; this file is the circuit list only.
@@ -70,6 +76,8 @@ COLUMNS: tuple[str, ...] = (
     "rms_a",
     "placed",
     "note",
+    "calculated_a",
+    "over_breaker",
 )
 
 
@@ -111,6 +119,8 @@ def csv_rows(data: dict[str, Any]) -> list[dict[str, str]]:
             "rms_a": c["rms_a"],
             "placed": c["placed"],
             "note": c["note"],
+            "calculated_a": c["calculated_a"],
+            "over_breaker": c["over_breaker"],
         }
         rows.append({k: _cell(v) for k, v in row.items()})
     return rows

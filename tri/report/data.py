@@ -40,20 +40,42 @@ Added keys (beyond the contract)
     How the figures were made: ``estimate`` (always true), ``currents``
     (the engine's current basis: ``"nominal voltage"`` or the iterated
     panel voltage), ``iterated`` (bool), ``continuous_factor`` [-],
-    ``phase_va`` (what ``phases.*.va`` means, in words).
+    ``practice`` (``"NEC"`` or ``"IEC"``: whose rules the findings cite,
+    from the frequency), ``headroom_pct`` (the design headroom of the
+    status words) [%], ``phase_va`` and ``calculated`` (what
+    ``phases.*.va`` and ``phases.*.calculated_a`` mean, in words).
 ``supply``
     The ``[supply]`` table as given (kVA, %, -, m, Ω/km), or ``None``.
+``sizing``
+    The sizing rule in words: ``method`` (``"noncontinuous plus 125 % of
+    continuous"``, or ``"no continuous-load factor"``),
+    ``clause`` (short name of the rule against the main or bus) and
+    ``breaker_clause`` (against each breaker), ``over`` (labels of the
+    phases whose ``calculated_a`` is over ``panel.rating_a``),
+    ``breakers_rated`` and ``breakers_over`` (circuits with a breaker
+    rating, and those whose ``calculated_a`` is over it).
 ``phases.*``
-    Also ``design_a`` [A] and ``design_loading_pct`` [%]: the phase RMS
-    current with continuous loads counted at ``basis.continuous_factor`` (the
-    sizing check).
+    Also ``calculated_a`` [A] and ``calculated_pct`` [%]: the code's
+    calculated load (``basis.calculated``: noncontinuous plus
+    ``basis.continuous_factor`` times continuous, scheduled VA over V_LN),
+    the figure the sizing rule judges against ``panel.rating_a``;
+    ``status`` (``"OVER"`` above 100 %, ``"NEAR"`` above
+    ``basis.headroom_pct``, else ``"ok"``, on ``loading_pct``);
+    ``design_a`` [A] and ``design_loading_pct`` [%]: the physical RMS
+    current if every continuous circuit drew ``continuous_factor`` times its
+    current (phasor sum; not the code's calculation).
 ``neutral``
     Also ``present`` (false on 3-wire), ``rating_a`` [A] (``None`` on
-    3-wire), ``ratio_to_max_phase`` [-] (neutral RMS / largest phase RMS).
+    3-wire), ``ratio_to_max_phase`` [-] (neutral RMS / largest phase RMS),
+    ``calculated_a`` [A] (the neutral load of the code's calculation, NEC
+    220.61: the largest scheduled line-to-neutral load on one phase;
+    ``None`` on 3-wire), ``status`` (as ``phases.*.status``).
 ``current_unbalance``
-    Also ``zero_sequence_pct`` (``|I0|/|I1|``) and
+    Also ``zero_sequence_pct`` (``|I0|/|I1|``),
     ``max_deviation_fundamental_pct`` (the deviation on fundamental
-    magnitudes) [%].
+    magnitudes) and ``max_minus_min_pct`` (``(max − min) / mean`` of the
+    phase RMS currents, as many meters show) [%]. ``max_deviation_pct`` is
+    the largest ``|I − mean| / mean`` (NEMA definition).
 ``voltage``
     Also ``drop_pct`` {phase: %}, ``iterated``, ``iterations``,
     ``converged``, ``transformer_full_load_a`` [A], ``z_phase_ohm`` and
@@ -73,6 +95,9 @@ Added keys (beyond the contract)
     neutral (order 1 is the fundamental).
 ``nonlinear_share_pct``
     Share of the placed connected VA on circuits with a harmonic profile [%].
+``nonlinear_ln_share_pct``
+    The same for line-to-neutral circuits only (whose harmonics reach the
+    neutral; NEC 310.15(E)) [%].
 ``circuits``
     Every circuit in file order: ``number`` (1-based position in the file),
     ``name``, ``slot`` (first slot, ``None`` on rail boards), ``slots``,
@@ -81,7 +106,10 @@ Added keys (beyond the contract)
     whole circuit) [VA], ``w`` [W], ``pf``, ``leading``, ``profile``,
     ``continuous``, ``locked``, ``breaker_a`` [A], ``note``, ``current_a``
     (fundamental line current) [A], ``rms_a`` [A], ``phase_va`` {phase: the
-    share of ``va`` the schedule puts on it} [VA].
+    share of ``va`` the schedule puts on it} [VA], ``calculated_a`` (the
+    scheduled line current, times the continuous factor when continuous:
+    what NEC 210.20(A) compares with the breaker) [A], ``over_breaker``
+    (``calculated_a > breaker_a``; ``None`` without a breaker rating).
 ``unplaced``
     Names of circuits not on any phase (left out of every figure).
 ``caution``
@@ -98,6 +126,8 @@ import math
 from pathlib import Path
 from typing import Any
 
+from tri.engine.limits import DESIGN_HEADROOM_PCT, RATING_PCT, exceeds, loading_word, practice_for
+from tri.engine.loading import calculation_words, sizing_clauses
 from tri.engine.results import PanelAnalysis, Phasor
 from tri.schedule.model import Circuit, Schedule
 from tri.schedule.slots import TWO_COLUMN, occupied_slots
@@ -107,6 +137,11 @@ REPORT_VERSION = 1
 #: Significant digits kept in every number [-].
 SIGNIFICANT_DIGITS = 9
 
+CALCULATED_MEANING = (
+    "the code's calculated load: scheduled VA per phase (all of each 1-pole circuit, half "
+    "of each 2-pole, a third of each 3-pole) with continuous loads at the continuous "
+    "factor, over V_LN; harmonics and --iterate do not change it"
+)
 PHASE_VA_MEANING = (
     "connected apparent power the schedule attributes to the phase: all of each 1-pole "
     "circuit, half of each 2-pole, a third of each 3-pole (schedule bookkeeping, not |I|·V)"
@@ -135,6 +170,32 @@ def num(x: float | None) -> float | None:
     return 0.0 if r == 0 else r
 
 
+def fixed(x: float | None, digits: int = 1, *, signed: bool = False, none: str = "–") -> str:
+    """``x`` with ``digits`` decimals, never a negative zero (``-0.0`` is written ``0.0``).
+
+    Parameters
+    ----------
+    x : float or None
+        Any figure [any unit].
+    digits : int
+        Decimals.
+    signed : bool
+        Write ``+`` before a positive figure (a rounded zero has no sign).
+    none : str
+        Text for None.
+
+    Returns
+    -------
+    str
+    """
+    if x is None:
+        return none
+    text = f"{x:+.{digits}f}" if signed else f"{x:.{digits}f}"
+    if float(text) == 0:
+        return f"{0.0:.{digits}f}"
+    return text
+
+
 def phasor(p: Phasor, unit: str) -> dict[str, float | None]:
     """``{unit: magnitude, "deg": angle}`` of a phasor (``unit`` ``"a"`` or ``"v"``)."""
     return {unit: num(p.magnitude), "deg": num(p.deg)}
@@ -152,8 +213,12 @@ def _load_unit(c: Circuit) -> str:
 
 
 def _circuit(
-    number: int, c: Circuit, schedule: Schedule, current_a: float, rms_a: float
+    number: int,
+    c: Circuit,
+    schedule: Schedule,
+    currents: tuple[float, float, float],
 ) -> dict[str, Any]:
+    current_a, rms_a, calculated_a = currents
     system = schedule.system
     labels = schedule.labels
     va = c.apparent_power_va(system)
@@ -183,6 +248,8 @@ def _circuit(
         "current_a": num(current_a),
         "rms_a": num(rms_a),
         "phase_va": {lab: num(v) for lab, v in share.items()},
+        "calculated_a": num(calculated_a),
+        "over_breaker": None if c.breaker_a is None else exceeds(calculated_a, c.breaker_a),
     }
 
 
@@ -247,12 +314,62 @@ def _readings(a: PanelAnalysis, schedule: Schedule) -> dict[str, Any] | None:
     }
 
 
+def _phases(a: PanelAnalysis, headroom_pct: float) -> dict[str, Any]:
+    return {
+        ph.label: {
+            "va": num(ph.va),
+            "current_a": num(ph.current_a),
+            "current_deg": num(ph.current_deg),
+            "rms_a": num(ph.rms_a),
+            "thd_pct": num(ph.thd_pct),
+            "loading_pct": num(ph.loading_pct),
+            "design_a": num(ph.design_a),
+            "design_loading_pct": num(ph.design_loading_pct),
+            "calculated_a": num(ph.calculated_a),
+            "calculated_pct": num(ph.calculated_pct),
+            "status": loading_word(ph.loading_pct, headroom_pct),
+        }
+        for ph in a.phases
+    }
+
+
+def _neutral(a: PanelAnalysis, headroom_pct: float) -> dict[str, Any]:
+    n = a.neutral
+    return {
+        "current_a": num(n.current_a),
+        "current_deg": num(n.current_deg),
+        "rms_a": num(n.rms_a),
+        "loading_pct": num(n.loading_pct),
+        "present": n.present,
+        "rating_a": num(n.rating_a),
+        "ratio_to_max_phase": num(n.ratio_to_max_phase),
+        "calculated_a": num(n.calculated_a),
+        "status": loading_word(n.loading_pct, headroom_pct),
+    }
+
+
+def _sizing(a: PanelAnalysis, schedule: Schedule, circuits: list[dict[str, Any]]) -> dict[str, Any]:
+    clause, branch = sizing_clauses(
+        a.frequency_hz, schedule.panel.main_a is not None, a.continuous_factor
+    )
+    rated = [c for c in circuits if c["over_breaker"] is not None]
+    return {
+        "method": calculation_words(a.continuous_factor),
+        "clause": clause,
+        "breaker_clause": branch,
+        "over": [p.label for p in a.phases if exceeds(p.calculated_pct, RATING_PCT)],
+        "breakers_rated": len(rated),
+        "breakers_over": sum(1 for c in rated if c["over_breaker"]),
+    }
+
+
 def report_data(
     analysis: PanelAnalysis,
     schedule: Schedule,
     *,
     caution: str,
     file: str | Path | None = None,
+    headroom_pct: float = DESIGN_HEADROOM_PCT,
 ) -> dict[str, Any]:
     """The report of one panel as plain data (see the module docstring for every key).
 
@@ -266,6 +383,8 @@ def report_data(
         Safety caution to carry with the figures.
     file : str or Path, optional
         The schedule's path; only its file name is kept.
+    headroom_pct : float
+        Design headroom the status words use [%] (the findings' own setting).
 
     Returns
     -------
@@ -277,11 +396,10 @@ def report_data(
     labels = a.phase_labels
     n = a.neutral
     cu = a.current_unbalance
+    per_circuit = zip(a.circuit_current_a, a.circuit_rms_a, a.circuit_calculated_a, strict=True)
     circuits = [
-        _circuit(i + 1, c, schedule, cur, rms)
-        for i, (c, cur, rms) in enumerate(
-            zip(schedule.circuits, a.circuit_current_a, a.circuit_rms_a, strict=True)
-        )
+        _circuit(i + 1, c, schedule, currents)
+        for i, (c, currents) in enumerate(zip(schedule.circuits, per_circuit, strict=True))
     ]
     supply = (
         None if schedule.supply is None else {k: num(v) for k, v in vars(schedule.supply).items()}
@@ -309,32 +427,16 @@ def report_data(
             "currents": a.currents_basis,
             "iterated": a.voltage is not None and a.voltage.iterated,
             "continuous_factor": num(a.continuous_factor),
+            "practice": practice_for(a.frequency_hz),
+            "headroom_pct": num(headroom_pct),
             "phase_va": PHASE_VA_MEANING,
+            "calculated": CALCULATED_MEANING,
         },
         "supply": supply,
+        "sizing": _sizing(a, schedule, circuits),
         "phase_order": list(labels),
-        "phases": {
-            ph.label: {
-                "va": num(ph.va),
-                "current_a": num(ph.current_a),
-                "current_deg": num(ph.current_deg),
-                "rms_a": num(ph.rms_a),
-                "thd_pct": num(ph.thd_pct),
-                "loading_pct": num(ph.loading_pct),
-                "design_a": num(ph.design_a),
-                "design_loading_pct": num(ph.design_loading_pct),
-            }
-            for ph in a.phases
-        },
-        "neutral": {
-            "current_a": num(n.current_a),
-            "current_deg": num(n.current_deg),
-            "rms_a": num(n.rms_a),
-            "loading_pct": num(n.loading_pct),
-            "present": n.present,
-            "rating_a": num(n.rating_a),
-            "ratio_to_max_phase": num(n.ratio_to_max_phase),
-        },
+        "phases": _phases(a, headroom_pct),
+        "neutral": _neutral(a, headroom_pct),
         "sequence": {
             "i0": phasor(a.sequence.i0, "a"),
             "i1": phasor(a.sequence.i1, "a"),
@@ -345,6 +447,7 @@ def report_data(
             "max_deviation_pct": num(cu.max_deviation_pct),
             "zero_sequence_pct": num(cu.zero_sequence_pct),
             "max_deviation_fundamental_pct": num(cu.max_deviation_fundamental_pct),
+            "max_minus_min_pct": num(cu.max_minus_min_pct),
         },
         "voltage": _voltage(a),
         "readings": _readings(a, schedule),
@@ -357,6 +460,7 @@ def report_data(
             "neutral": [num(x) for x in n.harmonic_a],
         },
         "nonlinear_share_pct": num(a.nonlinear_share_pct),
+        "nonlinear_ln_share_pct": num(a.nonlinear_ln_share_pct),
         "circuits": circuits,
         "unplaced": [c["name"] for c in circuits if not c["placed"]],
         "caution": caution,

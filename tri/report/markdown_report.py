@@ -27,7 +27,7 @@ from __future__ import annotations
 
 from typing import Any
 
-from tri.report.data import is_two_column, line_labels
+from tri.report.data import fixed, is_two_column, line_labels
 from tri.schedule.slots import slot_phase
 
 _SPECIAL = "\\`*_[]<>|#~"
@@ -40,7 +40,7 @@ def md_escape(text: str) -> str:
 
 
 def _f(x: float | None, digits: int = 1) -> str:
-    return "–" if x is None else f"{x:.{digits}f}"
+    return fixed(x, digits)
 
 
 def _va(x: float | None) -> str:
@@ -250,12 +250,20 @@ def _results(d: dict[str, Any]) -> list[str]:
             1,
             _f(n["loading_pct"]),
         ),
+        [
+            "Status (OVER above 100 %, NEAR above "
+            f"{d['basis']['headroom_pct']:g} % design headroom)",
+            *[ph[lab]["status"] for lab in labels],
+            *([n["status"]] if n["present"] else []),
+        ],
         row(
-            f"Continuous loads at {d['basis']['continuous_factor'] * 100:g} %, A",
-            "design_a",
+            "Calculated load, A (the code's sizing rule; N: the maximum unbalanced load, "
+            "NEC 220.61)",
+            "calculated_a",
             1,
+            _f(n["calculated_a"]),
         ),
-        row("Same, % of rating", "design_loading_pct", 1),
+        row(f"Calculated load, % of {p['rating_a']:g} A", "calculated_pct", 1),
     ]
     cu = d["current_unbalance"]
     s = d["sequence"]
@@ -269,20 +277,42 @@ def _results(d: dict[str, Any]) -> list[str]:
         "",
         *_table(["", *cols], rows, "l" + "r" * len(cols)),
         "",
+        f"- {_sizing(d)}",
         f"- Symmetrical components of the fundamental (phase {labels[0]} reference): "
-        f"I0 {s['i0']['a']:.2f} A ∠{s['i0']['deg']:.1f}°, I1 {s['i1']['a']:.2f} A "
-        f"∠{s['i1']['deg']:.1f}°, I2 {s['i2']['a']:.2f} A ∠{s['i2']['deg']:.1f}°.",
+        f"I0 {s['i0']['a']:.2f} A ∠{_f(s['i0']['deg'])}°, I1 {s['i1']['a']:.2f} A "
+        f"∠{_f(s['i1']['deg'])}°, I2 {s['i2']['a']:.2f} A ∠{_f(s['i2']['deg'])}°.",
         f"- Current unbalance \\|I2\\|/\\|I1\\|: {cu['negative_sequence_pct']:.1f} %; "
         f"\\|I0\\|/\\|I1\\|: {cu['zero_sequence_pct']:.1f} %.",
         f"- Largest deviation of a phase RMS current from the mean of the three: "
-        f"{cu['max_deviation_pct']:.1f} %.",
+        f"{cu['max_deviation_pct']:.1f} % (\\|I − mean\\| / mean, the NEMA definition); "
+        f"(max − min) / mean, as many meters show: {cu['max_minus_min_pct']:.1f} %.",
     ]
     if n["present"]:
         out.append(
             f"- Neutral RMS is {n['ratio_to_max_phase']:.2f} × the largest phase; "
-            f"{d['nonlinear_share_pct']:.0f} % of the connected VA is non-linear."
+            f"{d['nonlinear_share_pct']:.0f} % of the connected VA is non-linear, "
+            f"{d['nonlinear_ln_share_pct']:.0f} % line-to-neutral. The code's neutral load "
+            f"(NEC 220.61, the largest line-to-neutral load on one phase) is "
+            f"{_f(n['calculated_a'])} A: size the neutral from it and the harmonics, not from "
+            "the phasor sum."
         )
     return out
+
+
+def _sizing(d: dict[str, Any]) -> str:
+    p = d["panel"]
+    z = d["sizing"]
+    breakers = (
+        f" Breakers: {z['breakers_rated']} circuit(s) with a rating judged the same way "
+        f"({z['breaker_clause']}), {z['breakers_over']} over."
+        if z["breakers_rated"]
+        else " No circuit gives a breaker rating."
+    )
+    return (
+        f"Sizing rule: the calculated load is the scheduled VA per phase over V_LN, "
+        f"{z['method']}, against the {p['rating_a']:g} A {md_escape(p['rating_basis'])} "
+        f"({z['clause']})." + breakers
+    )
 
 
 def _voltage(d: dict[str, Any]) -> list[str]:
@@ -299,10 +329,10 @@ def _voltage(d: dict[str, Any]) -> list[str]:
         rows.append(
             [
                 md_escape(lab),
-                f"{pv['v']:.1f} V ∠{pv['deg']:.1f}°",
-                f"{v['drop_pct'][lab]:.2f} %",
+                f"{pv['v']:.1f} V ∠{_f(pv['deg'])}°",
+                f"{_f(v['drop_pct'][lab], 2)} %",
                 md_escape(ll),
-                f"{lv['v']:.1f} V ∠{lv['deg']:.1f}°",
+                f"{lv['v']:.1f} V ∠{_f(lv['deg'])}°",
             ]
         )
     basis = (
@@ -314,14 +344,20 @@ def _voltage(d: dict[str, Any]) -> list[str]:
     pdev = v["phase_deviation_pct"]
     return [
         *out,
-        f"From the `[supply]` table: transformer {s['transformer_kva']:g} kVA, "
-        f"{s['transformer_z_pct']:g} %, X/R {s['transformer_x_r']:g}; feeder "
-        f"{s['feeder_length_m']:g} m; {basis}.",
+        (
+            f"From the `[supply]` table: transformer {s['transformer_kva']:g} kVA, "
+            f"{s['transformer_z_pct']:g} %, X/R {s['transformer_x_r']:g}; feeder "
+            f"{s['feeder_length_m']:g} m; {basis}."
+            if s is not None
+            else f"Through what feeds it: {md_escape(str(v.get('source')))}; {basis}."
+        ),
         "",
         *_table(["Phase", "Phase voltage", "Drop", "Line", "Line voltage"], rows, "lrrlr"),
         "",
-        f"- VUF \\|V2\\|/\\|V1\\| of the line voltages (IEC 61000-4-30): {v['vuf_pct']:.2f} % "
-        "(EN 50160 limit 2 %).",
+        f"- VUF \\|V2\\|/\\|V1\\| of the line voltages (IEC 61000-4-30): {v['vuf_pct']:.2f} %. "
+        "EN 50160's 2 % is a weekly statistic of 10-minute values at the supply terminals, and "
+        "ANSI C84.1's 3 % and voltage ranges apply at the service: figures computed at the "
+        "panel are indicative.",
         f"- Line-voltage deviation rate (NEMA MG 1): {v['line_deviation_pct']:.2f} %; "
         "phase-voltage deviation rate: " + ("–" if pdev is None else f"{pdev:.2f} %") + ".",
         "- Motor derating (NEMA MG 1 Part 14 curve): "
@@ -343,7 +379,7 @@ def _readings(d: dict[str, Any]) -> list[str]:
                 md_escape(lab),
                 _f(x["measured_a"]),
                 _f(x["computed_rms_a"]),
-                "–" if diff is None else f"{diff:+.1f} %",
+                "–" if diff is None else f"{fixed(diff, 1, signed=True)} %",
             ]
         )
     if d["neutral"]["present"]:
@@ -354,7 +390,7 @@ def _readings(d: dict[str, Any]) -> list[str]:
                 "N",
                 _f(x["measured_a"]),
                 _f(x["computed_rms_a"]) + f" (fund. {_f(x['computed_current_a'])})",
-                "–" if diff is None else f"{diff:+.1f} %",
+                "–" if diff is None else f"{fixed(diff, 1, signed=True)} %",
             ]
         )
     out = ["## Site readings against the computed figures", ""]

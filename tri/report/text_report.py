@@ -8,8 +8,9 @@ computed figures, findings with their sources, unplaced circuits, and the
 safety caution.
 
 Nothing is said by colour alone: every bar has its number written beside
-it and a status word (``OVER`` above 100 %, ``HIGH`` above 80 % of the
-rating, else ``ok``); finding levels are written out. With ``NO_COLOR`` set,
+it and a status word (``OVER`` above 100 %, ``NEAR`` above the 80 % design
+headroom, else ``ok``: :func:`tri.engine.limits.loading_word`, the same
+words the UI shows); finding levels are written out. With ``NO_COLOR`` set,
 or when the output is piped, the same text appears without colour. An ASCII
 mode replaces the block characters, the angle sign and box lines for
 terminals without UTF-8.
@@ -27,14 +28,11 @@ from rich.rule import Rule
 from rich.table import Table
 from rich.text import Text
 
-from tri.report.data import line_labels
+from tri.engine.limits import DESIGN_HEADROOM_PCT, NEAR, OVER, loading_word
+from tri.report.data import fixed, line_labels
 
 #: Width of the loading bar [cells]; a full bar is 100 % of the rating.
 BAR_CELLS = 10
-#: Loading above which the status word says HIGH [%] (common practice: keep
-#: continuous load at or below 80 % of the rating; NEC 210.20(A), 215.2(A),
-#: 230.42(A), from memory).
-HIGH_PCT = 80.0
 #: Default width of rendered text [columns].
 WIDTH = 80
 
@@ -57,9 +55,7 @@ class _Glyphs:
 
 
 def _f(x: float | None, digits: int = 1, g: _Glyphs | None = None) -> str:
-    if x is None:
-        return g.none if g else "-"
-    return f"{x:.{digits}f}"
+    return fixed(x, digits, none=g.none if g else "-")
 
 
 def _va(x: float | None) -> str:
@@ -100,19 +96,16 @@ def bar(pct: float | None, *, ascii_only: bool = False, cells: int = BAR_CELLS) 
     return out
 
 
-def status_word(pct: float | None) -> str:
-    """``OVER`` above 100 %, ``HIGH`` above :data:`HIGH_PCT`, else ``ok`` (blank for None)."""
-    if pct is None:
-        return ""
-    if pct > 100.0:
-        return "OVER"
-    if pct > HIGH_PCT:
-        return "HIGH"
-    return "ok"
+def status_word(pct: float | None, headroom_pct: float = DESIGN_HEADROOM_PCT) -> str:
+    """``OVER`` above 100 %, ``NEAR`` above the headroom, else ``ok`` (blank for None).
+
+    The words and thresholds are :func:`tri.engine.limits.loading_word`'s.
+    """
+    return loading_word(pct, headroom_pct)
 
 
 def _status_style(word: str) -> str:
-    return {"OVER": "bold red", "HIGH": "yellow"}.get(word, "")
+    return {OVER: "bold red", NEAR: "yellow"}.get(word, "")
 
 
 def _section(title: str, g: _Glyphs) -> Group:
@@ -152,11 +145,21 @@ def _heading(d: dict[str, Any], g: _Glyphs) -> RenderableType:
             "schedules are."
         )
     lines.append("\nESTIMATE from the schedule, not a measurement. ", style="bold")
-    lines.append(
-        f"{basis} Continuous loads are counted at {b['continuous_factor'] * 100:g} % in the "
-        "sizing check only."
+    practice = "NEC" if b["practice"] == "NEC" else "IEC 60364"
+    factor = (
+        "no continuous-load factor"
+        if b["continuous_factor"] == 1
+        else f"continuous loads at {b['continuous_factor'] * 100:g} % in the sizing rule only"
     )
+    lines.append(f"{basis} Findings cite {practice} practice; {factor}.")
     return lines
+
+
+def _load_cell(pct: float, word: str, g: _Glyphs) -> Text:
+    load = Text(bar(pct, ascii_only=g.ascii))
+    load.append(f" {pct:5.1f} % ")
+    load.append(word, style=_status_style(word))
+    return load
 
 
 def _currents(d: dict[str, Any], g: _Glyphs) -> RenderableType:
@@ -171,10 +174,6 @@ def _currents(d: dict[str, Any], g: _Glyphs) -> RenderableType:
     t.add_column("Loading (RMS / rating)", no_wrap=True)
     for lab in d["phase_order"]:
         ph = d["phases"][lab]
-        word = status_word(ph["loading_pct"])
-        load = Text(bar(ph["loading_pct"], ascii_only=g.ascii))
-        load.append(f" {ph['loading_pct']:5.1f} % ")
-        load.append(word, style=_status_style(word))
         t.add_row(
             lab,
             _va(ph["va"]),
@@ -182,14 +181,10 @@ def _currents(d: dict[str, Any], g: _Glyphs) -> RenderableType:
             _f(ph["current_deg"]),
             _f(ph["rms_a"]),
             _f(ph["thd_pct"]),
-            load,
+            _load_cell(ph["loading_pct"], ph["status"], g),
         )
     n = d["neutral"]
     if n["present"]:
-        word = status_word(n["loading_pct"])
-        load = Text(bar(n["loading_pct"], ascii_only=g.ascii))
-        load.append(f" {n['loading_pct']:5.1f} % ")
-        load.append(word, style=_status_style(word))
         t.add_row(
             "N",
             g.none,
@@ -197,45 +192,60 @@ def _currents(d: dict[str, Any], g: _Glyphs) -> RenderableType:
             _f(n["current_deg"]),
             _f(n["rms_a"]),
             g.none,
-            load,
+            _load_cell(n["loading_pct"], n["status"], g),
         )
     rating = f"{p['rating_a']:g} A {p['rating_basis']}"
     notes = Text(
         f"Loading: phase RMS / {rating}"
         + (f"; neutral RMS / {n['rating_a']:g} A neutral rating" if n["present"] else "")
-        + f". Bar full = 100 %; OVER above 100 %, HIGH above {HIGH_PCT:g} % "
-        "(common practice headroom). Sched. VA: all of each 1-pole circuit, half of each "
-        f"2-pole, a third of each 3-pole (schedule bookkeeping, not |I|{g.dot}V). Fund. A: "
-        f"{p['frequency_hz']:g} Hz component; RMS A includes harmonics.",
+        + f". Bar full = 100 %; {OVER} above 100 %, {NEAR} above "
+        f"{d['basis']['headroom_pct']:g} % (design headroom, not a code rule). Sched. VA: all "
+        "of each 1-pole circuit, half of each 2-pole, a third of each 3-pole (schedule "
+        f"bookkeeping, not |I|{g.dot}V). Fund. A: {p['frequency_hz']:g} Hz component; RMS A "
+        "includes harmonics.",
         style="dim",
     )
-    parts: list[RenderableType] = [t, notes]
-    if n["present"]:
-        i_sum = " + ".join(f"I_{lab}" for lab in d["phase_order"])
-        parts.append(
-            Text(
-                f"Neutral: fundamental {_f(n['current_a'])} A {g.angle}{_f(n['current_deg'])}"
-                f"{g.deg} (the phasor sum {i_sum} = 3{g.times}I0); true RMS "
-                f"{_f(n['rms_a'])} A with harmonics, {n['ratio_to_max_phase']:.2f} {g.times} "
-                f"the largest phase. Non-linear load: {d['nonlinear_share_pct']:.0f} % of the "
-                "connected VA."
-            )
-        )
-    else:
-        parts.append(Text("No neutral: 3-wire system."))
-    cf = d["basis"]["continuous_factor"] * 100
-    sizing = []
+    parts: list[RenderableType] = [t, notes, _neutral_text(d, g), _sizing_text(d)]
+    return Group(*parts)
+
+
+def _neutral_text(d: dict[str, Any], g: _Glyphs) -> Text:
+    n = d["neutral"]
+    if not n["present"]:
+        return Text("No neutral: 3-wire system.")
+    i_sum = " + ".join(f"I_{lab}" for lab in d["phase_order"])
+    return Text(
+        f"Neutral: fundamental {_f(n['current_a'])} A {g.angle}{_f(n['current_deg'])}"
+        f"{g.deg} (the phasor sum {i_sum} = 3{g.times}I0); true RMS "
+        f"{_f(n['rms_a'])} A with harmonics, {n['ratio_to_max_phase']:.2f} {g.times} "
+        f"the largest phase. The code's neutral load (NEC 220.61, the maximum unbalanced "
+        f"load: the largest line-to-neutral load on one phase) is {_f(n['calculated_a'])} A; "
+        "size the neutral from it and the harmonics, not from the phasor sum. Non-linear "
+        f"load: {d['nonlinear_share_pct']:.0f} % of the connected VA, "
+        f"{d['nonlinear_ln_share_pct']:.0f} % line-to-neutral."
+    )
+
+
+def _sizing_text(d: dict[str, Any]) -> Text:
+    p = d["panel"]
+    z = d["sizing"]
+    phases = []
     for lab in d["phase_order"]:
         ph = d["phases"][lab]
-        over = " OVER" if ph["design_loading_pct"] > 100.0 else ""
-        sizing.append(f"{lab} {_f(ph['design_a'])} A ({_f(ph['design_loading_pct'])} %{over})")
-    parts.append(
-        Text(
-            f"Sizing check, continuous loads at {cf:g} %: {'; '.join(sizing)} of "
-            f"{p['rating_a']:g} A (NEC 210.20(A), 215.2(A), 230.42(A), from memory)."
-        )
+        over = f" {OVER}" if lab in z["over"] else ""
+        phases.append(f"{lab} {_f(ph['calculated_a'])} A ({_f(ph['calculated_pct'])} %{over})")
+    breakers = (
+        f" Breakers: {z['breakers_rated']} circuit(s) with a rating, each judged the same way "
+        f"({z['breaker_clause']}): "
+        + (f"{z['breakers_over']} over (see the findings)." if z["breakers_over"] else "none over.")
+        if z["breakers_rated"]
+        else " No circuit gives a breaker rating, so no breaker was checked."
     )
-    return Group(*parts)
+    return Text(
+        f"Sizing rule, the code's calculated load (scheduled VA per phase over V_LN, "
+        f"{z['method']}): {'; '.join(phases)} of the {p['rating_a']:g} A {p['rating_basis']} "
+        f"({z['clause']})." + breakers
+    )
 
 
 def _sequence(d: dict[str, Any], g: _Glyphs) -> RenderableType:
@@ -257,12 +267,13 @@ def _sequence(d: dict[str, Any], g: _Glyphs) -> RenderableType:
         ),
     )
     for name, ph, note in rows:
-        t.add_row(name, f"{ph['a']:.2f} A", f"{g.angle}{ph['deg']:.1f}{g.deg}", note)
+        t.add_row(name, f"{ph['a']:.2f} A", f"{g.angle}{_f(ph['deg'])}{g.deg}", note)
     text = Text(
         f"Max deviation of the phase RMS currents from their mean: "
-        f"{cu['max_deviation_pct']:.1f} % (on fundamental magnitudes "
-        f"{cu['max_deviation_fundamental_pct']:.1f} %). Fortescue components of the "
-        f"fundamental line currents, phase {first} reference."
+        f"{cu['max_deviation_pct']:.1f} % (the largest |I - mean| / mean, NEMA definition; "
+        f"on fundamental magnitudes {cu['max_deviation_fundamental_pct']:.1f} %). "
+        f"(max - min) / mean, as many meters show: {cu['max_minus_min_pct']:.1f} %. "
+        f"Fortescue components of the fundamental line currents, phase {first} reference."
     )
     return Group(t, text)
 
@@ -277,10 +288,15 @@ def _voltage(d: dict[str, Any], g: _Glyphs) -> RenderableType:
         )
     labels = d["phase_order"]
     lines = line_labels(tuple(labels))  # type: ignore[arg-type]
-    head = Text(
+    source = (
         f"Estimate from the [supply] table: transformer {s['transformer_kva']:g} kVA, "
         f"{s['transformer_z_pct']:g} % impedance, X/R {s['transformer_x_r']:g}; feeder "
         f"{s['feeder_length_m']:g} m. "
+        if s is not None
+        else f"Estimate through what feeds it: {v.get('source')}. "  # a panel of a building
+    )
+    head = Text(
+        source
         + (
             f"Loads iterated at the panel voltage ({v['iterations']} iterations"
             + ("" if v["converged"] else ", NOT converged")
@@ -315,7 +331,7 @@ def _voltage(d: dict[str, Any], g: _Glyphs) -> RenderableType:
     facts.add_row(
         "VUF |V2|/|V1|, line voltages",
         f"{v['vuf_pct']:.2f} %",
-        "IEC 61000-4-30; EN 50160 limit 2 %",
+        "IEC 61000-4-30; EN 50160 2 % (weekly)",
     )
     facts.add_row(
         "Line-voltage deviation rate", f"{v['line_deviation_pct']:.2f} %", "NEMA MG 1 definition"
@@ -330,7 +346,13 @@ def _voltage(d: dict[str, Any], g: _Glyphs) -> RenderableType:
         "not rec." if v["motor_derating"] is None else f"{v['motor_derating']:.2f}",
         "NEMA MG 1 Part 14 curve (published)",
     )
-    return Group(head, t, facts)
+    context = Text(
+        "EN 50160's 2 % is a weekly statistic of 10-minute values at the supply terminals, "
+        "and ANSI C84.1's 3 % and voltage ranges apply at the service: these figures, "
+        "computed at the panel, are indicative.",
+        style="dim",
+    )
+    return Group(head, t, facts, context)
 
 
 def _readings(d: dict[str, Any], g: _Glyphs) -> RenderableType | None:
@@ -349,7 +371,7 @@ def _readings(d: dict[str, Any], g: _Glyphs) -> RenderableType | None:
             lab,
             _f(ph["measured_a"], g=g),
             _f(ph["computed_rms_a"]),
-            g.none if diff is None else f"{diff:+.1f} %",
+            g.none if diff is None else f"{fixed(diff, 1, signed=True)} %",
         )
     n = r["neutral"]
     if d["neutral"]["present"]:
@@ -358,7 +380,7 @@ def _readings(d: dict[str, Any], g: _Glyphs) -> RenderableType | None:
             "N",
             _f(n["measured_a"], g=g),
             _f(n["computed_rms_a"]),
-            g.none if diff is None else f"{diff:+.1f} %",
+            g.none if diff is None else f"{fixed(diff, 1, signed=True)} %",
         )
     parts: list[RenderableType] = []
     if r["taken"]:

@@ -11,14 +11,22 @@ Where it lives
 one file per schedule, named after the schedule's file name and a short hash
 of its absolute path, so a read-only folder or a version-controlled folder
 is never touched. An untitled schedule (a demo copy, a new panel not yet
-saved) has its own journal named ``untitled-<panel name>``.
+saved) has its own journal named ``untitled-<panel name>``. The folders are
+created private (0700) and every journal file is 0600.
+
+Two UIs on one file
+-------------------
+Each journal records its owner (process id and host). A tri that opens a
+file whose journal belongs to another running tri writes its own journal
+beside it (``NAME-HASH.<random>.tri-journal``) instead of overwriting it;
+:func:`choose_journal` makes that choice and finds a journal left by a tri
+that stopped, to be offered for recovery.
 
 What it holds
 -------------
-The model (with each circuit's position in the original file, so saving the
-recovered schedule still keeps the file's comments), the SHA-256 of the file
-as it was when editing began (to tell whether the file changed on disk
-since), a UTC time stamp and the number of edits.
+The model (:mod:`tri.schedule.journal_data`), the SHA-256 of the file as it
+was when editing began (to tell whether the file changed on disk since), a
+UTC time stamp, the number of edits and the owner.
 
 This module does file I/O but imports nothing from the engine's internals or
 from any UI library.
@@ -28,26 +36,44 @@ from __future__ import annotations
 
 import contextlib
 import datetime as _dt
+import glob
 import hashlib
 import json
 import os
 import re
+import secrets
+import socket
 import tempfile
+import time
 from dataclasses import dataclass
 from pathlib import Path
 from typing import Any
 
-from tri.schedule.model import (
-    Circuit,
-    PanelInfo,
-    Readings,
-    Schedule,
-    Supply,
-    UserProfile,
-)
+from tri.schedule.errors import ScheduleError
+from tri.schedule.journal_data import schedule_from_data, schedule_to_data
+from tri.schedule.model import Schedule
+from tri.schedule.source import MAX_SCHEDULE_BYTES, read_limited
+
+__all__ = [
+    "JournalChoice",
+    "JournalEntry",
+    "choose_journal",
+    "discard_journal",
+    "file_digest",
+    "journal_path",
+    "read_journal",
+    "schedule_from_data",
+    "schedule_to_data",
+    "state_dir",
+    "write_journal",
+]
 
 JOURNAL_VERSION = 1
 JOURNAL_SUFFIX = ".tri-journal"
+#: Largest journal read back [bytes] (a 1000-circuit schedule is under 1 MiB).
+MAX_JOURNAL_BYTES = 16 << 20
+#: A journal from another host is taken as its owner's for this long [s].
+OTHER_HOST_FRESH_S = 12 * 3600
 
 
 def state_dir() -> Path:
@@ -69,154 +95,114 @@ def journal_path(path: str | Path | None, panel_name: str = "") -> Path:
 
 
 def file_digest(path: str | Path | None) -> str | None:
-    """SHA-256 of a file's bytes, ``None`` when there is no such file."""
+    """SHA-256 of a regular file's bytes; ``None`` when there is none (or it is huge)."""
     if path is None:
         return None
     try:
-        return hashlib.sha256(Path(path).read_bytes()).hexdigest()
-    except OSError:
+        return hashlib.sha256(read_limited(path, 16 * MAX_SCHEDULE_BYTES)).hexdigest()
+    except ScheduleError:
         return None
 
 
-# ---------------------------------------------------------------- model <-> data
+# ---------------------------------------------------------------- owners
 
 
-def schedule_to_data(schedule: Schedule) -> dict[str, Any]:
-    """The model as plain JSON-ready data (circuits keep ``source_index``)."""
-    p = schedule.panel
-    return {
-        "format": schedule.format,
-        "panel": {
-            "name": p.name,
-            "system": p.system,
-            "frequency_hz": p.frequency_hz,
-            "spaces": p.spaces,
-            "bus_a": p.bus_a,
-            "main_a": p.main_a,
-            "neutral_a": p.neutral_a,
-            "phase_labels": list(p.phase_labels),
-            "layout": p.layout,
-        },
-        "supply": None if schedule.supply is None else dict(vars(schedule.supply)),
-        "readings": None
-        if schedule.readings is None
-        else {
-            "phase_amps": list(schedule.readings.phase_amps),
-            "neutral_amps": schedule.readings.neutral_amps,
-            "volts_ll": list(schedule.readings.volts_ll),
-            "volts_ln": list(schedule.readings.volts_ln),
-            "taken": schedule.readings.taken,
-        },
-        "profiles": [
-            {
-                "name": u.name,
-                "harmonics": [list(h) for h in u.harmonics],
-                "description": u.description,
-            }
-            for u in schedule.profiles
-        ],
-        "circuits": [
-            {
-                "name": c.name,
-                "poles": c.poles,
-                "slot": c.slot,
-                "phases": None if c.phases is None else list(c.phases),
-                "load_kind": c.load_kind,
-                "load_value": c.load_value,
-                "pf": c.pf,
-                "leading": c.leading,
-                "profile": c.profile,
-                "continuous": c.continuous,
-                "locked": c.locked,
-                "breaker_a": c.breaker_a,
-                "note": c.note,
-                "source_index": c.source_index,
-            }
-            for c in schedule.circuits
-        ],
-    }
+def _this_owner() -> dict[str, Any]:
+    return {"pid": os.getpid(), "host": socket.gethostname()}
 
 
-def _triple(values: Any) -> tuple[float | None, float | None, float | None]:
-    a, b, c = (None if v is None else float(v) for v in values)
-    return (a, b, c)
+def _owner_running(owner: Any, written: float) -> bool:
+    """True when the tri that wrote a journal may still be running (so it is not ours to take).
 
-
-def schedule_from_data(data: dict[str, Any]) -> Schedule:
-    """Inverse of :func:`schedule_to_data`.
-
-    Raises
-    ------
-    ValueError
-        When the data is not a journal written by this version.
+    A journal written by this very process counts as not running: one
+    process shows one UI, so it is a session this process replaced.
     """
+    if not isinstance(owner, dict) or not isinstance(owner.get("pid"), int):
+        return False
+    if owner.get("host") != socket.gethostname():
+        return time.time() - written < OTHER_HOST_FRESH_S
+    pid = owner["pid"]
+    if pid == os.getpid() or pid <= 0:
+        return False
     try:
-        p = data["panel"]
-        labels = tuple(str(x) for x in p["phase_labels"])
-        if len(labels) != 3:
-            raise ValueError("three phase labels expected")
-        panel = PanelInfo(
-            name=str(p["name"]),
-            system=str(p["system"]),
-            frequency_hz=float(p["frequency_hz"]),
-            spaces=int(p["spaces"]),
-            bus_a=float(p["bus_a"]),
-            main_a=None if p["main_a"] is None else float(p["main_a"]),
-            neutral_a=None if p["neutral_a"] is None else float(p["neutral_a"]),
-            phase_labels=(labels[0], labels[1], labels[2]),
-            layout=str(p["layout"]),
-        )
-        s = data.get("supply")
-        supply = None if s is None else Supply(**{k: float(v) for k, v in s.items()})
-        r = data.get("readings")
-        readings = (
-            None
-            if r is None
-            else Readings(
-                phase_amps=_triple(r["phase_amps"]),
-                neutral_amps=None if r["neutral_amps"] is None else float(r["neutral_amps"]),
-                volts_ll=_triple(r["volts_ll"]),
-                volts_ln=_triple(r["volts_ln"]),
-                taken=r.get("taken"),
-            )
-        )
-        profiles = tuple(
-            UserProfile(
-                name=str(u["name"]),
-                harmonics=tuple((int(o), float(m), float(a)) for o, m, a in u["harmonics"]),
-                description=str(u.get("description", "")),
-            )
-            for u in data.get("profiles", [])
-        )
-        circuits = tuple(
-            Circuit(
-                name=str(c["name"]),
-                poles=int(c["poles"]),
-                slot=None if c["slot"] is None else int(c["slot"]),
-                phases=None if c["phases"] is None else tuple(int(x) for x in c["phases"]),
-                load_kind=c["load_kind"],
-                load_value=float(c["load_value"]),
-                pf=float(c["pf"]),
-                leading=bool(c["leading"]),
-                profile=str(c["profile"]),
-                continuous=bool(c["continuous"]),
-                locked=bool(c["locked"]),
-                breaker_a=None if c["breaker_a"] is None else float(c["breaker_a"]),
-                note=str(c.get("note", "")),
-                source_index=None if c.get("source_index") is None else int(c["source_index"]),
-            )
-            for c in data["circuits"]
-        )
-        return Schedule(
-            panel=panel,
-            circuits=circuits,
-            supply=supply,
-            readings=readings,
-            profiles=profiles,
-            format=int(data.get("format", 1)),
-        )
-    except (KeyError, TypeError, ValueError, IndexError) as exc:
-        raise ValueError(f"not a readable journal: {exc}") from None
+        os.kill(pid, 0)
+    except ProcessLookupError:
+        return False
+    except OSError:
+        return True  # exists, owned by someone else
+    return True
+
+
+def _read_payload(target: Path) -> dict[str, Any] | None:
+    try:
+        payload = json.loads(read_limited(target, MAX_JOURNAL_BYTES, "journal"))
+    except (ScheduleError, ValueError):
+        return None
+    if not isinstance(payload, dict) or payload.get("tri_journal") != JOURNAL_VERSION:
+        return None
+    return payload
+
+
+def journal_owner_running(target: Path) -> str | None:
+    """``"process 123 on host"`` when the journal at ``target`` belongs to a running tri."""
+    payload = _read_payload(target)
+    if payload is None:
+        return None
+    try:
+        written = target.stat().st_mtime
+    except OSError:
+        return None
+    owner = payload.get("owner")
+    if not isinstance(owner, dict) or not _owner_running(owner, written):
+        return None
+    return f"process {owner['pid']} on {owner.get('host', '?')}"
+
+
+@dataclass(frozen=True)
+class JournalChoice:
+    """Which journal files a session uses.
+
+    Attributes
+    ----------
+    path : Path
+        A journal file no other tri writes: where this session's edits go.
+    inherited : Path or None
+        A journal left by a tri that stopped, to offer for recovery.
+    other_editor : str or None
+        ``"process 123 on host"`` when another running tri has the file open.
+    """
+
+    path: Path
+    inherited: Path | None = None
+    other_editor: str | None = None
+
+
+def alternate_path(primary: Path) -> Path:
+    """A journal name of its own beside ``primary`` (for a second tri on one file)."""
+    stem = primary.name.removesuffix(JOURNAL_SUFFIX)
+    return primary.with_name(f"{stem}.{secrets.token_hex(4)}{JOURNAL_SUFFIX}")
+
+
+def choose_journal(path: str | Path | None, panel_name: str = "") -> JournalChoice:
+    """The journal files for a session on ``path``: its own, and one to recover if any."""
+    primary = journal_path(path, panel_name)
+    stem = primary.name.removesuffix(JOURNAL_SUFFIX)
+    pattern = str(primary.parent / glob.escape(stem)) + f"*{JOURNAL_SUFFIX}"
+    found: list[tuple[float, Path]] = []
+    for name in glob.glob(pattern):
+        with contextlib.suppress(OSError):
+            found.append((os.stat(name).st_mtime, Path(name)))
+    found.sort(key=lambda item: (item[1] != primary, -item[0]))
+    inherited: Path | None = None
+    other: str | None = None
+    for _, candidate in found:
+        running = journal_owner_running(candidate)
+        if running is None and inherited is None:
+            inherited = candidate
+        elif running is not None and other is None:
+            other = running
+    own = primary if not primary.exists() else alternate_path(primary)
+    return JournalChoice(path=own, inherited=inherited, other_editor=other)
 
 
 # ---------------------------------------------------------------- the journal file
@@ -251,6 +237,13 @@ class JournalEntry:
         return self.path is not None and file_digest(self.path) != self.base_digest
 
 
+def _private_folder(folder: Path) -> None:
+    """Create ``folder`` (and the state folder above it) readable by the owner only."""
+    for level in (folder.parent, folder):
+        if not level.exists():
+            level.mkdir(mode=0o700, parents=True, exist_ok=True)
+
+
 def write_journal(
     target: Path,
     schedule: Schedule,
@@ -258,7 +251,7 @@ def write_journal(
     base_digest: str | None,
     edits: int,
 ) -> None:
-    """Write the journal atomically (temporary file, then rename).
+    """Write the journal atomically (temporary file, then rename), mode 0600.
 
     No fsync: the point is to survive the program dying (crash, dropped SSH
     session), for which the operating system keeps the written data.
@@ -274,9 +267,10 @@ def write_journal(
         "base_digest": base_digest,
         "written_utc": _dt.datetime.now(_dt.UTC).isoformat(timespec="seconds"),
         "edits": edits,
+        "owner": _this_owner(),
         "schedule": schedule_to_data(schedule),
     }
-    target.parent.mkdir(parents=True, exist_ok=True)
+    _private_folder(target.parent)
     fd, tmp = tempfile.mkstemp(prefix=".journal.", suffix=".tmp", dir=target.parent)
     try:
         with os.fdopen(fd, "w", encoding="utf-8") as fh:
@@ -289,25 +283,36 @@ def write_journal(
                 os.unlink(tmp)
 
 
-def read_journal(target: Path) -> JournalEntry | None:
-    """The journal at ``target``, or ``None`` when absent or unreadable."""
+def _checked(schedule: Schedule) -> bool:
+    """True when ``schedule`` passes the loader's rules (a journal can be damaged by hand)."""
+    from tri.schedule.load import parse_schedule  # late: load imports nothing from here
+    from tri.schedule.save import schedule_text
+
     try:
-        payload = json.loads(target.read_text(encoding="utf-8"))
-    except (OSError, ValueError):
-        return None
-    if not isinstance(payload, dict) or payload.get("tri_journal") != JOURNAL_VERSION:
+        parse_schedule(schedule_text(schedule))
+    except Exception:  # any failure on damaged data means: do not trust it
+        return False
+    return True
+
+
+def read_journal(target: Path) -> JournalEntry | None:
+    """The journal at ``target``, or ``None`` when absent, unreadable or not a valid schedule."""
+    payload = _read_payload(target)
+    if payload is None:
         return None
     try:
         schedule = schedule_from_data(payload["schedule"])
-    except (ValueError, KeyError):
+        path, digest = payload.get("path"), payload.get("base_digest")
+        entry = JournalEntry(
+            schedule=schedule,
+            path=None if path is None else str(path),
+            base_digest=None if digest is None else str(digest),
+            written_utc=str(payload.get("written_utc", "")),
+            edits=int(payload.get("edits", 0) or 0),
+        )
+    except (ValueError, KeyError, TypeError):
         return None
-    return JournalEntry(
-        schedule=schedule,
-        path=payload.get("path"),
-        base_digest=payload.get("base_digest"),
-        written_utc=str(payload.get("written_utc", "")),
-        edits=int(payload.get("edits", 0) or 0),
-    )
+    return entry if _checked(schedule) else None
 
 
 def discard_journal(target: Path) -> None:

@@ -16,9 +16,29 @@ _KEY = re.compile(r"""^\s*("[^"]*"|'[^']*'|[A-Za-z0-9_\-.]+)\s*=""")
 TableKey = tuple[str | int, ...]
 
 
+_ESCAPES = {"b": "\b", "t": "\t", "n": "\n", "f": "\f", "r": "\r", '"': '"', "\\": "\\"}
+_ESCAPE = re.compile(r"\\(u[0-9A-Fa-f]{4}|U[0-9A-Fa-f]{8}|.)")
+
+
+def _unescape(text: str) -> str:
+    r"""A TOML basic string's escapes decoded (``\u001b``, ``\t``...), as tomlkit reads it."""
+
+    def one(m: re.Match[str]) -> str:
+        code = m.group(1)
+        if code[0] in "uU" and len(code) > 1:
+            value = int(code[1:], 16)
+            return chr(value) if value <= 0x10FFFF else m.group(0)
+        return _ESCAPES.get(code, m.group(0))
+
+    return _ESCAPE.sub(one, text)
+
+
 def _split_dotted(name: str) -> tuple[str, ...]:
-    parts = re.findall(r'"([^"]*)"|\'([^\']*)\'|([^.\s]+)', name)
-    return tuple(next(p for p in groups if p) if any(groups) else "" for groups in parts)
+    parts = re.findall(r'"((?:[^"\\]|\\.)*)"|\'([^\']*)\'|([^.\s]+)', name)
+    out: list[str] = []
+    for basic, literal, bare in parts:
+        out.append(_unescape(basic) if basic else (literal or bare))
+    return tuple(out)
 
 
 def _bracket_delta(line: str) -> int:

@@ -12,6 +12,8 @@ from dataclasses import dataclass, field, replace
 from typing import Literal
 
 from tri.engine.inputs import SupplyImpedance
+from tri.schedule.feeds import Feed
+from tri.schedule.log_spec import LogSpec
 from tri.schedule.slots import TWO_COLUMN, slot_phases
 from tri.schedule.systems import SYSTEMS, SupplySystem
 
@@ -165,9 +167,15 @@ class Circuit:
         Breaker rating [A].
     note : str
         Free text.
+    use : tuple of (str, float)
+        Share of the load in each named scenario [-] (``use = { day = 0.2 }``);
+        empty: 1.0 in every scenario (see :mod:`tri.schedule.use_factors`).
     source_index : int or None
         Position of the circuit's table in the file it was loaded from; lets
         saving update that table in place. Not part of equality.
+    feed : Feed or None
+        For a feeder circuit: the panel it feeds, the feeder conductors and
+        any transformer (its load is that panel's; ``load_value`` is 0).
     """
 
     name: str
@@ -183,7 +191,9 @@ class Circuit:
     locked: bool = False
     breaker_a: float | None = None
     note: str = ""
+    use: tuple[tuple[str, float], ...] = ()
     source_index: int | None = field(default=None, compare=False)
+    feed: Feed | None = None
 
     @property
     def is_placed(self) -> bool:
@@ -230,6 +240,7 @@ class Schedule:
     """A whole panel schedule.
 
     ``circuits`` keep the order of the file; new circuits are appended.
+    ``log`` is the ``[log]`` table (:mod:`tri.schedule.log_spec`), or ``None``.
     """
 
     panel: PanelInfo
@@ -238,6 +249,7 @@ class Schedule:
     readings: Readings | None = None
     profiles: tuple[UserProfile, ...] = ()
     format: int = FORMAT_VERSION
+    log: LogSpec | None = None
 
     @property
     def system(self) -> SupplySystem:

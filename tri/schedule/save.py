@@ -8,10 +8,6 @@ the formatting of untouched parts survive.
 
 from __future__ import annotations
 
-import contextlib
-import os
-import shutil
-import tempfile
 from pathlib import Path
 from typing import Any
 
@@ -19,15 +15,7 @@ import tomlkit
 from tomlkit.items import AoT, Table, Whitespace
 from tomlkit.toml_document import TOMLDocument
 
-from tri.schedule.errors import ScheduleError, ScheduleIssue
-from tri.schedule.load import (
-    _read_panel,
-    _read_profiles,
-    _read_readings,
-    _read_supply,
-    _Reader,
-    read_circuit,
-)
+from tri.schedule.atomic import write_atomic
 from tri.schedule.model import (
     FORMAT_VERSION,
     Circuit,
@@ -38,9 +26,14 @@ from tri.schedule.model import (
     UserProfile,
     parse_phase_text,
 )
+from tri.schedule.read_circuit import read_circuit
+from tri.schedule.read_panel import read_panel
+from tri.schedule.read_profiles import read_profiles
+from tri.schedule.read_readings import read_readings
+from tri.schedule.read_supply import read_supply
+from tri.schedule.reader import Reader
 from tri.schedule.slots import PHASES, TWO_COLUMN
-
-BACKUP_SUFFIX = ".bak"
+from tri.schedule.use_factors import use_table
 
 HEADER_COMMENT = (
     "Panel schedule for tri. Edit it by hand or with `tri FILE`; keep it in version control.",
@@ -55,6 +48,11 @@ def _clean(value: Any) -> Any:
     if isinstance(value, tuple):
         return [_clean(v) for v in value]
     return value
+
+
+def _plain(value: Any) -> Any:
+    """A tomlkit item as plain Python data (dicts, lists, numbers, text)."""
+    return value.unwrap() if hasattr(value, "unwrap") else value
 
 
 def _same(a: Any, b: Any) -> bool:
@@ -79,7 +77,7 @@ def _set(table: Any, key: str, value: Any, default: Any = None) -> None:
         table[key] = _clean(value)
         return
     current = table[key]
-    current = current.unwrap() if hasattr(current, "unwrap") else current
+    current = _plain(current)
     if not _same(current, value):
         table[key] = _clean(value)
 
@@ -98,15 +96,15 @@ def _insert_table(doc: TOMLDocument, key: str, table: Table, after: tuple[str, .
     doc[key] = table
 
 
-def _quiet_reader() -> _Reader:
-    return _Reader(None, None)
+def _quiet_reader() -> Reader:
+    return Reader(None, None)
 
 
 def _write_panel(doc: TOMLDocument, panel: PanelInfo) -> None:
-    existing = doc.get("panel")
+    existing: Any = doc.get("panel")
     if (
         isinstance(existing, dict)
-        and _read_panel(_quiet_reader(), {"panel": existing.unwrap()}) == panel
+        and read_panel(_quiet_reader(), {"panel": _plain(existing)}) == panel
     ):
         return
     created = not isinstance(existing, Table)
@@ -126,14 +124,14 @@ def _write_panel(doc: TOMLDocument, panel: PanelInfo) -> None:
 
 
 def _write_supply(doc: TOMLDocument, supply: Supply | None) -> None:
-    existing = doc.get("supply")
+    existing: Any = doc.get("supply")
     if supply is None:
         if existing is not None:
             del doc["supply"]
         return
     if (
         isinstance(existing, dict)
-        and _read_supply(_quiet_reader(), {"supply": existing.unwrap()}) == supply
+        and read_supply(_quiet_reader(), {"supply": _plain(existing)}) == supply
     ):
         return
     created = not isinstance(existing, Table)
@@ -156,13 +154,13 @@ def _triple_table(labels: list[str], values: tuple[Any, ...], extra: dict[str, A
 
 
 def _write_readings(doc: TOMLDocument, readings: Readings | None, panel: PanelInfo) -> None:
-    existing = doc.get("readings")
+    existing: Any = doc.get("readings")
     if readings is None:
         if existing is not None:
             del doc["readings"]
         return
     if isinstance(existing, dict):
-        old = _read_readings(_quiet_reader(), {"readings": existing.unwrap()}, panel)
+        old = read_readings(_quiet_reader(), {"readings": _plain(existing)}, panel)
         if old == readings:
             return
     created = not isinstance(existing, Table)
@@ -199,9 +197,9 @@ def _profile_table(profile: UserProfile) -> Table:
 
 
 def _write_profiles(doc: TOMLDocument, profiles: tuple[UserProfile, ...]) -> None:
-    existing = doc.get("profiles")
+    existing: Any = doc.get("profiles")
     if isinstance(existing, dict):
-        old = _read_profiles(_quiet_reader(), {"profiles": existing.unwrap()})
+        old = read_profiles(_quiet_reader(), {"profiles": _plain(existing)})
         if old == profiles:
             return
     if not profiles:
@@ -219,7 +217,7 @@ def _write_profiles(doc: TOMLDocument, profiles: tuple[UserProfile, ...]) -> Non
     for name, profile in wanted.items():
         body = existing.get(name)
         if isinstance(body, dict):
-            old = _read_profiles(_quiet_reader(), {"profiles": {name: body.unwrap()}})
+            old = read_profiles(_quiet_reader(), {"profiles": {name: _plain(body)}})
             if old == (profile,):
                 continue
             _set(body, "description", profile.description or None)
@@ -233,7 +231,7 @@ def _write_profiles(doc: TOMLDocument, profiles: tuple[UserProfile, ...]) -> Non
 def _write_circuit(table: Any, c: Circuit, schedule: Schedule) -> None:
     panel = schedule.panel
     if isinstance(table, dict) and c.source_index is not None:
-        old = read_circuit(_quiet_reader(), table.unwrap(), c.source_index, panel)
+        old = read_circuit(_quiet_reader(), _plain(table), c.source_index, panel)
         if old == c:
             return
     if panel.layout == TWO_COLUMN:
@@ -257,11 +255,12 @@ def _write_circuit(table: Any, c: Circuit, schedule: Schedule) -> None:
     poles_default = len(c.phases) if (panel.layout == PHASES and c.phases) else 1
     if "poles" in table or c.poles != poles_default:
         _set(table, "poles", c.poles)
-    load_key = f"load_{c.load_kind}"
-    for key in ("load_va", "load_w", "load_a"):
-        if key != load_key and key in table:
-            del table[key]
-    _set(table, load_key, c.load_value)
+    if c.feed is None:  # a feeder circuit's load is its panel's; its feeds keys stay as written
+        load_key = f"load_{c.load_kind}"
+        for key in ("load_va", "load_w", "load_a"):
+            if key != load_key and key in table:
+                del table[key]
+        _set(table, load_key, c.load_value)
     _set(table, "pf", c.pf, 1.0)
     _set(table, "leading", c.leading, False)
     _set(table, "profile", c.profile, "linear")
@@ -270,10 +269,12 @@ def _write_circuit(table: Any, c: Circuit, schedule: Schedule) -> None:
     _set(table, "breaker_a", c.breaker_a)
     if c.note or "note" in table:
         _set(table, "note", c.note or None)
+    if c.use or "use" in table:
+        _set(table, "use", use_table(c.use) if c.use else None)
 
 
 def _write_circuits(doc: TOMLDocument, schedule: Schedule) -> None:
-    existing = doc.get("circuit")
+    existing: Any = doc.get("circuit")
     if not schedule.circuits:
         if existing is not None:
             del doc["circuit"]
@@ -294,10 +295,10 @@ def _write_circuits(doc: TOMLDocument, schedule: Schedule) -> None:
         # Reordered: rebuild the array, reusing each original table once.
         used: set[int] = set()
         rebuilt = tomlkit.aot()
-        for k in order:
-            if k is not None and k < len(old_tables) and k not in used:
-                used.add(k)
-                rebuilt.append(old_tables[k])
+        for src in order:
+            if src is not None and src < len(old_tables) and src not in used:
+                used.add(src)
+                rebuilt.append(old_tables[src])
             else:
                 rebuilt.append(tomlkit.table())
         if existing is not None:
@@ -354,52 +355,11 @@ def schedule_text(schedule: Schedule, original: TOMLDocument | None = None) -> s
     return text if text.endswith("\n") else text + "\n"
 
 
-def write_atomic(path: str | Path, text: str, *, backup: bool = True) -> Path | None:
-    """Write ``text`` to ``path`` atomically; keep the previous file as ``path.bak``.
-
-    The text goes to a temporary file in the same folder, is flushed and
-    synced, then renamed over the target, so a crash leaves either the old
-    or the new file, never half of one. Returns the backup path, if one was made.
-
-    Raises
-    ------
-    ScheduleError
-        When the folder cannot be written; the original file is untouched.
-    """
-    target = Path(path)
-    folder = target.parent if str(target.parent) else Path(".")
-    bak: Path | None = None
-    tmp_name = None
-    try:
-        fd, tmp_name = tempfile.mkstemp(prefix=f".{target.name}.", suffix=".tmp", dir=folder)
-        with os.fdopen(fd, "w", encoding="utf-8", newline="") as fh:
-            fh.write(text)
-            fh.flush()
-            os.fsync(fh.fileno())
-        if target.exists():
-            shutil.copymode(target, tmp_name)
-            if backup:
-                bak = target.with_name(target.name + BACKUP_SUFFIX)
-                shutil.copy2(target, bak)
-        else:
-            os.chmod(tmp_name, 0o644)
-        os.replace(tmp_name, target)
-        tmp_name = None
-    except OSError as exc:
-        raise ScheduleError(
-            [ScheduleIssue(f"cannot save: {exc.strerror or exc}", file=str(path))]
-        ) from None
-    finally:
-        if tmp_name is not None:
-            with contextlib.suppress(OSError):
-                os.unlink(tmp_name)
-    return bak
-
-
 def save_schedule(
     path: str | Path, schedule: Schedule, original: TOMLDocument | None = None
 ) -> TOMLDocument:
-    """Save ``schedule`` to ``path`` atomically, keeping comments of ``original``.
+    """Save ``schedule`` to ``path`` atomically (:func:`~tri.schedule.atomic.write_atomic`),
+    keeping the comments of ``original``.
 
     Returns the document written, to be kept as the new ``original``.
     """

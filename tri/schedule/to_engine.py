@@ -6,6 +6,8 @@ contract (:mod:`tri.engine.inputs`).
 
 from __future__ import annotations
 
+import dataclasses
+
 import numpy as np
 
 from tri.engine.analysis import analyse
@@ -20,12 +22,15 @@ from tri.engine.inputs import (
     SupplyImpedance,
     SystemVoltages,
 )
-from tri.engine.loading import FindingLimits
+from tri.engine.limits import CONTINUOUS_FACTOR, FindingLimits, continuous_factor_for, practice_for
 from tri.engine.profiles import profile_matrix
-from tri.engine.results import PanelAnalysis
+from tri.engine.results import Finding, PanelAnalysis
 from tri.schedule.model import Circuit, Schedule
+from tri.schedule.validate import circuit_where
 
-DEFAULT_CONTINUOUS_FACTOR = 1.25
+#: The continuous factor in NEC practice [-] (:data:`tri.engine.limits.CONTINUOUS_FACTOR`);
+#: the default follows the panel's practice (:func:`default_continuous_factor`).
+DEFAULT_CONTINUOUS_FACTOR = CONTINUOUS_FACTOR
 
 
 def connection_of(circuit: Circuit) -> tuple[int, int, int]:
@@ -59,7 +64,15 @@ def circuit_arrays(schedule: Schedule) -> CircuitArrays:
         harmonics=harmonics,
         orders=orders,
         continuous=np.array([c.continuous for c in circuits], dtype=bool),
+        breaker_a=np.array(
+            [np.nan if c.breaker_a is None else c.breaker_a for c in circuits], dtype=float
+        ),
     )
+
+
+def circuit_labels(schedule: Schedule) -> tuple[str, ...]:
+    """How findings name each circuit: its name and its slot or phases, never a number."""
+    return tuple(circuit_where(c, schedule) for c in schedule.circuits)
 
 
 def system_voltages(schedule: Schedule) -> SystemVoltages:
@@ -67,8 +80,15 @@ def system_voltages(schedule: Schedule) -> SystemVoltages:
     return schedule.system.voltages(schedule.panel.frequency_hz)
 
 
-def ratings(schedule: Schedule, continuous_factor: float = DEFAULT_CONTINUOUS_FACTOR) -> Ratings:
-    """Bus, main and neutral ratings of the panel [A]."""
+def default_continuous_factor(schedule: Schedule) -> float:
+    """The continuous factor of the panel's practice: 1.25 (NEC, 60 Hz), 1 (IEC, 50 Hz) [-]."""
+    return continuous_factor_for(practice_for(system_voltages(schedule).frequency_hz))
+
+
+def ratings(schedule: Schedule, continuous_factor: float | None = None) -> Ratings:
+    """Bus, main and neutral ratings of the panel [A] (factor None: the practice's)."""
+    if continuous_factor is None:
+        continuous_factor = default_continuous_factor(schedule)
     p = schedule.panel
     return Ratings(
         bus_a=p.bus_a,
@@ -100,7 +120,7 @@ def analyse_schedule(
     schedule: Schedule,
     *,
     iterate_voltage: bool = False,
-    continuous_factor: float = DEFAULT_CONTINUOUS_FACTOR,
+    continuous_factor: float | None = None,
     limits: FindingLimits | None = None,
 ) -> PanelAnalysis:
     """Run the engine on a schedule: the one call the CLI, the UI and the rebalancer share.
@@ -111,12 +131,13 @@ def analyse_schedule(
         The panel.
     iterate_voltage : bool
         With a ``[supply]``, solve loads as constant power at the panel voltage.
-    continuous_factor : float
-        Multiplier on continuous loads for the sizing check [-].
+    continuous_factor : float, optional
+        Multiplier on continuous loads for the sizing check [-]; default the
+        panel's practice (:func:`default_continuous_factor`).
     limits : FindingLimits, optional
         Thresholds for findings.
     """
-    return analyse(
+    result = analyse(
         circuit_arrays(schedule),
         system_voltages(schedule),
         ratings(schedule, continuous_factor),
@@ -125,4 +146,15 @@ def analyse_schedule(
         iterate_voltage=iterate_voltage,
         phase_labels=schedule.labels,
         limits=limits,
+        circuit_labels=circuit_labels(schedule),
     )
+    fed = [c.feed.path for c in schedule.circuits if c.feed is not None]
+    if fed:  # one panel of a building, analysed alone (the UI, tri suggest)
+        note = Finding(
+            "info",
+            f"This panel feeds {len(fed)} panel(s) ({', '.join(fed)}); these figures leave "
+            "them out. `tri report` on this file rolls the whole building up.",
+            "tri roll-up (feeder circuits carry no load of their own)",
+        )
+        result = dataclasses.replace(result, findings=(*result.findings, note))
+    return result

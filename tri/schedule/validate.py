@@ -8,20 +8,19 @@ the raw file live in :mod:`tri.schedule.load`.
 from __future__ import annotations
 
 from tri.engine.profiles import BUILTIN_PROFILES
-from tri.schedule.errors import ScheduleIssue
+from tri.schedule.errors import ScheduleIssue, name_circuit
 from tri.schedule.model import Circuit, Schedule
 from tri.schedule.slots import fits, occupied_slots
 
 
-def circuit_where(index: int, circuit: Circuit, schedule: Schedule | None = None) -> str:
-    """How messages name a circuit: number in the file, slot or phases, and name."""
-    place = ""
+def circuit_where(circuit: Circuit, schedule: Schedule) -> str:
+    """How messages name a circuit: its name and its slot or phases (see ``name_circuit``)."""
+    place = None
     if circuit.slot is not None:
-        place = f"slot {circuit.slot}, "
-    elif circuit.phases is not None and schedule is not None:
-        place = f"phases {schedule.phase_text(circuit.phases)}, "
-    name = circuit.name or "unnamed"
-    return f'circuit {index + 1} ({place}"{name}")'
+        place = f"slot {circuit.slot}"
+    elif circuit.phases is not None:
+        place = f"phases {schedule.phase_text(circuit.phases)}"
+    return name_circuit(circuit.name, place)
 
 
 def check_schedule(schedule: Schedule) -> list[ScheduleIssue]:
@@ -36,7 +35,7 @@ def check_schedule(schedule: Schedule) -> list[ScheduleIssue]:
     known_profiles = set(BUILTIN_PROFILES) | {p.name for p in schedule.profiles}
     owner: dict[int, int] = {}
     for i, c in enumerate(schedule.circuits):
-        where = circuit_where(i, c, schedule)
+        where = circuit_where(c, schedule)
 
         def add(message: str, key: str | None, where: str = where, i: int = i) -> None:
             issues.append(ScheduleIssue(message, where=where, key=key, circuit_index=i))
@@ -75,10 +74,9 @@ def check_schedule(schedule: Schedule) -> list[ScheduleIssue]:
             continue
         for s in occupied_slots(c.slot, c.poles):
             if s in owner:
-                j = owner[s]
-                other = schedule.circuits[j]
+                other = schedule.circuits[owner[s]]
                 add(
-                    f'slot {s} is already taken by circuit {j + 1} ("{other.name}"); '
+                    f"slot {s} is already taken by {circuit_where(other, schedule)}; "
                     "two breakers cannot share a slot",
                     "slot",
                 )

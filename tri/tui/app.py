@@ -23,16 +23,10 @@ from tri.schedule.load import ScheduleFile, load_schedule
 from tri.schedule.model import Schedule
 from tri.tui import compute, recent
 from tri.tui.messages import AnalysisDone
-from tri.tui.session import Session
+from tri.tui.session import FileChangedOnDisk, Session
+from tri.tui.wording import issue_text, plural
 
 THEMES = ("textual-dark", "textual-light", "ansi-dark", "ansi-light")
-
-
-def demo_folder() -> Path:
-    """Where the demo panels live (``panels_demo/`` at the repository root)."""
-    import tri
-
-    return Path(tri.__file__).resolve().parents[1] / "panels_demo"
 
 
 class TriApp(App[int]):
@@ -60,6 +54,7 @@ class TriApp(App[int]):
         self.session: Session | None = None
         self.analysis: Any = None
         self.analysis_error: str | None = None
+        self.checks: Any = ()
         self.generation = 0
         self.analysed_generation = -1
         self.quitting = False
@@ -130,7 +125,7 @@ class TriApp(App[int]):
             try:
                 session.save(path)
             except ScheduleError as exc:
-                self.show_problems(f"Cannot create {path.name}", exc)
+                self.show_problems(f"Cannot create {path.name}", exc, path.name, result)
                 return
             recent.remember(path)
             self.start_session(session)
@@ -149,9 +144,10 @@ class TriApp(App[int]):
         if entry is None or entry.schedule == s.schedule:
             return
         changed = entry.file_changed_since()
+        written = entry.written_utc[:16].replace("T", " ")
         message = (
             f"Unsaved edits of {s.title_name} were kept when tri last stopped "
-            f"({entry.edits} edit(s), written {entry.written_utc[:16].replace('T', ' ')} UTC)."
+            f"({plural(entry.edits, 'edit')}, written {written} UTC)."
         )
         if changed:
             message += "\nThe file has changed on disk since; recovering replaces it on save."
@@ -206,19 +202,23 @@ class TriApp(App[int]):
 
     @work(thread=True, exclusive=True, group="analysis", exit_on_error=False)
     def _analyse(self, generation: int, schedule: Schedule) -> None:
+        checks: Any = ()
         try:
             result, error = compute.analyse_schedule(schedule), None
+            checks = compute.check_results(result, schedule)
         except ImportError:
             result, error = None, compute.ENGINE_MISSING
         except Exception as exc:  # an engine failure is a message, not a crash
             result, error = None, f"The engine could not analyse this schedule: {exc}"
-        self.call_from_thread(self.post_message, AnalysisDone(generation, result, error))
+        done = AnalysisDone(generation, result, error, checks)
+        self.call_from_thread(self.post_message, done)
 
     def on_analysis_done(self, message: AnalysisDone) -> None:
         if message.generation != self.generation:
             return
         self.analysis = message.analysis
         self.analysis_error = message.error
+        self.checks = message.checks
         self.analysed_generation = message.generation
         self.refresh_screens()
 
@@ -244,12 +244,15 @@ class TriApp(App[int]):
             if setter is not None:
                 setter(text, error)
 
-    def show_problems(self, title: str, exc: ScheduleError) -> None:
-        """Every located problem of a schedule, in a page the user closes."""
+    def show_problems(
+        self, title: str, exc: ScheduleError, file_name: str = "", schedule: Schedule | None = None
+    ) -> None:
+        """Every located problem of a schedule, each naming the file, in a page the user closes."""
         from tri.tui.screens.text_view import TextScreen
 
-        body = "\n".join(str(i) for i in exc.issues) or str(exc)
-        self.push_screen(TextScreen(title, Text(body)))
+        lines = [issue_text(i, file_name, schedule) for i in exc.issues]
+        body = "\n".join(lines) or str(exc)
+        self.push_screen(TextScreen(f"{title} ({plural(len(lines), 'problem')})", Text(body)))
 
     # ------------------------------------------------------------ saving
 
@@ -266,9 +269,17 @@ class TriApp(App[int]):
         assert self.session is not None
         try:
             self.session.save(path)
+        except FileChangedOnDisk:
+            from tri.tui.screens.changed_on_disk import ask_about_changed_file
+
+            self.set_status(f"{path.name} changed on disk since it was opened; nothing written.")
+            ask_about_changed_file(self, path, then_quit)
+            return False
         except ScheduleError as exc:
-            self.set_status(f"Not saved: {exc.issues[0] if exc.issues else exc}", error=True)
-            self.show_problems("Not saved", exc)
+            shown = self.session.schedule
+            first = issue_text(exc.issues[0], path.name, shown) if exc.issues else str(exc)
+            self.set_status(f"{path.name} not saved: {first}", error=True)
+            self.show_problems(f"{path.name} not saved", exc, path.name, shown)
             return False
         recent.remember(path)
         self.set_status(f"Saved {path.name} (previous version kept as {path.name}.bak).")

@@ -11,13 +11,15 @@ class AnalysisDone(Message):
     """The engine finished analysing schedule generation ``generation``.
 
     ``analysis`` is the engine's :class:`~tri.engine.results.PanelAnalysis`
-    (``None`` when it failed or the engine is unavailable, with ``error`` saying why).
+    (``None`` when it failed or the engine is unavailable, with ``error`` saying why);
+    ``checks`` the limits of ``tri check`` judged on it.
     """
 
-    def __init__(self, generation: int, analysis: Any, error: str | None) -> None:
+    def __init__(self, generation: int, analysis: Any, error: str | None, checks: Any = ()) -> None:
         self.generation = generation
         self.analysis = analysis
         self.error = error
+        self.checks = checks
         super().__init__()
 
 

@@ -8,16 +8,20 @@ renders what they return.
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 from pathlib import Path
 
 from tomlkit.toml_document import TOMLDocument
 
 from tri.schedule.errors import ScheduleError, ScheduleIssue
 from tri.schedule.journal import (
+    JournalChoice,
+    alternate_path,
+    choose_journal,
     discard_journal,
     file_digest,
-    journal_path,
+    journal_owner_running,
+    read_journal,
     write_journal,
 )
 from tri.schedule.load import ScheduleFile, build_schedule
@@ -26,6 +30,14 @@ from tri.schedule.save import save_schedule
 from tri.schedule.validate import check_schedule
 
 UNDO_LIMIT = 500
+
+
+class FileChangedOnDisk(ScheduleError):
+    """The file changed on disk (another editor, ``git pull``) since it was opened or saved.
+
+    Nothing was written. :meth:`Session.accept_disk_version` and saving again
+    overwrites it; the UI asks first (:mod:`tri.tui.screens.changed_on_disk`).
+    """
 
 
 @dataclass
@@ -57,6 +69,10 @@ class Session:
     base_digest: str | None = None
     journal_enabled: bool = True
     journal_error: str | None = None
+    _journal: JournalChoice | None = field(default=None, repr=False, compare=False)
+    _journal_key: tuple[str | None, str] | None = field(default=None, repr=False, compare=False)
+    _inherit_open: bool = field(default=True, repr=False, compare=False)
+    _notice: str | None = field(default=None, repr=False, compare=False)
 
     @classmethod
     def from_file(cls, loaded: ScheduleFile) -> Session:
@@ -94,10 +110,53 @@ class Session:
             return self.path.name
         return f"{self.source_name or 'untitled'} (unsaved copy)"
 
+    def _journal_choice(self) -> JournalChoice:
+        """This session's journal files, chosen again when the file (or untitled name) changes."""
+        untitled = self.schedule.panel.name if self.path is None else ""
+        key = (None if self.path is None else str(self.path.expanduser().resolve()), untitled)
+        if self._journal is None or self._journal_key != key:
+            previous = self._journal
+            choice = choose_journal(self.path, self.schedule.panel.name)
+            if previous is not None:
+                # After a save under another name (or an untitled rename) there is
+                # nothing to inherit; the old journal was this session's own.
+                choice = replace(choice, inherited=None)
+                discard_journal(previous.path)
+            if choice.other_editor:
+                self._notice = (
+                    f"{self.title_name} is also open in another tri ({choice.other_editor}); "
+                    "each keeps its own autosave journal"
+                )
+            self._journal, self._journal_key = choice, key
+        return self._journal
+
     @property
     def journal_file(self) -> Path:
-        """Where this session's journal lives."""
-        return journal_path(self.path, self.schedule.panel.name)
+        """This session's journal: at first a journal left by a tri that stopped, if any
+        (the UI offers to recover it), then the session's own."""
+        choice = self._journal_choice()
+        if choice.inherited is not None and self._inherit_open:
+            return choice.inherited
+        return choice.path
+
+    def _settle_inherited(self, choice: JournalChoice) -> bool:
+        """Decide, at the first journal write, what becomes of an inherited journal.
+
+        Recovered (the schedule is the journal's): carry on writing it.
+        Discarded, or no different from the file: remove it. Kept for later
+        (the user edited instead): leave it alone and write a journal of our own.
+        Returns False when there is nothing more to write.
+        """
+        self._inherit_open = False
+        inherited = choice.inherited
+        assert inherited is not None
+        entry = read_journal(inherited)
+        if not self.dirty or (entry is not None and entry.schedule == self.saved):
+            discard_journal(inherited)
+            return self.dirty
+        if entry is not None and entry.schedule == self.schedule:
+            self._journal = replace(choice, path=inherited)
+        return True
 
     # ------------------------------------------------------------ edits
 
@@ -141,21 +200,48 @@ class Session:
         if not self.journal_enabled:
             return
         try:
+            choice = self._journal_choice()
+            if choice.inherited is not None and self._inherit_open:
+                if not self._settle_inherited(choice):
+                    return
+                choice = self._journal_choice()
+            target = choice.path
             if self.dirty:
-                write_journal(
-                    self.journal_file, self.schedule, self.path, self.base_digest, self.edits
-                )
+                if target.exists() and journal_owner_running(target):
+                    # Another tri started writing this name since: never overwrite it.
+                    target = alternate_path(target)
+                    self._journal = replace(choice, path=target)
+                write_journal(target, self.schedule, self.path, self.base_digest, self.edits)
             else:
-                discard_journal(self.journal_file)
-            self.journal_error = None
+                discard_journal(target)
+            self.journal_error, self._notice = self._notice, None
         except OSError as exc:
             self.journal_error = f"autosave journal not written: {exc.strerror or exc}"
 
-    def save(self, path: Path | None = None) -> Path:
+    def _is_own_file(self, target: Path) -> bool:
+        if self.path is None:
+            return False
+        return target.expanduser().resolve() == self.path.expanduser().resolve()
+
+    def changed_on_disk(self) -> bool:
+        """True when the session's file is no longer what was opened or last saved."""
+        if self.path is None or self.base_digest is None:
+            return False
+        now = file_digest(self.path)
+        return now is not None and now != self.base_digest
+
+    def accept_disk_version(self) -> None:
+        """Take the file as it is on disk now as the base, so that saving overwrites it."""
+        self.base_digest = file_digest(self.path)
+
+    def save(self, path: Path | None = None, *, overwrite_changed: bool = False) -> Path:
         """Save to ``path`` (default: the session's own path), atomically, keeping comments.
 
         Raises
         ------
+        FileChangedOnDisk
+            When saving over the session's own file and it changed on disk
+            since it was opened or saved (unless ``overwrite_changed``).
         ScheduleError
             When there is no path, the schedule has problems, or the disk refuses.
         """
@@ -164,8 +250,20 @@ class Session:
             raise ScheduleError([ScheduleIssue("no file name yet; use save as")])
         problems = check_schedule(self.schedule)
         if problems:
-            raise ScheduleError(problems)
-        old_journal = self.journal_file
+            raise ScheduleError([replace(p, file=str(target)) for p in problems])
+        if not overwrite_changed and self._is_own_file(target) and self.changed_on_disk():
+            raise FileChangedOnDisk(
+                [
+                    ScheduleIssue(
+                        "changed on disk since it was opened (another editor, a git pull?); "
+                        "nothing was written. Save your edits under another name, or "
+                        "reopen the file to see the change (your edits stay in the journal)",
+                        file=str(target),
+                    )
+                ]
+            )
+        # Only this session's own journal goes; one kept for later stays.
+        old_journal = self._journal_choice().path if self.journal_enabled else None
         document = save_schedule(target, self.schedule, self.document)
         # Re-read what was written so every circuit knows its table in the new
         # document (new circuits must not be appended a second time next save).
@@ -176,6 +274,7 @@ class Session:
         self.saved = written
         self.base_digest = file_digest(target)
         self.edits = 0
-        discard_journal(old_journal)
-        discard_journal(self.journal_file)
+        if old_journal is not None:
+            discard_journal(old_journal)
+            discard_journal(self._journal_choice().path)
         return target

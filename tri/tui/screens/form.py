@@ -72,14 +72,23 @@ class FormScreen(ModalScreen[Any]):
         Binding("up,shift+tab", "app.focus_previous", "Previous", show=False, priority=True),
     ]
 
-    def __init__(self, title: str, fields: list[Field], validate: Validator, help_text: str = ""):
+    def __init__(
+        self,
+        title: str,
+        fields: list[Field],
+        validate: Validator,
+        help_text: str = "",
+        describe: Callable[[Any], str] | None = None,
+    ):
         super().__init__()
         self.form_title = title
         self.fields = fields
         self.validate = validate
         self.help_text = help_text
+        self.describe = describe
         self.problems: dict[str, str] = {}
         self.result: Any = None
+        self.moved_to: str | None = None
 
     def compose(self) -> ComposeResult:
         with Vertical(id="form-box", classes="dialog"):
@@ -87,12 +96,13 @@ class FormScreen(ModalScreen[Any]):
             with VerticalScroll(id="form-fields"):
                 for f in self.fields:
                     with Horizontal(classes="form-row", id=f"row-{f.key}"):
+                        yield Label(" ", classes="form-focus", id=f"focus-{f.key}")
                         yield Label(" ", classes="form-mark", id=f"mark-{f.key}")
                         yield Label(f.label, classes="form-label")
                         yield self._widget(f)
             yield Static("", id="form-message", classes="form-message")
             yield Static(
-                "Enter accept · Esc cancel · ↑↓ move · ←→ Space change",
+                "Enter accept · Esc cancel · ↑↓ field (▶ is here) · ←→ change",
                 classes="dialog-keys",
             )
 
@@ -147,10 +157,14 @@ class FormScreen(ModalScreen[Any]):
             text = self.problems[first_key]
             more = len(self.problems) - 1
             prefix = f"✗ {label}: " if first_key in keys and label else "✗ "
-            message.update(Text(prefix + text + (f" (+{more} more)" if more > 0 else "")))
+            tail = f" (+{more} more)" if more > 0 else ""
+            if self.moved_to == first_key:
+                tail += f" ▶ The cursor is on {label} now."
+            message.update(Text(prefix + text + tail))
             message.set_class(True, "-error")
         else:
-            message.update(Text(self.help_text or "✓ OK"))
+            described = self.describe(self.result) if self.describe is not None else ""
+            message.update(Text(described or self.help_text or "✓ Every field is valid."))
             message.set_class(False, "-error")
 
     def on_input_changed(self, event: Input.Changed) -> None:
@@ -169,13 +183,26 @@ class FormScreen(ModalScreen[Any]):
         event.stop()
         self.action_accept()
 
+    def on_descendant_focus(self, event: Any) -> None:
+        """Mark the row being typed in with ▶ (colour is never the only sign of focus)."""
+        focused = getattr(event, "widget", None)
+        for f in self.fields:
+            here = focused is not None and focused.id == f"field-{f.key}"
+            self.query_one(f"#focus-{f.key}", Label).update("▶" if here else " ")
+            self.query_one(f"#row-{f.key}").set_class(here, "-focused")
+
     def action_accept(self) -> None:
+        self.moved_to = None
         self._revalidate()
         if self.problems:
             first = next(iter(self.problems))
             for f in self.fields:
                 if f.key == first and not f.disabled:
-                    self.query_one(f"#field-{f.key}").focus()
+                    widget = self.query_one(f"#field-{f.key}")
+                    if not widget.has_focus:
+                        self.moved_to = f.key
+                        widget.focus()
+            self._revalidate()
             self.app.bell()
             return
         self.dismiss(self.result)

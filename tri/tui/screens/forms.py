@@ -1,7 +1,7 @@
 """The edit forms: circuit, panel, supply and readings.
 
 Each validator builds the same plain data a TOML file would hold and runs the
-schedule loader's own readers (``read_circuit``, ``_read_panel`` ...) and
+schedule loader's own readers (``read_circuit``, ``read_panel`` ...) and
 :func:`~tri.schedule.validate.check_schedule` on it, so the UI accepts exactly
 what a file may contain, with the same messages.
 """
@@ -12,19 +12,25 @@ from dataclasses import replace
 from typing import Any
 
 from tri.engine.profiles import BUILTIN_PROFILES
-from tri.schedule.load import (
-    _read_panel,
-    _read_readings,
-    _read_supply,
-    _Reader,
-    read_circuit,
-)
 from tri.schedule.model import Circuit, Schedule
+from tri.schedule.read_circuit import read_circuit
+from tri.schedule.read_panel import read_panel
+from tri.schedule.read_readings import read_readings
+from tri.schedule.read_supply import read_supply
+from tri.schedule.reader import Reader
 from tri.schedule.slots import TWO_COLUMN
 from tri.schedule.systems import SYSTEMS
 from tri.schedule.validate import check_schedule
 from tri.tui.fmt import parse_number
+from tri.tui.rules import move_problems, move_summary, new_problems
 from tri.tui.screens.form import Field, FormScreen, Values
+from tri.tui.wording import circuit_label, issue_words, plural
+
+#: The circuit keys the circuit form edits; any other key of the circuit is kept.
+FORM_KEYS = (
+    "name", "slot", "phases", "poles", "load_kind", "load_value", "pf",
+    "leading", "profile", "continuous", "locked", "breaker_a", "note",
+)  # fmt: skip
 
 LOAD_UNITS = (("VA", "va"), ("W", "w"), ("A", "a"))
 
@@ -35,7 +41,7 @@ def _num_text(value: float | None) -> str:
     return f"{value:g}"
 
 
-def _issues_by_key(reader: _Reader) -> dict[str, str]:
+def _issues_by_key(reader: Reader) -> dict[str, str]:
     out: dict[str, str] = {}
     for issue in reader.issues:
         out.setdefault(issue.key or "", issue.message)
@@ -51,15 +57,12 @@ def _put(raw: dict[str, Any], key: str, text: str) -> None:
 # ---------------------------------------------------------------- circuit
 
 
-def circuit_form(schedule: Schedule, index: int | None, base: Circuit | None = None) -> FormScreen:
-    """Edit circuit ``index`` (``None``: a new circuit, prefilled from ``base``)."""
+def _circuit_fields(schedule: Schedule, c: Circuit) -> list[Field]:
+    """The circuit form's fields, filled from ``c``."""
     panel = schedule.panel
-    c = base if base is not None else (schedule.circuits[index] if index is not None else None)
-    c = c or Circuit(name="", load_value=0.0)
-    slots = panel.uses_slots
     place = (
         Field("slot", "Slot", _num_text(c.slot), hint=f"1..{panel.spaces}, blank = not placed")
-        if slots
+        if panel.uses_slots
         else Field(
             "phases",
             "Phases",
@@ -70,7 +73,7 @@ def circuit_form(schedule: Schedule, index: int | None, base: Circuit | None = N
     profiles = [*BUILTIN_PROFILES, *(p.name for p in schedule.profiles)]
     if c.profile not in profiles:
         profiles.append(c.profile)
-    fields = [
+    return [
         Field("name", "Name", c.name, hint="purpose, as in the panel directory"),
         place,
         Field(
@@ -96,7 +99,17 @@ def circuit_form(schedule: Schedule, index: int | None, base: Circuit | None = N
         Field("breaker_a", "Breaker A", _num_text(c.breaker_a), hint="rating, optional"),
         Field("note", "Note", c.note, hint="optional"),
     ]
+
+
+def circuit_form(schedule: Schedule, index: int | None, base: Circuit | None = None) -> FormScreen:
+    """Edit circuit ``index`` (``None``: a new circuit, prefilled from ``base``)."""
+    panel = schedule.panel
+    c = base if base is not None else (schedule.circuits[index] if index is not None else None)
+    c = c or Circuit(name="", load_value=0.0)
+    slots = panel.uses_slots
+    fields = _circuit_fields(schedule, c)
     position = index if index is not None else len(schedule.circuits)
+    keys = {f.key for f in fields}
 
     def validate(values: Values) -> tuple[Circuit | None, dict[str, str]]:
         raw: dict[str, Any] = {"name": values["name"]}
@@ -117,66 +130,80 @@ def circuit_form(schedule: Schedule, index: int | None, base: Circuit | None = N
         _put(raw, "breaker_a", values["breaker_a"])
         if values["note"].strip():
             raw["note"] = values["note"].strip()
-        reader = _Reader(None, None)
-        circuit = read_circuit(reader, raw, position, panel)
+        reader = Reader(None, None)
+        parsed = read_circuit(reader, raw, position, panel)
         problems = _issues_by_key(reader)
         if "load_va" in problems or "load_w" in problems or "load_a" in problems:
             problems["load"] = next(
                 problems.pop(k) for k in ("load_va", "load_w", "load_a") if k in problems
             )
-        if circuit is None:
+        if parsed is None:
             return None, problems or {"": "not a valid circuit"}
+        # Only what the form shows is replaced: keys it does not show stay as they were.
+        circuit = replace(c, **{k: getattr(parsed, k) for k in FORM_KEYS})
         if index is None:
             candidate = schedule.with_added(circuit)
         else:
-            circuit = replace(circuit, source_index=schedule.circuits[index].source_index)
             candidate = schedule.with_circuit(index, circuit)
-        for issue in check_schedule(candidate):
-            if issue.circuit_index == position:
-                problems.setdefault(issue.key or "", issue.message)
+        for key, text in new_problems(schedule, candidate, position):
+            problems.setdefault(key if key in keys else "", text)
         return (None if problems else circuit), problems
 
-    title = "Add a circuit" if index is None else f"Edit circuit: {c.name}"
+    title = "Add a circuit" if index is None else f"Edit {circuit_label(schedule, index)}"
     return FormScreen(title, fields, validate)
 
 
 def move_form(schedule: Schedule, index: int) -> FormScreen:
-    """Move circuit ``index`` to another slot (or other phases on a rail board)."""
+    """Move circuit ``index`` to another slot (or other phases on a rail board).
+
+    The field starts at the breaker's present position; a blank field is
+    refused (taking a breaker off the panel is its own action, ``o``).
+    """
     c = schedule.circuits[index]
     panel = schedule.panel
     if panel.uses_slots:
-        field = Field("slot", "To slot", "", hint=f"1..{panel.spaces}; blank = take it off")
+        now = "" if c.slot is None else str(c.slot)
+        field = Field("slot", "To slot", now, hint=f"first slot, 1..{panel.spaces}")
     else:
-        field = Field(
-            "phases", "To phases", "", hint="e.g. " + "".join(panel.phase_labels[: c.poles])
-        )
+        now = "" if c.phases is None else schedule.phase_text(c.phases)
+        example = "".join(panel.phase_labels[: c.poles])
+        field = Field("phases", "To phases", now, hint=f"e.g. {example}")
 
     def validate(values: Values) -> tuple[Circuit | None, dict[str, str]]:
-        reader = _Reader(None, None)
+        text = values[field.key].strip()
+        if not text:
+            return None, {field.key: "type where it goes; o in the main view takes it off"}
         if panel.uses_slots:
-            value = parse_number(values["slot"])
-            if value is None:
-                return c.at_slot(None), {}
+            value = parse_number(text)
             if not isinstance(value, int) or isinstance(value, bool):
-                return None, {"slot": f"found {value!r}, expected a whole slot number"}
-            moved = c.at_slot(value)
+                return None, {"slot": f"found {text!r}, expected a whole slot number"}
+            target = c.at_slot(value)
         else:
-            text = values["phases"].strip()
-            if not text:
-                return c.on_phases(None), {}
+            reader = Reader(None, None)
             raw = {"name": c.name, "phases": text, "poles": c.poles, "load_va": 0}
             parsed = read_circuit(reader, raw, index, panel)
             if parsed is None:
-                return None, _issues_by_key(reader)
-            moved = c.on_phases(parsed.phases)
-        problems: dict[str, str] = {}
-        for issue in check_schedule(schedule.with_circuit(index, moved)):
-            if issue.circuit_index == index:
-                problems.setdefault(field.key, issue.message)
-        return (None if problems else moved), problems
+                return None, {"phases": next(iter(_issues_by_key(reader).values()), "not phases")}
+            target = c.on_phases(parsed.phases)
+        problems = move_problems(schedule, index, target)
+        if problems:
+            return None, {field.key: "; ".join(problems)}
+        return target, {}
 
-    where = f"slot {c.slot}" if c.slot else schedule.phase_text(c.phases)
-    return FormScreen(f"Move {c.name} (now {where}, {c.poles}-pole)", [field], validate)
+    def describe(target: Circuit | None) -> str:
+        if target is None:
+            return ""
+        if (target.slot, target.phases) == (c.slot, c.phases):
+            return "It is there now: type the new position (o in the main view takes it off)."
+        return f"✓ Goes to {move_summary(schedule, target)}: every pole's position is free."
+
+    form = FormScreen(
+        f"Move {circuit_label(schedule, index)} ({c.poles}-pole)",
+        [field],
+        validate,
+        describe=describe,
+    )
+    return form
 
 
 # ---------------------------------------------------------------- panel
@@ -207,8 +234,8 @@ def panel_form(schedule: Schedule) -> FormScreen:
             labels = list(labels[0])
         raw["phase_labels"] = labels
         raw["layout"] = p.layout
-        reader = _Reader(None, None)
-        panel = _read_panel(reader, {"panel": raw})
+        reader = Reader(None, None)
+        panel = read_panel(reader, {"panel": raw})
         problems = _issues_by_key(reader)
         if panel is None:
             return None, problems or {"": "not a valid panel"}
@@ -217,7 +244,8 @@ def panel_form(schedule: Schedule) -> FormScreen:
         if issues:
             first = issues[0]
             key = "spaces" if first.key == "slot" else ("system" if first.key == "poles" else "")
-            problems[key] = f"{first.where}: {first.message}"
+            more = f" (and {plural(len(issues) - 1, 'other problem')})" if len(issues) > 1 else ""
+            problems[key] = issue_words(first, candidate) + more
         return (None if problems else candidate), problems
 
     return FormScreen("Panel", fields, validate)
@@ -250,8 +278,8 @@ def supply_form(schedule: Schedule) -> FormScreen:
             _put(raw, key, values[key])
         if not raw:
             return replace(schedule, supply=None), {}
-        reader = _Reader(None, None)
-        supply = _read_supply(reader, {"supply": raw})
+        reader = Reader(None, None)
+        supply = read_supply(reader, {"supply": raw})
         problems = _issues_by_key(reader)
         if supply is None:
             return None, problems or {"": "not a valid supply"}
@@ -298,8 +326,8 @@ def readings_form(schedule: Schedule) -> FormScreen:
             raw["taken"] = values["taken"].strip()
         if not raw:
             return replace(schedule, readings=None), {}
-        reader = _Reader(None, None)
-        readings = _read_readings(reader, {"readings": raw}, schedule.panel)
+        reader = Reader(None, None)
+        readings = read_readings(reader, {"readings": raw}, schedule.panel)
         problems: dict[str, str] = {}
         for issue in reader.issues:
             field_key = next(

@@ -6,10 +6,10 @@ from typing import Any
 
 from rich.text import Text
 
+from tri.safety import SAFETY_CAUTION
 from tri.tui.screens.text_view import TextScreen
 from tri.tui.widgets.circuit_table import HELP as TABLE_HELP
 from tri.tui.widgets.results_panel import HELP as RESULTS_HELP
-from tri.tui.widgets.results_panel import LEVEL_WORD, sorted_findings
 
 CAUTION_TITLE = "Safety"
 
@@ -18,7 +18,14 @@ def _key_name(keys: str) -> str:
     names = []
     for k in keys.split(","):
         k = k.strip()
-        k = {"question_mark": "?", "delete": "Del", "escape": "Esc", "enter": "Enter"}.get(k, k)
+        k = {
+            "question_mark": "?",
+            "delete": "Del",
+            "escape": "Esc",
+            "enter": "Enter",
+            "tab": "Tab",
+            "shift+tab": "Shift+Tab",
+        }.get(k, k)
         if k.startswith("ctrl+"):
             k = "Ctrl+" + k[5:].upper()
         names.append(k)
@@ -26,17 +33,18 @@ def _key_name(keys: str) -> str:
 
 
 def _keys_of(screen_cls: Any) -> list[tuple[str, str]]:
+    """(keys, what they do) of a screen's bindings, in the screen's own words where it has them."""
+    words = getattr(screen_cls, "KEY_WORDS", {})
     out = []
     for b in getattr(screen_cls, "BINDINGS", []):
         if b.description in ("Down", "Up", "Page down", "Page up"):
             continue
-        out.append((_key_name(b.key), b.description))
+        out.append((_key_name(b.key), words.get(b.action, b.description)))
     return out
 
 
 def help_screen(app: Any) -> TextScreen:
     """The help page for the app."""
-    from tri.cli.common import SAFETY_CAUTION
     from tri.tui.screens.main import MAIN_HELP, MainScreen
     from tri.tui.screens.phasor import PHASOR_HELP, PhasorScreen
     from tri.tui.screens.rebalance import REBALANCE_HELP, RebalanceScreen
@@ -64,7 +72,9 @@ def help_screen(app: Any) -> TextScreen:
         "",
     )
     main_keys = [
-        ("Enter / e", "edit the circuit under the cursor"),
+        ("Enter / e", "edit the circuit under the cursor (on a space: add one there)"),
+        ("↑↓ j k", "move; PgUp PgDn a page; Home End g G first and last"),
+        ("← →", "panel view: the other column (rail board: the next phase)"),
         *[(k, d) for k, d in _keys_of(MainScreen) if d not in ("Edit",)],
     ]
     section("Main view", main_keys, MAIN_HELP + "\n\n" + TABLE_HELP + "\n\n" + RESULTS_HELP)
@@ -79,17 +89,3 @@ def help_screen(app: Any) -> TextScreen:
     t.append(f"{CAUTION_TITLE}\n", style="bold underline")
     t.append(SAFETY_CAUTION + "\n")
     return TextScreen("Help: keys and what the screens show", t)
-
-
-def findings_screen(analysis: Any) -> TextScreen:
-    """Every finding of the engine, most serious first, with its source."""
-    t = Text()
-    findings = sorted_findings(analysis)
-    if not findings:
-        t.append("No findings.\n")
-    for f in findings:
-        word = LEVEL_WORD.get(f.level, f.level)
-        t.append(f"{word:5} ", style="bold red" if f.level == "limit" else "bold")
-        t.append(f.message + "\n")
-        t.append(f"      Source: {f.source}\n\n", style="dim")
-    return TextScreen(f"Findings ({len(findings)})", t)

@@ -21,7 +21,11 @@ angles grow anticlockwise, sequence A-B-C. Views: the three line currents
 and the neutral (I_N = I_A + I_B + I_C of the line-to-neutral loads); the
 Fortescue sequence components I0, I1, I2 (a balanced panel has only I1);
 and, when the file describes the supply, the phase voltages at the panel.
-Every phasor is named at its tip and listed with its magnitude and angle."""
+Every arrow has a head and is named beside its tip, and is listed with its
+magnitude and angle. Arrows that point the same way (within 8°) are drawn
+side by side a few dots apart, so none hides another; a phasor too short
+to draw at the scale of the others is named at the centre ("too short to
+draw"; its value is in the list). The neutral is dotted."""
 
 PHASE_STYLES = ("magenta", "cyan", "green")
 SEQ_STYLES = ("yellow", "blue", "red")
@@ -87,7 +91,7 @@ class PhasorScreen(Screen[None]):
         if self.view not in views:
             self.view = "currents"
         name = app.session.schedule.panel.name
-        room = max(self.size.width - 46, 0)
+        room = max(self.size.width - 28 - sum(len(v) + 3 for v in views), 0)
         name = name if len(name) <= room else name[: max(room - 1, 0)] + "…"
         title = Text(f" Phasors{' · ' + name if name else ''} │ view:")
         for v in views:
@@ -120,7 +124,9 @@ class PhasorScreen(Screen[None]):
                 t.append("N  ", style="bold")
                 t.append(f"{fmt.amps(n.current_a, 8)} {fmt.deg(n.current_deg)}\n")
                 t.append(f"   true RMS {fmt.amps(n.rms_a)}\n", style="dim")
-                t.append("\nN is dotted.\n", style="dim")
+                t.append(
+                    "\nN is dotted; arrows at one\nangle are drawn side by side.\n", style="dim"
+                )
             else:
                 t.append("No neutral (3-wire).\n", style="dim")
         elif self.view == "sequence":

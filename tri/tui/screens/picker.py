@@ -17,6 +17,7 @@ from tri.schedule.errors import ScheduleError
 from tri.schedule.load import load_schedule
 from tri.schedule.model import PanelInfo, Schedule
 from tri.tui import recent
+from tri.tui.demos import demo_files, demo_label
 from tri.tui.screens.form import Field, FormScreen, Values
 
 INTRO = (
@@ -34,23 +35,6 @@ def blank_schedule(path: Path | None = None) -> Schedule:
     return Schedule(
         PanelInfo(name=name, system="208Y/120", frequency_hz=60.0, spaces=42, bus_a=225.0)
     )
-
-
-def demo_files() -> list[Path]:
-    """Demo schedules shipped in ``panels_demo/``, sorted by name."""
-    from tri.tui.app import demo_folder
-
-    folder = demo_folder()
-    return sorted(folder.glob("*.toml")) if folder.is_dir() else []
-
-
-def demo_label(path: Path) -> str:
-    """``"Panel name · system · N circuits"`` for a demo file (its stem if unreadable)."""
-    try:
-        s = load_schedule(path).schedule
-    except ScheduleError:
-        return path.stem
-    return f"{s.panel.name} · {s.panel.system} · {len(s.circuits)} circuits"
 
 
 class PickerScreen(Screen[None]):

@@ -24,7 +24,6 @@ from textual.containers import Horizontal
 from textual.screen import Screen
 from textual.widgets import DataTable, Footer, Input, Label, ProgressBar, Static
 
-from tri.cli.common import SAFETY_CAUTION
 from tri.native_output import native_stdout_to_devnull
 from tri.rebalance import (
     DEFAULT_TARGET_PCT,
@@ -45,6 +44,7 @@ from tri.report.work_order import (
     status_words,
     work_order,
 )
+from tri.safety import SAFETY_CAUTION
 from tri.schedule.model import Schedule
 from tri.schedule.validate import check_schedule
 from tri.tui.fmt import parse_number

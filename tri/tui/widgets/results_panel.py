@@ -2,7 +2,8 @@
 
 Everything shown is read from the engine's ``PanelAnalysis``; nothing is
 recomputed here. Bars carry their numbers (amperes, percent of the rating)
-and the words OVER / NEAR beside them, so colour is never the only signal.
+and the words OVER / NEAR beside them (from :mod:`tri.engine.limits`, the
+same words and thresholds as the report), so colour is never the only signal.
 """
 
 from __future__ import annotations
@@ -12,7 +13,9 @@ from typing import Any
 from rich.text import Text
 from textual.widgets import Static
 
+from tri.engine.limits import LEVEL_RANK, LEVEL_WORD, NEAR, OK, OVER, loading_word
 from tri.tui import fmt
+from tri.tui.wording import plural
 
 HELP = """\
 Results (from the engine, updated after every edit): for each phase its
@@ -24,9 +27,7 @@ of a phase's RMS current from the mean of the three. VUF (voltage unbalance
 factor, IEC) appears when the file describes the supply. Findings follow,
 most serious first; press f for the full list."""
 
-LEVEL_WORD = {"limit": "LIMIT", "warning": "WARN", "info": "info"}
-LEVEL_RANK = {"limit": 0, "warning": 1, "info": 2}
-NEAR_PCT = 80.0
+_STYLE = {OVER: "bold red", NEAR: "yellow", OK: "green", "": "green"}
 
 
 def bar(fraction: float, width: int) -> str:
@@ -37,23 +38,13 @@ def bar(fraction: float, width: int) -> str:
 
 
 def _load_style(loading: float | None) -> str:
-    if loading is None:
-        return "green"
-    if loading > 100:
-        return "bold red"
-    if loading >= NEAR_PCT:
-        return "yellow"
-    return "green"
+    return _STYLE[loading_word(loading)]
 
 
 def _flag(loading: float | None) -> str:
-    if loading is None:
-        return "    "
-    if loading > 100:
-        return "OVER"
-    if loading >= NEAR_PCT:
-        return "NEAR"
-    return "    "
+    """OVER / NEAR (:func:`tri.engine.limits.loading_word`, as the report), blank when ok."""
+    word = loading_word(loading)
+    return word if word in (OVER, NEAR) else "    "
 
 
 def sorted_findings(analysis: Any) -> list[Any]:
@@ -61,7 +52,29 @@ def sorted_findings(analysis: Any) -> list[Any]:
     return sorted(analysis.findings, key=lambda f: LEVEL_RANK.get(f.level, 3))
 
 
-def results_lines(analysis: Any, width: int, finding_lines: int = 1) -> list[Text]:
+def checks_line(checks: Any, width: int) -> Text | None:
+    """``tri check``'s verdicts in one line: FAIL and PASS by limit, skipped ones named."""
+    if not checks:
+        return None
+    t = Text()
+    t.append("Checks ", style="bold")
+    for word, status in (("FAIL", "fail"), ("PASS", "pass"), ("skipped", "skipped")):
+        keys = [r.key for r in checks if r.status == status]
+        keys = [k if keys.count(k) == 1 else f"{k} ×{keys.count(k)}" for k in dict.fromkeys(keys)]
+        if keys:
+            if len(t) > 7:
+                t.append(" · ")
+            t.append(word, style="bold" if status != "skipped" else "")
+            t.append(" " + ", ".join(keys))
+    tail = " (f: why)"
+    if t.cell_len + len(tail) <= width:
+        t.append(tail, style="dim")
+    return t
+
+
+def results_lines(
+    analysis: Any, width: int, finding_lines: int = 1, checks: Any = ()
+) -> list[Text]:
     """The panel's lines for a given width (cells) and room for findings."""
     labels = analysis.phase_labels
     lab_w = max(len(x) for x in (*labels, "N"))
@@ -94,11 +107,18 @@ def results_lines(analysis: Any, width: int, finding_lines: int = 1) -> list[Tex
     v = analysis.voltage
     if v is not None:
         t.append(f"  VUF {v.vuf_pct:.2f} %")
-    lines.append(t)
-    t = Text(f"Rating {analysis.rating_a:g} A", style="dim")
+    rating = Text(f"Rating {analysis.rating_a:g} A", style="dim")
     if analysis.unplaced_count:
-        t.append(f"  {analysis.unplaced_count} new circuit(s) not placed, left out", style="")
-    lines.append(t)
+        rating.append(f"  {plural(analysis.unplaced_count, 'circuit')} not placed", style="")
+    if t.cell_len + 2 + rating.cell_len <= width:
+        t.append("  ")
+        t.append_text(rating)
+        lines.append(t)
+    else:
+        lines += [t, rating]
+    verdicts = checks_line(checks, width)
+    if verdicts is not None:
+        lines.append(verdicts)
     findings = sorted_findings(analysis)
     if not findings:
         lines.append(Text("No findings.", style="dim"))
@@ -128,13 +148,15 @@ class ResultsPanel(Static):
         self.analysis: Any = None
         self.note: str = "Analysing…"
         self.stale = False
+        self.checks: Any = ()
         self.drawn: Any = None  #: the analysis last rendered (for the benchmark)
 
-    def show(self, analysis: Any, note: str = "", stale: bool = False) -> None:
-        """Display ``analysis`` (None: show ``note`` instead)."""
+    def show(self, analysis: Any, note: str = "", stale: bool = False, checks: Any = ()) -> None:
+        """Display ``analysis`` (None: show ``note`` instead) and ``tri check``'s verdicts."""
         self.analysis = analysis
         self.note = note
         self.stale = stale
+        self.checks = checks
         self.refresh(layout=True)
 
     def render(self) -> Text:
@@ -143,7 +165,7 @@ class ResultsPanel(Static):
         if self.analysis is None:
             return Text(self.note)
         rows = 3 if self.app.size.height >= 32 else 1
-        lines = results_lines(self.analysis, width, finding_lines=rows)
+        lines = results_lines(self.analysis, width, finding_lines=rows, checks=self.checks)
         if self.stale:
             lines.append(Text("(updating…)", style="dim"))
         return Text("\n").join(lines)

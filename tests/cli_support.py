@@ -1,0 +1,64 @@
+"""Run the `tri` command in-process (fast) or as a real process (true end-to-end).
+
+Most command-line tests call :func:`run_tri`, which runs ``tri.cli.main`` with
+standard output and error captured: the same code path as the installed
+command minus interpreter start-up (about half a second each, which used to
+dominate the suite). A few tests per command keep :func:`spawn_tri`, which
+runs ``python -m tri`` in a subprocess, so the entry point itself stays tested.
+"""
+
+from __future__ import annotations
+
+import contextlib
+import io
+import subprocess
+import sys
+from dataclasses import dataclass
+from pathlib import Path
+
+from tri.cli import main
+from tri.schedule.text import is_refused_char
+
+
+@dataclass(frozen=True)
+class Result:
+    """What a `tri` run gave: exit status and the two output streams."""
+
+    returncode: int
+    stdout: str
+    stderr: str
+
+
+def run_tri(*args: str) -> Result:
+    """``tri ARGS...`` in this process."""
+    out, err = io.StringIO(), io.StringIO()
+    with contextlib.redirect_stdout(out), contextlib.redirect_stderr(err):
+        code = main(list(args))
+    return Result(code, out.getvalue(), err.getvalue())
+
+
+def spawn_tri(*args: str, cwd: Path | None = None, stdin: int | None = None) -> Result:
+    """``python -m tri ARGS...`` as a real process."""
+    r = subprocess.run(
+        [sys.executable, "-m", "tri", *args],
+        capture_output=True,
+        text=True,
+        timeout=120,
+        cwd=cwd,
+        stdin=stdin,
+    )
+    return Result(r.returncode, r.stdout, r.stderr)
+
+
+def control_chars(text: str) -> list[str]:
+    """Characters of ``text`` that must never reach a terminal (line ends allowed)."""
+    return [ch for ch in text if is_refused_char(ch) and ch not in "\r\n"]
+
+
+def assert_clean_error(r: Result) -> None:
+    """Exit 2, one ``tri: error:`` on standard error, nothing on standard output."""
+    assert r.returncode == 2, (r.stdout, r.stderr)
+    assert r.stdout == ""
+    assert r.stderr.startswith("tri: error:"), r.stderr
+    assert "Traceback" not in r.stderr
+    assert control_chars(r.stderr) == [], r.stderr

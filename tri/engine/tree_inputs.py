@@ -1,0 +1,439 @@
+"""Plain-data inputs for a tree of panels (a building) and their packed array form.
+
+A tree is a tuple of :class:`TreeNode`, the root (the service panel) first
+and every parent before its children. Each node but the root has a
+:class:`PanelLink`: which parent and which of the parent's circuit rows (the
+feeder circuit) feeds it, the feeder conductors, and optionally a
+transformer. :func:`pack_tree` turns the nodes into one padded batch of
+circuit arrays (every node on the union of the harmonic orders) and
+per-node arrays for :mod:`tri.engine.tree`.
+
+Where the feeder sits: the feeder conductors run from the parent's breaker
+to the child, in the parent's system; with a transformer they are its
+primary conductors (the secondary conductors are taken as short, their
+impedance left out). The child's phases A, B, C are the parent's A, B, C.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass, field, replace
+
+import numpy as np
+
+from tri.engine.inputs import (
+    THREE_PHASE,
+    UNPLACED,
+    CircuitArrays,
+    Ratings,
+    SupplyImpedance,
+    SystemVoltages,
+)
+from tri.engine.phasors import nominal_phase_voltages
+from tri.engine.supply import supply_impedances, transformer_impedance
+from tri.engine.transformer import TransformerLink
+
+#: Nominal voltages of parent and child (no transformer) agree within this [-].
+SAME_SYSTEM_RTOL = 1e-9
+
+
+@dataclass(frozen=True)
+class FeederImpedance:
+    """Feeder conductors from a parent's breaker to the panel (or transformer) it feeds.
+
+    Attributes
+    ----------
+    length_m : float
+        One-way length [m].
+    r_ohm_per_km, x_ohm_per_km : float
+        Phase conductor resistance and reactance [Ω/km].
+    neutral_r_ohm_per_km, neutral_x_ohm_per_km : float
+        Neutral conductor resistance and reactance [Ω/km].
+    """
+
+    length_m: float = 0.0
+    r_ohm_per_km: float = 0.0
+    x_ohm_per_km: float = 0.0
+    neutral_r_ohm_per_km: float = 0.0
+    neutral_x_ohm_per_km: float = 0.0
+
+    @property
+    def z_phase_ohm(self) -> complex:
+        """Phase conductor impedance ``(r + jx)·L/1000`` [Ω]."""
+        return complex(self.r_ohm_per_km, self.x_ohm_per_km) * self.length_m / 1000.0
+
+    @property
+    def z_neutral_ohm(self) -> complex:
+        """Neutral conductor impedance [Ω]."""
+        return (
+            complex(self.neutral_r_ohm_per_km, self.neutral_x_ohm_per_km) * self.length_m / 1000.0
+        )
+
+
+@dataclass(frozen=True)
+class PanelLink:
+    """How a panel is fed from its parent.
+
+    Attributes
+    ----------
+    parent : int
+        Index of the parent node (smaller than the child's own index).
+    feeder_row : int
+        Row of the parent's circuit arrays that is the feeder circuit (its
+        own load must be zero; it carries the child's currents).
+    feeder : FeederImpedance
+        Feeder conductors (in the parent's system).
+    transformer : TransformerLink or None
+        A transformer between the feeder and the child.
+    """
+
+    parent: int
+    feeder_row: int
+    feeder: FeederImpedance = field(default_factory=FeederImpedance)
+    transformer: TransformerLink | None = None
+
+
+@dataclass(frozen=True, eq=False)
+class TreeNode:
+    """One panel of a tree.
+
+    Attributes
+    ----------
+    circuits : CircuitArrays
+        The panel's own circuits, shape (n,).
+    system : SystemVoltages
+        Its nominal voltages [V].
+    ratings : Ratings
+        Its bus, main and neutral ratings [A].
+    link : PanelLink or None
+        How it is fed; None for the root.
+    """
+
+    circuits: CircuitArrays
+    system: SystemVoltages
+    ratings: Ratings
+    link: PanelLink | None = None
+
+
+@dataclass(frozen=True, eq=False)
+class TreeInputs:
+    """A whole tree: nodes (root first) and the supply behind the root.
+
+    Attributes
+    ----------
+    nodes : tuple of TreeNode
+        Root first; every parent before its children.
+    supply : SupplyImpedance or None
+        Transformer and feeder behind the root (its ``[supply]``); without
+        one the root's voltage is taken as nominal and balanced.
+    """
+
+    nodes: tuple[TreeNode, ...]
+    supply: SupplyImpedance | None = None
+
+    def with_circuits(self, index: int, circuits: CircuitArrays) -> TreeInputs:
+        """The same tree with node ``index``'s own circuits replaced (re-run the roll-up)."""
+        nodes = list(self.nodes)
+        nodes[index] = replace(nodes[index], circuits=circuits)
+        return replace(self, nodes=tuple(nodes))
+
+    def children(self, index: int) -> tuple[int, ...]:
+        """Indices of the nodes fed directly from node ``index``."""
+        return tuple(
+            i for i, n in enumerate(self.nodes) if n.link is not None and n.link.parent == index
+        )
+
+
+def _same_voltages(a: SystemVoltages, b: SystemVoltages) -> bool:
+    close = math.isclose(a.v_ll, b.v_ll, rel_tol=SAME_SYSTEM_RTOL)
+    if a.v_ln is None or b.v_ln is None:
+        return close and a.v_ln is None and b.v_ln is None
+    return close and math.isclose(a.v_ln, b.v_ln, rel_tol=SAME_SYSTEM_RTOL)
+
+
+def check_tree(tree: TreeInputs) -> None:
+    """Raise ``ValueError`` for a tree the engine cannot analyse.
+
+    Parameters
+    ----------
+    tree : TreeInputs
+
+    Notes
+    -----
+    Checked: the root has no link and every other node has one to an
+    earlier node; feeder rows exist, are 3-pole rows of zero load and feed
+    one child each; frequencies agree; without a transformer the child's
+    nominal voltages are the parent's; with one, a ``yn`` secondary feeds a
+    4-wire child and ``d``/``y`` a 3-wire one, and a ``YN`` primary needs a
+    4-wire parent. Each node's circuits are checked by
+    :func:`tri.engine.analysis.check_inputs`.
+    """
+    from tri.engine.analysis import check_inputs
+
+    if not tree.nodes:
+        raise ValueError("a tree needs at least its root panel")
+    if tree.nodes[0].link is not None:
+        raise ValueError("the first node is the root and has no feeder")
+    used: set[tuple[int, int]] = set()
+    for i, node in enumerate(tree.nodes):
+        check_inputs(node.circuits, node.system, node.ratings)
+        if np.ndim(node.circuits.s_va) != 1:
+            raise ValueError(f"node {i}: circuit arrays of one panel, shape (n,)")
+        if i == 0:
+            continue
+        link = node.link
+        if link is None:
+            raise ValueError(f"node {i} has no feeder; only the root may be unfed")
+        if not 0 <= link.parent < i:
+            raise ValueError(f"node {i}: its parent must come before it")
+        parent = tree.nodes[link.parent]
+        rows = parent.circuits.n_circuits
+        if not 0 <= link.feeder_row < rows:
+            raise ValueError(f"node {i}: feeder row {link.feeder_row} not in its parent")
+        if (link.parent, link.feeder_row) in used:
+            raise ValueError(f"node {i}: its feeder row already feeds another panel")
+        used.add((link.parent, link.feeder_row))
+        row = link.feeder_row
+        if parent.circuits.connection[row] not in (THREE_PHASE, UNPLACED) or abs(
+            parent.circuits.s_va[row]
+        ):
+            raise ValueError(f"node {i}: the feeder row must be a 3-pole row of zero load")
+        if not math.isclose(node.system.frequency_hz, parent.system.frequency_hz):
+            raise ValueError(f"node {i}: frequency differs from its parent's")
+        tx = link.transformer
+        if tx is None:
+            if not _same_voltages(node.system, parent.system):
+                raise ValueError(f"node {i}: without a transformer its system is its parent's")
+            continue
+        if tx.group.secondary_has_neutral != node.system.has_neutral:
+            raise ValueError(f"node {i}: the transformer secondary and the panel's wiring differ")
+        if tx.group.primary_needs_neutral and not parent.system.has_neutral:
+            raise ValueError(f"node {i}: a YN primary needs a 4-wire parent")
+
+
+def line_voltage(system: SystemVoltages) -> float:
+    """Line-to-line magnitude of the engine's nominal phasors [V] (``√3·V_LN`` on wye)."""
+    return system.v_ll if system.v_ln is None else math.sqrt(3.0) * system.v_ln
+
+
+def union_orders(nodes: tuple[TreeNode, ...]) -> np.ndarray:
+    """Every harmonic order used anywhere in the tree, ascending (int ndarray)."""
+    orders = [np.asarray(n.circuits.orders, dtype=int) for n in nodes]
+    return np.unique(np.concatenate(orders)) if orders else np.zeros(0, dtype=int)
+
+
+def pad_circuits(nodes: tuple[TreeNode, ...], orders: np.ndarray) -> CircuitArrays:
+    """The nodes' circuits as one batch (N, n_max) on ``orders``, padded with unplaced rows."""
+    n_max = max(1, max(n.circuits.n_circuits for n in nodes))
+    count = len(nodes)
+    s_va = np.zeros((count, n_max), dtype=complex)
+    conn = np.full((count, n_max), UNPLACED, dtype=np.int64)
+    p = np.zeros((count, n_max), dtype=np.int64)
+    q = np.zeros((count, n_max), dtype=np.int64)
+    harm = np.zeros((count, n_max, orders.size), dtype=complex)
+    cont = np.zeros((count, n_max), dtype=bool)
+    for i, node in enumerate(nodes):
+        c = node.circuits
+        k = c.n_circuits
+        s_va[i, :k] = c.s_va
+        conn[i, :k] = c.connection
+        p[i, :k] = c.phase_p
+        q[i, :k] = c.phase_q
+        cont[i, :k] = c.continuous
+        if np.size(c.orders):
+            harm[i, :k, np.searchsorted(orders, c.orders)] = np.asarray(c.harmonics).T
+    return CircuitArrays(s_va, conn, p, q, harm, orders, cont)
+
+
+@dataclass(frozen=True, eq=False)
+class PackedTree:
+    """A tree as arrays over its N nodes (see :func:`pack_tree`).
+
+    Attributes
+    ----------
+    circuits : CircuitArrays
+        Shape (N, n_max), on the union of the orders.
+    n_rows : int ndarray, shape (N,)
+        Real circuit rows of each node (the rest is padding).
+    parent, feeder_row : int ndarray, shape (N,)
+        -1 for the root.
+    levels : tuple of int ndarray
+        Node indices at depth 0, 1, 2, ...
+    v_ln, v_ll : float ndarray, shape (N,)
+        Nominal phase voltage (``V_LL/√3`` on 3-wire) and line voltage [V].
+    has_neutral : bool ndarray, shape (N,)
+    rating_a, neutral_rating_a, continuous_factor : float ndarray, shape (N,)
+        [A], [A], [-].
+    has_tx, zero_pass, delta_primary, open_zero : bool ndarray, shape (N,)
+        A transformer feeds the node; zero sequence passes it (YNyn); its
+        primary is delta; a wye secondary with no zero-sequence path to
+        the source (Yyn).
+    lag_rad, ratio : float ndarray, shape (N,)
+        Secondary lag [rad] and line-voltage ratio [-] (0 and 1 without).
+    z1_ohm, zn_ohm : complex ndarray, shape (N,)
+        Link impedance referred to the child, in the form
+        ``V = E − z1·I_p − zn·I_N`` (positive sequence ``z1``,
+        ``zn = (Z_0 − Z_1)/3``) [Ω].
+    tx_rated_a, winding_ratio : float ndarray, shape (N,)
+        Transformer rated secondary current [A] and primary turns per
+        secondary turn [-] (NaN without a transformer).
+    has_voltage : bool ndarray, shape (N,)
+        Some impedance lies between the node and an ideal source.
+    root_e : complex ndarray, shape (3,)
+        Source behind the root [V].
+    root_z : tuple of complex or None
+        ``(z_phase, z_neutral)`` of the root's supply [Ω], None without one.
+    root_full_load_a : float
+        Rated current of the root's supply transformer [A] (NaN without).
+    """
+
+    circuits: CircuitArrays
+    n_rows: np.ndarray
+    parent: np.ndarray
+    feeder_row: np.ndarray
+    levels: tuple[np.ndarray, ...]
+    v_ln: np.ndarray
+    v_ll: np.ndarray
+    has_neutral: np.ndarray
+    rating_a: np.ndarray
+    neutral_rating_a: np.ndarray
+    continuous_factor: np.ndarray
+    has_tx: np.ndarray
+    zero_pass: np.ndarray
+    delta_primary: np.ndarray
+    open_zero: np.ndarray
+    lag_rad: np.ndarray
+    ratio: np.ndarray
+    z1_ohm: np.ndarray
+    zn_ohm: np.ndarray
+    tx_rated_a: np.ndarray
+    winding_ratio: np.ndarray
+    has_voltage: np.ndarray
+    root_e: np.ndarray
+    root_z: tuple[complex, complex] | None
+    root_full_load_a: float
+
+    @property
+    def size(self) -> int:
+        """Number of nodes N."""
+        return int(self.parent.size)
+
+
+def _link_arrays(nodes: tuple[TreeNode, ...]) -> dict[str, np.ndarray]:
+    """Per-node transformer and link-impedance arrays (module docstring)."""
+    count = len(nodes)
+    out = {
+        "has_tx": np.zeros(count, bool),
+        "zero_pass": np.ones(count, bool),
+        "delta_primary": np.zeros(count, bool),
+        "open_zero": np.zeros(count, bool),
+        "lag_rad": np.zeros(count),
+        "ratio": np.ones(count),
+        "z1_ohm": np.zeros(count, complex),
+        "zn_ohm": np.zeros(count, complex),
+        "tx_rated_a": np.full(count, np.nan),
+        "winding_ratio": np.full(count, np.nan),
+    }
+    for i, node in enumerate(nodes):
+        link = node.link
+        if link is None:
+            continue
+        zf, zfn = link.feeder.z_phase_ohm, link.feeder.z_neutral_ohm
+        tx = link.transformer
+        if tx is None:
+            z1, z0 = zf, zf + 3.0 * zfn
+        else:
+            g = tx.group
+            v_sec = line_voltage(node.system)
+            n = line_voltage(nodes[link.parent].system) / v_sec
+            zt = tx.impedance_ohm(node.system.v_ll)
+            z1 = zt + zf / n**2
+            z0 = zt + ((zf + 3.0 * zfn) / n**2 if g.zero_sequence_passes else 0.0)
+            out["has_tx"][i] = True
+            out["zero_pass"][i] = g.zero_sequence_passes
+            out["delta_primary"][i] = g.delta_primary
+            out["open_zero"][i] = g.secondary_has_neutral and g.primary == "Y"
+            out["lag_rad"][i] = g.lag_rad
+            out["ratio"][i] = n
+            out["tx_rated_a"][i] = tx.rated_current_a(node.system.v_ll)
+            winding_sec = v_sec / math.sqrt(3.0) if g.secondary != "d" else v_sec
+            winding_pri = line_voltage(nodes[link.parent].system)
+            if g.primary != "D":
+                winding_pri /= math.sqrt(3.0)
+            out["winding_ratio"][i] = winding_pri / winding_sec
+        out["z1_ohm"][i] = z1
+        out["zn_ohm"][i] = (z0 - z1) / 3.0
+    return out
+
+
+def pack_tree(tree: TreeInputs) -> PackedTree:
+    """Check a tree and turn it into arrays.
+
+    Parameters
+    ----------
+    tree : TreeInputs
+
+    Returns
+    -------
+    PackedTree
+
+    Raises
+    ------
+    ValueError
+        From :func:`check_tree`.
+    """
+    check_tree(tree)
+    nodes = tree.nodes
+    count = len(nodes)
+    orders = union_orders(nodes)
+    parent = np.array([-1 if n.link is None else n.link.parent for n in nodes], dtype=np.intp)
+    depth = np.zeros(count, dtype=int)
+    for i in range(1, count):
+        depth[i] = depth[parent[i]] + 1
+    levels = tuple(np.flatnonzero(depth == d) for d in range(int(depth.max()) + 1))
+    links = _link_arrays(nodes)
+    has_impedance = np.array(
+        [
+            n.link is not None
+            and (n.link.transformer is not None or abs(n.link.feeder.z_phase_ohm))
+            for n in nodes
+        ]
+    )
+    has_voltage = np.zeros(count, bool)
+    has_voltage[0] = tree.supply is not None
+    for i in range(1, count):
+        has_voltage[i] = has_voltage[parent[i]] or has_impedance[i]
+    root_sys = nodes[0].system
+    root_z, root_fl = None, math.nan
+    if tree.supply is not None:
+        z_ph, z_n = supply_impedances(tree.supply, root_sys)
+        root_z = (complex(z_ph), complex(z_n))
+        s = tree.supply
+        root_fl = transformer_impedance(
+            s.transformer_kva, s.transformer_z_pct, s.transformer_x_r, root_sys.v_ll
+        ).full_load_a
+
+    def rating(n: TreeNode) -> float:
+        return n.ratings.main_a if n.ratings.main_a is not None else n.ratings.bus_a
+
+    def neutral_rating(n: TreeNode) -> float:
+        return n.ratings.neutral_a if n.ratings.neutral_a is not None else n.ratings.bus_a
+
+    return PackedTree(
+        circuits=pad_circuits(nodes, orders),
+        n_rows=np.array([n.circuits.n_circuits for n in nodes], dtype=int),
+        parent=parent,
+        feeder_row=np.array([-1 if n.link is None else n.link.feeder_row for n in nodes]),
+        levels=levels,
+        v_ln=np.array([n.system.v_ln_or_derived for n in nodes], dtype=float),
+        v_ll=np.array([n.system.v_ll for n in nodes], dtype=float),
+        has_neutral=np.array([n.system.has_neutral for n in nodes], dtype=bool),
+        rating_a=np.array([rating(n) for n in nodes], dtype=float),
+        neutral_rating_a=np.array([neutral_rating(n) for n in nodes], dtype=float),
+        continuous_factor=np.array([n.ratings.continuous_factor for n in nodes], dtype=float),
+        has_voltage=has_voltage,
+        root_e=nominal_phase_voltages(root_sys.v_ln_or_derived),
+        root_z=root_z,
+        root_full_load_a=float(root_fl),
+        **links,
+    )

@@ -1,0 +1,32 @@
+"""The demo panels the start screen offers: where they are and how each is named."""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+from tri.schedule.errors import ScheduleError
+from tri.schedule.load import load_schedule
+
+
+def demo_folder() -> Path:
+    """Where the demo panels live (``panels_demo/`` at the repository root)."""
+    import tri
+
+    return Path(tri.__file__).resolve().parents[1] / "panels_demo"
+
+
+def demo_files() -> list[Path]:
+    """Demo schedules in :func:`demo_folder`, sorted by name."""
+    folder = demo_folder()
+    return sorted(folder.glob("*.toml")) if folder.is_dir() else []
+
+
+def demo_label(path: Path) -> str:
+    """``"Panel name · system · N circuits"`` for a demo file (its stem if unreadable)."""
+    from tri.tui.wording import plural
+
+    try:
+        s = load_schedule(path).schedule
+    except ScheduleError:
+        return path.stem
+    return f"{s.panel.name} · {s.panel.system} · {plural(len(s.circuits), 'circuit')}"
