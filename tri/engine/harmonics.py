@@ -297,6 +297,23 @@ def order_currents(
     )
 
 
+def is_triplen(orders: np.ndarray) -> np.ndarray:
+    """True for the triplen orders (multiples of 3), which add in the neutral.
+
+    Parameters
+    ----------
+    orders : int array_like, shape (H,)
+        Orders (1 = the fundamental).
+
+    Returns
+    -------
+    bool ndarray, shape (H,)
+        ``h % 3 == 0``: a balanced set of such currents is in phase on the
+        three phases (zero sequence), so it adds in the neutral [2].
+    """
+    return np.asarray(orders, dtype=int) % 3 == 0
+
+
 def rms(spectrum: np.ndarray) -> np.ndarray:
     """True RMS from a spectrum of RMS phasors.
 

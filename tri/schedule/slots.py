@@ -46,6 +46,31 @@ def slot_column(slot: int) -> str:
     return "left" if slot % 2 == 1 else "right"
 
 
+def column_index(slot: int) -> int:
+    """Column of a slot as a number: 0 left (odd slots), 1 right (even slots)."""
+    return 0 if slot % 2 == 1 else 1
+
+
+def column_rows(spaces: int, column: int) -> int:
+    """Number of rows (slots) in a column (0 left, 1 right) of a panel of ``spaces`` slots."""
+    return (spaces + 1) // 2 if column == 0 else spaces // 2
+
+
+def slot_at(row: int, column: int) -> int:
+    """Slot number of a row (1-based from the top) in a column (0 left, 1 right)."""
+    return 2 * row - 1 if column == 0 else 2 * row
+
+
+def slot_distance(a: int, b: int) -> int:
+    """How far apart two slots are: rows between them, plus 3 when the columns differ [rows].
+
+    A measure of how far a breaker's conductors must reach when it moves
+    (the extra 3 rows stand for crossing the panel); used only to prefer
+    near positions among equally good ones.
+    """
+    return abs(slot_row(a) - slot_row(b)) + (3 if column_index(a) != column_index(b) else 0)
+
+
 def occupied_slots(slot: int, poles: int) -> tuple[int, ...]:
     """Slots taken by a breaker of ``poles`` poles whose first pole is in ``slot``."""
     return tuple(slot + 2 * k for k in range(poles))
