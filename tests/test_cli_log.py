@@ -157,6 +157,21 @@ def test_scenario_batch_axis_equals_one_at_a_time():
     assert full.phase_rms_a[0] == pytest.approx([p.rms_a for p in connected.phases], abs=1e-9)
 
 
+def test_scenario_findings_name_circuits_as_the_connected_case_does():
+    """A breaker finding in a scenario names the circuit by slot and name, never by its
+    row number (the engine is given the same labels in every case)."""
+    from dataclasses import replace
+
+    schedule = load_schedule(DEMO).schedule
+    tiny = tuple(
+        replace(c, breaker_a=0.5) if c.breaker_a is not None else c for c in schedule.circuits
+    )
+    for case in analyse_cases(replace(schedule, circuits=tiny)):
+        over = [f.message for f in case.analysis.findings if "breaker" in f.message]
+        assert over, case.name
+        assert all(m.startswith('circuit "') and " in slot" in m for m in over), case.name
+
+
 def test_markdown_writes_pictures_beside_it(tmp_path):
     path = write_case(tmp_path)
     out = tmp_path / "report.md"

@@ -15,6 +15,7 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 from test_rebalance_helpers import movable_rail, random_rail, random_two_column
 
+from tri.rebalance.plan_currents import assess, floor_of, spectra, triplen_neutral_a
 from tri.rebalance.polygon import (
     DEFAULT_SIDES,
     polygon_directions,
@@ -24,7 +25,7 @@ from tri.rebalance.polygon import (
     sectors,
     sides_for_error,
 )
-from tri.rebalance.problem import assess, build_problem, floor_of, spectra, triplen_neutral_a
+from tri.rebalance.problem import build_problem
 from tri.rebalance.results import apply_moves
 from tri.schedule.to_engine import analyse_schedule
 

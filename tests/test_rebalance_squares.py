@@ -5,7 +5,8 @@ Sources of expected values: :func:`test_rebalance_helpers.exhaustive_rail`
 the rebalancer's superposition) and, for the model rows, HiGHS run on the
 rows with the options fixed. Each test names the bound it checks; the
 proofs are in the docstrings of :mod:`tri.rebalance.squares`,
-:func:`tri.rebalance.milp._lower_block` and :mod:`tri.rebalance.exhaust`.
+:mod:`tri.rebalance.lower_bounds`, :mod:`tri.rebalance.exact_square` and
+:mod:`tri.rebalance.exhaust`.
 
 Tolerances: squares compared relative 1e-9 of the largest square (the same
 sums taken in another order); bounds allowed 1e-9 relative of round-off on
@@ -22,11 +23,18 @@ import numpy as np
 import pytest
 from test_rebalance_helpers import exhaustive_rail, movable_rail, random_rail
 
-from tri.rebalance import milp
+from tri.engine.harmonics import rms
+from tri.rebalance import target_model
+from tri.rebalance.electrical import Electrical
+from tri.rebalance.exact_square import add_exact_square_rows, square_terms
 from tri.rebalance.exhaust import plans_count, plans_within
-from tri.rebalance.heuristic import Goal
-from tri.rebalance.problem import PAIRS, build_problem, rms, spectra
+from tri.rebalance.lower_bounds import RESOLUTIONS, add_rms_lower_bounds, phase_reach
+from tri.rebalance.model import Model
+from tri.rebalance.plan_currents import spectra
+from tri.rebalance.problem import PAIRS, build_problem
+from tri.rebalance.square_rows import TANGENT_ERROR, square_column, tangent_points
 from tri.rebalance.squares import changed_max, square_bound
+from tri.rebalance.target_model import Learnt, build_target_model
 
 SEEDS = range(6)
 
@@ -102,35 +110,40 @@ def test_count_bound_is_exact_with_one_change(seed: int) -> None:
                 assert sb.largest(a, set()) == pytest.approx(r**2, rel=1e-9)
 
 
-def _fixed_model(pr, assign: np.ndarray):
-    m = milp._Model()
-    x = m.var(pr.n_options, 0.0, 1.0, integer=True)
+def _fix(m: Model, x: int, pr, assign: np.ndarray) -> None:
     xs = np.zeros(pr.n_options)
     xs[assign] = 1.0
-    m.lb[0][:] = xs
-    m.ub[0][:] = xs
+    m.fix(np.arange(x, x + pr.n_options), xs)
+
+
+def _fixed_model(pr, assign: np.ndarray):
+    m = Model()
+    x = m.binary(pr.n_options)
     return m, x
 
 
-def _fix_currents(m, pr, vars_, assign: np.ndarray) -> None:
+def _currents(m: Model, x: int, pr) -> Electrical:
+    return Electrical(x=x, v=m.var(6 * pr.orders.size, -np.inf, np.inf), n=None, h=pr.orders.size)
+
+
+def _fix_currents(m, pr, el: Electrical, assign: np.ndarray) -> None:
     """Equality rows holding the model's phase currents at those of a plan."""
     v, _ = spectra(pr, assign)
     for q in range(3):
         parts = np.column_stack([v[q].real, v[q].imag]).ravel()
-        m.block(milp._phase_cols(vars_, q)[:, None], 1.0, parts, parts)
+        m.block(el.phase_cols(q)[:, None], 1.0, parts, parts)
 
 
 @pytest.mark.parametrize("seed", range(3))
 @pytest.mark.parametrize("through_currents", [False, True])
 def test_cross_rows_in_the_model_match_the_bounds(seed: int, through_currents: bool) -> None:
-    # the rows of _cross_rows, solved by HiGHS with the options fixed, allow
-    # exactly CrossBound.largest (bounds A, B, C and, for lazy options, G);
-    # bound G written with a coefficient per partner or through the currents
-    # (_glover_rows) allows the same
+    # the rows of square_rows.cross_rows, solved by HiGHS with the options
+    # fixed, allow exactly CrossBound.largest (bounds A, B, C and, for lazy
+    # options, G); bound G written with a coefficient per partner or through
+    # the currents (glover_rows) allows the same
     pr, ex, plans = _panel(seed)
     rng = np.random.default_rng(seed)
     budget = 3
-    h = pr.orders.size
     picks = rng.choice(np.flatnonzero(ex.moves <= budget), size=6, replace=False)
     for p in range(3):
         for harmonics_only in (False, True):
@@ -141,94 +154,120 @@ def test_cross_rows_in_the_model_match_the_bounds(seed: int, through_currents: b
                 m, x = _fixed_model(pr, a)
                 vcols = None
                 if through_currents:
-                    vars_ = milp._Vars(x=x, v=m.var(6 * h, -np.inf, np.inf), n=None, h=h)
-                    _fix_currents(m, pr, vars_, a)
-                    vcols = milp._phase_cols(vars_, p)
-                col = milp._square_column(m, x, sb, lazy, -np.inf, np.inf, vcols)
+                    el = _currents(m, x, pr)
+                    _fix_currents(m, pr, el, a)
+                    vcols = el.phase_cols(p)
+                col = square_column(m, x, sb, lazy, -np.inf, np.inf, vcols)
+                _fix(m, x, pr, a)
                 cost = np.zeros(m.n)
                 cost[col] = -1.0
                 res = m.solve(cost, 10.0, gap=0.0)
-                assert res.status == 0
+                assert res.status == "optimal"
                 want = sb.largest(a, lazy)
-                assert -res.fun == pytest.approx(want, rel=1e-7, abs=1e-6)
+                assert -res.objective == pytest.approx(want, rel=1e-7, abs=1e-6)
 
 
 @pytest.mark.parametrize("seed", range(4))
 def test_lower_block_is_below_every_plan_and_exact_where_visited(seed: int) -> None:
-    # _lower_block: at every plan the smallest r the rows allow is at most the
-    # engine's R_p and at least the fundamental's polygon bound |z_p|·cos(0.5°)
-    # (Theorem 1, one direction per degree); at a visited plan it equals R_p
-    # (1e-7: HiGHS's tolerance)
+    # add_rms_lower_bounds: at every plan the smallest r the rows allow is at
+    # most the engine's R_p and at least the fundamental's polygon bound
+    # |z_p|·cos(step/2) (Theorem 1, at each resolution); at a visited plan it
+    # equals R_p (1e-7: HiGHS's tolerance)
     pr, _ex, plans = _panel(seed, n=5)
     rng = np.random.default_rng(seed)
     visited_idx = int(rng.integers(len(plans)))
     v_vis, _ = spectra(pr, plans[visited_idx])
-    h = pr.orders.size
-    for idx in [*rng.choice(len(plans), size=8, replace=False).tolist(), visited_idx]:
-        a = plans[idx]
-        v, _ = spectra(pr, a)
-        for p in range(3):
-            m, x = _fixed_model(pr, a)
-            vars_ = milp._Vars(x=x, v=m.var(6 * h, -np.inf, np.inf), n=None, h=h)
-            _fix_currents(m, pr, vars_, a)
-            r = m.var(1, 0.0, np.inf)
-            reach = milp.phase_reach(pr, p, pr.n_movable)[0]
-            u = v_vis[p] / np.sqrt(np.sum(np.abs(v_vis[p]) ** 2))
-            milp._lower_block(m, pr, vars_, p, [r], reach, [u], pr.n_movable)
-            cost = np.zeros(m.n)
-            cost[r] = 1.0
-            res = m.solve(cost, 10.0, gap=0.0)
-            assert res.status == 0
-            true = float(rms(v[p]))
-            assert res.fun <= true * (1 + 1e-7)
-            assert res.fun >= abs(v[p, 0]) * math.cos(math.radians(0.5)) * (1 - 1e-7)
-            if idx == visited_idx:
-                assert res.fun == pytest.approx(true, rel=1e-7)
+    picks = [*rng.choice(len(plans), size=6, replace=False).tolist(), visited_idx]
+    for res_level in RESOLUTIONS:
+        for idx in picks:
+            a = plans[idx]
+            v, _ = spectra(pr, a)
+            for p in range(3):
+                m, x = _fixed_model(pr, a)
+                el = _currents(m, x, pr)
+                _fix_currents(m, pr, el, a)
+                r = m.var(1, 0.0, np.inf)
+                reach = phase_reach(pr, p, pr.n_movable)
+                u = v_vis[p] / np.sqrt(np.sum(np.abs(v_vis[p]) ** 2))
+                add_rms_lower_bounds(m, pr, el, p, [r], reach, [u], res_level)
+                _fix(m, x, pr, a)
+                cost = np.zeros(m.n)
+                cost[r] = 1.0
+                res = m.solve(cost, 10.0, gap=0.0)
+                assert res.status == "optimal"
+                true = float(rms(v[p]))
+                half = math.radians(res_level.step_deg / 2)
+                assert res.objective <= true * (1 + 1e-7)
+                assert res.objective >= abs(v[p, 0]) * math.cos(half) * (1 - 1e-7)
+                if idx == visited_idx:
+                    assert res.objective == pytest.approx(true, rel=1e-7)
 
 
 @pytest.mark.parametrize("seed", SEEDS)
 @pytest.mark.parametrize("rank", [0, 5])
-@pytest.mark.parametrize("centred", [True, False])
+@pytest.mark.parametrize("upper", ["centred", "sectors", "exact"])
 def test_every_plan_meeting_the_target_satisfies_the_target_model(
-    seed: int, rank: int, centred: bool, monkeypatch: pytest.MonkeyPatch
+    seed: int, rank: int, upper: str, monkeypatch: pytest.MonkeyPatch
 ):
-    # the relaxation property (milp notes): a plan with at most `budget` moves
-    # that meets the target exactly (engine) is feasible in the target model
-    # with its options fixed, at every refinement level and with lazy options,
-    # with and without the centred rows. The target is the deviation of the
-    # rank-th best such plan, so one plan sits exactly on the boundary.
-    if not centred:
-        monkeypatch.setattr(milp, "CENTRED_MAX_CHANGED", 0)
+    # the relaxation property (target_model notes): a plan with at most
+    # `budget` moves that meets the target exactly (engine) is feasible in the
+    # target model with its options fixed, at every refinement level and with
+    # lazy options, with the centred rows, the sectors alone, or the exact
+    # squares. The target is the deviation of the rank-th best such plan, so
+    # one plan sits exactly on the boundary.
+    if upper == "sectors":
+        monkeypatch.setattr(target_model, "CENTRED_MAX_CHANGED", 0)
     pr, ex, plans = _panel(seed)
+    squares = square_terms(pr) if upper == "exact" else None
     budget = 2
     within = np.flatnonzero(ex.moves <= budget)
     devs = np.sort(ex.deviation[within])
     target = float(devs[min(rank, devs.size - 1)])
     good = within[ex.deviation[within] <= target]
-    refine = milp._Refine()
-    refine.learn(pr, plans[within[0]])
-    goal = Goal(target=target / 100)
+    learnt = Learnt()
+    learnt.learn(pr, plans[within[0]])
     for level in (0, 2):
         for idx in good[:6]:
-            m, _vars, _cost = milp._target_model(
-                pr, goal, target / 100, budget, level, [], refine, [], None
-            )
-            xs = np.zeros(pr.n_options)
-            xs[plans[idx]] = 1.0
-            m.lb[0][:] = xs
-            m.ub[0][:] = xs
-            res = m.solve(np.zeros(m.n), 10.0, gap=0.0)
-            assert res.status == 0, (level, idx, res.message)
+            tm = build_target_model(pr, target / 100, budget, level, learnt, None, [], squares)
+            _fix(tm.model, tm.electrical.x, pr, plans[idx])
+            res = tm.model.solve(np.zeros(tm.model.n), 10.0, gap=0.0)
+            assert res.status == "optimal", (level, idx, res.message)
+
+
+@pytest.mark.parametrize("seed", range(4))
+def test_exact_squares_equal_the_engine_and_bound_it_from_above(seed: int) -> None:
+    # exact_square: the terms give R_p² of every plan (round-off), and the rows
+    # let R_p reach the engine's value at a plan but not exceed it by more
+    # than the tangent error (1e-6 relative at the finest level, plus 1e-7 of
+    # HiGHS's tolerance)
+    pr, ex, plans = _panel(seed)
+    terms = square_terms(pr)
+    assert terms is not None
+    for a, r in zip(plans[::7], ex.rms[::7], strict=True):
+        assert terms.value(a) == pytest.approx(r**2, rel=1e-9)
+    for idx in range(0, len(plans), max(1, len(plans) // 5)):
+        m, x = _fixed_model(pr, plans[idx])
+        r0 = m.var(3, 0.0, np.inf)
+        add_exact_square_rows(m, x, [r0, r0 + 1, r0 + 2], terms, 1.0, [1e4] * 3, 2)
+        _fix(m, x, pr, plans[idx])
+        for p in range(3):
+            cost = np.zeros(m.n)
+            cost[r0 + p] = -1.0
+            res = m.solve(cost, 10.0, gap=0.0)
+            assert res.status == "optimal"
+            assert -res.objective >= ex.rms[idx, p] * (1 - 1e-7)
+            if ex.rms[idx, p] >= 1.0:  # the envelope's range starts at r_min = 1 A
+                assert -res.objective <= ex.rms[idx, p] * (1 + 1e-6 + 1e-7)
 
 
 def test_centred_tangents_cover_the_range_within_their_error() -> None:
-    # (R² + ρ²)/(2ρ) over the grid is at most R·(1 + CENTRED_TANGENT_ERROR)
-    # for every R in [r_min, r_max] [computed: worst case between two points]
-    pts = milp._tangent_points(100.0, 250.0, [])
+    # (R² + ρ²)/(2ρ) over the grid is at most R·(1 + TANGENT_ERROR) for every
+    # R in [r_min, r_max] [computed: worst case between two points]
+    pts = tangent_points(100.0, 250.0, [])
     r = np.linspace(100.0, 250.0, 20001)
     env = np.min((r[:, None] ** 2 + pts[None, :] ** 2) / (2 * pts[None, :]), axis=1)
     assert np.all(env >= r * (1 - 1e-12))
-    assert np.max(env / r - 1) <= milp.CENTRED_TANGENT_ERROR * (1 + 1e-9)
+    assert np.max(env / r - 1) <= TANGENT_ERROR * (1 + 1e-9)
 
 
 @pytest.mark.parametrize("seed", SEEDS)
@@ -239,9 +278,9 @@ def test_counting_out_finds_every_plan_the_exhaustive_search_finds(seed: int, ta
     pr, ex, plans = _panel(seed)
     for k in range(0, 4):
         assert plans_count(pr, k) == int(np.sum(ex.moves <= k))
-        found = plans_within(pr, target / 100, None, k)
-        assert found is not None
-        got = {tuple(a.tolist()) for a in found}
+        counted = plans_within(pr, target / 100, None, k)
+        assert counted is not None
+        got = {tuple(a.tolist()) for a in counted.plans}
         want = {
             tuple(plans[i].tolist())
             for i in np.flatnonzero((ex.moves <= k) & (ex.deviation <= target * (1 + 1e-9)))
@@ -250,26 +289,23 @@ def test_counting_out_finds_every_plan_the_exhaustive_search_finds(seed: int, ta
             tuple(plans[i].tolist())
             for i in np.flatnonzero((ex.moves <= k) & (ex.deviation <= target * (1 + 2e-7)))
         }
-        if len(found) < 64:
-            assert want <= got <= near
-        else:
-            assert got <= near
+        assert counted.complete  # at most 3^6 plans: all listed
+        assert want <= got <= near
 
 
 @pytest.mark.parametrize("seed", range(4))
 def test_counting_out_respects_the_neutral_limit(seed: int) -> None:
     pr, ex, plans = _panel(seed)
     limit = float(np.quantile(ex.neutral, 0.3))
-    found = plans_within(pr, 0.5, limit, 2)
-    assert found is not None
-    got = {tuple(a.tolist()) for a in found}
+    counted = plans_within(pr, 0.5, limit, 2)
+    assert counted is not None and counted.complete
+    got = {tuple(a.tolist()) for a in counted.plans}
     ok = (ex.moves <= 2) & (ex.deviation <= 50.0) & (ex.neutral <= limit * (1 + 1e-9))
     want = {tuple(plans[i].tolist()) for i in np.flatnonzero(ok)}
-    if len(found) < 64:
-        assert want <= got
+    assert want <= got
 
 
-def test_counting_out_declines_large_or_new_circuit_problems() -> None:
+def test_counting_out_declines_large_problems_and_lists_new_circuits_freely() -> None:
     from tri.rebalance import exhaust
 
     schedule = random_rail(np.random.default_rng(1), 8)
@@ -281,11 +317,19 @@ def test_counting_out_declines_large_or_new_circuit_problems() -> None:
         assert plans_within(pr, 0.05, None, 2) is None
     finally:
         exhaust.PLAN_LIMIT = old
-    # a circuit without a slot: placing it is free, the count does not apply
+    # a circuit without a slot: placing it is not a relocation, so every one of
+    # its options is listed on top of the k changes [computed: 3 options, so
+    # three times the plans of the others with up to k changes]
     idx = movable_rail(schedule)[0]
     unplaced = schedule.with_circuit(idx, schedule.circuits[idx].on_phases(None))
     pr2 = build_problem(unplaced, movable_rail(schedule))
-    assert plans_within(pr2, 0.05, None, 2) is None
+    rest = build_problem(unplaced, [i for i in movable_rail(schedule) if i != idx])
+    assert plans_count(pr2, 2) >= 3 * plans_count(rest, 2) - 2 * plans_count(rest, 2)
+    counted = plans_within(pr2, 2.0, None, 2)
+    assert counted is not None and counted.complete
+    new_opts = {int(a[pr2.free.tolist().index(idx)]) for a in counted.plans}
+    assert new_opts == set(pr2.options_of(pr2.free.tolist().index(idx)))
+    assert max(counted.changes) <= 2
 
 
 def test_cross_bound_without_any_change() -> None:

@@ -140,8 +140,8 @@ def test_no_negative_zero_in_any_format(datas: dict[str, Any]) -> None:
     import json
 
     from tri.report.csv_report import render_csv as csv_text
-    from tri.report.data import fixed
     from tri.report.json_report import render_json
+    from tri.report.numbers import fixed
 
     assert [fixed(-0.04), fixed(-0.04, signed=True), fixed(-0.06), fixed(0.04, signed=True)] == [
         "0.0",

@@ -172,6 +172,30 @@ async def test_circuit_form_checks_every_pole_when_poles_change(small: Path) -> 
         assert app.screen is form
 
 
+async def test_circuit_form_keeps_a_breakers_legs_and_refuses_a_new_sum(tmp_path: Path) -> None:
+    """The demo heater's three 240 V elements (3000 + 3000 + 1500 VA) show as 7500 VA: an
+    unchanged form keeps the legs; a new load, which the legs would override, is refused."""
+    demo = Path(__file__).resolve().parents[1] / "panels_demo" / "woodshop_240d.toml"
+    target = tmp_path / "w.toml"
+    target.write_text(demo.read_text())
+    app = TriApp(target, journal=False)
+    async with app.run_test(size=(80, 24)) as pilot:
+        form = await open_on(pilot, "Drying room heater", "e")
+        assert form.values()["load"] == "7500" and form.problems == {}
+        await set_field(pilot, form, "load", "9000")
+        assert "one load per leg (3000 + 3000 + 1500 VA)" in form.problems["load"]
+        await pilot.press("enter")
+        await pilot.pause()
+        assert app.screen is form
+        await set_field(pilot, form, "load", "7500")
+        await set_field(pilot, form, "breaker_a", "30")
+        assert form.problems == {}
+        await pilot.press("ctrl+s")
+        await settle(pilot)
+        c = app.session.schedule.circuits[index_of(app, "Drying room heater")]
+        assert (c.leg_values, c.breaker_a) == ((3000.0, 3000.0, 1500.0), 30)
+
+
 async def test_circuit_form_refuses_bad_values_with_the_loaders_reasons(small: Path) -> None:
     app = TriApp(small, journal=False)
     async with app.run_test(size=(80, 24)) as pilot:
@@ -247,6 +271,27 @@ async def test_panel_form_refuses_fewer_spaces_than_the_breakers_use(small: Path
         assert "circuit 6" not in problem
         await set_field(pilot, form, "spaces", "30")
         assert form.problems == {}
+
+
+async def test_panel_form_keeps_the_wiring_keys_it_does_not_show(tmp_path: Path) -> None:
+    """A panel edit keeps fed_from, right_column, max_row_shift and a high leg on C (a high
+    leg silently back on B would put the orange bus on the wrong phase)."""
+    target = tmp_path / "d.toml"
+    target.write_text(
+        'format = 1\n[panel]\nname = "Shop"\nsystem = "240/120D"\nspaces = 12\nbus_a = 100\n'
+        'high_leg = "C"\nright_column = "CBA"\nmax_row_shift = 2\nfed_from = "MDP, 7"\n'
+        '[[circuit]]\nslot = 1\nname = "Lights"\nload_va = 600\n'
+    )
+    app = TriApp(target, journal=False)
+    async with app.run_test(size=(80, 24)) as pilot:
+        form = await open_form(pilot, "p")
+        await set_field(pilot, form, "bus_a", "125")
+        assert form.problems == {}
+        await pilot.press("ctrl+s")
+        await settle(pilot)
+        p = app.session.schedule.panel
+        assert (p.bus_a, p.high_leg, p.effective_high_leg) == (125, 2, 2)
+        assert (p.right_column, p.max_row_shift, p.fed_from) == ("CBA", 2, "MDP, 7")
 
 
 async def test_panel_form_refuses_a_three_wire_system_under_one_pole_circuits(

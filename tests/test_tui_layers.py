@@ -74,7 +74,4 @@ def test_cycle_finder_finds_a_cycle() -> None:
 def test_ui_never_imports_the_command_line() -> None:
     for path in (ROOT / "tui").rglob("*.py"):
         bad = {x for x in imports_of(path) if x == "tri.cli" or x.startswith("tri.cli.")}
-        if path.name == "rebalance.py" and path.parent.name == "screens":
-            # Owned by the rebalancer rewrite (issue 11); it moves to tri.safety there.
-            continue
         assert not bad, f"{path.relative_to(ROOT)} imports {sorted(bad)}"

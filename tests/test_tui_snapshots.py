@@ -1,4 +1,5 @@
-"""SVG snapshots of the main view, the phasor view and the rebalance screen.
+"""SVG snapshots of the main view and the phasor view (the rebalance screen's are in
+test_tui_rebalance_snapshots.py).
 
 Fixed terminal sizes (80×24, the smallest supported, and 120×40), a fixed
 theme, the state folder in a temporary directory, a schedule file from
@@ -34,25 +35,6 @@ def test_phasor_view(snap_compare, size: tuple[int, int]) -> None:
     async def before(pilot) -> None:
         await settle(pilot)
         await pilot.press("v")
-        await settle(pilot)
-
-    assert snap_compare(make_app(), terminal_size=size, run_before=before)
-
-
-@pytest.mark.parametrize("size", SIZES, ids=lambda s: f"{s[0]}x{s[1]}")
-def test_rebalance_screen(
-    snap_compare, size: tuple[int, int], monkeypatch: pytest.MonkeyPatch
-) -> None:
-    # A fixed proposal (the rebalancer's own results would change with its tuning).
-    from test_tui_rebalance import stand_in
-
-    from tri.tui import rebalance_bridge
-
-    monkeypatch.setattr(rebalance_bridge, "find_entry", lambda: stand_in)
-
-    async def before(pilot) -> None:
-        await settle(pilot)
-        await pilot.press("b", "ctrl+r")
         await settle(pilot)
 
     assert snap_compare(make_app(), terminal_size=size, run_before=before)

@@ -8,6 +8,7 @@ command. Each command lives in its own module with ``add_parser`` and
 from __future__ import annotations
 
 import argparse
+import importlib
 import os
 import sys
 from collections.abc import Sequence
@@ -18,17 +19,18 @@ if TYPE_CHECKING:
     from _typeshed import SupportsWrite
 
 from tri import __version__
-from tri.cli import check, new, open_ui, report, suggest
-from tri.cli.common import EXIT_ERROR, EXIT_INTERNAL, CliError, print_error
 from tri.schedule.errors import ScheduleError
 from tri.schedule.text import escaped
 
-COMMANDS: dict[str, ModuleType] = {
-    "new": new,
-    "report": report,
-    "check": check,
-    "suggest": suggest,
-    "open": open_ui,
+#: Command name -> its module, imported only when that command runs (or for
+#: ``tri --help``), so ``tri --version`` and each command start without the
+#: others' libraries (scipy for ``suggest``, textual for the UI).
+COMMANDS: dict[str, str] = {
+    "new": "tri.cli.new",
+    "report": "tri.cli.report",
+    "check": "tri.cli.check",
+    "suggest": "tri.cli.suggest",
+    "open": "tri.cli.open_ui",
 }
 
 DESCRIPTION = """\
@@ -53,8 +55,17 @@ class _Parser(argparse.ArgumentParser):
         super()._print_message(escaped(message, keep_newlines=True), file)
 
 
-def build_parser() -> argparse.ArgumentParser:
-    """The full argument parser (commands as sub-parsers)."""
+def command_module(name: str) -> ModuleType:
+    """The module of command ``name`` (imported on first use)."""
+    return importlib.import_module(COMMANDS[name])
+
+
+def build_parser(only: str | None = None) -> argparse.ArgumentParser:
+    """The argument parser: every command as a sub-parser, or ``only`` that one.
+
+    ``only`` keeps start-up short: the other commands' modules (and what they
+    import) are not loaded; ``tri --help`` builds the full parser.
+    """
     parser = _Parser(
         prog="tri",
         description=DESCRIPTION,
@@ -62,8 +73,8 @@ def build_parser() -> argparse.ArgumentParser:
     )
     parser.add_argument("--version", action="version", version=f"tri {__version__}")
     sub = parser.add_subparsers(dest="command", metavar="COMMAND")
-    for module in COMMANDS.values():
-        module.add_parser(sub)
+    for name in COMMANDS if only is None else (only,):
+        command_module(name).add_parser(sub)
     return parser
 
 
@@ -89,10 +100,16 @@ def _silence_stdout() -> None:
 def main(argv: Sequence[str] | None = None) -> int:
     """Run the command line; returns the exit status (0 ok, 1 check failed, 2 bad input)."""
     args_list = _normalise(list(sys.argv[1:] if argv is None else argv))
-    parser = build_parser()
+    first = args_list[0]
+    if args_list == ["--version"]:
+        print(f"tri {__version__}")
+        return 0
+    from tri.cli.common import EXIT_ERROR, EXIT_INTERNAL, CliError, print_error
+
     try:
+        parser = build_parser(first if first in COMMANDS else None)
         args = parser.parse_args(args_list)
-        module = COMMANDS[args.command]
+        module = command_module(args.command)
         status = int(module.run(args) or 0)
         sys.stdout.flush()  # a full disk or closed pipe shows here, not at exit
         return status

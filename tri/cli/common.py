@@ -3,10 +3,13 @@
 from __future__ import annotations
 
 import sys
+from typing import TYPE_CHECKING
 
 from tri.safety import SAFETY_CAUTION as SAFETY_CAUTION  # its home; re-exported for the commands
-from tri.schedule.load import ScheduleFile, load_schedule
 from tri.schedule.text import escaped
+
+if TYPE_CHECKING:
+    from tri.schedule.load import ScheduleFile
 
 EXIT_OK = 0
 EXIT_LIMIT = 1  #: ``tri check`` found a limit exceeded
@@ -25,4 +28,6 @@ def print_error(message: str) -> None:
 
 def load(path: str) -> ScheduleFile:
     """Load a schedule, raising :class:`ScheduleError` with every problem."""
+    from tri.schedule.load import load_schedule  # tomlkit and numpy, only when a file is read
+
     return load_schedule(path)

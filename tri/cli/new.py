@@ -26,6 +26,7 @@ OPTION_OF_KEY = {
     "neutral_a": "--neutral-a",
     "phase_labels": "--labels",
     "layout": "--layout",
+    "high_leg": "--high-leg",
 }
 
 
@@ -43,7 +44,12 @@ def add_parser(sub: Any) -> None:
         required=True,
         choices=list(SYSTEMS),
         metavar="SYSTEM",
-        help="supply system, e.g. 208Y/120, 480Y/277, 400Y/230, 480D",
+        help="supply system, e.g. 208Y/120, 480Y/277, 400Y/230, 480D, 240/120D",
+    )
+    p.add_argument(
+        "--high-leg",
+        choices=("B", "C"),
+        help="the high leg of a 240/120D high-leg delta (default B)",
     )
     p.add_argument("--spaces", default="42", help="circuit positions (default 42)")
     p.add_argument("--name", help="panel name (default: the file name)")
@@ -110,6 +116,8 @@ def panel_from_options(args: argparse.Namespace, path: Path) -> PanelInfo:
     for key in ("main_a", "neutral_a"):
         if getattr(args, key) is not None:
             raw[key] = _number(getattr(args, key))
+    if args.high_leg is not None:  # B or C whatever the labels: the file holds the label
+        raw["high_leg"] = raw["phase_labels"][1 if args.high_leg == "B" else 2]
     reader = Reader()
     panel = read_panel(reader, {"panel": raw})
     if reader.issues or panel is None:
@@ -141,11 +149,17 @@ def run(args: argparse.Namespace) -> int:
         raise CliError(f"{path}: expected a .toml file name")
     panel = panel_from_options(args, path)
     system = panel.supply_system
+    high_leg = panel.effective_high_leg
     save_schedule(path, Schedule(panel=panel))
     print(
         f"Created {path}: {panel.name}, {system.key}, {panel.spaces} spaces, bus {panel.bus_a:g} A."
     )
     if panel.bus_a == DEFAULT_BUS_A:
         print(f"The bus rating {DEFAULT_BUS_A:g} A is a placeholder: set bus_a from the nameplate.")
+    if high_leg is not None:
+        print(
+            f"High leg: {panel.phase_labels[high_leg]} (208 V to neutral); 1-pole circuits go "
+            "on the other two phases only."
+        )
     print(f"Next: add circuits by hand or run 'tri {path}'.")
     return 0

@@ -29,6 +29,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from tri.engine.harmonics import order_currents, rms, thd_pct
+from tri.engine.high_leg import high_leg_caution, supply_phase_voltages
 from tri.engine.inputs import (
     LINE_TO_LINE,
     LINE_TO_NEUTRAL,
@@ -39,6 +40,13 @@ from tri.engine.inputs import (
     Ratings,
     SupplyImpedance,
     SystemVoltages,
+)
+from tri.engine.legs import (
+    breaker_calculated_a,
+    breaker_results,
+    check_wiring_inputs,
+    shared_neutral_results,
+    wiring_spectra,
 )
 from tri.engine.limits import LEVEL_RANK, FindingLimits
 from tri.engine.loading import (
@@ -54,7 +62,6 @@ from tri.engine.neutral_rules import neutral_findings, three_pole_triplen_findin
 from tri.engine.phasors import (
     element_currents,
     line_voltages,
-    nominal_phase_voltages,
     schedule_va,
 )
 from tri.engine.readings import compare_readings
@@ -139,6 +146,7 @@ def check_inputs(circuits: CircuitArrays, system: SystemVoltages, ratings: Ratin
     breakers = np.asarray(circuits.breaker_a, dtype=float)
     if np.any(~np.isnan(breakers) & ~(breakers > 0)) or np.any(np.isinf(breakers)):
         raise ValueError("breaker ratings must be > 0 and finite (NaN: none)")
+    check_wiring_inputs(circuits, system)
 
 
 def _snap(x: np.ndarray, scale: np.ndarray, extra_dims: int) -> np.ndarray:
@@ -158,8 +166,8 @@ def _code_figures(
     """The figures of the code's calculation (scheduled loads) and the non-linear
     line-to-neutral share, as :class:`BatchAnalysis` fields."""
     factor = ratings.continuous_factor
-    v_ln = system.v_ln_or_derived
-    calculated = calculated_load_a(circuits, factor, v_ln)
+    e = supply_phase_voltages(system)
+    calculated = calculated_load_a(circuits, factor, e)
     s_abs = np.abs(np.asarray(circuits.s_va))
     ln = np.asarray(circuits.connection) == LINE_TO_NEUTRAL
     nl_ln_va = np.sum(np.where(nonlinear & ln, s_abs, 0.0), axis=-1)
@@ -167,8 +175,10 @@ def _code_figures(
     return {
         "phase_calculated_a": calculated,
         "phase_calculated_pct": loading_pct(calculated, rating),
-        "neutral_calculated_a": neutral_calculated_load_a(circuits, v_ln),
-        "circuit_calculated_a": circuit_calculated_a(circuits, factor, v_ln),
+        "neutral_calculated_a": neutral_calculated_load_a(circuits, e),
+        "circuit_calculated_a": breaker_calculated_a(
+            circuits, circuit_calculated_a(circuits, factor, e), factor, e
+        ),
         "nonlinear_ln_share_pct": np.where(total_va > 0, 100.0 * nl_ln_va / safe, 0.0),
     }
 
@@ -208,8 +218,13 @@ def analyse_batch(
         the panel analysed alone.
     """
     check_inputs(circuits, system, ratings)
+    if supply is not None and system.high_leg is not None:
+        raise ValueError(
+            "voltages at the panel are not modelled for a high-leg delta (the supply model is "
+            "a wye source)"
+        )
     conn = np.asarray(circuits.connection)
-    e = nominal_phase_voltages(system.v_ln_or_derived)
+    e = supply_phase_voltages(system)
 
     sol = None
     if supply is not None:
@@ -244,6 +259,11 @@ def analyse_batch(
         volt = voltage_figures(sol.v_phase, system.has_neutral)
         volt.update(iterations=sol.iterations, converged=sol.converged)
 
+    wiring = {
+        k: _snap(v, scale, v.ndim - np.ndim(scale))
+        for k, v in wiring_spectra(circuits, i_e).items()
+    }
+
     return BatchAnalysis(
         orders=oc.orders,
         phase_va=schedule_va(circuits),
@@ -255,6 +275,7 @@ def analyse_batch(
         **currents,
         **_code_figures(circuits, system, ratings, rating, nonlinear, total_va),
         **volt,
+        **wiring,
     )
 
 
@@ -269,7 +290,7 @@ def _findings(
     """Loading, breaker, neutral and balance findings of one panel (unsorted)."""
     out = loading_findings(a, ratings, limits)
     if circuits is not None:
-        out += breaker_findings(a, circuits.breaker_a, circuits.continuous, names)
+        out += breaker_findings(a, circuits.breaker_a, circuits.continuous, names, circuits.breaker)
     out += neutral_findings(a, limits, wye)
     out += deviation_findings(a, limits)
     out += phase_kva_findings(a, limits)
@@ -531,10 +552,12 @@ def describe_panel(
     circuits : CircuitArrays, optional
         The panel's own circuit rows (breaker ratings and continuous flags
         for the per-breaker check, in the row order of ``b``'s per-circuit
-        arrays); without them no breaker is judged.
+        arrays; their ``breaker`` numbers gather the legs of each breaker in
+        ``PanelAnalysis.breakers``); without them no breaker is judged.
     circuit_labels : tuple of str, optional
-        How findings name each circuit row (slot or phases, and name);
-        default ``"circuit 1"``, ``"circuit 2"``, ...
+        How findings name each circuit row (slot or phases, and name; the
+        legs of one breaker share its label); default ``"circuit 1"``,
+        ``"circuit 2"``, ...
 
     Returns
     -------
@@ -623,6 +646,8 @@ def describe_panel(
         circuit_rms_a=tuple(float(x) for x in b.circuit_rms_a),
         nonlinear_share_pct=_f(b.nonlinear_share_pct),
         unplaced_count=int(b.unplaced_count),
+        breakers=breaker_results(b, None if circuits is None else circuits.breaker),
+        shared_neutrals=shared_neutral_results(b),
         nonlinear_ln_share_pct=_f(b.nonlinear_ln_share_pct),
         circuit_calculated_a=tuple(float(x) for x in b.circuit_calculated_a),
     )
@@ -630,7 +655,12 @@ def describe_panel(
     names = circuit_labels or tuple(f"circuit {k + 1}" for k in range(n_rows))
     if len(names) != n_rows:
         raise ValueError(f"circuit_labels has {len(names)} labels for {n_rows} circuits")
-    findings = _findings(a, circuits, ratings, limits, names, system.has_neutral)
+    # 310.15(E) and IEC Annex E are written for the neutral of a wye; a high-leg delta's
+    # neutral is the centre tap of one winding
+    wye = system.has_neutral and system.high_leg is None
+    findings = _findings(a, circuits, ratings, limits, names, wye)
+    if system.high_leg is not None:
+        findings.append(high_leg_caution(labels[system.high_leg], system.v_ll))
     if bool(b.three_pole_triplens):
         findings.append(three_pole_triplen_finding())
     findings.extend(voltage_findings(a, limits))
@@ -646,6 +676,8 @@ def describe_panel(
     comparison = None
     if readings is not None:
         comparison, more = compare_readings(a, readings, limits)
+        if system.high_leg is not None:  # unequal phase voltages by design: no deviation rate
+            comparison = dataclasses.replace(comparison, phase_deviation_pct=None)
         findings.extend(more)
     findings.sort(key=lambda f: LEVEL_RANK[f.level])
     return dataclasses.replace(a, readings=comparison, findings=tuple(findings))

@@ -128,6 +128,28 @@ def unit_powers(unit: np.ndarray, orders: np.ndarray, out: np.ndarray | None = N
     return out
 
 
+def polar_unit(current: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """Magnitude and unit phasor of each current.
+
+    Parameters
+    ----------
+    current : complex ndarray, shape (...)
+        Currents [A].
+
+    Returns
+    -------
+    mag : float ndarray, shape (...)
+        ``|I|`` [A].
+    unit : complex ndarray, shape (...)
+        ``I/|I|``, 1 where ``I = 0`` [-]. Real divisions stay exact for
+        subnormal currents, where a complex division would overflow.
+    """
+    mag = np.abs(current)
+    safe = np.where(mag > 0, mag, 1.0)
+    unit = np.where(mag > 0, current.real / safe + 1j * (current.imag / safe), 1.0)
+    return mag, unit
+
+
 @dataclass(frozen=True, eq=False)
 class OrderCurrents:
     """Line, neutral and per-circuit currents at every order (arrays).
@@ -210,11 +232,7 @@ def order_currents(
     harm = np.ascontiguousarray(
         np.broadcast_to(np.asarray(circuits.harmonics, dtype=complex), (*batch, n, n_h))
     )
-    mag = np.abs(i_e)
-    # unit phasor u = I_e/|I_e| (1 where I_e = 0); real divisions stay exact
-    # for subnormal currents, where a complex division would overflow
-    safe = np.where(mag > 0, mag, 1.0)
-    unit = np.where(mag > 0, i_e.real / safe + 1j * (i_e.imag / safe), 1.0)
+    mag, unit = polar_unit(i_e)
 
     # Collector matrix, scaled by |I_e| so the spectrum below is per unit:
     # rows 0-2 the 1-/2-pole incidence (+1 on p, -1 on q), row 3 picks 3-pole
@@ -277,6 +295,23 @@ def order_currents(
         harmonic_power_pu=harmonic,
         triplen_power_pu=triplen,
     )
+
+
+def is_triplen(orders: np.ndarray) -> np.ndarray:
+    """True for the triplen orders (multiples of 3), which add in the neutral.
+
+    Parameters
+    ----------
+    orders : int array_like, shape (H,)
+        Orders (1 = the fundamental).
+
+    Returns
+    -------
+    bool ndarray, shape (H,)
+        ``h % 3 == 0``: a balanced set of such currents is in phase on the
+        three phases (zero sequence), so it adds in the neutral [2].
+    """
+    return np.asarray(orders, dtype=int) % 3 == 0
 
 
 def rms(spectrum: np.ndarray) -> np.ndarray:

@@ -38,11 +38,18 @@ class SystemVoltages:
         no neutral (line-to-neutral circuits are then impossible).
     frequency_hz : float
         System frequency [Hz].
+    high_leg : int or None
+        On a high-leg delta (240/120 V, 4-wire, centre-tapped winding): the
+        phase index (1 = B or 2 = C) of the high leg, whose voltage to
+        neutral is ``sqrt(3)/2·v_ll``; ``v_ln`` is then half the winding
+        (120 V). ``None`` on a wye or 3-wire system. See
+        :mod:`tri.engine.high_leg`.
     """
 
     v_ll: float
     v_ln: float | None
     frequency_hz: float = 60.0
+    high_leg: int | None = None
 
     @property
     def has_neutral(self) -> bool:
@@ -80,9 +87,21 @@ class CircuitArrays:
     continuous : bool ndarray, shape (..., n)
         True for continuous loads (3 h or more), counted at the continuous
         factor in the sizing check.
+    breaker : int ndarray, shape (..., n), optional
+        Breaker of each row, 0..nb-1: rows with the same number are the legs
+        of one breaker (a breaker with a neutral and one load per leg, or a
+        3-pole breaker with three line-to-line loads). When given, the
+        analysis adds each breaker's line currents on every phase
+        (:mod:`tri.engine.legs`). ``None``: every row its own breaker.
+    neutral_group : int ndarray, shape (..., n), optional
+        Neutral conductor of each line-to-neutral row, 0..G-1, or -1 for the
+        panel neutral alone: rows with the same number share one neutral
+        conductor (a multi-wire branch circuit), whose current the analysis
+        adds at every order. ``None``: no shared neutrals.
     breaker_a : float ndarray, shape (..., n)
         Rating of each circuit's breaker [A]; NaN where none is given (the
-        circuit is then not checked against its breaker).
+        circuit is then not checked against its breaker). The legs of one
+        breaker carry the same rating.
     """
 
     s_va: np.ndarray
@@ -92,6 +111,8 @@ class CircuitArrays:
     harmonics: np.ndarray
     orders: np.ndarray
     continuous: np.ndarray = field(default=None)  # type: ignore[assignment]
+    breaker: np.ndarray | None = None
+    neutral_group: np.ndarray | None = None
     breaker_a: np.ndarray = field(default=None)  # type: ignore[assignment]
 
     def __post_init__(self) -> None:

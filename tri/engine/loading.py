@@ -50,8 +50,9 @@ from tri.engine.limits import (
     loading_word,
     practice_for,
 )
-from tri.engine.phasors import connection_masks, schedule_va
+from tri.engine.phasors import connection_masks, element_currents, schedule_va
 from tri.engine.results import Finding, PanelAnalysis
+from tri.engine.sequence import sequence_components
 
 __all__ = [
     "LOCAL",
@@ -105,36 +106,56 @@ def continuous_weights(continuous: np.ndarray, factor: float) -> np.ndarray:
     return np.where(np.asarray(continuous, dtype=bool), np.asarray(factor, dtype=float), 1.0)
 
 
-def scheduled_current_a(circuits: CircuitArrays, v_ln: float | np.ndarray) -> np.ndarray:
+def scheduled_current_a(circuits: CircuitArrays, v_phase: np.ndarray) -> np.ndarray:
     """Each circuit's line current from its scheduled load at nominal voltage [A].
 
     Parameters
     ----------
     circuits : CircuitArrays
         Shape (..., n).
-    v_ln : float or ndarray broadcasting against shape (..., n)
-        Nominal line-to-neutral voltage [V] (``v_ll/√3`` on a 3-wire system).
+    v_phase : complex ndarray, shape (3,) or (..., 3)
+        Nominal phase-to-neutral phasors [V]: balanced ``V_LN∠0°, ∠−120°,
+        ∠+120°`` on a wye (``V_LL/√3`` on a 3-wire system), the high-leg set
+        on a high-leg delta (:func:`tri.engine.high_leg.supply_phase_voltages`).
 
     Returns
     -------
     ndarray, shape (..., n)
-        ``|S|/V_LN`` (1 pole), ``|S|/V_LL`` (2 poles), ``|S|/(√3·V_LL)``
-        (3 poles), 0 unplaced [A], with ``V_LL = √3·V_LN``, the magnitude of
-        the engine's nominal ``V_A − V_B`` (so a load given in amperes comes
-        back unchanged): the load as the schedule states it, the figure the
+        ``|S|/|V_p|`` (1 pole), ``|S|/|V_p − V_q|`` (2 poles),
+        ``|S|/(3·|V_1|)`` (3 poles, ``V_1`` the positive-sequence voltage), 0
+        unplaced [A]. On a wye that is ``|S|/V_LN``, ``|S|/V_LL`` and
+        ``|S|/(√3·V_LL)`` with ``V_LL = √3·V_LN``, the magnitude of the
+        engine's nominal ``V_A − V_B`` (so a load given in amperes comes back
+        unchanged); on a 240/120 V high-leg delta every line pair is 240 V and
+        ``|V_1| = 240/√3``. The load as the schedule states it, the figure the
         code's calculations use (nameplate loads, nominal voltage), without
         the harmonic profile and whatever ``--iterate``.
     """
-    ln, ll, tp = connection_masks(circuits)
-    v = np.asarray(v_ln, dtype=float)
-    v_ll = np.sqrt(3.0) * v
-    volts = np.where(ln, v, np.where(ll, v_ll, np.sqrt(3.0) * v_ll))
-    s = np.abs(np.asarray(circuits.s_va, dtype=complex))
-    return np.where(ln | ll | tp, s / volts, 0.0)
+    return np.abs(element_currents(circuits, np.asarray(v_phase, dtype=complex)))
+
+
+def phase_voltage_magnitudes(v_phase: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """``|V_p|`` of each phase and ``|V_1|``, the voltage the code divides VA shares by.
+
+    Parameters
+    ----------
+    v_phase : complex ndarray, shape (..., 3)
+        Nominal phase-to-neutral phasors [V].
+
+    Returns
+    -------
+    to_neutral : ndarray, shape (..., 3)
+        Each phase's voltage to neutral [V] (the divisor of 1-pole VA).
+    equivalent : ndarray, shape (...)
+        ``|V_1| = V_LL/√3`` for a symmetric line-voltage set [V] (the divisor
+        of the per-phase share of 2- and 3-pole VA); ``V_LN`` on a wye.
+    """
+    v = np.asarray(v_phase, dtype=complex)
+    return np.abs(v), np.abs(sequence_components(v)[..., 1])
 
 
 def circuit_calculated_a(
-    circuits: CircuitArrays, factor: float | np.ndarray, v_ln: float | np.ndarray
+    circuits: CircuitArrays, factor: float | np.ndarray, v_phase: np.ndarray
 ) -> np.ndarray:
     """Each circuit's calculated load for its breaker: continuous ones at the factor.
 
@@ -144,8 +165,8 @@ def circuit_calculated_a(
         Shape (..., n).
     factor : float
         Continuous factor [-].
-    v_ln : float
-        Nominal line-to-neutral voltage [V] (:func:`scheduled_current_a`).
+    v_phase : complex ndarray, shape (3,) or (..., 3)
+        Nominal phase-to-neutral phasors [V] (:func:`scheduled_current_a`).
 
     Returns
     -------
@@ -156,10 +177,10 @@ def circuit_calculated_a(
         one of the two).
     """
     weights = continuous_weights(circuits.continuous, factor)
-    return weights * scheduled_current_a(circuits, v_ln)
+    return weights * scheduled_current_a(circuits, v_phase)
 
 
-def calculated_load_a(circuits: CircuitArrays, factor: float, v_ln: float) -> np.ndarray:
+def calculated_load_a(circuits: CircuitArrays, factor: float, v_phase: np.ndarray) -> np.ndarray:
     """The code's calculated load on each phase [A].
 
     Parameters
@@ -168,15 +189,17 @@ def calculated_load_a(circuits: CircuitArrays, factor: float, v_ln: float) -> np
         Shape (..., n).
     factor : float
         Continuous factor [-].
-    v_ln : float
-        Nominal line-to-neutral voltage [V] (``v_ll/√3`` on a 3-wire system).
+    v_phase : complex ndarray, shape (3,)
+        Nominal phase-to-neutral phasors [V] (:func:`scheduled_current_a`).
 
     Returns
     -------
     ndarray, shape (..., 3)
-        ``Σ_c w_c·VA_c,p / V_LN`` [A]: the scheduled VA on each phase, with
+        ``Σ_c w_c·VA_c,p / V_c,p`` [A]: the scheduled VA on each phase, with
         ``w_c`` the continuous factor on continuous circuits and 1 on the
-        others.
+        others, and ``V_c,p`` the phase's voltage to neutral for a 1-pole
+        row, ``|V_1|`` for the share of a 2- or 3-pole row
+        (:func:`phase_voltage_magnitudes`). On a wye both are ``V_LN``.
 
     Notes
     -----
@@ -189,34 +212,49 @@ def calculated_load_a(circuits: CircuitArrays, factor: float, v_ln: float) -> np
     for 2 poles (``√3/2·I`` on a wye). Loads add arithmetically, as the
     code's calculation does; the physical current (phasors, harmonics) is
     the RMS phase current, judged separately against the rating.
+
+    On a 240/120 V high-leg delta a 1-pole row is on a 120 V low leg
+    (``|V_p| = 120``) and 2- and 3-pole shares are over ``|V_1| = 240/√3``,
+    so a balanced 3-pole load of ``S`` gives ``S/(√3·240)`` on each phase,
+    its line current [computed].
     """
     weights = continuous_weights(circuits.continuous, factor)
-    weighted = replace(circuits, s_va=np.asarray(circuits.s_va) * weights)
-    return schedule_va(weighted) / float(v_ln)
+    s = np.asarray(circuits.s_va) * weights
+    ln, _, _ = connection_masks(circuits)
+    to_neutral, equivalent = phase_voltage_magnitudes(v_phase)
+    ln_va = schedule_va(replace(circuits, s_va=np.where(ln, s, 0.0)))
+    multi_va = schedule_va(replace(circuits, s_va=np.where(ln, 0.0, s)))
+    return ln_va / to_neutral + multi_va / equivalent
 
 
-def neutral_calculated_load_a(circuits: CircuitArrays, v_ln: float) -> np.ndarray:
+def neutral_calculated_load_a(circuits: CircuitArrays, v_phase: np.ndarray) -> np.ndarray:
     """The neutral load of the code's calculation: the maximum unbalanced load [A].
 
     Parameters
     ----------
     circuits : CircuitArrays
         Shape (..., n).
-    v_ln : float
-        Nominal line-to-neutral voltage [V].
+    v_phase : complex ndarray, shape (3,)
+        Nominal phase-to-neutral phasors [V] (:func:`scheduled_current_a`).
 
     Returns
     -------
     ndarray, shape (...)
-        ``max_p Σ_{1-pole c on p} |S_c| / V_LN`` [A]: the largest scheduled
+        ``max_p Σ_{1-pole c on p} |S_c| / |V_p|`` [A]: the largest scheduled
         line-to-neutral load on any one phase, at 100 % (NEC 220.61(A); a
         neutral not connected to an overcurrent device takes no 125 %,
         215.2(A)(1) Exception No. 2). 2- and 3-pole circuits put no load on
-        the neutral.
+        the neutral; each leg to neutral of a breaker with a neutral or of a
+        shared neutral is a 1-pole row on its own phase and counts there. On
+        a wye ``|V_p| = V_LN``. On a high-leg delta the schedule refuses any
+        load to neutral on the high leg, so only the 120 V loads of the two
+        low legs count (a row to neutral on the high leg, which the engine
+        can still be given, would count at its own 207.8 V).
     """
     ln, _, _ = connection_masks(circuits)
     line_to_neutral = replace(circuits, s_va=np.where(ln, np.asarray(circuits.s_va), 0.0))
-    return np.max(schedule_va(line_to_neutral), axis=-1) / float(v_ln)
+    to_neutral, _ = phase_voltage_magnitudes(v_phase)
+    return np.max(schedule_va(line_to_neutral) / to_neutral, axis=-1)
 
 
 def calculation_words(factor: float) -> str:
@@ -353,6 +391,7 @@ def breaker_findings(
     breaker_a: np.ndarray,
     continuous: np.ndarray,
     circuit_labels: tuple[str, ...],
+    breaker: np.ndarray | None = None,
 ) -> list[Finding]:
     """Circuits whose calculated load is over their breaker (NEC 210.20(A)).
 
@@ -366,25 +405,39 @@ def breaker_findings(
         Continuous circuits.
     circuit_labels : tuple of str
         How messages name each circuit (slot or phases, and name).
+    breaker : int ndarray, shape (n,), optional
+        ``CircuitArrays.breaker``: rows with one number are the legs of one
+        breaker, whose ``circuit_calculated_a`` is already that of its
+        largest pole (:func:`tri.engine.legs.breaker_calculated_a`); only
+        its first row is judged, so a breaker gets one finding.
 
     Returns
     -------
     list of Finding
-        One limit per circuit over its breaker (equal passes).
+        One limit per breaker over its rating (equal passes).
     """
     out: list[Finding] = []
     cf = a.continuous_factor
     _, source = sizing_sources(a.frequency_hz, True, cf)
+    numbers = None if breaker is None else np.asarray(breaker)
+    seen: set[int] = set()
     for k, rating in enumerate(np.asarray(breaker_a, dtype=float)):
+        legs = 1
+        if numbers is not None:
+            if int(numbers[k]) in seen:
+                continue
+            seen.add(int(numbers[k]))
+            legs = int(np.sum(numbers == numbers[k]))
         need = a.circuit_calculated_a[k]
         if not np.isfinite(rating) or not exceeds(need, rating):
             continue
         cont = bool(continuous[k]) and cf != 1.0
         how = f" (continuous {need / cf:.1f} A at {cf * 100:g} %)" if cont else ""
+        pole = " on its largest pole" if legs > 1 else ""
         out.append(
             Finding(
                 "limit",
-                f"{circuit_labels[k]}: {need:.1f} A over its {rating:g} A breaker{how}.",
+                f"{circuit_labels[k]}: {need:.1f} A{pole} over its {rating:g} A breaker{how}.",
                 f"{source}; {LOCAL}",
             )
         )

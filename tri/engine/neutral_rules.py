@@ -18,7 +18,9 @@ overheat:
 Whether the neutral counts as a current-carrying conductor (for ampacity
 adjustment) follows NEC 310.15(E): only from the share of non-linear
 *line-to-neutral* load on a 4-wire wye, or always for two phases and the
-neutral of a wye; a 3-wire load (a six-pulse drive on three poles) draws
+neutral of a wye (a high-leg delta is 4-wire but not a wye: its neutral is
+the centre tap of one winding, its 120 V legs in opposition, and neither
+this rule nor IEC Annex E is applied to it); a 3-wire load (a six-pulse drive on three poles) draws
 none of its harmonics through the neutral and never makes it count. On an
 IEC-practice panel (50 Hz) the NEC rule is not cited: IEC 60364-5-52
 523.6.3 and its Annex E say when the neutral is a loaded conductor.
@@ -212,7 +214,10 @@ def neutral_findings(a: PanelAnalysis, limits: FindingLimits, wye: bool) -> list
     limits : FindingLimits
         ``nonlinear_major_pct``.
     wye : bool
-        The panel's neutral is that of a wye.
+        The panel's neutral is that of a wye. False with a neutral present:
+        a high-leg delta, whose neutral is the centre tap of one winding;
+        310.15(E) and IEC Annex E, written for a wye's neutral, are then not
+        applied.
 
     Returns
     -------
@@ -260,7 +265,7 @@ def neutral_findings(a: PanelAnalysis, limits: FindingLimits, wye: bool) -> list
     iec_practice = practice_for(a.frequency_hz) == IEC
     if not iec_practice:
         out.extend(_nec_count_findings(a, limits, wye))
-    basis = iec_neutral_basis(a)
+    basis = iec_neutral_basis(a) if wye else None
     iec = None if basis is None else _iec_finding(basis, iec_practice)
     if iec is not None:
         out.append(iec)
@@ -270,6 +275,8 @@ def neutral_findings(a: PanelAnalysis, limits: FindingLimits, wye: bool) -> list
 def _nec_count_findings(a: PanelAnalysis, limits: FindingLimits, wye: bool) -> list[Finding]:
     """NEC 310.15(E) for the panel's feeder (three phases and the neutral)."""
     out: list[Finding] = []
+    if not wye:
+        return _centre_tap_findings(a, limits)
     rule = neutral_counts(3, wye, a.nonlinear_ln_share_pct, limits.nonlinear_major_pct)
     if rule.counts:
         out.append(
@@ -292,6 +299,23 @@ def _nec_count_findings(a: PanelAnalysis, limits: FindingLimits, wye: bool) -> l
             )
         )
     return out
+
+
+def _centre_tap_findings(a: PanelAnalysis, limits: FindingLimits) -> list[Finding]:
+    """310.15(E) on a high-leg delta: its wye rules do not apply (said when it matters)."""
+    if a.nonlinear_ln_share_pct <= limits.nonlinear_major_pct:
+        return []
+    return [
+        Finding(
+            "info",
+            f"{a.nonlinear_ln_share_pct:.0f} % of the load is non-linear line-to-neutral, but "
+            "the rule that then counts the neutral as current-carrying is written for a "
+            "4-wire wye. On this high-leg delta the neutral is the centre tap of one "
+            "winding: the two 120 V legs are in opposition, so it carries the difference of "
+            "their currents (odd harmonics included), as the neutral figures show.",
+            f"{SRC_NEUTRAL_CURRENT_CARRYING}; {LOCAL}",
+        )
+    ]
 
 
 def three_pole_triplen_finding() -> Finding:

@@ -336,6 +336,64 @@ class ReadingsComparison:
 
 
 @dataclass(frozen=True)
+class BreakerCurrents:
+    """Line currents one breaker carries (its legs summed), per phase in phase order.
+
+    Attributes
+    ----------
+    current : tuple of 3 Phasor
+        Fundamental line current on each phase [A, deg]; 0 on a phase the
+        breaker does not touch.
+    rms_a : tuple of 3 float
+        True-RMS line current on each phase [A].
+    leg_current_a : tuple of float
+        Fundamental current of each of the breaker's rows (its legs), in
+        input order [A].
+    leg_rms_a : tuple of float
+        True-RMS current of each leg [A].
+    """
+
+    current: tuple[Phasor, Phasor, Phasor]
+    rms_a: tuple[float, float, float]
+    leg_current_a: tuple[float, ...] = ()
+    leg_rms_a: tuple[float, ...] = ()
+
+    @property
+    def max_current_a(self) -> float:
+        """Largest fundamental line current over the phases [A]."""
+        return max(p.magnitude for p in self.current)
+
+    @property
+    def max_rms_a(self) -> float:
+        """Largest true-RMS line current over the phases [A]."""
+        return max(self.rms_a)
+
+
+@dataclass(frozen=True)
+class SharedNeutralResult:
+    """Current in one neutral conductor shared by a group of legs.
+
+    Attributes
+    ----------
+    current : Phasor
+        Fundamental: the phasor sum of the legs' currents [A, deg].
+    rms_a : float
+        True RMS over every order [A].
+    harmonic_a : tuple of float
+        Magnitude at each order of ``PanelAnalysis.orders`` [A].
+    """
+
+    current: Phasor
+    rms_a: float
+    harmonic_a: tuple[float, ...]
+
+    @property
+    def current_a(self) -> float:
+        """Fundamental magnitude [A]."""
+        return self.current.magnitude
+
+
+@dataclass(frozen=True)
 class PanelAnalysis:
     """Everything the engine computes for one panel.
 
@@ -379,6 +437,12 @@ class PanelAnalysis:
         [%].
     unplaced_count : int
         Circuit rows not on any phase (left out of every figure).
+    breakers : tuple of BreakerCurrents
+        Per breaker number (``CircuitArrays.breaker``), when the input gave
+        them; empty otherwise.
+    shared_neutrals : tuple of SharedNeutralResult
+        Per shared neutral (``CircuitArrays.neutral_group``); empty when
+        none was given.
     nonlinear_ln_share_pct : float
         Share of the placed connected VA on line-to-neutral circuits with a
         harmonic profile [%]: the non-linear load whose harmonics reach the
@@ -408,6 +472,8 @@ class PanelAnalysis:
     circuit_rms_a: tuple[float, ...]
     nonlinear_share_pct: float
     unplaced_count: int
+    breakers: tuple[BreakerCurrents, ...] = ()
+    shared_neutrals: tuple[SharedNeutralResult, ...] = ()
     nonlinear_ln_share_pct: float = 0.0
     circuit_calculated_a: tuple[float, ...] = ()
 
@@ -476,6 +542,12 @@ class BatchAnalysis:
         Shape (B...); [%], [%], [%] (NaN without a neutral), [-] (NaN above 5 %).
     iterations : int ndarray or None
     converged : bool ndarray or None
+    breaker_pole_spectrum : complex ndarray, shape (B..., nb, 3, H), or None
+        Line current of each breaker on each phase at each order [A]; None
+        unless the input numbered breakers (:mod:`tri.engine.legs`).
+    shared_neutral_spectrum : complex ndarray, shape (B..., G, H), or None
+        Current in each shared neutral at each order [A]; None unless the
+        input gave neutral groups.
     """
 
     orders: np.ndarray
@@ -513,6 +585,8 @@ class BatchAnalysis:
     motor_derating: np.ndarray | None = None
     iterations: np.ndarray | None = None
     converged: np.ndarray | None = None
+    breaker_pole_spectrum: np.ndarray | None = None
+    shared_neutral_spectrum: np.ndarray | None = None
 
     @property
     def batch_shape(self) -> tuple[int, ...]:

@@ -100,6 +100,7 @@ def analyse_scenarios(
     iterate_voltage: bool = False,
     phase_labels: tuple[str, str, str] = ("A", "B", "C"),
     limits: FindingLimits | None = None,
+    circuit_labels: tuple[str, ...] | None = None,
 ) -> tuple[PanelAnalysis, ...]:
     """The full analysis (figures and findings) of the panel in each scenario.
 
@@ -108,7 +109,7 @@ def analyse_scenarios(
     circuits : CircuitArrays
         One panel, shape (n,).
     scenarios : ScenarioSet
-    system, ratings, supply, iterate_voltage, phase_labels, limits
+    system, ratings, supply, iterate_voltage, phase_labels, limits, circuit_labels
         As for :func:`tri.engine.analysis.analyse` (site readings belong to
         no scenario and are left out).
 
@@ -135,6 +136,7 @@ def analyse_scenarios(
                 iterate_voltage=iterate_voltage,
                 phase_labels=phase_labels,
                 limits=limits,
+                circuit_labels=circuit_labels,
             )
         )
     return tuple(out)

@@ -106,3 +106,49 @@ def unbalance_pct(x_012: np.ndarray, which: int = 2) -> np.ndarray:
     x = np.abs(np.asarray(x_012))
     den = x[..., 1]
     return np.where(den > 0, 100.0 * x[..., which] / np.where(den > 0, den, 1.0), 0.0)
+
+
+def order_sequence(orders: np.ndarray) -> np.ndarray:
+    """Which sequence a balanced set of currents of each harmonic order forms.
+
+    Parameters
+    ----------
+    orders : int array_like, shape (H,)
+        Harmonic orders (1 = the fundamental).
+
+    Returns
+    -------
+    int ndarray, shape (H,)
+        Index into ``X_0, X_1, X_2``: 1 (positive) for ``h ≡ 1 (mod 3)``,
+        2 (negative) for ``h ≡ 2``, 0 (zero sequence) for ``h ≡ 0``
+        (the triplen orders).
+
+    Notes
+    -----
+    A balanced set ``X∠0, X∠-120°, X∠+120°`` at the fundamental becomes, at
+    order h, ``X∠0, X∠-120h°, X∠+120h°`` (a time shift of the fundamental
+    shifts order h by h times the angle), which is the set of sequence
+    ``h mod 3`` in the numbering above [computed].
+    """
+    return np.asarray(orders, dtype=int) % 3
+
+
+def sequence_of_orders(spectrum: np.ndarray, orders: np.ndarray) -> np.ndarray:
+    """Per order, the sequence component that a balanced set of that order forms.
+
+    Parameters
+    ----------
+    spectrum : complex ndarray, shape (..., 3, H)
+        Phase currents at each order [A].
+    orders : int array_like, shape (H,)
+        The orders of the columns.
+
+    Returns
+    -------
+    complex ndarray, shape (..., H)
+        ``X_{order_sequence(h)}`` of each order's phase set [A]
+        (:func:`sequence_components`, :func:`order_sequence`).
+    """
+    seq = sequence_components(np.swapaxes(np.asarray(spectrum, dtype=complex), -1, -2))
+    idx = np.broadcast_to(order_sequence(orders)[:, None], (*seq.shape[:-1], 1))
+    return np.take_along_axis(seq, idx, axis=-1)[..., 0]

@@ -26,7 +26,7 @@ import numpy as np
 
 from tri.engine.inputs import LINE_TO_NEUTRAL, UNPLACED
 from tri.engine.loading import circuit_calculated_a, continuous_weights
-from tri.engine.phasors import schedule_va
+from tri.engine.phasors import PHASE_UNIT, schedule_va
 from tri.engine.tree import TreeSolution, roll_up_phase_va
 from tri.engine.tree_inputs import PackedTree
 
@@ -62,7 +62,7 @@ def tree_code_figures(tree: PackedTree, sol: TreeSolution) -> dict[str, np.ndarr
     ln_va = schedule_va(replace(c, s_va=np.where(ln, s, 0.0)))
     neutral_va, _ = roll_up_phase_va(tree, ln_va, fed_fund, same_phase_only=True)
 
-    circuit_calc = circuit_calculated_a(c, factor, v_ln[:, None])
+    circuit_calc = circuit_calculated_a(c, factor, v_ln[:, None] * PHASE_UNIT)
     for idx in tree.levels[1:]:
         parents = tree.parent[idx]
         circuit_calc[parents, tree.feeder_row[idx]] = (

@@ -22,11 +22,7 @@ Steps
 4. *Pruning*: undo moves that are not needed (the target still met, or
    the largest phase current no larger).
 
-Scores (lexicographic, smaller is better): for *balance*, the largest phase
-RMS current (plus a penalty on neutral current above the limit), then the
-sum of squared phase RMS currents (which spreads the rest evenly); for a
-*target*, the deviation above the target (plus the relative neutral
-excess), then the largest phase RMS current.
+Scores are those of :mod:`tri.rebalance.goal`.
 
 References
 ----------
@@ -38,73 +34,14 @@ References
 
 from __future__ import annotations
 
-from dataclasses import dataclass
-
 import numpy as np
 
 from tri.rebalance.control import Control
-from tri.rebalance.problem import Problem, rms
+from tri.rebalance.goal import Goal, measures
+from tri.rebalance.problem import Problem
 
-#: Neutral excess weight in the balance score [A of phase per A of neutral].
-NEUTRAL_WEIGHT = 1.0e3
 #: Largest number of candidate pairs scored at once (memory bound) [-].
 _CHUNK = 400_000
-
-
-@dataclass(frozen=True)
-class Goal:
-    """What the search aims at.
-
-    Attributes
-    ----------
-    target : float or None
-        Largest allowed deviation of phase RMS currents from their mean, as
-        a fraction [-]; None for *balance* (minimise the largest phase RMS).
-    neutral_max_a : float or None
-        Largest allowed neutral RMS current [A].
-    max_moves : int or None
-        Largest number of moves; None for no limit.
-    """
-
-    target: float | None = None
-    neutral_max_a: float | None = None
-    max_moves: int | None = None
-
-
-def measures(
-    problem: Problem, goal: Goal, v: np.ndarray, n: np.ndarray
-) -> tuple[np.ndarray, np.ndarray]:
-    """Primary and secondary scores of candidate plans.
-
-    Parameters
-    ----------
-    problem : Problem
-    goal : Goal
-    v : complex ndarray, shape (..., 3, H)
-        Phase currents per order [A].
-    n : complex ndarray, shape (..., H)
-        Neutral currents per order [A].
-
-    Returns
-    -------
-    primary, secondary : float ndarray, shape (...)
-        Balance: ``max R_p + w·neutral excess`` [A] and ``Σ R_p²`` [A²].
-        Target: ``max(0, deviation - target) + neutral excess / limit`` [-]
-        and ``max R_p`` [A].
-    """
-    r = rms(v)
-    top = r.max(axis=-1)
-    excess = np.zeros_like(top)
-    if goal.neutral_max_a is not None and problem.has_neutral:
-        excess = np.maximum(0.0, rms(n) - goal.neutral_max_a)
-    if goal.target is None:
-        return top + NEUTRAL_WEIGHT * excess, np.sum(r * r, axis=-1)
-    mean = r.mean(axis=-1)
-    dev = np.max(np.abs(r - mean[..., None]), axis=-1) / np.where(mean > 0, mean, 1.0)
-    viol = np.maximum(0.0, dev - goal.target)
-    if goal.neutral_max_a is not None:
-        viol = viol + excess / max(goal.neutral_max_a, 1e-9)
-    return viol, top
 
 
 class LocalSearch:
@@ -114,8 +51,16 @@ class LocalSearch:
     insertion). Capacity counters always hold for the present circuits.
     """
 
-    def __init__(self, problem: Problem, goal: Goal, control: Control, assign: np.ndarray):
+    def __init__(
+        self,
+        problem: Problem,
+        goal: Goal,
+        control: Control,
+        assign: np.ndarray,
+        stop_gap: float = 1e-12,
+    ):
         self.pr = problem
+        self.stop_gap = stop_gap
         self.goal = goal
         self.control = control
         self.assign = np.array(assign, dtype=int, copy=True)
@@ -125,7 +70,7 @@ class LocalSearch:
         self.n = problem.nbase + problem.ncontrib[a].sum(axis=0)
         self.cells = problem.use_cells[a].sum(axis=0)
         self.win = problem.use_window[a].sum(axis=0)
-        self.cap_total = problem.cap_cells.sum(axis=1)
+        self.cap_total = problem.cap_phase
         self.moved = problem.movable & present & (self.assign != problem.current)
         scale = max(problem.floor_a, 1e-9)
         self.tol = (1e-12 if goal.target is not None else 1e-9 * scale, 1e-9 * scale * scale)
@@ -302,11 +247,11 @@ class LocalSearch:
 
     # -- search loops ----------------------------------------------------------------
     def done(self) -> bool:
-        """Nothing left to gain: target met, or the largest phase at the floor."""
+        """Nothing left to gain: target met, or the largest phase within ``stop_gap`` of ``F``."""
         p, _ = self.score()
         if self.goal.target is not None:
             return p <= 0.0
-        return p <= self.pr.floor_a * (1 + 1e-12)
+        return p <= self.pr.floor_a * (1 + self.stop_gap)
 
     def descend(self, max_steps: int | None = None, swaps: bool = True) -> int:
         """Steepest descent with single changes, then swaps; returns steps taken."""
@@ -418,6 +363,7 @@ def heuristic_plan(
     swaps: bool = True,
     kicks: bool = True,
     seed: int = 0,
+    stop_gap: float = 1e-12,
 ) -> np.ndarray | None:
     """A good plan at once: insertion, descent, pruning (module notes).
 
@@ -437,6 +383,9 @@ def heuristic_plan(
         ``seed`` so results repeat).
     seed : int
         Seed of the kicks.
+    stop_gap : float
+        Balance: stop once the largest phase is within this fraction of the
+        floor ``F`` (a proven bound, so nothing more is needed) [-].
 
     Returns
     -------
@@ -446,7 +395,7 @@ def heuristic_plan(
     start = np.where(problem.current >= 0, problem.current, -1)
     plans = []
     rng = np.random.default_rng(seed)
-    ls = LocalSearch(problem, goal, control, start)
+    ls = LocalSearch(problem, goal, control, start, stop_gap)
     if ls.insert_missing():
         ls.descend(swaps=swaps)
         if kicks:
@@ -454,7 +403,7 @@ def heuristic_plan(
         ls.prune()
         plans.append(ls)
     if from_scratch and problem.n_free:
-        fresh = LocalSearch(problem, goal, control, np.full(problem.n_free, -1))
+        fresh = LocalSearch(problem, goal, control, np.full(problem.n_free, -1), stop_gap)
         if fresh.insert_missing():
             fresh.descend(swaps=swaps)
             if kicks:

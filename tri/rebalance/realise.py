@@ -1,316 +1,234 @@
-"""Turn a phase assignment into slots with the fewest relocations, and order the work.
+"""From options to slots: the arrangement with the fewest relocations, and where each breaker goes.
 
-Two-column geometry (``tri.schedule.slots``): odd slots left, even right;
-slot ``n`` in row ``(n + 1) // 2``; rows cycle A, B, C; a 2-pole breaker
-takes two consecutive rows of one column (rows A-B, B-C or C-A), a 3-pole
-three. Rail boards have no slots: a move only changes phases.
+A plan's options say which phases each breaker takes; on a two-column
+panel the electrician also needs the slots. :func:`realise` finds, for
+given options, an arrangement with the fewest relocations there are
+(exactly: the slot block of :mod:`tri.rebalance.slot_model` with the
+options fixed, minimising relocations), and :func:`arrange` turns a choice
+of stayers and windows (from that program or from a model's solution)
+into first slots.
 
-Realisation
------------
-Circuits whose option did not change stay where they are. Multi-pole
-breakers that must move are placed first, in windows (consecutive rows of
-the right phases in either column) picked by a small exact program
-that displaces the fewest 1-pole breakers, then keeps breakers near where
-they were. Then every 1-pole breaker that is free to
-choose gets a slot by a linear assignment problem [1]
-(``scipy.optimize.linear_sum_assignment``): cost 0 to stay in its own
-slot, 1 to go to any other free slot of its phase, forbidden on another
-phase, plus a small preference for slots near the old one (same column,
-few rows away; too small ever to trade a relocation). The assignment
-minimises relocations exactly for the 1-pole breakers given the windows.
+Within what the count allows, positions are chosen near where each breaker
+was: an assignment problem [1] per window pool and per phase, cost 0 for a
+breaker's own slot, 1 for any other, plus a small preference for slots few
+rows away in the same column (too small ever to trade a relocation;
+:func:`tri.schedule.slots.slot_distance`). A new circuit prefers low slot
+numbers.
 
-Order of work
--------------
-A breaker can go to its new slot once every breaker now in that slot has
-left. Moves are ordered so (a topological order); when breakers form a
-cycle (a swap), one of them is taken out and set aside first and
-installed last. A swap of two breakers is therefore two moves and three
-steps, with no spare slot needed.
+Before any program runs, a quick fill tries to keep every breaker whose
+option is unchanged in its slot: when it succeeds the relocations equal the
+option changes, which no arrangement can beat (a breaker on other phases
+has left its slot).
 
 References
 ----------
 1. H. W. Kuhn, "The Hungarian method for the assignment problem", *Naval
-   Res. Logist. Q.* 2 (1955) 83-97; D. F. Crouse, "On implementing 2D
-   rectangular assignment algorithms", *IEEE Trans. AES* 52 (2016) 1679-1696
-   (the algorithm in SciPy).
+   Res. Logist. Q.* 2 (1955) 83-97 (``scipy.optimize.linear_sum_assignment``).
 """
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from collections import defaultdict
+from dataclasses import dataclass, replace
 
 import numpy as np
-from scipy.optimize import Bounds, LinearConstraint, linear_sum_assignment, milp
-from scipy.sparse import coo_matrix
 
-from tri.rebalance.problem import Problem, Window, column_of, fixed_slots
-from tri.schedule.model import Schedule
-from tri.schedule.slots import occupied_slots, slot_row
+from tri.rebalance.electrical import add_options
+from tri.rebalance.geometry import SlotGeometry, Window
+from tri.rebalance.model import Model
+from tri.rebalance.problem import Problem
+from tri.rebalance.slot_model import add_slots
+from tri.schedule.slots import occupied_slots, slot_distance, slot_phase
 
-_FORBIDDEN = 1.0e9
+#: Time limit of the realisation program [s] (it is small: slots only).
+REALISE_TIME_S = 10.0
 
 
 @dataclass(frozen=True)
-class WorkStep:
-    """One step of the work order.
+class Arrangement:
+    """Where every free breaker goes.
 
     Attributes
     ----------
-    action : {"move", "take-out", "install", "place", "reconnect", "connect"}
-        ``move`` a breaker to a free slot; ``take-out`` a breaker and set it
-        aside (to break a cycle); ``install`` a set-aside breaker; ``place``
-        a new circuit's breaker; ``reconnect``/``connect`` on a rail board.
-    circuit_index : int
-        Index of the circuit in the schedule.
+    first_slot : dict
+        Schedule index -> first slot, for every free circuit (empty on a
+        rail board).
+    relocations : int
+        Placed breakers whose first slot changes (on a rail board: whose
+        phases change) [-].
+    fewest : bool
+        Proven the fewest relocations these options allow (by the quick
+        fill, or by the realisation program solved to optimality).
     """
 
-    action: str
-    circuit_index: int
+    first_slot: dict[int, int]
+    relocations: int
+    fewest: bool = False
 
 
-def _distance(slot: int, old: int | None, scale: float) -> float:
-    if old is None:
-        return scale * slot
-    other_column = 3 if column_of(slot) != column_of(old) else 0
-    return scale * (abs(slot_row(slot) - slot_row(old)) + other_column)
+def _near(b_home: int | None, slot: int, scale: float) -> float:
+    return scale * (slot if b_home is None else slot_distance(slot, b_home))
 
 
-def windows(problem: Problem) -> tuple[Window, ...]:
-    """Every window clear of fixed circuits, of the types free circuits can use."""
-    return problem.windows
+def _assign(costs: np.ndarray) -> np.ndarray:
+    from scipy.optimize import linear_sum_assignment
 
-
-def occupants(problem: Problem) -> dict[int, int]:
-    """Slot -> free-circuit index, for the slots free circuits hold now."""
-    out = {}
-    for i, idx in enumerate(problem.free.tolist()):
-        c = problem.schedule.circuits[idx]
-        if c.slot is not None:
-            for s in occupied_slots(c.slot, c.poles):
-                out[s] = i
+    rows, cols = linear_sum_assignment(costs)
+    out = np.empty(costs.shape[0], dtype=int)
+    out[rows] = cols
     return out
 
 
-def _choose_windows(
-    problem: Problem, assign: np.ndarray, movers: list[int], scale: float
-) -> tuple[dict[int, Window], set[int]] | None:
-    """Windows for moving multi-pole breakers, displacing the fewest 1-pole ones.
-
-    A small exact program (HiGHS): one window per breaker, no slot used
-    twice, no window over a breaker that stays unless it is a 1-pole one,
-    which is then displaced (a relocation). Minimises displacements, then
-    distance.
-    """
-    if not movers:
-        return {}, set()
-    circuits = problem.schedule.circuits
-    occ = occupants(problem)
-    stays = problem.movable & (np.asarray(assign) == problem.current)
-    cands: list[tuple[int, Window, list[int]]] = []
-    for m in movers:
-        t = int(np.flatnonzero(problem.use_window[int(assign[m])])[0])
-        for w in windows(problem):
-            if w.type != t:
-                continue
-            shifted: list[int] = []
-            ok = True
-            for s in w.cells:
-                j = occ.get(s)
-                if j is None or not stays[j]:
-                    continue
-                if problem.poles[j] > 1:
-                    ok = False
-                    break
-                shifted.append(j)
-            if ok:
-                cands.append((m, w, shifted))
-    if not cands:
-        return None
-    singles = sorted({j for _, _, sh in cands for j in sh})
-    col_of = {j: k for k, j in enumerate(singles)}
-    n_z, n_d = len(cands), len(singles)
-    rows, cols, vals, lo, hi = [], [], [], [], []
-
-    def add(cs, vs, lo_, hi_):
-        r = len(lo)
-        rows.extend([r] * len(cs))
-        cols.extend(cs)
-        vals.extend(vs)
-        lo.append(lo_)
-        hi.append(hi_)
-
-    for m in movers:
-        ks = [k for k, (mm, _, _) in enumerate(cands) if mm == m]
-        if not ks:
-            return None
-        add(ks, [1.0] * len(ks), 1.0, 1.0)
-    by_cell: dict[int, list[int]] = {}
-    for k, (_, w, sh) in enumerate(cands):
-        for s in w.cells:
-            by_cell.setdefault(s, []).append(k)
-        for j in sh:
-            add([k, n_z + col_of[j]], [1.0, -1.0], -np.inf, 0.0)
-    for ks in by_cell.values():
-        if len(ks) > 1:
-            add(ks, [1.0] * len(ks), -np.inf, 1.0)
-    cost = np.zeros(n_z + n_d)
-    for k, (m, w, _) in enumerate(cands):
-        cost[k] = _distance(w.first, circuits[int(problem.free[m])].slot, scale)
-    cost[n_z:] = 1.0
-    a = coo_matrix((vals, (rows, cols)), shape=(len(lo), n_z + n_d)).tocsr()
-    res = milp(
-        cost,
-        integrality=np.ones(n_z + n_d),
-        bounds=Bounds(0, 1),
-        constraints=LinearConstraint(a, lo, hi),
-        options={"disp": False, "time_limit": 10.0},
-    )
-    if res.x is None:
-        return None
-    chosen = {cands[k][0]: cands[k][1] for k in range(n_z) if res.x[k] > 0.5}
-    shifted_out = {singles[k] for k in range(n_d) if res.x[n_z + k] > 0.5}
-    return chosen, shifted_out
-
-
-def realise_slots(problem: Problem, assign: np.ndarray) -> dict[int, int] | None:
-    """First slot of every free circuit's breaker after the plan.
+def arrange(
+    pr: Problem, assign: np.ndarray, stays: np.ndarray, windows: list[Window]
+) -> Arrangement | None:
+    """First slots from options, stayers and the windows used (module notes).
 
     Parameters
     ----------
-    problem : Problem
+    pr : Problem
         A two-column panel.
     assign : int ndarray, shape (F,)
         Option of each free circuit.
+    stays : bool ndarray, shape (F,)
+        Placed breakers that stay in their slots (must keep their option).
+    windows : list of Window
+        Windows for the relocated or placed multi-pole breakers, as many
+        per pool as the pool's breakers.
 
     Returns
     -------
-    dict or None
-        Schedule index -> first slot, for every free circuit; None when the
-        breakers cannot all be fitted.
+    Arrangement or None
+        None when the choice does not fit (a slot used twice, too few slots).
     """
-    sched = problem.schedule
-    spaces = sched.panel.spaces
-    circuits = sched.circuits
-    assign = np.asarray(assign, dtype=int)
-    taken = fixed_slots(problem)
-    scale = 1.0 / (len(circuits) * (spaces + 4) + 1.0)
-    result: dict[int, int] = {}
-    single: list[int] = []
-    movers: list[int] = []
-    for i, idx in enumerate(problem.free.tolist()):
-        c = circuits[idx]
-        stays = bool(problem.movable[i]) and int(assign[i]) == int(problem.current[i])
-        if c.poles == 1:
-            single.append(i)
-        elif stays:
-            assert c.slot is not None
-            result[idx] = c.slot
-            taken.update(occupied_slots(c.slot, c.poles))
+    geo = pr.geometry
+    assert geo is not None
+    scale = 1.0 / (4.0 * (geo.spaces + 4) * max(1, pr.n_free))
+    first: dict[int, int] = {}
+    taken: set[int] = set()
+    movers: dict[tuple[int, int], list[int]] = defaultdict(list)
+    singles: dict[int, list[int]] = defaultdict(list)
+    for b in range(pr.n_free):
+        o = int(assign[b])
+        if stays[b]:
+            if o != pr.current[b]:
+                return None
+            home = geo.homes[b]
+            assert home is not None
+            first[b] = home[0]
+            taken.update(home)
+        elif pr.poles[b] > 1:
+            movers[(int(pr.poles[b]), int(pr.kind[o]))].append(b)
         else:
-            movers.append(i)
-    chosen = _choose_windows(problem, assign, movers, scale)
-    if chosen is None:
-        return None
-    placed, displaced = chosen
-    for m, w in placed.items():
-        result[int(problem.free[m])] = w.first
-        taken.update(w.cells)
-    # 1-pole breakers that keep their phase and were not displaced stay (the
-    # slot counts per phase leave room for the others, so keeping them costs
-    # nothing); the rest get slots by an assignment problem over the slots left
-    rest = []
-    for i in single:
-        idx = int(problem.free[i])
-        c = circuits[idx]
-        stays = bool(problem.movable[i]) and int(assign[i]) == int(problem.current[i])
-        if stays and i not in displaced and c.slot is not None and c.slot not in taken:
-            result[idx] = c.slot
-            taken.add(c.slot)
-        else:
-            rest.append(i)
-    cells = np.array([s for s in range(1, spaces + 1) if s not in taken], dtype=int)
-    if len(rest) > cells.size:
-        return None
-    if rest:
-        cell_phase = ((cells + 1) // 2 - 1) % 3
-        cell_row = (cells + 1) // 2
-        cell_col = (cells + 1) % 2  # 0 left (odd), 1 right (even)
-        old = np.array([circuits[int(problem.free[i])].slot or 0 for i in rest])
-        want = np.array([problem.phases[int(assign[i])][0] for i in rest])
-        moved = np.array([bool(problem.movable[i]) for i in rest])
-        dist = np.where(
-            (old > 0)[:, None],
-            np.abs(cell_row[None, :] - ((old + 1) // 2)[:, None])
-            + 3 * (cell_col[None, :] != ((old + 1) % 2)[:, None]),
-            cells[None, :],
-        )
-        cost = np.where(moved, 1.0, 0.0)[:, None] + scale * dist
-        cost = np.where(cell_phase[None, :] == want[:, None], cost, _FORBIDDEN)
-        rows, cols = linear_sum_assignment(cost)
-        if np.any(cost[rows, cols] >= _FORBIDDEN):
+            singles[pr.phases[o][0]].append(b)
+    pools: dict[tuple[int, int], list[Window]] = defaultdict(list)
+    for w in windows:
+        pools[(w.poles, w.kind)].append(w)
+    for key, bs in movers.items():
+        ws = pools.get(key, [])
+        if len(ws) < len(bs):
             return None
-        for r, k in zip(rows, cols, strict=True):
-            result[int(problem.free[rest[r]])] = int(cells[k])
-    return result
+        cost = np.array([[_window_cost(geo, b, w, scale) for w in ws] for b in bs])
+        for b, k in zip(bs, _assign(cost), strict=True):
+            first[b] = ws[k].first
+            taken.update(ws[k].cells)
+    if len(taken) != sum(len(occupied_slots(first[b], int(pr.poles[b]))) for b in first):
+        return None
+    left = [int(c) for c in geo.open_cells if int(c) not in taken]
+    for p, bs in singles.items():
+        cells = [c for c in left if slot_phase(c) == p]
+        if len(cells) < len(bs):
+            return None
+        cost = np.array([[_cell_cost(geo, b, c, scale) for c in cells] for b in bs])
+        for b, k in zip(bs, _assign(cost), strict=True):
+            first[b] = cells[k]
+    return _arrangement(pr, first)
 
 
-def order_work(schedule: Schedule, new_slots: dict[int, int]) -> list[WorkStep]:
-    """Steps that carry out the relocations (module notes).
+def _window_cost(geo: SlotGeometry, b: int, w: Window, scale: float) -> float:
+    home = geo.home_first(b)
+    return (0.0 if home == w.first else 1.0) + _near(home, w.first, scale)
+
+
+def _cell_cost(geo: SlotGeometry, b: int, c: int, scale: float) -> float:
+    home = geo.home_first(b)
+    return (0.0 if home == c else 1.0) + _near(home, c, scale)
+
+
+def _arrangement(pr: Problem, first: dict[int, int]) -> Arrangement:
+    geo = pr.geometry
+    assert geo is not None
+    out = {int(pr.free[b]): s for b, s in first.items()}
+    moved = sum(1 for b, s in first.items() if pr.movable[b] and geo.home_first(b) != s)
+    return Arrangement(out, moved, fewest=False)
+
+
+def _quick_fill(pr: Problem, assign: np.ndarray) -> Arrangement | None:
+    """Keep every breaker whose option is unchanged; place the others greedily."""
+    geo = pr.geometry
+    assert geo is not None
+    stays = pr.movable & (np.asarray(assign) == pr.current)
+    taken = {c for b in np.flatnonzero(stays) for c in geo.homes[b] or ()}
+    open_set = set(geo.open_cells.tolist()) - taken
+    chosen: list[Window] = []
+    movers = [b for b in range(pr.n_free) if not stays[b] and pr.poles[b] > 1]
+    for b in sorted(movers, key=lambda b: -pr.poles[b]):
+        kind = int(pr.kind[assign[b]])
+        home = geo.home_first(b)
+        fits = [
+            w
+            for w in geo.windows
+            if w.poles == pr.poles[b] and w.kind == kind and open_set.issuperset(w.cells)
+        ]
+        if not fits:
+            return None
+        w = min(fits, key=lambda w: _near(home, w.first, 1.0))
+        chosen.append(w)
+        open_set.difference_update(w.cells)
+    return arrange(pr, assign, stays, chosen)
+
+
+def realise(
+    pr: Problem, assign: np.ndarray, time_limit: float = REALISE_TIME_S
+) -> tuple[Arrangement | None, bool]:
+    """An arrangement of the options ``assign`` with the fewest relocations (module notes).
 
     Parameters
     ----------
-    schedule : Schedule
-        The panel before the work.
-    new_slots : dict
-        Schedule index -> new first slot of every breaker that moves or is
-        placed.
+    pr : Problem
+    assign : int ndarray, shape (F,)
+        Option of each free circuit.
+    time_limit : float
+        Budget of the realisation program [s].
 
     Returns
     -------
-    list of WorkStep
-        ``move``/``place`` when the target is free, ``take-out`` then
-        ``install`` for a breaker set aside to break a cycle.
+    arrangement : Arrangement or None
+        None when no arrangement of these options was found.
+    proven : bool
+        The answer is proven: the arrangement has the fewest relocations
+        there are, or (None) no arrangement of these options fits the panel.
     """
-    circuits = schedule.circuits
-    changing = {idx: slot for idx, slot in new_slots.items() if circuits[idx].slot != slot}
-    holder: dict[int, int] = {}
-    for idx in changing:
-        c = circuits[idx]
-        if c.slot is not None:
-            for s in occupied_slots(c.slot, c.poles):
-                holder[s] = idx
-    waits: dict[int, set[int]] = {}
-    for idx, slot in changing.items():
-        deps = {holder[s] for s in occupied_slots(slot, circuits[idx].poles) if s in holder}
-        deps.discard(idx)
-        waits[idx] = deps
-    steps: list[WorkStep] = []
-    gone: set[int] = set()  # breakers out of their old slot
-    pending = sorted(changing, key=lambda i: (circuits[i].slot is None, circuits[i].slot or 0, i))
-    aside: set[int] = set()
-    while pending:
-        ready = [i for i in pending if waits[i] <= gone]
-        if ready:
-            i = ready[0]
-            pending.remove(i)
-            if i in aside:
-                steps.append(WorkStep("install", i))
-            else:
-                steps.append(WorkStep("move" if circuits[i].slot is not None else "place", i))
-            gone.add(i)
-            continue
-        # a cycle: set aside the first breaker that others wait for
-        blocking = [i for i in pending if i not in gone and any(i in waits[j] for j in pending)]
-        i = blocking[0] if blocking else pending[0]
-        steps.append(WorkStep("take-out", i))
-        aside.add(i)
-        gone.add(i)
-    return steps
-
-
-def rail_steps(schedule: Schedule, changed: list[int]) -> list[WorkStep]:
-    """Steps on a rail board: reconnect moved circuits, connect new ones."""
-    return [
-        WorkStep("reconnect" if schedule.circuits[i].is_placed else "connect", i)
-        for i in sorted(changed)
-    ]
+    assign = np.asarray(assign, dtype=int)
+    if pr.geometry is None:
+        return Arrangement({}, pr.option_changes(assign), fewest=True), True
+    quick = _quick_fill(pr, assign)
+    if quick is not None and quick.relocations <= pr.option_changes(assign):
+        return replace(quick, fewest=True), True  # no arrangement has fewer
+    m = Model()
+    el = add_options(m, pr)
+    sc = add_slots(m, pr, el)
+    x = np.zeros(pr.n_options)
+    x[assign] = 1.0
+    m.fix(np.arange(el.x, el.x + pr.n_options), x)
+    cost = np.zeros(m.n)
+    cost[sc.stay] -= 1.0
+    sol = m.solve(cost, min(REALISE_TIME_S, max(0.05, time_limit)), gap=0.0)
+    if sol.x is None:
+        return None, sol.status == "infeasible"
+    stays = np.zeros(pr.n_free, dtype=bool)
+    stays[sc.placed] = sc.stays(sol.x)
+    arr = arrange(pr, assign, stays, sc.used_windows(sol.x))
+    if arr is None or sol.status != "optimal":
+        return arr, False
+    return replace(arr, fewest=True), True

@@ -6,11 +6,11 @@ from dataclasses import dataclass, field
 from typing import Literal
 
 from tri.engine.results import PanelAnalysis
-from tri.rebalance.realise import WorkStep
+from tri.rebalance.options import Mode
+from tri.rebalance.workorder import WorkStep
 from tri.schedule.model import Schedule
 
 Status = Literal["optimal", "best-found", "infeasible", "already-balanced"]
-Mode = Literal["fewest-moves", "balance", "place-new", "relayout"]
 
 
 @dataclass(frozen=True)
@@ -104,11 +104,13 @@ class Suggestion:
     Attributes
     ----------
     status : {"optimal", "best-found", "infeasible", "already-balanced"}
-        ``optimal``: no plan does better (fewest moves: none with one move
-        fewer meets the target; balance: the largest phase current is
-        proven minimal). ``best-found``: the best plan found in the time
-        limit, with ``bound``. ``infeasible``: the target cannot be met
-        (proven); the moves give the best balance found instead.
+        ``optimal``: proven that no plan does better on the objective
+        (fewest moves: no plan with fewer relocations meets the target;
+        balance modes: no plan within the budget has a largest phase RMS
+        current lower by more than the proven gap). ``best-found``: the best
+        plan found, with ``bound``. ``infeasible``: proven that no plan
+        meets the target (or, in balance modes, that no plan fits at all);
+        the moves then give the best balance found instead.
         ``already-balanced``: the schedule meets the target as it is.
     mode : {"fewest-moves", "balance", "place-new", "relayout"}
     objective : str
@@ -120,7 +122,7 @@ class Suggestion:
     before, after : Figures
         Engine figures of the schedule before and after the moves.
     bound : float or None
-        Proven lower bound on the objective when not optimal: moves
+        Proven lower bound on the objective when not optimal: relocations
         (fewest-moves) or the largest phase RMS current [A] (other modes).
     floor_a : float
         The order-invariant floor ``F``: no plan's largest phase RMS
@@ -132,7 +134,7 @@ class Suggestion:
     neutral_max_a : float or None
         Neutral limit [A].
     max_moves : int or None
-        Move budget.
+        Budget of relocations [-].
     schedule : Schedule
         The schedule after the moves (same ``source_index`` per circuit,
         so saving keeps comments).
@@ -144,6 +146,9 @@ class Suggestion:
         HiGHS calls made [-].
     elapsed_s : float
         Wall-clock time [s].
+    stop_gap : float
+        Balance modes: the search stopped once the plan was within this
+        fraction of ``bound`` [-] (0: run to a proof or the time limit).
     """
 
     status: Status
@@ -164,6 +169,7 @@ class Suggestion:
     notes: tuple[str, ...] = field(default=())
     solver_calls: int = 0
     elapsed_s: float = 0.0
+    stop_gap: float = 0.0
 
     @property
     def relocations(self) -> int:

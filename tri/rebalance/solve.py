@@ -1,286 +1,208 @@
 """The rebalancer's entry point: :func:`suggest`.
 
-Modes
------
-``fewest-moves`` (``target_pct``)
-    The fewest breaker moves after which every phase RMS current is within
-    ``target_pct`` of the mean of the three (the deviation the report
-    shows), and the neutral RMS current at most ``neutral_max_a`` if given;
-    at most ``max_moves`` if given.
-``balance`` (``max_moves`` without a target)
-    The smallest largest-phase RMS current reachable with at most
-    ``max_moves`` moves. The largest phase is what limits a panel, and no
-    plan can go below the floor ``F`` (:mod:`tri.rebalance.problem`), so
-    the result is also reported against ``F``.
-``place-new``
-    Circuits without a slot get the best free slots; nothing else moves
-    (combine with a target or a budget to allow moves as well).
-``relayout``
-    Every unlocked circuit may go anywhere (design work): the smallest
-    largest-phase current, then the fewest relocations for it.
+The modes are those of :mod:`tri.rebalance.options`. In every mode:
 
-Harmonics
----------
-A phase's RMS current is ``R = sqrt(|I_1|² + Σ_h |I_h|²)``, each order a
-phasor sum over the circuits on the phase (triplen orders of 1-pole
-circuits add in phase on the neutral whatever the phase; moves cannot
-change them). The greedy start, the local search and every acceptance test
-use this exact RMS, by superposition of the engine's per-circuit currents.
-The approximation is only inside the mixed-integer programs
-(:mod:`tri.rebalance.milp`): there ``R`` is bounded from below order by
-order (exact at every plan visited) and from above by a sector bound on
-the fundamental plus a bound on the harmonic part's square, and for small
-budgets by the whole square centred on the current plan
-(:mod:`tri.rebalance.squares`: products of options bounded linearly, and
-exactly for the options of every plan visited). Small budgets are proven
-by checking every plan (:mod:`tri.rebalance.exhaust`). Every proposal is
-re-checked with the exact RMS, and the before/after figures reported come
-from the engine run on the schedules themselves
-(:func:`tri.schedule.to_engine.analyse_schedule`). On
-large panels with many non-linear circuits the upper bound can stay loose,
-so a proof may not close in the time limit: the plan is still exact and
-verified, and the status says ``best-found`` with the proven bound.
+1. the panel is turned into arrays (:func:`tri.rebalance.problem.build_problem`),
+   the engine's own currents for every option of every free breaker;
+2. the greedy start and local search (:mod:`tri.rebalance.heuristic`)
+   give a plan in milliseconds; its slots are realised with the fewest
+   relocations (:mod:`tri.rebalance.realise`);
+3. the search with its proof (:mod:`tri.rebalance.target` for fewest
+   moves, :mod:`tri.rebalance.balance` otherwise) improves it or proves
+   it, with the slot geometry inside the model, until the time limit;
+4. the plan is carried out on the schedule and the engine is run on the
+   schedule before and after (:func:`tri.schedule.to_engine.analyse_schedule`):
+   those are the figures reported.
 
-Anytime
--------
-A plan exists after the greedy start (milliseconds); the solver then
-improves or proves it until the time limit. ``progress(fraction, message)``
-reports along the way; ``cancel`` (a ``threading.Event`` or a callable)
-stops the search from another thread, and :func:`suggest` then raises
+The status is a claim about the objective the output names (relocations
+as the work order counts them; the engine's largest phase RMS current):
+``optimal`` only when proven, ``best-found`` with a proven bound,
+``infeasible`` only when proven.
+
+Anytime: ``progress(fraction, message)`` reports along the way; ``cancel``
+(a ``threading.Event`` or a callable) stops the search from another
+thread, and :func:`suggest` then raises
 :class:`~tri.rebalance.control.Cancelled`.
 """
 
 from __future__ import annotations
 
-import math
-from dataclasses import dataclass, replace
+from dataclasses import dataclass, field, replace
 
 import numpy as np
 
-from tri.engine.loading import FindingLimits
+from tri.rebalance.balance import solve_balance
 from tri.rebalance.control import CancelHook, Cancelled, Control, ProgressCallback
-from tri.rebalance.heuristic import Goal, LocalSearch, heuristic_plan
-from tri.rebalance.milp import Outcome, solve_balance, solve_target
-from tri.rebalance.problem import Problem, assess, build_problem
-from tri.rebalance.realise import WorkStep, order_work, rail_steps, realise_slots
-from tri.rebalance.results import Figures, Mode, Move, Status, Suggestion, apply_moves
+from tri.rebalance.exhaust import enumeration_fits
+from tri.rebalance.goal import Goal
+from tri.rebalance.heuristic import LocalSearch, heuristic_plan
+from tri.rebalance.options import SuggestOptions, objective_text
+from tri.rebalance.plans import TOL, Evaluator, Plan
+from tri.rebalance.problem import Problem, build_problem
+from tri.rebalance.results import Figures, Move, Status, Suggestion, apply_moves
+from tri.rebalance.target import Outcome, solve_target
+from tri.rebalance.workorder import order_work, rail_steps
 from tri.schedule.model import Schedule
 from tri.schedule.to_engine import analyse_schedule
-
-#: Default target on the deviation [%]: the engine's warning level, so that
-#: ``tri suggest`` aims where ``tri report`` starts to warn.
-DEFAULT_TARGET_PCT = FindingLimits().deviation_warn_pct
-#: Default time limit [s].
-DEFAULT_TIME_LIMIT_S = 5.0
-#: Relative tolerance on the target check (round-off only) [-].
-_TOL = 1e-9
+from tri.schedule.wiring import rebalancer_refusal
 
 
-@dataclass(frozen=True)
-class SuggestOptions:
-    """What to ask the rebalancer.
-
-    Attributes
-    ----------
-    target_pct : float or None
-        Largest deviation of a phase RMS current from the mean [%]; selects
-        the fewest-moves mode. Default (no mode option at all):
-        :data:`DEFAULT_TARGET_PCT`.
-    max_moves : int or None
-        Largest number of breaker moves [-]; alone it selects the balance mode.
-    place_new : bool
-        Place circuits that have no slot yet.
-    relayout : bool
-        Full re-layout of every unlocked circuit (no target, no budget).
-    neutral_max_a : float or None
-        Largest neutral RMS current [A].
-    time_limit_s : float
-        Wall-clock budget [s].
-    floor_gap : float
-        Balance modes stop once the largest phase current is within this
-        fraction of the floor ``F`` [-].
-    use_solver : bool
-        False: greedy start and local search only (for comparisons).
-    """
-
-    target_pct: float | None = None
-    max_moves: int | None = None
-    place_new: bool = False
-    relayout: bool = False
-    neutral_max_a: float | None = None
-    time_limit_s: float = DEFAULT_TIME_LIMIT_S
-    floor_gap: float = 1e-3
-    use_solver: bool = True
-
-    def __post_init__(self) -> None:
-        problems = []
-        if self.target_pct is not None and not (
-            math.isfinite(self.target_pct) and 0 <= self.target_pct <= 200
-        ):
-            problems.append("the target must be a percentage from 0 to 200")
-        if self.max_moves is not None and self.max_moves < 0:
-            problems.append("the number of moves must be 0 or more")
-        if self.neutral_max_a is not None and not (
-            math.isfinite(self.neutral_max_a) and self.neutral_max_a > 0
-        ):
-            problems.append("the neutral limit must be a current above 0 A")
-        if not (math.isfinite(self.time_limit_s) and self.time_limit_s > 0):
-            problems.append("the time limit must be above 0 s")
-        if self.relayout and (self.target_pct is not None or self.max_moves is not None):
-            problems.append("a full re-layout takes neither a target nor a move limit")
-        if problems:
-            raise ValueError("; ".join(problems))
-
-    @property
-    def mode(self) -> Mode:
-        """The mode these options select."""
-        if self.relayout:
-            return "relayout"
-        if self.target_pct is not None:
-            return "fewest-moves"
-        if self.max_moves is not None:
-            return "balance"
-        if self.place_new:
-            return "place-new"
-        return "fewest-moves"
-
-    @property
-    def effective_target_pct(self) -> float | None:
-        """Target used [%] (the default in fewest-moves mode without one)."""
-        if self.mode != "fewest-moves":
-            return None
-        return DEFAULT_TARGET_PCT if self.target_pct is None else self.target_pct
-
-
-def _free_indices(schedule: Schedule, opts: SuggestOptions) -> list[int]:
+def free_indices(schedule: Schedule, opts: SuggestOptions) -> list[int]:
+    """Circuits whose position the mode may choose (:mod:`tri.rebalance.options`)."""
     mode = opts.mode
     out = []
     for i, c in enumerate(schedule.circuits):
-        if c.locked:
+        if c.locked and c.is_placed:
             continue
         if c.is_placed:
-            if mode == "place-new":
-                continue
-            if c.poles < 3 or mode == "relayout":
+            if mode != "place-new":
                 out.append(i)
-        elif opts.place_new or mode == "relayout":
+        elif opts.place_new or mode in ("place-new", "relayout"):
             out.append(i)
     return out
 
 
-def _objective_text(opts: SuggestOptions, labels_target: str) -> str:
-    mode = opts.mode
-    neutral = (
-        f", with the neutral RMS current at most {opts.neutral_max_a:g} A"
-        if opts.neutral_max_a is not None
-        else ""
-    )
-    if mode == "fewest-moves":
-        cap = f" (at most {opts.max_moves})" if opts.max_moves is not None else ""
-        return (
-            f"number of breaker moves{cap} so that every phase RMS current is within "
-            f"{labels_target} of the mean of the three{neutral}"
-        )
-    if mode == "balance":
-        return f"largest phase RMS current [A] with at most {opts.max_moves} moves{neutral}"
-    if mode == "place-new":
-        return f"largest phase RMS current [A], placing new circuits without moving others{neutral}"
-    return f"largest phase RMS current [A] over a full re-layout, then relocations{neutral}"
+@dataclass
+class _Run:
+    """One call of :func:`suggest`: what every step shares."""
 
+    pr: Problem
+    opts: SuggestOptions
+    control: Control
+    before: Figures
+    goal: Goal
+    notes: list[str] = field(default_factory=list)
+    calls: int = 0
 
-class _Checker:
-    """Exact checks of plans, with slot realisations cached."""
-
-    def __init__(self, pr: Problem, goal: Goal):
-        self.pr = pr
-        self.goal = goal
-        self.slots: dict[bytes, dict[int, int] | None] = {}
-
-    def meets(self, assign: np.ndarray) -> bool:
-        a = assess(self.pr, assign)
-        if self.goal.target is not None and a.deviation_pct > 100 * self.goal.target * (1 + _TOL):
-            return False
-        lim = self.goal.neutral_max_a
-        return not (lim is not None and self.pr.has_neutral and a.neutral_rms_a > lim * (1 + _TOL))
-
-    def realise(self, assign: np.ndarray) -> dict[int, int] | None:
-        key = np.asarray(assign, dtype=np.int64).tobytes()
-        if key not in self.slots:
-            self.slots[key] = realise_slots(self.pr, assign) if self.pr.slots else {}
-        return self.slots[key]
-
-    def relocations(self, assign: np.ndarray) -> int:
-        if not self.pr.slots:
-            return self.pr.moves(assign)
-        slots = self.realise(assign)
-        if slots is None:
-            return 10**9
-        old = self.pr.schedule.circuits
-        return sum(1 for i, s in slots.items() if old[i].slot is not None and old[i].slot != s)
-
-    def within_budget(self, assign: np.ndarray) -> bool:
-        k = self.goal.max_moves
-        return k is None or self.relocations(assign) <= k
-
-    def verify(self, assign: np.ndarray) -> tuple[bool, bool]:
-        realisable = self.realise(assign) is not None
-        return self.meets(assign) and realisable and self.within_budget(assign), realisable
-
-    def good(self, assign: np.ndarray | None) -> bool:
-        return assign is not None and self.verify(assign)[0]
+    @property
+    def has_new(self) -> bool:
+        return bool(np.any(~self.pr.movable)) if self.pr.n_free else False
 
 
 def _heuristic(
-    pr: Problem,
+    run: _Run,
     goal: Goal,
-    control: Control,
-    checker: _Checker,
+    ev: Evaluator,
     from_scratch: bool = False,
     kicks: bool = True,
-) -> np.ndarray | None:
-    """The heuristic plan, within the budget once slots are fitted (fewer moves if needed)."""
-    plan = heuristic_plan(pr, goal, control, from_scratch=from_scratch, kicks=kicks)
-    if plan is None or checker.good(plan) or goal.max_moves is None:
-        return plan if checker.good(plan) else None
-    for k in range(goal.max_moves - 1, -1, -1):
+    stop_gap: float = 1e-12,
+) -> Plan | None:
+    """The heuristic's plan, realised in slots and within the budget (fewer changes if needed)."""
+    pr, control = run.pr, run.control
+    if pr.n_free == 0:
+        return None
+    budgets = [goal.max_moves] if goal.max_moves is None else range(goal.max_moves, -1, -1)
+    for k in budgets:
         if control.stop():
             break
-        plan = heuristic_plan(
-            pr, replace(goal, max_moves=k), control, from_scratch=from_scratch, kicks=kicks
+        a = heuristic_plan(
+            pr,
+            replace(goal, max_moves=k),
+            control,
+            from_scratch=from_scratch,
+            kicks=kicks,
+            stop_gap=stop_gap,
         )
-        if checker.good(plan):
+        plan = None if a is None else ev.plan(a)
+        if ev.good(plan):
             return plan
     return None
 
 
-def _moves_for(
-    pr: Problem, assign: np.ndarray, checker: _Checker
-) -> tuple[list[Move], list[WorkStep]]:
-    sched = pr.schedule
-    circuits = sched.circuits
-    moves: dict[int, Move] = {}
-    if pr.slots:
-        slots = checker.realise(assign)
-        assert slots is not None
-        changing = {}
-        for idx, slot in slots.items():
-            c = circuits[idx]
-            if c.slot != slot:
-                new = c.at_slot(slot)
-                changing[idx] = slot
-                moves[idx] = Move(idx, c.name, c.poles, c.slot, slot, c.phases, new.phases)
-        steps = order_work(sched, changing)
+def _current_plan(run: _Run, ev: Evaluator) -> Plan | None:
+    """The panel as it is, when that is a plan (no new circuit waiting for a slot)."""
+    if run.has_new:
+        return None
+    return ev.plan(run.pr.current_assignment())
+
+
+def _fewest_moves(run: _Run) -> tuple[Plan | None, Status, float | None]:
+    pr, goal = run.pr, run.goal
+    ev = Evaluator(pr, goal, run.control)
+    now = _current_plan(run, ev)
+    if now is not None and ev.good(now):
+        return now, "already-balanced", None
+    run.control.report("greedy start and local search")
+    # descents only: the proof below improves the plan where it can
+    plan = _heuristic(run, goal, ev, kicks=False)
+    balance_goal = replace(goal, target=None)
+    fallback = _heuristic(run, balance_goal, Evaluator(pr, balance_goal, run.control), kicks=False)
+    if ev.good(fallback) and (plan is None or fallback.relocations < plan.relocations):
+        plan = fallback
+    if run.opts.use_solver and pr.n_free:
+        out = solve_target(pr, goal, run.control, plan, ev, list_plans=run.opts.list_plans)
     else:
-        changed = []
-        for i, idx in enumerate(pr.free.tolist()):
-            c = circuits[idx]
-            ph = pr.phases[int(assign[i])]
-            if c.phases is None or set(c.phases) != set(ph):
-                changed.append(idx)
-                moves[idx] = Move(idx, c.name, c.poles, None, None, c.phases, tuple(ph))
-        steps = rail_steps(sched, changed)
-    ordered = [moves[s.circuit_index] for s in steps if s.action not in ("take-out",)]
-    return ordered, steps
+        out = Outcome(plan, proven=pr.n_free == 0, bound=0.0 if run.has_new else 1.0)
+    run.calls += out.solver_calls
+    run.notes.extend(out.notes)
+    if out.plan is not None:
+        return (
+            out.plan,
+            ("optimal" if out.proven else "best-found"),
+            (None if out.proven else out.bound),
+        )
+    shown = fallback if fallback is not None else now
+    if shown is None:
+        run.notes.append("the new circuits do not fit in the free slots")
+    return shown, ("infeasible" if out.proven else "best-found"), out.bound
+
+
+def _best_balance(run: _Run) -> tuple[Plan | None, Status, float | None]:
+    pr, opts, control = run.pr, run.opts, run.control
+    goal = replace(run.goal, target=None)
+    ev = Evaluator(pr, goal, run.control)
+    control.report("greedy start and local search")
+    budget = pr.n_movable if goal.max_moves is None else goal.max_moves
+    # when every plan will be listed, the descents suffice as a start
+    kicks = not (opts.list_plans and enumeration_fits(pr, budget))
+    relayout = opts.mode == "relayout"
+    plan = _heuristic(run, goal, ev, relayout, kicks, stop_gap=0.5 * opts.floor_gap)
+    now = _current_plan(run, ev)
+    if plan is None and ev.good(now):
+        plan = now
+    if pr.n_free == 0:
+        run.notes.append(
+            "there are no new circuits to place"
+            if opts.mode == "place-new"
+            else "nothing can move: every circuit is locked"
+        )
+    if opts.use_solver and pr.n_free:
+        out = solve_balance(
+            pr, goal, control, plan, ev, stop_gap=opts.floor_gap, list_plans=opts.list_plans
+        )
+    else:
+        out = Outcome(plan, proven=pr.n_free == 0 and plan is not None, bound=pr.floor_a)
+    run.calls += out.solver_calls
+    run.notes.extend(out.notes)
+    if out.plan is None:
+        if run.has_new:
+            run.notes.append("the new circuits do not fit in the free slots")
+        elif opts.neutral_max_a is not None:
+            run.notes.append(f"no plan keeps the neutral at or below {opts.neutral_max_a:g} A")
+        return None, ("infeasible" if out.proven else "best-found"), out.bound
+    best = out.plan
+    if opts.mode == "relayout":
+        best = _fewer_relocations(run, goal, ev, best)
+    status: Status = "optimal" if out.proven else "best-found"
+    unchanged = best.relocations == 0 and not run.has_new and pr.n_free > 0
+    if status == "optimal" and unchanged and opts.mode == "balance":
+        status = "already-balanced"
+    return best, status, None if out.proven else out.bound
+
+
+def _fewer_relocations(run: _Run, goal: Goal, ev: Evaluator, plan: Plan) -> Plan:
+    """Undo changes of a re-layout that do not raise the largest phase current."""
+    ls = LocalSearch(run.pr, goal, run.control, plan.assign)
+    ls.prune()
+    cand = ev.plan(ls.assign)
+    if (
+        ev.good(cand)
+        and cand is not None
+        and cand.relocations < plan.relocations
+        and cand.max_rms_a <= plan.max_rms_a * (1 + TOL)
+    ):
+        return cand
+    return plan
 
 
 def suggest(
@@ -310,231 +232,95 @@ def suggest(
     Raises
     ------
     ValueError
-        For options the panel cannot take (a neutral limit on a 3-wire system).
+        For options the panel cannot take (a neutral limit on a 3-wire system), or
+        wiring it cannot honour yet (shared neutrals, breakers with a load per leg,
+        a high leg, a C-B-A right column, a reach limit, RCD groups:
+        :func:`tri.schedule.wiring.rebalancer_refusal`).
     Cancelled
         When the cancel hook fired.
     """
     opts = options or SuggestOptions()
+    refusal = rebalancer_refusal(schedule)  # wiring it cannot honour yet (issue 12)
+    if refusal:
+        raise ValueError("; ".join(refusal))
     if opts.neutral_max_a is not None and not schedule.system.has_neutral:
         raise ValueError("a neutral limit needs a system with a neutral (this one is 3-wire)")
     control = Control(opts.time_limit_s, progress, cancel)
     control.report("analysing the panel as it is", 0.0)
     before = Figures.of(analyse_schedule(schedule))
-    mode = opts.mode
     target_pct = opts.effective_target_pct
-    goal_target = Goal(
+    goal = Goal(
         target=None if target_pct is None else target_pct / 100.0,
         neutral_max_a=opts.neutral_max_a,
-        max_moves=0 if mode == "place-new" else opts.max_moves,
+        max_moves=0 if opts.mode == "place-new" else opts.max_moves,
     )
-    goal_balance = replace(goal_target, target=None)
-    free = _free_indices(schedule, opts)
-    pr = build_problem(schedule, free)
-    notes: list[str] = []
-    unplaced_left = tuple(
-        c.name for i, c in enumerate(schedule.circuits) if not c.is_placed and i not in set(free)
-    )
-    has_new = bool(np.any(~pr.movable)) if pr.n_free else False
-    checker_t = _Checker(pr, goal_target)
-    checker_b = _Checker(pr, goal_balance)
-    current = pr.current_assignment()
-
-    outcome: Outcome
-    plan: np.ndarray | None
-    status: Status
-    calls = 0
-    if mode == "fewest-moves":
-        assert goal_target.target is not None
-        if not has_new and checker_t.meets(current):
-            return _finish(
-                pr,
-                opts,
-                control,
-                before,
-                current,
-                checker_t,
-                "already-balanced",
-                None,
-                notes,
-                unplaced_left,
-                0,
-            )
-        control.report("greedy start and local search")
-        plan = _heuristic(pr, goal_target, control, checker_t)
-        # the balance heuristic often reaches tight targets too, and is the
-        # fallback when the target cannot be met
-        fallback = _heuristic(pr, goal_balance, control, checker_b, kicks=False)
-        if (
-            fallback is not None
-            and checker_t.good(fallback)
-            and (plan is None or checker_t.relocations(fallback) < checker_t.relocations(plan))
-        ):
-            plan = fallback
-        if plan is not None:
-            control.report(f"greedy start: {checker_t.relocations(plan)} moves meet the target")
-
-        def repair(a: np.ndarray, k: int) -> np.ndarray | None:
-            ls = LocalSearch(pr, replace(goal_target, max_moves=k), control, a)
-            ls.descend(max_steps=4 * max(1, k) + 10)
-            ls.prune()
-            cand = ls.assign
-            return cand.copy() if checker_t.good(cand) else None
-
-        if opts.use_solver and pr.n_free:
-            outcome = solve_target(
-                pr, goal_target, control, plan, checker_t.verify, checker_t.relocations, repair
-            )
-        else:
-            outcome = Outcome(assign=plan, proven=pr.n_free == 0, bound=None)
-            if pr.n_free == 0:
-                notes.append("nothing can move: every circuit is locked or fixed")
-        calls += outcome.solver_calls
-        notes.extend(outcome.notes)
-        plan = outcome.assign
-        if plan is not None:
-            relocs = checker_t.relocations(plan)
-            proven = outcome.proven and outcome.bound is not None and outcome.bound >= relocs
-            status = "optimal" if proven else "best-found"
-            bound = None if proven else outcome.bound
-        else:
-            # the target cannot be met (proven) or was not met in time: best balance instead
-            status = "infeasible" if outcome.proven else "best-found"
-            bound = outcome.bound if not outcome.proven else None
-            control.report("target out of reach: the best balance instead")
-            plan = fallback
-            if plan is None:
-                plan = current if not has_new else None
-            if plan is None:
-                notes.append("the new circuits do not fit in the free slots")
-                plan = current
-            pct = f"{target_pct:g} %"
-            if outcome.proven:
-                notes.append(f"no plan reaches the target of {pct}; shown: the best balance found")
-            else:
-                notes.append(
-                    f"no plan reaching {pct} was found in the time limit (not proven impossible); "
-                    "shown: the best balance found"
-                )
-        return _finish(
-            pr, opts, control, before, plan, checker_t, status, bound, notes, unplaced_left, calls
-        )
-
-    # balance, place-new, relayout
-    control.report("greedy start and local search")
-    plan = _heuristic(pr, goal_balance, control, checker_b, from_scratch=(mode == "relayout"))
-    if plan is None and not has_new and checker_b.good(current):
-        plan = current
-    outcome = Outcome(assign=plan, proven=pr.n_free == 0, bound=pr.floor_a)
-    if pr.n_free == 0:
-        notes.append(
-            "there are no new circuits to place"
-            if mode == "place-new"
-            else "nothing can move: every circuit is locked or fixed"
-        )
-    if opts.use_solver and pr.n_free:
-        outcome = solve_balance(
-            pr, goal_balance, control, plan, checker_b.verify, stop_gap=opts.floor_gap
-        )
-        calls += outcome.solver_calls
-        notes.extend(outcome.notes)
-    if outcome.assign is None:
-        if has_new:
-            notes.append("the new circuits do not fit in the free slots")
-        elif opts.neutral_max_a is not None:
-            notes.append(f"no plan keeps the neutral at or below {opts.neutral_max_a:g} A")
-        status = "infeasible" if outcome.proven else "best-found"
-        return _finish(
-            pr,
-            opts,
-            control,
-            before,
-            current,
-            checker_b,
-            status,
-            None,
-            notes,
-            unplaced_left,
-            calls,
-            placed=False,
-        )
-    plan = outcome.assign
-    if mode == "relayout":
-        plan = _fewer_relocations(pr, goal_balance, control, plan, checker_b)
-    status = "optimal" if outcome.proven else "best-found"
-    if (
-        status == "optimal"
-        and checker_b.relocations(plan) == 0
-        and not has_new
-        and mode != "place-new"
-        and pr.n_free > 0
-    ):
-        status = "already-balanced"
-    bound = None if outcome.proven else outcome.bound
-    return _finish(
-        pr, opts, control, before, plan, checker_b, status, bound, notes, unplaced_left, calls
-    )
+    run = _Run(build_problem(schedule, free_indices(schedule, opts)), opts, control, before, goal)
+    if opts.mode == "fewest-moves":
+        plan, status, bound = _fewest_moves(run)
+    else:
+        plan, status, bound = _best_balance(run)
+    return _finish(run, plan, status, bound)
 
 
-def _fewer_relocations(
-    pr: Problem, goal: Goal, control: Control, plan: np.ndarray, checker: _Checker
-) -> np.ndarray:
-    """Undo moves of a re-layout that do not raise the largest phase current."""
-    ls = LocalSearch(pr, goal, control, plan)
-    ls.prune()
-    cand = ls.assign.copy()
-    if checker.good(cand) and checker.relocations(cand) <= checker.relocations(plan):
-        return cand
-    return plan
+def _moves_for(pr: Problem, plan: Plan) -> tuple[list[Move], list]:
+    sched = pr.schedule
+    circuits = sched.circuits
+    moves: dict[int, Move] = {}
+    if pr.slots:
+        changing = {}
+        for idx, slot in plan.arrangement.first_slot.items():
+            c = circuits[idx]
+            if c.slot != slot:
+                changing[idx] = slot
+                new = c.at_slot(slot)
+                moves[idx] = Move(idx, c.name, c.poles, c.slot, slot, c.phases, new.phases)
+        steps = order_work(sched, changing)
+    else:
+        changed = []
+        for i, idx in enumerate(pr.free.tolist()):
+            c = circuits[idx]
+            ph = pr.phases[int(plan.assign[i])]
+            if c.phases is None or set(c.phases) != set(ph):
+                changed.append(idx)
+                moves[idx] = Move(idx, c.name, c.poles, None, None, c.phases, tuple(ph))
+        steps = rail_steps(sched, changed)
+    ordered = [moves[s.circuit_index] for s in steps if s.action != "take-out"]
+    return ordered, steps
 
 
-def _finish(
-    pr: Problem,
-    opts: SuggestOptions,
-    control: Control,
-    before: Figures,
-    plan: np.ndarray,
-    checker: _Checker,
-    status: Status,
-    bound: float | None,
-    notes: list[str],
-    unplaced_left: tuple[str, ...],
-    calls: int,
-    placed: bool = True,
-) -> Suggestion:
+def _finish(run: _Run, plan: Plan | None, status: Status, bound: float | None) -> Suggestion:
+    control, pr, opts = run.control, run.pr, run.opts
     if control.cancelled():
         raise Cancelled
-    schedule = pr.schedule
-    if placed and pr.n_free:
-        moves, steps = _moves_for(pr, plan, checker)
-    else:
-        moves, steps = [], []
-    after_schedule = apply_moves(schedule, moves)
-    after = Figures.of(analyse_schedule(after_schedule)) if moves else before
+    moves, steps = _moves_for(pr, plan) if plan is not None and pr.n_free else ([], [])
+    after_schedule = apply_moves(pr.schedule, moves)
+    after = Figures.of(analyse_schedule(after_schedule)) if moves else run.before
     target_pct = opts.effective_target_pct
     met = True
     if target_pct is not None:
-        met = after.max_deviation_pct <= target_pct * (1 + _TOL) + 1e-12
+        met = after.max_deviation_pct <= target_pct * (1 + TOL) + 1e-12
     if opts.neutral_max_a is not None:
-        met = met and after.neutral_rms_a <= opts.neutral_max_a * (1 + _TOL)
-    if moves and placed:
-        exact = assess(pr, plan)
-        diff = max(abs(a - b) for a, b in zip(exact.phase_rms_a, after.phases_rms_a, strict=True))
+        met = met and after.neutral_rms_a <= opts.neutral_max_a * (1 + TOL)
+    # new circuits asked to be placed but left without a slot: the goal is not met
+    new = pr.free[~pr.movable].tolist() if pr.n_free else []
+    met = met and all(after_schedule.circuits[i].is_placed for i in new)
+    if moves and plan is not None:
+        exact = plan.figures.phase_rms_a
+        diff = max(abs(a - b) for a, b in zip(exact, after.phases_rms_a, strict=True))
         if diff > 1e-6 * max(1.0, after.max_phase_rms_a):
-            notes.append(
+            run.notes.append(
                 f"engine and optimiser figures differ by {diff:.3g} A (please report this)"
             )
-    if target_pct is not None and status in ("optimal", "best-found") and not met:
+    if target_pct is not None and status in ("optimal", "already-balanced") and not met:
         status = "best-found"
-    shown_target = "" if target_pct is None else f"{target_pct:g} %"
-    objective = _objective_text(opts, shown_target)
     control.report("done", 1.0)
     return Suggestion(
         status=status,
         mode=opts.mode,
-        objective=objective,
+        objective=objective_text(opts),
         moves=tuple(moves),
         steps=tuple(steps),
-        before=before,
+        before=run.before,
         after=after,
         bound=bound,
         floor_a=pr.floor_a,
@@ -543,8 +329,9 @@ def _finish(
         neutral_max_a=opts.neutral_max_a,
         max_moves=opts.max_moves,
         schedule=after_schedule,
-        unplaced_left=unplaced_left,
-        notes=tuple(dict.fromkeys(notes)),
-        solver_calls=calls,
+        unplaced_left=tuple(c.name for c in after_schedule.circuits if not c.is_placed),
+        notes=tuple(dict.fromkeys(run.notes)),
+        solver_calls=run.calls,
         elapsed_s=control.elapsed(),
+        stop_gap=opts.floor_gap if opts.mode != "fewest-moves" else 0.0,
     )

@@ -33,13 +33,27 @@ column          meaning
                 (3-pole circuits without triplen orders)
 ``placed``      ``true`` / ``false``
 ``note``        free text from the schedule
+``neutral``     ``true`` for a 2- or 3-pole breaker with a neutral (one load
+                to neutral per leg)
+``shared_neutral``  name of the neutral a 1-pole circuit shares, else empty
+``handle_tied`` ``true`` / ``false``
+``spare``       ``true`` for a breaker with nothing connected
+``rcd``         the RCD the circuit sits behind (rail boards), else empty
+``legs``        the breaker's loads, e.g. ``A 1920 VA 16 A; B 1920 VA 16 A``
+                (phases, VA, RMS A of each leg; one leg for most circuits)
+``group_neutral_rms_a``  RMS current of the neutral the circuit's legs share
+                with others (a shared neutral) [A], else empty
+``high_leg``    on a high-leg delta, for a circuit with a pole on the high
+                leg: ``B: 208 V to neutral, no 120 V loads``; else empty
 ==============  ==========================================================
 
 After ``note``: ``calculated_a``, the circuit's calculated load (its
 scheduled line current, times the continuous factor when continuous [A]:
-what NEC 210.20(A) compares with the breaker), and ``over_breaker``
-(``true`` when ``calculated_a`` is above ``breaker_a``; empty without a
-breaker rating).
+what NEC 210.20(A) compares with the breaker; for a breaker with several
+legs, that of its largest pole), and ``over_breaker`` (``true`` when
+``calculated_a`` is above ``breaker_a``; empty without a breaker rating).
+The columns from ``neutral`` on describe the panel as it is wired; they
+come after the others so that scripts reading those keep working.
 
 Numbers are written as in the JSON report (9 significant digits); a
 missing value is an empty field. Per-phase and panel totals are in the JSON,
@@ -78,6 +92,14 @@ COLUMNS: tuple[str, ...] = (
     "note",
     "calculated_a",
     "over_breaker",
+    "neutral",
+    "shared_neutral",
+    "handle_tied",
+    "spare",
+    "rcd",
+    "legs",
+    "group_neutral_rms_a",
+    "high_leg",
 )
 
 
@@ -121,9 +143,32 @@ def csv_rows(data: dict[str, Any]) -> list[dict[str, str]]:
             "note": c["note"],
             "calculated_a": c["calculated_a"],
             "over_breaker": c["over_breaker"],
+            **_wiring_cells(data, c),
         }
         rows.append({k: _cell(v) for k, v in row.items()})
     return rows
+
+
+def _wiring_cells(data: dict[str, Any], c: dict[str, Any]) -> dict[str, Any]:
+    """The columns of the panel as wired (issue 12) for one circuit."""
+    group = next((g for g in data["shared_neutrals"] if c["number"] in g["circuits"]), None)
+    p = data["panel"]
+    high = None
+    if c["on_high_leg"]:
+        high = f"{p['high_leg']}: {p['high_leg_to_neutral_v']:.0f} V to neutral, no 120 V loads"
+    legs = "; ".join(
+        f"{leg['phases']} {_cell(leg['va'])} VA {_cell(leg['rms_a'])} A" for leg in c["legs"]
+    )
+    return {
+        "neutral": c["neutral"],
+        "shared_neutral": c["shared_neutral"],
+        "handle_tied": c["handle_tied"],
+        "spare": c["spare"],
+        "rcd": c["rcd"],
+        "legs": legs,
+        "group_neutral_rms_a": None if group is None else group["rms_a"],
+        "high_leg": high,
+    }
 
 
 def render_csv(data: dict[str, Any]) -> str:

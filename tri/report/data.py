@@ -47,7 +47,9 @@ Added keys (beyond the contract)
 ``supply``
     The ``[supply]`` table as given (kVA, %, -, m, Ω/km), or ``None``.
 ``sizing``
-    The sizing rule in words: ``method`` (``"noncontinuous plus 125 % of
+    The sizing rule in words: ``per_phase`` (how the VA per phase becomes
+    amperes: over V_LN; on a high-leg delta the 2- and 3-pole shares over
+    V_LL/√3), ``method`` (``"noncontinuous plus 125 % of
     continuous"``, or ``"no continuous-load factor"``),
     ``clause`` (short name of the rule against the main or bus) and
     ``breaker_clause`` (against each breaker), ``over`` (labels of the
@@ -112,6 +114,36 @@ Added keys (beyond the contract)
     (``calculated_a > breaker_a``; ``None`` without a breaker rating).
 ``unplaced``
     Names of circuits not on any phase (left out of every figure).
+``panel`` (wiring, issue 12)
+    Also ``high_leg`` (the high leg's label on a 240/120D high-leg delta,
+    else ``None``), ``high_leg_to_neutral_v`` (its voltage to neutral,
+    √3/2·V_LL, 207.8 V; ``None`` without a high leg) [V], ``right_column``
+    (``"ABC"`` or ``"CBA"``), ``fed_from`` (source marking or ``None``),
+    ``max_row_shift`` (rows, or ``None``).
+``circuits`` (wiring, issue 12)
+    Also ``neutral`` (a 2-/3-pole breaker with a neutral), ``shared_neutral``
+    (name or ``None``), ``handle_tied``, ``spare``, ``load.legs`` (the
+    per-leg values as written, or ``None``), ``rcd`` (name or
+    ``None``), ``on_high_leg`` (a pole on the high leg), ``legs`` (the loads
+    the breaker feeds, in pole order: {kind (``line-to-neutral``,
+    ``line-to-line``, ``three-phase``), phases, va [VA], current_a, rms_a
+    [A]}; one entry for an ordinary circuit, none if unplaced) and
+    ``pole_currents`` ({phase: {current_a, current_deg, rms_a}} [A, deg] of a
+    breaker with several legs, its legs summed; ``None`` otherwise). For such
+    a breaker ``current_a`` and ``rms_a`` are those of its largest pole and
+    ``phase_va`` follows its legs.
+``shared_neutrals``
+    Every neutral shared by several legs: {name (the ``shared_neutral`` name,
+    or the breaker's name), shared_neutral, circuits (numbers), slots,
+    phases, common_trip (a multi-pole breaker, or every leg
+    ``handle_tied``), current_a, current_deg (fundamental), rms_a [A],
+    harmonic_a (magnitude at each order of ``harmonics.orders``) [A]}.
+``directory``
+    ``fed_from``, ``spares`` [{number, slot, name, breaker_a}] (breakers with
+    nothing connected) and ``spaces`` (empty slots of a two-column panel).
+``rcds``
+    RCD groups of a rail board: [{name, poles, phase (``None`` for 4-pole),
+    circuits (numbers)}].
 ``caution``
     The safety caution shown with every report.
 
@@ -122,78 +154,29 @@ measurement; it keeps the output identical from one machine to the next),
 
 from __future__ import annotations
 
-import math
 from pathlib import Path
 from typing import Any
 
 from tri.engine.limits import DESIGN_HEADROOM_PCT, RATING_PCT, exceeds, loading_word, practice_for
 from tri.engine.loading import calculation_words, sizing_clauses
 from tri.engine.results import PanelAnalysis, Phasor
+from tri.report import wiring_data
+from tri.report.numbers import num
 from tri.schedule.model import Circuit, Schedule
 from tri.schedule.slots import TWO_COLUMN, occupied_slots
 
 #: Version of the report's key layout (added key ``report_version``).
 REPORT_VERSION = 1
-#: Significant digits kept in every number [-].
-SIGNIFICANT_DIGITS = 9
-
 CALCULATED_MEANING = (
     "the code's calculated load: scheduled VA per phase (all of each 1-pole circuit, half "
     "of each 2-pole, a third of each 3-pole) with continuous loads at the continuous "
-    "factor, over V_LN; harmonics and --iterate do not change it"
+    "factor, over V_LN (on a high-leg delta the 2- and 3-pole shares over V_LL/√3); "
+    "harmonics and --iterate do not change it"
 )
 PHASE_VA_MEANING = (
     "connected apparent power the schedule attributes to the phase: all of each 1-pole "
     "circuit, half of each 2-pole, a third of each 3-pole (schedule bookkeeping, not |I|·V)"
 )
-
-
-def num(x: float | None) -> float | None:
-    """A number ready for the report: rounded, ``-0.0`` as ``0.0``, non-finite as ``None``.
-
-    Parameters
-    ----------
-    x : float or None
-        Any figure [any unit].
-
-    Returns
-    -------
-    float or None
-        ``x`` rounded to :data:`SIGNIFICANT_DIGITS` significant digits.
-    """
-    if x is None:
-        return None
-    x = float(x)
-    if not math.isfinite(x):
-        return None
-    r = float(f"{x:.{SIGNIFICANT_DIGITS}g}")
-    return 0.0 if r == 0 else r
-
-
-def fixed(x: float | None, digits: int = 1, *, signed: bool = False, none: str = "–") -> str:
-    """``x`` with ``digits`` decimals, never a negative zero (``-0.0`` is written ``0.0``).
-
-    Parameters
-    ----------
-    x : float or None
-        Any figure [any unit].
-    digits : int
-        Decimals.
-    signed : bool
-        Write ``+`` before a positive figure (a rounded zero has no sign).
-    none : str
-        Text for None.
-
-    Returns
-    -------
-    str
-    """
-    if x is None:
-        return none
-    text = f"{x:+.{digits}f}" if signed else f"{x:.{digits}f}"
-    if float(text) == 0:
-        return f"{0.0:.{digits}f}"
-    return text
 
 
 def phasor(p: Phasor, unit: str) -> dict[str, float | None]:
@@ -220,12 +203,8 @@ def _circuit(
 ) -> dict[str, Any]:
     current_a, rms_a, calculated_a = currents
     system = schedule.system
-    labels = schedule.labels
     va = c.apparent_power_va(system)
-    share = {lab: 0.0 for lab in labels}
-    if c.phases is not None:
-        for p in set(c.phases):
-            share[labels[p]] = va / len(set(c.phases))
+    share = wiring_data.leg_phase_va(c, schedule)
     slots = list(occupied_slots(c.slot, c.poles)) if c.slot is not None else []
     return {
         "number": number,
@@ -353,7 +332,11 @@ def _sizing(a: PanelAnalysis, schedule: Schedule, circuits: list[dict[str, Any]]
         a.frequency_hz, schedule.panel.main_a is not None, a.continuous_factor
     )
     rated = [c for c in circuits if c["over_breaker"] is not None]
+    per_phase = "scheduled VA per phase over V_LN"
+    if schedule.panel.effective_high_leg is not None:
+        per_phase = "scheduled 1-pole VA per phase over V_LN and 2- and 3-pole shares over V_LL/√3"
     return {
+        "per_phase": per_phase,
         "method": calculation_words(a.continuous_factor),
         "clause": clause,
         "breaker_clause": branch,
@@ -398,7 +381,10 @@ def report_data(
     cu = a.current_unbalance
     per_circuit = zip(a.circuit_current_a, a.circuit_rms_a, a.circuit_calculated_a, strict=True)
     circuits = [
-        _circuit(i + 1, c, schedule, currents)
+        {
+            **_circuit(i + 1, c, schedule, currents),
+            **wiring_data.circuit_wiring(i, c, schedule, a),
+        }
         for i, (c, currents) in enumerate(zip(schedule.circuits, per_circuit, strict=True))
     ]
     supply = (
@@ -421,6 +407,7 @@ def report_data(
             "spaces": p.spaces,
             "layout": p.layout,
             "file": None if file is None else Path(file).name,
+            **wiring_data.panel_wiring(schedule),
         },
         "basis": {
             "estimate": True,
@@ -463,6 +450,9 @@ def report_data(
         "nonlinear_ln_share_pct": num(a.nonlinear_ln_share_pct),
         "circuits": circuits,
         "unplaced": [c["name"] for c in circuits if not c["placed"]],
+        "shared_neutrals": wiring_data.shared_neutrals(a, schedule),
+        "directory": wiring_data.directory(schedule),
+        "rcds": wiring_data.rcds(schedule),
         "caution": caution,
     }
 

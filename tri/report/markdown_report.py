@@ -27,7 +27,9 @@ from __future__ import annotations
 
 from typing import Any
 
-from tri.report.data import fixed, is_two_column, line_labels
+from tri.report import wiring_markdown as wm
+from tri.report.data import is_two_column, line_labels
+from tri.report.numbers import fixed
 from tri.schedule.slots import slot_phase
 
 _SPECIAL = "\\`*_[]<>|#~"
@@ -62,12 +64,16 @@ def _table(head: list[str], rows: list[list[str]], align: str | None = None) -> 
 
 def _marks(c: dict[str, Any]) -> str:
     m = [x for x, on in (("C", c["continuous"]), ("L", c["locked"])) if on]
-    return f" ({', '.join(m)})" if m else ""
+    m += wm.wiring_marks(c)
+    return f" ({md_escape(', '.join(m))})" if m else ""
 
 
 def _load_text(c: dict[str, Any]) -> str:
     load = c["load"]
     text = f"{load['value']:,g} {load['unit']}"
+    legs = wm.leg_load_text(c)
+    if legs is not None:
+        text = legs
     if load["unit"] != "VA" or c["pf"] != 1:
         text += f", pf {c['pf']:g}" + (" leading" if c["leading"] else "")
     return text
@@ -86,10 +92,9 @@ def _panel_facts(d: dict[str, Any]) -> list[str]:
         ["Neutral", f"{p['neutral_a']:g} A" if p["neutral_a"] is not None else "none (3-wire)"],
         [
             "Spaces",
-            f"{p['spaces']} ("
-            + ("two columns, rows A-B-C from the top" if is_two_column(d) else "rail board")
-            + ")",
+            f"{p['spaces']} (" + (wm.rows_text(d) if is_two_column(d) else "rail board") + ")",
         ],
+        *wm.panel_facts(d, md_escape),
     ]
     if p["file"]:
         rows.append(["Schedule file", f"`{p['file']}`"])
@@ -103,11 +108,12 @@ def _slot_cells(
     if slot > d["panel"]["spaces"]:
         return ["", "", "", ""]
     if slot not in owner:
-        return ["—", "", "", ""]
+        return [wm.spare_or_space(None) or "", "", "", ""]
     c, k = owner[slot]
     name = md_escape(c["name"])
     if k == 0:
-        return [name + _marks(c), str(c["poles"]), _amps(c["breaker_a"]), _va(c["va"])]
+        name += _marks(c) + (wm.spare_or_space(c) or "")
+        return [name, str(c["poles"]), _amps(c["breaker_a"]), _va(c["va"])]
     nth = {1: "2nd", 2: "3rd"}[k]
     return [f"{nth} pole of {name}", "", "", ""]
 
@@ -125,7 +131,10 @@ def _two_column(d: dict[str, Any]) -> list[str]:
         lc = _slot_cells(d, left, owner)
         rc = _slot_cells(d, right, owner)
         right_no = str(right) if right <= spaces else ""
-        rows.append([str(left), *lc, labels[slot_phase(left)], *reversed(rc), right_no])
+        order = d["panel"]["right_column"]
+        on_right = labels[slot_phase(right, order)] if right <= spaces else None
+        middle = wm.row_phase(labels[slot_phase(left)], on_right, d["panel"]["high_leg"])
+        rows.append([str(left), *lc, middle, *reversed(rc), right_no])
     head = ["Slot", "Circuit", "Poles", "Breaker", "VA", "Phase"]
     head += ["VA", "Breaker", "Poles", "Circuit", "Slot"]
     return _table(head, rows, "rlrrrcrrrlr")
@@ -168,7 +177,8 @@ def _directory(d: dict[str, Any]) -> list[str]:
         "",
         "Each circuit is identified by its purpose (NEC 408.4 asks for such a directory; "
         "from memory, local code governs). VA is the scheduled load of the whole circuit. "
-        "Marks: C continuous load (3 h or more), L locked (do not move).",
+        "Marks: C continuous load (3 h or more), L locked (do not move)."
+        + (wm.MARKS_LEGEND if _uses_wiring_marks(d) else ""),
     ]
     if is_two_column(d):
         out += [
@@ -181,6 +191,8 @@ def _directory(d: dict[str, Any]) -> list[str]:
         ]
     else:
         out += ["", "Rail board: circuits by the phases they connect to.", *_rail(d)]
+        out += wm.rcd_lines(d, md_escape)
+    out += wm.shared_neutrals(d, md_escape, _table)
     notes = [c for c in d["circuits"] if c["note"]]
     if notes:
         out += ["", "Notes:", ""]
@@ -188,6 +200,10 @@ def _directory(d: dict[str, Any]) -> list[str]:
             where = f"slot {c['slot']}" if c["slot"] is not None else f"no. {c['number']}"
             out.append(f"- {where}, {md_escape(c['name'])}: {md_escape(c['note'])}")
     return out
+
+
+def _uses_wiring_marks(d: dict[str, Any]) -> bool:
+    return any(wm.wiring_marks(c) for c in d["circuits"])
 
 
 def _loads(d: dict[str, Any]) -> list[str]:
@@ -309,7 +325,7 @@ def _sizing(d: dict[str, Any]) -> str:
         else " No circuit gives a breaker rating."
     )
     return (
-        f"Sizing rule: the calculated load is the scheduled VA per phase over V_LN, "
+        f"Sizing rule: the calculated load is the {z['per_phase']}, "
         f"{z['method']}, against the {p['rating_a']:g} A {md_escape(p['rating_basis'])} "
         f"({z['clause']})." + breakers
     )

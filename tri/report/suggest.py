@@ -1,4 +1,8 @@
-"""Renderers of a rebalancer suggestion: the JSON contract and a printable work order.
+"""Renderers of a rebalancer suggestion: the JSON contract and the printable work order.
+
+The words (status, counts, floor, ratings, the numbered steps) are those
+of :mod:`tri.report.work_order`, which the terminal UI's rebalance screen
+uses too, so the command line's text, its JSON and the UI say the same.
 
 JSON (``tri suggest FILE --format json``) follows the rebalancer contract in
 ``shared/spec/schedule-format.md``::
@@ -7,16 +11,18 @@ JSON (``tri suggest FILE --format json``) follows the rebalancer contract in
      "from_phases", "to_phases"}], "before": {"phases_rms_a", "neutral_rms_a",
      "max_deviation_pct"}, "after": {...}, "bound"}
 
-with these added keys beside them: ``mode``; ``bound_unit`` (``"moves"`` or
+with these added keys beside them: ``status_text`` (the status in words,
+exactly what was proven); ``mode``; ``bound_unit`` (``"moves"``, i.e. relocations, or
 ``"A"``); ``target_pct``, ``target_met``, ``neutral_max_a``, ``max_moves``;
 ``floor_a`` (no arrangement brings the largest phase RMS current below it);
 ``relocations``; per move ``poles``, ``changes_phase`` and
 ``set_aside_first`` (take it out before the others, install it last: a
-swap); in ``before`` and ``after``, ``limits`` (the engine's findings at
-level "limit": ratings still exceeded); ``unplaced_left``; ``notes``;
-``caution``. Numbers are SI (A, %),
-rounded to 9 significant digits; phases by the panel's labels; ``null``
-for "no slot" or "not placed".
+swap); ``work_order`` (the numbered steps: ``step``, ``action``,
+``circuit``, ``text``); in ``before`` and ``after``, ``limits`` (the
+engine's findings at level "limit": ratings still exceeded);
+``unplaced_left``; ``notes``; ``caution``. Numbers are SI (A, %), rounded
+to 9 significant digits; phases by the panel's labels; ``null`` for "no
+slot" or "not placed".
 
 Text is a work order a person can follow, step by step, with the safety
 caution first and last. It proposes; it never says the work may go ahead.
@@ -34,17 +40,18 @@ from rich.rule import Rule
 from rich.table import Table
 from rich.text import Text
 
-from tri.rebalance import Figures, Move, Suggestion
+from tri.rebalance import Figures, Suggestion
 from tri.report.data import num
 from tri.report.text_report import to_ascii
+from tri.report.work_order import (
+    count_words,
+    fixed,
+    floor_words,
+    limits_words,
+    status_words,
+    work_order,
+)
 from tri.schedule.model import Schedule
-
-_STATUS_TEXT = {
-    "optimal": "optimal: proven that no plan does better",
-    "best-found": "best found in the time limit (not proven optimal)",
-    "infeasible": "target out of reach (proven); shown: the best balance found",
-    "already-balanced": "already balanced: no move needed",
-}
 
 
 def _figures(f: Figures, labels: tuple[str, str, str]) -> dict[str, Any]:
@@ -58,10 +65,6 @@ def _figures(f: Figures, labels: tuple[str, str, str]) -> dict[str, Any]:
 
 def _phases(schedule: Schedule, phases: tuple[int, ...] | None) -> str | None:
     return None if phases is None else schedule.phase_text(phases)
-
-
-def _set_aside(s: Suggestion) -> set[int]:
-    return {st.circuit_index for st in s.steps if st.action == "take-out"}
 
 
 def _bound(s: Suggestion) -> float | int | None:
@@ -88,7 +91,7 @@ def suggestion_data(s: Suggestion, before: Schedule, caution: str) -> dict[str, 
         Contract keys first, then the added keys (module notes); [A], [%].
     """
     labels = before.labels
-    aside = _set_aside(s)
+    aside = {st.circuit_index for st in s.steps if st.action == "take-out"}
     moves = [
         {
             "circuit": m.circuit,
@@ -102,6 +105,10 @@ def suggestion_data(s: Suggestion, before: Schedule, caution: str) -> dict[str, 
         }
         for m in s.moves
     ]
+    steps = [
+        {"step": w.number, "action": w.action, "circuit": w.circuit, "text": w.sentence}
+        for w in work_order(s, before)
+    ]
     return {
         "status": s.status,
         "objective": s.objective,
@@ -109,6 +116,7 @@ def suggestion_data(s: Suggestion, before: Schedule, caution: str) -> dict[str, 
         "before": _figures(s.before, labels),
         "after": _figures(s.after, labels),
         "bound": _bound(s),
+        "status_text": status_words(s),
         "bound_unit": "moves" if s.mode == "fewest-moves" else "A",
         "mode": s.mode,
         "target_pct": num(s.target_pct),
@@ -117,6 +125,7 @@ def suggestion_data(s: Suggestion, before: Schedule, caution: str) -> dict[str, 
         "max_moves": s.max_moves,
         "floor_a": num(s.floor_a),
         "relocations": s.relocations,
+        "work_order": steps,
         "unplaced_left": list(s.unplaced_left),
         "notes": list(s.notes),
         "caution": caution,
@@ -128,46 +137,6 @@ def render_suggestion_json(data: dict[str, Any]) -> str:
     return json.dumps(data, indent=2, ensure_ascii=False, allow_nan=False) + "\n"
 
 
-def _where(schedule: Schedule, slot: int | None, phases: tuple[int, ...] | None) -> str:
-    ph = schedule.phase_text(phases) if phases is not None else "-"
-    word = "phase" if phases is not None and len(phases) == 1 else "phases"
-    if slot is None:
-        return f"{word} {ph}"
-    return f"slot {slot} ({word} {ph})"
-
-
-def work_order_steps(s: Suggestion, before: Schedule) -> list[tuple[int, str]]:
-    """The work order as ``(circuit_index, sentence)`` pairs, in the order to do them."""
-    by_index: dict[int, Move] = {m.circuit_index: m for m in s.moves}
-    out = []
-    for st in s.steps:
-        m = by_index[st.circuit_index]
-        name = f'"{m.circuit}" ({m.poles}-pole)'
-        here = _where(before, m.from_slot, m.from_phases)
-        there = _where(before, m.to_slot, m.to_phases)
-        if st.action == "move":
-            text = f"Move breaker {name} from {here} to {there}."
-            if not m.changes_phase:
-                text += " Same phases: this only makes room."
-        elif st.action == "take-out":
-            text = f"Take out breaker {name} from {here} and set it aside (a swap)."
-        elif st.action == "install":
-            text = f"Install the set-aside breaker {name} in {there}."
-        elif st.action == "place":
-            text = f"Install the new circuit's breaker {name} in {there}."
-        elif st.action == "connect":
-            text = f"Connect the new circuit {name} to {there}."
-        else:
-            text = f"Reconnect circuit {name} from {here} to {there}."
-        out.append((st.circuit_index, text))
-    return out
-
-
-def work_order_lines(s: Suggestion, before: Schedule) -> list[str]:
-    """The numbered steps of the work order, as plain sentences."""
-    return [f"{n:>2}. {text}" for n, (_, text) in enumerate(work_order_steps(s, before), start=1)]
-
-
 def _figures_table(s: Suggestion, labels: tuple[str, str, str], ascii_only: bool) -> Table:
     t = Table(box=box.ASCII if ascii_only else box.SIMPLE_HEAD, pad_edge=False)
     t.add_column("")
@@ -176,41 +145,53 @@ def _figures_table(s: Suggestion, labels: tuple[str, str, str], ascii_only: bool
     for k, lab in enumerate(labels):
         t.add_row(
             f"Phase {lab} RMS [A]",
-            f"{s.before.phases_rms_a[k]:.1f}",
-            f"{s.after.phases_rms_a[k]:.1f}",
+            fixed(s.before.phases_rms_a[k], 1),
+            fixed(s.after.phases_rms_a[k], 1),
         )
-    t.add_row("Neutral RMS [A]", f"{s.before.neutral_rms_a:.1f}", f"{s.after.neutral_rms_a:.1f}")
+    t.add_row("Neutral RMS [A]", fixed(s.before.neutral_rms_a, 1), fixed(s.after.neutral_rms_a, 1))
     t.add_row(
         "Largest deviation from the mean [%]",
-        f"{s.before.max_deviation_pct:.2f}",
-        f"{s.after.max_deviation_pct:.2f}",
+        fixed(s.before.max_deviation_pct, 2),
+        fixed(s.after.max_deviation_pct, 2),
     )
     return t
 
 
-def _status_line(s: Suggestion) -> str:
-    text = _STATUS_TEXT[s.status]
-    if s.status == "best-found" and s.bound is not None:
-        if s.mode == "fewest-moves":
-            text += f"; proven: at least {s.bound:g} moves are needed"
-        else:
-            text += f"; proven: no plan brings the largest phase below {s.bound:.2f} A"
-    if s.target_pct is not None and s.status == "best-found" and not s.target_met:
-        text += "; the target was not reached"
-    return text
+def _work_section(s: Suggestion, before: Schedule, ascii_only: bool) -> list[RenderableType]:
+    if not s.moves:
+        return [Text("No breaker moves are proposed.")]
+    kind = "rail board: circuits change phases" if not before.panel.uses_slots else "slots"
+    out: list[RenderableType] = [
+        Text(f"Work order ({count_words(s)}; {kind}), for a qualified person to review:")
+    ]
+    steps = Table.grid(padding=(0, 1))
+    steps.add_column(justify="right", no_wrap=True)
+    steps.add_column()
+    for w in work_order(s, before):
+        steps.add_row(f"{w.number}.", to_ascii(w.sentence) if ascii_only else w.sentence)
+    out.append(steps)
+    out.append(
+        Text(
+            "Before any move: de-energise and lock out the panel and prove it dead. "
+            "For each moved circuit check that its conductors reach the new position "
+            "and that the breaker suits it; afterwards update the panel directory "
+            "(circuit numbers and phases change) and measure the phase and neutral "
+            "currents again (common practice)."
+        )
+    )
+    return out
 
 
 def suggestion_renderables(
     s: Suggestion, before: Schedule, caution: str, *, ascii_only: bool = False
 ) -> list[RenderableType]:
     """The work order's sections as Rich renderables (print them in order)."""
-    labels = before.labels
     rule = "-" if ascii_only else "─"
     out: list[RenderableType] = [
         Text(f"Proposed breaker moves: {before.panel.name}", style="bold"),
         Text(f"Caution: {caution}"),
         Rule(characters=rule),
-        Text(f"Status: {_status_line(s)}."),
+        Text(f"Status: {status_words(s)}."),
         Text(_nbsp(f"Minimised: {s.objective}.")),
     ]
     if s.target_pct is not None:
@@ -221,49 +202,13 @@ def suggestion_renderables(
     if s.neutral_max_a is not None:
         out.append(Text(f"Neutral limit: {s.neutral_max_a:g} A."))
     out.append(Text("Figures from the engine on the schedule before and after (estimates):"))
-    out.append(_figures_table(s, labels, ascii_only))
-    top = s.after.max_phase_rms_a
-    gap = 100.0 * (top - s.floor_a) / s.floor_a if s.floor_a > 0 else 0.0
-    out.append(
-        Text(
-            f"No arrangement can bring the largest phase below {s.floor_a:.1f} A (its share of "
-            f"the positive-sequence current, harmonics included); after the moves it is "
-            f"{top:.1f}\u00a0A, {gap:.2f}\u00a0% above."
-        )
-    )
-    if s.after.limits:
-        out.append(
-            Text(
-                "Still over a rating after the moves (balancing alone does not fix it; "
-                "see tri report): " + " ".join(s.after.limits)
-            )
-        )
+    out.append(_figures_table(s, before.labels, ascii_only))
+    out.append(Text(floor_words(s)))
+    limits = limits_words(s)
+    if limits:
+        out.append(Text(limits))
     out.append(Rule(characters=rule))
-    if s.moves:
-        kind = "rail board: circuits change phases" if not before.panel.uses_slots else "slots"
-        count = f"{s.relocations} breaker{'s' if s.relocations != 1 else ''} relocated"
-        placed = sum(1 for m in s.moves if m.is_placement)
-        if placed:
-            count += f", {placed} new circuit{'s' if placed != 1 else ''} placed"
-        out.append(Text(f"Work order ({count}; {kind}), for a qualified person to review:"))
-        steps = Table.grid(padding=(0, 1))
-        steps.add_column(justify="right", no_wrap=True)
-        steps.add_column()
-        for line in work_order_lines(s, before):
-            n, _, text = line.strip().partition(". ")
-            steps.add_row(f"{n}.", to_ascii(text) if ascii_only else text)
-        out.append(steps)
-        out.append(
-            Text(
-                "Before any move: de-energise and lock out the panel and prove it dead. "
-                "For each moved circuit check that its conductors reach the new position "
-                "and that the breaker suits it; afterwards update the panel directory "
-                "(circuit numbers and phases change) and measure the phase and neutral "
-                "currents again (common practice)."
-            )
-        )
-    else:
-        out.append(Text("No breaker moves are proposed."))
+    out.extend(_work_section(s, before, ascii_only))
     if s.unplaced_left:
         out.append(
             Text("Not placed (use --place-new to find them slots): " + ", ".join(s.unplaced_left))

@@ -4,8 +4,9 @@ Sections, in order: heading and basis (what the figures are and that they
 are estimates), phase and neutral currents with loading bars, the sizing
 check with continuous loads, symmetrical components and current unbalance,
 voltage at the panel (or why there is none), site readings against the
-computed figures, findings with their sources, unplaced circuits, and the
-safety caution.
+computed figures, findings with their sources, the panel as wired (shared
+neutrals, legs, high leg, spares and spaces, when any apply), unplaced
+circuits, and the safety caution.
 
 Nothing is said by colour alone: every bar has its number written beside
 it and a status word (``OVER`` above 100 %, ``NEAR`` above the 80 % design
@@ -29,7 +30,9 @@ from rich.table import Table
 from rich.text import Text
 
 from tri.engine.limits import DESIGN_HEADROOM_PCT, NEAR, OVER, loading_word
-from tri.report.data import fixed, line_labels
+from tri.report.data import line_labels
+from tri.report.numbers import fixed
+from tri.report.wiring_text import wiring_section
 
 #: Width of the loading bar [cells]; a full bar is 100 % of the rating.
 BAR_CELLS = 10
@@ -242,7 +245,7 @@ def _sizing_text(d: dict[str, Any]) -> Text:
         else " No circuit gives a breaker rating, so no breaker was checked."
     )
     return Text(
-        f"Sizing rule, the code's calculated load (scheduled VA per phase over V_LN, "
+        f"Sizing rule, the code's calculated load ({z['per_phase']}, "
         f"{z['method']}): {'; '.join(phases)} of the {p['rating_a']:g} A {p['rating_basis']} "
         f"({z['clause']})." + breakers
     )
@@ -500,6 +503,9 @@ def text_renderables(data: dict[str, Any], *, ascii_only: bool = False) -> list[
         for lv in ("limit", "warning", "info")
     )
     out += [_section(f"Findings ({n}: {counts})", g), _findings(data, g)]
+    wiring = wiring_section(data, g)
+    if wiring is not None:
+        out += [_section("Panel as wired", g), wiring]
     unplaced = _unplaced(data, g)
     if unplaced is not None:
         out += [_section("Unplaced circuits", g), unplaced]

@@ -31,13 +31,14 @@ from tri.schedule.read_panel import read_panel
 from tri.schedule.read_profiles import read_profiles
 from tri.schedule.read_readings import read_readings
 from tri.schedule.read_supply import read_supply
+from tri.schedule.read_wiring import check_supply_system, read_rcds
 from tri.schedule.reader import MISSING, Reader, found, is_kind, suggest
 from tri.schedule.rules import MAX_CIRCUITS
 from tri.schedule.source import read_limited
 from tri.schedule.text import escape_char, refused_chars
 from tri.schedule.validate import check_schedule, circuit_where
 
-TOP_KEYS = ("format", "panel", "supply", "readings", "profiles", "log", "circuit")
+TOP_KEYS = ("format", "panel", "supply", "readings", "profiles", "log", "rcd", "circuit")
 
 
 @dataclass(frozen=True, eq=False)
@@ -158,6 +159,8 @@ def build_schedule(
     supply = read_supply(r, data)
     readings = read_readings(r, data, panel)
     profiles = read_profiles(r, data)
+    check_supply_system(r, panel, supply)
+    rcds = read_rcds(r, data, panel)
     log = read_log_table(r, data, panel.phase_labels if panel else DEFAULT_LABELS)
     circuits: list[Circuit] = []
     for index, raw in enumerate(_raw_circuits(r, data)):
@@ -171,6 +174,7 @@ def build_schedule(
             supply=supply,
             readings=readings,
             profiles=profiles or (),
+            rcds=rcds,
             log=log,
         )
         for issue in check_schedule(model):

@@ -14,7 +14,7 @@ from typing import Literal
 from tri.engine.inputs import SupplyImpedance
 from tri.schedule.feeds import Feed
 from tri.schedule.log_spec import LogSpec
-from tri.schedule.slots import TWO_COLUMN, slot_phases
+from tri.schedule.slots import RIGHT_ABC, TWO_COLUMN, slot_phases
 from tri.schedule.systems import SYSTEMS, SupplySystem
 
 FORMAT_VERSION = 1
@@ -47,6 +47,18 @@ class PanelInfo:
         Labels of the phases, e.g. ``("A", "B", "C")`` or ``("L1", "L2", "L3")``.
     layout : str
         ``"two-column"`` (slots) or ``"phases"`` (each circuit names its phases).
+    high_leg : int or None
+        Phase index (1 = B, 2 = C) of the high leg on a high-leg delta
+        (``240/120D``); ``None`` on every other system.
+    right_column : str
+        ``"ABC"`` or ``"CBA"``: the phase order of the right (even) column's
+        rows from the top.
+    fed_from : str or None
+        Source marking for the directory, e.g. ``"MDP-1, circuit 7"``
+        (NEC 408.4(B), from memory).
+    max_row_shift : int or None
+        How many rows a breaker may move before its conductors no longer
+        reach; ``None``: no limit given.
     """
 
     name: str
@@ -58,6 +70,10 @@ class PanelInfo:
     neutral_a: float | None = None
     phase_labels: tuple[str, str, str] = DEFAULT_LABELS
     layout: str = TWO_COLUMN
+    high_leg: int | None = None
+    right_column: str = RIGHT_ABC
+    fed_from: str | None = None
+    max_row_shift: int | None = None
 
     @property
     def supply_system(self) -> SupplySystem:
@@ -68,6 +84,13 @@ class PanelInfo:
     def effective_neutral_a(self) -> float:
         """Neutral rating [A], defaulting to the bus rating."""
         return self.bus_a if self.neutral_a is None else self.neutral_a
+
+    @property
+    def effective_high_leg(self) -> int | None:
+        """Phase index of the high leg: ``high_leg``, else B (1) on a high-leg delta, else None."""
+        if not self.supply_system.high_leg_delta:
+            return None
+        return 1 if self.high_leg is None else self.high_leg
 
     @property
     def uses_slots(self) -> bool:
@@ -167,6 +190,23 @@ class Circuit:
         Breaker rating [A].
     note : str
         Free text.
+    neutral : bool
+        A 2- or 3-pole breaker with a neutral: one line-to-neutral load per
+        leg (a multi-wire branch circuit or an unbalanced wye load).
+    leg_values : tuple of float or None
+        One load per leg in pole order, in the unit of ``load_kind``; for a
+        3-pole breaker without a neutral the line-to-line loads between
+        poles 1-2, 2-3 and 3-1 (a delta load). ``None``: one value,
+        ``load_value`` (the same on each leg of a breaker with a neutral).
+    shared_neutral : str or None
+        Name of the neutral conductor this 1-pole circuit shares with others.
+    handle_tied : bool
+        This 1-pole breaker's handle is tied to the others of its
+        shared-neutral group (or they trip in common).
+    spare : bool
+        A breaker installed with nothing connected (no load).
+    rcd : str or None
+        Name of the ``[[rcd]]`` the circuit sits behind (rail boards).
     use : tuple of (str, float)
         Share of the load in each named scenario [-] (``use = { day = 0.2 }``);
         empty: 1.0 in every scenario (see :mod:`tri.schedule.use_factors`).
@@ -191,6 +231,12 @@ class Circuit:
     locked: bool = False
     breaker_a: float | None = None
     note: str = ""
+    neutral: bool = False
+    leg_values: tuple[float, ...] | None = None
+    shared_neutral: str | None = None
+    handle_tied: bool = False
+    spare: bool = False
+    rcd: str | None = None
     use: tuple[tuple[str, float], ...] = ()
     source_index: int | None = field(default=None, compare=False)
     feed: Feed | None = None
@@ -200,12 +246,37 @@ class Circuit:
         """True when the circuit is connected to phases."""
         return self.phases is not None
 
+    @property
+    def has_legs(self) -> bool:
+        """True when the breaker carries one load per leg (a neutral, or per-leg values)."""
+        return self.poles > 1 and (self.neutral or self.leg_values is not None)
+
+    def leg_va(self, system: SupplySystem) -> tuple[float, ...]:
+        """Apparent power |S| of each leg, in pole order [VA] (see ``leg_values``).
+
+        A leg load in amperes is the current of that leg's element: ``I*V_LN``
+        for a leg to neutral, ``I*V_LL`` for a line-to-line leg of a delta load.
+        """
+        values = self.leg_values if self.leg_values is not None else (self.load_value,) * self.poles
+        v = system.circuit_voltage(1 if self.neutral else 2)
+        return tuple(self._va_of(x, v) for x in values)
+
+    def _va_of(self, value: float, volts: float) -> float:
+        if self.load_kind == "va":
+            return value
+        if self.load_kind == "w":
+            return value / self.pf
+        return value * volts
+
     def apparent_power_va(self, system: SupplySystem) -> float:
         """Apparent power |S| of the whole circuit [VA].
 
         A load in amperes is the line current: ``|S| = I*V_LN`` for 1 pole,
-        ``I*V_LL`` for 2 poles and ``sqrt(3)*I*V_LL`` for 3 poles.
+        ``I*V_LL`` for 2 poles and ``sqrt(3)*I*V_LL`` for 3 poles. A breaker
+        with legs (:attr:`has_legs`) is the sum of its legs (:meth:`leg_va`).
         """
+        if self.has_legs:
+            return sum(self.leg_va(system))
         if self.load_kind == "va":
             return self.load_value
         if self.load_kind == "w":
@@ -236,6 +307,25 @@ class Circuit:
 
 
 @dataclass(frozen=True)
+class Rcd:
+    """One ``[[rcd]]`` table: a residual-current device ahead of a group of circuits.
+
+    Attributes
+    ----------
+    name : str
+        Name the circuits give in ``rcd``.
+    poles : int
+        2 (one phase and neutral) or 4 (three phases and neutral).
+    phase : int or None
+        Phase index of a 2-pole RCD; ``None`` for a 4-pole one.
+    """
+
+    name: str
+    poles: int = 2
+    phase: int | None = None
+
+
+@dataclass(frozen=True)
 class Schedule:
     """A whole panel schedule.
 
@@ -249,6 +339,7 @@ class Schedule:
     readings: Readings | None = None
     profiles: tuple[UserProfile, ...] = ()
     format: int = FORMAT_VERSION
+    rcds: tuple[Rcd, ...] = ()
     log: LogSpec | None = None
 
     @property
@@ -273,15 +364,27 @@ class Schedule:
         """User profiles by name."""
         return {p.name: p for p in self.profiles}
 
+    def placed(self, circuit: Circuit) -> Circuit:
+        """``circuit`` with its phases worked out from its slot by this panel's geometry.
+
+        :meth:`Circuit.at_slot` assumes a right column read A-B-C; on a
+        ``right_column = "CBA"`` panel this gives the phases as built.
+        """
+        if not self.panel.uses_slots or circuit.slot is None:
+            return circuit
+        phases = slot_phases(circuit.slot, circuit.poles, self.panel.right_column)
+        return circuit if phases == circuit.phases else replace(circuit, phases=phases)
+
     def with_circuit(self, index: int, circuit: Circuit) -> Schedule:
         """A copy with circuit ``index`` replaced (source position kept)."""
         old = self.circuits[index]
-        new = replace(circuit, source_index=old.source_index)
+        new = self.placed(replace(circuit, source_index=old.source_index))
         return replace(self, circuits=(*self.circuits[:index], new, *self.circuits[index + 1 :]))
 
     def with_added(self, circuit: Circuit) -> Schedule:
         """A copy with ``circuit`` appended as a new circuit."""
-        return replace(self, circuits=(*self.circuits, replace(circuit, source_index=None)))
+        new = self.placed(replace(circuit, source_index=None))
+        return replace(self, circuits=(*self.circuits, new))
 
     def without(self, index: int) -> Schedule:
         """A copy with circuit ``index`` removed."""

@@ -16,6 +16,7 @@ from tri.schedule.feeds import FEED_KEYS, check_feeder_circuit, read_feed
 from tri.schedule.locate import TableKey
 from tri.schedule.model import DEFAULT_LABELS, LOAD_KEYS, Circuit, PanelInfo, parse_phase_text
 from tri.schedule.read_panel import MAX_SPACES
+from tri.schedule.read_wiring import read_leg_values
 from tri.schedule.reader import MISSING, Reader, found, shown
 from tri.schedule.rules import (
     BREAKER_A,
@@ -43,6 +44,11 @@ CIRCUIT_RULES: dict[str, Rule] = {
     "breaker_a": Rule("number", in_range(BREAKER_A, " A")),
     "note": Rule("text", default=""),
     "slot": Rule("int", between(1, MAX_SPACES, " (slot numbers start at 1)")),
+    "neutral": Rule("bool", default=False),
+    "shared_neutral": Rule("text", short_text),
+    "handle_tied": Rule("bool", default=False),
+    "spare": Rule("bool", default=False),
+    "rcd": Rule("text", short_text),
 }
 #: The check of each load key (a circuit gives exactly one).
 LOAD_CHECKS = {
@@ -69,6 +75,11 @@ _STAND_IN = {
     "locked": False,
     "breaker_a": None,
     "note": "",
+    "neutral": False,
+    "shared_neutral": None,
+    "handle_tied": False,
+    "spare": False,
+    "rcd": None,
 }
 
 
@@ -118,7 +129,7 @@ def read_circuit(
         check_feeder_circuit(r, raw, v["poles"], table, where, index)
         load_kind, load_value = "va", 0.0
     else:
-        load_kind, load_value = _read_load(r, raw, table, where, index)
+        load_kind, load_value = _read_load(r, raw, table, where, index, spare=v["spare"] is True)
     use = read_use(r.add, raw, table, where, index)
     phases: Any = None
     if "phases" in raw:
@@ -135,9 +146,10 @@ def read_circuit(
     default_poles = 3 if "feeds" in raw else (len(phases) if phases else 1)
     poles = v["poles"] if v["poles"] is not None else default_poles
     slot = v["slot"]
+    legs = load_value if isinstance(load_value, tuple) else None
     placed: tuple[int, ...] | None = None
     if panel.layout == TWO_COLUMN and slot is not None:
-        placed = slot_phases(slot, poles)
+        placed = slot_phases(slot, poles, panel.right_column)
     elif panel.layout == PHASES and phases is not None:
         placed = phases
     return Circuit(
@@ -146,7 +158,7 @@ def read_circuit(
         slot=slot if panel.layout == TWO_COLUMN else None,
         phases=placed,
         load_kind=load_kind,
-        load_value=load_value,
+        load_value=sum(legs) if legs is not None else load_value,
         pf=v["pf"],
         leading=v["leading"],
         profile=v["profile"],
@@ -154,17 +166,49 @@ def read_circuit(
         locked=v["locked"],
         breaker_a=v["breaker_a"],
         note=v["note"],
+        neutral=v["neutral"],
+        leg_values=legs,
+        shared_neutral=_name_or_none(v["shared_neutral"]),
+        handle_tied=v["handle_tied"],
+        spare=v["spare"],
+        rcd=_name_or_none(v["rcd"]),
         use=use or (),
         source_index=index,
         feed=feed,
     )
 
 
+def _name_or_none(text: str | None) -> str | None:
+    """A group or device name, stripped; blank counts as not given."""
+    return text.strip() or None if isinstance(text, str) else None
+
+
 def _read_load(
-    r: Reader, raw: Mapping[str, Any], table: TableKey, where: str, index: int
+    r: Reader,
+    raw: Mapping[str, Any],
+    table: TableKey,
+    where: str,
+    index: int,
+    *,
+    spare: bool = False,
 ) -> tuple[Any, Any]:
-    """``(load_kind, load_value)`` from the one load key given; value ``MISSING`` if bad."""
+    """``(load_kind, load_value)`` from the one load key given; value ``MISSING`` if bad.
+
+    The value is a tuple when the key holds one number per leg. A spare
+    (``spare = true``) has nothing connected: no load key, load 0.
+    """
     given = [k for k in LOAD_KEYS if k in raw]
+    if spare:
+        if given:
+            r.add(
+                "a spare has nothing connected; remove the load key or 'spare = true'",
+                table,
+                given[0],
+                where,
+                index,
+            )
+            return "va", MISSING
+        return "va", 0.0
     if not given:
         r.add(
             "missing load; expected one of load_va (VA), load_w (W, with pf) or load_a (A)",
@@ -184,6 +228,9 @@ def _read_load(
         )
         return "va", MISSING
     check = LOAD_CHECKS[given[0]]
+    if isinstance(raw[given[0]], list):
+        legs = read_leg_values(r, raw[given[0]], given[0], table, where, index, check)
+        return LOAD_KEYS[given[0]], legs
     value = r.value(raw, given[0], table, where, "number", check=check, circuit_index=index)
     return LOAD_KEYS[given[0]], value
 

@@ -12,6 +12,7 @@ from typing import Any
 
 from tri.schedule.locate import TableKey
 from tri.schedule.model import DEFAULT_LABELS, PanelInfo
+from tri.schedule.read_wiring import PANEL_WIRING_KEYS, read_panel_wiring
 from tri.schedule.reader import MISSING, Reader, found, suggest
 from tri.schedule.rules import RATING_A, Rule, between, in_range, read_rules, short_text
 from tri.schedule.slots import LAYOUTS, TWO_COLUMN
@@ -37,6 +38,7 @@ PANEL_KEYS = (
     "phase_labels",
     "layout",
     "note",
+    *PANEL_WIRING_KEYS,
 )
 
 _TABLE: TableKey = ("panel",)
@@ -69,7 +71,9 @@ def read_panel(r: Reader, data: Mapping[str, Any]) -> PanelInfo | None:
     labels = read_labels(r, raw, _TABLE, _WHERE)
     layout = _read_layout(r, raw)
     r.value(raw, "note", _TABLE, _WHERE, "text")
-    if any(v is MISSING for v in (name, system, frequency, labels, layout, *values.values())):
+    wiring = read_panel_wiring(r, raw, system, labels, layout, _TABLE, _WHERE)
+    everything = (name, system, frequency, labels, layout, *values.values(), *wiring.values())
+    if any(v is MISSING for v in everything):
         return None
     return PanelInfo(
         name=name,
@@ -78,6 +82,7 @@ def read_panel(r: Reader, data: Mapping[str, Any]) -> PanelInfo | None:
         phase_labels=labels,
         layout=layout,
         **values,
+        **wiring,
     )
 
 

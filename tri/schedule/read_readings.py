@@ -8,6 +8,7 @@ values are checked here, voltages against the nominal of the panel's system.
 from __future__ import annotations
 
 import datetime as _dt
+import math
 from collections.abc import Mapping
 from typing import Any
 
@@ -42,7 +43,7 @@ def read_readings(r: Reader, data: Mapping[str, Any], panel: PanelInfo | None) -
     volts_ln, _ = _read_triple(r, raw, "volts_ln", labels, pairs=False)
     if system is not None:
         _check_voltages(r, system, "volts_ll", volts_ll, system.v_ll, "line-to-line")
-        _check_voltages(r, system, "volts_ln", volts_ln, system.v_ln, "line-to-neutral")
+        _check_voltages(r, system, "volts_ln", volts_ln, _ln_nominal(panel), "line-to-neutral")
     taken = raw.get("taken")
     if taken is not None and not isinstance(taken, str | _dt.date | _dt.time):
         r.add(f"found {found(taken)}, expected text or a date", _TABLE, "taken", _WHERE)
@@ -112,22 +113,34 @@ def _expected(key: str, labels: tuple[str, str, str], pairs: bool) -> str:
     return "labels " + ", ".join(labels) + (" or N" if key == "amps" else "")
 
 
+def _ln_nominal(panel: PanelInfo) -> float | tuple[float, float, float] | None:
+    """Nominal volts to neutral: one figure, or per phase on a high-leg delta [V]."""
+    system = panel.supply_system
+    high = panel.effective_high_leg
+    if high is None or system.v_ln is None:
+        return system.v_ln
+    nominal = [system.v_ln] * 3
+    nominal[high] = math.sqrt(3.0) / 2.0 * system.v_ll  # the high leg, 208 V on 240/120D
+    return (nominal[0], nominal[1], nominal[2])
+
+
 def _check_voltages(
     r: Reader,
     system: SupplySystem,
     key: str,
     values: _Triple,
-    nominal: float | None,
+    nominals: float | tuple[float, float, float] | None,
     what: str,
 ) -> None:
-    for v in values:
+    for k, v in enumerate(values):
+        nominal = nominals[k] if isinstance(nominals, tuple) else nominals
         if v is None:
             continue
         if nominal is None:
             r.add(f"a {system.key} system has no neutral to measure to", _TABLE, key, _WHERE)
         elif not 0.8 * nominal <= v <= 1.2 * nominal:
             r.add(
-                f"found {v:g} V, expected near the nominal {nominal:g} V {what} "
+                f"found {v:g} V, expected near the nominal {nominal:.4g} V {what} "
                 "of the panel's system",
                 _TABLE,
                 key,

@@ -31,8 +31,9 @@ from tri.schedule.read_panel import read_panel
 from tri.schedule.read_profiles import read_profiles
 from tri.schedule.read_readings import read_readings
 from tri.schedule.read_supply import read_supply
+from tri.schedule.read_wiring import read_rcds
 from tri.schedule.reader import Reader
-from tri.schedule.slots import PHASES, TWO_COLUMN
+from tri.schedule.slots import PHASES, RIGHT_ABC, TWO_COLUMN
 from tri.schedule.use_factors import use_table
 
 HEADER_COMMENT = (
@@ -119,8 +120,48 @@ def _write_panel(doc: TOMLDocument, panel: PanelInfo) -> None:
     _set(t, "neutral_a", panel.neutral_a)
     _set(t, "phase_labels", list(panel.phase_labels), ["A", "B", "C"])
     _set(t, "layout", panel.layout, TWO_COLUMN)
+    _write_panel_wiring(t, panel)
     if created:
         _insert_table(doc, "panel", t, ("format",))
+
+
+def _write_panel_wiring(t: Any, panel: PanelInfo) -> None:
+    """``high_leg``, ``right_column``, ``fed_from``, ``max_row_shift`` (defaults left out)."""
+    high = panel.high_leg if panel.supply_system.high_leg_delta else None
+    labels = panel.phase_labels
+    _set(t, "high_leg", None if high is None else labels[high], labels[1])
+    _set(t, "right_column", panel.right_column, RIGHT_ABC)
+    _set(t, "fed_from", panel.fed_from)
+    _set(t, "max_row_shift", panel.max_row_shift)
+
+
+def _write_rcds(doc: TOMLDocument, schedule: Schedule) -> None:
+    """The ``[[rcd]]`` tables: untouched when equal, else updated one by one."""
+    existing = doc.get("rcd")
+    if isinstance(existing, AoT):
+        old = read_rcds(_quiet_reader(), {"rcd": existing.unwrap()}, schedule.panel)
+        if old == schedule.rcds:
+            return
+    if not schedule.rcds:
+        if existing is not None:
+            del doc["rcd"]
+        return
+    if not isinstance(existing, AoT):
+        if existing is not None:
+            del doc["rcd"]
+        doc["rcd"] = tomlkit.aot()
+        existing = doc["rcd"]
+    tables = list(existing)
+    for k in reversed(range(len(schedule.rcds), len(tables))):
+        del existing[k]
+    labels = schedule.panel.phase_labels
+    for k, rcd in enumerate(schedule.rcds):
+        t = tables[k] if k < len(tables) else tomlkit.table()
+        _set(t, "name", rcd.name)
+        _set(t, "poles", rcd.poles, 2)
+        _set(t, "phase", None if rcd.phase is None else labels[rcd.phase])
+        if k >= len(tables):
+            existing.append(t)
 
 
 def _write_supply(doc: TOMLDocument, supply: Supply | None) -> None:
@@ -256,11 +297,12 @@ def _write_circuit(table: Any, c: Circuit, schedule: Schedule) -> None:
     if "poles" in table or c.poles != poles_default:
         _set(table, "poles", c.poles)
     if c.feed is None:  # a feeder circuit's load is its panel's; its feeds keys stay as written
-        load_key = f"load_{c.load_kind}"
+        load_key = None if c.spare else f"load_{c.load_kind}"
         for key in ("load_va", "load_w", "load_a"):
             if key != load_key and key in table:
                 del table[key]
-        _set(table, load_key, c.load_value)
+        if load_key is not None:
+            _set(table, load_key, c.load_value if c.leg_values is None else c.leg_values)
     _set(table, "pf", c.pf, 1.0)
     _set(table, "leading", c.leading, False)
     _set(table, "profile", c.profile, "linear")
@@ -269,6 +311,11 @@ def _write_circuit(table: Any, c: Circuit, schedule: Schedule) -> None:
     _set(table, "breaker_a", c.breaker_a)
     if c.note or "note" in table:
         _set(table, "note", c.note or None)
+    _set(table, "neutral", c.neutral, False)
+    _set(table, "shared_neutral", c.shared_neutral)
+    _set(table, "handle_tied", c.handle_tied, False)
+    _set(table, "spare", c.spare, False)
+    _set(table, "rcd", c.rcd)
     if c.use or "use" in table:
         _set(table, "use", use_table(c.use) if c.use else None)
 
@@ -345,6 +392,7 @@ def updated_document(schedule: Schedule, original: TOMLDocument | None = None) -
     _write_supply(doc, schedule.supply)
     _write_readings(doc, schedule.readings, schedule.panel)
     _write_profiles(doc, schedule.profiles)
+    _write_rcds(doc, schedule)
     _write_circuits(doc, schedule)
     return doc
 

@@ -1,8 +1,9 @@
 """Catalogue of supply systems a panel may be fed from.
 
 Nominal voltages per IEC 60038 (400/230 V) [published] and North American
-practice (208Y/120, 480Y/277, 600Y/347 V) [common practice]; 415/240 V is an
-older IEC / Australian nominal [from memory].
+practice (208Y/120, 480Y/277, 600Y/347 V, and the 240/120 V high-leg
+delta of older shops) [common practice]; 415/240 V is an older IEC /
+Australian nominal [from memory].
 """
 
 from __future__ import annotations
@@ -29,6 +30,11 @@ class SupplySystem:
         Nominal line-to-neutral voltage [V]; ``None`` on a 3-wire system.
     default_frequency_hz : float
         Frequency assumed when the file does not give one [Hz].
+    high_leg_delta : bool
+        A 4-wire delta with a centre-tapped winding (240/120 V): ``v_ln``
+        is half a winding, the high leg sits at ``sqrt(3)/2 * v_ll`` to
+        neutral and line-to-line circuits see ``v_ll`` (see
+        :mod:`tri.engine.high_leg`).
     """
 
     key: str
@@ -36,6 +42,7 @@ class SupplySystem:
     v_ll: float
     v_ln: float | None
     default_frequency_hz: float
+    high_leg_delta: bool = False
 
     @property
     def has_neutral(self) -> bool:
@@ -64,8 +71,11 @@ class SupplySystem:
         engine's nominal phasors, ``|V_A - V_B| = sqrt(3) * V_LN`` (207.85 V
         on 208Y/120, 398.4 V on 400Y/230), not the rounded name of the
         system. A load given in amperes then gives back exactly that current.
+        On a high-leg delta every line-to-line voltage is ``v_ll`` (240 V).
         """
         v_ln = self.v_ln if self.v_ln is not None else self.v_ll / math.sqrt(3.0)
+        if self.high_leg_delta:
+            return v_ln if poles == 1 else self.v_ll  # every line pair of a delta: v_ll
         return v_ln if poles == 1 else v_ln * math.sqrt(3.0)
 
 
@@ -92,6 +102,14 @@ SYSTEMS: dict[str, SupplySystem] = {
         _delta(600, 60, "Canadian industrial"),
         _delta(240, 60, "North American (no high-leg loads)"),
         _delta(400, 50, "IEC low voltage without neutral"),
+        SupplySystem(
+            "240/120D",
+            "3-phase 4-wire high-leg delta (centre-tapped winding), North American",
+            240,
+            120,
+            60,
+            high_leg_delta=True,
+        ),
     )
 }
 

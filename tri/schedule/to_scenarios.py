@@ -20,6 +20,9 @@ from tri.schedule.model import Schedule
 from tri.schedule.to_engine import (
     analyse_schedule,
     circuit_arrays,
+    circuit_labels,
+    element_rows,
+    per_circuit,
     ratings,
     supply_impedance,
     system_voltages,
@@ -105,15 +108,22 @@ def analyse_cases(
     scenarios = scenario_set(schedule)
     if scenarios.count == 0:
         return tuple(cases)
+    # one engine row per leg (breakers with several legs): each row takes its circuit's factor
+    row_circuit = [i for i, _ in element_rows(schedule)]
+    per_row = ScenarioSet(scenarios.names, scenarios.factors[:, row_circuit])
     analyses = analyse_scenarios(
         circuit_arrays(schedule),
-        scenarios,
+        per_row,
         system_voltages(schedule),
         ratings(schedule, continuous_factor),
         supply_impedance(schedule),
         iterate_voltage=iterate_voltage,
         phase_labels=schedule.labels,
         limits=limits,
+        circuit_labels=circuit_labels(schedule),
     )
-    cases.extend(Case(n, False, a) for n, a in zip(scenarios.names, analyses, strict=True))
+    cases.extend(
+        Case(n, False, per_circuit(a, schedule))
+        for n, a in zip(scenarios.names, analyses, strict=True)
+    )
     return tuple(cases)

@@ -27,6 +27,7 @@ from tri.schedule.to_engine import (
     system_voltages,
 )
 from tri.schedule.tree import ScheduleTree
+from tri.schedule.wiring import building_refusal
 
 
 def _link(tree: ScheduleTree, index: int) -> PanelLink | None:
@@ -88,6 +89,9 @@ def analyse_building(
     progress : callable, optional
         ``progress(sweep, step)`` during the iteration.
     """
+    refusal = building_refusal((p.shown, p.schedule) for p in tree.panels)  # issue 12
+    if refusal:
+        raise ValueError("; ".join(refusal))
     result = analyse_tree(
         tree_inputs(tree, continuous_factor),
         readings=tuple(measured(p.schedule) for p in tree.panels),

@@ -1,4 +1,4 @@
-"""Checks on a whole schedule model: slots, phases, system, profiles.
+"""Checks on a whole schedule model: slots, phases, system, profiles, wiring.
 
 These are the checks that matter after every edit, whether the schedule
 came from a file, the terminal UI or the rebalancer. Type and key checks of
@@ -11,6 +11,7 @@ from tri.engine.profiles import BUILTIN_PROFILES
 from tri.schedule.errors import ScheduleIssue, name_circuit
 from tri.schedule.model import Circuit, Schedule
 from tri.schedule.slots import fits, occupied_slots
+from tri.schedule.wiring import check_wiring
 
 
 def circuit_where(circuit: Circuit, schedule: Schedule) -> str:
@@ -83,4 +84,5 @@ def check_schedule(schedule: Schedule) -> list[ScheduleIssue]:
                 break
         for s in occupied_slots(c.slot, c.poles):
             owner.setdefault(s, i)
+    issues.extend(check_wiring(schedule, lambda c: circuit_where(c, schedule)))
     return issues

@@ -13,13 +13,13 @@ from dataclasses import replace
 from typing import Any
 
 from tri.engine.profiles import BUILTIN_PROFILES
-from tri.schedule.model import Circuit, Schedule
+from tri.schedule.model import Circuit, PanelInfo, Schedule
 from tri.schedule.read_circuit import read_circuit
 from tri.schedule.read_panel import read_panel
 from tri.schedule.read_readings import read_readings
 from tri.schedule.read_supply import read_supply
 from tri.schedule.reader import Reader
-from tri.schedule.slots import TWO_COLUMN
+from tri.schedule.slots import RIGHT_ABC, TWO_COLUMN
 from tri.schedule.systems import SYSTEMS
 from tri.schedule.validate import check_schedule
 from tri.tui.fmt import parse_number
@@ -169,6 +169,9 @@ def circuit_form(schedule: Schedule, index: int | None, base: Circuit | None = N
             return None, problems or {"": "not a valid circuit"}
         # Only what the form shows is replaced: keys it does not show stay as they were.
         circuit = replace(c, **{k: getattr(parsed, k) for k in FORM_KEYS})
+        legs = _legs_problem(c, circuit)
+        if legs:
+            problems.setdefault("load", legs)
         if index is None:
             candidate = schedule.with_added(circuit)
         else:
@@ -179,6 +182,26 @@ def circuit_form(schedule: Schedule, index: int | None, base: Circuit | None = N
 
     title = "Add a circuit" if index is None else f"Edit {circuit_label(schedule, index)}"
     return FormScreen(title, fields, validate)
+
+
+def _legs_problem(before: Circuit, after: Circuit) -> str | None:
+    """A breaker with one load per leg keeps its legs, which the form shows as one sum:
+    a changed load, unit or pole count would be shown but not used, so it is refused."""
+    if before.leg_values is None:
+        return None
+    same = (after.load_value, after.load_kind, after.poles) == (
+        before.load_value,
+        before.load_kind,
+        before.poles,
+    )
+    if same:
+        return None
+    unit = {"va": "VA", "w": "W", "a": "A"}[before.load_kind]
+    shown = " + ".join(f"{x:g}" for x in before.leg_values)
+    return (
+        f"this breaker has one load per leg ({shown} {unit}); the form edits one number, so "
+        "change the legs (load and poles) in the file"
+    )
 
 
 def move_form(schedule: Schedule, index: int) -> FormScreen:
@@ -237,6 +260,23 @@ def move_form(schedule: Schedule, index: int) -> FormScreen:
 # ---------------------------------------------------------------- panel
 
 
+def _unshown_panel_keys(p: PanelInfo, system: str, labels: list[str]) -> dict[str, Any]:
+    """The ``[panel]`` keys the form does not show, as the file holds them, so they are kept
+    (and checked again by the loader): the source marking, the right column's order, the
+    reach limit, and a high leg on C while the system stays a high-leg delta."""
+    out: dict[str, Any] = {}
+    if p.fed_from is not None:
+        out["fed_from"] = p.fed_from
+    if p.right_column != RIGHT_ABC:
+        out["right_column"] = p.right_column
+    if p.max_row_shift is not None:
+        out["max_row_shift"] = p.max_row_shift
+    delta = system in SYSTEMS and SYSTEMS[system].high_leg_delta
+    if delta and p.high_leg is not None and len(labels) == 3:
+        out["high_leg"] = labels[p.high_leg]
+    return out
+
+
 def panel_form(
     schedule: Schedule, outside: Callable[[Schedule], str | None] | None = None
 ) -> FormScreen:
@@ -269,6 +309,7 @@ def panel_form(
             labels = list(labels[0])
         raw["phase_labels"] = labels
         raw["layout"] = p.layout
+        raw.update(_unshown_panel_keys(p, values["system"], labels))
         reader = Reader(None, None)
         panel = read_panel(reader, {"panel": raw})
         problems = _issues_by_key(reader)

@@ -1,9 +1,13 @@
 """Rebalance: choose the mode, run the rebalancer in a worker, read the work order, apply.
 
-The rebalancer runs in a worker thread with a progress bar; Esc cancels it.
-The proposal is shown as a numbered work order with the engine's before and
-after figures, and the safety caution is always on screen before anything
-is applied. Applying is one undoable edit (u in the main view undoes it).
+The screen calls the rebalancer's public function (:func:`tri.rebalance.suggest`)
+from a worker thread with a progress bar; Esc cancels it. What it shows is
+what ``tri suggest`` prints, from the same data and the same words
+(:mod:`tri.report.suggest`): the status and its proven bound, the count of
+relocations, the numbered work order, the engine's figures before and
+after, the floor, and any rating still exceeded after the moves. The
+safety caution is always on screen. Applying is one undoable edit (u in
+the main view undoes it).
 """
 
 from __future__ import annotations
@@ -20,10 +24,29 @@ from textual.containers import Horizontal
 from textual.screen import Screen
 from textual.widgets import DataTable, Footer, Input, Label, ProgressBar, Static
 
-from tri.cli.common import SAFETY_CAUTION
-from tri.rebalance import DEFAULT_TARGET_PCT
-from tri.schedule.to_engine import analyse_schedule
-from tri.tui import rebalance_bridge as bridge
+from tri.native_output import native_stdout_to_devnull
+from tri.rebalance import (
+    DEFAULT_TARGET_PCT,
+    Cancelled,
+    Suggestion,
+    SuggestOptions,
+    apply_moves,
+    suggest,
+)
+from tri.report.work_order import (
+    WorkLine,
+    count_words,
+    fixed,
+    floor_brief,
+    floor_words,
+    limits_brief,
+    limits_words,
+    status_words,
+    work_order,
+)
+from tri.safety import SAFETY_CAUTION
+from tri.schedule.model import Schedule
+from tri.schedule.validate import check_schedule
 from tri.tui.fmt import parse_number
 from tri.tui.messages import RebalanceDone, RebalanceProgress
 from tri.tui.widgets.cycle import Cycle
@@ -35,23 +58,69 @@ MODES = (
     ("place new only", "place-new"),
     ("re-layout all (design)", "relayout"),
 )
+#: Search budget of the screen [s] (the command line's default is longer).
+TIME_LIMIT_S = 3.0
+#: Screen height from which the floor and the ratings are given in full sentences [rows].
+ROOMY_HEIGHT = 32
 
 REBALANCE_HELP = """\
-Three modes (← → on the mode field): fewest breaker moves that bring the
-phase currents within the target (largest deviation of a phase's RMS
+Four modes (← → on the mode field): the fewest breakers relocated that bring
+the phase currents within the target (largest deviation of a phase's RMS
 current from the mean); the best balance with at most the given number of
-moves; or only the best free slots for circuits not placed yet. New
-circuits are placed in the first two modes too. Ctrl+R (or F5, or Enter in
-a number field) runs; Esc cancels a run, or goes back.
-Locked circuits never move. The result is a work order: each line is one
-breaker to relocate. Space selects or clears a move; a applies the selected
-moves, A applies all of them; u in the main view undoes. Before and after
-figures are the engine's, computed on both schedules. The safety caution
-applies to every move: this is a plan to check, not approval to work."""
+relocations; only the best free slots for circuits not placed yet; or a
+full re-layout for design work. New circuits are placed in the first two
+modes too. Enter in a field, Ctrl+R or F5 runs; Esc cancels a run, or goes
+back. Locked circuits never move. The status says what was proven, as
+tri suggest does. The result is a work order: each line is one step.
+Space selects or clears a move; a applies the selected moves, A applies
+all of them; u in the main view undoes. Before and after figures are the
+engine's, computed on both schedules. The safety caution applies to every
+move: this is a plan to check, not approval to work."""
+
+
+def options_from(target: Any, moves: Any, mode: str) -> SuggestOptions | str:
+    """The fields as the rebalancer's options, or what is wrong with them."""
+    if target is not None and (not isinstance(target, int | float) or not 0 < target < 100):
+        return "Target: expected a percent above 0 and below 100."
+    if moves is not None and (not isinstance(moves, int) or moves < 0):
+        return "Moves: expected a whole number, 0 or more, or blank for any."
+    if mode == "fewest-moves" and target is None:
+        return "Fewest moves needs a target %; or choose best balance (← → on the mode)."
+    if mode == "balance" and moves is None:
+        return "Best balance needs a number of moves; or choose fewest moves to a target."
+    budget = moves if isinstance(moves, int) else None
+    if mode == "fewest-moves":
+        return SuggestOptions(
+            target_pct=float(target), max_moves=budget, place_new=True, time_limit_s=TIME_LIMIT_S
+        )
+    if mode == "balance":
+        return SuggestOptions(max_moves=budget, place_new=True, time_limit_s=TIME_LIMIT_S)
+    if mode == "place-new":
+        return SuggestOptions(place_new=True, time_limit_s=TIME_LIMIT_S)
+    return SuggestOptions(relayout=True, time_limit_s=TIME_LIMIT_S)
+
+
+def apply_chosen(
+    schedule: Schedule, s: Suggestion, chosen: set[int]
+) -> tuple[Schedule | None, str]:
+    """``schedule`` with the moves of the circuits ``chosen`` carried out.
+
+    Returns ``(None, reason)`` when that subset does not fit on its own (for
+    example a move into a slot that only another, unchosen move frees).
+    """
+    new = apply_moves(schedule, [m for m in s.moves if m.circuit_index in chosen])
+    issues = check_schedule(new)
+    if issues:
+        return None, f"these moves do not fit on their own: {issues[0].message}"
+    return new, ""
 
 
 class RebalanceScreen(Screen[None]):
-    """Mode fields, a progress line, the work order, before/after, the caution."""
+    """Mode fields, a progress line, the status, the work order, before/after, the caution."""
+
+    DEFAULT_CSS = """
+    RebalanceScreen #rb-moves-table { min-height: 5; }
+    """
 
     BINDINGS: ClassVar[list[BindingType]] = [
         Binding("ctrl+r,f5", "run", "Run", id="rebalance.run"),
@@ -63,11 +132,12 @@ class RebalanceScreen(Screen[None]):
 
     def __init__(self) -> None:
         super().__init__()
-        self.plan: bridge.Plan | None = None
+        self.plan: Suggestion | None = None
+        self.lines: tuple[WorkLine, ...] = ()
+        self.before: Schedule | None = None
         self.chosen: set[int] = set()
         self.cancel_event: threading.Event | None = None
         self.running = False
-        self.figures: tuple[Any, Any] | None = None
 
     def compose(self) -> ComposeResult:
         yield Static("", id="rb-title", classes="title-bar")
@@ -92,18 +162,15 @@ class RebalanceScreen(Screen[None]):
         for widget in self.query(Input):
             widget.cursor_blink = False
         self.query_one("#rb-title", Static).update(
-            Text(f" Rebalance · {app.session.schedule.panel.name}  (Ctrl+R runs, Esc back)")
+            Text(
+                f" Rebalance · {app.session.schedule.panel.name}  (Enter or Ctrl+R runs, Esc back)"
+            )
         )
         table = self.query_one("#rb-moves-table", DataTable)
         table.add_column("Sel", width=3, key="sel")
         table.add_column("#", width=2, key="n")
         table.add_column("Work order", key="what")
-        if bridge.find_entry() is None:
-            self._state(
-                "Waiting for the rebalancer: it is not in this build yet. Everything else works."
-            )
-        else:
-            self._state("Set the mode, then Ctrl+R to run. Tab moves between fields.")
+        self._state("Set the mode, then Enter (or Ctrl+R) runs. Tab moves between fields.")
         self.query_one("#rb-target", Input).focus()
 
     # ------------------------------------------------------------ running
@@ -111,24 +178,12 @@ class RebalanceScreen(Screen[None]):
     def _state(self, text: str) -> None:
         self.query_one("#rb-state", Static).update(Text(text))
 
-    def options(self) -> bridge.Options | str:
+    def options(self) -> SuggestOptions | str:
         """The mode fields as options, or what is wrong with them."""
-        target = parse_number(self.query_one("#rb-target", Input).value)
-        moves = parse_number(self.query_one("#rb-moves", Input).value)
-        if target is not None and (not isinstance(target, int | float) or not 0 < target < 100):
-            return "Target: expected a percent above 0 and below 100, or blank for best balance."
-        if moves is not None and (not isinstance(moves, int) or moves < 0):
-            return "Max moves: expected a whole number, 0 or more, or blank for any."
-        mode = self.query_one("#rb-mode-choice", Cycle).value
-        if mode == "fewest-moves" and target is None:
-            return "Fewest moves needs a target %; or choose best balance (← → on the mode)."
-        if mode == "balance" and moves is None:
-            return "Best balance needs a number of moves; or choose fewest moves to a target."
-        return bridge.Options(
-            target_pct=None if target is None else float(target),
-            max_moves=moves if isinstance(moves, int) else None,
-            place_new=True,
-            mode=mode,
+        return options_from(
+            parse_number(self.query_one("#rb-target", Input).value),
+            parse_number(self.query_one("#rb-moves", Input).value),
+            str(self.query_one("#rb-mode-choice", Cycle).value),
         )
 
     def on_input_submitted(self, event: Input.Submitted) -> None:
@@ -145,14 +200,14 @@ class RebalanceScreen(Screen[None]):
             return
         app: Any = self.app
         self.running = True
-        self.plan = None
+        self.plan, self.lines = None, ()
         self.cancel_event = threading.Event()
         self.query_one("#rb-progress", ProgressBar).update(progress=0.0)
         self._state("Searching… Esc cancels.")
         self._search(app.session.schedule, options, self.cancel_event)
 
     @work(thread=True, exclusive=True, group="rebalance", exit_on_error=False)
-    def _search(self, schedule: Any, options: bridge.Options, cancel: threading.Event) -> None:
+    def _search(self, schedule: Schedule, options: SuggestOptions, cancel: threading.Event) -> None:
         last = [0.0]
 
         def progress(fraction: float | None, text: str) -> None:
@@ -162,14 +217,15 @@ class RebalanceScreen(Screen[None]):
                 self.app.call_from_thread(self.post_message, RebalanceProgress(fraction, text))
 
         try:
-            plan = bridge.run(schedule, options, progress, cancel)
-            figures = (analyse_schedule(schedule), analyse_schedule(plan.after))
-            message = RebalanceDone((plan, figures), None, cancel.is_set())
-        except bridge.RebalancerMissing as exc:
-            message = RebalanceDone(None, str(exc))
+            with native_stdout_to_devnull():
+                result = suggest(schedule, options, progress=progress, cancel=cancel)
+            message = RebalanceDone((schedule, result), None)
+        except Cancelled:
+            message = RebalanceDone(None, None, cancelled=True)
+        except ValueError as exc:  # options the panel cannot take
+            message = RebalanceDone(None, f"Cannot rebalance this panel: {exc}.")
         except Exception as exc:  # shown as a message; the schedule is untouched
-            cancelled = cancel.is_set() or type(exc).__name__ == "Cancelled"
-            message = RebalanceDone(None, None if cancelled else f"{exc}", cancelled)
+            message = RebalanceDone(None, f"The rebalancer stopped: {type(exc).__name__}: {exc}")
         self.app.call_from_thread(self.post_message, message)
 
     def on_rebalance_progress(self, message: RebalanceProgress) -> None:
@@ -182,20 +238,15 @@ class RebalanceScreen(Screen[None]):
         bar = self.query_one("#rb-progress", ProgressBar)
         if message.plan is None:
             bar.update(progress=0.0)
-            if message.cancelled:
-                self._state("Cancelled; nothing changed.")
-            else:
-                self._state(message.error or "The rebalancer gave no plan.")
+            self._state("Cancelled; nothing changed." if message.cancelled else str(message.error))
             return
         bar.update(progress=1.0)
-        plan, figures = message.plan
-        self.plan, self.figures = plan, figures
-        self.chosen = set(range(len(plan.moves)))
-        moves = sum(1 for m in plan.moves if not m.is_placement)
-        placed = len(plan.moves) - moves
-        extra = f", {placed} new circuit(s) placed" if placed else ""
-        note = " (stopped early: best so far)" if message.cancelled else ""
-        self._state(f"{plan.status}: {moves} move(s){extra}{note}. Space selects, a/A apply.")
+        self.before, self.plan = message.plan
+        assert self.before is not None and self.plan is not None
+        self.lines = work_order(self.plan, self.before)
+        self.chosen = {m.circuit_index for m in self.plan.moves}
+        tail = " Space selects, a/A apply." if self.plan.moves else ""
+        self._state(f"{status_words(self.plan)}. {count_words(self.plan)}.{tail}")
         self._show_plan()
         self.query_one("#rb-moves-table", DataTable).focus()
 
@@ -206,60 +257,68 @@ class RebalanceScreen(Screen[None]):
         table.clear()
         assert self.plan is not None
         if not self.plan.moves:
-            table.add_row("", "", Text("No move needed: the panel already meets the target."))
-        for n, step in enumerate(self.plan.steps):
-            sel = "[x]" if step.move in self.chosen else "[ ]"
-            table.add_row(Text(sel), str(n + 1), Text(step.text), key=str(n))
+            table.add_row("", "", Text("No breaker moves are proposed."))
+        for w in self.lines:
+            sel = "[x]" if w.circuit_index in self.chosen else "[ ]"
+            table.add_row(Text(sel), str(w.number), Text(w.brief), key=str(w.number))
         self._show_figures()
 
     def _show_figures(self) -> None:
-        if self.figures is None:
+        s = self.plan
+        if s is None:
             return
-        before, after = self.figures
+        labels = self.before.labels if self.before is not None else ("A", "B", "C")
         t = Text("Engine figures, before → after all moves:\n", style="bold")
-        for pb, pa in zip(before.phases, after.phases, strict=True):
-            t.append(f"{pb.label} {pb.rms_a:.1f} → {pa.rms_a:.1f} A   ")
-        if before.neutral.present:
-            t.append(f"N {before.neutral.rms_a:.1f} → {after.neutral.rms_a:.1f} A")
-        cb, ca = before.current_unbalance, after.current_unbalance
+        for lab, b, a in zip(labels, s.before.phases_rms_a, s.after.phases_rms_a, strict=True):
+            t.append(f"{lab} {fixed(b, 1)} → {fixed(a, 1)} A   ")
+        if s.before.neutral_rms_a or s.after.neutral_rms_a:
+            t.append(f"N {fixed(s.before.neutral_rms_a, 1)} → {fixed(s.after.neutral_rms_a, 1)} A")
+        b, a = s.before, s.after
         t.append(
-            f"\ndeviation {cb.max_deviation_pct:.1f} → {ca.max_deviation_pct:.1f} %   "
-            f"I2/I1 {cb.negative_sequence_pct:.1f} → {ca.negative_sequence_pct:.1f} %"
+            f"\ndeviation {fixed(b.max_deviation_pct, 1)} → {fixed(a.max_deviation_pct, 1)} %"
+            f"   I2/I1 {fixed(b.negative_sequence_pct, 1)} → {fixed(a.negative_sequence_pct, 1)} %"
         )
+        roomy = self.app.size.height >= ROOMY_HEIGHT
+        t.append("\n" + (floor_words(s) if roomy else floor_brief(s)))
+        limits = limits_words(s) if roomy else limits_brief(s)
+        if limits:
+            t.append("\n" + limits, style="bold")
         self.query_one("#rb-figures", Static).update(t)
 
     def action_toggle_move(self) -> None:
         if self.plan is None or not self.plan.moves:
             return
         row = self.query_one("#rb-moves-table", DataTable).cursor_row
-        if not 0 <= row < len(self.plan.steps):
+        if not 0 <= row < len(self.lines):
             return
-        self.chosen ^= {self.plan.steps[row].move}
+        self.chosen ^= {self.lines[row].circuit_index}
         self._show_plan()
         self.query_one("#rb-moves-table", DataTable).move_cursor(row=row)
 
     def _apply(self, chosen: set[int]) -> None:
         app: Any = self.app
         if self.plan is None or not self.plan.moves:
-            self._state("Nothing to apply: run the rebalancer first (Ctrl+R).")
+            self._state("Nothing to apply: run the rebalancer first (Enter or Ctrl+R).")
             return
         if not chosen:
             self._state("No move selected: Space selects, A applies all.")
             return
-        new, reason = bridge.apply_moves(app.session.schedule, self.plan, chosen)
+        new, reason = apply_chosen(app.session.schedule, self.plan, chosen)
         if new is None:
             self._state(f"Not applied: {reason}")
             self.app.bell()
             return
-        n = len(chosen)
-        app.apply(new, f"Rebalance: applied {n} of {len(self.plan.moves)} move(s)")
+        total = len(self.plan.moves)
+        app.apply(
+            new, f"Rebalance: applied {len(chosen)} of {total} move{'s' if total != 1 else ''}"
+        )
         self.app.pop_screen()
 
     def action_apply_selected(self) -> None:
         self._apply(set(self.chosen))
 
     def action_apply_all(self) -> None:
-        self._apply(set(range(len(self.plan.moves))) if self.plan else set())
+        self._apply({m.circuit_index for m in self.plan.moves} if self.plan else set())
 
     def action_cancel_or_back(self) -> None:
         if self.running and self.cancel_event is not None:

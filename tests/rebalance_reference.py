@@ -1,0 +1,197 @@
+"""An independent reference for the rebalancer: every physical arrangement of a small panel.
+
+Nothing here uses :mod:`tri.rebalance`. A two-column panel's free breakers
+(unlocked ones, and new circuits when they are to be placed) are put in
+every possible set of first slots that the panel's geometry allows
+(:mod:`tri.schedule.slots`: a breaker of ``k`` poles takes ``k``
+consecutive rows of one column, no slot twice, locked breakers where they
+are). Each arrangement is a schedule; its figures come from the engine
+itself (:func:`tri.engine.analyse_batch`, all arrangements in one batch),
+and its relocation count is counted here as the work order counts it: a
+placed breaker whose first slot changes is one relocation (a breaker set
+aside in a swap is still one relocation), a new circuit's placement is
+none. The optimum of each mode is then a minimum over this list.
+
+The enumeration walks the slots in increasing number: the lowest slot
+nobody has decided is either left empty (while the panel has empty slots
+to spare) or takes the first pole of a free breaker whose other poles fit
+below it in the same column. Each arrangement is produced exactly once.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, replace
+
+import numpy as np
+
+from tri.engine import analyse_batch
+from tri.engine.inputs import CircuitArrays
+from tri.schedule.model import Schedule
+from tri.schedule.slots import fits, occupied_slots, slot_phases
+from tri.schedule.to_engine import circuit_arrays, connection_of, ratings, system_voltages
+
+
+def free_breakers(schedule: Schedule, mode: str, place_new: bool) -> list[int]:
+    """Circuits whose slot may change, as each mode defines them (README, tri suggest).
+
+    fewest-moves and balance: every unlocked placed breaker, and the new
+    circuits when ``place_new``; place-new: the new circuits only; relayout:
+    every unlocked circuit.
+    """
+    out = []
+    for i, c in enumerate(schedule.circuits):
+        if c.locked and c.is_placed:
+            continue
+        if c.is_placed:
+            if mode != "place-new":
+                out.append(i)
+        elif place_new or mode in ("place-new", "relayout"):
+            out.append(i)
+    return out
+
+
+def arrangements(schedule: Schedule, free: list[int], limit: int = 2_000_000) -> np.ndarray:
+    """Every set of first slots for the ``free`` breakers (int ndarray, shape (A, len(free))).
+
+    Breakers not in ``free`` keep their slots; unplaced circuits not in
+    ``free`` stay unplaced.
+    """
+    spaces = schedule.panel.spaces
+    circuits = schedule.circuits
+    free_set = set(free)
+    taken = set()
+    for i, c in enumerate(circuits):
+        if i not in free_set and c.slot is not None:
+            taken.update(occupied_slots(c.slot, c.poles))
+    poles = [circuits[i].poles for i in free]
+    empties = spaces - len(taken) - sum(poles)
+    out: list[tuple[int, ...]] = []
+    slot_of = [0] * len(free)
+    used = set(taken)
+
+    def walk(cell: int, left: set[int], spare: int) -> None:
+        while cell <= spaces and cell in used:
+            cell += 1
+        if not left:
+            out.append(tuple(slot_of))
+            if len(out) > limit:
+                raise RuntimeError("too many arrangements for the reference")
+            return
+        if cell > spaces:
+            return
+        if spare > 0:
+            used.add(cell)
+            walk(cell + 1, left, spare - 1)
+            used.discard(cell)
+        for k in sorted(left):
+            cells = occupied_slots(cell, poles[k])
+            if not fits(cell, poles[k], spaces) or used.intersection(cells):
+                continue
+            used.update(cells)
+            slot_of[k] = cell
+            walk(cell + 1, left - {k}, spare)
+            used.difference_update(cells)
+
+    if empties >= 0:
+        walk(1, set(range(len(free))), empties)
+    return np.array(out, dtype=int).reshape(len(out), len(free))
+
+
+@dataclass(frozen=True)
+class Enumerated:
+    """Every arrangement with its engine figures.
+
+    Attributes
+    ----------
+    slots : int ndarray, shape (A, F)
+        First slot of each free breaker.
+    relocations : int ndarray, shape (A,)
+        Placed breakers whose first slot changes [-].
+    phase_rms : float ndarray, shape (A, 3)
+        [A], from the engine.
+    neutral_rms : float ndarray, shape (A,)
+        [A], from the engine.
+    deviation_pct : float ndarray, shape (A,)
+        Largest deviation of a phase RMS current from the mean [%], from the engine.
+    """
+
+    slots: np.ndarray
+    relocations: np.ndarray
+    phase_rms: np.ndarray
+    neutral_rms: np.ndarray
+    deviation_pct: np.ndarray
+
+    @property
+    def max_rms(self) -> np.ndarray:
+        """Largest phase RMS current of each arrangement [A]."""
+        return self.phase_rms.max(axis=1)
+
+
+def enumerate_panel(schedule: Schedule, free: list[int]) -> Enumerated:
+    """Every arrangement of ``free`` and its figures (module notes).
+
+    Arrangements that put every breaker on the same phases have the same
+    currents, so the engine runs once per distinct set of phases.
+    """
+    slots = arrangements(schedule, free)
+    n_arr = slots.shape[0]
+    old = [schedule.circuits[i].slot for i in free]
+    moved = np.zeros(n_arr, dtype=int)
+    codes = np.zeros((n_arr, len(free)), dtype=int)
+    first_phase = np.array(
+        [0, *(slot_phases(s, 1)[0] for s in range(1, schedule.panel.spaces + 1))]
+    )
+    for k, _i in enumerate(free):
+        codes[:, k] = first_phase[slots[:, k]]
+        if old[k] is not None:
+            moved += slots[:, k] != old[k]
+    uniq, back = np.unique(codes, axis=0, return_inverse=True)
+    first_slot = np.zeros_like(uniq)
+    for u in range(uniq.shape[0]):
+        first_slot[u] = slots[np.flatnonzero(back.ravel() == u)[0]]
+    rms, neutral, dev = _engine(schedule, free, first_slot)
+    back = back.ravel()
+    return Enumerated(
+        slots=slots,
+        relocations=moved,
+        phase_rms=rms[back],
+        neutral_rms=neutral[back],
+        deviation_pct=dev[back],
+    )
+
+
+def _engine(schedule: Schedule, free: list[int], first_slot: np.ndarray):
+    """Engine figures of the schedules with ``free`` at each row of first slots."""
+    ca = circuit_arrays(schedule)
+    n_arr = first_slot.shape[0]
+    conn = np.tile(ca.connection, (n_arr, 1))
+    pp = np.tile(ca.phase_p, (n_arr, 1))
+    qq = np.tile(ca.phase_q, (n_arr, 1))
+    for k, i in enumerate(free):
+        c = schedule.circuits[i]
+        for s in np.unique(first_slot[:, k]):
+            rows = first_slot[:, k] == s
+            conn[rows, i], pp[rows, i], qq[rows, i] = connection_of(c.at_slot(int(s)))
+    batch = CircuitArrays(
+        s_va=np.tile(ca.s_va, (n_arr, 1)),
+        connection=conn,
+        phase_p=pp,
+        phase_q=qq,
+        harmonics=np.tile(ca.harmonics, (n_arr, 1, 1)),
+        orders=ca.orders,
+        continuous=np.tile(ca.continuous, (n_arr, 1)),
+    )
+    res = analyse_batch(batch, system_voltages(schedule), ratings(schedule))
+    return (
+        np.asarray(res.phase_rms_a).reshape(n_arr, 3),
+        np.asarray(res.neutral_rms_a).reshape(n_arr),
+        np.asarray(res.max_deviation_pct).reshape(n_arr),
+    )
+
+
+def schedule_of(schedule: Schedule, free: list[int], slots: np.ndarray) -> Schedule:
+    """The schedule of one arrangement."""
+    out = schedule
+    for k, i in enumerate(free):
+        out = out.with_circuit(i, replace(out.circuits[i]).at_slot(int(slots[k])))
+    return out

@@ -1,0 +1,240 @@
+"""Smallest largest-phase RMS current within a relocation budget: the loop and its bound.
+
+The model (electrical block, exact slot block with the relocation budget,
+and ``T ≥`` the lower bound of every phase's RMS current from
+:mod:`tri.rebalance.lower_bounds`) is a relaxation: its optimum, or
+HiGHS's dual bound, is a proven lower bound on the largest phase RMS
+current of every plan with at most that many relocations. The floor ``F``
+(:mod:`tri.rebalance.problem`) is another. Each solution is checked
+exactly; the directions of its spectra are added (so the bound is exact
+there, Kelley's cutting planes) and the model must beat the best plan by
+:data:`IMPROVE` the next time. The loop ends when
+
+* the model has no solution below the best plan: the plan is within
+  ``IMPROVE`` of optimal (proven);
+* the best plan is within :data:`PROVEN_GAP` of the bound: optimal;
+* the best plan is within ``stop_gap`` of the bound: good enough as
+  asked, with the bound reported (not called optimal);
+* time runs out: the bound is reported.
+
+This min-max problem is like number partitioning: the bound closes fast
+when many circuits can share the load evenly, and slowly when a few large
+ones decide; ``stop_gap`` keeps the search from chasing the last
+hundredths of a percent.
+"""
+
+from __future__ import annotations
+
+import math
+
+import numpy as np
+
+from tri.rebalance.control import Control
+from tri.rebalance.electrical import add_electrical, add_neutral_cuts, decode_options
+from tri.rebalance.exhaust import best_plans_within, enumeration_fits
+from tri.rebalance.goal import Goal
+from tri.rebalance.lower_bounds import (
+    RESOLUTIONS,
+    add_rms_lower_bounds,
+    phase_reach,
+    unit_spectrum,
+)
+from tri.rebalance.model import Model
+from tri.rebalance.plan_currents import spectra
+from tri.rebalance.plans import Evaluator, Plan
+from tri.rebalance.problem import Problem
+from tri.rebalance.slot_model import add_slots
+from tri.rebalance.target import Outcome, neutral_setup
+
+#: Relative improvement the model must find over the best plan [-].
+IMPROVE = 1e-7
+#: Relative gap at which a plan counts as proven optimal [-].
+PROVEN_GAP = 1e-6
+
+
+class _BalanceSearch:
+    """State of one balance search (module notes)."""
+
+    def __init__(self, pr: Problem, goal: Goal, control: Control, ev: Evaluator):
+        self.pr, self.goal, self.control, self.ev = pr, goal, control, ev
+        self.out = Outcome(plan=None, proven=False, bound=pr.floor_a)
+        self.lower = pr.floor_a
+        self.budget = pr.n_movable if goal.max_moves is None else min(goal.max_moves, pr.n_movable)
+        self.reaches = [phase_reach(pr, p, self.budget) for p in range(3)]
+        self.visited: list[list[np.ndarray]] = [[], [], []]
+        self.nlim, ndirs = neutral_setup(pr, goal)
+        self.ncuts = list(ndirs)
+        self.slice_s = 0.25
+        self.level = 0
+        self.learn(pr.current_assignment())
+
+    @property
+    def best(self) -> float:
+        return math.inf if self.out.plan is None else self.out.plan.max_rms_a
+
+    def learn(self, assign: np.ndarray) -> None:
+        """Directions of a plan's spectra (lower bounds exact there)."""
+        v, n = spectra(self.pr, assign)
+        for p in range(3):
+            u = unit_spectrum(v[p])
+            if u is not None:
+                self.visited[p].append(u)
+        if self.nlim is not None:
+            u = unit_spectrum(np.where(self.pr.orders % 3 == 0, 0.0, n))
+            if u is not None:
+                self.ncuts.append(u)
+
+    def offer(self, plan: Plan | None) -> None:
+        if self.ev.good(plan) and plan is not None and plan.max_rms_a < self.best:
+            self.out.plan = plan
+
+    def model(self):
+        m = Model()
+        el = add_electrical(m, self.pr, self.nlim is not None)
+        sc = add_slots(m, self.pr, el)
+        sc.add_budget(m, self.budget)
+        t = m.var(1, self.lower, np.inf)
+        for p in range(3):
+            res = RESOLUTIONS[self.level]
+            add_rms_lower_bounds(m, self.pr, el, p, [t], self.reaches[p], self.visited[p], res)
+        if self.nlim is not None:
+            add_neutral_cuts(m, el, self.nlim, self.ncuts)
+        if math.isfinite(self.best):
+            m.row([t], [1.0], -np.inf, self.best * (1 - IMPROVE))
+        cost = np.zeros(m.n)
+        cost[t] = 1.0
+        return m, el, sc, cost
+
+    def step(self, stop_gap: float) -> bool:
+        """One model call; False when the loop must stop."""
+        m, el, sc, cost = self.model()
+        self.control.report(
+            f"solver: looking for a plan below {self.best:.2f} A (bound {self.lower:.2f} A)"
+        )
+        sol = m.solve(cost, min(self.slice_s, self.control.remaining()), gap=PROVEN_GAP / 10)
+        self.out.solver_calls += 1
+        if sol.status == "error":
+            self.out.notes.append(f"the solver stopped: {sol.message}")
+            return False
+        if sol.status == "infeasible":  # nothing better than the best plan exists
+            if math.isfinite(self.best):
+                self.lower = max(self.lower, self.best * (1 - IMPROVE))
+            self.out.proven = True
+            return False
+        lb = sol.lower_bound()
+        if lb is not None:
+            self.lower = max(self.lower, lb)
+        if sol.x is None:
+            self.slice_s = 2 * self.slice_s if self.control.can_cancel else 1e9
+            return True
+        a = decode_options(self.pr, sol.x, el.x)
+        stays = np.zeros(self.pr.n_free, dtype=bool)
+        stays[sc.placed] = sc.stays(sol.x)
+        self.learn(a)
+        plan = self.ev.from_solution(a, stays, sc.used_windows(sol.x))
+        if plan is None:  # the slot block is exact: this would be a bug
+            plan = self.ev.plan(a)
+            self.out.notes.append("a solution's slots did not fit and were found again")
+        before = self.best
+        self.offer(plan)
+        if self.best >= before:  # no better plan: finer polygons next time
+            self.level = min(self.level + 1, len(RESOLUTIONS) - 1)
+        if sol.status != "optimal":
+            self.slice_s *= 2
+        return not self.done(stop_gap)
+
+    def count_out(self) -> bool:
+        """Settle the question by listing the best plans, when there are few.
+
+        Every plan within the budget has at most ``budget`` option changes,
+        so it is among those listed (:func:`tri.rebalance.exhaust.best_plans_within`)
+        unless its value is at least the last one listed. Taken in order,
+        the first that meets the goal exactly (its fewest relocations within
+        the budget, :func:`tri.rebalance.realise.realise`) is optimal, provided
+        every one before it was proven not to. Returns True when settled.
+        """
+        if not enumeration_fits(self.pr, self.budget):
+            return False
+        self.control.report("checking every plan")
+        ranked = best_plans_within(
+            self.pr, self.goal.neutral_max_a, self.budget, stop=self.control.stop
+        )
+        if ranked is None:
+            return False
+        sure = True
+        for a, value in zip(ranked.plans, ranked.values, strict=True):
+            if value >= self.best or self.control.stop():
+                break
+            plan = self.ev.plan(a)
+            if self.ev.good(plan):
+                self.offer(plan)
+                break
+            sure = sure and self.ev.proven(a)
+        else:
+            if sure and ranked.values and not ranked.complete:
+                self.lower = max(self.lower, ranked.values[-1] * (1 - 1e-9))
+            if not (sure and ranked.complete):
+                return False
+        if not sure or self.control.stop():
+            return False
+        self.out.proven = True
+        if self.out.plan is not None:
+            self.lower = max(self.lower, self.out.plan.max_rms_a * (1 - 1e-12))
+        return True
+
+    def done(self, stop_gap: float) -> bool:
+        if self.best <= self.lower * (1 + PROVEN_GAP):
+            self.out.proven = True
+            return True
+        return self.best <= self.lower * (1 + stop_gap)
+
+
+def solve_balance(
+    pr: Problem,
+    goal: Goal,
+    control: Control,
+    incumbent: Plan | None,
+    ev: Evaluator,
+    *,
+    stop_gap: float = 1e-3,
+    list_plans: bool = True,
+) -> Outcome:
+    """Minimise the largest phase RMS current within the relocation budget (module notes).
+
+    Parameters
+    ----------
+    pr : Problem
+    goal : Goal
+        ``target`` is ignored; ``max_moves`` (relocations) and ``neutral_max_a`` apply.
+    control : Control
+    incumbent : Plan or None
+        A plan to beat (from the heuristic).
+    ev : Evaluator
+    stop_gap : float
+        Stop once the best plan is within this fraction of the proven bound [-].
+    list_plans : bool
+        Settle small questions by listing every plan (:meth:`_BalanceSearch.count_out`).
+
+    Returns
+    -------
+    Outcome
+        ``bound`` is a proven lower bound on the largest phase RMS current
+        [A]; with no plan and ``proven``, no plan exists at all.
+    """
+    search = _BalanceSearch(pr, goal, control, ev)
+    out = search.out
+    if search.nlim is not None and search.nlim < 0:
+        out.proven = True
+        out.notes.append("triplen harmonics alone exceed the neutral limit")
+        return out
+    search.offer(incumbent)
+    settled = list_plans and search.count_out()
+    if not search.done(stop_gap) and not settled:
+        while not control.stop() and search.step(stop_gap):
+            pass
+    out.bound = max(search.lower, pr.floor_a)
+    if out.plan is not None and out.plan.max_rms_a <= out.bound * (1 + PROVEN_GAP):
+        out.proven = True
+    if out.plan is not None and out.proven:
+        out.bound = min(out.bound, out.plan.max_rms_a)
+    return out

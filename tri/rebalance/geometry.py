@@ -1,0 +1,163 @@
+"""Where the free breakers of a two-column panel can go: free slots, windows, homes.
+
+The geometry is the schedule's (:mod:`tri.schedule.slots`): slot ``n`` is
+on the phase of its row, a breaker of ``k`` poles in slot ``n`` takes
+``n, n + 2, ..., n + 2(k - 1)``. Here it is seen from the rebalancer:
+
+* *fixed* slots are taken by breakers that do not move in this search
+  (locked ones, and in place-new mode every placed one); every other slot
+  of the panel is *open*;
+* a *window* is a first slot where a breaker of 2 or 3 poles fits in open
+  slots; its *kind* is the option it gives (:mod:`tri.rebalance.problem`):
+  the phase of its first row for 2 poles (so the pair A-B, B-C or C-A), 0
+  for 3 poles; windows are listed for the pole counts free breakers have;
+* the *home* of a placed free breaker is the slots it takes now.
+
+Rail boards have no geometry (:func:`slot_geometry` returns None there).
+"""
+
+from __future__ import annotations
+
+from collections.abc import Sequence
+from dataclasses import dataclass
+
+import numpy as np
+
+from tri.schedule.model import Schedule
+from tri.schedule.slots import fits, occupied_slots, slot_phase
+
+
+@dataclass(frozen=True)
+class Window:
+    """A first slot where a multi-pole breaker fits in open slots.
+
+    Attributes
+    ----------
+    first : int
+        First slot [-].
+    poles : int
+        2 or 3 [-].
+    kind : int
+        Option kind it gives: start phase (0, 1, 2) for 2 poles, 0 for 3 [-].
+    cells : tuple of int
+        Every slot the breaker takes.
+    """
+
+    first: int
+    poles: int
+    kind: int
+    cells: tuple[int, ...]
+
+
+@dataclass(frozen=True, eq=False)
+class SlotGeometry:
+    """The open slots, windows and homes of one search (module notes).
+
+    Attributes
+    ----------
+    spaces : int
+        Slots of the panel [-].
+    open_cells : int ndarray, shape (C,)
+        Slots not taken by fixed breakers, increasing.
+    open_per_phase : int ndarray, shape (3,)
+        Open slots on each phase [-].
+    windows : tuple of Window
+        Every window (first slot in increasing order, 2 poles before 3).
+    homes : tuple of (tuple of int or None)
+        Per free breaker (in the problem's order): the slots it takes now,
+        None for a new circuit.
+    """
+
+    spaces: int
+    open_cells: np.ndarray
+    open_per_phase: np.ndarray
+    windows: tuple[Window, ...]
+    homes: tuple[tuple[int, ...] | None, ...]
+
+    def occupant(self) -> dict[int, int]:
+        """Slot -> free breaker (problem index) that holds it now."""
+        out = {}
+        for i, home in enumerate(self.homes):
+            for s in home or ():
+                out[s] = i
+        return out
+
+    def home_first(self, i: int) -> int | None:
+        """First slot of free breaker ``i`` now (None for a new circuit)."""
+        home = self.homes[i]
+        return None if home is None else home[0]
+
+
+def window_kind(first: int, poles: int) -> int:
+    """Option kind of a multi-pole breaker in ``first``: its start phase (2 poles), 0 (3)."""
+    return slot_phase(first) if poles == 2 else 0
+
+
+def slot_geometry(schedule: Schedule, free: Sequence[int]) -> SlotGeometry | None:
+    """The geometry of a search in which the circuits ``free`` may move (module notes).
+
+    Parameters
+    ----------
+    schedule : Schedule
+    free : sequence of int
+        Schedule indices of the free circuits, in the problem's order.
+
+    Returns
+    -------
+    SlotGeometry or None
+        None on a rail board.
+    """
+    if not schedule.panel.uses_slots:
+        return None
+    spaces = schedule.panel.spaces
+    free_set = set(int(i) for i in free)
+    fixed: set[int] = set()
+    for idx, c in enumerate(schedule.circuits):
+        if c.slot is not None and idx not in free_set:
+            fixed.update(occupied_slots(c.slot, c.poles))
+    open_cells = np.array([s for s in range(1, spaces + 1) if s not in fixed], dtype=int)
+    per_phase = np.bincount([slot_phase(int(s)) for s in open_cells], minlength=3)
+    pole_counts = sorted({schedule.circuits[int(i)].poles for i in free} - {1})
+    windows = []
+    for poles in pole_counts:
+        for first in range(1, spaces + 1):
+            cells = occupied_slots(first, poles)
+            if fits(first, poles, spaces) and not fixed.intersection(cells):
+                windows.append(Window(first, poles, window_kind(first, poles), cells))
+    homes = []
+    for i in free:
+        c = schedule.circuits[int(i)]
+        homes.append(None if c.slot is None else occupied_slots(c.slot, c.poles))
+    return SlotGeometry(
+        spaces=spaces,
+        open_cells=open_cells,
+        open_per_phase=per_phase.astype(int),
+        windows=tuple(windows),
+        homes=tuple(homes),
+    )
+
+
+def disjoint_window_counts(geo: SlotGeometry) -> np.ndarray:
+    """Most windows of each type that fit side by side in the open slots (int ndarray, (4,)).
+
+    Types: 2 poles starting on phase A, B, C, and 3 poles. Windows of one
+    type in one column never overlap when their first rows are 3 apart,
+    so per column and type the count is found by a greedy scan of runs of
+    open rows. A bound used by the heuristic's capacity test only.
+    """
+    out = np.zeros(4, dtype=int)
+    open_set = set(geo.open_cells.tolist())
+    for column_first in (1, 2):
+        slots = list(range(column_first, geo.spaces + 1, 2))
+        free = [s in open_set for s in slots]
+        for r in range(len(slots) - 1):
+            if free[r] and free[r + 1]:
+                out[slot_phase(slots[r])] += 1
+        run = 0
+        for f in [*free, False]:
+            if f:
+                run += 1
+            else:
+                out[3] += run // 3
+                run = 0
+    return out

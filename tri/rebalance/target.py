@@ -1,0 +1,280 @@
+"""Fewest relocations that meet a target: the search loop and its proof.
+
+Each round asks for a plan with one relocation fewer than the best known
+(``budget``). The question is answered by
+
+1. counting out every plan with at most ``budget`` *option changes*
+   (:mod:`tri.rebalance.exhaust`), when there are few: a plan with
+   ``budget`` relocations has at most ``budget`` option changes, so when
+   none of them meets the target, none with ``budget`` relocations does;
+   those that do are realised with their fewest relocations
+   (:func:`tri.rebalance.realise.realise`) and kept if within the budget;
+2. otherwise the model of :mod:`tri.rebalance.target_model`, a relaxation
+   that counts relocations exactly: infeasible proves the budget
+   impossible; a solution is checked exactly; one that fails teaches the
+   model (cuts, exact products, finer sectors, finally a no-good cut on
+   its options) and the round repeats.
+
+The proven lower bound is the largest budget plus one shown impossible,
+or the model's own bound (its optimum or HiGHS's dual bound) rounded up.
+``proven`` means the bound reached the plan's relocations (or, with no
+plan, passed the cap).
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass, field
+
+import numpy as np
+
+from tri.rebalance.control import Control
+from tri.rebalance.electrical import decode_options
+from tri.rebalance.exact_square import square_terms
+from tri.rebalance.exhaust import enumeration_fits, plans_within
+from tri.rebalance.goal import Goal
+from tri.rebalance.heuristic import LocalSearch
+from tri.rebalance.model import Solution
+from tri.rebalance.plan_currents import triplen_neutral_a
+from tri.rebalance.plans import Evaluator, Plan
+from tri.rebalance.polygon import polygon_directions
+from tri.rebalance.problem import Problem
+from tri.rebalance.target_model import SECTOR_WIDTHS_DEG, Learnt, build_target_model
+
+
+@dataclass
+class Outcome:
+    """What a search loop found.
+
+    Attributes
+    ----------
+    plan : Plan or None
+        Best plan found, None if none meets the goal.
+    proven : bool
+        The plan is proven optimal (or, with no plan, the goal proven impossible).
+    bound : float or None
+        Proven lower bound on the objective: relocations (target) or the
+        largest phase RMS current [A] (balance).
+    solver_calls : int
+        HiGHS calls made.
+    notes : list of str
+        Plain remarks for the output.
+    """
+
+    plan: Plan | None
+    proven: bool
+    bound: float | None
+    solver_calls: int = 0
+    notes: list[str] = field(default_factory=list)
+
+
+def neutral_setup(pr: Problem, goal: Goal) -> tuple[float | None, list[np.ndarray]]:
+    """Limit on the non-triplen neutral RMS [A] and its first directions.
+
+    The triplen orders of the neutral are the same for every plan
+    (:func:`tri.rebalance.problem.triplen_neutral_a`), so ``||N|| ≤ L`` is
+    ``||N_other|| ≤ sqrt(L² - N_triplen²)``. Returns ``(-1, [])`` when the
+    triplens alone exceed the limit.
+    """
+    if goal.neutral_max_a is None or not pr.has_neutral:
+        return None, []
+    trip = triplen_neutral_a(pr)
+    if trip > goal.neutral_max_a:
+        return -1.0, []
+    dirs = []
+    for d in polygon_directions(36):
+        u = np.zeros(pr.orders.size, dtype=complex)
+        u[0] = d
+        dirs.append(u)
+    return math.sqrt(goal.neutral_max_a**2 - trip**2), dirs
+
+
+class _TargetSearch:
+    """State of one fewest-relocations search (module notes)."""
+
+    def __init__(
+        self, pr: Problem, goal: Goal, control: Control, ev: Evaluator, list_plans: bool = True
+    ):
+        assert goal.target is not None
+        self.list_plans = list_plans
+        self.pr, self.goal, self.control, self.ev = pr, goal, control, ev
+        self.cap = pr.n_movable if goal.max_moves is None else min(goal.max_moves, pr.n_movable)
+        self.out = Outcome(plan=None, proven=False, bound=0.0)
+        self.lower = 0
+        self.level = 0
+        self.learnt = Learnt()
+        self.counted_out: set[int] = set()
+        self.slice_s = 0.5
+        self.nlim, self.ndirs = neutral_setup(pr, goal)
+        self.squares = square_terms(pr)
+
+    @property
+    def best_k(self) -> int | None:
+        return None if self.out.plan is None else self.out.plan.relocations
+
+    def offer(self, plan: Plan | None) -> bool:
+        """Keep ``plan`` if it meets the goal with fewer relocations than the best."""
+        if not self.ev.good(plan):
+            return False
+        assert plan is not None
+        if self.best_k is None or plan.relocations < self.best_k:
+            self.out.plan = plan
+            return True
+        return False
+
+    def count_out(self, budget: int) -> bool | None:
+        """Step 1 of the module notes: True if a better plan was found, False if the
+        question is settled (the best plan proven optimal, or the budget impossible),
+        None if undecided."""
+        self.counted_out.add(budget)
+        what = f"at most {budget} phase change{'s' if budget != 1 else ''}"
+        self.control.report(f"checking every plan with {what}")
+        counted = plans_within(
+            self.pr, self.goal.target, self.goal.neutral_max_a, budget, self.control.stop
+        )
+        if counted is None:
+            return None
+        improved, settled = False, counted.complete
+        for a, changes in zip(counted.plans, counted.changes, strict=True):
+            if self.best_k is not None and changes >= self.best_k:
+                break  # listed by changes: no later plan has fewer relocations
+            if self.control.stop():
+                return True if improved else None
+            plan = self.ev.plan(a)
+            settled = settled and self.ev.proven(a)
+            if plan is not None and plan.relocations <= budget and self.offer(plan):
+                improved = True
+        if settled:
+            # every plan with at most `budget` relocations was listed and realised exactly
+            self.lower = max(self.lower, budget + 1 if self.best_k is None else self.best_k)
+            return False
+        return True if improved else None
+
+    def ask_model(self, budget: int) -> bool:
+        """Step 2 of the module notes; False when the loop must stop."""
+        tm = build_target_model(
+            self.pr,
+            self.goal.target,
+            budget,
+            self.level,
+            self.learnt,
+            self.nlim,
+            self.ndirs,
+            self.squares,
+        )
+        what = f"at most {budget} relocation{'s' if budget != 1 else ''}"
+        self.control.report(f"solver: looking for a plan with {what}")
+        c = self.control
+        span = min(self.slice_s, c.remaining()) if c.can_cancel else c.remaining()
+        sol = tm.model.solve(
+            tm.cost,
+            span,
+            gap=0.0,
+            presolve=self.best_k is not None,
+            heuristics=self.best_k is None,
+        )
+        self.out.solver_calls += 1
+        if sol.status == "error":
+            self.out.notes.append(f"the solver stopped: {sol.message}")
+            return False
+        if sol.status == "infeasible":
+            self.lower = budget + 1
+            return False
+        self._raise_lower(sol, tm.offset)
+        if sol.x is None:
+            self.slice_s *= 2
+            return True
+        return self._proposal(sol, tm, budget)
+
+    def _raise_lower(self, sol: Solution, offset: float) -> None:
+        lb = sol.lower_bound()
+        if lb is not None:
+            self.lower = max(self.lower, math.ceil(lb + offset - 1e-6))
+
+    def _proposal(self, sol: Solution, tm, budget: int) -> bool:
+        assert sol.x is not None
+        a = decode_options(self.pr, sol.x, tm.electrical.x)
+        stays = np.zeros(self.pr.n_free, dtype=bool)
+        stays[tm.slots.placed] = tm.slots.stays(sol.x)
+        plan = self.ev.from_solution(a, stays, tm.slots.used_windows(sol.x))
+        if plan is None:  # the slot block is exact: this would be a bug
+            plan = self.ev.plan(a)
+            self.out.notes.append("a solution's slots did not fit and were found again")
+        if self.offer(plan):
+            return True
+        self.learnt.learn(self.pr, a)
+        if self.offer(self._repair(a, budget)):
+            return True
+        if self.level + 1 < len(SECTOR_WIDTHS_DEG):
+            self.level += 1
+        else:
+            self.learnt.nogoods.append(a)
+        return True
+
+    def _repair(self, a: np.ndarray, budget: int) -> Plan | None:
+        goal = Goal(self.goal.target, self.goal.neutral_max_a, budget)
+        ls = LocalSearch(self.pr, goal, self.control, a)
+        ls.descend(max_steps=4 * max(1, budget) + 10)
+        ls.prune()
+        plan = self.ev.plan(ls.assign)
+        return plan if plan is not None and plan.relocations <= budget else None
+
+    def run(self) -> Outcome:
+        while not self.control.stop():
+            budget = self.cap if self.best_k is None else min(self.cap, self.best_k - 1)
+            if budget < self.lower:
+                break
+            listable = self.list_plans and enumeration_fits(self.pr, budget)
+            if budget not in self.counted_out and listable:
+                decided = self.count_out(budget)
+                if decided is False:
+                    break
+                if decided is True:
+                    continue
+            if not self.ask_model(budget):
+                break
+        out = self.out
+        out.bound = float(self.lower)
+        if out.plan is not None:
+            out.proven = self.lower >= out.plan.relocations
+        else:
+            out.proven = self.lower > self.cap
+        return out
+
+
+def solve_target(
+    pr: Problem,
+    goal: Goal,
+    control: Control,
+    incumbent: Plan | None,
+    ev: Evaluator,
+    *,
+    list_plans: bool = True,
+) -> Outcome:
+    """Fewest relocations that meet the target (module notes).
+
+    Parameters
+    ----------
+    pr : Problem
+    goal : Goal
+        ``target`` (fraction), optional ``neutral_max_a`` and ``max_moves``.
+    control : Control
+    incumbent : Plan or None
+        A plan that meets the goal (from the heuristic).
+    ev : Evaluator
+        Exact checks.
+    list_plans : bool
+        Settle small budgets by listing every plan (step 1).
+
+    Returns
+    -------
+    Outcome
+        ``bound`` is a proven lower bound on the relocations.
+    """
+    search = _TargetSearch(pr, goal, control, ev, list_plans)
+    if search.nlim is not None and search.nlim < 0:
+        search.out.proven = True
+        search.out.notes.append("triplen harmonics alone exceed the neutral limit")
+        return search.out
+    search.offer(incumbent)
+    return search.run()

@@ -1,0 +1,256 @@
+"""A rebalancer suggestion in words: the one work order the command line, JSON and the UI share.
+
+:func:`work_order` turns a :class:`~tri.rebalance.Suggestion` into
+:class:`WorkLine` steps (action, circuit, from, to, a full sentence and a
+brief one for narrow screens); :func:`status_words`, :func:`count_words`,
+:func:`floor_words` and :func:`limits_words` are the status, count, floor
+and rating sentences. The status words say exactly what was proven, on the
+objective the output names (relocations as the work order counts them, or
+the engine's largest phase RMS current). Every face of ``tri suggest``
+uses these: the text work order and the JSON (:mod:`tri.report.suggest`)
+and the terminal UI's rebalance screen.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+from tri.rebalance import Move, Suggestion
+from tri.rebalance.options import plural
+from tri.schedule.model import Schedule
+
+
+def fixed(value: float, digits: int) -> str:
+    """``value`` with ``digits`` decimals, never a negative zero (``-0.0`` reads as ``0.0``)."""
+    text = f"{value:.{digits}f}"
+    return text[1:] if text.startswith("-") and float(text) == 0.0 else text
+
+
+@dataclass(frozen=True)
+class WorkLine:
+    """One numbered step of the work order.
+
+    Attributes
+    ----------
+    number : int
+        Step number, from 1.
+    action : str
+        ``move``, ``take-out``, ``install``, ``place``, ``reconnect`` or ``connect``.
+    circuit_index : int
+        Index of the circuit in the schedule.
+    circuit : str
+        Its name.
+    poles : int
+    here, there : str
+        Where it is and where it goes, e.g. ``"slot 16 (phases BC)"``.
+    changes_phase : bool
+        False when the breaker only makes room (same phases).
+    sentence : str
+        The step as the command line prints it.
+    brief : str
+        The same step in fewer words, for an 80-column screen.
+    """
+
+    number: int
+    action: str
+    circuit_index: int
+    circuit: str
+    poles: int
+    here: str
+    there: str
+    changes_phase: bool
+    sentence: str
+    brief: str
+
+
+def _where(schedule: Schedule, slot: int | None, phases: tuple[int, ...] | None) -> str:
+    ph = schedule.phase_text(phases) if phases is not None else "-"
+    word = "phase" if phases is not None and len(phases) == 1 else "phases"
+    if slot is None:
+        return f"{word} {ph}"
+    return f"slot {slot} ({word} {ph})"
+
+
+def _short(schedule: Schedule, slot: int | None, phases: tuple[int, ...] | None) -> str:
+    ph = schedule.phase_text(phases) if phases is not None else "-"
+    return ph if slot is None else f"slot {slot} ({ph})"
+
+
+def _sentences(action: str, m: Move, before: Schedule) -> tuple[str, str]:
+    name = f'"{m.circuit}" ({m.poles}-pole)'
+    here, there = _where(before, m.from_slot, m.from_phases), _where(before, m.to_slot, m.to_phases)
+    a, b = _short(before, m.from_slot, m.from_phases), _short(before, m.to_slot, m.to_phases)
+    nm = f'"{m.circuit}"'
+    if action == "move":
+        text = f"Move breaker {name} from {here} to {there}."
+        brief = f"Move {nm}: {a} → {b}"
+        if not m.changes_phase:
+            text += " Same phases: this only makes room."
+            brief += ", makes room"
+        return text, brief
+    if action == "take-out":
+        return (
+            f"Take out breaker {name} from {here} and set it aside (a swap).",
+            f"Take out {nm} from {a}, set it aside",
+        )
+    if action == "install":
+        return (
+            f"Install the set-aside breaker {name} in {there}.",
+            f"Install set-aside {nm} in {b}",
+        )
+    if action == "place":
+        return (f"Install the new circuit's breaker {name} in {there}.", f"Place new {nm} in {b}")
+    if action == "connect":
+        return (f"Connect the new circuit {name} to {there}.", f"Connect new {nm} to {b}")
+    return (f"Reconnect circuit {name} from {here} to {there}.", f"Reconnect {nm}: {a} → {b}")
+
+
+def work_order(s: Suggestion, before: Schedule) -> tuple[WorkLine, ...]:
+    """The numbered steps of the work order, in the order to do them."""
+    by_index: dict[int, Move] = {m.circuit_index: m for m in s.moves}
+    out = []
+    for n, st in enumerate(s.steps, start=1):
+        m = by_index[st.circuit_index]
+        text, brief = _sentences(st.action, m, before)
+        out.append(
+            WorkLine(
+                number=n,
+                action=st.action,
+                circuit_index=m.circuit_index,
+                circuit=m.circuit,
+                poles=m.poles,
+                here=_where(before, m.from_slot, m.from_phases),
+                there=_where(before, m.to_slot, m.to_phases),
+                changes_phase=m.changes_phase,
+                sentence=text,
+                brief=brief,
+            )
+        )
+    return tuple(out)
+
+
+def _scope(s: Suggestion) -> str:
+    """Which plans a balance claim is about."""
+    if s.mode == "balance":
+        scope = f"with at most {plural(s.max_moves or 0, 'breaker')} relocated"
+    elif s.mode == "place-new":
+        scope = "placing the new circuits in free slots"
+    else:
+        scope = "of any arrangement"
+    if s.neutral_max_a is not None:
+        scope += f" and the neutral at or below {s.neutral_max_a:g} A"
+    return scope
+
+
+def _goal(s: Suggestion) -> str:
+    """What a fewest-moves plan must meet."""
+    if s.neutral_max_a is None:
+        return "the target"
+    return f"the target and the neutral limit of {s.neutral_max_a:g} A"
+
+
+def status_words(s: Suggestion) -> str:
+    """The status as a sentence: exactly what was proven, on the objective the output names."""
+    if s.mode == "fewest-moves":
+        return _fewest_words(s)
+    scope = _scope(s)
+    if s.status == "optimal":
+        return (
+            f"optimal: proven that no plan {scope} has a smaller largest phase RMS current "
+            "(to within 0.0001 %)"
+        )
+    if s.status == "already-balanced":
+        return (
+            f"already balanced: proven that no plan {scope} has a smaller largest phase RMS "
+            "current; no move needed"
+        )
+    if s.status == "infeasible":
+        return "no plan fits (proven); nothing is proposed"
+    text = "best found, not proven optimal"
+    if s.bound is not None:
+        top = s.after.max_phase_rms_a
+        gap = 100.0 * (top / s.bound - 1.0) if s.bound > 0 else 0.0
+        text += (
+            f"; proven: no plan {scope} brings the largest phase below {fixed(s.bound, 2)} A "
+            f"(this plan is {fixed(gap, 3)} % above)"
+        )
+    if s.stop_gap > 0 and s.bound is not None:
+        text += f"; the search stops within {s.stop_gap * 100:g} % of the bound"
+    return text
+
+
+def _fewest_words(s: Suggestion) -> str:
+    budget = f" with at most {plural(s.max_moves, 'relocation')}" if s.max_moves is not None else ""
+    goal = _goal(s)
+    if s.status == "already-balanced":
+        return f"already balanced: the panel meets {goal} as it is; no move needed"
+    if s.status == "optimal":
+        return f"optimal: proven that no plan with fewer breakers relocated meets {goal}"
+    if s.status == "infeasible":
+        return (
+            f"target out of reach (proven): no plan{budget} meets {goal}; shown: the best "
+            "balance found"
+        )
+    bound = round(s.bound or 0)
+    proven = (
+        f"proven: no plan with fewer than {plural(bound, 'relocation')} meets {goal}"
+        if bound > 0
+        else "no lower bound on the relocations was proven"
+    )
+    if s.target_met:
+        return f"best found in the time limit, not proven optimal; {proven}"
+    return (
+        f"no plan{budget} meeting {goal} was found in the time limit (not proven "
+        f"impossible); {proven}; shown: the best balance found"
+    )
+
+
+def count_words(s: Suggestion) -> str:
+    """``"2 breakers relocated, 1 new circuit placed"`` (real plurals)."""
+    text = f"{plural(s.relocations, 'breaker')} relocated"
+    placed = sum(1 for m in s.moves if m.is_placement)
+    if placed:
+        text += f", {plural(placed, 'new circuit')} placed"
+    return text
+
+
+def floor_words(s: Suggestion) -> str:
+    """How close the largest phase comes to the floor no arrangement can go below."""
+    top = s.after.max_phase_rms_a
+    gap = 100.0 * (top - s.floor_a) / s.floor_a if s.floor_a > 0 else 0.0
+    return (
+        f"No arrangement can bring the largest phase below {fixed(s.floor_a, 1)} A (its share "
+        f"of the positive-sequence current, harmonics included); after the moves it is "
+        f"{fixed(top, 1)}\u00a0A, {fixed(gap, 2)}\u00a0% above."
+    )
+
+
+def floor_brief(s: Suggestion) -> str:
+    """:func:`floor_words` in fewer words, for a small screen."""
+    top = s.after.max_phase_rms_a
+    gap = 100.0 * (top - s.floor_a) / s.floor_a if s.floor_a > 0 else 0.0
+    return (
+        f"Floor {fixed(s.floor_a, 1)} A (no arrangement goes below it); largest phase after: "
+        f"{fixed(top, 1)} A, {fixed(gap, 2)} % above."
+    )
+
+
+def limits_brief(s: Suggestion) -> str | None:
+    """:func:`limits_words` in fewer words, for a small screen (the findings counted)."""
+    n = len(s.after.limits)
+    if not n:
+        return None
+    return (
+        f"Still over a rating after the moves: {plural(n, 'finding')} (balancing alone does "
+        "not fix it; see the findings, f, or tri report)."
+    )
+
+
+def limits_words(s: Suggestion) -> str | None:
+    """Ratings still exceeded after the moves, or None."""
+    if not s.after.limits:
+        return None
+    return (
+        "Still over a rating after the moves (balancing alone does not fix it; see tri "
+        "report): " + " ".join(s.after.limits)
+    )
