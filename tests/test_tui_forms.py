@@ -172,28 +172,28 @@ async def test_circuit_form_checks_every_pole_when_poles_change(small: Path) -> 
         assert app.screen is form
 
 
-async def test_circuit_form_keeps_a_breakers_legs_and_refuses_a_new_sum(tmp_path: Path) -> None:
-    """The demo heater's three 240 V elements (3000 + 3000 + 1500 VA) show as 7500 VA: an
-    unchanged form keeps the legs; a new load, which the legs would override, is refused."""
+async def test_circuit_form_edits_a_breakers_legs(tmp_path: Path) -> None:
+    """The demo heater's three 240 V elements (3000, 3000, 1500 VA) show leg by leg; the form
+    edits them, and the loader's own rules judge their count against the poles."""
     demo = Path(__file__).resolve().parents[1] / "panels_demo" / "woodshop_240d.toml"
     target = tmp_path / "w.toml"
     target.write_text(demo.read_text())
     app = TriApp(target, journal=False)
     async with app.run_test(size=(80, 24)) as pilot:
         form = await open_on(pilot, "Drying room heater", "e")
-        assert form.values()["load"] == "7500" and form.problems == {}
-        await set_field(pilot, form, "load", "9000")
-        assert "one load per leg (3000 + 3000 + 1500 VA)" in form.problems["load"]
+        assert form.values()["load"] == "3000/3000/1500" and form.problems == {}
+        await set_field(pilot, form, "load", "3000/3000")  # two legs on a 3-pole breaker
+        assert "load" in form.problems or "" in form.problems
         await pilot.press("enter")
         await pilot.pause()
-        assert app.screen is form
-        await set_field(pilot, form, "load", "7500")
+        assert app.screen is form, "a refused Enter keeps the form open"
+        await set_field(pilot, form, "load", "3000/3000/3000")
         await set_field(pilot, form, "breaker_a", "30")
         assert form.problems == {}
         await pilot.press("ctrl+s")
         await settle(pilot)
         c = app.session.schedule.circuits[index_of(app, "Drying room heater")]
-        assert (c.leg_values, c.breaker_a) == ((3000.0, 3000.0, 1500.0), 30)
+        assert (c.leg_values, c.load_value, c.breaker_a) == ((3000.0, 3000.0, 3000.0), 9000.0, 30)
 
 
 async def test_circuit_form_refuses_bad_values_with_the_loaders_reasons(small: Path) -> None:

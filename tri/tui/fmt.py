@@ -46,6 +46,8 @@ def load_text(circuit: Circuit) -> str:
     """The load as the schedule gives it, with its unit (``"feeder"`` for a feeder circuit)."""
     if circuit.feed is not None:
         return "feeder"
+    if circuit.spare:
+        return "spare"
     if circuit.load_kind == "a":
         return f"{circuit.load_value:g} A"
     return power(circuit.load_value, "VA" if circuit.load_kind == "va" else "W")
@@ -53,7 +55,7 @@ def load_text(circuit: Circuit) -> str:
 
 def pf_text(circuit: Circuit) -> str:
     """``"0.95"`` (lagging) or ``"0.90ld"`` (leading); ``"1"`` for unity; ``"-"`` for a feeder."""
-    if circuit.feed is not None:
+    if circuit.feed is not None or circuit.spare:
         return "-"
     if circuit.pf >= 0.9995:
         return "1"

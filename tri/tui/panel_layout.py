@@ -52,8 +52,12 @@ class Position:
 
 
 def position_phase(schedule: Schedule, slot: int) -> int:
-    """Phase index of ``slot``, as the schedule's slot geometry gives it."""
-    return geometry.slot_phase(slot)
+    """Phase index of ``slot``, as the schedule's slot geometry gives it for this panel.
+
+    The right column's order counts: on a ``right_column = "CBA"`` panel the
+    even slots read C, B, A from the top.
+    """
+    return geometry.slot_phase(slot, schedule.panel.right_column)
 
 
 def slot_owners(schedule: Schedule) -> dict[int, tuple[int, int]]:

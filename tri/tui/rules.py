@@ -39,7 +39,7 @@ def moved(
     """Circuit ``index`` at ``slot`` (two-column) or on ``phases`` (rail board)."""
     c = schedule.circuits[index]
     if schedule.panel.uses_slots:
-        return c.at_slot(slot)
+        return schedule.placed(c.at_slot(slot))  # the phases as this panel is built
     return c.on_phases(phases)
 
 

@@ -157,6 +157,9 @@ def circuit_details(schedule: Schedule, index: int) -> str:
     else:
         parts.append(f"{c.poles}-pole, not placed")
     parts.append("no rating given" if c.breaker_a is None else f"{c.breaker_a:g} A breaker")
+    from tri.tui.wiring_words import wiring_details
+
+    parts += wiring_details(index, schedule)
     if c.feed is not None:
         tx = c.feed.transformer
         through = "" if tx is None else f" through a {tx.kva:g} kVA {tx.connection} transformer"

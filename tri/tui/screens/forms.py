@@ -1,4 +1,4 @@
-"""The edit forms: circuit, panel, supply and readings.
+"""The edit forms: move, panel, supply and readings (the circuit form is in :mod:`circuit_form`).
 
 Each validator builds the same plain data a TOML file would hold and runs the
 schedule loader's own readers (``read_circuit``, ``read_panel`` ...) and
@@ -12,28 +12,20 @@ from collections.abc import Callable
 from dataclasses import replace
 from typing import Any
 
-from tri.engine.profiles import BUILTIN_PROFILES
 from tri.schedule.model import Circuit, PanelInfo, Schedule
 from tri.schedule.read_circuit import read_circuit
 from tri.schedule.read_panel import read_panel
 from tri.schedule.read_readings import read_readings
 from tri.schedule.read_supply import read_supply
 from tri.schedule.reader import Reader
-from tri.schedule.slots import RIGHT_ABC, TWO_COLUMN
+from tri.schedule.slots import RIGHT_ABC, RIGHT_COLUMN_ORDERS, TWO_COLUMN
 from tri.schedule.systems import SYSTEMS
 from tri.schedule.validate import check_schedule
 from tri.tui.fmt import parse_number
-from tri.tui.rules import move_problems, move_summary, new_problems
+from tri.tui.rules import move_problems, move_summary
+from tri.tui.screens.circuit_form import circuit_form
 from tri.tui.screens.form import Field, FormScreen, Values
 from tri.tui.wording import circuit_label, issue_words, plural
-
-#: The circuit keys the circuit form edits; any other key of the circuit is kept.
-FORM_KEYS = (
-    "name", "slot", "phases", "poles", "load_kind", "load_value", "pf",
-    "leading", "profile", "continuous", "locked", "breaker_a", "note",
-)  # fmt: skip
-
-LOAD_UNITS = (("VA", "va"), ("W", "w"), ("A", "a"))
 
 
 def _num_text(value: float | None) -> str:
@@ -53,155 +45,6 @@ def _put(raw: dict[str, Any], key: str, text: str) -> None:
     value = parse_number(text)
     if value is not None:
         raw[key] = value
-
-
-# ---------------------------------------------------------------- circuit
-
-
-def _circuit_fields(schedule: Schedule, c: Circuit) -> list[Field]:
-    """The circuit form's fields, filled from ``c``."""
-    panel = schedule.panel
-    place = (
-        Field("slot", "Slot", _num_text(c.slot), hint=f"1..{panel.spaces}, blank = not placed")
-        if panel.uses_slots
-        else Field(
-            "phases",
-            "Phases",
-            "" if c.phases is None else schedule.phase_text(c.phases),
-            hint=f"e.g. {panel.phase_labels[0]} or {''.join(panel.phase_labels[1:])}",
-        )
-    )
-    profiles = [*BUILTIN_PROFILES, *(p.name for p in schedule.profiles)]
-    if c.profile not in profiles:
-        profiles.append(c.profile)
-    if c.feed is not None:
-        return _feeder_fields(c, place)
-    return [
-        Field("name", "Name", c.name, hint="purpose, as in the panel directory"),
-        place,
-        Field(
-            "poles",
-            "Poles",
-            str(c.poles),
-            kind="choice",
-            choices=(("1", "1"), ("2", "2"), ("3", "3")),
-        ),
-        Field("load", "Load", _num_text(c.load_value), hint="number, e.g. 1200 or 1.2k"),
-        Field("unit", "Load unit", c.load_kind, kind="choice", choices=LOAD_UNITS),
-        Field("pf", "Power factor", _num_text(c.pf), hint="0 < pf ≤ 1"),
-        Field("leading", "Leading PF", c.leading, kind="bool"),
-        Field(
-            "profile",
-            "Harmonics",
-            c.profile,
-            kind="choice",
-            choices=tuple((p, p) for p in profiles),
-        ),
-        Field("continuous", "Continuous", c.continuous, kind="bool"),
-        Field("locked", "Locked", c.locked, kind="bool"),
-        Field("breaker_a", "Breaker A", _num_text(c.breaker_a), hint="rating, optional"),
-        Field("note", "Note", c.note, hint="optional"),
-    ]
-
-
-def _feeder_fields(c: Circuit, place: Field) -> list[Field]:
-    """A feeder circuit's fields: its load is the panel it feeds, so only these are edited."""
-    return [
-        Field("name", "Name", c.name, hint="purpose, as in the panel directory"),
-        place,
-        Field("feeds", "Feeds", c.feed.path if c.feed else "", disabled=True),
-        Field("continuous", "Continuous", c.continuous, kind="bool"),
-        Field("locked", "Locked", c.locked, kind="bool"),
-        Field("breaker_a", "Breaker A", _num_text(c.breaker_a), hint="rating, optional"),
-        Field("note", "Note", c.note, hint="optional"),
-    ]
-
-
-def _circuit_raw(values: Values, c: Circuit, slots: bool) -> tuple[dict[str, Any], dict[str, str]]:
-    """The circuit table the form's values make, as a file would hold it (or a problem)."""
-    raw: dict[str, Any] = {"name": values["name"]}
-    if slots:
-        _put(raw, "slot", values["slot"])
-    elif values["phases"].strip():
-        raw["phases"] = values["phases"].strip()
-    if c.feed is not None:
-        raw["feeds"] = c.feed.path  # its load is the panel it feeds; poles stay 3
-        raw["poles"] = c.poles
-    else:
-        raw["poles"] = int(values["poles"])
-        load = parse_number(values["load"])
-        if load is None:
-            return raw, {"load": "missing; type the load as a number (unit below)"}
-        raw[f"load_{values['unit']}"] = load
-        _put(raw, "pf", values["pf"])
-        raw["leading"] = bool(values["leading"])
-        raw["profile"] = values["profile"]
-    raw["continuous"] = bool(values["continuous"])
-    raw["locked"] = bool(values["locked"])
-    _put(raw, "breaker_a", values["breaker_a"])
-    if values["note"].strip():
-        raw["note"] = values["note"].strip()
-    return raw, {}
-
-
-def circuit_form(schedule: Schedule, index: int | None, base: Circuit | None = None) -> FormScreen:
-    """Edit circuit ``index`` (``None``: a new circuit, prefilled from ``base``)."""
-    panel = schedule.panel
-    c = base if base is not None else (schedule.circuits[index] if index is not None else None)
-    c = c or Circuit(name="", load_value=0.0)
-    slots = panel.uses_slots
-    fields = _circuit_fields(schedule, c)
-    position = index if index is not None else len(schedule.circuits)
-    keys = {f.key for f in fields}
-
-    def validate(values: Values) -> tuple[Circuit | None, dict[str, str]]:
-        raw, missing = _circuit_raw(values, c, slots)
-        if missing:
-            return None, missing
-        reader = Reader(None, None)
-        parsed = read_circuit(reader, raw, position, panel)
-        problems = _issues_by_key(reader)
-        if "load_va" in problems or "load_w" in problems or "load_a" in problems:
-            problems["load"] = next(
-                problems.pop(k) for k in ("load_va", "load_w", "load_a") if k in problems
-            )
-        if parsed is None:
-            return None, problems or {"": "not a valid circuit"}
-        # Only what the form shows is replaced: keys it does not show stay as they were.
-        circuit = replace(c, **{k: getattr(parsed, k) for k in FORM_KEYS})
-        legs = _legs_problem(c, circuit)
-        if legs:
-            problems.setdefault("load", legs)
-        if index is None:
-            candidate = schedule.with_added(circuit)
-        else:
-            candidate = schedule.with_circuit(index, circuit)
-        for key, text in new_problems(schedule, candidate, position):
-            problems.setdefault(key if key in keys else "", text)
-        return (None if problems else circuit), problems
-
-    title = "Add a circuit" if index is None else f"Edit {circuit_label(schedule, index)}"
-    return FormScreen(title, fields, validate)
-
-
-def _legs_problem(before: Circuit, after: Circuit) -> str | None:
-    """A breaker with one load per leg keeps its legs, which the form shows as one sum:
-    a changed load, unit or pole count would be shown but not used, so it is refused."""
-    if before.leg_values is None:
-        return None
-    same = (after.load_value, after.load_kind, after.poles) == (
-        before.load_value,
-        before.load_kind,
-        before.poles,
-    )
-    if same:
-        return None
-    unit = {"va": "VA", "w": "W", "a": "A"}[before.load_kind]
-    shown = " + ".join(f"{x:g}" for x in before.leg_values)
-    return (
-        f"this breaker has one load per leg ({shown} {unit}); the form edits one number, so "
-        "change the legs (load and poles) in the file"
-    )
 
 
 def move_form(schedule: Schedule, index: int) -> FormScreen:
@@ -228,7 +71,7 @@ def move_form(schedule: Schedule, index: int) -> FormScreen:
             value = parse_number(text)
             if not isinstance(value, int) or isinstance(value, bool):
                 return None, {"slot": f"found {text!r}, expected a whole slot number"}
-            target = c.at_slot(value)
+            target = schedule.placed(c.at_slot(value))
         else:
             reader = Reader(None, None)
             raw = {"name": c.name, "phases": text, "poles": c.poles, "load_va": 0}
@@ -260,21 +103,41 @@ def move_form(schedule: Schedule, index: int) -> FormScreen:
 # ---------------------------------------------------------------- panel
 
 
-def _unshown_panel_keys(p: PanelInfo, system: str, labels: list[str]) -> dict[str, Any]:
-    """The ``[panel]`` keys the form does not show, as the file holds them, so they are kept
-    (and checked again by the loader): the source marking, the right column's order, the
-    reach limit, and a high leg on C while the system stays a high-leg delta."""
-    out: dict[str, Any] = {}
-    if p.fed_from is not None:
-        out["fed_from"] = p.fed_from
-    if p.right_column != RIGHT_ABC:
-        out["right_column"] = p.right_column
-    if p.max_row_shift is not None:
-        out["max_row_shift"] = p.max_row_shift
-    delta = system in SYSTEMS and SYSTEMS[system].high_leg_delta
-    if delta and p.high_leg is not None and len(labels) == 3:
-        out["high_leg"] = labels[p.high_leg]
-    return out
+def _wiring_fields(p: PanelInfo) -> list[Field]:
+    """The ``[panel]`` keys of panels as they are wired: high leg, right column, source, reach."""
+    slots = p.layout == TWO_COLUMN
+    orders = tuple((f"{o} (right column from the top)", o) for o in RIGHT_COLUMN_ORDERS)
+    high = "" if p.high_leg in (None, 1) else p.phase_labels[p.high_leg]
+    return [
+        Field("high_leg", "High leg", high, hint=f"240/120D: blank = {p.phase_labels[1]}"),
+        Field(
+            "right_column",
+            "Right column",
+            p.right_column,
+            kind="choice",
+            choices=orders,
+            disabled=not slots,
+        ),
+        Field("fed_from", "Fed from", p.fed_from or "", hint="source marking, optional"),
+        Field(
+            "max_row_shift",
+            "Reach rows",
+            _num_text(p.max_row_shift),
+            hint="rows a breaker may move, optional",
+            disabled=not slots,
+        ),
+    ]
+
+
+def _put_wiring(raw: dict[str, Any], values: Values, p: PanelInfo) -> None:
+    """The wiring keys typed, as the file would hold them (blank: not given)."""
+    for key in ("high_leg", "fed_from"):
+        if values[key].strip():
+            raw[key] = values[key].strip()
+    if p.layout == TWO_COLUMN:
+        if values["right_column"] != RIGHT_ABC or p.right_column != RIGHT_ABC:
+            raw["right_column"] = values["right_column"]
+        _put(raw, "max_row_shift", values["max_row_shift"])
 
 
 def panel_form(
@@ -297,6 +160,7 @@ def panel_form(
         Field("neutral_a", "Neutral A", _num_text(p.neutral_a), hint="blank = bus rating"),
         Field("phase_labels", "Phase labels", ",".join(p.phase_labels), hint="A,B,C or L1,L2,L3"),
         Field("layout", "Layout", p.layout, disabled=True),
+        *_wiring_fields(p),
     ]
 
     def validate(values: Values) -> tuple[Schedule | None, dict[str, str]]:
@@ -309,7 +173,7 @@ def panel_form(
             labels = list(labels[0])
         raw["phase_labels"] = labels
         raw["layout"] = p.layout
-        raw.update(_unshown_panel_keys(p, values["system"], labels))
+        _put_wiring(raw, values, p)
         reader = Reader(None, None)
         panel = read_panel(reader, {"panel": raw})
         problems = _issues_by_key(reader)
@@ -427,8 +291,12 @@ def readings_form(schedule: Schedule) -> FormScreen:
 
 
 def default_circuit(schedule: Schedule) -> Circuit:
-    """A blank new circuit for the add form, in the first free slot that fits one pole."""
-    from tri.schedule.slots import candidate_slots, occupied_slots
+    """A blank new circuit for the add form, in the first free slot that fits one pole.
+
+    On a high-leg delta that slot is off the high leg (a 1-pole 120 V circuit
+    may not go there).
+    """
+    from tri.schedule.slots import candidate_slots, occupied_slots, slot_phase
 
     c = Circuit(name="", load_kind="va", load_value=0.0)
     if schedule.panel.layout != TWO_COLUMN:
@@ -437,4 +305,16 @@ def default_circuit(schedule: Schedule) -> Circuit:
         s for x in schedule.circuits if x.slot is not None for s in occupied_slots(x.slot, x.poles)
     ]
     free = candidate_slots(1, schedule.panel.spaces, taken)
-    return c.at_slot(free[0]) if free else c
+    high = schedule.panel.effective_high_leg
+    free = [x for x in free if slot_phase(x, schedule.panel.right_column) != high]
+    return schedule.placed(c.at_slot(free[0])) if free else c
+
+
+__all__ = [
+    "circuit_form",
+    "default_circuit",
+    "move_form",
+    "panel_form",
+    "readings_form",
+    "supply_form",
+]

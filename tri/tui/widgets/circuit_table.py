@@ -12,6 +12,7 @@ from textual.widgets import DataTable
 
 from tri.schedule.model import Circuit, Schedule
 from tri.tui import fmt
+from tri.tui.wiring_words import short_wiring, uses_wiring
 
 HELP = """\
 The list: one row per breaker, in slot order (new circuits, not yet placed,
@@ -19,7 +20,12 @@ at the end). Slot: first slot of the breaker; Ph: phases it takes ('3ph' for
 a 3-pole breaker); Load: as the schedule gives it; PF: power factor ('ld'
 leading); Amps: the engine's true-RMS line current of the circuit; Brkr: the
 breaker rating; Flags: 'cont' a continuous load (counted at 125 % for
-sizing), 'lock' the rebalancer will not move it ('c+lk' both). Wider
+sizing), 'lock' the rebalancer will not move it ('c+lk' both). Wiring (on
+panels that use it): 'spare' nothing connected, '+N legs' a breaker with
+a neutral and one load per leg, 'Δ legs' one load per pair of poles,
+'N:N23' a breaker on shared neutral N23, 'RCD R1' behind an RCD; the status
+line says the rest (each leg, the group's other breakers, handle ties, the
+high leg). Wider
 terminals show poles, both flags in words and the note. The name takes the
 width left over; names that would read alike are cut in the middle so what
 tells them apart stays, and the status line gives the selected circuit in
@@ -46,11 +52,14 @@ def columns_for(
     profile_w: int,
     leading: bool = False,
     longest_name: int = 40,
+    wiring: bool = False,
 ) -> list[Column]:
     """The columns at a terminal ``width`` [cells]; the name (and note) take what is left.
 
     On a wide terminal the name gets what its longest needs (the note keeps at
-    least 12 cells), and the note the rest.
+    least 12 cells), and the note the rest. ``wiring`` adds the *Wiring*
+    column (a panel with a high leg, neutrals, legs, shared neutrals, spares
+    or RCDs).
     """
     wide = width >= WIDE_AT
     ph = 5 if long_labels else 3
@@ -65,6 +74,8 @@ def columns_for(
         Column("amps", "Amps", 6, True),
         Column("breaker", "Brkr", 4, True),
     ]
+    if wiring:
+        cols.append(Column("wiring", "Wiring", 14 if wide else 7))
     if wide:
         cols += [Column("cont", "Cont", 4), Column("lock", "Lock", 4), Column("note", "Note", 0)]
     else:
@@ -115,6 +126,13 @@ def _text(padded: str) -> Text:
     return Text(padded, no_wrap=True, overflow="crop", justify="left")
 
 
+def profile_text(c: Circuit) -> str:
+    """The profile, ``→FILE`` for a feeder (the panel it feeds), ``-`` for a spare."""
+    if c.feed is not None:
+        return "→" + c.feed.path
+    return "-" if c.spare else c.profile
+
+
 def flags_text(c: Circuit) -> str:
     """``"cont"``, ``"lock"``, ``"c+lk"`` (both) or ``""``."""
     if c.continuous and c.locked:
@@ -148,12 +166,14 @@ class CircuitTable(DataTable[Any]):
         long_labels = any(len(x) > 1 for x in schedule.labels)
         leading = any(c.leading and c.pf < 0.9995 for c in schedule.circuits)
         longest = max((len(c.name) for c in schedule.circuits), default=10)
-        shape = (width, schedule.panel.uses_slots, long_labels, profile_w, leading, longest)
+        wiring = uses_wiring(schedule)
+        slots = schedule.panel.uses_slots
+        shape = (width, slots, long_labels, profile_w, leading, longest, wiring)
         if self._shape == shape:
             return
         self.clear(columns=True)
         self.columns_shown = columns_for(
-            width, schedule.panel.uses_slots, long_labels, profile_w, leading, longest
+            width, slots, long_labels, profile_w, leading, longest, wiring
         )
         for k, c in enumerate(self.columns_shown):
             self.add_column(_cell(c, c.label, k == 0), width=c.width + 1 + (k == 0), key=c.key)
@@ -180,19 +200,22 @@ class CircuitTable(DataTable[Any]):
             "phases": phases,
             "load": fmt.load_text(c),
             "pf": fmt.pf_text(c),
-            "profile": fmt.shorten(
-                c.profile if c.feed is None else "→" + c.feed.path, self._width("profile")
-            ),
+            "profile": fmt.shorten(profile_text(c), self._width("profile")),
             "amps": amps,
             "breaker": fmt.breaker_text(c),
             "cont": "yes" if c.continuous else "",
             "lock": "lock" if c.locked else "",
             "flags": flags_text(c),
+            "wiring": short_wiring(c, schedule) if "wiring" in self._keys else "",
             "note": note,
         }
         return tuple(
             _padded(col, values[col.key], k == 0) for k, col in enumerate(self.columns_shown)
         )
+
+    @property
+    def _keys(self) -> set[str]:
+        return {c.key for c in self.columns_shown}
 
     def _width(self, key: str) -> int:
         return next((c.width for c in self.columns_shown if c.key == key), 10)

@@ -31,6 +31,10 @@ WIDE_AT = 110
 RAIL_INFO = 22  #: phases 6, rating 5, flags 2, gap 1, amps 8
 RAIL_LEAD = 4  #: indent, mark, gap
 BRACKET = {(1, 1): " ", (1, 2): "┌", (2, 2): "└", (1, 3): "┌", (2, 3): "│", (3, 3): "└"}
+#: A breaker with a neutral (one load per leg to neutral) joins its poles with double lines.
+NEUTRAL_BRACKET = {(1, 2): "╓", (2, 2): "╙", (1, 3): "╓", (2, 3): "║", (3, 3): "╙"}
+#: The high leg's letter in the bus column is marked, so the row reads "▲B│B▲".
+HIGH_MARK = "▲"
 
 
 @dataclass(frozen=True)
@@ -89,6 +93,7 @@ class Frame:
     row: int = 0
     side: int = 0
     picking: int | None = None
+    groups: dict[int, str] = field(default_factory=dict)  #: shared-neutral brackets
 
     # ------------------------------------------------------------ geometry
 
@@ -202,7 +207,8 @@ class Frame:
             mark, name, info, style = " ", "· space", "", "dim"
         else:
             c = s.circuits[pos.circuit]
-            mark = BRACKET.get((pos.pole, pos.poles), "│")
+            joins = NEUTRAL_BRACKET if c.neutral and c.poles > 1 else BRACKET
+            mark = self.groups.get(pos.circuit) or joins.get((pos.pole, pos.poles), "│")
             name = "spare" if is_spare(c) else self.names.get(pos.circuit, c.name)
             info = self._info(pos, c)
             if pos.continues:
@@ -217,7 +223,6 @@ class Frame:
         return text[:half].ljust(half), style
 
     def _row_text(self, line: Line, r: int, targets: set[int]) -> Text:
-        s = self.schedule
         half = self.half
         cur = self.current
         same = cur.circuit if cur is not None and self.picking is None else None
@@ -230,13 +235,20 @@ class Frame:
             elif same is not None and cell.circuit == same:
                 style = (style + " bold underline").strip()
             if k == 1:
-                t.append(f"{labels[0]:>2}│{s.labels[cell.phase or 0]:<2}", style="bold")
-            labels.append(s.labels[cell.phase or 0])
+                t.append(f"{labels[0]:>2}│{self._bus(cell.phase, right=True):<2}", style="bold")
+            labels.append(self._bus(cell.phase, right=False))
             t.append(text, style=style)
         if len(line.cells) == 1:
             t.append(f"{labels[0]:>2}│  ", style="bold")
             t.append(" " * half)
         return t
+
+    def _bus(self, phase: int | None, right: bool) -> str:
+        """The phase letter of one side of the bus column, the high leg marked ``▲``."""
+        label = self.schedule.labels[phase or 0]
+        if phase is not None and phase == self.schedule.panel.effective_high_leg:
+            return label + HIGH_MARK if right else HIGH_MARK + label
+        return label
 
     def _rail_text(self, cell: Cell, r: int) -> Text:
         s = self.schedule

@@ -26,6 +26,7 @@ from textual.strip import Strip
 from tri.schedule.model import Schedule
 from tri.tui import fmt
 from tri.tui.widgets.panel_rows import Cell, Frame, Line, build_lines
+from tri.tui.wiring_words import group_brackets
 
 
 class PanelView(ScrollView, can_focus=True):
@@ -69,6 +70,7 @@ class PanelView(ScrollView, can_focus=True):
         self.side = 0
         self.picking: int | None = None
         self.names: dict[int, str] = {}
+        self.groups: dict[int, str] = {}
 
     # ------------------------------------------------------------ data
 
@@ -77,6 +79,7 @@ class PanelView(ScrollView, can_focus=True):
         before = self.current
         self.schedule, self.analysis = schedule, analysis
         self.lines = build_lines(schedule)
+        self.groups = group_brackets(schedule)
         self._fit_names()
         self.virtual_size = Size(0, len(self.lines) + 1)
         if keep_index is not None and self.select_index(keep_index):
@@ -105,6 +108,7 @@ class PanelView(ScrollView, can_focus=True):
             self.row,
             self.side,
             self.picking,
+            self.groups,
         )
 
     def _fit_names(self) -> None:
