@@ -106,7 +106,7 @@ def move_form(schedule: Schedule, index: int) -> FormScreen:
 def _wiring_fields(p: PanelInfo) -> list[Field]:
     """The ``[panel]`` keys of panels as they are wired: high leg, right column, source, reach."""
     slots = p.layout == TWO_COLUMN
-    orders = tuple((f"{o} (right column from the top)", o) for o in RIGHT_COLUMN_ORDERS)
+    orders = tuple((f"{'-'.join(o)} from the top", o) for o in RIGHT_COLUMN_ORDERS)
     high = "" if p.high_leg in (None, 1) else p.phase_labels[p.high_leg]
     return [
         Field("high_leg", "High leg", high, hint=f"240/120D: blank = {p.phase_labels[1]}"),
