@@ -16,7 +16,7 @@ import shutil
 from pathlib import Path
 
 import pytest
-from tui_support import settle
+from tui_support import keys
 
 from tri.tui.app import TriApp
 
@@ -28,16 +28,6 @@ sizes = pytest.mark.parametrize("size", [(80, 24), (120, 40)], ids=["80x24", "12
 def brewery(tmp_path: Path) -> TriApp:
     shutil.copytree(BREWERY, tmp_path / "brewery")
     return TriApp(tmp_path / "brewery" / "mdp_480.toml", journal=False, theme="textual-dark")
-
-
-def keys(*pressed: str):
-    async def before(pilot) -> None:
-        await settle(pilot)
-        for key in pressed:
-            await pilot.press(key)
-            await settle(pilot)
-
-    return before
 
 
 @sizes

@@ -14,23 +14,13 @@ import shutil
 from pathlib import Path
 
 import pytest
-from tui_support import settle
+from tui_support import keys
 
 from tri.tui.app import TriApp
 
 DEMO = Path(__file__).parents[1] / "panels_demo" / "garage_logged_208.toml"
 SIZES = [(80, 24), (120, 40)]
 sizes = pytest.mark.parametrize("size", SIZES, ids=["80x24", "120x40"])
-
-
-def keys(*pressed: str):
-    async def before(pilot) -> None:
-        await settle(pilot)
-        for key in pressed:
-            await pilot.press(key)
-            await settle(pilot)
-
-    return before
 
 
 def garage() -> TriApp:

@@ -19,12 +19,11 @@ import json
 from pathlib import Path
 
 import pytest
-from tui_support import settle
+from tui_support import keys, settle
 
 from tri.schedule.journal import file_digest, journal_path, write_journal
 from tri.schedule.load import load_schedule
 from tri.tui.app import TriApp
-from tri.tui.widgets.circuit_table import CircuitTable
 
 DATA = Path(__file__).parent / "data" / "tui"
 DEMOS = Path(__file__).parents[1] / "panels_demo"
@@ -34,23 +33,6 @@ SIZE_IDS = ["80x24", "120x40"]
 
 def small_app(theme: str = "textual-dark", journal: bool = False) -> TriApp:
     return TriApp(DATA / "small.toml", journal=journal, theme=theme)
-
-
-def keys(*pressed: str, select: str | None = None):
-    """A run_before that settles, puts the list cursor on ``select``, then presses keys."""
-
-    async def before(pilot) -> None:
-        await settle(pilot)
-        if select is not None:
-            app = pilot.app
-            index = next(i for i, c in enumerate(app.session.schedule.circuits) if c.name == select)
-            app.screen.query_one(CircuitTable).select_index(index)
-            await pilot.pause()
-        for key in pressed:
-            await pilot.press(key)
-            await settle(pilot)
-
-    return before
 
 
 sizes = pytest.mark.parametrize("size", SIZES, ids=SIZE_IDS)

@@ -14,28 +14,12 @@ from __future__ import annotations
 from pathlib import Path
 
 import pytest
-from tui_support import settle
+from tui_support import keys
 
 from tri.tui.app import TriApp
-from tri.tui.widgets.circuit_table import CircuitTable
 
 WOODSHOP = Path(__file__).parents[1] / "panels_demo" / "woodshop_240d.toml"
 sizes = pytest.mark.parametrize("size", [(80, 24), (120, 40)], ids=["80x24", "120x40"])
-
-
-def keys(*pressed: str, select: str | None = None):
-    async def before(pilot) -> None:
-        await settle(pilot)
-        if select is not None:
-            app = pilot.app
-            index = next(i for i, c in enumerate(app.session.schedule.circuits) if c.name == select)
-            app.screen.query_one(CircuitTable).select_index(index)
-            await pilot.pause()
-        for key in pressed:
-            await pilot.press(key)
-            await settle(pilot)
-
-    return before
 
 
 def shop() -> TriApp:

@@ -10,3 +10,22 @@ async def settle(pilot: Any) -> None:
     await pilot.pause()
     await pilot.app.workers.wait_for_complete()
     await pilot.pause()
+
+
+def keys(*pressed: str, select: str | None = None) -> Any:
+    """A snapshot's ``run_before``: settle, put the list cursor on ``select``, press ``pressed``."""
+
+    async def before(pilot: Any) -> None:
+        await settle(pilot)
+        if select is not None:
+            from tri.tui.widgets.circuit_table import CircuitTable
+
+            app = pilot.app
+            index = next(i for i, c in enumerate(app.session.schedule.circuits) if c.name == select)
+            app.screen.query_one(CircuitTable).select_index(index)
+            await pilot.pause()
+        for key in pressed:
+            await pilot.press(key)
+            await settle(pilot)
+
+    return before
