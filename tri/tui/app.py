@@ -23,14 +23,15 @@ from tri.schedule.load import ScheduleFile, load_schedule
 from tri.schedule.model import Schedule
 from tri.tui import compute, recent
 from tri.tui.app_building import BuildingActions
+from tri.tui.app_saving import SavingActions
 from tri.tui.messages import AnalysisDone
-from tri.tui.session import FileChangedOnDisk, Session
+from tri.tui.session import Session
 from tri.tui.wording import issue_text, plural
 
 THEMES = ("textual-dark", "textual-light", "ansi-dark", "ansi-light")
 
 
-class TriApp(BuildingActions, App[int]):
+class TriApp(SavingActions, BuildingActions, App[int]):
     """Edit, analyse and rebalance a panel schedule (or a building of them) from the keyboard."""
 
     CSS_PATH = "tri.tcss"
@@ -313,95 +314,7 @@ class TriApp(BuildingActions, App[int]):
         body = "\n".join(lines) or str(exc)
         self.push_screen(TextScreen(f"{title} ({plural(len(lines), 'problem')})", Text(body)))
 
-    # ------------------------------------------------------------ saving
-
-    def action_save(self) -> None:
-        """Save to the file (asks for a name for an untitled copy)."""
-        if self.session is None:
-            return
-        if self.session.path is None:
-            self.action_save_as()
-            return
-        self._save_to(self.session.path)
-
-    def _save_to(self, path: Path, then_quit: bool = False) -> bool:
-        assert self.session is not None
-        try:
-            self.session.save(path)
-        except FileChangedOnDisk:
-            from tri.tui.screens.changed_on_disk import ask_about_changed_file
-
-            self.set_status(f"{path.name} changed on disk since it was opened; nothing written.")
-            ask_about_changed_file(self, path, then_quit)
-            return False
-        except ScheduleError as exc:
-            shown = self.session.schedule
-            first = issue_text(exc.issues[0], path.name, shown) if exc.issues else str(exc)
-            self.set_status(f"{path.name} not saved: {first}", error=True)
-            self.show_problems(f"{path.name} not saved", exc, path.name, shown)
-            return False
-        recent.remember(path)
-        self.set_status(f"Saved {path.name} (previous version kept as {path.name}.bak).")
-        self.refresh_screens()
-        if then_quit:
-            self.exit(0)
-        return True
-
-    def action_save_as(self, then_quit: bool = False) -> None:
-        """Ask for a file name, then save there."""
-        from tri.tui.screens.save_as import save_as_form
-
-        if self.session is None:
-            return
-
-        def chosen(path: Path | None) -> None:
-            if path is not None:
-                self._save_to(path, then_quit=then_quit)
-
-        self.push_screen(save_as_form(self.session), chosen)
-
-    # ------------------------------------------------------------ quitting, help, theme
-
-    async def action_quit(self) -> None:
-        """Ctrl+Q from anywhere: asks first when any open panel has unsaved edits."""
-        from tri.tui.screens.choice import ChoiceScreen
-
-        if self.quitting:
-            return
-        dirty = self.unsaved_sessions()
-        if not dirty:
-            self.exit(0)
-            return
-        self.quitting = True
-        s = self.session
-        several = len(dirty) > 1 or dirty[0] is not s
-
-        def answer(value: str | None) -> None:
-            self.quitting = False
-            if value == "save" and several:
-                self.save_all_then_quit()
-            elif value == "save":
-                self.action_save_as(then_quit=True) if s.path is None else self._save_to(
-                    s.path, then_quit=True
-                )
-            elif value == "discard":
-                for d in dirty:
-                    d.saved = d.schedule
-                    d.journal()  # nothing to keep: removes the journal
-                self.exit(0)
-
-        names = ", ".join(d.title_name for d in dirty)
-        message = f"{names} {'have' if len(dirty) > 1 else 'has'} unsaved edits."
-        save = "save every panel, then quit" if several else "save, then quit"
-        self.push_screen(
-            ChoiceScreen(
-                "Quit tri?",
-                message,
-                [("s", save, "save"), ("d", "discard the edits and quit", "discard")],
-                cancel=None,
-            ),
-            answer,
-        )
+    # ------------------------------------------------------------ help, theme
 
     def action_help(self) -> None:
         """The key list and what each part of the screen shows."""

@@ -35,6 +35,7 @@ from tri.tui.log_plot import Plot, Window, column_range, duration_picture, legen
 from tri.tui.log_reader import LogCancelled, read_and_analyse
 from tri.tui.log_summary import facts_line, summary_lines
 from tri.tui.messages import LogProgress, LogRead
+from tri.tui.screens.log_keys import VIEWS, LogChart, LogKeys
 from tri.tui.wording import issue_text, plural
 
 LOG_HELP = """\
@@ -51,23 +52,8 @@ Figures: the report's own text (scenarios, log, demand, unbalance over
 time, NEC 220.87 capacity with its 'not a basis' wording, log against
 schedule). Every figure comes from the same functions as tri report."""
 
-VIEWS = ("current", "duration", "figures")
 
-
-class LogChart(Static):
-    """A picture drawn at the widget's own size by the screen's ``draw(cols, rows)``."""
-
-    def __init__(self, draw: Any, **kwargs: Any) -> None:
-        super().__init__("", **kwargs)
-        self.draw = draw
-
-    def render(self) -> Text:
-        cols = self.content_size.width or 78
-        rows = self.content_size.height or 12
-        return Text("\n").join(self.draw(cols, rows))
-
-
-class LogScreen(Screen[None]):
+class LogScreen(LogKeys, Screen[None]):
     """Current over time, duration and figures of the schedule's log."""
 
     BINDINGS: ClassVar[list[BindingType]] = [
@@ -412,106 +398,3 @@ class LogScreen(Screen[None]):
 
             width = max(self.size.width - 4, 40)
             body.update(Text(render_over_time_text(self.data, width=width).strip("\n")))
-
-    # ------------------------------------------------------------ keys
-
-    def action_view(self, step: int) -> None:
-        self.view = VIEWS[(VIEWS.index(self.view) + step) % len(VIEWS)]
-        self.refresh_view()
-
-    def _plot_cols(self) -> int:
-        width = self.query_one(LogChart).content_size.width or 78
-        return self._plot(width, 12).plot_cols
-
-    def _cursor_index(self) -> int:
-        return column_range(self.window, self._plot_cols(), self.cursor)[0]
-
-    def _show_window(self, start: int, length: int, at: int | None = None) -> None:
-        """Show ``length`` intervals from ``start`` (clamped), the cursor on interval ``at``."""
-        total = self.stack.shape[-1]
-        length = min(max(length, min(self._plot_cols(), total)), total)
-        start = min(max(start, 0), total - length)
-        self.window = Window(start, start + length)
-        if at is not None:
-            cols = self._plot_cols()
-            self.cursor = min(max((at - start) * cols // length, 0), cols - 1)
-        self.refresh_view()
-
-    def action_cursor(self, step: int) -> None:
-        if self.logged is None or self.view != "current":
-            return
-        self.note = None
-        cols = self._plot_cols()
-        target = self.cursor + step
-        if 0 <= target < cols:
-            self.cursor = target
-            self.refresh_view()
-            return
-        w = self.window
-        shift = max(w.length // 4, 1) * step
-        self._show_window(w.start + shift, w.length, self._cursor_index() + w.length // cols * step)
-
-    def action_zoom(self, direction: int) -> None:
-        if self.logged is None or self.view != "current":
-            return
-        self.note = None
-        at = self._cursor_index()
-        w = self.window
-        length = w.length // 2 if direction > 0 else w.length * 2
-        share = (at - w.start) / max(w.length, 1)
-        self._show_window(round(at - share * length), length, at)
-
-    def action_pan(self, step: int) -> None:
-        if self.logged is not None and self.view == "current":
-            self._show_window(self.window.start + step * self.window.length, self.window.length)
-
-    def action_edge(self, end: int) -> None:
-        if self.logged is None:
-            return
-        if self.view == "figures":
-            scroll = self.query_one("#log-figures", VerticalScroll)
-            scroll.scroll_end(animate=False) if end else scroll.scroll_home(animate=False)
-            return
-        total = self.stack.shape[-1]
-        at = total - 1 if end else 0
-        self._show_window(at - self.window.length // 2, self.window.length, at)
-
-    def action_whole(self) -> None:
-        if self.logged is not None:
-            self._show_window(0, self.stack.shape[-1], self._cursor_index())
-
-    def action_peak(self) -> None:
-        """Jump to the next channel's highest demand window (its start under the cursor)."""
-        if self.logged is None:
-            return
-        f = self.figures
-        channels = [(k, ch) for k, ch in enumerate([*f.phases, f.neutral]) if ch is not None]
-        channels = [(k, ch) for k, ch in channels if ch.start_index >= 0]
-        if not channels:
-            self.app.bell()
-            return
-        k, ch = channels[self.peak_turn % len(channels)]
-        self.peak_turn += 1
-        self.view = "current"
-        w = self.window
-        self._show_window(ch.start_index - w.length // 2, w.length, ch.start_index)
-        name = self._plot(80, 12).names[k]
-        start = self.logged.time_at(ch.start_index).strftime("%a %m-%d %H:%M")
-        end = self.logged.time_at(ch.start_index + f.window_intervals).strftime("%H:%M")
-        self.note = Text(f"peak {name} {ch.value_a:.1f} A {start}-{end}", style="bold")
-        self.refresh_view()
-
-    def action_level(self, step: int) -> None:
-        if self.view == "figures":
-            self.query_one("#log-figures", VerticalScroll).scroll_relative(y=-step, animate=False)
-        elif self.view == "duration":
-            self.level = max(self.level + step, 0)
-            self.refresh_view()
-
-    def action_channel(self, k: int) -> None:
-        if k == 3 and (self.logged is None or self.logged.arrays.neutral_a is None):
-            return
-        self.shown[k] = not self.shown[k]
-        if not any(self.shown):
-            self.shown[k] = True
-        self.refresh_view()

@@ -20,12 +20,13 @@ from textual.widgets import DataTable, Footer, Static
 
 from tri.schedule.model import Schedule
 from tri.tui import recent
-from tri.tui.rules import move_problems, move_summary, moved
 from tri.tui.screens.circuit_actions import CircuitActions
+from tri.tui.screens.main_screens import OtherScreens
+from tri.tui.screens.panel_pick import PanelPicking
 from tri.tui.widgets.circuit_table import CircuitTable
 from tri.tui.widgets.panel_view import Cell, PanelView
 from tri.tui.widgets.results_panel import ResultsPanel
-from tri.tui.wording import circuit_details, circuit_label
+from tri.tui.wording import circuit_details
 
 MAIN_HELP = """\
 The main view. Tab switches between the list and the panel view. Move with
@@ -75,7 +76,7 @@ KEY_WORDS = {
 PICKING_ACTIONS = {"cancel_pick", "quit", "help", "toggle_view"}
 
 
-class MainScreen(CircuitActions, Screen[None]):
+class MainScreen(PanelPicking, OtherScreens, CircuitActions, Screen[None]):
     """Schedule (list or panel) above, results below; all editing keys live here."""
 
     BINDINGS: ClassVar[list[BindingType]] = [
@@ -341,158 +342,8 @@ class MainScreen(CircuitActions, Screen[None]):
         else:
             self._add_at(cell)
 
-    # ------------------------------------------------------------ moving on the panel view
-
-    def action_move(self) -> None:
-        """m: on the panel view, pick the breaker up; on the list, the move dialog."""
-        if self.view != "panel":
-            super().action_move()
-            return
-        index = self._movable()
-        if index is None:
-            return
-        c = self.schedule.circuits[index]
-        if not self.schedule.panel.uses_slots and c.poles == 3 and c.is_placed:
-            label = circuit_label(self.schedule, index)
-            self.set_status(f"{label} takes every phase; it has no other place on a rail board.")
-            return
-        self.picking = index
-        view = self.query_one(PanelView)
-        view.picking = index
-        view.refresh()
-        self.refresh_bindings()
-        self._pick_status()
-
-    def _pick_target(self) -> Any:
-        view = self.query_one(PanelView)
-        target = view.pick_target()
-        if target is None or self.picking is None:
-            return None
-        s = self.schedule
-        if s.panel.uses_slots:
-            return moved(s, self.picking, slot=target)
-        return moved(s, self.picking, phases=target)
-
-    def _pick_status(self) -> None:
-        if self.picking is None:
-            return
-        s = self.schedule
-        label = circuit_label(s, self.picking)
-        c = s.circuits[self.picking]
-        target = self._pick_target()
-        keys = "↑↓←→ choose, Enter puts it here, Esc puts it back"
-        if target is None:
-            self.set_status(f"Moving {label}: choose a position ({keys}).")
-        elif (target.slot, target.phases) == (c.slot, c.phases):
-            self.set_status(f"Moving {label} ({c.poles}-pole): choose where it goes ({keys}).")
-        else:
-            problems = move_problems(s, self.picking, target)
-            where = move_summary(s, target)
-            if problems:
-                self.set_status(f"✗ {label} to {where}: {'; '.join(problems)}", error=True)
-            else:
-                self.set_status(f"✓ {label} to {where}: all free. {keys}.")
-
-    def _put_down(self) -> None:
-        index, target = self.picking, self._pick_target()
-        if index is None:
-            return
-        c = self.schedule.circuits[index]
-        if target is None or (target.slot, target.phases) == (c.slot, c.phases):
-            self.set_status("Choose another position, or Esc to put it back.", error=True)
-            self.app.bell()
-            return
-        problems = move_problems(self.schedule, index, target)
-        if problems:
-            self._pick_status()
-            self.app.bell()
-            return
-        self._end_pick()
-        self.move_to(index, target)
-
-    def _end_pick(self) -> None:
-        self.picking = None
-        view = self.query_one(PanelView)
-        view.picking = None
-        view.refresh()
-        self.refresh_bindings()
-
-    def action_cancel_pick(self) -> None:
-        if self.picking is None:
-            return
-        label = circuit_label(self.schedule, self.picking)
-        index = self.picking
-        self._end_pick()
-        self.query_one(PanelView).select_index(index)
-        self.set_status(f"{label} stays where it was.")
-
-    # ------------------------------------------------------------ other screens
-
-    def action_findings(self) -> None:
-        from tri.tui.screens.findings import findings_screen
-
-        app: Any = self.app
-        if app.analysis is None or not app.analysis_current:
-            self.set_status(app.analysis_error or "The results are being updated; press f again.")
-            return
-        self.app.push_screen(
-            findings_screen(
-                app.analysis, app.session.schedule, app.session.title_name, self.app.size.width
-            )
-        )
-
     def panel_changed(self) -> None:
         """Another panel of the building is shown: the cursor starts at its top."""
         if self.picking is not None:
             self._end_pick()
         self.refresh_view(keep_index=0)
-
-    def action_building(self) -> None:
-        """T: the building's tree (buildings only)."""
-        from tri.tui.screens.building_tree import BuildingScreen
-
-        app: Any = self.app
-        if app.building is None:
-            self.set_status("This panel feeds no other panel; open the top panel to see a tree.")
-            return
-        self.app.push_screen(BuildingScreen())
-
-    def action_log(self) -> None:
-        """d: the log view (current over time, demand, duration, the report's figures)."""
-        from tri.tui.screens.log_view import LogScreen
-
-        if self.schedule.log is None:
-            self.set_status("This schedule has no [log] table (README: Loads over time).")
-            return
-        self.app.push_screen(LogScreen())
-
-    def action_scenario(self) -> None:
-        """n: choose the case (connected load or a scenario) the figures show."""
-        from tri.tui.screens.scenario_choice import scenario_screen
-
-        app: Any = self.app
-        screen = scenario_screen(app.cases, app.case_name)
-        if screen is None:
-            self.set_status(
-                "This schedule has no use scenarios; the figures are the connected load."
-            )
-            return
-
-        def chosen(name: str | None) -> None:
-            if name is None:
-                return
-            app.show_case(name)
-            shown = "the connected load" if name == "connected" else f"scenario {name}"
-            self.set_status(f"The figures show {shown}; tri check's verdicts cover every case.")
-
-        self.app.push_screen(screen, chosen)
-
-    def action_phasors(self) -> None:
-        from tri.tui.screens.phasor import PhasorScreen
-
-        self.app.push_screen(PhasorScreen())
-
-    def action_rebalance(self) -> None:
-        from tri.tui.screens.rebalance import RebalanceScreen
-
-        self.app.push_screen(RebalanceScreen())
