@@ -76,6 +76,13 @@ async def test_moving_between_panels_with_the_keyboard(brewery: Path) -> None:
             assert app.building.current == index
             assert app.session.path.name == ORDER[index]
             assert app.analysis == expected.nodes[index].analysis
+            # The tree opens on the panel shown, described under it.
+            await pilot.press("T")
+            await settle(pilot)
+            assert app.screen.query_one("Tree").cursor_node.data == index
+            assert ORDER[index] in str(app.screen.query_one("#tree-details").render())
+            await pilot.press("escape")
+            await settle(pilot)
         await pilot.press("T")
         await settle(pilot)
         await pilot.press("escape")

@@ -132,7 +132,13 @@ class BuildingScreen(Screen[None]):
         self._ready = True
         self.refresh_view()
         tree.focus()
-        tree.move_cursor(nodes[b.current])
+        self.call_after_refresh(self._to_current)
+
+    def _to_current(self) -> None:
+        """The cursor on the panel shown (once the tree has laid out its lines)."""
+        app: Any = self.app
+        self.query_one(Tree).move_cursor(self.nodes[app.building.current])
+        self._details()
 
     def refresh_view(self) -> None:
         """Relabel every panel from the latest building analysis."""
