@@ -254,3 +254,24 @@ def test_with_schedules_relinks_a_moved_feeder(brewery: Path) -> None:
     renamed = dataclasses.replace(moved, circuits=moved.circuits[:k] + moved.circuits[k + 1 :])
     with pytest.raises(Exception, match="no circuit feeds"):
         with_schedules(tree, [renamed, *(p.schedule for p in tree.panels[1:])])
+
+
+async def test_reopening_a_changed_child_keeps_the_building(brewery: Path) -> None:
+    child = brewery.parent / "lp2_208.toml"
+    app = TriApp(brewery, journal=False)
+    async with app.run_test(size=(80, 24)) as pilot:
+        await settle(pilot)
+        await open_panel(pilot, 1)
+        await pilot.press("x")  # an unsaved edit elsewhere in the building
+        await settle(pilot)
+        await open_panel(pilot, 3)
+        child.write_text(child.read_text().replace("LP-2 kitchen", "LP-2 kitchen (renamed)"))
+        await pilot.press("x", "ctrl+s")
+        await settle(pilot)
+        assert isinstance(app.screen, ChoiceScreen)
+        await pilot.press("r")  # reopen it from disk
+        await settle(pilot)
+        assert app.building is not None and app.building.current == 3
+        assert app.session.schedule.panel.name == "LP-2 kitchen (renamed)"
+        assert not app.session.dirty
+        assert app.building.sessions[1].dirty, "the other panel's edit is still there"

@@ -90,6 +90,8 @@ class TriApp(SavingActions, BuildingActions, App[int]):
         """Load ``path`` and show it; problems become a message, never a traceback."""
         from tri.schedule.tree import feeder_circuits
 
+        if self.reload_panel(path):  # a panel of the building open: read again in place
+            return True
         try:
             loaded = load_schedule(path)
         except ScheduleError as exc:

@@ -76,6 +76,36 @@ class BuildingActions:
             b.visited.add(index)
             app.offer_recovery()
 
+    def reload_panel(self, path: Path) -> bool:
+        """Read panel ``path`` of the open building again from disk, the others kept as they are.
+
+        Returns False when no building is open or ``path`` is not one of its
+        panels (the caller opens it as usual). The panel's unsaved edits stay
+        in its journal, which is offered for recovery.
+        """
+        from tri.schedule.load import load_schedule
+        from tri.tui.session import Session
+
+        app: Any = self
+        b = self.building
+        if b is None:
+            return False
+        target = path.expanduser().resolve()
+        index = next((i for i, p in enumerate(b.tree.panels) if p.path == target), None)
+        if index is None:
+            return False
+        try:
+            loaded = load_schedule(path)
+        except ScheduleError as exc:
+            app.show_problems(f"Cannot read {path.name} again", exc)
+            return True
+        session = Session.from_file(loaded)
+        session.journal_enabled = self.journal_enabled
+        b.sessions[index] = session
+        b.visited.discard(index)
+        self.switch_panel(index)
+        return True
+
     def edit_problem(self, new: Schedule) -> str | None:
         """Why ``new`` (the panel on screen, edited) would break the building; ``None`` if fine."""
         b = self.building
