@@ -12,6 +12,8 @@ from pathlib import Path
 
 import numpy as np
 import pytest
+from hypothesis import given
+from hypothesis import strategies as st
 
 from tri.schedule.errors import ScheduleError
 from tri.schedule.log_file import read_log
@@ -48,6 +50,11 @@ BAD_CASES = [
     ("repeated_hour_no_zone.csv", 5, ["out of order", "[log] timezone"]),
     ("not_utf8.csv", 2, ["UTF-8"]),
     ("wrong_year.csv", 4, ["jump", "check the date"]),
+    # A decimal comma in a comma-separated file splits a cell in two: the row would be
+    # read shifted into the wrong columns (pandas drops extra cells with usecols).
+    ("extra_cell.csv", 3, ["6 cells where the header has 5", "decimal"]),
+    # On the first data row pandas would even take the time column as the index.
+    ("extra_cell_first_row.csv", 2, ["6 cells where the header has 5"]),
 ]
 
 
@@ -168,3 +175,20 @@ def test_bad_number_in_a_later_chunk(tmp_path, monkeypatch):
     with pytest.raises(ScheduleError) as info:
         read_log(SPEC, write(tmp_path, text))
     assert info.value.issues[0].line == 10
+
+
+@given(
+    st.lists(st.lists(st.sampled_from(["", "1", "2.5", "x"]), max_size=6), max_size=20),
+    st.sampled_from([",", ";", "\t"]),
+    st.sampled_from(["\n", "\r\n"]),
+    st.booleans(),
+)
+def test_cell_counts_equal_splitting_each_line(rows, sep, end, final_newline):
+    # Invariant: the numpy count equals Python's own lines of the text, split at the
+    # separator (0 for an empty line).
+    from tri.schedule.log_cells import line_cell_counts
+
+    lines = [sep.join(r) for r in rows]
+    text = end.join(lines) + (end if final_newline and lines else "")
+    expected = [0 if line == "" else line.count(sep) + 1 for line in text.splitlines()]
+    assert line_cell_counts(text.encode(), sep).tolist() == expected

@@ -30,6 +30,7 @@ import numpy as np
 
 from tri.engine.log_analysis import LogArrays
 from tri.schedule.errors import ScheduleError
+from tri.schedule.log_cells import check_cell_counts
 from tri.schedule.log_grid import Gap, GridPlacement, place_on_grid
 from tri.schedule.log_spec import LogSpec, log_issue
 from tri.schedule.log_times import parse_times
@@ -204,6 +205,7 @@ def read_log(
     header = _read_header(path, shown)
     sep = _sniff(header, spec.decimal)
     _check_columns(header, sep, spec, shown)
+    check_cell_counts(path, shown, sep)
     report(0.0, "reading the log")
     frame, lines = _read_frame(path, shown, spec, sep, report)
     values = {c: frame[c].to_numpy(dtype=float) for c in spec.columns()[1:]}

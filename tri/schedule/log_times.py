@@ -12,7 +12,6 @@ an offset and without a zone are the logger's own clock, taken as they are.
 
 from __future__ import annotations
 
-import warnings
 from typing import Any
 
 import numpy as np
@@ -22,6 +21,8 @@ from tri.schedule.log_spec import LogSpec, log_issue
 
 #: Pattern of a trailing UTC offset or ``Z`` in ISO 8601 text.
 OFFSET_PATTERN = r"(?:[zZ]|[+-]\d\d(?::?\d\d)?)$"
+#: A clock time followed by a UTC offset (a bare date's "-01" is not an offset).
+TIME_WITH_OFFSET = r"\d:\d\d(?::\d\d(?:[.,]\d+)?)?\s*" + OFFSET_PATTERN
 EXAMPLE = "2024-03-01T14:05:00 or 2024-03-01 14:05:00-05:00"
 
 
@@ -75,31 +76,24 @@ def parse_times(
         raise ScheduleError(
             [log_issue(shown, f"time missing in column '{spec.time}'{_more(n)}", line, spec.time)]
         )
-    try:
-        with warnings.catch_warnings():  # pandas 2.x warns of mixed offsets, then returns objects
-            warnings.simplefilter("ignore", FutureWarning)
-            parsed = pd.to_datetime(text, format="ISO8601", errors="coerce")
-        # pandas 3 raises on offsets that differ from row to row (daylight saving);
-        # pandas 2 returns an object column instead.
-        mixed = not pd.api.types.is_datetime64_any_dtype(parsed.dtype)
-    except ValueError:
-        mixed = True
-    if mixed:
-        with_offset = text.str.contains(OFFSET_PATTERN, regex=True).to_numpy()
-        if not with_offset.all():
-            _, line, n = _first_rows(~with_offset, lines)
-            raise ScheduleError(
-                [
-                    log_issue(
-                        shown,
-                        "time without a UTC offset among times with offsets; write every time "
-                        f"the same way{_more(n)}",
-                        line,
-                        spec.time,
-                    )
-                ]
-            ) from None
-        parsed = pd.to_datetime(text, format="ISO8601", errors="coerce", utc=True)
+    # Offsets are looked for first: parsing times whose offsets change within the
+    # log (daylight saving) without utc=True makes Python objects of a million rows.
+    with_offset = text.str.contains(TIME_WITH_OFFSET, regex=True).to_numpy()
+    aware = bool(with_offset.any())
+    if aware and not with_offset.all():
+        _, line, n = _first_rows(~with_offset, lines)
+        raise ScheduleError(
+            [
+                log_issue(
+                    shown,
+                    "time without a UTC offset among times with offsets; write every time "
+                    f"the same way{_more(n)}",
+                    line,
+                    spec.time,
+                )
+            ]
+        )
+    parsed = pd.to_datetime(text, format="ISO8601", errors="coerce", utc=aware)
     bad = parsed.isna().to_numpy()
     if bad.any():
         row, line, n = _first_rows(bad, lines)
@@ -115,7 +109,7 @@ def parse_times(
             ]
         )
     offset = None
-    if mixed or parsed.dt.tz is not None:
+    if aware:
         first = pd.Timestamp(text.iloc[0]).utcoffset()
         offset = None if first is None else first.total_seconds()
         utc = parsed.dt.tz_convert("UTC").dt.tz_localize(None)
