@@ -129,6 +129,12 @@ class Frame:
         Norm of the other perpendicular coordinates at the reference [A].
     dres : float ndarray, shape (O, 3)
         Norms of their changes [A].
+    basis : float ndarray, shape (3, K, m)
+        The principal directions of each phase (orthonormal, across its ``u_p``).
+    rotated : Rotated
+        The rotated spectra the frame was made from.
+    directions : float ndarray, shape (3, K)
+        ``u_p`` of each phase (``U`` for all three, unless re-centred).
     choices : Choices
         The options of each free circuit, and which ones count as changes.
     """
@@ -140,6 +146,9 @@ class Frame:
     dl: np.ndarray
     res0: np.ndarray
     dres: np.ndarray
+    basis: np.ndarray
+    rotated: Rotated
+    directions: np.ndarray
     choices: Choices
 
 
@@ -149,8 +158,33 @@ def rotations(orders: np.ndarray) -> np.ndarray:
     return np.array([A_OP ** ((h * p) % 3) for p in range(3)])
 
 
-def frame_of(pr: Problem, kept: int = KEPT_COORDINATES) -> Frame:
-    """The sequence frame of a problem (module notes); principal axes by SVD of the changes."""
+@dataclass(frozen=True, eq=False)
+class Rotated:
+    """The rotated spectra of a problem (module notes), parts as real vectors.
+
+    Attributes
+    ----------
+    w : float ndarray, shape (3, K)
+        ``w_p`` at the reference plan [A].
+    dw : float ndarray, shape (O, 3, K)
+        What each option changes in ``w_p`` [A].
+    unit : float ndarray, shape (K,)
+        ``U = J/F``.
+    floor_a : float
+        ``F`` [A].
+    choices : Choices
+        The free circuits' options.
+    """
+
+    w: np.ndarray
+    dw: np.ndarray
+    unit: np.ndarray
+    floor_a: float
+    choices: Choices
+
+
+def rotated_of(pr: Problem) -> Rotated:
+    """The rotated spectra of a problem (module notes)."""
     rot = rotations(pr.orders)
     ref = pr.current_assignment()
     v, _ = spectra(pr, ref)
@@ -159,23 +193,44 @@ def frame_of(pr: Problem, kept: int = KEPT_COORDINATES) -> Frame:
     floor = float(np.linalg.norm(u))
     u = u / floor if floor > 0 else np.eye(w.shape[1])[0]
     wc = _parts(rot[None] * pr.contrib)  # (O, 3, K)
-    dw = wc - wc[ref[pr.owner]]
-    proj = np.eye(u.size) - np.outer(u, u)
-    m = max(1, min(kept, u.size - 1))
+    return Rotated(w, wc - wc[ref[pr.owner]], u, floor, choices_of(pr))
+
+
+def frame_of(pr: Problem, kept: int = KEPT_COORDINATES) -> Frame:
+    """The frame of a problem with ``u_p = U`` for every phase (module notes)."""
+    return frame_in(rotated_of(pr), None, kept)
+
+
+def frame_in(
+    rs: Rotated, directions: np.ndarray | None = None, kept: int = KEPT_COORDINATES
+) -> Frame:
+    """A frame of rotated spectra: ``u_p = U`` for every phase unless ``directions`` is given.
+
+    The principal directions across each ``u_p`` are the leading
+    eigenvectors of the changes' second moments (and the reference's).
+    """
+    w, dw = rs.w, rs.dw
+    u = np.broadcast_to(rs.unit, w.shape) if directions is None else directions
+    u = u / np.linalg.norm(u, axis=1, keepdims=True)
+    m = max(1, min(kept, w.shape[1] - 1))
     l0 = np.zeros((3, m))
-    dl = np.zeros((pr.n_options, 3, m))
-    res0, dres = np.zeros(3), np.zeros((pr.n_options, 3))
+    dl = np.zeros((dw.shape[0], 3, m))
+    res0, dres = np.zeros(3), np.zeros((dw.shape[0], 3))
+    bases = np.zeros((3, w.shape[1], m))
     for p in range(3):
+        proj = np.eye(w.shape[1]) - np.outer(u[p], u[p])
         across = dw[:, p] @ proj
         now = w[p] @ proj
         stack = np.vstack([across, now[None]])
         _, vecs = np.linalg.eigh(np.einsum("ik,il->kl", stack, stack))
-        basis = proj @ vecs[:, ::-1][:, :m]  # principal directions across U
-        basis, _ = np.linalg.qr(basis)
+        basis, _ = np.linalg.qr(proj @ vecs[:, ::-1][:, :m])  # principal directions across u_p
+        bases[p] = basis
         l0[p], dl[:, p] = now @ basis, across @ basis
         res0[p] = np.linalg.norm(now - basis @ l0[p])
         dres[:, p] = np.linalg.norm(across - dl[:, p] @ basis.T, axis=-1)
-    return Frame(floor, w @ u, dw @ u, l0, dl, res0, dres, choices_of(pr))
+    a0 = np.einsum("pk,pk->p", w, u)
+    da = np.einsum("opk,pk->op", dw, u)
+    return Frame(rs.floor_a, a0, da, l0, dl, res0, dres, bases, rs, np.array(u), rs.choices)
 
 
 def target_rows(
@@ -202,31 +257,43 @@ def _row_impossible(fr: Frame, rows, k: int) -> bool:
     return bool(np.any(smallest > beta + 1e-9 * max(fr.floor_a, 1e-9)))
 
 
-def _second_order(fr: Frame, rows, k: int, lower: np.ndarray, sq: np.ndarray):
-    """New bounds ``(L, B)`` over the region of the rows violated at the reference (Theorem 2)."""
+def _ranges(region: Frame, rows, k: int, fr: Frame):
+    """Bounds of ``fr``'s coordinates over the region of ``rows`` (Theorem 2).
+
+    ``rows`` are in ``region``'s frame; only those violated at the reference
+    are used (each alone is a valid restriction). Returns ``lo, hi`` (3, m)
+    of the principal coordinates, the residual norm (3,), and the least and
+    largest ``a_p`` (3,), (3,).
+    """
     c, d, beta = rows
-    active = np.flatnonzero(c > beta)
-    m = fr.l0.shape[1]
-    f0 = np.concatenate([fr.l0.ravel(), -fr.l0.ravel(), fr.res0, -fr.a0])
-    df = np.concatenate(
-        [
-            fr.dl.reshape(fr.dl.shape[0], -1).T,
-            -fr.dl.reshape(fr.dl.shape[0], -1).T,
-            fr.dres.T,
-            -fr.da.T,
-        ]
-    )
+    m, n_opt = fr.l0.shape[1], fr.dl.shape[0]
+    flat = fr.dl.reshape(n_opt, -1).T
+    f0 = np.concatenate([fr.l0.ravel(), -fr.l0.ravel(), fr.res0, -fr.a0, fr.a0])
+    df = np.concatenate([flat, -flat, fr.dres.T, -fr.da.T, fr.da.T])
     ub = np.full(f0.size, np.inf)
-    for j in active:
+    for j in np.flatnonzero(c > beta):
         ub = np.minimum(ub, max_under_row(fr.choices, f0, df, (c[j], d[:, j], beta[j]), k))
     hi, lo = ub[: 3 * m].reshape(3, m), -ub[3 * m : 6 * m].reshape(3, m)
-    res = ub[6 * m : 6 * m + 3]
-    new_sq = np.sum(np.maximum(hi**2, lo**2), axis=1) + np.maximum(res, 0.0) ** 2
-    return np.maximum(lower, -ub[6 * m + 3 :]), np.minimum(sq, new_sq)
+    res = np.maximum(ub[6 * m : 6 * m + 3], 0.0)
+    return lo, hi, res, -ub[6 * m + 3 : 6 * m + 6], ub[6 * m + 6 :]
+
+
+def _recentred(fr: Frame, lo: np.ndarray, hi: np.ndarray, a_mid: np.ndarray) -> Frame:
+    """A frame whose ``u_p`` point at the middle of the region (smaller ``b_p`` there)."""
+    centre = np.einsum("pkm,pm->pk", fr.basis, 0.5 * (lo + hi))
+    u = a_mid[:, None] * fr.directions + centre
+    if not np.all(np.isfinite(u)) or np.any(np.linalg.norm(u, axis=1) <= 0):
+        return fr
+    return frame_in(fr.rotated, u, fr.l0.shape[1])
 
 
 def changes_impossible(fr: Frame, target: float, k: int, rounds: int = FIXED_POINT_ROUNDS) -> bool:
     """True when proven: no plan with at most ``k`` changes meets the target (Theorems 1-2).
+
+    Each round bounds the second order over the region of the last rows, in
+    a frame re-centred on that region (any ``u_p`` may be used: Lemma 1
+    holds for every unit direction), and stops when a row is shut or the
+    second order stops shrinking.
 
     Parameters
     ----------
@@ -248,7 +315,7 @@ def changes_impossible(fr: Frame, target: float, k: int, rounds: int = FIXED_POI
     across0 = np.sqrt(np.sum(fr.l0**2, axis=1) + fr.res0**2)
     step = np.sqrt(np.sum(fr.dl**2, axis=2) + fr.dres**2)  # (O, 3)
     sq = (across0 + best_gain(fr.choices, step.T, k)) ** 2
-    last = np.inf
+    nxt, last = fr, np.inf
     for _ in range(rounds):
         q_second = sq / (2.0 * lower)
         rows = target_rows(fr, t, q_second)
@@ -258,9 +325,16 @@ def changes_impossible(fr: Frame, target: float, k: int, rounds: int = FIXED_POI
         if total > 0.98 * last:
             return False
         last = total
-        lower, sq = _second_order(fr, rows, k, lower, sq)
-        if np.any(lower <= 0):
+        lo, hi, res, a_min, a_max = _ranges(fr, rows, k, nxt)
+        if not (np.all(np.isfinite(lo)) and np.all(np.isfinite(hi))):
+            return False  # no row restricts the region: nothing to shut
+        new_sq = np.sum(np.maximum(lo**2, hi**2), axis=1) + res**2
+        if nxt is fr:
+            new_sq, a_min = np.minimum(sq, new_sq), np.maximum(lower, a_min)
+        if not np.all(np.isfinite(new_sq)) or np.any(a_min <= 0):
             return False
+        fr, sq, lower = nxt, new_sq, a_min
+        nxt = _recentred(fr, lo, hi, 0.5 * (a_min + np.maximum(a_max, a_min)))
     return _row_impossible(fr, target_rows(fr, t, sq / (2.0 * lower)), k)
 
 

@@ -44,23 +44,32 @@ LAGRANGE_STEPS = 16
 
 @dataclass(frozen=True, eq=False)
 class Choices:
-    """The options of each free circuit, and which ones count as changes.
+    """The other options of each free circuit that has any, and which ones count as changes.
 
     Attributes
     ----------
-    starts : int ndarray, shape (C,)
-        First option of each free circuit (its options run to the next start).
+    alt : int ndarray, shape (C, A)
+        Per circuit with another option, its options other than the
+        reference one (padded with the reference option, whose value is 0).
     movable : bool ndarray, shape (C,)
         Placed circuits (a change counts); new circuits change freely.
     """
 
-    starts: np.ndarray
+    alt: np.ndarray
     movable: np.ndarray
 
 
 def choices_of(pr: Problem) -> Choices:
-    """The choices of a problem's free circuits."""
-    return Choices(pr.starts[:-1].copy(), pr.movable.copy())
+    """The choices of a problem's free circuits (those with one option never change)."""
+    ref = pr.current_assignment()
+    counts = np.diff(pr.starts)
+    width = max(1, int(counts.max(initial=1)) - 1)
+    rows, movable = [], []
+    for i in np.flatnonzero(counts > 1):
+        others = [o for o in range(pr.starts[i], pr.starts[i + 1]) if o != ref[i]]
+        rows.append(others + [int(ref[i])] * (width - len(others)))
+        movable.append(bool(pr.movable[i]))
+    return Choices(np.array(rows, dtype=int).reshape(-1, width), np.array(movable, dtype=bool))
 
 
 def best_gain(ch: Choices, values: np.ndarray, k: int) -> np.ndarray:
@@ -81,14 +90,27 @@ def best_gain(ch: Choices, values: np.ndarray, k: int) -> np.ndarray:
         every new circuit's maximum (a new circuit takes an option without
         counting; its reference option gives 0).
     """
-    per = np.maximum.reduceat(values, ch.starts, axis=-1)
-    mov = per[..., ch.movable]
-    out = per[..., ~ch.movable].sum(axis=-1)
-    kk = min(max(0, int(k)), mov.shape[-1])
-    if kk:
-        top = -np.partition(-mov, kk - 1, axis=-1)[..., :kk]
-        out = out + np.maximum(top, 0.0).sum(axis=-1)
-    return out
+    per = np.zeros(values.shape[:-1] + ch.alt.shape[:1])
+    for j in range(ch.alt.shape[1]):  # a column at a time: a reduction over 2 is slow
+        np.maximum(per, values[..., ch.alt[:, j]], out=per)
+    return _best_of(ch, per, k)
+
+
+def _best_of(ch: Choices, per: np.ndarray, k: int) -> np.ndarray:
+    """Lemma 1 from per-circuit maxima ``per`` (..., C), already at least 0."""
+    if ch.movable.all():
+        out, mov = 0.0, per
+    else:
+        out, mov = per[..., ~ch.movable].sum(axis=-1), per[..., ch.movable]
+    n = mov.shape[-1]
+    kk = min(max(0, int(k)), n)
+    if kk == n:
+        return out + mov.sum(axis=-1)
+    if kk == 0:
+        return out + np.zeros(mov.shape[:-1])
+    # the k largest: everything but the n - k smallest
+    rest = np.partition(mov, n - kk - 1, axis=-1)[..., : n - kk].sum(axis=-1)
+    return out + mov.sum(axis=-1) - rest
 
 
 def max_under_row(
@@ -123,10 +145,14 @@ def max_under_row(
         return best
     scale = np.maximum(np.max(np.abs(df), axis=1), 1e-12) / dmax  # (N,)
 
+    cols = [(df[:, ch.alt[:, j]], d[ch.alt[:, j]]) for j in range(ch.alt.shape[1])]
+
     def values(logs: np.ndarray) -> np.ndarray:  # logs (G, N) -> (G, N)
-        lam = scale[None, :] * np.exp(logs)
-        gain = best_gain(ch, df[None, :, :] - lam[:, :, None] * d[None, None, :], k)
-        return f0[None, :] + lam * (beta - c) + gain
+        lam = (scale[None, :] * np.exp(logs))[:, :, None]
+        per = np.zeros((logs.shape[0], f0.size, ch.alt.shape[0]))
+        for df_j, d_j in cols:
+            np.maximum(per, df_j[None] - lam * d_j[None, None], out=per)
+        return f0[None, :] + lam[:, :, 0] * (beta - c) + _best_of(ch, per, k)
 
     coarse = np.linspace(-8.0, 8.0, LAGRANGE_STEPS)
     logs = np.broadcast_to(coarse[:, None], (coarse.size, f0.size))
