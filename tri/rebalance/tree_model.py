@@ -56,7 +56,7 @@ from tri.rebalance.slot_model import SlotColumns, add_slots
 from tri.rebalance.tree_problem import TreeProblem
 
 #: Largest number of option products of one node's exact square [-].
-MAX_PRODUCTS = 12_000
+MAX_PRODUCTS = 20_000
 #: Relative widening of every target in the program (keeps it a relaxation at round-off) [-].
 TARGET_SLACK = 1e-7
 
