@@ -41,6 +41,7 @@ from tri.rebalance.tree_model import (
 )
 from tri.rebalance.tree_problem import TreeProblem
 from tri.rebalance.tree_search import beam_plans, changes_of, listed_plans
+from tri.words import plural
 
 #: Largest number of plans realised at one listed level before the level is left unsettled [-].
 REALISE_LIMIT = 400
@@ -137,7 +138,8 @@ class TreeSearch:
         while not self.control.stop() and j <= self.cap:
             if self.best_k is not None and j >= self.best_k:
                 return
-            self.control.report(f"checking every plan with {j} phase changes in the building")
+            what = plural(j, "phase change")
+            self.control.report(f"checking every plan with {what} in the building")
             batches = listed_plans(self.changes, j, self.control.stop)
             if batches is None:
                 return
@@ -171,7 +173,7 @@ class TreeSearch:
 
     def _round(self, parts: TreeModelParts, learnt: TreeLearnt, budget: int) -> bool:
         tm = build_tree_model(parts, budget, learnt)
-        what = f"at most {budget} relocation{'s' if budget != 1 else ''}"
+        what = f"at most {plural(budget, 'relocation')}"
         self.control.report(f"solver: looking for a plan with {what} in the building")
         c = self.control
         span = min(self.slice_s, c.remaining()) if c.can_cancel else c.remaining()

@@ -34,7 +34,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from tri.rebalance.control import CancelHook, Control, ProgressCallback
-from tri.rebalance.options import DEFAULT_TARGET_PCT, DEFAULT_TIME_LIMIT_S, plural
+from tri.rebalance.options import DEFAULT_TARGET_PCT, DEFAULT_TIME_LIMIT_S
 from tri.rebalance.results import Figures, Move, apply_moves
 from tri.rebalance.tree_loop import TreePlan, TreeSearch
 from tri.rebalance.tree_model import TreeModelParts
@@ -46,6 +46,7 @@ from tri.schedule.tree import ScheduleTree, with_schedules
 from tri.schedule.tree_to_engine import analyse_building
 from tri.schedule.validate import circuit_where
 from tri.schedule.wiring import building_refusal, rebalancer_refusal
+from tri.words import plural
 
 
 @dataclass(frozen=True)

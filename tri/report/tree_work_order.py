@@ -38,12 +38,12 @@ from rich.table import Table
 from rich.text import Text
 
 from tri.rebalance import Figures, Move, Suggestion, WorkStep
-from tri.rebalance.options import plural
 from tri.rebalance.tree_results import PanelPlan, TreeSuggestion
 from tri.report.data import num
 from tri.report.text_report import to_ascii
 from tri.report.work_order import WorkLine, fixed, work_order
 from tri.schedule.model import Schedule
+from tri.words import plural
 
 
 @dataclass(frozen=True)
