@@ -56,3 +56,9 @@ def test_every_golden_file_belongs_to_a_demo() -> None:
         if f.name in ("README.md", ".gitattributes"):
             continue
         assert f.name.rsplit(".", 1)[0] in stems, f"stale golden file {f.name}"
+
+
+def test_no_report_writes_a_hedged_plural() -> None:
+    """Every count in every format is a real plural ("1 circuit", "2 circuits"), never "(s)"."""
+    hedged = [p.name for p in GOLDEN.iterdir() if "(s)" in p.read_text(encoding="utf-8")]
+    assert hedged == []

@@ -229,4 +229,4 @@ def test_a_parent_analysed_alone_says_what_it_leaves_out():
     from tri.schedule.to_engine import analyse_schedule
 
     a = analyse_schedule(load_schedule(DEMO).schedule)
-    assert any("feeds 3 panel(s)" in f.message and "leave" in f.message for f in a.findings)
+    assert any("feeds 3 panels" in f.message and "leave" in f.message for f in a.findings)

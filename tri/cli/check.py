@@ -22,6 +22,7 @@ from tri.engine.limits import LIGHT_LOAD_PCT, SRC_LIGHT_LOAD
 from tri.report.check_report import LIMITS, NOT_CHECKED, evaluate, panel_status, result_dict
 from tri.report.check_text import render_check_text
 from tri.schedule.errors import ScheduleError
+from tri.words import plural
 
 
 def add_parser(sub: Any) -> None:
@@ -202,5 +203,6 @@ def run(args: argparse.Namespace) -> int:
         emit(render_check_text(entries, caution=SAFETY_CAUTION, maxima=maxima))
     if code == EXIT_ERROR and len(entries) > 1:
         bad = sum(1 for e in entries if e["status"] == "error")
-        print(f"tri: {bad} of {len(entries)} file(s) could not be checked.", file=sys.stderr)
+        files = plural(len(entries), "file")
+        print(f"tri: {bad} of {files} could not be checked.", file=sys.stderr)
     return code

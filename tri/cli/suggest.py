@@ -77,6 +77,9 @@ def add_parser(sub: Any) -> None:
         "--write", metavar="OUT", help="save the schedule after the moves to OUT (.toml)"
     )
     p.add_argument("--format", choices=("text", "json"), default="text", help="output format")
+    from tri.cli.suggest_tree import add_tree_arguments
+
+    add_tree_arguments(p)  # a building: tri/cli/suggest_tree.py
 
 
 def _number(option: str, text: str | None, what: str, lo: float, hi: float) -> float | None:
@@ -160,6 +163,11 @@ def run(args: argparse.Namespace) -> int:
     if args.write:
         _check_write_target(args.write)
     loaded = load(args.file)
+    from tri.cli.suggest_tree import run_tree, uses_tree
+    from tri.schedule.tree import feeder_circuits
+
+    if uses_tree(args, bool(feeder_circuits(loaded.schedule))):
+        return run_tree(args)  # the panels it feeds are searched with it
     schedule = loaded.schedule
     if options.neutral_max_a is not None and not schedule.system.has_neutral:
         raise CliError(f"--neutral-max: {schedule.panel.system} is a 3-wire system with no neutral")

@@ -84,6 +84,7 @@ from tri.engine.unbalance_findings import (
     phase_kva_findings,
     voltage_findings,
 )
+from tri.words import plural
 
 #: Phasors smaller than this fraction of the panel's total circuit current are
 #: round-off and are set to exactly 0 (so a balanced neutral reads 0∠0°) [-].
@@ -298,8 +299,8 @@ def _findings(
         out.append(
             Finding(
                 "info",
-                f"{a.unplaced_count} circuit(s) not placed on a phase are left out of the "
-                "phase figures.",
+                f"Left out of the phase figures: {plural(a.unplaced_count, 'circuit')} not "
+                "placed on a phase.",
                 "tri schedule convention",
             )
         )

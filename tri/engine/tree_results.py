@@ -29,6 +29,7 @@ from tri.engine.results import BatchAnalysis, Finding, PanelAnalysis, Phasor
 from tri.engine.tree import Progress, TreeSolution, solve_tree
 from tri.engine.tree_code import tree_code_figures
 from tri.engine.tree_inputs import PackedTree, PanelLink, TreeInputs, pack_tree
+from tri.words import plural
 
 #: Zero-sequence current below this fraction of the transformer's rated
 #: current is round-off, not worth a finding [-].
@@ -269,7 +270,7 @@ def tree_findings(
         out.append(
             Finding(
                 "info",
-                f"Figures include the {fed_count} panel(s) fed from this one, with every "
+                f"Figures include {plural(fed_count, 'panel')} fed from this one, with every "
                 "harmonic order, through their feeders (and transformers).",
                 "tri roll-up (phases kept along each feeder)",
             )

@@ -30,6 +30,7 @@ from dataclasses import dataclass
 from typing import Literal
 
 from tri.engine.loading import FindingLimits
+from tri.words import plural as plural  # re-exported
 
 Mode = Literal["fewest-moves", "balance", "place-new", "relayout"]
 
@@ -123,11 +124,6 @@ class SuggestOptions:
         if self.mode != "fewest-moves":
             return None
         return DEFAULT_TARGET_PCT if self.target_pct is None else self.target_pct
-
-
-def plural(count: int, word: str) -> str:
-    """``"1 relocation"``, ``"2 relocations"``."""
-    return f"{count} {word}{'' if count == 1 else 's'}"
 
 
 def objective_text(opts: SuggestOptions) -> str:

@@ -136,7 +136,8 @@ LIMITS: tuple[Limit, ...] = (
         "loading",
         "--max-loading-pct",
         "the sizing rule: calculated load of the heaviest phase (noncontinuous plus the "
-        "continuous factor times continuous, scheduled VA over V_LN), % of the main "
+        "continuous factor times continuous, scheduled VA over V_LN; on a high-leg delta "
+        "the 2- and 3-pole shares over V_LL/√3), % of the main "
         "breaker (bus rating without a main)",
         RATING_PCT,
         "%",

@@ -33,6 +33,7 @@ from tri.engine.results import PanelAnalysis
 from tri.report.data import num
 from tri.schedule.log_file import LoadedLog
 from tri.schedule.model import Schedule
+from tri.words import plural
 
 #: A phase whose logged share is this many points above its scheduled share
 #: gets a finding [percentage points] (a tri setting, not a standard).
@@ -257,11 +258,12 @@ def log_findings(d: dict[str, Any]) -> list[dict[str, str]]:
     if gaps["count"] or d["duplicates"]["count"]:
         longest = gaps["longest"]
         text = (
-            f"The log has {gaps['count']} gap(s), {gaps['missing_intervals']} interval(s) missing"
+            f"The log has {plural(gaps['count'], 'gap')}, "
+            f"{plural(gaps['missing_intervals'], 'interval')} missing"
         )
         if longest:
             text += f" (longest {longest['minutes']:g} min from {longest['start']})"
-        text += f", and {d['duplicates']['count']} duplicate time(s)"
+        text += f", and {plural(d['duplicates']['count'], 'duplicate time')}"
         if d["duplicates"]["first_line"]:
             text += f" (first at line {d['duplicates']['first_line']}; the first row was kept)"
         out.append(

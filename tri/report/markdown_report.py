@@ -31,6 +31,7 @@ from tri.report import wiring_markdown as wm
 from tri.report.data import is_two_column, line_labels
 from tri.report.numbers import fixed
 from tri.schedule.slots import slot_phase
+from tri.words import plural
 
 _SPECIAL = "\\`*_[]<>|#~"
 
@@ -319,7 +320,7 @@ def _sizing(d: dict[str, Any]) -> str:
     p = d["panel"]
     z = d["sizing"]
     breakers = (
-        f" Breakers: {z['breakers_rated']} circuit(s) with a rating judged the same way "
+        f" Breakers: {plural(z['breakers_rated'], 'circuit')} with a rating judged the same way "
         f"({z['breaker_clause']}), {z['breakers_over']} over."
         if z["breakers_rated"]
         else " No circuit gives a breaker rating."

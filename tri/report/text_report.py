@@ -33,6 +33,7 @@ from tri.engine.limits import DESIGN_HEADROOM_PCT, NEAR, OVER, loading_word
 from tri.report.data import line_labels
 from tri.report.numbers import fixed
 from tri.report.wiring_text import wiring_section
+from tri.words import plural
 
 #: Width of the loading bar [cells]; a full bar is 100 % of the rating.
 BAR_CELLS = 10
@@ -133,7 +134,7 @@ def _heading(d: dict[str, Any], g: _Glyphs) -> RenderableType:
         lines.append(f"  ({p['file']})")
     lines.append(
         f"\n{p['system']} {p['wiring']}, {p['frequency_hz']:g} Hz; {main}{neutral}; "
-        f"{placed} circuit(s) placed, {len(d['unplaced'])} unplaced."
+        f"{plural(placed, 'circuit')} placed, {len(d['unplaced'])} unplaced."
     )
     if b["iterated"]:
         basis = (
@@ -238,7 +239,8 @@ def _sizing_text(d: dict[str, Any]) -> Text:
         over = f" {OVER}" if lab in z["over"] else ""
         phases.append(f"{lab} {_f(ph['calculated_a'])} A ({_f(ph['calculated_pct'])} %{over})")
     breakers = (
-        f" Breakers: {z['breakers_rated']} circuit(s) with a rating, each judged the same way "
+        f" Breakers: {plural(z['breakers_rated'], 'circuit')} with a rating, each judged the "
+        "same way "
         f"({z['breaker_clause']}): "
         + (f"{z['breakers_over']} over (see the findings)." if z["breakers_over"] else "none over.")
         if z["breakers_rated"]

@@ -13,6 +13,8 @@ from __future__ import annotations
 from collections.abc import Callable
 from typing import Any
 
+from tri.words import plural
+
 #: Legend of the wiring marks, appended to the directory's note.
 MARKS_LEGEND = (
     " N shares a neutral (a multi-wire branch circuit: a breaker with a neutral, or "
@@ -47,7 +49,7 @@ def panel_facts(d: dict[str, Any], esc: Callable[[str], str]) -> list[list[str]]
     if p["fed_from"]:
         rows.append(["Fed from", esc(p["fed_from"])])
     if p["max_row_shift"] is not None:
-        rows.append(["Reach", f"a breaker's conductors reach {p['max_row_shift']} row(s)"])
+        rows.append(["Reach", f"a breaker's conductors reach {plural(p['max_row_shift'], 'row')}"])
     return rows
 
 

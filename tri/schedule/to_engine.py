@@ -43,6 +43,7 @@ from tri.schedule.wiring import (
     legs_of,
     neutral_groups,
 )
+from tri.words import plural
 
 #: The continuous factor in NEC practice [-] (:data:`tri.engine.limits.CONTINUOUS_FACTOR`);
 #: the default follows the panel's practice (:func:`default_continuous_factor`).
@@ -237,8 +238,8 @@ def analyse_schedule(
     if fed:  # one panel of a building, analysed alone (the UI, tri suggest)
         note = Finding(
             "info",
-            f"This panel feeds {len(fed)} panel(s) ({', '.join(fed)}); these figures leave "
-            "them out. `tri report` on this file rolls the whole building up.",
+            f"This panel feeds {plural(len(fed), 'panel')} ({', '.join(fed)}); these figures leave "
+            "out what it feeds. `tri report` on this file rolls the whole building up.",
             "tri roll-up (feeder circuits carry no load of their own)",
         )
         result = dataclasses.replace(result, findings=(*result.findings, note))

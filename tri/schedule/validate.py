@@ -12,6 +12,7 @@ from tri.schedule.errors import ScheduleIssue, name_circuit
 from tri.schedule.model import Circuit, Schedule
 from tri.schedule.slots import fits, occupied_slots
 from tri.schedule.wiring import check_wiring
+from tri.words import plural
 
 
 def circuit_where(circuit: Circuit, schedule: Schedule) -> str:
@@ -54,7 +55,7 @@ def check_schedule(schedule: Schedule) -> list[ScheduleIssue]:
                 "profile",
             )
         if c.phases is not None and len(c.phases) != c.poles:
-            add(f"{c.poles}-pole circuit connected to {len(c.phases)} phase(s)", "phases")
+            add(f"{c.poles}-pole circuit connected to {plural(len(c.phases), 'phase')}", "phases")
         if c.phases is not None and len(set(c.phases)) != len(c.phases):
             add("the same phase is named twice; expected distinct phases", "phases")
         if c.slot is None:

@@ -13,20 +13,7 @@ import re
 from tri.schedule.errors import ScheduleIssue
 from tri.schedule.model import Circuit, Schedule
 from tri.schedule.slots import occupied_slots
-
-
-def plural(count: int, noun: str, many: str | None = None) -> str:
-    """``"1 move"``, ``"2 moves"``, ``"0 moves"``; ``many`` when the plural is not noun + s.
-
-    The last word is inflected: ``plural(2, "new circuit")`` is ``"2 new circuits"``.
-    """
-    if count == 1:
-        return f"1 {noun}"
-    if many is None:
-        head, _, last = noun.rpartition(" ")
-        last += "es" if last.endswith(("s", "x", "ch", "sh")) else "s"
-        many = f"{head} {last}".strip()
-    return f"{count} {many}"
+from tri.words import plural as plural  # re-exported
 
 
 def place_words(circuit: Circuit, schedule: Schedule) -> str:

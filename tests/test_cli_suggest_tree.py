@@ -1,0 +1,225 @@
+"""``tri suggest`` on a building: the brewery demo, the JSON re-checked by the engine, Ctrl+C.
+
+The brewery's fewest relocations (10 % everywhere) are checked against a
+bound found outside the building search **[computed]**: each leaf panel's
+deviation depends on its own breakers only, so any plan relocates at least
+the single-panel rebalancer's proven optimum in each leaf (HP-1, LP-1,
+LP-2), and the building search must find a plan with exactly their sum.
+"""
+
+from __future__ import annotations
+
+import json
+import signal
+import subprocess
+import sys
+import time
+from pathlib import Path
+
+import numpy as np
+from cli_support import run_tri
+
+from tri.schedule.tree import load_tree, with_schedules
+from tri.schedule.tree_to_engine import analyse_building
+
+ROOT = Path(__file__).resolve().parents[1]
+BREWERY = ROOT / "panels_demo" / "brewery"
+MDP = str(BREWERY / "mdp_480.toml")
+
+
+def _json(*args: str) -> tuple[int, dict]:
+    r = run_tri("suggest", *args, "--format", "json")
+    assert r.returncode in (0, 1), r.stderr
+    return r.returncode, json.loads(r.stdout)
+
+
+def test_brewery_demo_text_groups_the_work_by_panel():
+    r = run_tri("suggest", MDP)
+    assert r.returncode == 0, r.stderr
+    assert "Proposed breaker moves across a building: MDP, Copper Kettle Brewing" in r.stdout
+    assert "Status: optimal: proven that no plan with fewer breakers relocated" in r.stdout
+    assert "Work order (6 breakers relocated in 3 panels)" in r.stdout
+    for name, file in (
+        ("HP-1 brewhouse motors", "hp1_480.toml"),
+        ("LP-1 taproom", "lp1_208.toml"),
+        ("LP-2 kitchen", "lp2_208.toml"),
+    ):
+        line = next(x for x in r.stdout.splitlines() if x.startswith(f"{name} ("))
+        assert file in line
+    assert "No moves in: MDP, Copper Kettle Brewing" in r.stdout
+    assert r.stdout.count("Caution:") == 2
+    assert "1. Move breaker" in r.stdout
+
+
+def test_brewery_optimum_is_the_sum_of_the_leaf_optima():
+    leaf_sum = 0
+    for leaf in ("hp1_480", "lp1_208", "lp2_208"):
+        _, single = _json(str(BREWERY / f"{leaf}.toml"), "--target", "10")
+        assert single["status"] == "optimal"
+        leaf_sum += single["relocations"]
+    code, d = _json(MDP, "--target", "10")
+    assert code == 0
+    assert d["status"] == "optimal"
+    assert d["relocations"] == leaf_sum == 6
+
+
+def _apply(tree, data: dict):
+    """The building after the JSON's moves, each found by circuit name and slot."""
+    by_file = {p.shown: i for i, p in enumerate(tree.panels)}
+    schedules = [p.schedule for p in tree.panels]
+    for panel in data["panels"]:
+        k = by_file[panel["file"]]
+        sched = schedules[k]
+        for m in panel["moves"]:
+            idx = next(
+                i
+                for i, c in enumerate(tree.panels[k].schedule.circuits)
+                if c.name == m["circuit"] and c.slot == m["from_slot"]
+            )
+            sched = sched.with_circuit(idx, sched.circuits[idx].at_slot(m["to_slot"]))
+        schedules[k] = sched
+    return with_schedules(tree, schedules)
+
+
+def test_json_plan_rolled_up_again_by_the_engine():
+    code, d = _json(MDP, "--child-target", "15")
+    assert code == 0 and d["target_met"]
+    assert d["panels"][0]["panel"] == d["service"]["panel"]
+    tree = load_tree(MDP)
+    result = analyse_building(_apply(tree, d))
+    for p, node in zip(d["panels"], result.nodes, strict=True):
+        dev = node.analysis.current_unbalance.max_deviation_pct
+        assert dev == pytest_approx(p["after"]["max_deviation_pct"])
+        assert dev <= p["target_pct"] * (1 + 1e-9)
+        assert p["relocations"] == len(p["moves"])
+        assert [w["step"] for w in p["work_order"]] == list(range(1, len(p["work_order"]) + 1))
+    assert d["relocations"] == sum(p["relocations"] for p in d["panels"])
+
+
+def pytest_approx(x: float):
+    import pytest
+
+    return pytest.approx(x, rel=1e-8, abs=1e-9)  # JSON rounds to 9 significant digits
+
+
+def test_at_a_panel_lower_in_the_tree():
+    code, d = _json(MDP, "--at", "LP-1 taproom", "--target", "5")
+    assert code == 0
+    assert [p["panel"] for p in d["panels"]] == ["LP-1 taproom"]
+    assert [a["panel"] for a in d["above"]] == ["MDP, Copper Kettle Brewing"]
+    # a leaf: the single-panel rebalancer's optimum
+    _, single = _json(str(BREWERY / "lp1_208.toml"), "--target", "5")
+    assert d["relocations"] == single["relocations"] and d["status"] == single["status"]
+
+
+def test_bad_options_for_a_building_are_located():
+    r = run_tri("suggest", MDP, "--at", "LP-9")
+    assert r.returncode == 2 and "no panel of the building is named 'LP-9'" in r.stderr
+    r = run_tri("suggest", MDP, "--write", "out.toml")
+    assert r.returncode == 2 and "--write: not yet available for a building" in r.stderr
+    r = run_tri("suggest", MDP, "--max-moves", "2")
+    assert r.returncode == 2 and "--max-moves without --target" in r.stderr
+    r = run_tri("suggest", MDP, "--child-target", "x")
+    assert r.returncode == 2 and "--child-target x: expected a percentage" in r.stderr
+    assert "Traceback" not in r.stderr
+
+
+def _write_building(folder: Path, right_column: str = "ABC", loads: int = 6) -> Path:
+    (folder / "main.toml").write_text(
+        'format = 1\n[panel]\nname = "MAIN"\nsystem = "208Y/120"\nspaces = 12\nbus_a = 400\n'
+        '[[circuit]]\nslot = 1\npoles = 3\nname = "Feeder to LP"\nfeeds = "lp.toml"\n'
+    )
+    body = "".join(
+        f'[[circuit]]\nslot = {k + 1}\nname = "Load {k}"\nload_va = {600 + 150 * k}\n'
+        for k in range(loads)
+    )
+    (folder / "lp.toml").write_text(
+        f'format = 1\n[panel]\nname = "LP"\nsystem = "208Y/120"\nspaces = 12\nbus_a = 200\n'
+        f'right_column = "{right_column}"\n{body}'
+    )
+    return folder / "main.toml"
+
+
+def test_wiring_it_cannot_honour_is_refused_naming_the_file(tmp_path):
+    root = _write_building(tmp_path, right_column="CBA")
+    r = run_tri("suggest", str(root))
+    assert r.returncode == 2
+    assert "lp.toml: [panel] right_column" in r.stderr and "not yet supported" in r.stderr
+
+
+def _big_building(folder: Path) -> Path:
+    """Two sub-panels of 30 circuits behind Dyn transformers (invented data)."""
+    rng = np.random.default_rng(3)
+    body = ""
+    for k in range(2):
+        body += (
+            f'[[circuit]]\nslot = {1 + 6 * k}\npoles = 3\nname = "Feeder {k}"\n'
+            f'feeds = "c{k}.toml"\n'
+            'transformer = { kva = 75, z_pct = 4, x_r = 2, connection = "Dyn", '
+            'secondary = "208Y/120" }\n'
+        )
+        child = "".join(
+            f'[[circuit]]\nslot = {j + 1}\nname = "Load {j}"\n'
+            f"load_va = {int(rng.integers(3, 30)) * 100}\n"
+            f'profile = "{("linear", "electronics", "led-driver")[int(rng.integers(0, 3))]}"\n'
+            for j in range(30)
+        )
+        (folder / f"c{k}.toml").write_text(
+            f'format = 1\n[panel]\nname = "C{k}"\nsystem = "208Y/120"\nspaces = 42\nbus_a = 400\n'
+            + child
+        )
+    body += "".join(
+        f'[[circuit]]\nslot = {20 + j}\nname = "P{j}"\nload_va = {int(rng.integers(5, 40)) * 100}\n'
+        for j in range(8)
+    )
+    (folder / "main.toml").write_text(
+        'format = 1\n[panel]\nname = "MAIN"\nsystem = "480Y/277"\nspaces = 42\nbus_a = 400\n' + body
+    )
+    return folder / "main.toml"
+
+
+def test_time_limit_gives_best_found_with_a_bound(tmp_path):
+    root = _big_building(tmp_path)
+    code, d = _json(str(root), "--target", "0.5", "--child-target", "1", "--time-limit", "1")
+    assert d["status"] == "best-found"
+    assert d["stopped"] == "time limit"
+    assert isinstance(d["bound"], int) and 0 <= d["bound"] <= d["relocations"]
+    assert code == (0 if d["target_met"] else 1)
+    assert "not proven optimal" in d["status_text"]
+
+
+def test_ctrl_c_ends_with_the_best_so_far(tmp_path):
+    root = _big_building(tmp_path)
+    proc = subprocess.Popen(
+        [
+            sys.executable,
+            "-m",
+            "tri",
+            "suggest",
+            str(root),
+            "--target",
+            "0.5",
+            "--child-target",
+            "1",
+            "--time-limit",
+            "120",
+            "--format",
+            "json",
+        ],
+        stdout=subprocess.PIPE,
+        stderr=subprocess.PIPE,
+        text=True,
+        cwd=ROOT,
+    )
+    time.sleep(3.0)
+    proc.send_signal(signal.SIGINT)
+    out, err = proc.communicate(timeout=60)
+    d = json.loads(out)
+    if d["stopped"] is None:  # the search settled before the signal: nothing to check
+        assert d["status"] in ("optimal", "infeasible")
+        return
+    assert d["stopped"] == "cancelled"
+    assert "stopped by Ctrl+C" in err and "Traceback" not in err
+    assert d["status"] == "best-found"
+    assert proc.returncode == (0 if d["target_met"] else 1)
+    assert "stopped by the user" in d["status_text"]

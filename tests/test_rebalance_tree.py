@@ -1,0 +1,141 @@
+"""The building rebalancer against every arrangement of small buildings, and its plans re-checked.
+
+The reference (:mod:`tree_rebalance_reference`, independent of
+:mod:`tri.rebalance`) lists every arrangement of every panel of a small
+building and runs the engine's whole-tree analysis on each electrically
+distinct combination: the fewest relocations for a pair of targets is a
+minimum over that list **[computed]**. Each building has a transformer
+between levels (``Dyn``, ``YNyn0`` or ``Yyn0``) and harmonic profiles.
+The search must then report exactly that count as ``optimal`` (or
+``infeasible`` / ``already-balanced``), with every step on its own: the
+listing alone, the program alone.
+
+Targets are taken halfway between distinct deviations of the list, so no
+plan sits within round-off of a target (the comparison is then exact).
+"""
+
+from __future__ import annotations
+
+import threading
+
+import numpy as np
+import pytest
+from tree_rebalance_reference import tree_cases, write_building
+
+from tri.native_output import native_stdout_to_devnull
+from tri.rebalance.tree_problem import build_tree_problem
+from tri.rebalance.tree_solve import TreeOptions, find_service, suggest_tree
+from tri.schedule.tree import load_tree
+from tri.schedule.tree_to_engine import analyse_building
+
+BUILDINGS = [(0, 1), (1, 1), (2, 1), (3, 2), (4, 2), (5, 2), (6, 1), (7, 1)]
+
+
+def _run(tree, service_pct, child_pct, **kw):
+    opts = TreeOptions(target_pct=service_pct, child_target_pct=child_pct, time_limit_s=60, **kw)
+    with native_stdout_to_devnull():
+        return suggest_tree(tree, opts)
+
+
+def _engine_deviations(tree) -> np.ndarray:
+    return np.array(
+        [n.analysis.current_unbalance.max_deviation_pct for n in analyse_building(tree).nodes]
+    )
+
+
+def _check(s, expected: int | None, service_pct: float, child_pct: float) -> None:
+    if expected is None:
+        assert s.status == "infeasible"
+        assert s.relocations == 0
+        return
+    if expected == 0:
+        assert s.status == "already-balanced"
+        return
+    assert s.status == "optimal", s.notes
+    assert s.relocations == expected
+    # the plan rolled up again by the engine, from the schedules the work order leaves
+    dev = _engine_deviations(s.tree)
+    assert dev[0] <= service_pct * (1 + 1e-9)
+    assert np.all(dev[1:] <= child_pct * (1 + 1e-9))
+    assert s.target_met
+    for p, d in zip(s.panels, dev, strict=True):
+        assert p.after.max_deviation_pct == pytest.approx(d, rel=1e-12, abs=1e-12)
+
+
+@pytest.mark.parametrize(("seed", "children"), BUILDINGS)
+def test_fewest_relocations_match_every_arrangement(tmp_path, seed, children):
+    tree = load_tree(write_building(tmp_path, seed, children))
+    cases = tree_cases(tree)
+    rng = np.random.default_rng(100 + seed)
+    services = cases.clear_targets(0, 2, rng)
+    childs = [*cases.clear_targets(1, 2, rng), 200.0]
+    checked = set()
+    for service_pct in services:
+        for child_pct in childs:
+            expected = cases.optimum(service_pct, child_pct)
+            checked.add(expected)
+            _check(_run(tree, service_pct, child_pct), expected, service_pct, child_pct)
+            # the program alone, then the listing alone, reach the same proof
+            _check(
+                _run(tree, service_pct, child_pct, list_plans=False),
+                expected,
+                service_pct,
+                child_pct,
+            )
+            _check(
+                _run(tree, service_pct, child_pct, use_solver=False),
+                expected,
+                service_pct,
+                child_pct,
+            )
+    assert len(checked) >= 1
+
+
+def test_linear_roll_up_equals_the_engine(tmp_path):
+    """Every panel's currents from the transfer matrices equal the engine's roll-up."""
+    tree = load_tree(write_building(tmp_path, 4, 2))
+    tp = build_tree_problem(tree, 0, 0.1, 0.1)
+    rng = np.random.default_rng(7)
+    for _ in range(5):
+        assign = np.array(
+            [rng.integers(a, b) for a, b in zip(tp.starts[:-1], tp.starts[1:], strict=True)]
+        )
+        v = tp.spectra(assign)
+        # the same plan written into the schedules and analysed as a building
+        parts = tp.split(assign)
+        schedules = [p.schedule for p in tree.panels]
+        for k, node in enumerate(tp.nodes):
+            pr = tp.problems[k]
+            sched = schedules[node]
+            for i, idx in enumerate(pr.free.tolist()):
+                c = sched.circuits[idx]
+                sched = sched.with_circuit(idx, c.on_phases(pr.phases[int(parts[k][i])]))
+            schedules[node] = sched
+        from tri.schedule.tree import with_schedules
+
+        engine = analyse_building(with_schedules(tree, schedules)).solution.total.phase
+        for k, node in enumerate(tp.nodes):
+            assert np.allclose(v[k], engine[node], rtol=1e-12, atol=1e-9)
+
+
+def test_service_named_lower_in_the_tree(tmp_path):
+    tree = load_tree(write_building(tmp_path, 3, 2))
+    assert find_service(tree, "LP") == find_service(tree, "lp.toml")
+    opts = TreeOptions(target_pct=5, service="LP", time_limit_s=30)
+    with native_stdout_to_devnull():
+        s = suggest_tree(tree, opts)
+    assert [p.panel for p in s.panels] == ["LP"]
+    assert [a.panel for a in s.above] == ["MAIN"]
+    with pytest.raises(ValueError, match="no panel of the building is named 'XX'"):
+        find_service(tree, "XX")
+
+
+def test_cancel_returns_the_best_so_far_with_an_honest_status(tmp_path):
+    tree = load_tree(write_building(tmp_path, 5, 2))
+    cancel = threading.Event()
+    cancel.set()
+    with native_stdout_to_devnull():
+        s = suggest_tree(tree, TreeOptions(target_pct=1, time_limit_s=30), cancel=cancel)
+    assert s.stopped == "cancelled"
+    assert s.status == "best-found"
+    assert s.bound is not None and s.bound >= 0

@@ -1,0 +1,178 @@
+"""``tri suggest PARENT``: the fewest breaker moves across a building.
+
+When the file given feeds other panels (or ``--at PANEL`` names one), the
+search covers the service (the file given, or the panel named) and every
+panel below it (:func:`tri.rebalance.tree_solve.suggest_tree`): the
+service within ``--target`` and every panel below it within
+``--child-target`` (default: the same), each panel's currents including
+what it feeds. The work order is grouped by panel.
+
+The search runs in a worker thread; Ctrl+C ends it cleanly with the best
+plan so far and its honest status (exit as for the time limit).
+
+Exit status: 0 when the plan meets every target, 1 when no plan meeting
+them was found (or none exists), 2 for bad input or options.
+"""
+
+from __future__ import annotations
+
+import argparse
+import sys
+import threading
+from typing import Any
+
+from tri.cli.common import EXIT_LIMIT, EXIT_OK, SAFETY_CAUTION, CliError
+from tri.native_output import native_stdout_to_devnull
+
+#: How often the waiting main thread wakes to notice Ctrl+C [s].
+_POLL_S = 0.1
+
+
+def add_tree_arguments(p: Any) -> None:
+    """The options of the building search, on ``tri suggest``'s parser."""
+    p.add_argument(
+        "--at",
+        metavar="PANEL",
+        help="in a building: balance this panel (its [panel] name or file) and the panels below "
+        "it (default: the file given)",
+    )
+    p.add_argument(
+        "--child-target",
+        metavar="PCT",
+        help="in a building: largest deviation allowed at every panel below the one balanced, "
+        "percent (default: --target)",
+    )
+
+
+def uses_tree(args: argparse.Namespace, feeds_others: bool) -> bool:
+    """True when ``tri suggest`` searches a building rather than one panel."""
+    return feeds_others or args.at is not None or args.child_target is not None
+
+
+def _refuse_single_panel_options(args: argparse.Namespace) -> None:
+    unsupported = [
+        ("--place-new", args.place_new),
+        ("--relayout", args.relayout),
+        ("--neutral-max", args.neutral_max is not None),
+        ("--write", args.write is not None),
+    ]
+    for name, given in unsupported:
+        if given:
+            raise CliError(
+                f"{name}: not yet available for a building ({args.file} feeds other panels); "
+                "run tri suggest on one panel's file for it"
+            )
+    if args.max_moves is not None and args.target is None:
+        raise CliError(
+            "--max-moves without --target asks for the best balance of one panel; for a "
+            "building give --target (and --max-moves as a cap on the relocations)"
+        )
+
+
+def _options(args: argparse.Namespace) -> Any:
+    from tri.cli.suggest import MAX_TIME_LIMIT_S, _number
+    from tri.rebalance.tree_solve import TreeOptions
+
+    target = _number("--target", args.target, "a percentage", 0.0, 200.0)
+    child = _number("--child-target", args.child_target, "a percentage", 0.0, 200.0)
+    time_limit = _number("--time-limit", args.time_limit, "seconds", 0.0, MAX_TIME_LIMIT_S)
+    if time_limit is None or time_limit <= 0:
+        raise CliError(f"--time-limit {args.time_limit}: expected a number of seconds above 0")
+    moves = None
+    if args.max_moves is not None:
+        try:
+            moves = int(args.max_moves)
+        except ValueError:
+            raise CliError(f"--max-moves {args.max_moves}: expected a whole number") from None
+        if moves < 0:
+            raise CliError(f"--max-moves {args.max_moves}: expected 0 or more")
+    return TreeOptions(
+        target_pct=target,
+        child_target_pct=child,
+        max_moves=moves,
+        service=args.at,
+        time_limit_s=time_limit,
+    )
+
+
+class _Progress:
+    """One status line on a terminal's standard error, rewritten in place."""
+
+    def __init__(self) -> None:
+        self.active = sys.stderr.isatty()
+        self.shown = False
+
+    def __call__(self, fraction: float | None, message: str) -> None:
+        if not self.active:
+            return
+        pct = "" if fraction is None else f"{100 * fraction:3.0f}% "
+        sys.stderr.write("\r" + f"tri: {pct}{message}"[:78].ljust(78))
+        sys.stderr.flush()
+        self.shown = True
+
+    def clear(self) -> None:
+        if self.shown:
+            sys.stderr.write("\r" + " " * 78 + "\r")
+            sys.stderr.flush()
+
+
+def _search(tree, options, progress) -> Any:
+    """Run the search in a worker; Ctrl+C sets its cancel event and waits for the best so far."""
+    from tri.rebalance.tree_solve import suggest_tree
+
+    cancel, done = threading.Event(), threading.Event()
+    out: dict[str, Any] = {}
+
+    def work() -> None:
+        try:
+            out["result"] = suggest_tree(tree, options, progress=progress, cancel=cancel)
+        except BaseException as exc:  # handed to the main thread
+            out["error"] = exc
+        finally:
+            done.set()
+
+    # waiting on an event, not Thread.join: an interrupted join can leave the
+    # thread marked as ended while it still runs (CPython gh-90882)
+    threading.Thread(target=work, name="tri-suggest-tree", daemon=True).start()
+    while not done.is_set():
+        try:
+            done.wait(_POLL_S)
+        except KeyboardInterrupt:
+            if cancel.is_set():
+                raise  # a second Ctrl+C: abort
+            cancel.set()
+            progress(None, "stopping: finishing the current step (Ctrl+C again to abort)")
+    if "error" in out:
+        raise out["error"]
+    return out["result"]
+
+
+def run_tree(args: argparse.Namespace) -> int:
+    """Run ``tri suggest`` on a building; returns 0 or 1 (bad input raises, exit 2)."""
+    from tri.schedule.tree import load_tree
+
+    _refuse_single_panel_options(args)
+    options = _options(args)
+    tree = load_tree(args.file)
+    before = tuple(p.schedule for p in tree.panels)
+    progress = _Progress()
+    try:
+        with native_stdout_to_devnull():
+            result = _search(tree, options, progress)
+    except ValueError as exc:
+        raise CliError(f"{args.file}: cannot rebalance this building: {exc}") from None
+    finally:
+        progress.clear()
+    if result.stopped == "cancelled":
+        print("tri: stopped by Ctrl+C; shown: the best plan so far", file=sys.stderr)
+
+    from tri.cli.report import emit
+    from tri.report.tree_work_order import render_tree_json, render_tree_text, tree_suggestion_data
+
+    if args.format == "json":
+        emit(render_tree_json(tree_suggestion_data(result, before, SAFETY_CAUTION)), utf8=True)
+    else:
+        enc = (getattr(sys.stdout, "encoding", None) or "").lower().replace("-", "")
+        emit(render_tree_text(result, before, SAFETY_CAUTION, ascii_only=enc != "utf8"))
+    ok = result.status != "infeasible" and result.target_met
+    return EXIT_OK if ok else EXIT_LIMIT

@@ -1,0 +1,323 @@
+"""Rebalancing a building: every panel's options, and each panel's currents as a function of all.
+
+A building is a tree of panels (:mod:`tri.schedule.tree`); the *service* is
+the panel whose balance is asked for (the root, or a panel named by the
+user) and the search covers it and every panel below it. Each panel is
+turned into the single-panel arrays (:func:`tri.rebalance.problem.build_problem`):
+its free circuits (placed and not locked; a feeder breaker is one of them,
+with no load of its own), their options and what each option adds to the
+panel's own line currents, order by order.
+
+How a panel's own currents reach the panels above it is the engine's
+roll-up (:func:`tri.engine.tree.roll_up`): unchanged along a feeder, or
+through a transformer sequence by sequence (zero sequence and balanced
+triplens kept in a delta, the other sequences shifted by the vector group
+and divided by the ratio). At nominal voltage it is linear and acts order by
+order, so for every pair (panel j, panel k above it or k = j) there is a
+complex 3×3 matrix ``M_jk[h]`` per order with
+
+``V_k = Σ_j M_jk · (own currents of j)``  (phases × orders).
+
+The matrices are read off the engine itself: the roll-up of a unit current
+on phase p of panel j, at every order at once, gives column p of every
+``M_jk[h]`` (three roll-ups per panel). So a plan's phase currents at every
+panel of the search, in that panel's own frame, are
+
+``V_k = B_k + Σ_o x_o·C_ok``
+
+with ``B_k`` the fixed circuits' currents rolled up, and ``C_ok`` what
+option ``o`` (of any panel at or below k) adds at k. Figures here are at
+nominal voltage, the schedule convention of every report; the work order's
+figures are the engine's run on the building before and after.
+
+Options are numbered across the search in panel order (the service first,
+depth first), so every panel's subtree holds one contiguous block of
+options: the block of a *node view* (:meth:`TreeProblem.node_view`), a
+:class:`~tri.rebalance.problem.Problem` whose free circuits are every free
+circuit below that panel and whose currents are ``B_k`` and ``C_ok``; the
+single-panel bounds then apply to it unchanged.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Sequence
+from dataclasses import dataclass, replace
+
+import numpy as np
+
+from tri.engine.harmonics import rms
+from tri.engine.tree import Spectra, roll_up
+from tri.engine.tree_inputs import pack_tree
+from tri.engine.unbalance import deviation_rate_pct
+from tri.rebalance.plan_currents import floor_of
+from tri.rebalance.problem import WINDOW_TYPES, Problem, build_problem
+from tri.schedule.model import Schedule
+from tri.schedule.tree import ScheduleTree
+from tri.schedule.tree_to_engine import tree_inputs
+
+#: Largest size of the option-by-panel current table (complex numbers) [-].
+MAX_TABLE = 20_000_000
+#: "No limit" in the capacity arrays of a node view [-].
+_UNLIMITED = np.iinfo(np.int32).max // 4
+
+
+def subtree(tree: ScheduleTree, top: int) -> list[int]:
+    """Panel indices of ``top`` and every panel below it, in the tree's (depth-first) order."""
+    inside = {top}
+    out = [top]
+    for i in range(top + 1, len(tree.panels)):
+        parent = tree.panels[i].parent
+        if parent in inside:
+            inside.add(i)
+            out.append(i)
+    return out
+
+
+def tree_free_indices(schedule: Schedule) -> list[int]:
+    """Circuits the tree search may move: placed and not locked (feeder breakers included)."""
+    return [i for i, c in enumerate(schedule.circuits) if c.is_placed and not c.locked]
+
+
+@dataclass(frozen=True, eq=False)
+class TreeProblem:
+    """The search over a building's panels as arrays (module notes).
+
+    Attributes
+    ----------
+    tree : ScheduleTree
+        The whole building as read.
+    nodes : tuple of int
+        Panel indices of the search (the service first, depth first).
+    parent : int ndarray, shape (P,)
+        Position in ``nodes`` of each node's parent; -1 for the service.
+    problems : tuple of Problem
+        Each node's own single-panel problem.
+    offsets : int ndarray, shape (P + 1,)
+        Options of node ``k`` are ``offsets[k]:offsets[k+1]`` in the global numbering.
+    circuit_offsets : int ndarray, shape (P + 1,)
+        Free circuits of node ``k``, likewise.
+    ends : int ndarray, shape (P,)
+        Node ``k``'s subtree is ``nodes[k:ends[k]]``.
+    orders : int ndarray, shape (H,)
+        Orders of the building, the fundamental first.
+    base : complex ndarray, shape (P, 3, H)
+        Line currents of the fixed circuits at every node, rolled up [A].
+    contrib : complex ndarray, shape (O, P, 3, H)
+        What each option adds at every node (zero outside its ancestors) [A].
+    targets : float ndarray, shape (P,)
+        Largest deviation from the mean allowed at each node, a fraction [-].
+    """
+
+    tree: ScheduleTree
+    nodes: tuple[int, ...]
+    parent: np.ndarray
+    problems: tuple[Problem, ...]
+    offsets: np.ndarray
+    circuit_offsets: np.ndarray
+    ends: np.ndarray
+    orders: np.ndarray
+    base: np.ndarray
+    contrib: np.ndarray
+    targets: np.ndarray
+
+    @property
+    def size(self) -> int:
+        """Panels in the search ``P`` [-]."""
+        return len(self.nodes)
+
+    @property
+    def n_free(self) -> int:
+        """Free circuits of the whole search [-]."""
+        return int(self.circuit_offsets[-1])
+
+    @property
+    def n_options(self) -> int:
+        """Options of the whole search [-]."""
+        return int(self.offsets[-1])
+
+    @property
+    def starts(self) -> np.ndarray:
+        """Global option starts of every free circuit (int ndarray, shape (F + 1,))."""
+        parts = [pr.starts[:-1] + off for pr, off in zip(self.problems, self.offsets, strict=False)]
+        return np.concatenate([*parts, [self.n_options]]).astype(int)
+
+    @property
+    def owner(self) -> np.ndarray:
+        """Global free circuit of every option (int ndarray, shape (O,))."""
+        parts = [pr.owner + c for pr, c in zip(self.problems, self.circuit_offsets, strict=False)]
+        return np.concatenate(parts).astype(int) if parts else np.zeros(0, int)
+
+    @property
+    def movable(self) -> np.ndarray:
+        """Placed free circuits (all of them in this search) (bool ndarray, shape (F,))."""
+        return np.concatenate([pr.movable for pr in self.problems]).astype(bool)
+
+    def current_assignment(self) -> np.ndarray:
+        """Every free circuit's option now, global numbering (int ndarray, shape (F,))."""
+        parts = [
+            pr.current_assignment() + off
+            for pr, off in zip(self.problems, self.offsets, strict=False)
+        ]
+        return np.concatenate(parts).astype(int) if parts else np.zeros(0, int)
+
+    def split(self, assign: np.ndarray) -> list[np.ndarray]:
+        """A global plan as each node's own options (local numbering)."""
+        a = np.asarray(assign, dtype=int)
+        return [
+            a[self.circuit_offsets[k] : self.circuit_offsets[k + 1]] - self.offsets[k]
+            for k in range(self.size)
+        ]
+
+    def spectra(self, assign: np.ndarray) -> np.ndarray:
+        """Line currents at every node of a plan (complex ndarray, shape (P, 3, H)) [A]."""
+        a = np.asarray(assign, dtype=int)
+        return self.base + self.contrib[a].sum(axis=0)
+
+    def deviations_pct(self, assign: np.ndarray) -> np.ndarray:
+        """Largest deviation of a phase RMS current from the mean, every node [%] (shape (P,))."""
+        return deviation_rate_pct(rms(self.spectra(assign)))
+
+    def meets(self, assign: np.ndarray, tol: float = 1e-9) -> bool:
+        """Every node within its target (to round-off ``tol``)."""
+        dev = self.deviations_pct(assign)
+        return bool(np.all(dev <= 100.0 * self.targets * (1 + tol) + 1e-12))
+
+    def node_view(self, k: int) -> Problem:
+        """Node ``k`` as one panel whose free circuits are every free circuit below it.
+
+        Its options are the global block ``offsets[k]:offsets[ends[k]]`` in
+        order, its currents ``B_k`` and ``C_ok`` (module notes); it has no
+        slot geometry (capacities unlimited) and no neutral quantities.
+        """
+        end = int(self.ends[k])
+        o0, o1 = int(self.offsets[k]), int(self.offsets[end])
+        c0, c1 = int(self.circuit_offsets[k]), int(self.circuit_offsets[end])
+        probs = self.problems[k:end]
+        starts = self.starts[c0 : c1 + 1] - o0
+        owner = self.owner[o0:o1] - c0
+        current = np.concatenate([pr.current for pr in probs])
+        offs = np.repeat(self.offsets[k:end] - o0, [pr.n_free for pr in probs])
+        current = np.where(current >= 0, current + offs, -1)
+        h = self.orders.size
+        n_opt = o1 - o0
+        view = Problem(
+            schedule=self.tree.panels[self.nodes[k]].schedule,
+            free=np.arange(c1 - c0),
+            movable=np.concatenate([pr.movable for pr in probs]).astype(bool),
+            poles=np.concatenate([pr.poles for pr in probs]).astype(int),
+            starts=starts.astype(int),
+            owner=owner.astype(int),
+            kind=np.concatenate([pr.kind for pr in probs]).astype(int),
+            phases=tuple(ph for pr in probs for ph in pr.phases),
+            current=current.astype(int),
+            orders=self.orders,
+            contrib=self.contrib[o0:o1, k],
+            ncontrib=np.zeros((n_opt, h), dtype=complex),
+            base=self.base[k],
+            nbase=np.zeros(h, dtype=complex),
+            has_neutral=False,
+            geometry=None,
+            use_cells=np.concatenate([pr.use_cells for pr in probs]).astype(int),
+            use_window=np.zeros((n_opt, WINDOW_TYPES), dtype=int),
+            cap_phase=np.full(3, _UNLIMITED, dtype=int),
+            cap_window=np.full(WINDOW_TYPES, _UNLIMITED, dtype=int),
+        )
+        v = view.base + view.contrib[view.current_assignment()].sum(axis=0)
+        return replace(view, floor_a=floor_of(v, self.orders))
+
+
+def _embed(spectrum: np.ndarray, orders: np.ndarray, into: np.ndarray) -> np.ndarray:
+    """A spectrum on ``orders`` placed on the columns of the larger set ``into``."""
+    out = np.zeros((*spectrum.shape[:-1], into.size), dtype=complex)
+    out[..., np.searchsorted(into, orders)] = spectrum
+    return out
+
+
+def _transfer_matrices(packed, nodes: Sequence[int], orders: np.ndarray) -> np.ndarray:
+    """``M[j, k, h]`` (3×3): node j's own line currents to node k's totals (module notes).
+
+    Three roll-ups per node, each a unit current on one phase at every order.
+    """
+    n_all, h = packed.size, orders.size
+    pos = np.asarray(nodes, dtype=int)
+    out = np.zeros((len(nodes), len(nodes), h, 3, 3), dtype=complex)
+    for j, node in enumerate(nodes):
+        for p in range(3):
+            phase = np.zeros((n_all, 3, h), dtype=complex)
+            phase[node, p, :] = 1.0
+            own = Spectra(phase, np.zeros((n_all, h), dtype=complex), phase)
+            total, _ = roll_up(packed, own, orders)
+            out[j, :, :, :, p] = np.swapaxes(total.phase[pos], -1, -2)
+    return out
+
+
+def build_tree_problem(
+    tree: ScheduleTree, service: int, service_target: float, child_target: float
+) -> TreeProblem:
+    """Arrays of the search for the panel ``service`` and every panel below it.
+
+    Parameters
+    ----------
+    tree : ScheduleTree
+        The building.
+    service : int
+        Index of the service panel in ``tree.panels``.
+    service_target, child_target : float
+        Largest deviation from the mean at the service and at every other
+        panel of the search, fractions [-].
+
+    Returns
+    -------
+    TreeProblem
+
+    Raises
+    ------
+    ValueError
+        A search too large for the current table.
+    """
+    nodes = subtree(tree, service)
+    position = {n: k for k, n in enumerate(nodes)}
+    parent = np.array([position.get(tree.panels[n].parent, -1) for n in nodes], dtype=int)
+    parent[0] = -1
+    ends = np.zeros(len(nodes), dtype=int)
+    for k in range(len(nodes) - 1, -1, -1):
+        ends[k] = max([k + 1, *[ends[c] for c in range(k + 1, len(nodes)) if parent[c] == k]])
+    problems = tuple(
+        build_problem(tree.panels[n].schedule, tree_free_indices(tree.panels[n].schedule))
+        for n in nodes
+    )
+    packed = pack_tree(tree_inputs(tree))
+    orders = np.concatenate([[1], np.asarray(packed.circuits.orders, dtype=int)])
+    n_opt = sum(pr.n_options for pr in problems)
+    if n_opt * len(nodes) * 3 * orders.size > MAX_TABLE:
+        raise ValueError(
+            f"the building is too large to rebalance as one search ({len(nodes)} panels, "
+            f"{n_opt} options); name a panel lower in the tree with --at"
+        )
+    matrices = _transfer_matrices(packed, nodes, orders)  # (P, P, H, 3, 3)
+    base = np.zeros((len(nodes), 3, orders.size), dtype=complex)
+    contrib = np.zeros((n_opt, len(nodes), 3, orders.size), dtype=complex)
+    o = 0
+    for j, pr in enumerate(problems):
+        own = _embed(pr.base, pr.orders, orders)  # (3, H)
+        base += np.einsum("khpq,qh->kph", matrices[j], own)
+        opts = _embed(pr.contrib, pr.orders, orders)  # (O_j, 3, H)
+        contrib[o : o + pr.n_options] = np.einsum("khpq,oqh->okph", matrices[j], opts)
+        o += pr.n_options
+    offsets = np.concatenate([[0], np.cumsum([pr.n_options for pr in problems])]).astype(int)
+    circuit_offsets = np.concatenate([[0], np.cumsum([pr.n_free for pr in problems])]).astype(int)
+    targets = np.full(len(nodes), float(child_target))
+    targets[0] = float(service_target)
+    return TreeProblem(
+        tree=tree,
+        nodes=tuple(nodes),
+        parent=parent,
+        problems=problems,
+        offsets=offsets,
+        circuit_offsets=circuit_offsets,
+        ends=ends,
+        orders=orders,
+        base=base,
+        contrib=contrib,
+        targets=targets,
+    )

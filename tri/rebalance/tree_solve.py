@@ -1,0 +1,390 @@
+"""The building rebalancer's entry point: :func:`suggest_tree`.
+
+The fewest breaker relocations, anywhere in the service panel and the
+panels below it, after which the service's phase RMS currents are within
+its target of their mean and every panel below it within its own target.
+A panel's figures include everything it feeds, rolled up by the engine
+(feeders and transformers, every harmonic order; :mod:`tri.rebalance.tree_problem`).
+
+1. the building is turned into arrays (one single-panel problem per panel
+   and the engine's transfer of currents up the tree);
+2. the search of :mod:`tri.rebalance.tree_loop` (a beam search, plans
+   listed by number of changes, the program of
+   :mod:`tri.rebalance.tree_model`) finds the plan and its proof;
+3. the plan is carried out on every panel's schedule and the engine is run
+   on the building before and after
+   (:func:`tri.schedule.tree_to_engine.analyse_building`): those are the
+   figures reported.
+
+The status is a claim about relocations over the panels searched, as the
+work order counts them: ``optimal`` only when proven, ``best-found`` with
+a proven lower bound, ``infeasible`` only when proven. Panels above a
+service named lower in the tree are not searched (their figures are shown).
+
+Anytime: ``progress(fraction, message)`` reports along the way; ``cancel``
+(a ``threading.Event`` or a callable) ends the search early, and the best
+plan so far is returned with its honest status (``stopped = "cancelled"``).
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+
+import numpy as np
+
+from tri.rebalance.control import CancelHook, Control, ProgressCallback
+from tri.rebalance.options import DEFAULT_TARGET_PCT, DEFAULT_TIME_LIMIT_S
+from tri.rebalance.results import Figures, Move, apply_moves
+from tri.rebalance.tree_loop import TreePlan, TreeSearch
+from tri.rebalance.tree_model import TreeModelParts
+from tri.rebalance.tree_problem import TreeProblem, build_tree_problem, subtree
+from tri.rebalance.tree_results import OutsideFigures, PanelPlan, TreeStatus, TreeSuggestion
+from tri.rebalance.workorder import WorkStep, order_work, rail_steps
+from tri.schedule.model import Schedule
+from tri.schedule.tree import ScheduleTree, with_schedules
+from tri.schedule.tree_to_engine import analyse_building
+from tri.schedule.validate import circuit_where
+from tri.schedule.wiring import building_refusal, rebalancer_refusal
+from tri.words import plural
+
+
+@dataclass(frozen=True)
+class TreeOptions:
+    """What to ask the building rebalancer.
+
+    Attributes
+    ----------
+    target_pct : float or None
+        Largest deviation of a phase RMS current from the mean at the
+        service [%]; default :data:`~tri.rebalance.options.DEFAULT_TARGET_PCT`.
+    child_target_pct : float or None
+        The same at every panel below the service [%]; default: the service's.
+    max_moves : int or None
+        Largest number of relocations in all [-].
+    service : str or None
+        The panel to balance (its ``[panel] name`` or its file); None: the root.
+    time_limit_s : float
+        Wall-clock budget [s].
+    use_solver : bool
+        False: the beam search and the listing only (for comparisons).
+    list_plans : bool
+        False leaves every proof to the program (for tests of it).
+    """
+
+    target_pct: float | None = None
+    child_target_pct: float | None = None
+    max_moves: int | None = None
+    service: str | None = None
+    time_limit_s: float = DEFAULT_TIME_LIMIT_S
+    use_solver: bool = True
+    list_plans: bool = True
+
+    def __post_init__(self) -> None:
+        problems = []
+        for what, v in (("target", self.target_pct), ("child target", self.child_target_pct)):
+            if v is not None and not (math.isfinite(v) and 0 <= v <= 200):
+                problems.append(f"the {what} must be a percentage from 0 to 200")
+        if self.max_moves is not None and self.max_moves < 0:
+            problems.append("the number of moves must be 0 or more")
+        if not (math.isfinite(self.time_limit_s) and self.time_limit_s > 0):
+            problems.append("the time limit must be above 0 s")
+        if problems:
+            raise ValueError("; ".join(problems))
+
+    @property
+    def service_target_pct(self) -> float:
+        """Target at the service [%]."""
+        return DEFAULT_TARGET_PCT if self.target_pct is None else self.target_pct
+
+    @property
+    def below_target_pct(self) -> float:
+        """Target at every panel below the service [%]."""
+        return self.service_target_pct if self.child_target_pct is None else self.child_target_pct
+
+
+def find_service(tree: ScheduleTree, name: str | None) -> int:
+    """Index of the panel named ``name`` (``[panel] name`` or file); 0 for None.
+
+    Raises
+    ------
+    ValueError
+        No panel, or more than one, answers to the name; the message lists them.
+    """
+    if name is None:
+        return 0
+    wanted = name.strip().casefold()
+    hits = [
+        i
+        for i, p in enumerate(tree.panels)
+        if wanted
+        in (
+            p.schedule.panel.name.casefold(),
+            p.shown.casefold(),
+            p.path.name.casefold(),
+            p.path.stem.casefold(),
+        )
+    ]
+    listed = "; ".join(f"{p.schedule.panel.name} ({p.shown})" for p in tree.panels)
+    if not hits:
+        raise ValueError(f"no panel of the building is named '{name}' (panels: {listed})")
+    if len(hits) > 1:
+        raise ValueError(f"more than one panel answers to '{name}' (panels: {listed})")
+    return hits[0]
+
+
+def tree_refusal(tree: ScheduleTree, nodes: list[int]) -> list[str]:
+    """What the building rebalancer cannot honour yet, one sentence per panel, naming its file."""
+    out = building_refusal((p.shown, p.schedule) for p in tree.panels)
+    for i in nodes:
+        p = tree.panels[i]
+        out.extend(f"{p.shown}: {r}" for r in rebalancer_refusal(p.schedule))
+        wheres = [circuit_where(c, p.schedule) for c in p.schedule.circuits if c.use]
+        if wheres:
+            more = f" and {len(wheres) - 3} more" if len(wheres) > 3 else ""
+            out.append(
+                f"{p.shown}: circuits with use factors (scenarios) are not yet supported by the "
+                f"building rebalancer ({', '.join(wheres[:3])}{more})"
+            )
+    return list(dict.fromkeys(out))
+
+
+def objective_words(tree: ScheduleTree, nodes: list[int], opts: TreeOptions) -> str:
+    """What the building search minimises, in words."""
+    service = tree.panels[nodes[0]]
+    cap = f" (at most {opts.max_moves})" if opts.max_moves is not None else ""
+    below = len(nodes) - 1
+    text = f"number of breakers relocated{cap} in {service.schedule.panel.name} ({service.shown})"
+    if below:
+        text += f" and the {plural(below, 'panel')} below it"
+    text += (
+        f", so that every phase RMS current of {service.schedule.panel.name} is within "
+        f"{opts.service_target_pct:g} % of the mean of the three"
+    )
+    if below:
+        text += f" and that of every panel below it within {opts.below_target_pct:g} %"
+    return (
+        text + "; each panel's currents include what it feeds, through feeders and "
+        "transformers, every harmonic order, at nominal voltage"
+    )
+
+
+def suggest_tree(
+    tree: ScheduleTree,
+    options: TreeOptions | None = None,
+    *,
+    progress: ProgressCallback | None = None,
+    cancel: CancelHook | None = None,
+) -> TreeSuggestion:
+    """Propose breaker moves across a building (module notes).
+
+    Parameters
+    ----------
+    tree : ScheduleTree
+        The building, from :func:`tri.schedule.tree.load_tree`.
+    options : TreeOptions, optional
+    progress : callable, optional
+        ``progress(fraction or None, message)`` during the search.
+    cancel : threading.Event or callable, optional
+        Ends the search early; the best plan so far is returned.
+
+    Returns
+    -------
+    TreeSuggestion
+
+    Raises
+    ------
+    ValueError
+        An unknown service panel, or wiring the search cannot honour yet
+        (each sentence names the file; :func:`tree_refusal`).
+    """
+    opts = options or TreeOptions()
+    service = find_service(tree, opts.service)
+    nodes = subtree(tree, service)
+    refusal = tree_refusal(tree, nodes)
+    if refusal:
+        raise ValueError("; ".join(refusal))
+    control = Control(opts.time_limit_s, progress, cancel)
+    control.report("analysing the building as it is", 0.0)
+    before = analyse_building(tree)
+    tp = build_tree_problem(
+        tree, service, opts.service_target_pct / 100.0, opts.below_target_pct / 100.0
+    )
+    movable = int(np.sum(tp.movable)) if tp.n_free else 0
+    cap = movable if opts.max_moves is None else min(opts.max_moves, movable)
+    search = TreeSearch(tp, control, cap)
+    status = _search(search, tp, opts)
+    return _finish(tree, tp, search, opts, status, before, objective_words(tree, nodes, opts))
+
+
+def _fixed_failure(tp: TreeProblem) -> list[int]:
+    """Nodes that miss their target whatever moves: nothing below them can move."""
+    dev = tp.deviations_pct(tp.current_assignment())
+    return [
+        k
+        for k in range(tp.size)
+        if tp.circuit_offsets[tp.ends[k]] == tp.circuit_offsets[k]
+        and dev[k] > 100.0 * tp.targets[k] * (1 + 1e-9) + 1e-12
+    ]
+
+
+def _search(search: TreeSearch, tp: TreeProblem, opts: TreeOptions) -> TreeStatus | None:
+    """Run the steps; returns ``already-balanced`` or None (the status follows from the search)."""
+    if tp.meets(tp.current_assignment()):
+        return "already-balanced"
+    stuck = _fixed_failure(tp)
+    if stuck:
+        search.lower = search.cap + 1
+        for k in stuck:
+            p = tp.tree.panels[tp.nodes[k]]
+            search.notes.append(
+                f"{p.schedule.panel.name} ({p.shown}) misses its target and nothing at or "
+                "below it can move"
+            )
+        return None
+    search.heuristic()
+    if opts.list_plans:
+        search.listing()
+    if search.proven or search.control.stop() or not opts.use_solver:
+        return None
+    search.control.report("preparing the program for the building")
+    parts = TreeModelParts(tp)
+    if not parts.fits():
+        search.notes.append(
+            "the building is too large for the exact program; the bound comes from listing "
+            "plans with few changes"
+        )
+        return None
+    search.model_loop(parts)
+    return None
+
+
+def _moves(pr, plan, schedule: Schedule) -> tuple[list[Move], list[WorkStep]]:
+    """Moves and work order of one panel's plan."""
+    circuits = schedule.circuits
+    moves: dict[int, Move] = {}
+    if pr.slots:
+        changing = {}
+        for idx, slot in plan.arrangement.first_slot.items():
+            c = circuits[idx]
+            if c.slot != slot:
+                changing[idx] = slot
+                new = c.at_slot(slot)
+                moves[idx] = Move(idx, c.name, c.poles, c.slot, slot, c.phases, new.phases)
+        steps = order_work(schedule, changing)
+    else:
+        changed = []
+        for i, idx in enumerate(pr.free.tolist()):
+            c = circuits[idx]
+            ph = pr.phases[int(plan.assign[i])]
+            if c.phases is None or set(c.phases) != set(ph):
+                changed.append(idx)
+                moves[idx] = Move(idx, c.name, c.poles, None, None, c.phases, tuple(ph))
+        steps = rail_steps(schedule, changed)
+    return [moves[s.circuit_index] for s in steps if s.action != "take-out"], steps
+
+
+def _status(search: TreeSearch, status: TreeStatus | None) -> tuple[TreeStatus, int | None]:
+    if status is not None:
+        return status, None
+    if search.best is not None:
+        return ("optimal", None) if search.proven else ("best-found", search.lower)
+    return ("infeasible", None) if search.proven else ("best-found", search.lower)
+
+
+def _finish(
+    tree: ScheduleTree,
+    tp: TreeProblem,
+    search: TreeSearch,
+    opts: TreeOptions,
+    status: TreeStatus | None,
+    before,
+    objective: str,
+) -> TreeSuggestion:
+    control = search.control
+    final, bound = _status(search, status)
+    plan: TreePlan | None = search.best if final != "already-balanced" else None
+    schedules = [p.schedule for p in tree.panels]
+    work: dict[int, tuple[list[Move], list[WorkStep]]] = {}
+    if plan is not None:
+        for k, node in enumerate(tp.nodes):
+            if plan.plans[k] is not None:
+                mv, st = _moves(tp.problems[k], plan.plans[k], schedules[node])
+                work[node] = (mv, st)
+                schedules[node] = apply_moves(schedules[node], mv)
+    after_tree = with_schedules(tree, schedules) if work else tree
+    after = analyse_building(after_tree) if work else before
+    notes = list(search.notes)
+    if plan is not None and work:
+        mine = tp.deviations_pct(plan.assign)
+        engine = np.array(
+            [after.nodes[n].analysis.current_unbalance.max_deviation_pct for n in tp.nodes]
+        )
+        if np.max(np.abs(mine - engine)) > 1e-6 * max(1.0, float(np.max(engine))):
+            notes.append("engine and optimiser figures differ (please report this)")
+    panels = []
+    for k, node in enumerate(tp.nodes):
+        p = tree.panels[node]
+        mv, st = work.get(node, ([], []))
+        parent = None if k == 0 else tree.panels[p.parent or 0].shown
+        panels.append(
+            PanelPlan(
+                index=node,
+                file=p.shown,
+                panel=p.schedule.panel.name,
+                depth=_depth(tp, k),
+                parent_file=parent,
+                target_pct=100.0 * float(tp.targets[k]),
+                moves=tuple(mv),
+                steps=tuple(st),
+                before=Figures.of(before.nodes[node].analysis),
+                after=Figures.of(after.nodes[node].analysis),
+                schedule=schedules[node],
+            )
+        )
+    above = []
+    i = tree.panels[tp.nodes[0]].parent
+    while i is not None:
+        p = tree.panels[i]
+        above.append(
+            OutsideFigures(
+                p.shown,
+                p.schedule.panel.name,
+                Figures.of(before.nodes[i].analysis),
+                Figures.of(after.nodes[i].analysis),
+            )
+        )
+        i = p.parent
+    met = all(pp.target_met for pp in panels)
+    if final in ("optimal", "already-balanced") and not met:
+        final, bound = "best-found", search.lower
+    stopped = None
+    if not search.proven and final != "already-balanced":
+        stopped = "cancelled" if control.cancelled() else ("time limit" if control.stop() else None)
+    unplaced = sum(1 for n in tp.nodes for c in tree.panels[n].schedule.circuits if not c.is_placed)
+    if unplaced:
+        notes.append(f"{plural(unplaced, 'circuit')} without a slot left as they are")
+    control.report("done", 1.0)
+    return TreeSuggestion(
+        status=final,
+        objective=objective,
+        panels=tuple(panels),
+        above=tuple(above[::-1]),
+        bound=bound,
+        target_pct=opts.service_target_pct,
+        child_target_pct=opts.below_target_pct,
+        max_moves=opts.max_moves,
+        notes=tuple(dict.fromkeys(notes)),
+        stopped=stopped,
+        solver_calls=search.calls,
+        elapsed_s=control.elapsed(),
+        tree=after_tree,
+    )
+
+
+def _depth(tp: TreeProblem, k: int) -> int:
+    d = 0
+    while tp.parent[k] >= 0:
+        k = int(tp.parent[k])
+        d += 1
+    return d

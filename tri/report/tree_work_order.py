@@ -1,0 +1,310 @@
+"""A building rebalancer suggestion in words: the status, the figures, one work order per panel.
+
+The steps of each panel are the single-panel work order's sentences
+(:func:`tri.report.work_order.work_order`), numbered from 1 in each panel:
+every panel is its own job (its own lock-out). The status words say
+exactly what was proven, about relocations over the panels searched.
+
+JSON (``tri suggest PARENT --format json``)::
+
+    {"status", "status_text", "objective", "relocations", "bound",
+     "bound_unit": "moves", "target_pct", "child_target_pct", "target_met",
+     "max_moves", "stopped", "service": {"file", "panel"},
+     "panels": [{"file", "panel", "depth", "fed_from", "target_pct",
+                 "target_met", "relocations", "before", "after",
+                 "moves": [{"circuit", "from_slot", "to_slot", "from_phases",
+                            "to_phases", "poles", "changes_phase",
+                            "set_aside_first"}],
+                 "work_order": [{"step", "action", "circuit", "text"}]}],
+     "above": [{"file", "panel", "before", "after"}], "notes", "caution"}
+
+``before``/``after`` are the engine's figures of the panel in the building
+(everything it feeds included): ``phases_rms_a`` by the panel's labels,
+``neutral_rms_a``, ``max_deviation_pct``, ``limits``. ``stopped`` is
+``"time limit"``, ``"cancelled"`` or null. Numbers are SI (A, %).
+"""
+
+from __future__ import annotations
+
+import io
+import json
+from dataclasses import dataclass
+from typing import Any, cast
+
+from rich import box
+from rich.console import Console, RenderableType
+from rich.rule import Rule
+from rich.table import Table
+from rich.text import Text
+
+from tri.rebalance import Figures, Move, Suggestion, WorkStep
+from tri.rebalance.tree_results import PanelPlan, TreeSuggestion
+from tri.report.data import num
+from tri.report.text_report import to_ascii
+from tri.report.work_order import WorkLine, fixed, work_order
+from tri.schedule.model import Schedule
+from tri.words import plural
+
+
+@dataclass(frozen=True)
+class _PanelWork:
+    """What :func:`tri.report.work_order.work_order` reads of a suggestion: moves and steps."""
+
+    moves: tuple[Move, ...]
+    steps: tuple[WorkStep, ...]
+
+
+def panel_steps(p: PanelPlan, before: Schedule) -> tuple[WorkLine, ...]:
+    """One panel's numbered steps, in the single-panel work order's words."""
+    return work_order(cast(Suggestion, _PanelWork(p.moves, p.steps)), before)
+
+
+def tree_status_words(s: TreeSuggestion) -> str:
+    """The status as a sentence: exactly what was proven about the relocations searched."""
+    budget = f" with at most {plural(s.max_moves, 'relocation')}" if s.max_moves is not None else ""
+    where = "in the panels searched" if len(s.panels) > 1 else "in this panel"
+    stop = {"cancelled": "stopped by the user", "time limit": "in the time limit"}.get(
+        s.stopped or "", "in the search"
+    )
+    if s.status == "already-balanced":
+        return "already balanced: every panel meets its target as it is; no move needed"
+    if s.status == "optimal":
+        return (
+            f"optimal: proven that no plan with fewer breakers relocated {where} meets every target"
+        )
+    if s.status == "infeasible":
+        return (
+            f"targets out of reach (proven): no plan{budget} brings every panel within its "
+            "target; nothing is proposed"
+        )
+    bound = s.bound or 0
+    proven = (
+        f"proven: no plan with fewer than {plural(bound, 'relocation')} meets every target"
+        if bound > 0
+        else "no lower bound on the relocations was proven"
+    )
+    if s.relocations or s.target_met:
+        return f"best found {stop}, not proven optimal; {proven}"
+    return (
+        f"no plan{budget} meeting every target was found {stop} (not proven impossible); "
+        f"{proven}; nothing is proposed"
+    )
+
+
+def _figures(f: Figures, labels: tuple[str, str, str]) -> dict[str, Any]:
+    return {
+        "phases_rms_a": {lab: num(v) for lab, v in zip(labels, f.phases_rms_a, strict=True)},
+        "neutral_rms_a": num(f.neutral_rms_a),
+        "max_deviation_pct": num(f.max_deviation_pct),
+        "limits": list(f.limits),
+    }
+
+
+def _moves(p: PanelPlan, before: Schedule) -> list[dict[str, Any]]:
+    aside = {st.circuit_index for st in p.steps if st.action == "take-out"}
+
+    def phases(ph: tuple[int, ...] | None) -> str | None:
+        return None if ph is None else before.phase_text(ph)
+
+    return [
+        {
+            "circuit": m.circuit,
+            "from_slot": m.from_slot,
+            "to_slot": m.to_slot,
+            "from_phases": phases(m.from_phases),
+            "to_phases": phases(m.to_phases),
+            "poles": m.poles,
+            "changes_phase": m.changes_phase,
+            "set_aside_first": m.circuit_index in aside,
+        }
+        for m in p.moves
+    ]
+
+
+def tree_suggestion_data(
+    s: TreeSuggestion, before: tuple[Schedule, ...], caution: str
+) -> dict[str, Any]:
+    """The JSON of the module notes as a plain dict.
+
+    Parameters
+    ----------
+    s : TreeSuggestion
+    before : tuple of Schedule
+        Every panel's schedule as it was, in the building's order (labels, names).
+    caution : str
+    """
+    panels = []
+    for p in s.panels:
+        sched = before[p.index]
+        panels.append(
+            {
+                "file": p.file,
+                "panel": p.panel,
+                "depth": p.depth,
+                "fed_from": p.parent_file,
+                "target_pct": num(p.target_pct),
+                "target_met": p.target_met,
+                "relocations": p.relocations,
+                "before": _figures(p.before, sched.labels),
+                "after": _figures(p.after, sched.labels),
+                "moves": _moves(p, sched),
+                "work_order": [
+                    {"step": w.number, "action": w.action, "circuit": w.circuit, "text": w.sentence}
+                    for w in panel_steps(p, sched)
+                ],
+            }
+        )
+    labels = ("A", "B", "C")
+    return {
+        "status": s.status,
+        "status_text": tree_status_words(s),
+        "objective": s.objective,
+        "relocations": s.relocations,
+        "bound": s.bound,
+        "bound_unit": "moves",
+        "target_pct": num(s.target_pct),
+        "child_target_pct": num(s.child_target_pct),
+        "target_met": s.target_met,
+        "max_moves": s.max_moves,
+        "stopped": s.stopped,
+        "service": {"file": s.service.file, "panel": s.service.panel},
+        "panels": panels,
+        "above": [
+            {
+                "file": a.file,
+                "panel": a.panel,
+                "before": _figures(a.before, labels),
+                "after": _figures(a.after, labels),
+            }
+            for a in s.above
+        ],
+        "notes": list(s.notes),
+        "caution": caution,
+    }
+
+
+def render_tree_json(data: dict[str, Any]) -> str:
+    """Strict JSON text (two-space indent, newline at the end)."""
+    return json.dumps(data, indent=2, ensure_ascii=False, allow_nan=False) + "\n"
+
+
+def _figures_table(s: TreeSuggestion, ascii_only: bool) -> Table:
+    t = Table(box=box.ASCII if ascii_only else box.SIMPLE_HEAD, pad_edge=False)
+    t.add_column("Panel", ratio=1)
+    t.add_column("Target\n%", justify="right", no_wrap=True)
+    t.add_column("Deviation %\nbefore", justify="right", no_wrap=True)
+    t.add_column("\nafter", justify="right", no_wrap=True)
+    t.add_column("Largest phase A\nbefore", justify="right", no_wrap=True)
+    t.add_column("\nafter", justify="right", no_wrap=True)
+    for p in s.panels:
+        t.add_row(
+            f"{'  ' * p.depth}{p.panel}",
+            f"{p.target_pct:g}",
+            fixed(p.before.max_deviation_pct, 2),
+            fixed(p.after.max_deviation_pct, 2) + ("" if p.target_met else " over"),
+            fixed(p.before.max_phase_rms_a, 1),
+            fixed(p.after.max_phase_rms_a, 1),
+        )
+    return t
+
+
+def _work(
+    s: TreeSuggestion, before: tuple[Schedule, ...], ascii_only: bool
+) -> list[RenderableType]:
+    moving = [p for p in s.panels if p.moves]
+    if not moving:
+        return [Text("No breaker moves are proposed.")]
+    out: list[RenderableType] = [
+        Text(
+            f"Work order ({plural(s.relocations, 'breaker')} relocated in "
+            f"{plural(len(moving), 'panel')}), for a qualified person to review; each panel "
+            "is its own job:"
+        )
+    ]
+    for p in moving:
+        sched = before[p.index]
+        kind = "slots" if sched.panel.uses_slots else "rail board: circuits change phases"
+        out.append(
+            Text(f"{p.panel} ({p.file}): {plural(p.relocations, 'breaker')} relocated; {kind}")
+        )
+        steps = Table.grid(padding=(0, 1))
+        steps.add_column(justify="right", no_wrap=True)
+        steps.add_column()
+        for w in panel_steps(p, sched):
+            steps.add_row(f"{w.number}.", to_ascii(w.sentence) if ascii_only else w.sentence)
+        out.append(steps)
+    still = [f"{p.panel} ({p.file})" for p in s.panels if not p.moves]
+    if still:
+        out.append(Text("No moves in: " + "; ".join(still) + "."))
+    out.append(
+        Text(
+            "Before any move: de-energise and lock out the panel being worked on and prove it "
+            "dead. For each moved circuit check that its conductors reach the new position and "
+            "that the breaker suits it; afterwards update that panel's directory and measure the "
+            "phase and neutral currents again, in it and in the panels that feed it (their "
+            "currents change with it) (common practice)."
+        )
+    )
+    return out
+
+
+def tree_renderables(
+    s: TreeSuggestion, before: tuple[Schedule, ...], caution: str, *, ascii_only: bool = False
+) -> list[RenderableType]:
+    """The sections as Rich renderables (print them in order)."""
+    rule = "-" if ascii_only else "─"
+    out: list[RenderableType] = [
+        Text(f"Proposed breaker moves across a building: {s.service.panel}", style="bold"),
+        Text(f"Caution: {caution}"),
+        Rule(characters=rule),
+        Text(f"Status: {tree_status_words(s)}."),
+        Text(f"Minimised: {s.objective}."),
+        Text(
+            "Figures from the engine on the building before and after (estimates; each panel "
+            "with everything it feeds):"
+        ),
+        _figures_table(s, ascii_only),
+    ]
+    for a in s.above:
+        out.append(
+            Text(
+                f"Not searched (above {s.service.panel}): {a.panel} ({a.file}), deviation "
+                f"{fixed(a.before.max_deviation_pct, 2)} % before, "
+                f"{fixed(a.after.max_deviation_pct, 2)} % after."
+            )
+        )
+    for p in s.panels:
+        if p.after.limits:
+            out.append(
+                Text(
+                    f"Still over a rating in {p.panel} after the moves (balancing alone does not "
+                    "fix it; see tri report): " + " ".join(p.after.limits)
+                )
+            )
+    out.append(Rule(characters=rule))
+    out.extend(_work(s, before, ascii_only))
+    for note in s.notes:
+        out.append(Text(f"Note: {note}."))
+    out.append(Rule(characters=rule))
+    out.append(Text(f"Caution: {caution}"))
+    if ascii_only:
+        out = [Text(to_ascii(x.plain)) if isinstance(x, Text) else x for x in out]
+    return out
+
+
+def render_tree_text(
+    s: TreeSuggestion,
+    before: tuple[Schedule, ...],
+    caution: str,
+    *,
+    width: int = 80,
+    ascii_only: bool = False,
+) -> str:
+    """The work order as plain text (no colour), lines without trailing spaces."""
+    buf = io.StringIO()
+    console = Console(
+        file=buf, width=width, color_system=None, highlight=False, emoji=False, markup=False
+    )
+    for item in tree_renderables(s, before, caution, ascii_only=ascii_only):
+        console.print(item)
+    return "\n".join(line.rstrip() for line in buf.getvalue().splitlines()) + "\n"
