@@ -287,7 +287,13 @@ def _recentred(fr: Frame, lo: np.ndarray, hi: np.ndarray, a_mid: np.ndarray) -> 
     return frame_in(fr.rotated, u, fr.l0.shape[1])
 
 
-def changes_impossible(fr: Frame, target: float, k: int, rounds: int = FIXED_POINT_ROUNDS) -> bool:
+def changes_impossible(
+    fr: Frame,
+    target: float,
+    k: int,
+    rounds: int = FIXED_POINT_ROUNDS,
+    stop: Callable[[], bool] | None = None,
+) -> bool:
     """True when proven: no plan with at most ``k`` changes meets the target (Theorems 1-2).
 
     Each round bounds the second order over the region of the last rows, in
@@ -304,6 +310,8 @@ def changes_impossible(fr: Frame, target: float, k: int, rounds: int = FIXED_POI
         Changes of placed circuits [-].
     rounds : int
         Rounds of the fixed point.
+    stop : callable, optional
+        Checked between rounds; when it returns True the answer is False (not proven).
     """
     t = target * (1 + TARGET_SLACK) + 1e-12
     c, d, beta = target_rows(fr, t, np.zeros(3))
@@ -317,6 +325,8 @@ def changes_impossible(fr: Frame, target: float, k: int, rounds: int = FIXED_POI
     sq = (across0 + best_gain(fr.choices, step.T, k)) ** 2
     nxt, last = fr, np.inf
     for _ in range(rounds):
+        if stop is not None and stop():
+            return False
         q_second = sq / (2.0 * lower)
         rows = target_rows(fr, t, q_second)
         if _row_impossible(fr, rows, k):
@@ -377,7 +387,7 @@ def changes_lower_bound(
         c, d, beta = first
         if np.all(c - best_gain(fr.choices, -d.T, k) <= beta):
             continue  # not even the first order shuts this budget out
-        if changes_impossible(fr, target, k):
+        if changes_impossible(fr, target, k, stop=stop):
             return k + 1
     return 0
 
