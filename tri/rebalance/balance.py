@@ -1,7 +1,11 @@
 """Smallest largest-phase RMS current within a relocation budget: the loop and its bound.
 
-The model (electrical block, exact slot block with the relocation budget,
-and ``T ≥`` the lower bound of every phase's RMS current from
+Before any model, the floor within the budget
+(:func:`tri.rebalance.crossing.budget_floor`: with few moves a crowded
+phase keeps at least what its largest movable breakers cannot take away)
+may already be within ``stop_gap`` of the best plan. The model (electrical
+block, exact slot block with the relocation budget, and ``T ≥`` the lower
+bound of every phase's RMS current from
 :mod:`tri.rebalance.lower_bounds`) is a relaxation: its optimum, or
 HiGHS's dual bound, is a proven lower bound on the largest phase RMS
 current of every plan with at most that many relocations. The floor ``F``
@@ -30,6 +34,7 @@ import math
 import numpy as np
 
 from tri.rebalance.control import Control
+from tri.rebalance.crossing import budget_floor
 from tri.rebalance.electrical import add_electrical, add_neutral_cuts, decode_options
 from tri.rebalance.exhaust import best_plans_within, enumeration_fits
 from tri.rebalance.goal import Goal
@@ -182,6 +187,17 @@ class _BalanceSearch:
             self.lower = max(self.lower, self.out.plan.max_rms_a * (1 - 1e-12))
         return True
 
+    def cross(self) -> None:
+        """The floor within the budget (:func:`tri.rebalance.crossing.budget_floor`).
+
+        With few moves, the current a crowded phase can shed is limited by its
+        largest movable breakers: a bound above ``F``, in milliseconds.
+        """
+        if self.budget >= self.pr.n_movable:
+            return
+        seen = [] if self.out.plan is None else [spectra(self.pr, self.out.plan.assign)[0]]
+        self.lower = max(self.lower, budget_floor(self.pr, self.budget, seen))
+
     def done(self, stop_gap: float) -> bool:
         if self.best <= self.lower * (1 + PROVEN_GAP):
             self.out.proven = True
@@ -228,6 +244,7 @@ def solve_balance(
         out.notes.append("triplen harmonics alone exceed the neutral limit")
         return out
     search.offer(incumbent)
+    search.cross()
     settled = list_plans and search.count_out()
     if not search.done(stop_gap) and not settled:
         while not control.stop() and search.step(stop_gap):
