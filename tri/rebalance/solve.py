@@ -125,10 +125,13 @@ def _fewest_moves(run: _Run) -> tuple[Plan | None, Status, float | None]:
     run.control.report("greedy start and local search")
     # descents only: the proof below improves the plan where it can
     plan = _heuristic(run, goal, ev, kicks=False)
-    balance_goal = replace(goal, target=None)
-    fallback = _heuristic(run, balance_goal, Evaluator(pr, balance_goal, run.control), kicks=False)
-    if ev.good(fallback) and (plan is None or fallback.relocations < plan.relocations):
-        plan = fallback
+    fallback = None
+    if plan is None:  # the balance descent, for a start or to show the best balance reached
+        balance_goal = replace(goal, target=None)
+        balance_ev = Evaluator(pr, balance_goal, run.control)
+        fallback = _heuristic(run, balance_goal, balance_ev, kicks=False)
+        if ev.good(fallback):
+            plan = fallback
     if run.opts.use_solver and pr.n_free:
         out = solve_target(pr, goal, run.control, plan, ev, list_plans=run.opts.list_plans)
     else:

@@ -1,7 +1,11 @@
 """Fewest relocations that meet a target: the search loop and its proof.
 
-Each round asks for a plan with one relocation fewer than the best known
-(``budget``). The question is answered by
+First the crossing bound (:mod:`tri.rebalance.crossing`: how much
+current must cross between phases, given the largest movable breakers)
+shows how many relocations every plan needs; when that is the best plan's
+count, the plan is optimal at once. Otherwise each round asks for a plan
+with one relocation fewer than the best known (``budget``). The question
+is answered by
 
 1. counting out every plan with at most ``budget`` *option changes*
    (:mod:`tri.rebalance.exhaust`), when there are few: a plan with
@@ -15,8 +19,8 @@ Each round asks for a plan with one relocation fewer than the best known
    model (cuts, exact products, finer sectors, finally a no-good cut on
    its options) and the round repeats.
 
-The proven lower bound is the largest budget plus one shown impossible,
-or the model's own bound (its optimum or HiGHS's dual bound) rounded up.
+The proven lower bound is the crossing bound, the largest budget plus one
+shown impossible, or the model's own bound (its optimum or HiGHS's dual bound) rounded up.
 ``proven`` means the bound reached the plan's relocations (or, with no
 plan, passed the cap).
 """
@@ -29,6 +33,7 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from tri.rebalance.control import Control
+from tri.rebalance.crossing import changes_lower_bound
 from tri.rebalance.electrical import decode_options
 from tri.rebalance.exact_square import square_terms
 from tri.rebalance.exhaust import enumeration_fits, plans_within
@@ -219,7 +224,15 @@ class _TargetSearch:
         plan = self.ev.plan(ls.assign)
         return plan if plan is not None and plan.relocations <= budget else None
 
+    def cross(self) -> None:
+        """Step 0: the crossing bound (:mod:`tri.rebalance.crossing`) raises the lower bound."""
+        known = self.cap + 1 if self.best_k is None else self.best_k
+        self.control.report("bounding the moves by the current that must cross between phases")
+        lb = changes_lower_bound(self.pr, self.goal.target, known, self.cap, self.control.stop)
+        self.lower = max(self.lower, lb)
+
     def run(self) -> Outcome:
+        self.cross()
         while not self.control.stop():
             budget = self.cap if self.best_k is None else min(self.cap, self.best_k - 1)
             if budget < self.lower:
