@@ -26,7 +26,9 @@ TREE_HELP = """\
 The building: the top panel and every panel it feeds, at any depth, each
 with its largest phase current and loading (OVER above 100 %, NEAR above
 the design headroom) and its neutral, everything it feeds included. ↑↓
-move, ← → fold and unfold, Enter opens the panel in the main view. Every
+move, ← → fold and unfold, Enter opens the panel in the main view, r
+rebalances the panel under the cursor and every panel below it (the fewest
+breakers relocated, in any of them, that bring each within its target). Every
 panel keeps its own file, undo and journal: Ctrl+S saves the panel shown,
 ● marks a panel with unsaved edits, and quitting asks about every one."""
 
@@ -99,11 +101,13 @@ class BuildingScreen(Screen[None]):
     BINDINGS: ClassVar[list[BindingType]] = [
         Binding("escape,T", "close", "Back", id="tree.back"),
         Binding("o", "open", "Open", id="tree.open"),
+        Binding("r", "rebalance", "Rebalance", id="tree.rebalance"),
         Binding("q", "app.quit", "Quit", show=False),
     ]
     KEY_WORDS: ClassVar[dict[str, str]] = {
         "close": "back to the panel shown",
         "open": "open the panel under the cursor (Enter does the same)",
+        "rebalance": "rebalance the panel under the cursor and every panel below it",
     }
 
     _ready = False
@@ -181,6 +185,13 @@ class BuildingScreen(Screen[None]):
         app: Any = self.app
         self.app.pop_screen()
         app.switch_panel(index)
+
+    def action_rebalance(self) -> None:
+        from tri.tui.screens.tree_rebalance import TreeRebalanceScreen
+
+        node = self.query_one(Tree).cursor_node
+        index = node.data if node is not None and node.data is not None else 0
+        self.app.push_screen(TreeRebalanceScreen(index))
 
     def action_close(self) -> None:
         self.app.pop_screen()

@@ -1,0 +1,112 @@
+"""Pilot tests of the building rebalance from the tree view: real keys, the plan, applying it.
+
+The demo brewery is copied to the test's own folder. The plan the screen
+shows must be the command line's (the same search on the same files), and
+after applying it every panel's figures in the UI must be the engine's
+building analysis of the moved schedules, each within its target.
+"""
+
+from __future__ import annotations
+
+import shutil
+from pathlib import Path
+
+import pytest
+from tui_support import settle
+
+from tri.native_output import native_stdout_to_devnull
+from tri.rebalance.tree_solve import TreeOptions, suggest_tree
+from tri.schedule.tree import load_tree
+from tri.tui.app import TriApp
+from tri.tui.screens.building_tree import BuildingScreen
+from tri.tui.screens.main import MainScreen
+from tri.tui.screens.tree_rebalance import TreeRebalanceScreen, targets_from
+
+BREWERY = Path(__file__).parents[1] / "panels_demo" / "brewery"
+
+
+@pytest.fixture
+def brewery(tmp_path: Path) -> Path:
+    shutil.copytree(BREWERY, tmp_path / "brewery")
+    return tmp_path / "brewery" / "mdp_480.toml"
+
+
+async def _open_rebalance(pilot, index: int = 0) -> None:
+    await pilot.press("T")
+    await settle(pilot)
+    assert isinstance(pilot.app.screen, BuildingScreen)
+    await pilot.press("home", *["down"] * index, "r")
+    await settle(pilot)
+    assert isinstance(pilot.app.screen, TreeRebalanceScreen)
+
+
+def _text(app, selector: str) -> str:
+    return str(app.screen.query_one(selector).render())
+
+
+async def test_rebalance_the_building_from_the_tree_and_apply(brewery: Path) -> None:
+    with native_stdout_to_devnull():
+        expected = suggest_tree(load_tree(brewery), TreeOptions(target_pct=10, time_limit_s=30))
+    app = TriApp(brewery, journal=False)
+    async with app.run_test(size=(80, 24)) as pilot:
+        await settle(pilot)
+        await _open_rebalance(pilot)
+        await pilot.press("enter")  # runs with the default target, 10 %
+        await settle(pilot)
+        screen = app.screen
+        assert isinstance(screen, TreeRebalanceScreen) and screen.result is not None
+        s = screen.result
+        assert s.status == expected.status == "optimal"
+        assert s.relocations == expected.relocations == 6
+        shown = _text(app, "#trb-result")
+        assert "optimal: proven" in shown
+        assert "LP-1 taproom (lp1_208.toml):" in shown and "1. Move" in shown
+        assert "CAUTION" in _text(app, "#rb-caution")
+        await pilot.press("A")
+        await settle(pilot)
+        # back in the tree; the panels moved are modified, each within its target now
+        assert isinstance(app.screen, BuildingScreen)
+        moved = {p.index for p in s.panels if p.moves}
+        assert set(app.building.dirty()) == moved
+        for p in s.panels:
+            node = app.tree_result.nodes[p.index].analysis
+            assert node.current_unbalance.max_deviation_pct <= p.target_pct
+            assert app.building.sessions[p.index].schedule == p.schedule
+        # u in a moved panel undoes that panel's part only
+        await pilot.press("home", "down", "down", "enter")  # LP-1
+        await settle(pilot)
+        assert isinstance(app.screen, MainScreen) and app.building.current == 2
+        await pilot.press("u")
+        await settle(pilot)
+        assert 2 not in app.building.dirty() and 3 in app.building.dirty()
+
+
+async def test_a_child_alone_and_bad_targets(brewery: Path) -> None:
+    app = TriApp(brewery, journal=False)
+    async with app.run_test(size=(80, 24)) as pilot:
+        await settle(pilot)
+        await _open_rebalance(pilot, 3)  # LP-2, a leaf
+        assert "LP-2 kitchen" in _text(app, "#trb-title")
+        target = app.screen.query_one("#trb-target")
+        target.value = "abc"
+        await pilot.press("enter")
+        await settle(pilot)
+        assert "Target: expected a percent" in _text(app, "#trb-state")
+        target.value = "20"
+        await pilot.press("enter")
+        await settle(pilot)
+        s = app.screen.result
+        assert [p.panel for p in s.panels] == ["LP-2 kitchen"]
+        assert s.status == "optimal" and s.relocations == 1
+        await pilot.press("escape")
+        await settle(pilot)
+        assert isinstance(app.screen, BuildingScreen)
+        assert not app.building.dirty()
+
+
+def test_targets_from_fields() -> None:
+    assert isinstance(targets_from(None, None), str)
+    assert isinstance(targets_from(10, 150), str)
+    opts = targets_from(8, None)
+    assert not isinstance(opts, str)
+    assert opts.service_target_pct == 8 and opts.below_target_pct == 8
