@@ -69,7 +69,10 @@ class TreeOptions:
     use_solver : bool
         False: the beam search and the listing only (for comparisons).
     list_plans : bool
-        False leaves every proof to the program (for tests of it).
+        False: no listing of plans (for tests of the other steps).
+    decompose : bool
+        False: no bounds of the subtrees from the single-panel search
+        (for tests of the other steps).
     """
 
     target_pct: float | None = None
@@ -79,6 +82,7 @@ class TreeOptions:
     time_limit_s: float = DEFAULT_TIME_LIMIT_S
     use_solver: bool = True
     list_plans: bool = True
+    decompose: bool = True
 
     def __post_init__(self) -> None:
         problems = []
@@ -212,7 +216,7 @@ def suggest_tree(
     )
     movable = int(np.sum(tp.movable)) if tp.n_free else 0
     cap = movable if opts.max_moves is None else min(opts.max_moves, movable)
-    search = TreeSearch(tp, control, cap)
+    search = TreeSearch(tp, control, cap, cancel=cancel)
     status = _search(search, tp, opts)
     return _finish(tree, tp, search, opts, status, before, objective_words(tree, nodes, opts))
 
@@ -247,6 +251,10 @@ def _search(search: TreeSearch, tp: TreeProblem, opts: TreeOptions) -> TreeStatu
         search.listing()
     if search.proven or search.control.stop() or not opts.use_solver:
         return None
+    if opts.decompose:
+        search.decomposed_bound()
+        if search.proven or search.control.stop():
+            return None
     search.control.report("preparing the program for the building")
     parts = TreeModelParts(tp)
     if not parts.fits():
