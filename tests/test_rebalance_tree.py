@@ -7,8 +7,8 @@ distinct combination: the fewest relocations for a pair of targets is a
 minimum over that list **[computed]**. Each building has a transformer
 between levels (``Dyn``, ``YNyn0`` or ``Yyn0``) and harmonic profiles.
 The search must then report exactly that count as ``optimal`` (or
-``infeasible`` / ``already-balanced``), with every step on its own: the
-listing alone, the program alone.
+``infeasible`` / ``already-balanced``), with its steps on their own: the
+listing alone, the program alone, the subtree bounds with the program.
 
 Targets are taken halfway between distinct deviations of the list, so no
 plan sits within round-off of a target (the comparison is then exact).
@@ -75,19 +75,13 @@ def test_fewest_relocations_match_every_arrangement(tmp_path, seed, children):
             expected = cases.optimum(service_pct, child_pct)
             checked.add(expected)
             _check(_run(tree, service_pct, child_pct), expected, service_pct, child_pct)
-            # the program alone, then the listing alone, reach the same proof
-            _check(
-                _run(tree, service_pct, child_pct, list_plans=False),
-                expected,
-                service_pct,
-                child_pct,
-            )
-            _check(
-                _run(tree, service_pct, child_pct, use_solver=False),
-                expected,
-                service_pct,
-                child_pct,
-            )
+            # the subtree bounds with the program, the program alone, the listing alone
+            for kw in (
+                {"list_plans": False},
+                {"list_plans": False, "decompose": False},
+                {"use_solver": False},
+            ):
+                _check(_run(tree, service_pct, child_pct, **kw), expected, service_pct, child_pct)
     assert len(checked) >= 1
 
 

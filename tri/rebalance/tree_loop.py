@@ -2,7 +2,7 @@
 
 State of one search for the fewest relocations over the panels of a
 :class:`~tri.rebalance.tree_problem.TreeProblem` that bring every panel
-within its target. Three steps, each improving the best plan or the proven
+within its target. Four steps, each improving the best plan or the proven
 lower bound on the relocations (``lower``):
 
 1. the beam search (:func:`tri.rebalance.tree_search.beam_plans`) gives a
@@ -13,7 +13,13 @@ lower bound on the relocations (``lower``):
    with at most ``j`` relocations has at most ``j`` changes, so once levels
    ``0..j`` are listed and every listed plan's realisation is proven, no
    plan with at most ``j`` relocations was missed: ``lower ≥ min(j + 1, best)``;
-3. the program (:mod:`tri.rebalance.tree_model`) asks for a plan with one
+3. every panel's target holds with the breakers of its own subtree alone,
+   and sibling subtrees share no breaker: so the single-panel search
+   (:func:`tri.rebalance.target.solve_target`) on each leaf (its own slots)
+   and on each other panel's node view (phase changes, which never exceed
+   relocations) proves a lower bound ``L_k`` for that subtree, and
+   ``lower ≥ D_root`` with ``D_k = max(L_k, Σ_children D_c)``;
+4. the program (:mod:`tri.rebalance.tree_model`) asks for a plan with one
    relocation fewer than the best: infeasible proves the best optimal (or,
    without a plan, none within the cap); its bound raises ``lower``; a
    solution is checked exactly and kept, or teaches the program.
@@ -28,7 +34,7 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
-from tri.rebalance.control import Control
+from tri.rebalance.control import CancelHook, Control
 from tri.rebalance.electrical import decode_options
 from tri.rebalance.goal import Goal
 from tri.rebalance.lower_bounds import RESOLUTIONS
@@ -82,6 +88,7 @@ class TreeSearch:
     lower: int = 0
     calls: int = 0
     notes: list[str] = field(default_factory=list)
+    cancel: CancelHook | None = None
 
     def __post_init__(self) -> None:
         self.evs = [Evaluator(pr, Goal(), self.control) for pr in self.tp.problems]
@@ -161,8 +168,36 @@ class TreeSearch:
             )
             j += 1
 
+    def decomposed_bound(self) -> None:
+        """Step 3: lower bounds of the subtrees from the single-panel search (module notes)."""
+        from tri.rebalance.target import solve_target
+
+        tp = self.tp
+        bound = [0] * tp.size
+        for k in range(tp.size - 1, -1, -1):
+            leaf = int(tp.ends[k]) == k + 1
+            pr = tp.problems[k] if leaf else tp.node_view(k)
+            own = 0
+            if pr.n_free and not self.control.stop():
+                share = self.control.remaining() / (k + 2)
+                control = Control(max(0.05, share), None, self.cancel)
+                goal = Goal(float(tp.targets[k]), None, None)
+                what = tp.tree.panels[tp.nodes[k]].schedule.panel.name
+                self.control.report(f"bounding the relocations below {what}")
+                out = solve_target(pr, goal, control, None, Evaluator(pr, goal, control))
+                self.calls += out.solver_calls
+                if out.plan is None and out.proven:
+                    own = self.cap + 1  # no plan even for this panel alone
+                elif out.plan is not None and out.proven:
+                    own = out.plan.relocations
+                else:
+                    own = int(out.bound or 0)
+            kids = sum(bound[c] for c in range(k + 1, int(tp.ends[k])) if tp.parent[c] == k)
+            bound[k] = max(own, kids)
+        self.lower = max(self.lower, min(bound[0], self.cap + 1))
+
     def model_loop(self, parts: TreeModelParts) -> None:
-        """Step 3: the program, round after round (module notes)."""
+        """Step 4: the program, round after round (module notes)."""
         learnt = TreeLearnt(self.tp.size)
         while not self.control.stop():
             budget = self.cap if self.best_k is None else min(self.cap, self.best_k - 1)

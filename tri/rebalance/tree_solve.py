@@ -35,14 +35,12 @@ import numpy as np
 
 from tri.rebalance.control import CancelHook, Control, ProgressCallback
 from tri.rebalance.options import DEFAULT_TARGET_PCT, DEFAULT_TIME_LIMIT_S
-from tri.rebalance.results import Figures, Move, apply_moves
-from tri.rebalance.tree_loop import TreePlan, TreeSearch
+from tri.rebalance.tree_finish import finish
+from tri.rebalance.tree_loop import TreeSearch
 from tri.rebalance.tree_model import TreeModelParts
 from tri.rebalance.tree_problem import TreeProblem, build_tree_problem, subtree
-from tri.rebalance.tree_results import OutsideFigures, PanelPlan, TreeStatus, TreeSuggestion
-from tri.rebalance.workorder import WorkStep, order_work, rail_steps
-from tri.schedule.model import Schedule
-from tri.schedule.tree import ScheduleTree, with_schedules
+from tri.rebalance.tree_results import TreeStatus, TreeSuggestion
+from tri.schedule.tree import ScheduleTree
 from tri.schedule.tree_to_engine import analyse_building
 from tri.schedule.validate import circuit_where
 from tri.schedule.wiring import building_refusal, rebalancer_refusal
@@ -69,7 +67,10 @@ class TreeOptions:
     use_solver : bool
         False: the beam search and the listing only (for comparisons).
     list_plans : bool
-        False leaves every proof to the program (for tests of it).
+        False: no listing of plans (for tests of the other steps).
+    decompose : bool
+        False: no bounds of the subtrees from the single-panel search
+        (for tests of the other steps).
     """
 
     target_pct: float | None = None
@@ -79,6 +80,7 @@ class TreeOptions:
     time_limit_s: float = DEFAULT_TIME_LIMIT_S
     use_solver: bool = True
     list_plans: bool = True
+    decompose: bool = True
 
     def __post_init__(self) -> None:
         problems = []
@@ -212,9 +214,12 @@ def suggest_tree(
     )
     movable = int(np.sum(tp.movable)) if tp.n_free else 0
     cap = movable if opts.max_moves is None else min(opts.max_moves, movable)
-    search = TreeSearch(tp, control, cap)
+    search = TreeSearch(tp, control, cap, cancel=cancel)
     status = _search(search, tp, opts)
-    return _finish(tree, tp, search, opts, status, before, objective_words(tree, nodes, opts))
+    final, bound = _status(search, status)
+    words = objective_words(tree, nodes, opts)
+    asked = (opts.service_target_pct, opts.below_target_pct, opts.max_moves)
+    return finish(tree, tp, search, asked, (final, bound), before, words)
 
 
 def _fixed_failure(tp: TreeProblem) -> list[int]:
@@ -247,6 +252,10 @@ def _search(search: TreeSearch, tp: TreeProblem, opts: TreeOptions) -> TreeStatu
         search.listing()
     if search.proven or search.control.stop() or not opts.use_solver:
         return None
+    if opts.decompose:
+        search.decomposed_bound()
+        if search.proven or search.control.stop():
+            return None
     search.control.report("preparing the program for the building")
     parts = TreeModelParts(tp)
     if not parts.fits():
@@ -259,132 +268,10 @@ def _search(search: TreeSearch, tp: TreeProblem, opts: TreeOptions) -> TreeStatu
     return None
 
 
-def _moves(pr, plan, schedule: Schedule) -> tuple[list[Move], list[WorkStep]]:
-    """Moves and work order of one panel's plan."""
-    circuits = schedule.circuits
-    moves: dict[int, Move] = {}
-    if pr.slots:
-        changing = {}
-        for idx, slot in plan.arrangement.first_slot.items():
-            c = circuits[idx]
-            if c.slot != slot:
-                changing[idx] = slot
-                new = c.at_slot(slot)
-                moves[idx] = Move(idx, c.name, c.poles, c.slot, slot, c.phases, new.phases)
-        steps = order_work(schedule, changing)
-    else:
-        changed = []
-        for i, idx in enumerate(pr.free.tolist()):
-            c = circuits[idx]
-            ph = pr.phases[int(plan.assign[i])]
-            if c.phases is None or set(c.phases) != set(ph):
-                changed.append(idx)
-                moves[idx] = Move(idx, c.name, c.poles, None, None, c.phases, tuple(ph))
-        steps = rail_steps(schedule, changed)
-    return [moves[s.circuit_index] for s in steps if s.action != "take-out"], steps
-
-
 def _status(search: TreeSearch, status: TreeStatus | None) -> tuple[TreeStatus, int | None]:
+    """The status the search proved, and the bound to show with it."""
     if status is not None:
         return status, None
     if search.best is not None:
         return ("optimal", None) if search.proven else ("best-found", search.lower)
     return ("infeasible", None) if search.proven else ("best-found", search.lower)
-
-
-def _finish(
-    tree: ScheduleTree,
-    tp: TreeProblem,
-    search: TreeSearch,
-    opts: TreeOptions,
-    status: TreeStatus | None,
-    before,
-    objective: str,
-) -> TreeSuggestion:
-    control = search.control
-    final, bound = _status(search, status)
-    plan: TreePlan | None = search.best if final != "already-balanced" else None
-    schedules = [p.schedule for p in tree.panels]
-    work: dict[int, tuple[list[Move], list[WorkStep]]] = {}
-    if plan is not None:
-        for k, node in enumerate(tp.nodes):
-            if plan.plans[k] is not None:
-                mv, st = _moves(tp.problems[k], plan.plans[k], schedules[node])
-                work[node] = (mv, st)
-                schedules[node] = apply_moves(schedules[node], mv)
-    after_tree = with_schedules(tree, schedules) if work else tree
-    after = analyse_building(after_tree) if work else before
-    notes = list(search.notes)
-    if plan is not None and work:
-        mine = tp.deviations_pct(plan.assign)
-        engine = np.array(
-            [after.nodes[n].analysis.current_unbalance.max_deviation_pct for n in tp.nodes]
-        )
-        if np.max(np.abs(mine - engine)) > 1e-6 * max(1.0, float(np.max(engine))):
-            notes.append("engine and optimiser figures differ (please report this)")
-    panels = []
-    for k, node in enumerate(tp.nodes):
-        p = tree.panels[node]
-        mv, st = work.get(node, ([], []))
-        parent = None if k == 0 else tree.panels[p.parent or 0].shown
-        panels.append(
-            PanelPlan(
-                index=node,
-                file=p.shown,
-                panel=p.schedule.panel.name,
-                depth=_depth(tp, k),
-                parent_file=parent,
-                target_pct=100.0 * float(tp.targets[k]),
-                moves=tuple(mv),
-                steps=tuple(st),
-                before=Figures.of(before.nodes[node].analysis),
-                after=Figures.of(after.nodes[node].analysis),
-                schedule=schedules[node],
-            )
-        )
-    above = []
-    i = tree.panels[tp.nodes[0]].parent
-    while i is not None:
-        p = tree.panels[i]
-        above.append(
-            OutsideFigures(
-                p.shown,
-                p.schedule.panel.name,
-                Figures.of(before.nodes[i].analysis),
-                Figures.of(after.nodes[i].analysis),
-            )
-        )
-        i = p.parent
-    met = all(pp.target_met for pp in panels)
-    if final in ("optimal", "already-balanced") and not met:
-        final, bound = "best-found", search.lower
-    stopped = None
-    if not search.proven and final != "already-balanced":
-        stopped = "cancelled" if control.cancelled() else ("time limit" if control.stop() else None)
-    unplaced = sum(1 for n in tp.nodes for c in tree.panels[n].schedule.circuits if not c.is_placed)
-    if unplaced:
-        notes.append(f"{plural(unplaced, 'circuit')} without a slot left as they are")
-    control.report("done", 1.0)
-    return TreeSuggestion(
-        status=final,
-        objective=objective,
-        panels=tuple(panels),
-        above=tuple(above[::-1]),
-        bound=bound,
-        target_pct=opts.service_target_pct,
-        child_target_pct=opts.below_target_pct,
-        max_moves=opts.max_moves,
-        notes=tuple(dict.fromkeys(notes)),
-        stopped=stopped,
-        solver_calls=search.calls,
-        elapsed_s=control.elapsed(),
-        tree=after_tree,
-    )
-
-
-def _depth(tp: TreeProblem, k: int) -> int:
-    d = 0
-    while tp.parent[k] >= 0:
-        k = int(tp.parent[k])
-        d += 1
-    return d

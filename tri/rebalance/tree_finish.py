@@ -1,0 +1,175 @@
+"""The building plan carried out: every panel's moves and work order, the engine before and after.
+
+The plan of :mod:`tri.rebalance.tree_loop` is turned into moves by slot in
+each panel (the single-panel work order, :func:`tri.rebalance.workorder.order_work`),
+carried out on every panel's schedule, and the engine is run on the
+building after the moves (:func:`tri.schedule.tree_to_engine.analyse_building`):
+those figures are reported, and compared with the optimiser's.
+"""
+
+from __future__ import annotations
+
+from typing import Any
+
+import numpy as np
+
+from tri.rebalance.plans import Plan
+from tri.rebalance.problem import Problem
+from tri.rebalance.results import Figures, Move, apply_moves
+from tri.rebalance.tree_loop import TreePlan, TreeSearch
+from tri.rebalance.tree_problem import TreeProblem
+from tri.rebalance.tree_results import OutsideFigures, PanelPlan, TreeStatus, TreeSuggestion
+from tri.rebalance.workorder import WorkStep, order_work, rail_steps
+from tri.schedule.model import Schedule
+from tri.schedule.tree import ScheduleTree, with_schedules
+from tri.schedule.tree_to_engine import analyse_building
+from tri.words import plural
+
+Work = dict[int, tuple[list[Move], list[WorkStep]]]
+
+
+def panel_moves(pr: Problem, plan: Plan, schedule: Schedule) -> tuple[list[Move], list[WorkStep]]:
+    """Moves (in work order) and the steps of one panel's plan."""
+    circuits = schedule.circuits
+    moves: dict[int, Move] = {}
+    if pr.slots:
+        changing = {}
+        for idx, slot in plan.arrangement.first_slot.items():
+            c = circuits[idx]
+            if c.slot != slot:
+                changing[idx] = slot
+                new = c.at_slot(slot)
+                moves[idx] = Move(idx, c.name, c.poles, c.slot, slot, c.phases, new.phases)
+        steps = order_work(schedule, changing)
+    else:
+        changed = []
+        for i, idx in enumerate(pr.free.tolist()):
+            c = circuits[idx]
+            ph = pr.phases[int(plan.assign[i])]
+            if c.phases is None or set(c.phases) != set(ph):
+                changed.append(idx)
+                moves[idx] = Move(idx, c.name, c.poles, None, None, c.phases, tuple(ph))
+        steps = rail_steps(schedule, changed)
+    return [moves[s.circuit_index] for s in steps if s.action != "take-out"], steps
+
+
+def _carry_out(
+    tree: ScheduleTree, tp: TreeProblem, plan: TreePlan | None
+) -> tuple[list[Schedule], Work]:
+    """Every panel's schedule after its moves, and the moves by panel index."""
+    schedules = [p.schedule for p in tree.panels]
+    work: Work = {}
+    if plan is not None:
+        for k, node in enumerate(tp.nodes):
+            local = plan.plans[k]
+            if local is not None:
+                mv, st = panel_moves(tp.problems[k], local, schedules[node])
+                if mv:
+                    work[node] = (mv, st)
+                    schedules[node] = apply_moves(schedules[node], mv)
+    return schedules, work
+
+
+def _depth(tp: TreeProblem, k: int) -> int:
+    d = 0
+    while tp.parent[k] >= 0:
+        k = int(tp.parent[k])
+        d += 1
+    return d
+
+
+def _panel_plans(tree, tp, schedules, work: Work, before, after) -> list[PanelPlan]:
+    out = []
+    for k, node in enumerate(tp.nodes):
+        p = tree.panels[node]
+        mv, st = work.get(node, ([], []))
+        out.append(
+            PanelPlan(
+                index=node,
+                file=p.shown,
+                panel=p.schedule.panel.name,
+                depth=_depth(tp, k),
+                parent_file=None if k == 0 else tree.panels[p.parent or 0].shown,
+                target_pct=100.0 * float(tp.targets[k]),
+                moves=tuple(mv),
+                steps=tuple(st),
+                before=Figures.of(before.nodes[node].analysis),
+                after=Figures.of(after.nodes[node].analysis),
+                schedule=schedules[node],
+            )
+        )
+    return out
+
+
+def _above(tree: ScheduleTree, tp: TreeProblem, before, after) -> tuple[OutsideFigures, ...]:
+    """The panels above the service, root first."""
+    out = []
+    i = tree.panels[tp.nodes[0]].parent
+    while i is not None:
+        p = tree.panels[i]
+        out.append(
+            OutsideFigures(
+                p.shown,
+                p.schedule.panel.name,
+                Figures.of(before.nodes[i].analysis),
+                Figures.of(after.nodes[i].analysis),
+            )
+        )
+        i = p.parent
+    return tuple(out[::-1])
+
+
+def finish(
+    tree: ScheduleTree,
+    tp: TreeProblem,
+    search: TreeSearch,
+    asked: tuple[float, float, int | None],
+    status: tuple[TreeStatus, int | None],
+    before: Any,
+    objective: str,
+) -> TreeSuggestion:
+    """The suggestion of the module notes.
+
+    ``asked``: service and child targets [%] and the cap on relocations;
+    ``status``: what the search proved and its bound; ``before``: the
+    engine's building analysis as it is.
+    """
+    control = search.control
+    final, bound = status
+    plan = search.best if final != "already-balanced" else None
+    schedules, work = _carry_out(tree, tp, plan)
+    after_tree = with_schedules(tree, schedules) if work else tree
+    after = analyse_building(after_tree) if work else before
+    notes = list(search.notes)
+    if plan is not None and work:
+        mine = tp.deviations_pct(plan.assign)
+        engine = np.array(
+            [after.nodes[n].analysis.current_unbalance.max_deviation_pct for n in tp.nodes]
+        )
+        if np.max(np.abs(mine - engine)) > 1e-6 * max(1.0, float(np.max(engine))):
+            notes.append("engine and optimiser figures differ (please report this)")
+    panels = _panel_plans(tree, tp, schedules, work, before, after)
+    if final in ("optimal", "already-balanced") and not all(p.target_met for p in panels):
+        final, bound = "best-found", search.lower
+    stopped = None
+    if not search.proven and final != "already-balanced":
+        stopped = "cancelled" if control.cancelled() else ("time limit" if control.stop() else None)
+    unplaced = sum(1 for n in tp.nodes for c in tree.panels[n].schedule.circuits if not c.is_placed)
+    if unplaced:
+        notes.append(f"{plural(unplaced, 'circuit')} without a slot left as they are")
+    control.report("done", 1.0)
+    return TreeSuggestion(
+        status=final,
+        objective=objective,
+        panels=tuple(panels),
+        above=_above(tree, tp, before, after),
+        bound=bound,
+        target_pct=asked[0],
+        child_target_pct=asked[1],
+        max_moves=asked[2],
+        notes=tuple(dict.fromkeys(notes)),
+        stopped=stopped,
+        solver_calls=search.calls,
+        elapsed_s=control.elapsed(),
+        tree=after_tree,
+    )
