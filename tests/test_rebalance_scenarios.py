@@ -18,6 +18,7 @@ from __future__ import annotations
 
 import collections
 from dataclasses import replace
+from pathlib import Path
 
 import numpy as np
 import pytest
@@ -26,6 +27,8 @@ from rebalance_sweep import Case, cases_for, check_case, dense_panel, with_scena
 
 from tri.native_output import native_stdout_to_devnull
 from tri.rebalance import suggest
+from tri.schedule.load import load_schedule
+from tri.schedule.to_scenarios import analyse_cases
 
 #: Panels per chunk and chunks of the product's path, and of the programs' path [-].
 CHUNK, CHUNKS, MILP_CHUNKS = 10, 4, 2
@@ -120,3 +123,36 @@ def test_the_checker_judges_every_scenario() -> None:
         if caught >= 3:
             break
     assert caught >= 3
+
+
+DAY_NIGHT = Path(__file__).parent / "data" / "rebalance" / "day-night.toml"
+#: [computed] by hand from the file: 1-pole 1440 VA / 120 V = 12 A; the 3-pole
+#: 3000 VA unit carries 3000 / (3 x 120 V) = 8.333 A per line (unity power factor
+#: throughout, so currents add on each line). Day: A = 24 + 0.8 x 8.333 = 30.667 A,
+#: B = 6.667 A, C = 12 + 6.667 = 18.667 A; mean 18.667 A, deviation 12/18.667 = 64.29 %.
+#: Night: A = 2.4 + 2.5 = 4.9 A, B = 24 + 2.5 = 26.5 A, C = 12 + 2.5 = 14.5 A;
+#: mean 15.3 A, deviation 11.2/15.3 = 73.20 %.
+DAY_DEV_PCT, NIGHT_DEV_PCT = 12 / 18.6667 * 100, 11.2 / 15.3 * 100
+
+
+def test_connected_load_balance_leaves_day_and_night_far_off_and_the_scenario_plan_fixes_it():
+    sched = load_schedule(DAY_NIGHT).schedule
+    plain = _run(Case(_strip(sched), "fewest-moves", target_pct=10.0))
+    assert plain.status == "already-balanced" and not plain.moves  # balanced on connected load
+    by_case = {c.name: c.analysis for c in analyse_cases(sched)}
+    assert by_case["day"].current_unbalance.max_deviation_pct == pytest.approx(
+        DAY_DEV_PCT, rel=1e-4
+    )
+    assert by_case["night"].current_unbalance.max_deviation_pct == pytest.approx(
+        NIGHT_DEV_PCT, rel=1e-4
+    )
+    case = Case(sched, "fewest-moves", target_pct=10.0)
+    s = _run(case)
+    assert s.status == "optimal" and s.relocations == 2 and s.target_met
+    assert s.deciding == "night"
+    for c in s.cases:  # every case within the target, by the engine on the schedule after
+        after = {x.name: x.analysis for x in analyse_cases(s.schedule)}[c.name]
+        assert after.current_unbalance.max_deviation_pct == pytest.approx(c.after.max_deviation_pct)
+        assert c.after.max_deviation_pct <= 10.0
+    free = free_breakers(sched, case.mode, case.place_new)
+    assert check_case(case, s, enumerate_panel(sched, free)) == []  # 2 is the fewest [computed]
