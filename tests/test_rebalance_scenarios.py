@@ -46,11 +46,25 @@ def _run(case: Case, **extra):
         return suggest(case.schedule, case.options(**extra))
 
 
+def _neutral_cases(rng: np.random.Generator, sched) -> list[Case]:
+    """Fewest moves and a budget with a neutral limit every case must keep (drawn
+    between the worst-case neutral currents of the arrangements, so it binds)."""
+    enum = enumerate_panel(sched, free_breakers(sched, "balance", False))
+    lim = float(np.quantile(enum.neutral_rms, rng.uniform(0.05, 0.6)))
+    if lim <= 0:
+        return []
+    target = float(rng.choice([5.0, 10.0, 20.0, 30.0]))
+    return [
+        Case(sched, "fewest-moves", target_pct=target, neutral_max_a=lim),
+        Case(sched, "balance", max_moves=int(rng.integers(1, 3)), neutral_max_a=lim),
+    ]
+
+
 def _false_claims(seed: int, sched, tag: str, **extra) -> list:
     rng = np.random.default_rng(seed + 1)
     listed: dict[tuple[int, ...], object] = {}
     false = []
-    for case in cases_for(rng, sched):
+    for case in cases_for(rng, sched) + _neutral_cases(rng, sched):
         s = _run(case, **extra)
         assert {c.name for c in s.cases} == {"connected", "day", "night"}
         STATUSES[(case.mode + tag, s.status)] += 1
