@@ -170,3 +170,23 @@ def test_connected_load_balance_leaves_day_and_night_far_off_and_the_scenario_pl
         assert c.after.max_deviation_pct <= 10.0
     free = free_breakers(sched, case.mode, case.place_new)
     assert check_case(case, s, enumerate_panel(sched, free)) == []  # 2 is the fewest [computed]
+
+
+@pytest.mark.parametrize("seed", range(40_000, 40_008))
+def test_a_scenario_at_full_load_changes_nothing(seed: int) -> None:
+    """A scenario with every factor 1.0 is the connected load again: the same answer.
+
+    [computed] The case's currents equal the connected load's, so every claim,
+    plan and bound must be the same as without it.
+    """
+    rng = np.random.default_rng(seed)
+    sched = dense_panel(rng, int(rng.choice([8, 10, 12])))
+    full = replace(sched, circuits=tuple(replace(c, use=(("full", 1.0),)) for c in sched.circuits))
+    for case in cases_for(rng, sched):
+        a = _run(case, time_limit_s=10.0, floor_gap=0.0)
+        b = _run(replace(case, schedule=full), time_limit_s=10.0, floor_gap=0.0)
+        assert a.status != "best-found"  # small panels: settled by listing, not by the clock
+        assert (a.status, a.relocations, a.bound) == (b.status, b.relocations, b.bound)
+        assert a.after.phases_rms_a == pytest.approx(b.after.phases_rms_a, rel=1e-12)
+        assert [c.name for c in b.cases] == ["connected", "full"]
+        assert b.cases[1].after.phases_rms_a == pytest.approx(b.after.phases_rms_a, rel=1e-9)
