@@ -12,6 +12,15 @@ placed breaker whose first slot changes is one relocation (a breaker set
 aside in a swap is still one relocation), a new circuit's placement is
 none. The optimum of each mode is then a minimum over this list.
 
+Scenarios: a schedule with ``use`` factors is judged in every case, the
+connected load (every factor 1.0) and each named scenario (README, Loads
+over time: every name in any ``use`` table is a scenario, a circuit that
+does not name it is at 1.0 there). The factors are read here from the
+circuits' ``use`` directly, each case is its own engine batch of the
+scaled loads, and the figures kept are the worst over the cases (the
+largest deviation, neutral and phase current), which is what a plan must
+meet in every case.
+
 The enumeration walks the slots in increasing number: the lowest slot
 nobody has decided is either left empty (while the panel has empty slots
 to spare) or takes the first pole of a free breaker whose other poles fit
@@ -107,12 +116,15 @@ class Enumerated:
         First slot of each free breaker.
     relocations : int ndarray, shape (A,)
         Placed breakers whose first slot changes [-].
-    phase_rms : float ndarray, shape (A, 3)
-        [A], from the engine.
+    phase_rms : float ndarray, shape (A, S, 3)
+        [A], from the engine, in each case (connected load first).
     neutral_rms : float ndarray, shape (A,)
-        [A], from the engine.
+        Largest over the cases [A], from the engine.
     deviation_pct : float ndarray, shape (A,)
-        Largest deviation of a phase RMS current from the mean [%], from the engine.
+        Largest deviation of a phase RMS current from the mean, over the
+        cases [%], from the engine.
+    cases : tuple of str
+        The cases (module notes).
     """
 
     slots: np.ndarray
@@ -120,11 +132,24 @@ class Enumerated:
     phase_rms: np.ndarray
     neutral_rms: np.ndarray
     deviation_pct: np.ndarray
+    cases: tuple[str, ...] = ("connected",)
 
     @property
     def max_rms(self) -> np.ndarray:
-        """Largest phase RMS current of each arrangement [A]."""
-        return self.phase_rms.max(axis=1)
+        """Largest phase RMS current of each arrangement over every case [A]."""
+        return self.phase_rms.max(axis=(1, 2))
+
+
+def case_factors(schedule: Schedule) -> tuple[tuple[str, ...], np.ndarray]:
+    """The cases and each circuit's factor in each (module notes), shape (S, n)."""
+    names: list[str] = []
+    for c in schedule.circuits:
+        names += [n for n, _ in c.use if n not in names]
+    factors = np.ones((1 + len(names), len(schedule.circuits)))
+    for i, c in enumerate(schedule.circuits):
+        for n, f in c.use:
+            factors[1 + names.index(n), i] = f
+    return ("connected", *names), factors
 
 
 def enumerate_panel(schedule: Schedule, free: list[int]) -> Enumerated:
@@ -149,7 +174,11 @@ def enumerate_panel(schedule: Schedule, free: list[int]) -> Enumerated:
     first_slot = np.zeros_like(uniq)
     for u in range(uniq.shape[0]):
         first_slot[u] = slots[np.flatnonzero(back.ravel() == u)[0]]
-    rms, neutral, dev = _engine(schedule, free, first_slot)
+    names, factors = case_factors(schedule)
+    figures = [_engine(schedule, free, first_slot, f) for f in factors]
+    rms = np.stack([f[0] for f in figures], axis=1)  # (U, S, 3)
+    neutral = np.max([f[1] for f in figures], axis=0)
+    dev = np.max([f[2] for f in figures], axis=0)
     back = back.ravel()
     return Enumerated(
         slots=slots,
@@ -157,12 +186,15 @@ def enumerate_panel(schedule: Schedule, free: list[int]) -> Enumerated:
         phase_rms=rms[back],
         neutral_rms=neutral[back],
         deviation_pct=dev[back],
+        cases=names,
     )
 
 
-def _engine(schedule: Schedule, free: list[int], first_slot: np.ndarray):
-    """Engine figures of the schedules with ``free`` at each row of first slots."""
+def _engine(schedule: Schedule, free: list[int], first_slot: np.ndarray, factors: np.ndarray):
+    """Engine figures of the schedules with ``free`` at each row of first slots,
+    every circuit's load scaled by its factor (one case)."""
     ca = circuit_arrays(schedule)
+    assert len(ca.s_va) == len(schedule.circuits)  # one row per circuit (no per-leg loads)
     n_arr = first_slot.shape[0]
     conn = np.tile(ca.connection, (n_arr, 1))
     pp = np.tile(ca.phase_p, (n_arr, 1))
@@ -173,7 +205,7 @@ def _engine(schedule: Schedule, free: list[int], first_slot: np.ndarray):
             rows = first_slot[:, k] == s
             conn[rows, i], pp[rows, i], qq[rows, i] = connection_of(c.at_slot(int(s)))
     batch = CircuitArrays(
-        s_va=np.tile(ca.s_va, (n_arr, 1)),
+        s_va=np.tile(np.asarray(ca.s_va) * factors, (n_arr, 1)),
         connection=conn,
         phase_p=pp,
         phase_q=qq,

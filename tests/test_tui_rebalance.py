@@ -11,6 +11,7 @@ its answers are proven and do not depend on timing.
 
 from __future__ import annotations
 
+import shutil
 import threading
 from pathlib import Path
 
@@ -20,7 +21,7 @@ from tui_support import settle
 
 from tri.cli.common import SAFETY_CAUTION
 from tri.rebalance import Figures, Move, Suggestion, SuggestOptions, WorkStep, suggest
-from tri.report.work_order import count_words, status_words, work_order
+from tri.report.work_order import case_lines, count_words, status_words, work_order
 from tri.schedule.load import load_schedule
 from tri.schedule.save import save_schedule
 from tri.schedule.to_engine import analyse_schedule
@@ -271,3 +272,32 @@ async def test_other_modes_run_the_real_rebalancer(small: Path, mode: int) -> No
         await settle(pilot)
         assert app.session.schedule == s.schedule
         assert analyse_schedule(app.session.schedule) == app.analysis
+
+
+async def test_scenarios_show_every_case_as_the_cli_does(tmp_path: Path) -> None:
+    # the day-night panel: balanced on its connected load, far off by day and by
+    # night; the screen's call is tri suggest's, and it shows each case and the
+    # deciding one in the same words (case_lines, floor_brief) at 80x24
+    src = Path(__file__).parent / "data" / "rebalance" / "day-night.toml"
+    panel = tmp_path / "day-night.toml"
+    shutil.copy(src, panel)
+    app = TriApp(panel, journal=False)
+    async with app.run_test(size=(80, 24)) as pilot:
+        screen = await open_rebalance(pilot, target="10")
+        await pilot.press("ctrl+r")
+        await search_done(pilot)
+        s = screen.plan
+        cli = suggest(load_schedule(panel).schedule, SuggestOptions(target_pct=10))
+        assert (s.status, s.relocations, s.deciding) == ("optimal", 2, "night")
+        assert (s.cases, s.moves) == (cli.cases, cli.moves)
+        figures = str(screen.query_one("#rb-figures").render())
+        assert "(connected load)" in figures
+        for line in case_lines(cli):
+            assert line in figures
+        marked = [
+            row for row in figures.splitlines() if " dev " in row and "*" in row.split(" dev ")[0]
+        ]
+        assert len(marked) == 1 and marked[0].startswith("night")  # the deciding case
+        await pilot.press("A")
+        await settle(pilot)
+        assert app.session.schedule == s.schedule

@@ -31,6 +31,12 @@ This min-max problem is like number partitioning: the bound closes fast
 when many circuits can share the load evenly, and slowly when a few large
 ones decide; ``stop_gap`` keeps the search from chasing the last
 hundredths of a percent.
+
+With several cases (scenarios) the objective is the worst case's largest
+phase RMS current: ``T`` bounds every case's phases from below (one
+currents block per case on the same options), every case's floor and
+floor within the budget is a bound, and each case learns the directions of
+its own spectra.
 """
 
 from __future__ import annotations
@@ -41,7 +47,7 @@ import numpy as np
 
 from tri.rebalance.control import Control
 from tri.rebalance.crossing import budget_floor
-from tri.rebalance.electrical import add_electrical, add_neutral_cuts, decode_options
+from tri.rebalance.electrical import add_currents, add_neutral_cuts, add_options, decode_options
 from tri.rebalance.exhaust import best_plans_within, enumeration_fits
 from tri.rebalance.goal import Goal
 from tri.rebalance.halves import PAIR_LIMIT, halves_fit, plans_below
@@ -56,7 +62,7 @@ from tri.rebalance.plan_currents import spectra
 from tri.rebalance.plans import Evaluator, Plan
 from tri.rebalance.problem import Problem
 from tri.rebalance.slot_model import add_slots
-from tri.rebalance.target import Outcome, neutral_setup
+from tri.rebalance.target import Outcome, neutral_setup, triplen_note
 
 #: Relative improvement the model must find over the best plan [-].
 IMPROVE = 1e-7
@@ -69,13 +75,15 @@ class _BalanceSearch:
 
     def __init__(self, pr: Problem, goal: Goal, control: Control, ev: Evaluator):
         self.pr, self.goal, self.control, self.ev = pr, goal, control, ev
-        self.out = Outcome(plan=None, proven=False, bound=pr.floor_a)
-        self.lower = pr.floor_a
+        self.out = Outcome(plan=None, proven=False, bound=pr.worst_floor_a)
+        self.lower = pr.worst_floor_a
         self.budget = pr.n_movable if goal.max_moves is None else min(goal.max_moves, pr.n_movable)
-        self.reaches = [phase_reach(pr, p, self.budget) for p in range(3)]
-        self.visited: list[list[np.ndarray]] = [[], [], []]
-        self.nlim, ndirs = neutral_setup(pr, goal)
-        self.ncuts = list(ndirs)
+        self.views = pr.views()
+        self.reaches = [[phase_reach(v, p, self.budget) for p in range(3)] for v in self.views]
+        self.visited: list[list[list[np.ndarray]]] = [[[], [], []] for _ in self.views]
+        self.neutral = [neutral_setup(v, goal) for v in self.views]
+        self.nlim = self.neutral[0][0]
+        self.ncuts = [list(d) for _, d in self.neutral]
         self.slice_s = 0.25
         self.level = 0
         self.learn(pr.current_assignment())
@@ -85,16 +93,17 @@ class _BalanceSearch:
         return math.inf if self.out.plan is None else self.out.plan.max_rms_a
 
     def learn(self, assign: np.ndarray) -> None:
-        """Directions of a plan's spectra (lower bounds exact there)."""
-        v, n = spectra(self.pr, assign)
-        for p in range(3):
-            u = unit_spectrum(v[p])
-            if u is not None:
-                self.visited[p].append(u)
-        if self.nlim is not None:
-            u = unit_spectrum(np.where(self.pr.orders % 3 == 0, 0.0, n))
-            if u is not None:
-                self.ncuts.append(u)
+        """Directions of a plan's spectra in every case (lower bounds exact there)."""
+        for k, view in enumerate(self.views):
+            v, n = spectra(view, assign)
+            for p in range(3):
+                u = unit_spectrum(v[p])
+                if u is not None:
+                    self.visited[k][p].append(u)
+            if self.neutral[k][0] is not None:
+                u = unit_spectrum(np.where(self.pr.orders % 3 == 0, 0.0, n))
+                if u is not None:
+                    self.ncuts[k].append(u)
 
     def offer(self, plan: Plan | None) -> None:
         if self.ev.good(plan) and plan is not None and plan.max_rms_a < self.best:
@@ -102,15 +111,22 @@ class _BalanceSearch:
 
     def model(self):
         m = Model()
-        el = add_electrical(m, self.pr, self.nlim is not None)
+        x = add_options(m, self.pr).x
+        t = m.var(1, self.lower, np.inf)
+        res = RESOLUTIONS[self.level]
+        el = None
+        for k, view in enumerate(self.views):  # one currents block per case (module notes)
+            nlim = self.neutral[k][0]
+            el_k = add_currents(m, view, x, nlim is not None)
+            el = el if el is not None else el_k
+            for p in range(3):
+                reach, seen = self.reaches[k][p], self.visited[k][p]
+                add_rms_lower_bounds(m, view, el_k, p, [t], reach, seen, res)
+            if nlim is not None:
+                add_neutral_cuts(m, el_k, nlim, self.ncuts[k])
+        assert el is not None
         sc = add_slots(m, self.pr, el)
         sc.add_budget(m, self.budget)
-        t = m.var(1, self.lower, np.inf)
-        for p in range(3):
-            res = RESOLUTIONS[self.level]
-            add_rms_lower_bounds(m, self.pr, el, p, [t], self.reaches[p], self.visited[p], res)
-        if self.nlim is not None:
-            add_neutral_cuts(m, el, self.nlim, self.ncuts)
         if math.isfinite(self.best):
             m.row([t], [1.0], -np.inf, self.best * (1 - IMPROVE))
         cost = np.zeros(m.n)
@@ -254,8 +270,9 @@ class _BalanceSearch:
         """
         if self.budget >= self.pr.n_movable:
             return
-        seen = [] if self.out.plan is None else [spectra(self.pr, self.out.plan.assign)[0]]
-        self.lower = max(self.lower, budget_floor(self.pr, self.budget, seen))
+        for view in self.views:  # each case's floor bounds the worst case's current
+            seen = [] if self.out.plan is None else [spectra(view, self.out.plan.assign)[0]]
+            self.lower = max(self.lower, budget_floor(view, self.budget, seen))
 
     def done(self, stop_gap: float) -> bool:
         if self.best <= self.lower * (1 + PROVEN_GAP):
@@ -274,7 +291,7 @@ def solve_balance(
     stop_gap: float = 1e-3,
     list_plans: bool = True,
 ) -> Outcome:
-    """Minimise the largest phase RMS current within the relocation budget (module notes).
+    """Minimise the (worst case's) largest phase RMS current within the budget (module notes).
 
     Parameters
     ----------
@@ -298,9 +315,14 @@ def solve_balance(
     """
     search = _BalanceSearch(pr, goal, control, ev)
     out = search.out
-    if search.nlim is not None and search.nlim < 0:
+    over = [
+        n
+        for n, (lim, _) in zip(pr.case_names, search.neutral, strict=True)
+        if lim is not None and lim < 0
+    ]
+    if over:
         out.proven = True
-        out.notes.append("triplen harmonics alone exceed the neutral limit")
+        out.notes.append(triplen_note(pr, over))
         return out
     search.offer(incumbent)
     search.cross()
@@ -308,7 +330,7 @@ def solve_balance(
     if not search.done(stop_gap) and not settled:
         while not control.stop() and search.step(stop_gap):
             pass
-    out.bound = max(search.lower, pr.floor_a)
+    out.bound = max(search.lower, pr.worst_floor_a)
     if out.plan is not None and out.plan.max_rms_a <= out.bound * (1 + PROVEN_GAP):
         out.proven = True
     if out.plan is not None and out.proven:

@@ -10,8 +10,10 @@ Variables
 * ``N_h``: the neutral current at every order (only when a neutral limit
   is set).
 
-A model for several load scenarios would add one currents block per
-scenario on the same ``x``.
+With several cases (scenarios, :mod:`tri.rebalance.problem`) a model has
+one currents block per case on the same ``x`` (:func:`add_currents` with
+each case's problem): every case's currents are then linear in the one
+plan, and each case's rows bound its own block.
 """
 
 from __future__ import annotations
@@ -84,8 +86,23 @@ def add_electrical(m: Model, pr: Problem, neutral: bool) -> Electrical:
     -------
     Electrical
     """
+    return add_currents(m, pr, add_options(m, pr).x, neutral)
+
+
+def add_currents(m: Model, pr: Problem, x: int, neutral: bool) -> Electrical:
+    """The current columns of one case on existing option columns ``x`` (module notes).
+
+    Parameters
+    ----------
+    m : Model
+    pr : Problem
+        The problem in that case (its own currents).
+    x : int
+        First option column.
+    neutral : bool
+        Add the neutral's columns.
+    """
     h = pr.orders.size
-    x = add_options(m, pr).x
     v = m.var(6 * h, -np.inf, np.inf)
     nv = m.var(2 * h, -np.inf, np.inf) if neutral else None
     for p in range(3):

@@ -24,6 +24,11 @@ plans and whether the list is *complete*: then every plan with at most
 ``k`` relocations that meets the goal has its options in the list, and
 the fewest relocations among them (:func:`tri.rebalance.realise.realise`)
 is the optimum.
+
+With several cases (scenarios, :mod:`tri.rebalance.problem`) the quantities
+are every case's three phases, then every case's neutral: a plan is kept
+only when it meets the target (and the neutral limit) in every case, and
+plans are ranked by the worst case's largest phase RMS current.
 """
 
 from __future__ import annotations
@@ -100,16 +105,20 @@ class _Quantities:
     def __init__(self, pr: Problem, with_neutral: bool) -> None:
         cur = pr.current_assignment()
         self.cur = cur
-        v0, n0 = spectra(pr, cur)
         self.others = np.array([o for o in range(pr.n_options) if o != cur[pr.owner[o]]], dtype=int)
         self.circ = pr.owner[self.others] if self.others.size else np.zeros(0, dtype=int)
         self.moves = pr.movable[self.circ]  # a change of a placed circuit (a relocation)
         was = cur[self.circ]
-        deltas = [pr.contrib[self.others, p, :] - pr.contrib[was, p, :] for p in range(3)]
-        bases = [v0[p] for p in range(3)]
+        deltas, bases = [], []
+        for view in pr.views():  # every case's phases, then every case's neutral
+            v0, _ = spectra(view, cur)
+            deltas += [view.contrib[self.others, p, :] - view.contrib[was, p, :] for p in range(3)]
+            bases += [v0[p] for p in range(3)]
         if with_neutral:
-            deltas.append(pr.ncontrib[self.others] - pr.ncontrib[was])
-            bases.append(n0)
+            for view in pr.views():
+                _, n0 = spectra(view, cur)
+                deltas.append(view.ncontrib[self.others] - view.ncontrib[was])
+                bases.append(n0)
         self.base2 = np.array([float(np.sum(b.real**2 + b.imag**2)) for b in bases])
         self.lin = np.stack(
             [
@@ -189,11 +198,11 @@ def _product_chunks(pr: Problem, with_neutral: bool, k: int):
     """
     counts = np.diff(pr.starts)
     cur = pr.current_assignment()
-    parts = [pr.contrib[:, p, :] for p in range(3)]
-    bases = [pr.base[p] for p in range(3)]
+    parts = [view.contrib[:, p, :] for view in pr.views() for p in range(3)]
+    bases = [view.base[p] for view in pr.views() for p in range(3)]
     if with_neutral:
-        parts.append(pr.ncontrib)
-        bases.append(pr.nbase)
+        parts += [view.ncontrib for view in pr.views()]
+        bases += [view.nbase for view in pr.views()]
     use_of = np.concatenate([pr.use_cells, pr.use_window], axis=1)
     cap_split = int(np.searchsorted(np.cumprod(counts[::-1]), _BLOCK, side="right"))
     inner = list(range(pr.n_free - cap_split, pr.n_free))
@@ -281,15 +290,19 @@ def plans_within(
     q = _Quantities(pr, with_neutral)
     found: list[np.ndarray] = []
     sizes: list[int] = []
+    n_ph = 3 * pr.n_cases
     for vals, use, plans in _walk(pr, q, with_neutral, k):
         if stop is not None and stop():
             return Counted(found, sizes, complete=False)
-        r = np.sqrt(np.maximum(vals[:, :3], 0.0))
-        mean = r.mean(axis=1)
-        good = np.max(np.abs(r - mean[:, None]), axis=1) <= target * mean * (1 + SLACK) + 1e-12
-        if vals.shape[1] > 3:
+        r = np.sqrt(np.maximum(vals[:, :n_ph], 0.0)).reshape(-1, pr.n_cases, 3)
+        mean = r.mean(axis=2)
+        dev = np.max(np.abs(r - mean[..., None]), axis=2)
+        good = np.all(dev <= target * mean * (1 + SLACK) + 1e-12, axis=1)
+        if vals.shape[1] > n_ph:
             assert neutral_max_a is not None
-            good &= np.sqrt(np.maximum(vals[:, 3], 0.0)) <= neutral_max_a * (1 + SLACK)
+            good &= np.all(
+                np.sqrt(np.maximum(vals[:, n_ph:], 0.0)) <= neutral_max_a * (1 + SLACK), axis=1
+            )
         good &= np.all(use <= q.cap, axis=1)
         if not np.any(good):
             continue
@@ -332,7 +345,8 @@ def best_plans_within(
     limit: int = FOUND_LIMIT,
     stop: Callable[[], bool] | None = None,
 ) -> Ranked | None:
-    """The ``limit`` plans with at most ``k`` option changes of smallest largest-phase RMS.
+    """The ``limit`` plans with at most ``k`` option changes of smallest largest-phase RMS
+    (the worst case's, with scenarios).
 
     Plans over the neutral limit (within round-off) or the capacity counts are
     left out; with new circuits, plans with more than ``k`` changes of placed
@@ -346,14 +360,17 @@ def best_plans_within(
     best_v = np.zeros(0)
     best_rows: list[np.ndarray] = []
     passing = 0
+    n_ph = 3 * pr.n_cases
     for vals, use, plans in _walk(pr, q, with_neutral, k):
         if stop is not None and stop():
             return None
-        top = np.sqrt(np.maximum(vals[:, :3], 0.0)).max(axis=1)
+        top = np.sqrt(np.maximum(vals[:, :n_ph], 0.0)).max(axis=1)  # the worst case's
         good = np.all(use <= q.cap, axis=1)
-        if vals.shape[1] > 3:
+        if vals.shape[1] > n_ph:
             assert neutral_max_a is not None
-            good &= np.sqrt(np.maximum(vals[:, 3], 0.0)) <= neutral_max_a * (1 + SLACK)
+            good &= np.all(
+                np.sqrt(np.maximum(vals[:, n_ph:], 0.0)) <= neutral_max_a * (1 + SLACK), axis=1
+            )
         passing += int(np.sum(good))
         if best_v.size >= limit:
             good &= top < best_v.max()

@@ -6,6 +6,12 @@ sum of squared phase RMS currents (which spreads the rest evenly); for a
 *target*, the deviation above the target (plus the relative neutral
 excess), then the largest phase RMS current. The RMS currents are the
 engine's formula (:func:`tri.engine.harmonics.rms`) on exact spectra.
+
+With several cases (:mod:`tri.rebalance.problem`, Cases) the currents carry a
+case axis before the phases: balance scores the worst case (its largest
+phase RMS current plus its neutral penalty) and spreads the rest over every
+case; a target scores the sum over the cases of what each misses (every
+case must meet it), then the worst case's largest phase RMS current.
 """
 
 from __future__ import annotations
@@ -44,34 +50,35 @@ class Goal:
 def measures(
     problem: Problem, goal: Goal, v: np.ndarray, n: np.ndarray
 ) -> tuple[np.ndarray, np.ndarray]:
-    """Primary and secondary scores of candidate plans.
+    """Primary and secondary scores of candidate plans (module notes).
 
     Parameters
     ----------
     problem : Problem
     goal : Goal
-    v : complex ndarray, shape (..., 3, H)
-        Phase currents per order [A].
-    n : complex ndarray, shape (..., H)
-        Neutral currents per order [A].
+    v : complex ndarray, shape (..., S, 3, H)
+        Phase currents per case and order [A].
+    n : complex ndarray, shape (..., S, H)
+        Neutral currents per case and order [A].
 
     Returns
     -------
     primary, secondary : float ndarray, shape (...)
-        Balance: ``max R_p + w·neutral excess`` [A] and ``Σ R_p²`` [A²].
-        Target: ``max(0, deviation - target) + neutral excess / limit`` [-]
-        and ``max R_p`` [A].
+        Balance: ``max over cases of (max R_p + w·neutral excess)`` [A] and
+        ``Σ R_p²`` over cases and phases [A²]. Target: the sum over cases of
+        ``max(0, deviation - target) + neutral excess / limit`` [-] and the
+        largest ``R_p`` over cases [A].
     """
-    r = rms(v)
-    top = r.max(axis=-1)
+    r = rms(v)  # (..., S, 3)
+    top = r.max(axis=-1)  # (..., S)
     excess = np.zeros_like(top)
     if goal.neutral_max_a is not None and problem.has_neutral:
         excess = np.maximum(0.0, rms(n) - goal.neutral_max_a)
     if goal.target is None:
-        return top + NEUTRAL_WEIGHT * excess, np.sum(r * r, axis=-1)
+        return (top + NEUTRAL_WEIGHT * excess).max(axis=-1), np.sum(r * r, axis=(-1, -2))
     mean = r.mean(axis=-1)
     dev = np.max(np.abs(r - mean[..., None]), axis=-1) / np.where(mean > 0, mean, 1.0)
     viol = np.maximum(0.0, dev - goal.target)
     if goal.neutral_max_a is not None:
         viol = viol + excess / max(goal.neutral_max_a, 1e-9)
-    return viol, top
+    return viol.sum(axis=-1), top.max(axis=-1)

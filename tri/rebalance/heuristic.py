@@ -22,7 +22,9 @@ Steps
 4. *Pruning*: undo moves that are not needed (the target still met, or
    the largest phase current no larger).
 
-Scores are those of :mod:`tri.rebalance.goal`.
+Scores are those of :mod:`tri.rebalance.goal`, over every case at once
+(:attr:`tri.rebalance.problem.Problem.stacked`: the currents carry a case
+axis, so a step is judged in every scenario).
 
 References
 ----------
@@ -66,13 +68,16 @@ class LocalSearch:
         self.assign = np.array(assign, dtype=int, copy=True)
         present = self.assign >= 0
         a = self.assign[present]
-        self.v = problem.base + problem.contrib[a].sum(axis=0)
-        self.n = problem.nbase + problem.ncontrib[a].sum(axis=0)
+        st = problem.stacked
+        self.contrib, self.ncontrib = st.contrib, st.ncontrib  # (O, S, 3, H), (O, S, H)
+        self.v = st.base + st.contrib[a].sum(axis=0)
+        self.n = st.nbase + st.ncontrib[a].sum(axis=0)
         self.cells = problem.use_cells[a].sum(axis=0)
         self.win = problem.use_window[a].sum(axis=0)
         self.cap_total = problem.cap_phase
         self.moved = problem.movable & present & (self.assign != problem.current)
-        scale = max(problem.floor_a, 1e-9)
+        self.floor = problem.worst_floor_a
+        scale = max(self.floor, 1e-9)
         self.tol = (1e-12 if goal.target is not None else 1e-9 * scale, 1e-9 * scale * scale)
         self.sizes = np.sqrt(
             np.sum(np.abs(problem.contrib[problem.starts[:-1]]) ** 2, axis=(-1, -2))
@@ -112,13 +117,13 @@ class LocalSearch:
         pr = self.pr
         old = int(self.assign[i])
         if old >= 0:
-            self.v = self.v - pr.contrib[old]
-            self.n = self.n - pr.ncontrib[old]
+            self.v = self.v - self.contrib[old]
+            self.n = self.n - self.ncontrib[old]
             self.cells = self.cells - pr.use_cells[old]
             self.win = self.win - pr.use_window[old]
         if o >= 0:
-            self.v = self.v + pr.contrib[o]
-            self.n = self.n + pr.ncontrib[o]
+            self.v = self.v + self.contrib[o]
+            self.n = self.n + self.ncontrib[o]
             self.cells = self.cells + pr.use_cells[o]
             self.win = self.win + pr.use_window[o]
         self.assign[i] = o
@@ -150,7 +155,9 @@ class LocalSearch:
             if not np.any(ok):
                 return False
             opts = opts[ok]
-            p, s = measures(pr, self.goal, self.v + pr.contrib[opts], self.n + pr.ncontrib[opts])
+            p, s = measures(
+                pr, self.goal, self.v + self.contrib[opts], self.n + self.ncontrib[opts]
+            )
             # prefer staying where it is when that scores as well
             stay = (opts == pr.current[i]).astype(float)
             s = s - stay * (abs(float(s.max())) + 1.0) * 1e-6
@@ -178,8 +185,8 @@ class LocalSearch:
         o, i, cur = o[ok], i[ok], cur[ok]
         if o.size == 0:
             return None
-        v = self.v + (pr.contrib[o] - pr.contrib[cur])
-        n = self.n + (pr.ncontrib[o] - pr.ncontrib[cur])
+        v = self.v + (self.contrib[o] - self.contrib[cur])
+        n = self.n + (self.ncontrib[o] - self.ncontrib[cur])
         p, s = measures(pr, self.goal, v, n)
         k = self._pick(p, s)
         return float(p[k]), float(s[k]), ((int(i[k]), int(o[k])),)
@@ -215,14 +222,14 @@ class LocalSearch:
     ) -> tuple[float, float, tuple[tuple[int, int], ...]] | None:
         pr = self.pr
         oia, ojb = pr.starts[ia] + b, pr.starts[jb] + a  # new options
-        di = pr.contrib[oia] - pr.contrib[self.assign[ia]]
-        dj = pr.contrib[ojb] - pr.contrib[self.assign[jb]]
-        ndi = pr.ncontrib[oia] - pr.ncontrib[self.assign[ia]]
-        ndj = pr.ncontrib[ojb] - pr.ncontrib[self.assign[jb]]
+        di = self.contrib[oia] - self.contrib[self.assign[ia]]
+        dj = self.contrib[ojb] - self.contrib[self.assign[jb]]
+        ndi = self.ncontrib[oia] - self.ncontrib[self.assign[ia]]
+        ndj = self.ncontrib[ojb] - self.ncontrib[self.assign[jb]]
         mi = self._moved_if(ia, oia).astype(int) - self.moved[ia].astype(int)
         mj = self._moved_if(jb, ojb).astype(int) - self.moved[jb].astype(int)
         h = pr.orders.size
-        rows = max(1, _CHUNK // max(1, jb.size * 3 * h))
+        rows = max(1, _CHUNK // max(1, jb.size * 3 * h * pr.n_cases))
         best = None
         for r0 in range(0, ia.size, rows):
             sl = slice(r0, r0 + rows)
@@ -251,7 +258,7 @@ class LocalSearch:
         p, _ = self.score()
         if self.goal.target is not None:
             return p <= 0.0
-        return p <= self.pr.floor_a * (1 + self.stop_gap)
+        return p <= self.floor * (1 + self.stop_gap)
 
     def descend(self, max_steps: int | None = None, swaps: bool = True) -> int:
         """Steepest descent with single changes, then swaps; returns steps taken."""

@@ -18,6 +18,12 @@ Modes
     largest-phase current; relocations are then reduced where that costs
     nothing (not proven fewest).
 
+With ``use`` scenarios every mode works in every case at once: the
+connected load (every factor 1.0: the design load ``tri check`` judges
+too, so a plan never trades a check there for one in a scenario) and each
+named scenario. A target and a neutral limit must hold in every case; the
+balance modes minimise the largest phase RMS current of the worst case.
+
 A relocation is a placed breaker whose slot changes (on a rail board:
 whose phases change), as the work order counts it; placing a new circuit
 is not one.
@@ -126,9 +132,18 @@ class SuggestOptions:
         return DEFAULT_TARGET_PCT if self.target_pct is None else self.target_pct
 
 
-def objective_text(opts: SuggestOptions) -> str:
+def cases_text(case_names: tuple[str, ...]) -> str:
+    """The cases in words: ``""`` without scenarios (module notes)."""
+    if len(case_names) <= 1:
+        return ""
+    names = ", ".join(case_names[1:])
+    return f"the connected load and the scenarios {names}"
+
+
+def objective_text(opts: SuggestOptions, case_names: tuple[str, ...] = ("connected",)) -> str:
     """What the mode minimises, in words (the ``objective`` of the output)."""
     mode = opts.mode
+    cases = cases_text(case_names)
     neutral = (
         f", with the neutral RMS current at most {opts.neutral_max_a:g} A"
         if opts.neutral_max_a is not None
@@ -137,18 +152,19 @@ def objective_text(opts: SuggestOptions) -> str:
     if mode == "fewest-moves":
         cap = f" (at most {opts.max_moves})" if opts.max_moves is not None else ""
         target = opts.effective_target_pct
+        every = f", in every case ({cases})" if cases else ""
         return (
             f"number of breakers relocated{cap} so that every phase RMS current is within "
-            f"{target:g} % of the mean of the three{neutral}"
+            f"{target:g} % of the mean of the three{neutral}{every}"
         )
+    worst = "largest phase RMS current [A]"
+    if cases:
+        worst = f"largest phase RMS current [A] of the worst case ({cases})"
     if mode == "balance":
-        return (
-            f"largest phase RMS current [A] with at most {plural(opts.max_moves or 0, 'breaker')} "
-            f"relocated{neutral}"
-        )
+        return f"{worst} with at most {plural(opts.max_moves or 0, 'breaker')} relocated{neutral}"
     if mode == "place-new":
-        return f"largest phase RMS current [A], placing new circuits without moving others{neutral}"
+        return f"{worst}, placing new circuits without moving others{neutral}"
     return (
-        f"largest phase RMS current [A] over a full re-layout{neutral}; relocations are then "
+        f"{worst} over a full re-layout{neutral}; relocations are then "
         "reduced where that costs nothing (not proven fewest)"
     )

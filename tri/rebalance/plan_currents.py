@@ -67,18 +67,49 @@ def spectra(problem: Problem, assign: np.ndarray) -> tuple[np.ndarray, np.ndarra
 
 @dataclass(frozen=True)
 class Assessment:
-    """Exact figures of one plan (by superposition of the engine's currents).
+    """Exact figures of one plan in every case (by superposition of the engine's currents).
 
     Attributes
     ----------
     phase_rms_a : tuple of 3 float
-        RMS current of each phase [A].
+        RMS current of each phase in the first case (the connected load) [A].
     neutral_rms_a : float
-        RMS neutral current [A] (0 on a 3-wire system).
+        Largest RMS neutral current over the cases [A] (0 on a 3-wire system).
     deviation_pct : float
-        Largest deviation of a phase RMS current from their mean [%].
+        Largest deviation of a phase RMS current from their mean, over the cases [%].
+    cases : tuple of CaseFigures
+        The figures in each case (:attr:`tri.rebalance.problem.Problem.case_names` order).
     """
 
+    phase_rms_a: tuple[float, float, float]
+    neutral_rms_a: float
+    deviation_pct: float
+    cases: tuple[CaseFigures, ...] = ()
+
+    @property
+    def max_rms_a(self) -> float:
+        """Largest phase RMS current over every case [A] (the worst case's)."""
+        if not self.cases:
+            return max(self.phase_rms_a)
+        return max(c.max_rms_a for c in self.cases)
+
+
+@dataclass(frozen=True)
+class CaseFigures:
+    """Exact figures of a plan in one case.
+
+    Attributes
+    ----------
+    name : str
+    phase_rms_a : tuple of 3 float
+        [A].
+    neutral_rms_a : float
+        [A] (0 on a 3-wire system).
+    deviation_pct : float
+        [%].
+    """
+
+    name: str
     phase_rms_a: tuple[float, float, float]
     neutral_rms_a: float
     deviation_pct: float
@@ -90,13 +121,24 @@ class Assessment:
 
 
 def assess(problem: Problem, assign: np.ndarray) -> Assessment:
-    """Exact figures of a plan (see :class:`Assessment`), with the engine's RMS and deviation."""
-    v, n = spectra(problem, assign)
-    r = rms(v)
+    """Exact figures of a plan in every case (see :class:`Assessment`), engine formulas."""
+    cases = []
+    for view, name in zip(problem.views(), problem.case_names, strict=True):
+        v, n = spectra(view, assign)
+        r = rms(v)
+        cases.append(
+            CaseFigures(
+                name=name,
+                phase_rms_a=(float(r[0]), float(r[1]), float(r[2])),
+                neutral_rms_a=float(rms(n)) if problem.has_neutral else 0.0,
+                deviation_pct=float(deviation_rate_pct(r)),
+            )
+        )
     return Assessment(
-        phase_rms_a=(float(r[0]), float(r[1]), float(r[2])),
-        neutral_rms_a=float(rms(n)) if problem.has_neutral else 0.0,
-        deviation_pct=float(deviation_rate_pct(r)),
+        phase_rms_a=cases[0].phase_rms_a,
+        neutral_rms_a=max(c.neutral_rms_a for c in cases),
+        deviation_pct=max(c.deviation_pct for c in cases),
+        cases=tuple(cases),
     )
 
 
@@ -109,5 +151,5 @@ def triplen_neutral_a(problem: Problem) -> float:
     """
     if not problem.has_neutral:
         return 0.0
-    _, n = spectra(problem, problem.current_assignment())
+    _, n = spectra(problem, problem.current_assignment())  # this problem's own case
     return float(rms(n[is_triplen(problem.orders)]))

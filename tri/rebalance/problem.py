@@ -46,12 +46,26 @@ diagonal with unit entries, ``F = ||J|| ≤ (1/3)·Σ_p ||v_p||`` = the mean
 phase RMS current ≤ the largest one. ``F`` is a lower bound on the largest
 phase RMS current of *every* plan, and on their mean. With linear loads
 ``F = |I_1|``, the positive-sequence current.
+
+Cases (scenarios)
+-----------------
+A schedule with ``use`` factors is judged in every *case*: the connected
+load (every factor 1.0, as ``tri check`` judges it) and each named
+scenario (:mod:`tri.schedule.to_scenarios`). The options and slots are the
+same in every case; only the currents differ (each circuit's scaled by its
+factor, computed by the engine on the scaled schedule). The problem's own
+arrays are the connected load's; :attr:`Problem.others` holds the problem
+in each further case, and :meth:`Problem.views` all of them, so that every
+bound proven for one case's currents is proven for that case, and a plan
+must pass every case's. :meth:`Problem.stacked` gives the currents of every
+case with a case axis, for the searches that score plans in all at once.
 """
 
 from __future__ import annotations
 
 from collections.abc import Sequence
 from dataclasses import dataclass, replace
+from functools import cached_property
 
 import numpy as np
 
@@ -59,7 +73,8 @@ from tri.engine import analyse_batch
 from tri.engine.inputs import LINE_TO_LINE, LINE_TO_NEUTRAL, THREE_PHASE, UNPLACED, CircuitArrays
 from tri.rebalance.geometry import SlotGeometry, disjoint_window_counts, slot_geometry
 from tri.schedule.model import Circuit, Schedule
-from tri.schedule.to_engine import circuit_arrays, ratings, system_voltages
+from tri.schedule.to_engine import circuit_arrays, element_rows, ratings, system_voltages
+from tri.schedule.to_scenarios import CONNECTED, scenario_set
 
 #: The three phase pairs of 2-pole options, in row order of a two-column panel [-].
 PAIRS: tuple[tuple[int, int], ...] = ((0, 1), (1, 2), (2, 0))
@@ -121,7 +136,12 @@ class Problem:
     cap_window : int ndarray, shape (4,)
         Most windows of each type side by side in the open slots [-].
     floor_a : float
-        ``F``: no plan's largest phase RMS current is below it [A] (module notes).
+        ``F`` of these currents: no plan's largest phase RMS current is below
+        it [A] (module notes).
+    case_names : tuple of str
+        The cases, this problem's own first (module notes, Cases).
+    others : tuple of Problem
+        The problem in each further case (same options; empty without scenarios).
     """
 
     schedule: Schedule
@@ -145,6 +165,39 @@ class Problem:
     cap_phase: np.ndarray
     cap_window: np.ndarray
     floor_a: float = 0.0
+    case_names: tuple[str, ...] = ("connected",)
+    others: tuple[Problem, ...] = ()
+
+    @property
+    def n_cases(self) -> int:
+        """Number of cases ``S`` (1 without scenarios) [-]."""
+        return 1 + len(self.others)
+
+    def views(self) -> tuple[Problem, ...]:
+        """The problem in each case, in :attr:`case_names` order (each with no others)."""
+        if not self.others:
+            return (self,)
+        return (self._own, *self.others)
+
+    @cached_property
+    def _own(self) -> Problem:
+        return replace(self, others=(), case_names=self.case_names[:1])
+
+    @property
+    def worst_floor_a(self) -> float:
+        """The largest case floor: no plan's worst-case largest phase RMS is below it [A]."""
+        return max(v.floor_a for v in self.views())
+
+    @cached_property
+    def stacked(self) -> Stacked:
+        """The currents of every case with a case axis (:class:`Stacked`)."""
+        vs = self.views()
+        return Stacked(
+            contrib=np.stack([v.contrib for v in vs], axis=1),
+            ncontrib=np.stack([v.ncontrib for v in vs], axis=1),
+            base=np.stack([v.base for v in vs]),
+            nbase=np.stack([v.nbase for v in vs]),
+        )
 
     @property
     def slots(self) -> bool:
@@ -181,6 +234,25 @@ class Problem:
         (a breaker on other phases has left its slot); equal on a rail board.
         """
         return int(np.sum(self.movable & (np.asarray(assign) != self.current)))
+
+
+@dataclass(frozen=True, eq=False)
+class Stacked:
+    """Currents of every case (module notes, Cases), the case axis after the option's.
+
+    Attributes
+    ----------
+    contrib : complex ndarray, shape (O, S, 3, H)
+    ncontrib : complex ndarray, shape (O, S, H)
+    base : complex ndarray, shape (S, 3, H)
+    nbase : complex ndarray, shape (S, H)
+        [A], as :class:`Problem`'s arrays, one row per case.
+    """
+
+    contrib: np.ndarray
+    ncontrib: np.ndarray
+    base: np.ndarray
+    nbase: np.ndarray
 
 
 def _options(c: Circuit, slots: bool) -> list[tuple[int, tuple[int, ...]]]:
@@ -223,10 +295,22 @@ def _single_circuit_batch(ca: CircuitArrays, rows: np.ndarray, conn, p, q) -> Ci
     )
 
 
-def _engine_currents(schedule: Schedule, free_arr: np.ndarray, phases, owner_a: np.ndarray):
-    """Fixed circuits' currents and each option's, from the engine (module notes)."""
+def _engine_currents(
+    schedule: Schedule,
+    free_arr: np.ndarray,
+    phases,
+    owner_a: np.ndarray,
+    factors: np.ndarray | None = None,
+):
+    """Fixed circuits' currents and each option's, from the engine (module notes).
+
+    ``factors`` (one per circuit) scales each circuit's load: one case.
+    """
     circuits = schedule.circuits
     ca = circuit_arrays(schedule)
+    if factors is not None:
+        rows_of = [i for i, _ in element_rows(schedule)]
+        ca = replace(ca, s_va=np.asarray(ca.s_va) * np.asarray(factors, dtype=float)[rows_of])
     system, rat = system_voltages(schedule), ratings(schedule)
     h = 1 + len(ca.orders)
     conn = np.array(ca.connection, copy=True)
@@ -277,7 +361,7 @@ def _capacity(phases, geo: SlotGeometry | None):
     return use_cells, use_window, geo.open_per_phase.copy(), disjoint_window_counts(geo)
 
 
-def build_problem(schedule: Schedule, free: Sequence[int]) -> Problem:
+def build_problem(schedule: Schedule, free: Sequence[int], scenarios: bool = True) -> Problem:
     """Arrays for the rebalancer with the circuits ``free`` open to choice.
 
     Parameters
@@ -287,6 +371,9 @@ def build_problem(schedule: Schedule, free: Sequence[int]) -> Problem:
     free : sequence of int
         Schedule indices of the circuits whose position may be chosen
         (placed: relocating is a move; unplaced: a placement).
+    scenarios : bool
+        Add the problem in every scenario of the schedule's ``use`` factors
+        (module notes, Cases); False: the connected load alone.
 
     Returns
     -------
@@ -333,6 +420,28 @@ def build_problem(schedule: Schedule, free: Sequence[int]) -> Problem:
         cap_phase=cap_phase,
         cap_window=cap_window,
     )
+    problem = _with_floor(problem)
+    cases = scenario_set(schedule) if scenarios else None
+    if cases is None or cases.count == 0:
+        return problem
+    others = []
+    for k in range(cases.count):
+        base, nbase, contrib, ncontrib = _engine_currents(
+            schedule, free_arr, phases, owner_a, cases.factors[k]
+        )
+        view = replace(
+            problem,
+            contrib=contrib,
+            ncontrib=ncontrib,
+            base=base,
+            nbase=nbase,
+            case_names=(cases.names[k],),
+        )
+        others.append(_with_floor(view))
+    return replace(problem, case_names=(CONNECTED, *cases.names), others=tuple(others))
+
+
+def _with_floor(problem: Problem) -> Problem:
     from tri.rebalance.plan_currents import floor_of, spectra
 
     v, _ = spectra(problem, problem.current_assignment())

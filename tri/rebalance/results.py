@@ -98,6 +98,22 @@ class Figures:
 
 
 @dataclass(frozen=True)
+class CaseResult:
+    """Engine figures of one case (the connected load or a scenario) before and after.
+
+    Attributes
+    ----------
+    name : str
+        ``"connected"`` or the scenario's name (:mod:`tri.schedule.to_scenarios`).
+    before, after : Figures
+    """
+
+    name: str
+    before: Figures
+    after: Figures
+
+
+@dataclass(frozen=True)
 class Suggestion:
     """What the rebalancer proposes, with its proof status.
 
@@ -149,6 +165,16 @@ class Suggestion:
     stop_gap : float
         Balance modes: the search stopped once the plan was within this
         fraction of ``bound`` [-] (0: run to a proof or the time limit).
+    cases : tuple of CaseResult
+        With ``use`` scenarios: every case the plan was judged in, the
+        connected load first (``before``/``after`` are its figures); empty
+        without scenarios.
+    deciding : str or None
+        With scenarios: the case that decides the objective after the
+        moves (fewest moves: the largest deviation; otherwise the largest
+        phase RMS current).
+    floor_case : str or None
+        With scenarios: the case whose floor is ``floor_a``.
     """
 
     status: Status
@@ -170,6 +196,23 @@ class Suggestion:
     solver_calls: int = 0
     elapsed_s: float = 0.0
     stop_gap: float = 0.0
+    cases: tuple[CaseResult, ...] = ()
+    deciding: str | None = None
+    floor_case: str | None = None
+
+    @property
+    def worst_max_phase_rms_a(self) -> float:
+        """Largest phase RMS current after the moves over every case [A]."""
+        if not self.cases:
+            return self.after.max_phase_rms_a
+        return max(c.after.max_phase_rms_a for c in self.cases)
+
+    @property
+    def worst_deviation_pct(self) -> float:
+        """Largest deviation after the moves over every case [%]."""
+        if not self.cases:
+            return self.after.max_deviation_pct
+        return max(c.after.max_deviation_pct for c in self.cases)
 
     @property
     def relocations(self) -> int:

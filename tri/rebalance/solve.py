@@ -14,6 +14,12 @@ The modes are those of :mod:`tri.rebalance.options`. In every mode:
    schedule before and after (:func:`tri.schedule.to_engine.analyse_schedule`):
    those are the figures reported.
 
+With ``use`` scenarios every step works in every case at once (the
+connected load, as ``tri check`` judges it, and each scenario:
+:mod:`tri.rebalance.problem`, Cases): the target and the neutral limit must
+hold in every case, and the balance modes minimise the worst case's
+largest phase RMS current; the engine runs on every case before and after.
+
 The status is a claim about the objective the output names (relocations
 as the work order counts them; the engine's largest phase RMS current):
 ``optimal`` only when proven, ``best-found`` with a proven bound,
@@ -40,11 +46,11 @@ from tri.rebalance.heuristic import LocalSearch, heuristic_plan
 from tri.rebalance.options import SuggestOptions, objective_text
 from tri.rebalance.plans import TOL, Evaluator, Plan
 from tri.rebalance.problem import Problem, build_problem
-from tri.rebalance.results import Figures, Move, Status, Suggestion, apply_moves
+from tri.rebalance.results import CaseResult, Figures, Move, Status, Suggestion, apply_moves
 from tri.rebalance.target import Outcome, solve_target
 from tri.rebalance.workorder import order_work, rail_steps
 from tri.schedule.model import Schedule
-from tri.schedule.to_engine import analyse_schedule
+from tri.schedule.to_scenarios import analyse_cases
 from tri.schedule.wiring import rebalancer_refusal
 
 
@@ -74,6 +80,7 @@ class _Run:
     goal: Goal
     notes: list[str] = field(default_factory=list)
     calls: int = 0
+    before_cases: list[tuple[str, Figures]] = field(default_factory=list)
 
     @property
     def has_new(self) -> bool:
@@ -176,7 +183,7 @@ def _best_balance(run: _Run) -> tuple[Plan | None, Status, float | None]:
             pr, goal, control, plan, ev, stop_gap=opts.floor_gap, list_plans=opts.list_plans
         )
     else:
-        out = Outcome(plan, proven=pr.n_free == 0 and plan is not None, bound=pr.floor_a)
+        out = Outcome(plan, proven=pr.n_free == 0 and plan is not None, bound=pr.worst_floor_a)
     run.calls += out.solver_calls
     run.notes.extend(out.notes)
     if out.plan is None:
@@ -252,14 +259,15 @@ def suggest(
         raise ValueError("a neutral limit needs a system with a neutral (this one is 3-wire)")
     control = Control(opts.time_limit_s, progress, cancel)
     control.report("analysing the panel as it is", 0.0)
-    before = Figures.of(analyse_schedule(schedule))
+    before = _case_figures(schedule)
     target_pct = opts.effective_target_pct
     goal = Goal(
         target=None if target_pct is None else target_pct / 100.0,
         neutral_max_a=opts.neutral_max_a,
         max_moves=0 if opts.mode == "place-new" else opts.max_moves,
     )
-    run = _Run(build_problem(schedule, free_indices(schedule, opts)), opts, control, before, goal)
+    pr = build_problem(schedule, free_indices(schedule, opts))
+    run = _Run(pr, opts, control, before[0][1], goal, before_cases=before)
     if opts.mode == "fewest-moves":
         plan, status, bound = _fewest_moves(run)
     else:
@@ -293,42 +301,63 @@ def _moves_for(pr: Problem, plan: Plan) -> tuple[list[Move], list]:
     return ordered, steps
 
 
+def _case_figures(schedule: Schedule) -> list[tuple[str, Figures]]:
+    """Engine figures of the connected load and of every scenario, in case order."""
+    return [(c.name, Figures.of(c.analysis)) for c in analyse_cases(schedule)]
+
+
+def _met(opts: SuggestOptions, fig: Figures) -> bool:
+    """The target and the neutral limit hold in one case's engine figures (to round-off)."""
+    target_pct = opts.effective_target_pct
+    met = True
+    if target_pct is not None:
+        met = fig.max_deviation_pct <= target_pct * (1 + TOL) + 1e-12
+    if opts.neutral_max_a is not None:
+        met = met and fig.neutral_rms_a <= opts.neutral_max_a * (1 + TOL)
+    return met
+
+
+def _check_engine(run: _Run, plan: Plan, after: list[tuple[str, Figures]]) -> None:
+    """Every case's engine figures against the optimiser's (a note if they differ)."""
+    for fig, (_, eng) in zip(plan.figures.cases, after, strict=True):
+        exact = fig.phase_rms_a
+        diff = max(abs(a - b) for a, b in zip(exact, eng.phases_rms_a, strict=True))
+        if diff > 1e-6 * max(1.0, eng.max_phase_rms_a):
+            run.notes.append(
+                f"engine and optimiser figures differ by {diff:.3g} A (please report this)"
+            )
+
+
 def _finish(run: _Run, plan: Plan | None, status: Status, bound: float | None) -> Suggestion:
     control, pr, opts = run.control, run.pr, run.opts
     if control.cancelled():
         raise Cancelled
     moves, steps = _moves_for(pr, plan) if plan is not None and pr.n_free else ([], [])
     after_schedule = apply_moves(pr.schedule, moves)
-    after = Figures.of(analyse_schedule(after_schedule)) if moves else run.before
-    target_pct = opts.effective_target_pct
-    met = True
-    if target_pct is not None:
-        met = after.max_deviation_pct <= target_pct * (1 + TOL) + 1e-12
-    if opts.neutral_max_a is not None:
-        met = met and after.neutral_rms_a <= opts.neutral_max_a * (1 + TOL)
+    after_cases = _case_figures(after_schedule) if moves else run.before_cases
+    after = after_cases[0][1]
+    met = all(_met(opts, fig) for _, fig in after_cases)
     # new circuits asked to be placed but left without a slot: the goal is not met
     new = pr.free[~pr.movable].tolist() if pr.n_free else []
     met = met and all(after_schedule.circuits[i].is_placed for i in new)
     if moves and plan is not None:
-        exact = plan.figures.phase_rms_a
-        diff = max(abs(a - b) for a, b in zip(exact, after.phases_rms_a, strict=True))
-        if diff > 1e-6 * max(1.0, after.max_phase_rms_a):
-            run.notes.append(
-                f"engine and optimiser figures differ by {diff:.3g} A (please report this)"
-            )
+        _check_engine(run, plan, after_cases)
+    target_pct = opts.effective_target_pct
     if target_pct is not None and status in ("optimal", "already-balanced") and not met:
         status = "best-found"
     control.report("done", 1.0)
+    scen = len(after_cases) > 1
+    floors = [v.floor_a for v in pr.views()]
     return Suggestion(
         status=status,
         mode=opts.mode,
-        objective=objective_text(opts),
+        objective=objective_text(opts, pr.case_names),
         moves=tuple(moves),
         steps=tuple(steps),
         before=run.before,
         after=after,
         bound=bound,
-        floor_a=pr.floor_a,
+        floor_a=pr.worst_floor_a,
         target_pct=target_pct,
         target_met=met,
         neutral_max_a=opts.neutral_max_a,
@@ -339,4 +368,19 @@ def _finish(run: _Run, plan: Plan | None, status: Status, bound: float | None) -
         solver_calls=run.calls,
         elapsed_s=control.elapsed(),
         stop_gap=opts.floor_gap if opts.mode != "fewest-moves" else 0.0,
+        cases=tuple(
+            CaseResult(name, b, a)
+            for (name, b), (_, a) in zip(run.before_cases, after_cases, strict=True)
+        )
+        if scen
+        else (),
+        deciding=_deciding(opts, after_cases) if scen else None,
+        floor_case=pr.case_names[int(np.argmax(floors))] if scen else None,
     )
+
+
+def _deciding(opts: SuggestOptions, cases: list[tuple[str, Figures]]) -> str:
+    """The case that decides after the moves (:attr:`Suggestion.deciding`)."""
+    if opts.mode == "fewest-moves":
+        return max(cases, key=lambda c: c[1].max_deviation_pct)[0]
+    return max(cases, key=lambda c: c[1].max_phase_rms_a)[0]

@@ -23,6 +23,12 @@ The proven lower bound is the crossing bound, the largest budget plus one
 shown impossible, or the model's own bound (its optimum or HiGHS's dual bound) rounded up.
 ``proven`` means the bound reached the plan's relocations (or, with no
 plan, passed the cap).
+
+With several cases (scenarios) the target must hold in every case: a plan
+needs at least the crossing bound of each case (the largest of them is a
+bound); the listing checks every case; the model has every case's rows on
+the same options (:class:`tri.rebalance.target_model.CaseRows`), each case
+learning from the proposals in its own currents.
 """
 
 from __future__ import annotations
@@ -44,7 +50,12 @@ from tri.rebalance.plan_currents import triplen_neutral_a
 from tri.rebalance.plans import Evaluator, Plan
 from tri.rebalance.polygon import polygon_directions
 from tri.rebalance.problem import Problem
-from tri.rebalance.target_model import SECTOR_WIDTHS_DEG, Learnt, build_target_model
+from tri.rebalance.target_model import (
+    SECTOR_WIDTHS_DEG,
+    CaseRows,
+    Learnt,
+    build_target_model,
+)
 
 
 @dataclass
@@ -74,7 +85,7 @@ class Outcome:
 
 
 def neutral_setup(pr: Problem, goal: Goal) -> tuple[float | None, list[np.ndarray]]:
-    """Limit on the non-triplen neutral RMS [A] and its first directions.
+    """Limit on the non-triplen neutral RMS [A] and its first directions, in ``pr``'s own case.
 
     The triplen orders of the neutral are the same for every plan
     (:func:`tri.rebalance.problem.triplen_neutral_a`), so ``||N|| ≤ L`` is
@@ -94,6 +105,16 @@ def neutral_setup(pr: Problem, goal: Goal) -> tuple[float | None, list[np.ndarra
     return math.sqrt(goal.neutral_max_a**2 - trip**2), dirs
 
 
+def triplen_note(pr: Problem, cases: list[str]) -> str:
+    """The note when triplen harmonics alone exceed the neutral limit (in which cases)."""
+    where = (
+        ""
+        if pr.n_cases == 1
+        else f" (in the case{'s' if len(cases) > 1 else ''} {', '.join(cases)})"
+    )
+    return f"triplen harmonics alone exceed the neutral limit{where}"
+
+
 class _TargetSearch:
     """State of one fewest-relocations search (module notes)."""
 
@@ -107,11 +128,14 @@ class _TargetSearch:
         self.out = Outcome(plan=None, proven=False, bound=0.0)
         self.lower = 0
         self.level = 0
-        self.learnt = Learnt()
+        self.views = pr.views()
+        self.learnts = [Learnt() for _ in self.views]
+        self.learnt = self.learnts[0]
         self.counted_out: set[int] = set()
         self.slice_s = 0.5
-        self.nlim, self.ndirs = neutral_setup(pr, goal)
-        self.squares = square_terms(pr)
+        self.neutral = [neutral_setup(v, goal) for v in self.views]
+        self.nlim, self.ndirs = self.neutral[0]
+        self.squares = [square_terms(v) for v in self.views]
 
     @property
     def best_k(self) -> int | None:
@@ -157,6 +181,12 @@ class _TargetSearch:
 
     def ask_model(self, budget: int) -> bool:
         """Step 2 of the module notes; False when the loop must stop."""
+        cases = tuple(
+            CaseRows(v, learnt, nlim, ndirs, sq)
+            for v, learnt, (nlim, ndirs), sq in zip(
+                self.views[1:], self.learnts[1:], self.neutral[1:], self.squares[1:], strict=True
+            )
+        )
         tm = build_target_model(
             self.pr,
             self.goal.target,
@@ -165,7 +195,8 @@ class _TargetSearch:
             self.learnt,
             self.nlim,
             self.ndirs,
-            self.squares,
+            self.squares[0],
+            cases,
         )
         what = f"at most {budget} relocation{'s' if budget != 1 else ''}"
         self.control.report(f"solver: looking for a plan with {what}")
@@ -207,7 +238,8 @@ class _TargetSearch:
             self.out.notes.append("a solution's slots did not fit and were found again")
         if self.offer(plan):
             return True
-        self.learnt.learn(self.pr, a)
+        for view, learnt in zip(self.views, self.learnts, strict=True):
+            learnt.learn(view, a)
         if self.offer(self._repair(a, budget)):
             return True
         if self.level + 1 < len(SECTOR_WIDTHS_DEG):
@@ -228,8 +260,9 @@ class _TargetSearch:
         """Step 0: the crossing bound (:mod:`tri.rebalance.crossing`) raises the lower bound."""
         known = self.cap + 1 if self.best_k is None else self.best_k
         self.control.report("bounding the moves by the current that must cross between phases")
-        lb = changes_lower_bound(self.pr, self.goal.target, known, self.cap, self.control.stop)
-        self.lower = max(self.lower, lb)
+        for view in self.views:  # every case must meet the target: each one's bound holds
+            lb = changes_lower_bound(view, self.goal.target, known, self.cap, self.control.stop)
+            self.lower = max(self.lower, lb)
 
     def run(self) -> Outcome:
         self.cross()
@@ -285,9 +318,14 @@ def solve_target(
         ``bound`` is a proven lower bound on the relocations.
     """
     search = _TargetSearch(pr, goal, control, ev, list_plans)
-    if search.nlim is not None and search.nlim < 0:
+    over = [
+        n
+        for n, (lim, _) in zip(pr.case_names, search.neutral, strict=True)
+        if lim is not None and lim < 0
+    ]
+    if over:
         search.out.proven = True
-        search.out.notes.append("triplen harmonics alone exceed the neutral limit")
+        search.out.notes.append(triplen_note(pr, over))
         return search.out
     search.offer(incumbent)
     return search.run()

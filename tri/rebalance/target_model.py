@@ -23,6 +23,11 @@ magnitude (a convex function) only allows piecewise:
   square root). Exact for a phase no move touches and for a phase one
   move touches.
 
+With several cases (scenarios) the target holds in every case: each case
+has its own currents block on the same options (:func:`add_currents`), its
+own ``R_p`` columns and the rows above for its own currents
+(:class:`CaseRows`); a plan meeting the target in every case satisfies all.
+
 With these, every plan that meets the target exactly satisfies the
 program (it is a relaxation): when the program has no solution with ``k``
 relocations, no plan with ``k`` relocations exists. What the loop learnt
@@ -38,7 +43,7 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
-from tri.rebalance.electrical import Electrical, add_electrical, add_neutral_cuts
+from tri.rebalance.electrical import Electrical, add_currents, add_neutral_cuts, add_options
 from tri.rebalance.exact_square import SquareTerms, add_exact_square_rows
 from tri.rebalance.lower_bounds import (
     RESOLUTIONS,
@@ -124,6 +129,29 @@ class TargetModel:
     offset: float
 
 
+@dataclass(frozen=True)
+class CaseRows:
+    """What the model needs of one further case: its problem and what was learnt there.
+
+    Attributes
+    ----------
+    view : Problem
+        The problem in that case (its own currents).
+    learnt : Learnt
+        Cuts, exact products and tangent points of that case (its no-goods unused).
+    neutral_limit : float or None
+        Limit on that case's non-triplen neutral RMS [A].
+    neutral_dirs : list of complex ndarray
+    squares : SquareTerms or None
+    """
+
+    view: Problem
+    learnt: Learnt
+    neutral_limit: float | None
+    neutral_dirs: list[np.ndarray]
+    squares: SquareTerms | None = None
+
+
 def build_target_model(
     pr: Problem,
     target: float,
@@ -133,12 +161,14 @@ def build_target_model(
     neutral_limit: float | None,
     neutral_dirs: list[np.ndarray],
     squares: SquareTerms | None = None,
+    cases: tuple[CaseRows, ...] = (),
 ) -> TargetModel:
     """The model of the module notes for at most ``budget`` relocations.
 
     Parameters
     ----------
     pr : Problem
+        The problem in the first case (its own currents are used).
     target : float
         Largest deviation from the mean, a fraction [-].
     budget : int
@@ -147,6 +177,7 @@ def build_target_model(
         Index into :data:`SECTOR_WIDTHS_DEG` and
         :data:`tri.rebalance.lower_bounds.RESOLUTIONS`.
     learnt : Learnt
+        The first case's (and every no-good cut).
     neutral_limit : float or None
         Limit on the non-triplen neutral RMS [A].
     neutral_dirs : list of complex ndarray
@@ -154,13 +185,33 @@ def build_target_model(
     squares : SquareTerms, optional
         The exact squares (:mod:`tri.rebalance.exact_square`): the upper side
         then uses them instead of sectors and centred rows.
+    cases : tuple of CaseRows
+        Every further case, each with its own rows on the same options.
     """
     m = Model()
-    el = add_electrical(m, pr, neutral_limit is not None)
+    x = add_options(m, pr).x
+    el = add_currents(m, pr, x, neutral_limit is not None)
     sc = add_slots(m, pr, el)
     sc.add_budget(m, budget)
     for bad in learnt.nogoods:
         m.row(el.x + bad, np.ones(bad.size), -np.inf, bad.size - 1.0)
+    first = CaseRows(pr, learnt, neutral_limit, neutral_dirs, squares)
+    for case in (first, *cases):
+        case_el = (
+            el if case is first else add_currents(m, case.view, x, case.neutral_limit is not None)
+        )
+        _case_rows(m, case, case_el, target, budget, level)
+    cost = np.zeros(m.n)
+    const, cols, vals = sc.relocation_terms()
+    np.add.at(cost, cols, vals)
+    return TargetModel(m, el, sc, cost, const)
+
+
+def _case_rows(
+    m: Model, case: CaseRows, el: Electrical, target: float, budget: int, level: int
+) -> None:
+    """The ``R_p`` columns of one case, their bounds and the target on them (module notes)."""
+    pr, learnt = case.view, case.learnt
     reaches = [phase_reach(pr, p, budget) for p in range(3)]
     r_maxes = [rc.rms_max * (1 + 1e-9) + 1e-9 for rc in reaches]
     r_min = min((1.0 - target) * pr.floor_a * (1 - 1e-9), min(r_maxes))
@@ -170,21 +221,17 @@ def build_target_model(
         ref_u = unit_spectrum(ref_v[p])
         visited = [*([ref_u] if ref_u is not None else []), *learnt.cuts[p]]
         add_rms_lower_bounds(m, pr, el, p, [r0 + p], reaches[p], visited, RESOLUTIONS[level])
-        if squares is not None:
+        if case.squares is not None:
             continue
         if changed_max(pr, budget) <= CENTRED_MAX_CHANGED:
             _centred_rows(m, pr, el, p, r0 + p, budget, learnt, r_min, r_maxes[p])
         _sector_rows(m, pr, el, p, r0 + p, budget, level, learnt, reaches[p], target)
-    if squares is not None:
+    if case.squares is not None:
         cols = [r0 + p for p in range(3)]
-        add_exact_square_rows(m, el.x, cols, squares, r_min, r_maxes, level, learnt.rms)
+        add_exact_square_rows(m, el.x, cols, case.squares, r_min, r_maxes, level, learnt.rms)
     _deviation_rows(m, r0, target)
-    if neutral_limit is not None:
-        add_neutral_cuts(m, el, neutral_limit, neutral_dirs + learnt.neutral)
-    cost = np.zeros(m.n)
-    const, cols, vals = sc.relocation_terms()
-    np.add.at(cost, cols, vals)
-    return TargetModel(m, el, sc, cost, const)
+    if case.neutral_limit is not None:
+        add_neutral_cuts(m, el, case.neutral_limit, case.neutral_dirs + learnt.neutral)
 
 
 def _deviation_rows(m: Model, r0: int, target: float) -> None:

@@ -20,7 +20,12 @@ exactly what was proven); ``mode``; ``bound_unit`` (``"moves"``, i.e. relocation
 swap); ``work_order`` (the numbered steps: ``step``, ``action``,
 ``circuit``, ``text``); in ``before`` and ``after``, ``limits`` (the
 engine's findings at level "limit": ratings still exceeded);
-``unplaced_left``; ``notes``; ``caution``. Numbers are SI (A, %), rounded
+``unplaced_left``; ``notes``; ``caution``. With ``use`` scenarios
+(``null`` / empty without): ``cases`` (one object per case, the connected
+load first: ``name``, ``deciding`` (true for the case that decides after
+the moves), ``before`` and ``after`` as above; the top-level ``before`` and
+``after`` are the connected load's), ``deciding_case``, ``floor_case`` (the
+case whose floor is ``floor_a``), ``deciding_text``. Numbers are SI (A, %), rounded
 to 9 significant digits; phases by the panel's labels; ``null`` for "no
 slot" or "not placed".
 
@@ -45,6 +50,7 @@ from tri.report.data import num
 from tri.report.text_report import to_ascii
 from tri.report.work_order import (
     count_words,
+    deciding_words,
     fixed,
     floor_words,
     limits_words,
@@ -129,6 +135,18 @@ def suggestion_data(s: Suggestion, before: Schedule, caution: str) -> dict[str, 
         "unplaced_left": list(s.unplaced_left),
         "notes": list(s.notes),
         "caution": caution,
+        "cases": [
+            {
+                "name": c.name,
+                "deciding": c.name == s.deciding,
+                "before": _figures(c.before, labels),
+                "after": _figures(c.after, labels),
+            }
+            for c in s.cases
+        ],
+        "deciding_case": s.deciding,
+        "floor_case": s.floor_case,
+        "deciding_text": deciding_words(s),
     }
 
 
@@ -154,6 +172,24 @@ def _figures_table(s: Suggestion, labels: tuple[str, str, str], ascii_only: bool
         fixed(s.before.max_deviation_pct, 2),
         fixed(s.after.max_deviation_pct, 2),
     )
+    return t
+
+
+def _cases_table(s: Suggestion, ascii_only: bool) -> Table:
+    """Every case's figures, before → after; the deciding case marked ``*``."""
+    t = Table(box=box.ASCII if ascii_only else box.SIMPLE_HEAD, pad_edge=False)
+    arrow = "->" if ascii_only else "→"
+    t.add_column("Case")
+    for head in ("Largest phase [A]", "Neutral [A]", "Deviation [%]"):
+        t.add_column(head, justify="right")
+    for c in s.cases:
+        b, a = c.before, c.after
+        t.add_row(
+            c.name + (" *" if c.name == s.deciding else ""),
+            f"{fixed(b.max_phase_rms_a, 1)} {arrow} {fixed(a.max_phase_rms_a, 1)}",
+            f"{fixed(b.neutral_rms_a, 1)} {arrow} {fixed(a.neutral_rms_a, 1)}",
+            f"{fixed(b.max_deviation_pct, 2)} {arrow} {fixed(a.max_deviation_pct, 2)}",
+        )
     return t
 
 
@@ -201,8 +237,13 @@ def suggestion_renderables(
         )
     if s.neutral_max_a is not None:
         out.append(Text(f"Neutral limit: {s.neutral_max_a:g} A."))
-    out.append(Text("Figures from the engine on the schedule before and after (estimates):"))
+    load = ", connected load" if s.cases else ""
+    out.append(Text(f"Figures from the engine on the schedule before and after (estimates{load}):"))
     out.append(_figures_table(s, before.labels, ascii_only))
+    deciding = deciding_words(s)
+    if deciding:
+        out.append(Text(_nbsp(deciding)))
+        out.append(_cases_table(s, ascii_only))
     out.append(Text(floor_words(s)))
     limits = limits_words(s)
     if limits:

@@ -9,6 +9,10 @@ objective the output names (relocations as the work order counts them, or
 the engine's largest phase RMS current). Every face of ``tri suggest``
 uses these: the text work order and the JSON (:mod:`tri.report.suggest`)
 and the terminal UI's rebalance screen.
+
+With ``use`` scenarios, :func:`deciding_words` names the case that decides
+and :func:`case_lines` gives each case's figures before and after, in the
+same words everywhere.
 """
 
 from __future__ import annotations
@@ -168,7 +172,7 @@ def status_words(s: Suggestion) -> str:
         return "no plan fits (proven); nothing is proposed"
     text = "best found, not proven optimal"
     if s.bound is not None:
-        top = s.after.max_phase_rms_a
+        top = s.worst_max_phase_rms_a
         gap = 100.0 * (top / s.bound - 1.0) if s.bound > 0 else 0.0
         text += (
             f"; proven: no plan {scope} brings the largest phase below {fixed(s.bound, 2)} A "
@@ -216,18 +220,53 @@ def count_words(s: Suggestion) -> str:
 
 def floor_words(s: Suggestion) -> str:
     """How close the largest phase comes to the floor no arrangement can go below."""
-    top = s.after.max_phase_rms_a
+    top = s.worst_max_phase_rms_a
     gap = 100.0 * (top - s.floor_a) / s.floor_a if s.floor_a > 0 else 0.0
+    where, after = "", "after the moves it is"
+    if s.cases:
+        where = f" in the {s.floor_case} case"
+        after = "after the moves the worst case's is"
     return (
-        f"No arrangement can bring the largest phase below {fixed(s.floor_a, 1)} A (its share "
-        f"of the positive-sequence current, harmonics included); after the moves it is "
+        f"No arrangement can bring the largest phase{where} below {fixed(s.floor_a, 1)} A "
+        f"(its share of the positive-sequence current, harmonics included); {after} "
         f"{fixed(top, 1)}\u00a0A, {fixed(gap, 2)}\u00a0% above."
     )
 
 
+def deciding_words(s: Suggestion) -> str | None:
+    """Which case decides after the moves, and by what figure; None without scenarios."""
+    if not s.cases:
+        return None
+    case = next(c for c in s.cases if c.name == s.deciding)
+    if s.mode == "fewest-moves":
+        what = f"the largest deviation, {fixed(case.after.max_deviation_pct, 2)}\u00a0%"
+    else:
+        what = f"the largest phase RMS current, {fixed(case.after.max_phase_rms_a, 1)}\u00a0A"
+    names = ", ".join(c.name for c in s.cases)
+    return (
+        f"Judged in every case ({names}; connected = every use factor 1.0). "
+        f"Deciding case after the moves: {s.deciding} ({what})."
+    )
+
+
+def case_lines(s: Suggestion) -> list[str]:
+    """One line per case: deviation and largest phase current before → after (brief)."""
+    width = max((len(c.name) for c in s.cases), default=0)
+    out = []
+    for c in s.cases:
+        b, a = c.before, c.after
+        mark = "*" if c.name == s.deciding else " "
+        out.append(
+            f"{c.name:<{width}}{mark} dev {fixed(b.max_deviation_pct, 1)} → "
+            f"{fixed(a.max_deviation_pct, 1)} %  largest {fixed(b.max_phase_rms_a, 1)} → "
+            f"{fixed(a.max_phase_rms_a, 1)} A"
+        )
+    return out
+
+
 def floor_brief(s: Suggestion) -> str:
     """:func:`floor_words` in fewer words, for a small screen."""
-    top = s.after.max_phase_rms_a
+    top = s.worst_max_phase_rms_a
     gap = 100.0 * (top - s.floor_a) / s.floor_a if s.floor_a > 0 else 0.0
     return (
         f"Floor {fixed(s.floor_a, 1)} A (no arrangement goes below it); largest phase after: "

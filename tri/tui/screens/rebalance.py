@@ -35,7 +35,9 @@ from tri.rebalance import (
 )
 from tri.report.work_order import (
     WorkLine,
+    case_lines,
     count_words,
+    deciding_words,
     fixed,
     floor_brief,
     floor_words,
@@ -268,7 +270,8 @@ class RebalanceScreen(Screen[None]):
         if s is None:
             return
         labels = self.before.labels if self.before is not None else ("A", "B", "C")
-        t = Text("Engine figures, before → after all moves:\n", style="bold")
+        load = " (connected load)" if s.cases else ""
+        t = Text(f"Engine figures, before → after all moves{load}:\n", style="bold")
         for lab, b, a in zip(labels, s.before.phases_rms_a, s.after.phases_rms_a, strict=True):
             t.append(f"{lab} {fixed(b, 1)} → {fixed(a, 1)} A   ")
         if s.before.neutral_rms_a or s.after.neutral_rms_a:
@@ -279,6 +282,10 @@ class RebalanceScreen(Screen[None]):
             f"   I2/I1 {fixed(b.negative_sequence_pct, 1)} → {fixed(a.negative_sequence_pct, 1)} %"
         )
         roomy = self.app.size.height >= ROOMY_HEIGHT
+        if s.cases:  # every scenario judged: the same words as tri suggest
+            t.append("\n" + (deciding_words(s) or "") if roomy else "\nCases (* decides):")
+            for line in case_lines(s):
+                t.append("\n" + line)
         t.append("\n" + (floor_words(s) if roomy else floor_brief(s)))
         limits = limits_words(s) if roomy else limits_brief(s)
         if limits:
