@@ -204,7 +204,7 @@ class _BalanceSearch:
         if not (math.isfinite(self.best) and halves_fit(self.pr, self.budget)):
             return False
         self.control.report("listing every plan that could beat the best")
-        floor, last = self.pr.floor_a, None
+        floor, last = self.pr.worst_floor_a, None
         span = self.best - floor
         cutoffs = sorted(
             {

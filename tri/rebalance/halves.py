@@ -47,6 +47,11 @@ the budget that is not listed has a largest phase RMS current of at least
 ``c`` (or fails those checks, so is not a plan). A relocation changes at
 most one breaker's option, so this holds for ``k`` relocations too.
 
+With several cases (scenarios, :mod:`tri.rebalance.problem`) the value is
+the worst case's: a plan below ``c`` is below ``c`` in every case, so
+Lemma 1 holds in any one of them; the case with the largest floor (the
+smallest triangle) is used, and the exact check takes every case.
+
 The triangle's size is ``c - F``: the listing is fast when the best plan
 known is close to ``F``, which is also when the model's bound (about ``F``)
 is least able to decide.
@@ -114,7 +119,9 @@ class _Changes:
 
 
 def _changes(pr: Problem, ref: np.ndarray) -> _Changes:
+    """The changes, sized in the case with the largest floor (module notes)."""
     ref = np.asarray(ref, dtype=int)
+    pr = max(pr.views(), key=lambda v: v.floor_a)
     others = np.array(
         [o for o in range(pr.n_options) if o != ref[pr.owner[o]] and pr.movable[pr.owner[o]]],
         dtype=int,
@@ -278,17 +285,17 @@ def _exact(pr: Problem, ch: _Changes, rows: np.ndarray, cutoff: float, neutral_m
     duse = np.vstack([use[ch.opt] - use[was], np.zeros((1, use.shape[1]), dtype=int)])
     cap = np.concatenate([pr.cap_phase, pr.cap_window])
     rows = rows[np.all(use[ch.ref].sum(axis=0) + duse[rows].sum(axis=1) <= cap, axis=1)]
-    v0, n0 = spectra(pr, ch.ref)
-    dv = pr.contrib[ch.opt] - pr.contrib[was]
-    dv = np.concatenate([dv, np.zeros((1, *dv.shape[1:]), dtype=complex)])
-    v = v0[None] + dv[rows].sum(axis=1)
-    value = np.sqrt(np.sum(v.real**2 + v.imag**2, axis=-1)).max(axis=-1)
-    keep = value < cutoff
-    if neutral_max_a is not None and pr.has_neutral:
-        dn = pr.ncontrib[ch.opt] - pr.ncontrib[was]
-        dn = np.concatenate([dn, np.zeros((1, dn.shape[1]), dtype=complex)])
-        n = n0[None] + dn[rows].sum(axis=1)
-        keep &= np.sqrt(np.sum(np.abs(n) ** 2, axis=-1)) <= neutral_max_a * (1 + NEUTRAL_SLACK)
+    value = np.zeros(rows.shape[0])
+    keep = np.ones(rows.shape[0], dtype=bool)
+    with_neutral = neutral_max_a is not None and pr.has_neutral
+    for view in pr.views():  # the worst case's value; the neutral limit in every case
+        v0, n0 = spectra(view, ch.ref)
+        v = v0[None] + _added(view.contrib, ch, was)[rows].sum(axis=1)
+        value = np.maximum(value, np.sqrt(np.sum(v.real**2 + v.imag**2, axis=-1)).max(axis=-1))
+        if with_neutral:
+            n = n0[None] + _added(view.ncontrib, ch, was)[rows].sum(axis=1)
+            keep &= np.sqrt(np.sum(np.abs(n) ** 2, axis=-1)) <= neutral_max_a * (1 + NEUTRAL_SLACK)
+    keep &= value < cutoff
     rows, value = rows[keep], value[keep]
     order = np.argsort(value, kind="stable")
     plans = []
@@ -298,3 +305,9 @@ def _exact(pr: Problem, ch: _Changes, rows: np.ndarray, cutoff: float, neutral_m
         a[ch.circ[r]] = ch.opt[r]
         plans.append(a)
     return Listed(plans, [float(x) for x in value[order]], cutoff * (1 - SLACK))
+
+
+def _added(contrib: np.ndarray, ch: _Changes, was: np.ndarray) -> np.ndarray:
+    """What each change adds to ``contrib``'s quantity, with a zero row for the pads."""
+    d = contrib[ch.opt] - contrib[was]
+    return np.concatenate([d, np.zeros((1, *d.shape[1:]), dtype=d.dtype)])
