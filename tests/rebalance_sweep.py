@@ -195,6 +195,8 @@ def check_case(case: Case, s, enum: Enumerated | None = None) -> list[str]:
         strict = within & strict_n & (enum.deviation_pct <= t * (1 - EDGE))
         loose = within & loose_n & (enum.deviation_pct <= t * (1 + EDGE))
         placed = all(s.schedule.circuits[i].is_placed for i in free)
+        if n_lim is not None:  # the claimed target_met covers the neutral limit too
+            placed = placed and s.worst_neutral_rms_a <= n_lim * (1 + EDGE)
         bad += _fewest_errors(s, enum, strict, loose, t, placed)
     else:
         feasible = within & strict_n
@@ -219,6 +221,7 @@ def _figure_errors(free: list[int], s, enum: Enumerated) -> list[str]:
     bad = []
     for what, mine, ref in (
         ("deviation", s.worst_deviation_pct, float(enum.deviation_pct[row])),
+        ("neutral", s.worst_neutral_rms_a, float(enum.neutral_rms[row])),
         ("largest phase current", s.worst_max_phase_rms_a, float(enum.max_rms[row])),
     ):
         if abs(mine - ref) > 1e-6 * max(1.0, abs(ref)):

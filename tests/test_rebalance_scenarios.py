@@ -46,11 +46,40 @@ def _run(case: Case, **extra):
         return suggest(case.schedule, case.options(**extra))
 
 
+#: Targets of the fewest-moves cases [%]: three cases must meet them at once on a
+#: panel of a few breakers, so wider than the connected-load sweep's, and both
+#: optimal and infeasible answers occur.
+TARGETS = (10.0, 20.0, 30.0, 50.0, 80.0)
+
+
+def _cases(rng: np.random.Generator, sched) -> list[Case]:
+    out = []
+    for case in cases_for(rng, sched):
+        if case.mode == "fewest-moves":
+            case = replace(case, target_pct=float(rng.choice(TARGETS)))
+        out.append(case)
+    return out + _neutral_cases(rng, sched)
+
+
+def _neutral_cases(rng: np.random.Generator, sched) -> list[Case]:
+    """Fewest moves and a budget with a neutral limit every case must keep (drawn
+    between the worst-case neutral currents of the arrangements, so it binds)."""
+    enum = enumerate_panel(sched, free_breakers(sched, "balance", False))
+    lim = float(np.quantile(enum.neutral_rms, rng.uniform(0.05, 0.6)))
+    if lim <= 0:
+        return []
+    target = float(rng.choice(TARGETS))
+    return [
+        Case(sched, "fewest-moves", target_pct=target, neutral_max_a=lim),
+        Case(sched, "balance", max_moves=int(rng.integers(1, 3)), neutral_max_a=lim),
+    ]
+
+
 def _false_claims(seed: int, sched, tag: str, **extra) -> list:
     rng = np.random.default_rng(seed + 1)
     listed: dict[tuple[int, ...], object] = {}
     false = []
-    for case in cases_for(rng, sched):
+    for case in _cases(rng, sched):
         s = _run(case, **extra)
         assert {c.name for c in s.cases} == {"connected", "day", "night"}
         STATUSES[(case.mode + tag, s.status)] += 1
@@ -87,6 +116,8 @@ def test_the_scenario_sweep_proves_things() -> None:
         test_every_claim_holds_in_every_scenario(0)
     seen = {status for (_, status) in STATUSES}
     assert {"optimal", "infeasible"} <= seen
+    fewest = {st for (mode, st), n in STATUSES.items() if mode == "fewest-moves" and n}
+    assert {"optimal", "infeasible"} <= fewest
 
 
 def _strip(sched):
@@ -156,3 +187,23 @@ def test_connected_load_balance_leaves_day_and_night_far_off_and_the_scenario_pl
         assert c.after.max_deviation_pct <= 10.0
     free = free_breakers(sched, case.mode, case.place_new)
     assert check_case(case, s, enumerate_panel(sched, free)) == []  # 2 is the fewest [computed]
+
+
+@pytest.mark.parametrize("seed", range(40_000, 40_008))
+def test_a_scenario_at_full_load_changes_nothing(seed: int) -> None:
+    """A scenario with every factor 1.0 is the connected load again: the same answer.
+
+    [computed] The case's currents equal the connected load's, so every claim,
+    plan and bound must be the same as without it.
+    """
+    rng = np.random.default_rng(seed)
+    sched = dense_panel(rng, int(rng.choice([8, 10, 12])))
+    full = replace(sched, circuits=tuple(replace(c, use=(("full", 1.0),)) for c in sched.circuits))
+    for case in cases_for(rng, sched):
+        a = _run(case, time_limit_s=10.0, floor_gap=0.0)
+        b = _run(replace(case, schedule=full), time_limit_s=10.0, floor_gap=0.0)
+        assert a.status != "best-found"  # small panels: settled by listing, not by the clock
+        assert (a.status, a.relocations, a.bound) == (b.status, b.relocations, b.bound)
+        assert a.after.phases_rms_a == pytest.approx(b.after.phases_rms_a, rel=1e-12)
+        assert [c.name for c in b.cases] == ["connected", "full"]
+        assert b.cases[1].after.phases_rms_a == pytest.approx(b.after.phases_rms_a, rel=1e-9)

@@ -47,18 +47,9 @@ phase RMS current ≤ the largest one. ``F`` is a lower bound on the largest
 phase RMS current of *every* plan, and on their mean. With linear loads
 ``F = |I_1|``, the positive-sequence current.
 
-Cases (scenarios)
------------------
-A schedule with ``use`` factors is judged in every *case*: the connected
-load (every factor 1.0, as ``tri check`` judges it) and each named
-scenario (:mod:`tri.schedule.to_scenarios`). The options and slots are the
-same in every case; only the currents differ (each circuit's scaled by its
-factor, computed by the engine on the scaled schedule). The problem's own
-arrays are the connected load's; :attr:`Problem.others` holds the problem
-in each further case, and :meth:`Problem.views` all of them, so that every
-bound proven for one case's currents is proven for that case, and a plan
-must pass every case's. :meth:`Problem.stacked` gives the currents of every
-case with a case axis, for the searches that score plans in all at once.
+With ``use`` scenarios the problem carries every case's currents
+(:mod:`tri.rebalance.cases`): its own arrays are the connected load's,
+:attr:`Problem.others` the problem in each further case.
 """
 
 from __future__ import annotations
@@ -66,6 +57,7 @@ from __future__ import annotations
 from collections.abc import Sequence
 from dataclasses import dataclass, replace
 from functools import cached_property
+from typing import TYPE_CHECKING
 
 import numpy as np
 
@@ -74,7 +66,9 @@ from tri.engine.inputs import LINE_TO_LINE, LINE_TO_NEUTRAL, THREE_PHASE, UNPLAC
 from tri.rebalance.geometry import SlotGeometry, disjoint_window_counts, slot_geometry
 from tri.schedule.model import Circuit, Schedule
 from tri.schedule.to_engine import circuit_arrays, element_rows, ratings, system_voltages
-from tri.schedule.to_scenarios import CONNECTED, scenario_set
+
+if TYPE_CHECKING:
+    from tri.rebalance.cases import Stacked
 
 #: The three phase pairs of 2-pole options, in row order of a two-column panel [-].
 PAIRS: tuple[tuple[int, int], ...] = ((0, 1), (1, 2), (2, 0))
@@ -190,14 +184,10 @@ class Problem:
 
     @cached_property
     def stacked(self) -> Stacked:
-        """The currents of every case with a case axis (:class:`Stacked`)."""
-        vs = self.views()
-        return Stacked(
-            contrib=np.stack([v.contrib for v in vs], axis=1),
-            ncontrib=np.stack([v.ncontrib for v in vs], axis=1),
-            base=np.stack([v.base for v in vs]),
-            nbase=np.stack([v.nbase for v in vs]),
-        )
+        """The currents of every case with a case axis (:class:`tri.rebalance.cases.Stacked`)."""
+        from tri.rebalance.cases import stack
+
+        return stack(self.views())
 
     @property
     def slots(self) -> bool:
@@ -234,25 +224,6 @@ class Problem:
         (a breaker on other phases has left its slot); equal on a rail board.
         """
         return int(np.sum(self.movable & (np.asarray(assign) != self.current)))
-
-
-@dataclass(frozen=True, eq=False)
-class Stacked:
-    """Currents of every case (module notes, Cases), the case axis after the option's.
-
-    Attributes
-    ----------
-    contrib : complex ndarray, shape (O, S, 3, H)
-    ncontrib : complex ndarray, shape (O, S, H)
-    base : complex ndarray, shape (S, 3, H)
-    nbase : complex ndarray, shape (S, H)
-        [A], as :class:`Problem`'s arrays, one row per case.
-    """
-
-    contrib: np.ndarray
-    ncontrib: np.ndarray
-    base: np.ndarray
-    nbase: np.ndarray
 
 
 def _options(c: Circuit, slots: bool) -> list[tuple[int, tuple[int, ...]]]:
@@ -304,7 +275,8 @@ def _engine_currents(
 ):
     """Fixed circuits' currents and each option's, from the engine (module notes).
 
-    ``factors`` (one per circuit) scales each circuit's load: one case.
+    ``factors`` (one per circuit) scales each circuit's load: one case
+    (:mod:`tri.rebalance.cases`).
     """
     circuits = schedule.circuits
     ca = circuit_arrays(schedule)
@@ -395,7 +367,8 @@ def build_problem(schedule: Schedule, free: Sequence[int], scenarios: bool = Tru
         starts.append(len(owner))
         current.append(cur)
     owner_a = np.array(owner, dtype=int)
-    base, nbase, contrib, ncontrib = _engine_currents(schedule, free_arr, phases, owner_a)
+    engine_args = (schedule, free_arr, phases, owner_a)
+    base, nbase, contrib, ncontrib = _engine_currents(*engine_args)
     geo = slot_geometry(schedule, free_arr.tolist())
     use_cells, use_window, cap_phase, cap_window = _capacity(phases, geo)
     problem = Problem(
@@ -420,28 +393,15 @@ def build_problem(schedule: Schedule, free: Sequence[int], scenarios: bool = Tru
         cap_phase=cap_phase,
         cap_window=cap_window,
     )
-    problem = _with_floor(problem)
-    cases = scenario_set(schedule) if scenarios else None
-    if cases is None or cases.count == 0:
+    problem = with_floor(problem)
+    if not scenarios:
         return problem
-    others = []
-    for k in range(cases.count):
-        base, nbase, contrib, ncontrib = _engine_currents(
-            schedule, free_arr, phases, owner_a, cases.factors[k]
-        )
-        view = replace(
-            problem,
-            contrib=contrib,
-            ncontrib=ncontrib,
-            base=base,
-            nbase=nbase,
-            case_names=(cases.names[k],),
-        )
-        others.append(_with_floor(view))
-    return replace(problem, case_names=(CONNECTED, *cases.names), others=tuple(others))
+    from tri.rebalance.cases import with_cases
+
+    return with_cases(problem, schedule, lambda f: _engine_currents(*engine_args, f))
 
 
-def _with_floor(problem: Problem) -> Problem:
+def with_floor(problem: Problem) -> Problem:
     from tri.rebalance.plan_currents import floor_of, spectra
 
     v, _ = spectra(problem, problem.current_assignment())

@@ -208,6 +208,13 @@ class Suggestion:
         return max(c.after.max_phase_rms_a for c in self.cases)
 
     @property
+    def worst_neutral_rms_a(self) -> float:
+        """Largest neutral RMS current after the moves over every case [A]."""
+        if not self.cases:
+            return self.after.neutral_rms_a
+        return max(c.after.neutral_rms_a for c in self.cases)
+
+    @property
     def worst_deviation_pct(self) -> float:
         """Largest deviation after the moves over every case [%]."""
         if not self.cases:
