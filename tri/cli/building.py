@@ -49,8 +49,13 @@ class _Progress:
             print("\r\x1b[K", end="", file=sys.stderr)
 
 
-def building_report_data(path: str, *, iterate: bool, continuous_factor: float) -> dict[str, Any]:
-    """Load, analyse and turn a building into report data (:mod:`tri.report.building`)."""
+def building_report_data(
+    path: str, *, iterate: bool, continuous_factor: float | None
+) -> dict[str, Any]:
+    """Load, analyse and turn a building into report data (:mod:`tri.report.building`).
+
+    ``continuous_factor`` None: each panel's own practice (:func:`analyse_building`).
+    """
     from tri.report.building import building_data
     from tri.schedule.tree_to_engine import analyse_building
 

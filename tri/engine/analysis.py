@@ -255,7 +255,7 @@ def analyse_batch(
     nl_share = np.where(total_va > 0, 100.0 * nl_va / np.where(total_va > 0, total_va, 1.0), 0.0)
     tp_triplen = np.any((conn == THREE_PHASE) & (oc.triplen_power_pu > 0), axis=-1)
 
-    volt: dict[str, np.ndarray | None] = {}
+    volt: dict[str, np.ndarray] = {}
     if sol is not None:
         volt = voltage_figures(sol.v_phase, system.has_neutral)
         volt.update(iterations=sol.iterations, converged=sol.converged)
@@ -397,6 +397,13 @@ def voltage_figures(v_phase: np.ndarray, has_neutral: bool | np.ndarray) -> dict
 
 def _f(x: np.ndarray | float) -> float:
     return float(np.asarray(x))
+
+
+def _given(x: np.ndarray | None) -> np.ndarray:
+    """``x``, a voltage figure of a batch analysed with a supply (all or none are set)."""
+    if x is None:
+        raise ValueError("a batch with panel voltages lacks one of its voltage figures")
+    return x
 
 
 def _phasors3(x: np.ndarray) -> tuple[Phasor, Phasor, Phasor]:
@@ -603,13 +610,13 @@ def describe_panel(
     voltage = None
     if source is not None and b.v_phase is not None:
         vln = system.v_ln_or_derived
-        derating = _f(b.motor_derating)
-        phase_dev = _f(b.phase_deviation_pct)
+        derating = _f(_given(b.motor_derating))
+        phase_dev = _f(_given(b.phase_deviation_pct))
         voltage = VoltageResult(
             phase_v=_phasors3(b.v_phase),
-            line_v=_phasors3(b.v_line),
-            vuf_pct=_f(b.vuf_pct),
-            line_deviation_pct=_f(b.line_deviation_pct),
+            line_v=_phasors3(_given(b.v_line)),
+            vuf_pct=_f(_given(b.vuf_pct)),
+            line_deviation_pct=_f(_given(b.line_deviation_pct)),
             phase_deviation_pct=None if math.isnan(phase_dev) else phase_dev,
             motor_derating=None if math.isnan(derating) else derating,
             drop_pct=tuple(float(100.0 * (vln - abs(v)) / vln) for v in b.v_phase),  # type: ignore[arg-type]
@@ -617,12 +624,12 @@ def describe_panel(
             z_neutral_ohm=source.z_neutral_ohm,
             transformer_full_load_a=source.transformer_full_load_a,
             iterated=iterate_voltage,
-            iterations=int(b.iterations),
-            converged=bool(b.converged),
+            iterations=int(_given(b.iterations)),
+            converged=bool(_given(b.converged)),
         )
     seq = b.sequence
     a = PanelAnalysis(
-        phase_labels=labels,  # type: ignore[arg-type]
+        phase_labels=labels,
         v_ll=float(system.v_ll),
         v_ln=None if system.v_ln is None else float(system.v_ln),
         frequency_hz=float(system.frequency_hz),

@@ -109,9 +109,9 @@ def unit_powers(unit: np.ndarray, orders: np.ndarray, out: np.ndarray | None = N
     by about one unit in the last place per multiplication, i.e. ~1e-14 at
     order 50.
     """
-    orders = [int(h) for h in np.asarray(orders)]
+    steps = [int(h) for h in np.asarray(orders)]
     if out is None:
-        out = np.empty((*np.shape(unit), len(orders)), dtype=complex)
+        out = np.empty((*np.shape(unit), len(steps)), dtype=complex)
     cache: dict[int, np.ndarray] = {1: unit}
 
     def power(d: int) -> np.ndarray:
@@ -121,7 +121,7 @@ def unit_powers(unit: np.ndarray, orders: np.ndarray, out: np.ndarray | None = N
         return cache[d]
 
     prev, acc = 0, None
-    for k, h in enumerate(orders):
+    for k, h in enumerate(steps):
         acc = power(h) if acc is None else acc * power(h - prev)
         out[..., k] = acc
         prev = h
@@ -181,9 +181,9 @@ class OrderCurrents:
     neutral: np.ndarray
     circuit_fundamental_a: np.ndarray
     circuit_rms_a: np.ndarray
+    harmonic_power_pu: np.ndarray
+    triplen_power_pu: np.ndarray
     phase_weighted: np.ndarray | None = None
-    harmonic_power_pu: np.ndarray | None = None
-    triplen_power_pu: np.ndarray | None = None
 
 
 def order_currents(

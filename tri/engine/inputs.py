@@ -110,10 +110,10 @@ class CircuitArrays:
     phase_q: np.ndarray
     harmonics: np.ndarray
     orders: np.ndarray
-    continuous: np.ndarray = field(default=None)  # type: ignore[assignment]
+    continuous: np.ndarray = field(default=None)  # type: ignore[arg-type]  # set in __post_init__
     breaker: np.ndarray | None = None
     neutral_group: np.ndarray | None = None
-    breaker_a: np.ndarray = field(default=None)  # type: ignore[assignment]
+    breaker_a: np.ndarray = field(default=None)  # type: ignore[arg-type]  # set in __post_init__
 
     def __post_init__(self) -> None:
         if self.continuous is None:

@@ -34,6 +34,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass
+from typing import Final
 
 #: Reminder carried by every finding's source.
 LOCAL = "local code and a licensed practitioner decide"
@@ -285,8 +286,10 @@ NEAR = "NEAR"
 #: At or below the design headroom.
 OK = "ok"
 
-#: Check outcomes.
-PASS, FAIL, SKIPPED = "pass", "fail", "skipped"
+#: Check outcomes (``Final``: each keeps its literal type, e.g. ``Literal["pass"]``).
+PASS: Final = "pass"
+FAIL: Final = "fail"
+SKIPPED: Final = "skipped"
 
 #: Finding levels, most serious first, with the short words the UI shows.
 LEVEL_RANK = {"limit": 0, "warning": 1, "info": 2}

@@ -88,15 +88,16 @@ def loading_pct(current_a: np.ndarray, rating_a: float) -> np.ndarray:
     return 100.0 * np.asarray(current_a, dtype=float) / float(rating_a)
 
 
-def continuous_weights(continuous: np.ndarray, factor: float) -> np.ndarray:
+def continuous_weights(continuous: np.ndarray, factor: float | np.ndarray) -> np.ndarray:
     """Multiplier on each circuit for the sizing rule.
 
     Parameters
     ----------
     continuous : bool ndarray, shape (..., n)
         Continuous loads (3 h or more).
-    factor : float
-        Continuous factor [-] (1.25, :data:`tri.engine.limits.CONTINUOUS_FACTOR`).
+    factor : float or float ndarray broadcastable to (..., n)
+        Continuous factor [-] (1.25, :data:`tri.engine.limits.CONTINUOUS_FACTOR`);
+        an array gives each panel of a batch its own (shape (..., 1)).
 
     Returns
     -------
@@ -163,7 +164,7 @@ def circuit_calculated_a(
     ----------
     circuits : CircuitArrays
         Shape (..., n).
-    factor : float
+    factor : float or float ndarray broadcastable to (..., n)
         Continuous factor [-].
     v_phase : complex ndarray, shape (3,) or (..., 3)
         Nominal phase-to-neutral phasors [V] (:func:`scheduled_current_a`).

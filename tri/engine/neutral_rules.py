@@ -52,7 +52,7 @@ from tri.engine.limits import (
     iec_band,
     practice_for,
 )
-from tri.engine.results import Finding, PanelAnalysis
+from tri.engine.results import Finding, Level, PanelAnalysis
 
 
 @dataclass(frozen=True)
@@ -186,7 +186,7 @@ def _iec_finding(b: IecNeutralBasis, iec_practice: bool) -> Finding | None:
     if not iec_practice and b.band.basis == "line current":
         return None
     loaded = " The neutral then counts as a loaded conductor." if iec_practice else ""
-    level = "warning" if b.band.basis == "neutral current" else "info"
+    level: Level = "warning" if b.band.basis == "neutral current" else "info"
     size = (
         f"{b.basis_a:.1f} A / {b.band.factor:g} = {b.design_a:.1f} A"
         if b.band.factor != 1.0

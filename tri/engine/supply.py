@@ -136,8 +136,8 @@ def panel_voltages(
     e_phase: np.ndarray,
     i_phase: np.ndarray,
     i_neutral: np.ndarray,
-    z_phase: complex,
-    z_neutral: complex,
+    z_phase: complex | np.ndarray,
+    z_neutral: complex | np.ndarray,
 ) -> np.ndarray:
     """Phase-to-neutral voltages at the panel.
 
@@ -150,8 +150,9 @@ def panel_voltages(
     i_neutral : complex ndarray, shape (...)
         Fundamental neutral current ``I_A + I_B + I_C`` of the
         line-to-neutral loads [A].
-    z_phase, z_neutral : complex
-        Phase-path and neutral-path impedance [Ω].
+    z_phase, z_neutral : complex, or complex ndarray broadcastable to (..., 3)
+        Phase-path and neutral-path impedance [Ω] (an array: one per panel
+        of a batch, shape (..., 1)).
 
     Returns
     -------

@@ -379,7 +379,8 @@ def solve_tree(
     oc = order_currents(circuits, i_e, weights)
     if not (np.all(np.isfinite(oc.phase)) and np.all(np.isfinite(oc.circuit_rms_a))):
         raise ValueError("harmonics must be finite numbers")
-    own = Spectra(oc.phase, oc.neutral, oc.phase if weights is None else oc.phase_weighted)
+    weighted = oc.phase if oc.phase_weighted is None else oc.phase_weighted  # None: no weights
+    own = Spectra(oc.phase, oc.neutral, weighted)
     total, fed = roll_up(tree, own, oc.orders)
     if v is None:
         v = voltages_down(tree, total.phase[..., 0], total.neutral[..., 0])

@@ -339,7 +339,7 @@ def _voltage(d: dict[str, Any]) -> list[str]:
         return [*out, "Not computed: the schedule has no `[supply]` table."]
     s = d["supply"]
     labels = d["phase_order"]
-    lines = line_labels(tuple(labels))  # type: ignore[arg-type]
+    lines = line_labels(tuple(labels))
     rows = []
     for lab, ll in zip(labels, lines, strict=True):
         pv, lv = v["phase_v"][lab], v["line_v"][ll]

@@ -292,7 +292,7 @@ def _voltage(d: dict[str, Any], g: _Glyphs) -> RenderableType:
             "Add one to estimate phase and line voltages, VUF and motor derating."
         )
     labels = d["phase_order"]
-    lines = line_labels(tuple(labels))  # type: ignore[arg-type]
+    lines = line_labels(tuple(labels))
     source = (
         f"Estimate from the [supply] table: transformer {s['transformer_kva']:g} kVA, "
         f"{s['transformer_z_pct']:g} % impedance, X/R {s['transformer_x_r']:g}; feeder "

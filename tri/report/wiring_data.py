@@ -43,9 +43,10 @@ def circuit_wiring(
     labels = schedule.labels
     legs = legs_of(c, schedule)
     breaker = analysis.breakers[index] if index < len(analysis.breakers) else None
-    many = breaker is not None and c.has_legs and c.is_placed
-    leg_a = breaker.leg_current_a if many else (analysis.circuit_current_a[index],)
-    leg_rms = breaker.leg_rms_a if many else (analysis.circuit_rms_a[index],)
+    if not (c.has_legs and c.is_placed):
+        breaker = None  # one leg: the circuit's own current, no pole currents
+    leg_a = breaker.leg_current_a if breaker is not None else (analysis.circuit_current_a[index],)
+    leg_rms = breaker.leg_rms_a if breaker is not None else (analysis.circuit_rms_a[index],)
     high = schedule.panel.effective_high_leg
     poles = circuit_pole_phases(c, schedule) or ()
     return {
@@ -70,7 +71,7 @@ def circuit_wiring(
             for leg, a, r in zip(legs, leg_a, leg_rms, strict=False)
         ],
         "pole_currents": None
-        if not many
+        if breaker is None
         else {
             labels[k]: {
                 "current_a": num(breaker.current[k].magnitude),

@@ -14,7 +14,14 @@ from typing import Any
 from tri.schedule.errors import name_circuit
 from tri.schedule.feeds import FEED_KEYS, check_feeder_circuit, read_feed
 from tri.schedule.locate import TableKey
-from tri.schedule.model import DEFAULT_LABELS, LOAD_KEYS, Circuit, PanelInfo, parse_phase_text
+from tri.schedule.model import (
+    DEFAULT_LABELS,
+    LOAD_KEYS,
+    Circuit,
+    LoadKind,
+    PanelInfo,
+    parse_phase_text,
+)
 from tri.schedule.read_panel import MAX_SPACES
 from tri.schedule.read_wiring import read_leg_values
 from tri.schedule.reader import MISSING, Reader, found, shown
@@ -125,6 +132,7 @@ def read_circuit(
     if isinstance(v["name"], str) and not v["name"].strip():
         r.add("found an empty name, expected the circuit's purpose", table, "name", where, index)
     feed = read_feed(r, raw, table, where, index)
+    load_kind: LoadKind
     if "feeds" in raw:  # a feeder's load is the panel it feeds
         check_feeder_circuit(r, raw, v["poles"], table, where, index)
         load_kind, load_value = "va", 0.0
@@ -191,7 +199,7 @@ def _read_load(
     index: int,
     *,
     spare: bool = False,
-) -> tuple[Any, Any]:
+) -> tuple[LoadKind, Any]:
     """``(load_kind, load_value)`` from the one load key given; value ``MISSING`` if bad.
 
     The value is a tuple when the key holds one number per leg. A spare

@@ -41,7 +41,7 @@ def read_readings(r: Reader, data: Mapping[str, Any], panel: PanelInfo | None) -
     amps, neutral = _read_triple(r, raw, "amps", labels, pairs=False)
     volts_ll, _ = _read_triple(r, raw, "volts_ll", labels, pairs=True)
     volts_ln, _ = _read_triple(r, raw, "volts_ln", labels, pairs=False)
-    if system is not None:
+    if system is not None and panel is not None:
         _check_voltages(r, system, "volts_ll", volts_ll, system.v_ll, "line-to-line")
         _check_voltages(r, system, "volts_ln", volts_ln, _ln_nominal(panel), "line-to-neutral")
     taken = raw.get("taken")

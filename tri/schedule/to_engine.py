@@ -282,8 +282,9 @@ def per_circuit(analysis: PanelAnalysis, schedule: Schedule) -> PanelAnalysis:
 def _group_text(group: NeutralGroup, schedule: Schedule) -> str:
     """``'N21' (slots 21, 23)`` or ``'N21' (Copier, Printer)`` on a rail board."""
     cs = [schedule.circuits[i] for i in group.circuits]
-    if all(c.slot is not None for c in cs):
-        where = "slots " + ", ".join(str(slot) for slot in sorted(c.slot for c in cs))
+    slots = [c.slot for c in cs if c.slot is not None]
+    if len(slots) == len(cs):
+        where = "slots " + ", ".join(str(slot) for slot in sorted(slots))
     else:
         where = ", ".join(c.name for c in cs)
     return f"'{group.label(schedule)}' ({where})"

@@ -10,21 +10,41 @@ building) has unsaved edits.
 from __future__ import annotations
 
 from pathlib import Path
-from typing import Any
+from typing import Any, Protocol
 
 from tri.schedule.errors import ScheduleError
+from tri.schedule.model import Schedule
 from tri.tui import recent
 from tri.tui.session import FileChangedOnDisk
 from tri.tui.wording import issue_text
 
 
-class SavingActions:
-    """Save, save as and quit (``session``, ``set_status`` ... are the app's)."""
+class _App(Protocol):
+    """What the mixin uses of :class:`~tri.tui.app.TriApp` (its own and textual's App)."""
 
     session: Any
     quitting: bool
 
-    def action_save(self) -> None:
+    def set_status(self, text: str, error: bool = False) -> None: ...
+    def show_problems(
+        self, title: str, exc: ScheduleError, file_name: str = "", schedule: Schedule | None = None
+    ) -> None: ...
+    def refresh_screens(self, title_only: bool = False) -> None: ...
+    def unsaved_sessions(self) -> list[Any]: ...
+    def save_all_then_quit(self) -> None: ...
+    def exit(self, *args: Any, **kwargs: Any) -> None: ...
+    def push_screen(self, *args: Any, **kwargs: Any) -> Any: ...
+    def action_save_as(self: _App, then_quit: bool = False) -> None: ...
+    def _save_to(self: _App, path: Path, then_quit: bool = False) -> bool: ...
+
+
+class SavingActions:
+    """Save, save as and quit (``session``, ``set_status`` ... are the app's, see :class:`_App`)."""
+
+    session: Any
+    quitting: bool
+
+    def action_save(self: _App) -> None:
         """Save to the file (asks for a name for an untitled copy)."""
         if self.session is None:
             return
@@ -33,7 +53,7 @@ class SavingActions:
             return
         self._save_to(self.session.path)
 
-    def _save_to(self, path: Path, then_quit: bool = False) -> bool:
+    def _save_to(self: _App, path: Path, then_quit: bool = False) -> bool:
         assert self.session is not None
         try:
             self.session.save(path)
@@ -56,7 +76,7 @@ class SavingActions:
             self.exit(0)
         return True
 
-    def action_save_as(self, then_quit: bool = False) -> None:
+    def action_save_as(self: _App, then_quit: bool = False) -> None:
         """Ask for a file name, then save there."""
         from tri.tui.screens.save_as import save_as_form
 
@@ -69,7 +89,7 @@ class SavingActions:
 
         self.push_screen(save_as_form(self.session), chosen)
 
-    async def action_quit(self) -> None:
+    async def action_quit(self: _App) -> None:
         """Ctrl+Q from anywhere: asks first when any open panel has unsaved edits."""
         from tri.tui.screens.choice import ChoiceScreen
 

@@ -91,7 +91,13 @@ def index_column(window: Window, plot_cols: int, index: float) -> int | None:
 
 
 def _y(value: float, top: float, height: int) -> float:
+    """Canvas row (dots, 0 at the top) of ``value`` on an axis from 0 to ``top``."""
     return (height - 1) - value / top * (height - 1)
+
+
+def _ys(values: np.ndarray, top: float, height: int) -> np.ndarray:
+    """:func:`_y` of every value (NaN stays NaN: a gap)."""
+    return (height - 1) - np.asarray(values, dtype=float) / top * (height - 1)
 
 
 def _curve(canvas: BrailleCanvas, xs: np.ndarray, ys: np.ndarray, style: str, dotted: bool) -> None:
@@ -172,7 +178,7 @@ def time_picture(
         canvas.line(0, y, canvas.width - 1, y, "dim", step=3)
         canvas.label(max(plot.plot_cols - 12, 0), int(y) // 4, f"rating {rating_a:g} A", "dim")
     for k in drawn:
-        ys = _y(env.mean[k], top, canvas.height)
+        ys = _ys(env.mean[k], top, canvas.height)
         _curve(canvas, xs, ys, CHANNEL_STYLES[k], dotted=k == 3)
     rows = [_markers(window, plot, peaks)]
     rows += _framed(canvas, plot, _axis(top, plot.plot_rows, "A"), plot.cursor)
@@ -246,7 +252,7 @@ def duration_picture(
         if h is None or not plot.shown[k]:
             continue
         xs = np.asarray(h, dtype=float) / top_h * (canvas.width - 1)
-        _curve(canvas, xs, _y(lv, top, canvas.height), CHANNEL_STYLES[k], dotted=k == 3)
+        _curve(canvas, xs, _ys(lv, top, canvas.height), CHANNEL_STYLES[k], dotted=k == 3)
     axis = _axis(top, plot.plot_rows, "A")
     if 0 <= level_cursor < lv.size:
         row = int(_y(lv[level_cursor], top, canvas.height)) // 4

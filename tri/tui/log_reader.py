@@ -97,7 +97,7 @@ def _read_in_child(
                 if kind == "progress":
                     progress(*payload)
                 elif kind == "done":
-                    return payload  # type: ignore[no-any-return]
+                    return payload
                 elif kind == "problems":
                     raise ScheduleError(payload)
                 else:

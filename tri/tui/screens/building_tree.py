@@ -18,6 +18,7 @@ from textual.app import ComposeResult
 from textual.binding import Binding, BindingType
 from textual.screen import Screen
 from textual.widgets import Footer, Static, Tree
+from textual.widgets.tree import TreeNode
 
 from tri.engine.limits import NEAR, OVER, loading_word
 from tri.tui import fmt
@@ -124,7 +125,7 @@ class BuildingScreen(Screen[None]):
         tree: Tree[int] = self.query_one(Tree)
         tree.show_root = False
         tree.guide_depth = 3
-        nodes = {}
+        nodes: dict[int, TreeNode[int]] = {}
         for i in range(len(b.sessions)):
             parent = b.parent(i)
             under = tree.root if parent is None else nodes[parent]

@@ -19,7 +19,11 @@ class CircuitActions:
     """Editing actions; the screen gives ``schedule``, ``_current``, ``_apply``, ``set_status``."""
 
     app: Any
-    schedule: Schedule
+
+    @property
+    def schedule(self) -> Schedule:
+        """The schedule on screen (the screen's own property)."""
+        raise NotImplementedError
 
     def _current(self) -> int | None:
         raise NotImplementedError  # the screen's
@@ -108,8 +112,8 @@ class CircuitActions:
         where = move_summary(self.schedule, target)
         self._apply(self.schedule.with_circuit(index, target), f"Moved {label} to {where}", index)
 
-    def action_move(self) -> None:
-        """The move dialog, starting at the breaker's present position."""
+    def move_dialog(self) -> None:
+        """The move dialog, starting at the breaker's present position (m on the list)."""
         from tri.tui.screens.forms import move_form
 
         index = self._movable()

@@ -34,6 +34,7 @@ class LogChart(Static):
 class LogKeys:
     """Key actions of the log view (the screen's state and drawing are declared only)."""
 
+    app: Any
     view: str
     logged: Any
     figures: Any

@@ -301,8 +301,12 @@ class LogScreen(LogKeys, Screen[None]):
         self.query_one("#log-title", Static).update(t + views)
 
     def _plot(self, cols: int, rows: int) -> Plot:
-        labels = tuple(self.app.session.schedule.labels)
-        return Plot(cols, rows, tuple(self.shown), (*labels, "N"), self.cursor)  # type: ignore[arg-type]
+        app: Any = self.app
+        a, b, c = app.session.schedule.labels
+        shown = self.shown
+        return Plot(
+            cols, rows, (shown[0], shown[1], shown[2], shown[3]), (a, b, c, "N"), self.cursor
+        )
 
     def _draw(self, cols: int, rows: int) -> list[Text]:
         if self.logged is None:
@@ -336,7 +340,8 @@ class LogScreen(LogKeys, Screen[None]):
         if self.data is None:
             return [Text("Waiting for the figures…")]
         d = self.data["log"]["duration"]
-        names = [*self.app.session.schedule.labels, "N"]
+        app: Any = self.app
+        names = [*app.session.schedule.labels, "N"]
         hours = [d["hours_above"].get(n) for n in names]
         return duration_picture(d["levels_a"], hours, plot, level_cursor=self._level_index())
 

@@ -7,15 +7,22 @@ scenarios, not a building).
 
 from __future__ import annotations
 
-from typing import Any
+from typing import TYPE_CHECKING, Any
+
+if TYPE_CHECKING:
+    from tri.schedule.model import Schedule
 
 
 class OtherScreens:
     """Actions that push another screen (``app`` and ``set_status`` are the screen's)."""
 
     app: Any
-    schedule: Any
     set_status: Any  #: the screen's (declared only, so that the real one is found)
+
+    @property
+    def schedule(self) -> Schedule:
+        """The schedule on screen (the screen's own property)."""
+        raise NotImplementedError
 
     def action_findings(self) -> None:
         from tri.tui.screens.findings import findings_screen

@@ -10,20 +10,22 @@ back.
 
 from __future__ import annotations
 
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 from tri.tui.rules import move_problems, move_summary, moved
 from tri.tui.widgets.panel_view import PanelView
 from tri.tui.wording import circuit_label
+
+if TYPE_CHECKING:
+    from tri.schedule.model import Schedule
 
 
 class PanelPicking:
     """Pick up, choose, put down (``query_one``, ``schedule``, ``set_status`` are the screen's)."""
 
     # The screen's (and CircuitActions'): query_one, set_status, refresh_bindings,
-    # _movable, move_to. Declared only, so that the real ones are found.
+    # _movable, move_to, move_dialog. Declared only, so that the real ones are found.
     app: Any
-    schedule: Any
     view: str
     picking: int | None
     query_one: Any
@@ -31,11 +33,17 @@ class PanelPicking:
     refresh_bindings: Any
     _movable: Any
     move_to: Any
+    move_dialog: Any
+
+    @property
+    def schedule(self) -> Schedule:
+        """The schedule on screen (the screen's own property)."""
+        raise NotImplementedError
 
     def action_move(self) -> None:
         """m: on the panel view, pick the breaker up; on the list, the move dialog."""
         if self.view != "panel":
-            super().action_move()
+            self.move_dialog()
             return
         index = self._movable()
         if index is None:

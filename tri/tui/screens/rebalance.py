@@ -91,7 +91,7 @@ def options_from(target: Any, moves: Any, mode: str) -> SuggestOptions | str:
     if mode == "balance" and moves is None:
         return "Best balance needs a number of moves; or choose fewest moves to a target."
     budget = moves if isinstance(moves, int) else None
-    if mode == "fewest-moves":
+    if mode == "fewest-moves" and target is not None:
         return SuggestOptions(
             target_pct=float(target), max_moves=budget, place_new=True, time_limit_s=TIME_LIMIT_S
         )
@@ -276,10 +276,11 @@ class RebalanceScreen(Screen[None]):
             t.append(f"{lab} {fixed(b, 1)} → {fixed(a, 1)} A   ")
         if s.before.neutral_rms_a or s.after.neutral_rms_a:
             t.append(f"N {fixed(s.before.neutral_rms_a, 1)} → {fixed(s.after.neutral_rms_a, 1)} A")
-        b, a = s.before, s.after
+        before, after = s.before, s.after
         t.append(
-            f"\ndeviation {fixed(b.max_deviation_pct, 1)} → {fixed(a.max_deviation_pct, 1)} %"
-            f"   I2/I1 {fixed(b.negative_sequence_pct, 1)} → {fixed(a.negative_sequence_pct, 1)} %"
+            f"\ndeviation {fixed(before.max_deviation_pct, 1)} → "
+            f"{fixed(after.max_deviation_pct, 1)} %   I2/I1 "
+            f"{fixed(before.negative_sequence_pct, 1)} → {fixed(after.negative_sequence_pct, 1)} %"
         )
         roomy = self.app.size.height >= ROOMY_HEIGHT
         if s.cases:  # every scenario judged: the same words as tri suggest

@@ -17,17 +17,16 @@ acted on before later keys are handed out.
 
 from __future__ import annotations
 
-from typing import Any
-
 from textual import events
+from textual.widget import Widget
 from textual.widgets import Input
 
 
-class KeysInOrder:
+class KeysInOrder(Widget):
     """Mixin for focusable widgets (put it before the widget class): their own key
     bindings act in arrival order."""
 
-    async def _on_key(self: Any, event: events.Key) -> None:
+    async def _on_key(self, event: events.Key) -> None:
         bindings = self._bindings.key_to_bindings.get(event.key)
         if bindings:
             event.stop()

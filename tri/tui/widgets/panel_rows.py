@@ -227,7 +227,7 @@ class Frame:
         cur = self.current
         same = cur.circuit if cur is not None and self.picking is None else None
         t = Text()
-        labels = []
+        labels: list[str] = []
         for k, cell in enumerate(line.cells):
             text, style = self._cell_text(cell, right=k == 1, targets=targets)
             if r == self.row and k == min(self.side, len(line.cells) - 1):

@@ -17,7 +17,7 @@ class Toggle(KeysInOrder, Widget, can_focus=True):
     """Space toggles; y / n set it."""
 
     BINDINGS: ClassVar[list[BindingType]] = [
-        Binding("space", "toggle", "Toggle", show=False),
+        Binding("space", "flip", "Toggle", show=False),
         Binding("y", "set(True)", "Yes", show=False),
         Binding("n", "set(False)", "No", show=False),
     ]
@@ -47,7 +47,7 @@ class Toggle(KeysInOrder, Widget, can_focus=True):
     def watch_value(self, value: bool) -> None:
         self.post_message(self.Changed(self, value))
 
-    def action_toggle(self) -> None:
+    def action_flip(self) -> None:
         self.value = not self.value
 
     def action_set(self, value: bool) -> None:
