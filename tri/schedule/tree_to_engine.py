@@ -23,6 +23,7 @@ from tri.schedule.to_engine import (
     circuit_arrays,
     circuit_labels,
     measured,
+    per_circuit,
     ratings,
     system_voltages,
 )
@@ -89,7 +90,7 @@ def analyse_building(
     progress : callable, optional
         ``progress(sweep, step)`` during the iteration.
     """
-    refusal = building_refusal((p.shown, p.schedule) for p in tree.panels)  # issue 12
+    refusal = building_refusal((p.shown, p.schedule) for p in tree.panels)
     if refusal:
         raise ValueError("; ".join(refusal))
     result = analyse_tree(
@@ -103,8 +104,10 @@ def analyse_building(
     )
     nodes = list(result.nodes)
     for i, p in enumerate(tree.panels):
+        # one current per circuit (a breaker's largest pole) and the shared-neutral
+        # findings, as for the panel alone
+        a = per_circuit(nodes[i].analysis, p.schedule)
         if i > 0 and p.schedule.supply is not None:
-            a = nodes[i].analysis
             a = dataclasses.replace(a, findings=(*a.findings, _unused_supply(tree, i)))
-            nodes[i] = dataclasses.replace(nodes[i], analysis=a)
+        nodes[i] = dataclasses.replace(nodes[i], analysis=a)
     return dataclasses.replace(result, nodes=tuple(nodes))
