@@ -19,7 +19,7 @@ from tri.schedule.load import load_schedule
 from tri.schedule.to_engine import analyse_schedule
 
 ROOT = Path(__file__).resolve().parents[1]
-DEMO = ROOT / "panels_demo" / "woodshop_240d.toml"
+DEMO = ROOT / "tri" / "panels_demo" / "woodshop_240d.toml"
 MWBC = ROOT / "tests" / "data" / "wiring" / "mwbc_208.toml"
 
 
@@ -118,7 +118,7 @@ def test_new_makes_a_high_leg_delta(tmp_path: Path) -> None:
 def test_a_building_with_shared_neutrals_is_reported_and_not_rebalanced(tmp_path: Path) -> None:
     import shutil
 
-    for f in (ROOT / "panels_demo" / "brewery").glob("*.toml"):
+    for f in (ROOT / "tri" / "panels_demo" / "brewery").glob("*.toml"):
         shutil.copy(f, tmp_path / f.name)
     child = tmp_path / "lp1_208.toml"
     child.write_text(

@@ -3,7 +3,13 @@
 Before any model, the floor within the budget
 (:func:`tri.rebalance.crossing.budget_floor`: with few moves a crowded
 phase keeps at least what its largest movable breakers cannot take away)
-may already be within ``stop_gap`` of the best plan. The model (electrical
+may already be within ``stop_gap`` of the best plan. Then, when the
+plans are few (:mod:`tri.rebalance.exhaust`), every one is listed; when
+the budget is small, every plan that could beat the best one is listed by
+meeting in the middle (:mod:`tri.rebalance.halves`: the partition's sizes
+must fall in a small triangle around ``F``), which proves the best plan
+optimal in a fraction of a second where the model's bound stays near
+``F``. Otherwise the model (electrical
 block, exact slot block with the relocation budget, and ``T ≥`` the lower
 bound of every phase's RMS current from
 :mod:`tri.rebalance.lower_bounds`) is a relaxation: its optimum, or
@@ -44,6 +50,7 @@ from tri.rebalance.crossing import budget_floor
 from tri.rebalance.electrical import add_currents, add_neutral_cuts, add_options, decode_options
 from tri.rebalance.exhaust import best_plans_within, enumeration_fits
 from tri.rebalance.goal import Goal
+from tri.rebalance.halves import PAIR_LIMIT, halves_fit, plans_below
 from tri.rebalance.lower_bounds import (
     RESOLUTIONS,
     add_rms_lower_bounds,
@@ -169,10 +176,8 @@ class _BalanceSearch:
 
         Every plan within the budget has at most ``budget`` option changes,
         so it is among those listed (:func:`tri.rebalance.exhaust.best_plans_within`)
-        unless its value is at least the last one listed. Taken in order,
-        the first that meets the goal exactly (its fewest relocations within
-        the budget, :func:`tri.rebalance.realise.realise`) is optimal, provided
-        every one before it was proven not to. Returns True when settled.
+        unless its value is at least the last one listed (:meth:`settle`).
+        Returns True when settled.
         """
         if not enumeration_fits(self.pr, self.budget):
             return False
@@ -182,8 +187,62 @@ class _BalanceSearch:
         )
         if ranked is None:
             return False
+        tail = math.inf if ranked.complete or not ranked.values else ranked.values[-1]
+        return self.settle(ranked.plans, ranked.values, tail)
+
+    def split_out(self, stop_gap: float) -> bool:
+        """Settle the question by listing every plan below a cutoff (:mod:`tri.rebalance.halves`).
+
+        Cutoffs rise from a quarter of the way from ``F`` to the best plan,
+        to the best plan divided by ``1 + stop_gap``, to the best plan
+        itself (each list costs about the square of its distance to ``F``):
+        a plan found below a cutoff that meets the goal is optimal (every
+        plan below it is listed); none found raises the bound to the cutoff.
+        A list predicted too long (from the last one's pairs) is not tried.
+        Returns True when settled.
+        """
+        if not (math.isfinite(self.best) and halves_fit(self.pr, self.budget)):
+            return False
+        self.control.report("listing every plan that could beat the best")
+        floor, last = self.pr.worst_floor_a, None
+        span = self.best - floor
+        cutoffs = sorted(
+            {
+                floor + 0.25 * span,
+                floor + 0.5 * span,
+                self.best / (1 + stop_gap),
+                self.best * (1 - IMPROVE),
+            }
+        )
+        for cutoff in cutoffs:
+            if cutoff <= self.lower or cutoff <= floor:
+                continue
+            if last is not None and last[1] * ((cutoff - floor) / last[0]) ** 2 > PAIR_LIMIT:
+                return False
+            listed = plans_below(
+                self.pr, self.budget, cutoff, self.goal.neutral_max_a, stop=self.control.stop
+            )
+            if listed is None:
+                return False
+            last = (cutoff - floor, listed.pairs)
+            if self.settle(listed.plans, listed.values, listed.tail) or self.done(stop_gap):
+                return True  # optimal, or the bound within the stopping gap
+        return False
+
+    def settle(self, plans: list[np.ndarray], values: list[float], tail: float) -> bool:
+        """Walk a list of plans by value, the first that meets the goal being the best.
+
+        ``plans`` holds every plan within the budget (passing the capacity
+        counts and the neutral limit) whose value is below ``tail``, by
+        value. Taken in order, the first that meets the goal exactly (its
+        fewest relocations within the budget,
+        :func:`tri.rebalance.realise.realise`) is optimal, provided every one
+        before it was proven not to; if none below the best plan does,
+        the best plan is optimal, and if the list ends first, ``tail`` is a
+        lower bound. Returns True when settled (optimal).
+        """
         sure = True
-        for a, value in zip(ranked.plans, ranked.values, strict=True):
+        for a, value in zip(plans, values, strict=True):
             if value >= self.best or self.control.stop():
                 break
             plan = self.ev.plan(a)
@@ -192,10 +251,10 @@ class _BalanceSearch:
                 break
             sure = sure and self.ev.proven(a)
         else:
-            if sure and ranked.values and not ranked.complete:
-                self.lower = max(self.lower, ranked.values[-1] * (1 - 1e-9))
-            if not (sure and ranked.complete):
-                return False
+            if sure and math.isfinite(min(tail, self.best)):
+                self.lower = max(self.lower, min(tail, self.best) * (1 - 1e-9))
+            if not (sure and math.isinf(tail)):
+                return False  # the caller's done() decides whether the bound closed
         if not sure or self.control.stop():
             return False
         self.out.proven = True
@@ -267,7 +326,7 @@ def solve_balance(
         return out
     search.offer(incumbent)
     search.cross()
-    settled = list_plans and search.count_out()
+    settled = list_plans and (search.count_out() or search.split_out(stop_gap))
     if not search.done(stop_gap) and not settled:
         while not control.stop() and search.step(stop_gap):
             pass

@@ -41,6 +41,7 @@ from tri.rebalance.balance import solve_balance
 from tri.rebalance.control import CancelHook, Cancelled, Control, ProgressCallback
 from tri.rebalance.exhaust import enumeration_fits
 from tri.rebalance.goal import Goal
+from tri.rebalance.halves import halves_fit
 from tri.rebalance.heuristic import LocalSearch, heuristic_plan
 from tri.rebalance.options import SuggestOptions, objective_text
 from tri.rebalance.plans import TOL, Evaluator, Plan
@@ -163,8 +164,9 @@ def _best_balance(run: _Run) -> tuple[Plan | None, Status, float | None]:
     ev = Evaluator(pr, goal, run.control)
     control.report("greedy start and local search")
     budget = pr.n_movable if goal.max_moves is None else goal.max_moves
-    # when every plan will be listed, the descents suffice as a start
-    kicks = not (opts.list_plans and enumeration_fits(pr, budget))
+    # when every plan that could beat the start will be listed, the descents suffice
+    listed = enumeration_fits(pr, budget) or halves_fit(pr, budget)
+    kicks = not (opts.list_plans and listed)
     relayout = opts.mode == "relayout"
     plan = _heuristic(run, goal, ev, relayout, kicks, stop_gap=0.5 * opts.floor_gap)
     now = _current_plan(run, ev)
