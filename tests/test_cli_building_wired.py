@@ -4,7 +4,7 @@ Sources: a feeder without a transformer carries its panel's line and neutral
 currents unchanged [computed, Kirchhoff's current law], so each fed panel's
 report in the building equals its report alone (the demo files
 ``tests/data/wiring/mwbc_208.toml``, shared neutrals and legs, and
-``panels_demo/woodshop_240d.toml``, a high-leg delta); hand-worked values
+``tri/panels_demo/woodshop_240d.toml``, a high-leg delta); hand-worked values
 are in ``tests/test_engine_tree_wired.py``. The parents' own legs are
 worked here: 600 VA and 900 VA legs on A and B of a 208Y/120 panel draw
 5∠0° A and 7.5∠−120° A, whose neutral is ``|5 + 7.5∠−120°| = 6.614 A``
@@ -23,7 +23,7 @@ from test_cli_building import tri
 
 ROOT = Path(__file__).parents[1]
 MWBC = ROOT / "tests" / "data" / "wiring" / "mwbc_208.toml"
-SHOP = ROOT / "panels_demo" / "woodshop_240d.toml"
+SHOP = ROOT / "tri" / "panels_demo" / "woodshop_240d.toml"
 
 MDP = """format = 1
 
