@@ -17,12 +17,18 @@ acted on before later keys are handed out.
 
 from __future__ import annotations
 
+from typing import TYPE_CHECKING
+
 from textual import events
-from textual.widget import Widget
 from textual.widgets import Input
 
+if TYPE_CHECKING:  # typed as the widget it is mixed into; at run time a plain mixin
+    from textual.widget import Widget as _MixedInto
+else:  # a Widget base here would cut the widget's own COMPONENT_CLASSES out of the MRO
+    _MixedInto = object
 
-class KeysInOrder(Widget):
+
+class KeysInOrder(_MixedInto):
     """Mixin for focusable widgets (put it before the widget class): their own key
     bindings act in arrival order."""
 
