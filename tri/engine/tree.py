@@ -50,6 +50,7 @@ from tri.engine.transformer import (
     voltage_factors,
 )
 from tri.engine.tree_inputs import PackedTree
+from tri.engine.tree_rows import tree_wiring
 
 #: Called after each iteration with (iteration, largest voltage change [pu]).
 Progress = Callable[[int, float], None]
@@ -111,6 +112,14 @@ class TreeSolution:
     delta_circulating_a : float ndarray, shape (N,)
         RMS current circulating in a delta primary feeding the node [A]
         (0 without one).
+    breaker_pole_spectrum : complex ndarray, shape (N, nb, 3, H), or None
+        Line current of each breaker of each node on each phase [A]
+        (:func:`tri.engine.legs.breaker_pole_spectra`, the node's own rows;
+        a feeder row's breaker carries what its child draws); None unless
+        some node numbers its breakers.
+    shared_neutral_spectrum : complex ndarray, shape (N, G, H), or None
+        Current in each shared neutral of each node [A]; None unless some
+        node has one.
     iterations : int
         Sweeps of the iterated solution (0 when not iterated).
     converged : bool
@@ -133,11 +142,17 @@ class TreeSolution:
     delta_circulating_a: np.ndarray
     iterations: int
     converged: bool
+    breaker_pole_spectrum: np.ndarray | None = None
+    shared_neutral_spectrum: np.ndarray | None = None
 
 
 def nominal_voltages(tree: PackedTree) -> np.ndarray:
-    """Each node's balanced nominal phase voltages in its own frame, shape (N, 3) [V]."""
-    return tree.v_ln[:, None] * PHASE_UNIT
+    """Each node's nominal phase voltages in its own frame, shape (N, 3) [V].
+
+    Balanced on a wye; the high-leg set on a high-leg delta
+    (:mod:`tri.engine.high_leg`), as the panel alone is computed.
+    """
+    return np.array(tree.e_nominal, dtype=complex, copy=True)
 
 
 def own_fundamental(circuits: CircuitArrays, v_phase: np.ndarray) -> Spectra:
@@ -386,6 +401,7 @@ def solve_tree(
     cur, cur_rms, phase_va, total_va, nl_va, triplens, scale, unplaced = _bookkeeping(
         tree, oc.circuit_rms_a, oc, fed, schedule_va(circuits)
     )
+    wiring = tree_wiring(tree, i_e, oc.circuit_rms_a, fed.phase)
     circulating = np.where(
         tree.delta_primary,
         delta_circulating_a(total.phase, np.where(tree.has_tx, tree.winding_ratio, 1.0)),
@@ -408,4 +424,5 @@ def solve_tree(
         delta_circulating_a=circulating,
         iterations=iterations,
         converged=converged,
+        **wiring,
     )
