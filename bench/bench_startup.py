@@ -23,7 +23,7 @@ import time
 from pathlib import Path
 
 ROOT = Path(__file__).resolve().parents[1]
-DEMO = ROOT / "panels_demo" / "garage_ev_208.toml"
+DEMO = ROOT / "tri" / "panels_demo" / "garage_ev_208.toml"
 HEAVY = ("scipy", "textual", "rich", "pandas", "tomlkit")
 
 

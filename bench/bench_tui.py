@@ -187,7 +187,7 @@ def log_cases(folder: Path) -> list[tuple[str, Path]]:
     """The demo garage, and a schedule over 200 000 rows with a change of offset."""
     import numpy as np
 
-    demo = Path(__file__).parents[1] / "panels_demo" / "garage_logged_208.toml"
+    demo = Path(__file__).parents[1] / "tri" / "panels_demo" / "garage_logged_208.toml"
     rows = 200_000
     k = np.arange(rows)
     utc = np.datetime64("2024-11-01T00:00") + k.astype("timedelta64[m]")
@@ -244,7 +244,7 @@ def main(argv: list[str] | None = None) -> int:
     print(f"{'same on the panel view (Tab), median':<44}{statistics.median(panel_edit):>10.1f}")
     print(f"{'UI time over the engine alone (median ratio)':<44}{median / engine_ms:>9.1f}x")
     print(f"edits measured: {len(edit)}; target < 50 ms per edit")
-    brewery = Path(__file__).parents[1] / "panels_demo" / "brewery" / "mdp_480.toml"
+    brewery = Path(__file__).parents[1] / "tri" / "panels_demo" / "brewery" / "mdp_480.toml"
     with tempfile.TemporaryDirectory() as tmp:
         os.environ["XDG_STATE_HOME"] = str(Path(tmp) / "state")
         campus = write_campus(Path(tmp))

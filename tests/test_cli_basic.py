@@ -19,7 +19,7 @@ from tri import __version__
 from tri.schedule.load import load_schedule
 
 ROOT = Path(__file__).parents[1]
-DEMOS = sorted((ROOT / "panels_demo").glob("*.toml"))
+DEMOS = sorted((ROOT / "tri" / "panels_demo").glob("*.toml"))
 
 
 def test_version_from_the_real_command() -> None:

@@ -19,7 +19,7 @@ from pathlib import Path
 import pytest
 
 ROOT = Path(__file__).parents[1]
-BREWERY = ROOT / "panels_demo" / "brewery"
+BREWERY = ROOT / "tri" / "panels_demo" / "brewery"
 MDP = str(BREWERY / "mdp_480.toml")
 
 

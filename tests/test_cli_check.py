@@ -35,7 +35,7 @@ from tri.cli.report import build_data
 from tri.report.check_report import LIMITS, NOT_CHECKED, evaluate
 
 ROOT = Path(__file__).parents[1]
-DEMO = ROOT / "panels_demo"
+DEMO = ROOT / "tri" / "panels_demo"
 SHOP = str(DEMO / "machine_shop_480.toml")
 BAKERY = str(DEMO / "bakery_208.toml")
 GARAGE = str(DEMO / "garage_ev_208.toml")

@@ -22,7 +22,7 @@ from tri.schedule.to_engine import analyse_schedule, circuit_arrays
 from tri.schedule.to_scenarios import analyse_cases, scenario_set
 
 ROOT = Path(__file__).resolve().parents[1]
-DEMO = ROOT / "panels_demo" / "garage_logged_208.toml"
+DEMO = ROOT / "tri" / "panels_demo" / "garage_logged_208.toml"
 
 PANEL = """format = 1
 [panel]
@@ -229,9 +229,10 @@ def test_non_numeric_cell_exit_2_names_the_row(tmp_path):
 
 def test_no_pandas_without_a_log():
     """Schedules without [log] never import pandas (start-up stays fast)."""
+    bakery = str(ROOT / "tri" / "panels_demo" / "bakery_208.toml")
     code = (
         "import sys; from tri.cli import main; "
-        f"main(['report', {str(ROOT / 'panels_demo' / 'bakery_208.toml')!r}, '--format', 'json']); "
+        f"main(['report', {bakery!r}, '--format', 'json']); "
         "sys.stderr.write('pandas' in sys.modules and 'LOADED' or 'absent')"
     )
     run = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=False)

@@ -18,7 +18,7 @@ import pytest
 
 ROOT = Path(__file__).parents[1]
 GOLDEN = Path(__file__).parent / "golden"
-DEMOS = sorted((ROOT / "panels_demo").glob("*.toml"))
+DEMOS = sorted((ROOT / "tri" / "panels_demo").glob("*.toml"))
 EXT = {"text": "txt", "json": "json", "markdown": "md", "csv": "csv"}
 
 
@@ -78,7 +78,11 @@ def test_force_color_does_not_colour_piped_output() -> None:
 def test_json_stays_parseable_when_there_are_warnings() -> None:
     # The garage has no [supply]: --iterate cannot apply, a warning goes to stderr.
     r = tri(
-        "report", str(ROOT / "panels_demo" / "garage_ev_208.toml"), "--format", "json", "--iterate"
+        "report",
+        str(ROOT / "tri" / "panels_demo" / "garage_ev_208.toml"),
+        "--format",
+        "json",
+        "--iterate",
     )
     assert r.returncode == 0
     assert b"warning" in r.stderr
@@ -89,7 +93,11 @@ def test_json_stays_parseable_when_there_are_warnings() -> None:
 
 def test_iterate_changes_the_basis_and_says_so() -> None:
     r = tri(
-        "report", str(ROOT / "panels_demo" / "bakery_208.toml"), "--format", "json", "--iterate"
+        "report",
+        str(ROOT / "tri" / "panels_demo" / "bakery_208.toml"),
+        "--format",
+        "json",
+        "--iterate",
     )
     doc = json.loads(r.stdout)
     assert doc["basis"]["iterated"] is True
@@ -100,7 +108,7 @@ def test_iterate_changes_the_basis_and_says_so() -> None:
 
 
 def test_continuous_factor_option(tmp_path: Path) -> None:
-    demo = str(ROOT / "panels_demo" / "bakery_208.toml")
+    demo = str(ROOT / "tri" / "panels_demo" / "bakery_208.toml")
     one = json.loads(tri("report", demo, "--format", "json", "--continuous-factor", "1").stdout)
     for ph in one["phases"].values():
         assert ph["design_a"] == pytest.approx(ph["rms_a"], rel=1e-9)

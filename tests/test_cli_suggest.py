@@ -246,7 +246,7 @@ def test_missing_file_exits_2(tmp_path: Path) -> None:
 
 
 def test_rail_board_demo_moves_phases_only() -> None:
-    demo = Path(__file__).resolve().parents[1] / "panels_demo" / "studio_400_rail.toml"
+    demo = Path(__file__).resolve().parents[1] / "tri" / "panels_demo" / "studio_400_rail.toml"
     if not demo.exists():
         pytest.skip("demo panel not present")
     out = run_tri(str(demo), "--max-moves", "2", "--format", "json")
@@ -261,7 +261,7 @@ def test_rail_board_demo_moves_phases_only() -> None:
 def test_ratings_still_exceeded_after_the_moves_are_said() -> None:
     """The repair-shop demo balances to within 10 %, but its 150 A main stays overloaded
     (the engine's limit findings, carried into the work order and the JSON)."""
-    demo = Path(__file__).parents[1] / "panels_demo" / "garage_ev_208.toml"
+    demo = Path(__file__).parents[1] / "tri" / "panels_demo" / "garage_ev_208.toml"
     out = run_tri(str(demo), "--target", "10", "--place-new", "--format", "json")
     data = json.loads(out.stdout)
     assert data["after"]["limits"], data["after"]

@@ -26,7 +26,7 @@ from tri.schedule.tree import load_tree, with_schedules
 from tri.schedule.tree_to_engine import analyse_building
 
 ROOT = Path(__file__).resolve().parents[1]
-BREWERY = ROOT / "panels_demo" / "brewery"
+BREWERY = ROOT / "tri" / "panels_demo" / "brewery"
 MDP = str(BREWERY / "mdp_480.toml")
 
 

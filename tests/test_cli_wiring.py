@@ -19,7 +19,7 @@ from tri.schedule.load import load_schedule
 from tri.schedule.to_engine import analyse_schedule
 
 ROOT = Path(__file__).resolve().parents[1]
-DEMO = ROOT / "panels_demo" / "woodshop_240d.toml"
+DEMO = ROOT / "tri" / "panels_demo" / "woodshop_240d.toml"
 MWBC = ROOT / "tests" / "data" / "wiring" / "mwbc_208.toml"
 
 
@@ -115,10 +115,10 @@ def test_new_makes_a_high_leg_delta(tmp_path: Path) -> None:
     assert r.returncode == 2 and "no high leg" in r.stderr
 
 
-def test_a_building_with_shared_neutrals_is_refused(tmp_path: Path) -> None:
+def test_a_building_with_shared_neutrals_is_reported_and_not_rebalanced(tmp_path: Path) -> None:
     import shutil
 
-    for f in (ROOT / "panels_demo" / "brewery").glob("*.toml"):
+    for f in (ROOT / "tri" / "panels_demo" / "brewery").glob("*.toml"):
         shutil.copy(f, tmp_path / f.name)
     child = tmp_path / "lp1_208.toml"
     child.write_text(
@@ -126,7 +126,18 @@ def test_a_building_with_shared_neutrals_is_refused(tmp_path: Path) -> None:
         + '\n[[circuit]]\nslot = 41\nname = "Leg 1"\nload_va = 500\nshared_neutral = "NX"\n'
         + '\n[[circuit]]\nslot = 39\nname = "Leg 2"\nload_va = 500\nshared_neutral = "NX"\n'
     )
-    r = tri("report", "mdp_480.toml", cwd=tmp_path)
+    r = tri("report", "mdp_480.toml", "--format", "json", cwd=tmp_path)
+    assert r.returncode == 0, r.stderr
+    panels = {p["file"]: p["report"] for p in json.loads(r.stdout)["building"]["panels"]}
+    alone = json.loads(tri("report", "lp1_208.toml", "--format", "json", cwd=tmp_path).stdout)
+    # the building lists the union of every panel's harmonic orders: compare all but those
+    inside = panels["lp1_208.toml"]["shared_neutrals"]
+    for a, b in zip(inside, alone["shared_neutrals"], strict=True):
+        assert {k: v for k, v in a.items() if k != "harmonic_a"} == {
+            k: v for k, v in b.items() if k != "harmonic_a"
+        }
+        assert a["harmonic_a"][0] == b["harmonic_a"][0]
+    r = tri("suggest", "mdp_480.toml", cwd=tmp_path)
     assert r.returncode == 2 and "Traceback" not in r.stderr
-    assert "lp1_208.toml" in r.stderr and "not yet supported in a building" in r.stderr
-    assert tri("report", "lp1_208.toml", cwd=tmp_path).returncode == 0  # alone it is reported
+    assert "lp1_208.toml" in r.stderr and "building rebalancer" in r.stderr
+    assert "slot 41" in r.stderr or "slot 39" in r.stderr

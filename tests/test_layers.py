@@ -49,10 +49,10 @@ def test_engine_and_schedule_do_not_load_rich(module: str) -> None:
     [
         (["--version"], ("numpy", "tomlkit", "rich", "scipy", "textual", "pandas")),
         (
-            ["report", "panels_demo/bakery_208.toml", "--format", "json"],
+            ["report", "tri/panels_demo/bakery_208.toml", "--format", "json"],
             ("scipy", "textual", "rich"),
         ),
-        (["check", "panels_demo/bakery_208.toml"], ("scipy", "textual", "pandas")),
+        (["check", "tri/panels_demo/bakery_208.toml"], ("scipy", "textual", "pandas")),
     ],
 )
 def test_commands_start_without_the_libraries_they_do_not_use(argv, never) -> None:

@@ -16,7 +16,7 @@ from pathlib import Path
 
 import tri.rebalance
 
-DEMO = Path(__file__).resolve().parents[1] / "panels_demo" / "bakery_208.toml"
+DEMO = Path(__file__).resolve().parents[1] / "tri" / "panels_demo" / "bakery_208.toml"
 
 
 def _loaded(code: str, watch: tuple[str, ...] = ("textual", "rich", "scipy")) -> list[str]:

@@ -26,7 +26,7 @@ from tri.report.markdown_report import md_escape, render_markdown
 from tri.report.text_report import bar, render_text, status_word
 
 ROOT = Path(__file__).parents[1]
-DEMOS = sorted((ROOT / "panels_demo").glob("*.toml"))
+DEMOS = sorted((ROOT / "tri" / "panels_demo").glob("*.toml"))
 ANSI = re.compile(r"\x1b\[[0-9;]*m")
 
 
@@ -100,7 +100,7 @@ def test_text_states_estimate_basis_and_sections(datas: dict[str, Any]) -> None:
 
 def test_text_says_when_currents_are_iterated() -> None:
     d = build_data(
-        str(ROOT / "panels_demo" / "bakery_208.toml"), iterate=True, continuous_factor=1.25
+        str(ROOT / "tri" / "panels_demo" / "bakery_208.toml"), iterate=True, continuous_factor=1.25
     )
     out = render_text(d)
     assert "solved at the" in out and "computed panel voltage" in out

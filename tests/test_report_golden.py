@@ -17,7 +17,7 @@ from tri.cli.report import build_data, render
 
 ROOT = Path(__file__).parents[1]
 GOLDEN = Path(__file__).parent / "golden"
-DEMOS = sorted((ROOT / "panels_demo").glob("*.toml"))
+DEMOS = sorted((ROOT / "tri" / "panels_demo").glob("*.toml"))
 EXT = {"text": "txt", "json": "json", "markdown": "md", "csv": "csv"}
 UPDATE = os.environ.get("TRI_UPDATE_GOLDEN") == "1"
 

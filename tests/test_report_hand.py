@@ -68,7 +68,9 @@ def phi(pf: float) -> float:
 
 
 def report(name: str) -> dict[str, Any]:
-    return build_data(str(ROOT / "panels_demo" / name), iterate=False, continuous_factor=1.25)
+    return build_data(
+        str(ROOT / "tri" / "panels_demo" / name), iterate=False, continuous_factor=1.25
+    )
 
 
 def harmonic_rms(fund: complex, parts: list[tuple[float, float, dict[int, tuple[float, float]]]]):

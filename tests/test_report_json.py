@@ -21,7 +21,7 @@ from tri.cli.report import build_data
 from tri.report.json_report import render_json
 
 ROOT = Path(__file__).parents[1]
-DEMOS = sorted((ROOT / "panels_demo").glob("*.toml"))
+DEMOS = sorted((ROOT / "tri" / "panels_demo").glob("*.toml"))
 LEVELS = {"info", "warning", "limit"}
 # The report rounds every number to 9 significant digits; identities between
 # rounded numbers therefore hold to a few parts in 1e9. 1e-7 relative leaves
@@ -176,7 +176,7 @@ def test_voltage_is_null_without_supply_and_set_with_it(docs: dict[str, dict[str
 
 
 def test_readings_and_voltage_null_when_the_tables_are_removed(tmp_path: Path) -> None:
-    doc = tomlkit.parse((ROOT / "panels_demo" / "bakery_208.toml").read_text("utf-8"))
+    doc = tomlkit.parse((ROOT / "tri" / "panels_demo" / "bakery_208.toml").read_text("utf-8"))
     del doc["supply"]
     del doc["readings"]
     bare = tmp_path / "bare.toml"
@@ -228,7 +228,7 @@ def test_basis_says_estimate_and_which_currents(docs: dict[str, dict[str, Any]])
     b = docs["bakery_208"]["basis"]
     assert b["estimate"] is True and b["currents"] == "nominal voltage" and not b["iterated"]
     it = build_data(
-        str(ROOT / "panels_demo" / "bakery_208.toml"), iterate=True, continuous_factor=1.25
+        str(ROOT / "tri" / "panels_demo" / "bakery_208.toml"), iterate=True, continuous_factor=1.25
     )
     assert it["basis"]["iterated"] is True
     assert "iterated" in it["basis"]["currents"]

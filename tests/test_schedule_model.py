@@ -12,7 +12,7 @@ from tri.schedule.model import Circuit, parse_phase_text
 from tri.schedule.slots import candidate_slots, occupied_slots, slot_phase, slot_phases
 from tri.schedule.systems import SYSTEMS
 
-DEMOS = sorted((Path(__file__).parents[1] / "panels_demo").glob("*.toml"))
+DEMOS = sorted((Path(__file__).parents[1] / "tri" / "panels_demo").glob("*.toml"))
 
 
 def test_two_column_rows_cycle_a_b_c() -> None:

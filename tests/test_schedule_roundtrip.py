@@ -15,7 +15,7 @@ from tri.schedule.save import save_schedule, schedule_text, write_atomic
 from tri.schedule.slots import PHASES, TWO_COLUMN, slot_phases
 from tri.schedule.text import plain_text_problem
 
-DEMOS = sorted((Path(__file__).parents[1] / "panels_demo").glob("*.toml"))
+DEMOS = sorted((Path(__file__).parents[1] / "tri" / "panels_demo").glob("*.toml"))
 
 
 @pytest.mark.parametrize("path", DEMOS, ids=lambda p: p.name)

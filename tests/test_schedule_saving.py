@@ -25,7 +25,7 @@ from tri.schedule import atomic
 from tri.schedule.atomic import STALE_AFTER_S, remove_stale_temps, write_atomic
 from tri.schedule.errors import ScheduleError
 
-DEMO = Path(__file__).parents[1] / "panels_demo" / "bakery_208.toml"
+DEMO = Path(__file__).parents[1] / "tri" / "panels_demo" / "bakery_208.toml"
 OLD = "old contents\n"
 
 

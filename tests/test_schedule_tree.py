@@ -12,7 +12,7 @@ from tri.schedule.save import schedule_text
 from tri.schedule.tree import load_tree
 from tri.schedule.tree_to_engine import analyse_building
 
-DEMO = Path(__file__).parents[1] / "panels_demo" / "brewery" / "mdp_480.toml"
+DEMO = Path(__file__).parents[1] / "tri" / "panels_demo" / "brewery" / "mdp_480.toml"
 
 
 def panel(name: str, system: str = "208Y/120", body: str = "") -> str:

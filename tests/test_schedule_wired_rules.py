@@ -24,7 +24,7 @@ from tri.schedule.load import load_schedule, parse_schedule
 from tri.schedule.to_engine import analyse_schedule
 
 ROOT = Path(__file__).resolve().parent.parent
-DEMO = ROOT / "panels_demo" / "woodshop_240d.toml"
+DEMO = ROOT / "tri" / "panels_demo" / "woodshop_240d.toml"
 RAIL = Path(__file__).parent / "data" / "wiring" / "rail_rcd_400.toml"
 REL = 1e-9
 

@@ -26,7 +26,7 @@ from tri.tui.screens.choice import ChoiceScreen
 from tri.tui.screens.form import FormScreen
 from tri.tui.screens.main import MainScreen
 
-BREWERY = Path(__file__).parents[1] / "panels_demo" / "brewery"
+BREWERY = Path(__file__).parents[1] / "tri" / "panels_demo" / "brewery"
 #: Panels in the tree's order (depth first, children in the order of the feeders).
 ORDER = ["mdp_480.toml", "hp1_480.toml", "lp1_208.toml", "lp2_208.toml"]
 

@@ -215,7 +215,7 @@ def plain(renderable) -> str:
     return " ".join(console.export_text().split())
 
 
-DEMOS = sorted((Path(__file__).resolve().parents[1] / "panels_demo").glob("*.toml"))
+DEMOS = sorted((Path(__file__).resolve().parents[1] / "tri" / "panels_demo").glob("*.toml"))
 
 
 @pytest.mark.parametrize("demo", DEMOS, ids=lambda p: p.stem)

@@ -175,7 +175,7 @@ async def test_circuit_form_checks_every_pole_when_poles_change(small: Path) -> 
 async def test_circuit_form_edits_a_breakers_legs(tmp_path: Path) -> None:
     """The demo heater's three 240 V elements (3000, 3000, 1500 VA) show leg by leg; the form
     edits them, and the loader's own rules judge their count against the poles."""
-    demo = Path(__file__).resolve().parents[1] / "panels_demo" / "woodshop_240d.toml"
+    demo = Path(__file__).resolve().parents[1] / "tri" / "panels_demo" / "woodshop_240d.toml"
     target = tmp_path / "w.toml"
     target.write_text(demo.read_text())
     app = TriApp(target, journal=False)

@@ -24,7 +24,7 @@ from tri.tui.screens.log_view import LogScreen
 from tri.tui.screens.main import MainScreen
 from tri.tui.widgets.results_panel import ResultsPanel
 
-DEMOS = Path(__file__).parents[1] / "panels_demo"
+DEMOS = Path(__file__).parents[1] / "tri" / "panels_demo"
 SCHEDULE_WITH_LOG = """\
 format = 1
 

@@ -17,7 +17,7 @@ from tri.tui.screens.main import MainScreen
 from tri.tui.widgets.circuit_table import CircuitTable
 from tri.tui.widgets.panel_view import PanelView
 
-DEMOS = Path(__file__).parents[1] / "panels_demo"
+DEMOS = Path(__file__).parents[1] / "tri" / "panels_demo"
 
 
 def index_of(app: TriApp, name: str) -> int:

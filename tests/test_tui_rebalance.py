@@ -155,7 +155,7 @@ async def test_a_rating_still_exceeded_after_the_moves_is_said(
     # the repair-shop demo balances, but its 150 A main stays overloaded (the
     # engine's limit findings), as tri suggest says: counted at 80×24, in full
     # where there is room
-    demo = Path(__file__).parents[1] / "panels_demo" / "garage_ev_208.toml"
+    demo = Path(__file__).parents[1] / "tri" / "panels_demo" / "garage_ev_208.toml"
     target = tmp_path / "garage.toml"
     target.write_text(demo.read_text(encoding="utf-8"), encoding="utf-8")
     app = TriApp(target, journal=False)

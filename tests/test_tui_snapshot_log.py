@@ -18,7 +18,7 @@ from tui_support import keys
 
 from tri.tui.app import TriApp
 
-DEMO = Path(__file__).parents[1] / "panels_demo" / "garage_logged_208.toml"
+DEMO = Path(__file__).parents[1] / "tri" / "panels_demo" / "garage_logged_208.toml"
 SIZES = [(80, 24), (120, 40)]
 sizes = pytest.mark.parametrize("size", SIZES, ids=["80x24", "120x40"])
 #: Forms, questions and refusals: the 80×24 picture is the contract size; a wider

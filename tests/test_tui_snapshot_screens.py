@@ -26,7 +26,7 @@ from tri.schedule.load import load_schedule
 from tri.tui.app import TriApp
 
 DATA = Path(__file__).parent / "data" / "tui"
-DEMOS = Path(__file__).parents[1] / "panels_demo"
+DEMOS = Path(__file__).parents[1] / "tri" / "panels_demo"
 SIZES = [(80, 24), (120, 40)]
 SIZE_IDS = ["80x24", "120x40"]
 

@@ -18,7 +18,7 @@ from tui_support import keys
 
 from tri.tui.app import TriApp
 
-BREWERY = Path(__file__).parents[1] / "panels_demo" / "brewery"
+BREWERY = Path(__file__).parents[1] / "tri" / "panels_demo" / "brewery"
 sizes = pytest.mark.parametrize("size", [(80, 24), (120, 40)], ids=["80x24", "120x40"])
 
 

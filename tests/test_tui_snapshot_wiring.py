@@ -18,7 +18,7 @@ from tui_support import keys
 
 from tri.tui.app import TriApp
 
-WOODSHOP = Path(__file__).parents[1] / "panels_demo" / "woodshop_240d.toml"
+WOODSHOP = Path(__file__).parents[1] / "tri" / "panels_demo" / "woodshop_240d.toml"
 sizes = pytest.mark.parametrize("size", [(80, 24), (120, 40)], ids=["80x24", "120x40"])
 #: Forms, questions and refusals: the 80×24 picture is the contract size; a wider
 #: terminal only adds margin around them.

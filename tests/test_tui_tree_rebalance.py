@@ -22,7 +22,7 @@ from tri.tui.screens.building_tree import BuildingScreen
 from tri.tui.screens.main import MainScreen
 from tri.tui.screens.tree_rebalance import TreeRebalanceScreen, targets_from
 
-BREWERY = Path(__file__).parents[1] / "panels_demo" / "brewery"
+BREWERY = Path(__file__).parents[1] / "tri" / "panels_demo" / "brewery"
 
 
 @pytest.fixture

@@ -26,7 +26,7 @@ from tri.tui.screens.form import FormScreen
 from tri.tui.widgets.circuit_table import CircuitTable
 from tri.tui.widgets.panel_view import PanelView
 
-WOODSHOP = Path(__file__).parents[1] / "panels_demo" / "woodshop_240d.toml"
+WOODSHOP = Path(__file__).parents[1] / "tri" / "panels_demo" / "woodshop_240d.toml"
 CBA = """\
 format = 1
 

@@ -24,7 +24,7 @@ from tri.tui.rules import move_problems, new_problems
 from tri.tui.wording import circuit_label, issue_text, plural
 
 DATA = Path(__file__).parent / "data" / "tui"
-DEMOS = Path(__file__).parents[1] / "panels_demo"
+DEMOS = Path(__file__).parents[1] / "tri" / "panels_demo"
 
 
 def small() -> Schedule:

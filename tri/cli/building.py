@@ -11,6 +11,7 @@ from __future__ import annotations
 import dataclasses
 import sys
 import time
+from dataclasses import dataclass
 from typing import Any
 
 from tri.cli.common import SAFETY_CAUTION, CliError
@@ -49,9 +50,41 @@ class _Progress:
             print("\r\x1b[K", end="", file=sys.stderr)
 
 
-def building_report_data(path: str, *, iterate: bool, continuous_factor: float) -> dict[str, Any]:
-    """Load, analyse and turn a building into report data (:mod:`tri.report.building`)."""
+@dataclass(frozen=True, eq=False)
+class BuildingParts:
+    """What ``tri check`` needs beyond a building's report dict.
+
+    Attributes
+    ----------
+    tree : ScheduleTree
+        The panels as loaded.
+    scenarios : tuple of (name, TreeAnalysis)
+        The building in each named scenario (empty without ``use``).
+    cases, log, figures
+        Empty, as :class:`tri.report.over_time_data.OverTimeParts` of a
+        panel without scenarios or log (those of a building are above).
+    """
+
+    tree: Any
+    scenarios: tuple[tuple[str, Any], ...] = ()
+    cases: tuple = ()
+    log: Any = None
+    figures: Any = None
+
+
+def building_report_all(
+    path: str, *, iterate: bool, continuous_factor: float | None, limits: Any = None
+) -> tuple[dict[str, Any], BuildingParts]:
+    """The building's report data (every scenario's figures included) and its parts.
+
+    ``limits`` (:class:`tri.engine.limits.FindingLimits`, None: the defaults)
+    sets every panel's findings, as for one panel.
+
+    The connected load and each scenario of the building
+    (:mod:`tri.schedule.tree_scenarios`) are analysed over the whole tree.
+    """
     from tri.report.building import building_data
+    from tri.schedule.tree_scenarios import building_scenario_names
     from tri.schedule.tree_to_engine import analyse_building
 
     progress = _Progress()
@@ -59,31 +92,66 @@ def building_report_data(path: str, *, iterate: bool, continuous_factor: float) 
         tree = load_tree(path, progress=progress)
     finally:
         progress.done()
+    names = building_scenario_names(tree)
     try:
         result = analyse_building(
-            tree, iterate_voltage=iterate, continuous_factor=continuous_factor
+            tree, iterate_voltage=iterate, continuous_factor=continuous_factor, limits=limits
+        )
+        scenarios = tuple(
+            (
+                name,
+                analyse_building(
+                    tree,
+                    iterate_voltage=iterate,
+                    continuous_factor=continuous_factor,
+                    limits=limits,
+                    scenario=name,
+                ),
+            )
+            for name in names
         )
     except ValueError as exc:
         raise CliError(f"{path}: cannot analyse this building: {exc}") from None
-    if iterate and not result.solution.converged:
-        print(
-            f"tri: warning: the voltage iteration did not converge in "
-            f"{result.solution.iterations} sweeps; voltages are unreliable.",
-            file=sys.stderr,
-        )
-    return building_data(result, tree, caution=SAFETY_CAUTION)
+    for name, r in (("connected", result), *scenarios):
+        if iterate and not r.solution.converged:
+            case = "" if name == "connected" else f" (scenario {name})"
+            print(
+                f"tri: warning: the voltage iteration did not converge in "
+                f"{r.solution.iterations} sweeps{case}; voltages are unreliable.",
+                file=sys.stderr,
+            )
+    headroom = {} if limits is None else {"headroom_pct": limits.headroom_pct}
+    data = building_data(result, tree, caution=SAFETY_CAUTION, scenarios=scenarios, **headroom)
+    return data, BuildingParts(tree, scenarios)
 
 
 def check_entries(
-    data: dict[str, Any], maxima: dict[str, float | None], *, light_load_pct: float
+    data: dict[str, Any],
+    maxima: dict[str, float | None],
+    *,
+    light_load_pct: float,
+    parts: BuildingParts | None = None,
 ) -> list[dict[str, Any]]:
-    """One ``tri check`` entry per panel of a building (the service first)."""
-    from tri.report.check_report import evaluate, panel_status
+    """One ``tri check`` entry per panel of a building (the service first).
 
+    With scenarios (``parts.scenarios``) each limit of each panel is judged
+    in the connected load and in every scenario of the building, and the
+    worst case decides (:func:`tri.report.scenario_check.evaluate_cases`).
+    """
+    from tri.report.building import building_data
+    from tri.report.check_report import panel_status
+    from tri.report.scenario_check import evaluate_cases
+
+    case_panels = []
+    if parts is not None:
+        for name, result in parts.scenarios:
+            case = building_data(result, parts.tree, caution=SAFETY_CAUTION)
+            case_panels.append((name, case["building"]["panels"]))
     entries = []
-    for p in data["building"]["panels"]:
+    for i, p in enumerate(data["building"]["panels"]):
         report = p["report"]
-        results = evaluate(report, maxima, light_load_pct=light_load_pct)
+        reports = [(name, panels[i]["report"]) for name, panels in case_panels]
+        results = evaluate_cases(report, reports, maxima, light_load_pct=light_load_pct)
         if p["depth"]:  # a fed panel's voltage comes through its feeder, not a [supply]
             results = [
                 dataclasses.replace(r, where=r.where.replace("from [supply]", "through its feeder"))

@@ -117,7 +117,7 @@ def _check_one(
     if data.get("building") is not None:  # every panel of the building, the service first
         from tri.cli.building import check_entries
 
-        return check_entries(data, maxima, light_load_pct=light)
+        return check_entries(data, maxima, light_load_pct=light, parts=parts)
     results = _scenario_results(path, data, parts, maxima, light)
     return [
         {

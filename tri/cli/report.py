@@ -144,19 +144,19 @@ def build_all(
     """Report data and the parts behind its ``scenarios`` and ``log`` keys.
 
     A building (a schedule whose circuits feed other panels) gives the whole
-    tree's data and no scenario or log parts (those are judged per panel).
+    tree's data, every panel's figures in each scenario of the building
+    included, and :class:`tri.cli.building.BuildingParts` (no log).
     """
-    from tri.cli.building import building_report_data, is_building_root
+    from tri.cli.building import building_report_all, is_building_root
     from tri.report.data import report_data
     from tri.report.over_time_data import add_over_time
 
     limits = limits or FindingLimits()
     loaded = load(path)
     if is_building_root(loaded):
-        from tri.report.over_time_data import OverTimeParts
-
-        data = building_report_data(path, iterate=iterate, continuous_factor=continuous_factor)
-        return data, OverTimeParts(cases=())
+        return building_report_all(
+            path, iterate=iterate, continuous_factor=continuous_factor, limits=limits
+        )
     try:
         analysis = analyse_schedule(
             loaded.schedule,

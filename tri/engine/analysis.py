@@ -603,6 +603,8 @@ def describe_panel(
     voltage = None
     if source is not None and b.v_phase is not None:
         vln = system.v_ln_or_derived
+        # each phase against its own nominal (the high leg of a high-leg delta: 208 V of 240)
+        nominal = (vln,) * 3 if system.high_leg is None else np.abs(supply_phase_voltages(system))
         derating = _f(b.motor_derating)
         phase_dev = _f(b.phase_deviation_pct)
         voltage = VoltageResult(
@@ -612,7 +614,9 @@ def describe_panel(
             line_deviation_pct=_f(b.line_deviation_pct),
             phase_deviation_pct=None if math.isnan(phase_dev) else phase_dev,
             motor_derating=None if math.isnan(derating) else derating,
-            drop_pct=tuple(float(100.0 * (vln - abs(v)) / vln) for v in b.v_phase),  # type: ignore[arg-type]
+            drop_pct=tuple(  # type: ignore[arg-type]
+                float(100.0 * (n - abs(v)) / n) for n, v in zip(nominal, b.v_phase, strict=True)
+            ),
             z_phase_ohm=source.z_phase_ohm,
             z_neutral_ohm=source.z_neutral_ohm,
             transformer_full_load_a=source.transformer_full_load_a,

@@ -139,9 +139,11 @@ def breaker_calculated_a(
     _, _, tp = connection_masks(circuits)
     rotation = np.where(tp[..., None, :], PHASE_UNIT[:, None], 0.0)  # a 3-pole row: I·1∠φ_k
     lines = (incidence(circuits) + rotation) * i_nominal[..., None, :]  # (..., 3, n)
-    member = _one_hot(breaker, nb)  # (..., nb, n)
-    pole_max = np.max(np.abs(member @ np.swapaxes(lines, -1, -2)), axis=-1)  # (..., nb)
-    legs = np.sum(member, axis=-1)  # rows per breaker
+    labels = np.broadcast_to(breaker, i_nominal.shape)
+    poles = sum_by_label(labels, np.swapaxes(lines, -1, -2), nb)  # (..., nb, 3)
+    pole_max = np.max(np.abs(poles), axis=-1)  # (..., nb)
+    ones = np.ones((*labels.shape, 1))
+    legs = sum_by_label(labels, ones, nb)[..., 0].real  # rows per breaker
     index = np.clip(breaker, 0, max(nb - 1, 0))
     per_row = np.take_along_axis(pole_max, index, axis=-1)
     several = np.take_along_axis(legs, index, axis=-1) > 1
@@ -222,9 +224,44 @@ def element_spectra(circuits: CircuitArrays, i_element: np.ndarray) -> np.ndarra
     return out
 
 
-def _one_hot(labels: np.ndarray, count: int) -> np.ndarray:
-    """``(..., count, n)`` float matrix: 1 where row r carries label g (−1: none)."""
-    return (np.asarray(labels)[..., None, :] == np.arange(count)[:, None]).astype(float)
+def sum_by_label(labels: np.ndarray, values: np.ndarray, count: int) -> np.ndarray:
+    """Sum the rows of ``values`` that carry each label, ``(..., count, K)``.
+
+    Parameters
+    ----------
+    labels : int ndarray, shape (..., n)
+        Label 0..count-1 of each row; -1 (or any label outside) adds nowhere.
+    values : complex ndarray, shape (..., n, K)
+        What each row carries.
+    count : int
+        Number of labels.
+
+    Returns
+    -------
+    complex ndarray, shape (..., count, K)
+        ``Σ_{r: label_r = g} values_r`` for each g (the one-hot product
+        ``onehot(labels) @ values``, computed by copying each label's first
+        row and adding the others, so that a batch of many panels costs no
+        more than its rows).
+    """
+    labels = np.asarray(labels)
+    lead, n = labels.shape[:-1], labels.shape[-1]
+    k = values.shape[-1]
+    m = int(np.prod(lead, dtype=int))
+    lab = labels.reshape(m, n)
+    rows = np.broadcast_to(values, (*lead, n, k)).reshape(m * n, k)
+    source = np.flatnonzero(((lab >= 0) & (lab < count)).ravel())
+    target = (np.arange(m)[:, None] * count + lab).ravel()[source]
+    # the first row of each label is copied, the others added (few: a breaker's further legs)
+    order = np.argsort(target, kind="stable")
+    target, source = target[order], source[order]
+    first = np.ones(target.size, dtype=bool)
+    first[1:] = target[1:] != target[:-1]
+    out = np.zeros((m * count, k), dtype=np.result_type(values, complex))
+    out[target[first]] = rows[source[first]]
+    if not np.all(first):
+        np.add.at(out, target[~first], rows[source[~first]])
+    return out.reshape(*lead, count, k)
 
 
 def breaker_pole_spectra(circuits: CircuitArrays, spectra: np.ndarray) -> np.ndarray:
@@ -242,19 +279,25 @@ def breaker_pole_spectra(circuits: CircuitArrays, spectra: np.ndarray) -> np.nda
     complex ndarray, shape (..., nb, 3, H)
         ``I_b,k,h`` [A]; zero on phases a breaker does not touch.
     """
-    breaker = np.asarray(circuits.breaker)
+    breaker = np.broadcast_to(np.asarray(circuits.breaker), spectra.shape[:-1])
     nb = int(breaker.max()) + 1 if breaker.size else 0
-    _, _, tp = connection_masks(circuits)
+    ln, ll, tp = connection_masks(circuits)
     orders_all = all_orders(np.asarray(circuits.orders, dtype=int))
     rot = three_wire_rotation(orders_all)  # (3, H)
-    m = incidence(circuits)  # (..., 3, n)
-    # per row and line: M_k,r·E_r,h + [3-pole]·R_k,h·E_r,h, shape (..., n, 3, H)
-    lines = np.swapaxes(m, -1, -2)[..., None] * spectra[..., None, :]
-    lines = lines + (tp[..., None, None] * rot) * spectra[..., None, :]
-    n, h = spectra.shape[-2], spectra.shape[-1]
-    flat = lines.reshape(*lines.shape[:-3], n, 3 * h)
-    out = _one_hot(breaker, nb) @ flat
-    return out.reshape(*out.shape[:-1], 3, h)
+    p = np.clip(np.asarray(circuits.phase_p), 0, 2)
+    q = np.clip(np.asarray(circuits.phase_q), 0, 2)
+    # per row: +E on line p (1- and 2-pole), -E on line q (2-pole), R_k·E on every
+    # line k (3-pole): sums over (breaker, line) bins, the incidence of tri.engine.phasors
+    labels = np.concatenate(
+        [np.where(ln | ll, 3 * breaker + p, -1), np.where(ll, 3 * breaker + q, -1)], axis=-1
+    )
+    signed = np.concatenate([spectra, -spectra], axis=-2)
+    lines = sum_by_label(labels, signed, 3 * nb)
+    lines = lines.reshape(*breaker.shape[:-1], nb, 3, spectra.shape[-1])
+    if np.any(tp):
+        three = sum_by_label(np.where(tp, breaker, -1), spectra, nb)  # (..., nb, H)
+        lines = lines + three[..., None, :] * rot
+    return lines
 
 
 def group_neutral_spectra(circuits: CircuitArrays, spectra: np.ndarray) -> np.ndarray:
@@ -275,8 +318,8 @@ def group_neutral_spectra(circuits: CircuitArrays, spectra: np.ndarray) -> np.nd
     group = np.asarray(circuits.neutral_group)
     count = int(group.max()) + 1 if group.size else 0
     ln, _, _ = connection_masks(circuits)
-    pick = _one_hot(np.where(ln, group, -1), max(count, 0))
-    return pick @ spectra
+    labels = np.broadcast_to(np.where(ln, group, -1), spectra.shape[:-1])
+    return sum_by_label(labels, spectra, max(count, 0))
 
 
 def shared_neutral_finding(name: str, common_trip: bool, rms_a: float) -> Finding | None:

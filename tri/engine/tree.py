@@ -50,6 +50,8 @@ from tri.engine.transformer import (
     voltage_factors,
 )
 from tri.engine.tree_inputs import PackedTree
+from tri.engine.tree_rows import tree_wiring
+from tri.engine.tree_va import roll_up_phase_va
 
 #: Called after each iteration with (iteration, largest voltage change [pu]).
 Progress = Callable[[int, float], None]
@@ -111,6 +113,14 @@ class TreeSolution:
     delta_circulating_a : float ndarray, shape (N,)
         RMS current circulating in a delta primary feeding the node [A]
         (0 without one).
+    breaker_pole_spectrum : complex ndarray, shape (N, nb, 3, H), or None
+        Line current of each breaker of each node on each phase [A]
+        (:func:`tri.engine.legs.breaker_pole_spectra`, the node's own rows;
+        a feeder row's breaker carries what its child draws); None unless
+        some node numbers its breakers.
+    shared_neutral_spectrum : complex ndarray, shape (N, G, H), or None
+        Current in each shared neutral of each node [A]; None unless some
+        node has one.
     iterations : int
         Sweeps of the iterated solution (0 when not iterated).
     converged : bool
@@ -133,11 +143,17 @@ class TreeSolution:
     delta_circulating_a: np.ndarray
     iterations: int
     converged: bool
+    breaker_pole_spectrum: np.ndarray | None = None
+    shared_neutral_spectrum: np.ndarray | None = None
 
 
 def nominal_voltages(tree: PackedTree) -> np.ndarray:
-    """Each node's balanced nominal phase voltages in its own frame, shape (N, 3) [V]."""
-    return tree.v_ln[:, None] * PHASE_UNIT
+    """Each node's nominal phase voltages in its own frame, shape (N, 3) [V].
+
+    Balanced on a wye; the high-leg set on a high-leg delta
+    (:mod:`tri.engine.high_leg`), as the panel alone is computed.
+    """
+    return np.array(tree.e_nominal, dtype=complex, copy=True)
 
 
 def own_fundamental(circuits: CircuitArrays, v_phase: np.ndarray) -> Spectra:
@@ -259,56 +275,6 @@ def _iterate(
     return v, sweeps, converged
 
 
-def roll_up_phase_va(
-    tree: PackedTree, own_va: np.ndarray, fed_fund: np.ndarray, *, same_phase_only: bool = False
-) -> tuple[np.ndarray, np.ndarray]:
-    """A per-phase VA figure of every node with its whole subtree added.
-
-    Parameters
-    ----------
-    tree : PackedTree
-    own_va : float ndarray, shape (N, 3)
-        Each node's own figure per phase [VA].
-    fed_fund : float ndarray, shape (N, 3)
-        Magnitude of each node's fundamental feeder currents in its parent's
-        frame [A] (the weights of the split through a transformer).
-    same_phase_only : bool
-        For a figure that follows the neutral (line-to-neutral load): a child
-        adds phase by phase where zero sequence passes (no transformer, or
-        ``YNyn``) and nothing through any other transformer.
-
-    Returns
-    -------
-    total : float ndarray, shape (N, 3)
-        Own plus subtree [VA].
-    contribution : float ndarray, shape (N, 3)
-        What each node adds to its parent, per parent phase [VA] (0 for the
-        root).
-
-    Notes
-    -----
-    The schedule convention of ``TreeSolution.phase_va``: a child without a
-    transformer adds its phase VA phase by phase; through a transformer its
-    total is shared among the primary phases in proportion to their
-    fundamental currents.
-    """
-    total = np.array(own_va, dtype=float, copy=True)
-    contribution = np.zeros_like(total)
-    for idx in reversed(tree.levels[1:]):
-        parents = tree.parent[idx]
-        if same_phase_only:
-            passes = ~tree.has_tx[idx] | tree.zero_pass[idx]
-            child = np.where(passes[:, None], total[idx], 0.0)
-        else:
-            share = np.sum(total[idx], axis=-1, keepdims=True)
-            weight = np.sum(fed_fund[idx], axis=-1, keepdims=True)
-            split = np.where(weight > 0, fed_fund[idx] / np.where(weight > 0, weight, 1.0), 1 / 3)
-            child = np.where(tree.has_tx[idx, None], share * split, total[idx])
-        contribution[idx] = child
-        np.add.at(total, parents, child)
-    return total, contribution
-
-
 def _bookkeeping(tree: PackedTree, oc_rms: np.ndarray, oc, fed: Spectra, va: np.ndarray):
     """Per-circuit figures with feeder rows filled, and the VA roll-up."""
     circuits = tree.circuits
@@ -386,6 +352,7 @@ def solve_tree(
     cur, cur_rms, phase_va, total_va, nl_va, triplens, scale, unplaced = _bookkeeping(
         tree, oc.circuit_rms_a, oc, fed, schedule_va(circuits)
     )
+    wiring = tree_wiring(tree, i_e, oc.circuit_rms_a, fed.phase)
     circulating = np.where(
         tree.delta_primary,
         delta_circulating_a(total.phase, np.where(tree.has_tx, tree.winding_ratio, 1.0)),
@@ -408,4 +375,5 @@ def solve_tree(
         delta_circulating_a=circulating,
         iterations=iterations,
         converged=converged,
+        **wiring,
     )

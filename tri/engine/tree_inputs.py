@@ -21,20 +21,16 @@ from dataclasses import dataclass, field, replace
 
 import numpy as np
 
+from tri.engine.high_leg import supply_phase_voltages
 from tri.engine.inputs import (
-    THREE_PHASE,
-    UNPLACED,
     CircuitArrays,
     Ratings,
     SupplyImpedance,
     SystemVoltages,
 )
-from tri.engine.phasors import nominal_phase_voltages
 from tri.engine.supply import supply_impedances, transformer_impedance
 from tri.engine.transformer import TransformerLink
-
-#: Nominal voltages of parent and child (no transformer) agree within this [-].
-SAME_SYSTEM_RTOL = 1e-9
+from tri.engine.tree_rows import pad_circuits, union_orders, wiring_counts
 
 
 @dataclass(frozen=True)
@@ -144,105 +140,9 @@ class TreeInputs:
         )
 
 
-def _same_voltages(a: SystemVoltages, b: SystemVoltages) -> bool:
-    close = math.isclose(a.v_ll, b.v_ll, rel_tol=SAME_SYSTEM_RTOL)
-    if a.v_ln is None or b.v_ln is None:
-        return close and a.v_ln is None and b.v_ln is None
-    return close and math.isclose(a.v_ln, b.v_ln, rel_tol=SAME_SYSTEM_RTOL)
-
-
-def check_tree(tree: TreeInputs) -> None:
-    """Raise ``ValueError`` for a tree the engine cannot analyse.
-
-    Parameters
-    ----------
-    tree : TreeInputs
-
-    Notes
-    -----
-    Checked: the root has no link and every other node has one to an
-    earlier node; feeder rows exist, are 3-pole rows of zero load and feed
-    one child each; frequencies agree; without a transformer the child's
-    nominal voltages are the parent's; with one, a ``yn`` secondary feeds a
-    4-wire child and ``d``/``y`` a 3-wire one, and a ``YN`` primary needs a
-    4-wire parent. Each node's circuits are checked by
-    :func:`tri.engine.analysis.check_inputs`.
-    """
-    from tri.engine.analysis import check_inputs
-
-    if not tree.nodes:
-        raise ValueError("a tree needs at least its root panel")
-    if tree.nodes[0].link is not None:
-        raise ValueError("the first node is the root and has no feeder")
-    used: set[tuple[int, int]] = set()
-    for i, node in enumerate(tree.nodes):
-        check_inputs(node.circuits, node.system, node.ratings)
-        if np.ndim(node.circuits.s_va) != 1:
-            raise ValueError(f"node {i}: circuit arrays of one panel, shape (n,)")
-        if i == 0:
-            continue
-        link = node.link
-        if link is None:
-            raise ValueError(f"node {i} has no feeder; only the root may be unfed")
-        if not 0 <= link.parent < i:
-            raise ValueError(f"node {i}: its parent must come before it")
-        parent = tree.nodes[link.parent]
-        rows = parent.circuits.n_circuits
-        if not 0 <= link.feeder_row < rows:
-            raise ValueError(f"node {i}: feeder row {link.feeder_row} not in its parent")
-        if (link.parent, link.feeder_row) in used:
-            raise ValueError(f"node {i}: its feeder row already feeds another panel")
-        used.add((link.parent, link.feeder_row))
-        row = link.feeder_row
-        if parent.circuits.connection[row] not in (THREE_PHASE, UNPLACED) or abs(
-            parent.circuits.s_va[row]
-        ):
-            raise ValueError(f"node {i}: the feeder row must be a 3-pole row of zero load")
-        if not math.isclose(node.system.frequency_hz, parent.system.frequency_hz):
-            raise ValueError(f"node {i}: frequency differs from its parent's")
-        tx = link.transformer
-        if tx is None:
-            if not _same_voltages(node.system, parent.system):
-                raise ValueError(f"node {i}: without a transformer its system is its parent's")
-            continue
-        if tx.group.secondary_has_neutral != node.system.has_neutral:
-            raise ValueError(f"node {i}: the transformer secondary and the panel's wiring differ")
-        if tx.group.primary_needs_neutral and not parent.system.has_neutral:
-            raise ValueError(f"node {i}: a YN primary needs a 4-wire parent")
-
-
 def line_voltage(system: SystemVoltages) -> float:
     """Line-to-line magnitude of the engine's nominal phasors [V] (``√3·V_LN`` on wye)."""
     return system.v_ll if system.v_ln is None else math.sqrt(3.0) * system.v_ln
-
-
-def union_orders(nodes: tuple[TreeNode, ...]) -> np.ndarray:
-    """Every harmonic order used anywhere in the tree, ascending (int ndarray)."""
-    orders = [np.asarray(n.circuits.orders, dtype=int) for n in nodes]
-    return np.unique(np.concatenate(orders)) if orders else np.zeros(0, dtype=int)
-
-
-def pad_circuits(nodes: tuple[TreeNode, ...], orders: np.ndarray) -> CircuitArrays:
-    """The nodes' circuits as one batch (N, n_max) on ``orders``, padded with unplaced rows."""
-    n_max = max(1, max(n.circuits.n_circuits for n in nodes))
-    count = len(nodes)
-    s_va = np.zeros((count, n_max), dtype=complex)
-    conn = np.full((count, n_max), UNPLACED, dtype=np.int64)
-    p = np.zeros((count, n_max), dtype=np.int64)
-    q = np.zeros((count, n_max), dtype=np.int64)
-    harm = np.zeros((count, n_max, orders.size), dtype=complex)
-    cont = np.zeros((count, n_max), dtype=bool)
-    for i, node in enumerate(nodes):
-        c = node.circuits
-        k = c.n_circuits
-        s_va[i, :k] = c.s_va
-        conn[i, :k] = c.connection
-        p[i, :k] = c.phase_p
-        q[i, :k] = c.phase_q
-        cont[i, :k] = c.continuous
-        if np.size(c.orders):
-            harm[i, :k, np.searchsorted(orders, c.orders)] = np.asarray(c.harmonics).T
-    return CircuitArrays(s_va, conn, p, q, harm, orders, cont)
 
 
 @dataclass(frozen=True, eq=False)
@@ -260,7 +160,17 @@ class PackedTree:
     levels : tuple of int ndarray
         Node indices at depth 0, 1, 2, ...
     v_ln, v_ll : float ndarray, shape (N,)
-        Nominal phase voltage (``V_LL/√3`` on 3-wire) and line voltage [V].
+        Nominal phase voltage (``V_LL/√3`` on 3-wire; the low legs' 120 V on a
+        high-leg delta) and line voltage [V].
+    e_nominal : complex ndarray, shape (N, 3)
+        Nominal phase-to-neutral phasors of each node
+        (:func:`tri.engine.high_leg.supply_phase_voltages`: balanced on a wye,
+        the high-leg set on a high-leg delta) [V].
+    high_leg : bool ndarray, shape (N,)
+        The node is a high-leg delta.
+    n_breakers, n_groups : int ndarray, shape (N,)
+        Breakers and shared neutrals in each node's own results
+        (:func:`tri.engine.tree_rows.wiring_counts`).
     has_neutral : bool ndarray, shape (N,)
     rating_a, neutral_rating_a, continuous_factor : float ndarray, shape (N,)
         [A], [A], [-].
@@ -294,6 +204,10 @@ class PackedTree:
     levels: tuple[np.ndarray, ...]
     v_ln: np.ndarray
     v_ll: np.ndarray
+    e_nominal: np.ndarray
+    high_leg: np.ndarray
+    n_breakers: np.ndarray
+    n_groups: np.ndarray
     has_neutral: np.ndarray
     rating_a: np.ndarray
     neutral_rating_a: np.ndarray
@@ -380,8 +294,10 @@ def pack_tree(tree: TreeInputs) -> PackedTree:
     Raises
     ------
     ValueError
-        From :func:`check_tree`.
+        From :func:`tri.engine.tree_checks.check_tree`.
     """
+    from tri.engine.tree_checks import check_tree
+
     check_tree(tree)
     nodes = tree.nodes
     count = len(nodes)
@@ -404,6 +320,7 @@ def pack_tree(tree: TreeInputs) -> PackedTree:
     for i in range(1, count):
         has_voltage[i] = has_voltage[parent[i]] or has_impedance[i]
     root_sys = nodes[0].system
+    n_breakers, n_groups = wiring_counts(nodes)
     root_z, root_fl = None, math.nan
     if tree.supply is not None:
         z_ph, z_n = supply_impedances(tree.supply, root_sys)
@@ -427,12 +344,16 @@ def pack_tree(tree: TreeInputs) -> PackedTree:
         levels=levels,
         v_ln=np.array([n.system.v_ln_or_derived for n in nodes], dtype=float),
         v_ll=np.array([n.system.v_ll for n in nodes], dtype=float),
+        e_nominal=np.array([supply_phase_voltages(n.system) for n in nodes], dtype=complex),
+        high_leg=np.array([n.system.high_leg is not None for n in nodes], dtype=bool),
+        n_breakers=n_breakers,
+        n_groups=n_groups,
         has_neutral=np.array([n.system.has_neutral for n in nodes], dtype=bool),
         rating_a=np.array([rating(n) for n in nodes], dtype=float),
         neutral_rating_a=np.array([neutral_rating(n) for n in nodes], dtype=float),
         continuous_factor=np.array([n.ratings.continuous_factor for n in nodes], dtype=float),
         has_voltage=has_voltage,
-        root_e=nominal_phase_voltages(root_sys.v_ln_or_derived),
+        root_e=supply_phase_voltages(root_sys),
         root_z=root_z,
         root_full_load_a=float(root_fl),
         **links,

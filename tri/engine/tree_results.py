@@ -161,7 +161,8 @@ def tree_batch(tree: PackedTree, sol: TreeSolution) -> BatchAnalysis:
     currents = current_figures(
         total.phase, total.neutral, total.design, sol.scale, tree.rating_a, tree.neutral_rating_a
     )
-    volt = voltage_figures(sol.v_phase, tree.has_neutral)
+    # a high-leg delta's phase voltages differ by design (120, 120, 208 V): no deviation rate
+    volt = voltage_figures(sol.v_phase, tree.has_neutral & ~tree.high_leg)
     share = np.where(
         sol.total_va > 0,
         100.0 * sol.nonlinear_va / np.where(sol.total_va > 0, sol.total_va, 1.0),
@@ -178,19 +179,26 @@ def tree_batch(tree: PackedTree, sol: TreeSolution) -> BatchAnalysis:
         three_pole_triplens=sol.three_pole_triplens,
         iterations=np.full(count, sol.iterations),
         converged=np.full(count, sol.converged),
+        breaker_pole_spectrum=sol.breaker_pole_spectrum,
+        shared_neutral_spectrum=sol.shared_neutral_spectrum,
         **currents,
         **tree_code_figures(tree, sol),
         **volt,
     )
 
 
-def _take(b: BatchAnalysis, i: int, n_rows: int) -> BatchAnalysis:
+def _take(b: BatchAnalysis, tree: PackedTree, i: int) -> BatchAnalysis:
+    """Node ``i``'s figures on its own rows, breakers and shared neutrals (padding cut)."""
     one = b.take(i)
+    n_rows, nb, ng = int(tree.n_rows[i]), int(tree.n_breakers[i]), int(tree.n_groups[i])
+    poles, groups = one.breaker_pole_spectrum, one.shared_neutral_spectrum
     return dataclasses.replace(
         one,
         circuit_current_a=one.circuit_current_a[:n_rows],
         circuit_rms_a=one.circuit_rms_a[:n_rows],
         circuit_calculated_a=one.circuit_calculated_a[:n_rows],
+        breaker_pole_spectrum=poles[:nb] if poles is not None and nb else None,
+        shared_neutral_spectrum=groups[:ng] if groups is not None and ng else None,
     )
 
 
@@ -366,7 +374,7 @@ def analyse_tree(
     Raises
     ------
     ValueError
-        For a malformed tree (:func:`tri.engine.tree_inputs.check_tree`).
+        For a malformed tree (:func:`tri.engine.tree_checks.check_tree`).
     """
     limits = limits or FindingLimits()
     packed = pack_tree(tree)
@@ -383,7 +391,7 @@ def analyse_tree(
     for i, node in enumerate(tree.nodes):
         source = _source(packed, i)
         a = describe_panel(
-            _take(batch, i, int(packed.n_rows[i])),
+            _take(batch, packed, i),
             node.system,
             node.ratings,
             source,

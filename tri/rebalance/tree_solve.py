@@ -40,6 +40,7 @@ from tri.rebalance.tree_loop import TreeSearch
 from tri.rebalance.tree_model import TreeModelParts
 from tri.rebalance.tree_problem import TreeProblem, build_tree_problem, subtree
 from tri.rebalance.tree_results import TreeStatus, TreeSuggestion
+from tri.schedule.model import Schedule
 from tri.schedule.tree import ScheduleTree
 from tri.schedule.tree_to_engine import analyse_building
 from tri.schedule.validate import circuit_where
@@ -135,11 +136,44 @@ def find_service(tree: ScheduleTree, name: str | None) -> int:
     return hits[0]
 
 
+def wired_refusal(shown: str, schedule: Schedule) -> list[str]:
+    """Panels as wired that the building search cannot move correctly yet, located.
+
+    The building search (:mod:`tri.rebalance.tree_problem`, ``tree_model``)
+    moves each breaker as one load on one set of phases and places it on a
+    balanced wye; it does not yet keep a breaker's legs or a shared-neutral
+    group together, nor 120 V circuits off a high leg. The roll-up itself
+    carries such panels (:mod:`tri.engine.tree_rows`); the search refuses
+    them here whatever the single-panel rebalancer accepts, rather than
+    propose a plan that cannot be built.
+    """
+    out = []
+    if schedule.panel.effective_high_leg is not None:
+        out.append(
+            f'{shown}: [panel] system = "{schedule.panel.system}": high-leg delta panels are '
+            "not yet supported by the building rebalancer"
+        )
+    kinds = (
+        ("breakers with a neutral or one load per leg", lambda c: c.has_legs),
+        ("shared-neutral groups", lambda c: c.shared_neutral is not None),
+    )
+    for what, test in kinds:
+        wheres = [circuit_where(c, schedule) for c in schedule.circuits if test(c)]
+        if wheres:
+            more = f" and {len(wheres) - 3} more" if len(wheres) > 3 else ""
+            out.append(
+                f"{shown}: {what} are not yet supported by the building rebalancer "
+                f"({', '.join(wheres[:3])}{more})"
+            )
+    return out
+
+
 def tree_refusal(tree: ScheduleTree, nodes: list[int]) -> list[str]:
     """What the building rebalancer cannot honour yet, one sentence per panel, naming its file."""
     out = building_refusal((p.shown, p.schedule) for p in tree.panels)
     for i in nodes:
         p = tree.panels[i]
+        out.extend(wired_refusal(p.shown, p.schedule))
         out.extend(f"{p.shown}: {r}" for r in rebalancer_refusal(p.schedule))
         wheres = [circuit_where(c, p.schedule) for c in p.schedule.circuits if c.use]
         if wheres:

@@ -6,7 +6,9 @@ one panel (:func:`tri.report.data.report_data`, the report contract), its
 figures including everything the root feeds, plus one added key:
 
 ``building``
-    ``iterated`` (bool), ``panel_count``, and ``panels``: every panel, root
+    ``iterated`` (bool), ``panel_count``, ``scenarios`` (the building's
+    scenario names, every ``use`` name of any panel; empty without), and
+    ``panels``: every panel, root
     first and each parent before its children, each with ``file`` (as the
     feeder names it, joined to its parent's folder), ``name``, ``depth``
     (0 for the root), ``parent`` (its parent's ``file`` or ``None``),
@@ -14,7 +16,10 @@ figures including everything the root feeds, plus one added key:
     ``report`` (that panel's report, the same shape as the top level,
     its figures including everything it feeds; for a fed panel ``supply``
     is ``None``, its own ``[supply]`` table not being used, and
-    ``voltage.source`` says in words where its voltage comes from).
+    ``voltage.source`` says in words where its voltage comes from; with
+    scenarios, ``scenarios`` as for one panel: that panel's figures, what it
+    feeds included, in the connected load and each scenario of the
+    building, and the case that decides each).
 
 ``feeder`` of a panel: ``circuit`` (the parent's feeder circuit: ``name``,
 ``slot``, ``breaker_a``), ``conductors`` (the ``feeder`` table as given:
@@ -38,8 +43,11 @@ from __future__ import annotations
 
 from typing import Any
 
+from tri.engine.limits import DESIGN_HEADROOM_PCT
 from tri.engine.tree_results import FeederResult, TreeAnalysis
 from tri.report.data import num, report_data
+from tri.report.over_time_data import scenarios_data
+from tri.schedule.to_scenarios import CONNECTED, Case
 from tri.schedule.tree import ScheduleTree
 
 
@@ -100,17 +108,31 @@ def _source_text(tree: ScheduleTree, index: int) -> str:
     return text
 
 
-def building_data(result: TreeAnalysis, tree: ScheduleTree, *, caution: str) -> dict[str, Any]:
+def building_data(
+    result: TreeAnalysis,
+    tree: ScheduleTree,
+    *,
+    caution: str,
+    scenarios: tuple[tuple[str, TreeAnalysis], ...] = (),
+    headroom_pct: float = DESIGN_HEADROOM_PCT,
+) -> dict[str, Any]:
     """The report of a building as plain data (module docstring for the keys).
 
     Parameters
     ----------
     result : TreeAnalysis
-        From :func:`tri.schedule.tree_to_engine.analyse_building`.
+        From :func:`tri.schedule.tree_to_engine.analyse_building` (the connected load).
     tree : ScheduleTree
         The panels it was computed from, in the same order.
     caution : str
         Safety caution carried with every panel's figures.
+    scenarios : tuple of (name, TreeAnalysis)
+        The building in each named scenario
+        (:mod:`tri.schedule.tree_scenarios`); each panel's report then has
+        ``scenarios`` (:func:`tri.report.over_time_data.scenarios_data`: its
+        figures in every case, the worst deciding).
+    headroom_pct : float
+        The design headroom behind the word NEAR [%].
 
     Returns
     -------
@@ -119,7 +141,9 @@ def building_data(result: TreeAnalysis, tree: ScheduleTree, *, caution: str) -> 
     """
     panels: list[dict[str, Any]] = []
     for i, (node, p) in enumerate(zip(result.nodes, tree.panels, strict=True)):
-        report = report_data(node.analysis, p.schedule, caution=caution, file=p.shown)
+        report = report_data(
+            node.analysis, p.schedule, caution=caution, file=p.shown, headroom_pct=headroom_pct
+        )
         if p.parent is not None:
             report["supply"] = None  # its own [supply] is not used in the building
             if report["voltage"] is not None:
@@ -133,6 +157,10 @@ def building_data(result: TreeAnalysis, tree: ScheduleTree, *, caution: str) -> 
                     if tree.panels[k].feeder_index == c["number"] - 1
                 )
                 c["feeds"] = child
+        if scenarios:
+            cases = (Case(CONNECTED, True, node.analysis),)
+            cases += tuple(Case(n, False, r.nodes[i].analysis) for n, r in scenarios)
+            report["scenarios"] = scenarios_data(cases)
         panels.append(
             {
                 "file": p.shown,
@@ -148,6 +176,7 @@ def building_data(result: TreeAnalysis, tree: ScheduleTree, *, caution: str) -> 
     top["building"] = {
         "iterated": result.iterated,
         "panel_count": len(panels),
+        "scenarios": [name for name, _ in scenarios],
         "panels": panels,
     }
     return top

@@ -3,8 +3,10 @@
 Text and Markdown: the root panel's report as for one panel (its figures
 include everything it feeds), then a table of every panel of the building,
 then each fed panel's own report under a heading that says where it is fed
-from. CSV: one row per circuit of every panel, the columns of the
-one-panel CSV with ``panel_file`` first and ``feeds`` last.
+from; with scenarios, each panel's report is followed by its figures in
+every case of the building (the worst deciding). CSV: one row per circuit
+of every panel, the columns of the one-panel CSV with ``panel_file`` first
+and ``feeds`` last.
 """
 
 from __future__ import annotations
@@ -81,6 +83,24 @@ def _fed_from(p: dict[str, Any]) -> str:
     )
 
 
+def _cases_text(report: dict[str, Any]) -> str:
+    """A panel's scenario table (empty without scenarios), led by a newline."""
+    if not report.get("scenarios"):
+        return ""
+    from tri.report.over_time_text import render_over_time_text
+
+    return "\n" + render_over_time_text(report).rstrip("\n")
+
+
+def _cases_markdown(report: dict[str, Any]) -> str:
+    """A panel's scenario section in Markdown (empty without scenarios), led by a newline."""
+    if not report.get("scenarios"):
+        return ""
+    from tri.report.over_time_text import render_over_time_markdown
+
+    return "\n" + render_over_time_markdown(report).rstrip("\n")
+
+
 def render_building_text(data: dict[str, Any], *, ascii_only: bool = False) -> str:
     """The building as plain text, 80 columns.
 
@@ -98,7 +118,7 @@ def render_building_text(data: dict[str, Any], *, ascii_only: bool = False) -> s
     """
     import textwrap
 
-    out = [render_text(data, ascii_only=ascii_only).rstrip("\n"), ""]
+    out = [render_text(data, ascii_only=ascii_only).rstrip("\n") + _cases_text(data), ""]
     out.append("Panels in this building (each panel's figures include what it feeds), RMS A")
     cut = "..." if ascii_only else "…"
     for row in [HEAD, *summary_rows(data)]:
@@ -109,14 +129,16 @@ def render_building_text(data: dict[str, Any], *, ascii_only: bool = False) -> s
     for p in data["building"]["panels"][1:]:
         out += ["", "=" * 78, f"{p['name']} ({p['file']})"]
         out += textwrap.wrap(_fed_from(p), width=78)
-        out += ["=" * 78, render_text(p["report"], ascii_only=ascii_only).rstrip("\n")]
+        body = render_text(p["report"], ascii_only=ascii_only).rstrip("\n")
+        out += ["=" * 78, body + _cases_text(p["report"])]
     text = "\n".join(out) + "\n"
     return to_ascii(text) if ascii_only else text
 
 
 def render_building_markdown(data: dict[str, Any]) -> str:
     """The building as Markdown: root directory and results, the panel table, each fed panel."""
-    out = [render_markdown(data).rstrip("\n"), "", "## Panels in this building", ""]
+    out = [render_markdown(data).rstrip("\n") + _cases_markdown(data)]
+    out += ["", "## Panels in this building", ""]
     out.append("Each panel's figures include what it feeds (RMS amperes).")
     out.append("")
     out.append("| " + " | ".join(HEAD) + " |")
@@ -129,7 +151,8 @@ def render_building_markdown(data: dict[str, Any]) -> str:
     for p in data["building"]["panels"][1:]:
         out += ["", "---", "", md_escape(_fed_from(p)), ""]
         # each fed panel's own directory, one heading level down
-        body = render_markdown(p["report"]).rstrip("\n").replace("\n#", "\n##")
+        body = render_markdown(p["report"]).rstrip("\n") + _cases_markdown(p["report"])
+        body = body.replace("\n#", "\n##")
         out.append("#" + body)
     return "\n".join(out) + "\n"
 

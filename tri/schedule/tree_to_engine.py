@@ -23,6 +23,7 @@ from tri.schedule.to_engine import (
     circuit_arrays,
     circuit_labels,
     measured,
+    per_circuit,
     ratings,
     system_voltages,
 )
@@ -74,6 +75,7 @@ def analyse_building(
     continuous_factor: float | None = None,
     limits: FindingLimits | None = None,
     progress: Progress | None = None,
+    scenario: str | None = None,
 ) -> TreeAnalysis:
     """Run the engine on a building: every panel's figures with everything it feeds.
 
@@ -88,13 +90,24 @@ def analyse_building(
     limits : FindingLimits, optional
     progress : callable, optional
         ``progress(sweep, step)`` during the iteration.
+    scenario : str, optional
+        Analyse the building in this scenario: every panel's loads times
+        their use factors (:mod:`tri.schedule.tree_scenarios`); site readings
+        belong to no scenario and are left out. None: the connected load.
     """
-    refusal = building_refusal((p.shown, p.schedule) for p in tree.panels)  # issue 12
+    refusal = building_refusal((p.shown, p.schedule) for p in tree.panels)
     if refusal:
         raise ValueError("; ".join(refusal))
+    inputs = tree_inputs(tree, continuous_factor)
+    readings = tuple(measured(p.schedule) for p in tree.panels)
+    if scenario is not None:
+        from tri.schedule.tree_scenarios import scenario_inputs
+
+        inputs = scenario_inputs(tree, inputs, scenario)
+        readings = tuple(None for _ in tree.panels)
     result = analyse_tree(
-        tree_inputs(tree, continuous_factor),
-        readings=tuple(measured(p.schedule) for p in tree.panels),
+        inputs,
+        readings=readings,
         phase_labels=tuple(p.schedule.labels for p in tree.panels),
         circuit_labels=tuple(circuit_labels(p.schedule) for p in tree.panels),
         iterate_voltage=iterate_voltage,
@@ -103,8 +116,10 @@ def analyse_building(
     )
     nodes = list(result.nodes)
     for i, p in enumerate(tree.panels):
+        # one current per circuit (a breaker's largest pole) and the shared-neutral
+        # findings, as for the panel alone
+        a = per_circuit(nodes[i].analysis, p.schedule)
         if i > 0 and p.schedule.supply is not None:
-            a = nodes[i].analysis
             a = dataclasses.replace(a, findings=(*a.findings, _unused_supply(tree, i)))
-            nodes[i] = dataclasses.replace(nodes[i], analysis=a)
+        nodes[i] = dataclasses.replace(nodes[i], analysis=a)
     return dataclasses.replace(result, nodes=tuple(nodes))

@@ -355,20 +355,34 @@ def rebalancer_refusal(schedule: Schedule) -> list[str]:
 def building_refusal(panels: Iterable[tuple[str, Schedule]]) -> list[str]:
     """What in a building (``(file, schedule)`` per panel) the roll-up cannot honour yet.
 
-    The building's roll-up takes every panel as a balanced wye source with
-    one current per circuit; a high-leg delta, a breaker with a load per leg
-    or a shared neutral would come out wrong, so such a building is refused
-    (each panel alone is still reported in full).
+    The roll-up carries breakers with a neutral, per-leg loads, shared
+    neutrals and high-leg delta panels as each panel alone is computed
+    (:mod:`tri.engine.tree_rows`). A transformer fed from a high-leg delta
+    panel, or with a high-leg delta secondary, is not modelled (its
+    sequence transfer assumes wye phasors on both sides): such a building is
+    refused, naming the file and the feeder circuit (each panel alone is
+    still reported in full).
     """
+    from tri.schedule.systems import SYSTEMS
+
     out = []
     for shown, schedule in panels:
-        if schedule.panel.effective_high_leg is not None:
-            out.append(f"{shown}: a high-leg delta panel is not yet supported in a building")
-        if any(c.has_legs or c.shared_neutral is not None for c in schedule.circuits):
-            out.append(
-                f"{shown}: breakers with a neutral, one load per leg or shared neutrals are not "
-                "yet supported in a building"
-            )
+        high = schedule.panel.effective_high_leg is not None
+        for c in schedule.circuits:
+            tx = None if c.feed is None else c.feed.transformer
+            if tx is None:
+                continue
+            secondary = SYSTEMS.get(tx.secondary)
+            if high or (secondary is not None and secondary.high_leg_delta):
+                side = (
+                    "fed from this high-leg delta panel"
+                    if high
+                    else (f"with a {tx.secondary} high-leg delta secondary")
+                )
+                out.append(
+                    f"{shown}: {_where(c, schedule)}: a transformer {side} is not yet "
+                    "supported in a building"
+                )
     return out
 
 

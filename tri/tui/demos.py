@@ -9,10 +9,12 @@ from tri.schedule.load import load_schedule
 
 
 def demo_folder() -> Path:
-    """Where the demo panels live (``panels_demo/`` at the repository root)."""
-    import tri
+    """Where the demo panels live: ``tri/panels_demo/``, shipped inside the package.
 
-    return Path(tri.__file__).resolve().parents[1] / "panels_demo"
+    The same folder in a source checkout and in an installed wheel (it is
+    package data, see ``pyproject.toml``).
+    """
+    return Path(__file__).resolve().parents[1] / "panels_demo"
 
 
 def demo_files() -> list[Path]:

@@ -1,7 +1,7 @@
 """Generate an invented logger export for the garage_logged_208 demo.
 
-    python panels_demo/make_garage_log.py                       # a week of 1-minute rows
-    python panels_demo/make_garage_log.py --minutes 5 -o panels_demo/garage_logged_week.csv
+    python tri/panels_demo/make_garage_log.py                       # a week of 1-minute rows
+    python tri/panels_demo/make_garage_log.py --minutes 5 -o tri/panels_demo/garage_logged_week.csv
 
 The committed demo log (``garage_logged_week.csv``) is a week at 5-minute
 intervals written by the second command; the first writes the week of
