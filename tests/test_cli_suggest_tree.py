@@ -191,6 +191,10 @@ def test_time_limit_gives_best_found_with_a_bound(tmp_path):
     assert "not proven optimal" in d["status_text"]
 
 
+#: A search of the big building that runs for minutes unless stopped.
+SEARCH_ARGS = ("--target", "0.5", "--child-target", "1", "--time-limit", "120", "--format", "json")
+
+
 def _read_until(fd: int, word: bytes, limit_s: float) -> bytes:
     """Bytes read from ``fd`` until ``word`` appears (or ``limit_s`` passes)."""
     seen, end = b"", time.monotonic() + limit_s
@@ -209,8 +213,7 @@ def test_ctrl_c_ends_with_the_best_so_far(tmp_path):
     root = _big_building(tmp_path)
     master, slave = pty.openpty()  # standard error on a terminal, so progress is shown
     proc = subprocess.Popen(
-        [sys.executable, "-m", "tri", "suggest", str(root), "--target", "0.5"]
-        + ["--child-target", "1", "--time-limit", "120", "--format", "json"],
+        [sys.executable, "-m", "tri", "suggest", str(root), *SEARCH_ARGS],
         stdout=subprocess.PIPE,
         stderr=slave,
         cwd=ROOT,
