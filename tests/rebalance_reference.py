@@ -163,11 +163,15 @@ def enumerate_panel(schedule: Schedule, free: list[int]) -> Enumerated:
     old = [schedule.circuits[i].slot for i in free]
     moved = np.zeros(n_arr, dtype=int)
     codes = np.zeros((n_arr, len(free)), dtype=int)
-    first_phase = np.array(
-        [0, *(slot_phases(s, 1)[0] for s in range(1, schedule.panel.spaces + 1))]
-    )
-    for k, _i in enumerate(free):
-        codes[:, k] = first_phase[slots[:, k]]
+    rc = schedule.panel.right_column
+    for k, i in enumerate(free):
+        # the set of phases the breaker takes in each first slot (a C-B-A right column
+        # puts a 2-pole breaker whose first pole is on C on B-C, the left column on C-A)
+        poles = schedule.circuits[i].poles
+        code = np.zeros(schedule.panel.spaces + 1, dtype=int)
+        for s in range(1, schedule.panel.spaces + 1):
+            code[s] = sum(1 << p for p in slot_phases(s, poles, rc))
+        codes[:, k] = code[slots[:, k]]
         if old[k] is not None:
             moved += slots[:, k] != old[k]
     uniq, back = np.unique(codes, axis=0, return_inverse=True)
@@ -203,7 +207,8 @@ def _engine(schedule: Schedule, free: list[int], first_slot: np.ndarray, factors
         c = schedule.circuits[i]
         for s in np.unique(first_slot[:, k]):
             rows = first_slot[:, k] == s
-            conn[rows, i], pp[rows, i], qq[rows, i] = connection_of(c.at_slot(int(s)))
+            placed = schedule.placed(c.at_slot(int(s)))  # the panel's own geometry
+            conn[rows, i], pp[rows, i], qq[rows, i] = connection_of(placed)
     batch = CircuitArrays(
         s_va=np.tile(np.asarray(ca.s_va) * factors, (n_arr, 1)),
         connection=conn,

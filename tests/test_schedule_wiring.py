@@ -10,6 +10,7 @@ from __future__ import annotations
 
 import subprocess
 import sys
+from dataclasses import replace
 from pathlib import Path
 
 import pytest
@@ -216,6 +217,8 @@ def test_rebalancer_refusal_names_what_it_cannot_honour() -> None:
     assert any("shared-neutral groups are not yet supported" in r for r in reasons)
     plain = parse_schedule(_panel(circuits='[[circuit]]\nslot = 1\nname = "x"\nload_va = 1\n'))
     assert rebalancer_refusal(plain.schedule) == []
+    cba = replace(plain.schedule, panel=replace(plain.schedule.panel, right_column="CBA"))
+    assert rebalancer_refusal(cba) == []  # a C-B-A right column is honoured
 
 
 def test_rcd_groups_on_a_rail_board_load() -> None:

@@ -1,16 +1,19 @@
 """Where the free breakers of a two-column panel can go: free slots, windows, homes.
 
 The geometry is the schedule's (:mod:`tri.schedule.slots`): slot ``n`` is
-on the phase of its row, a breaker of ``k`` poles in slot ``n`` takes
-``n, n + 2, ..., n + 2(k - 1)``. Here it is seen from the rebalancer:
+on the phase of its row as the panel reads it
+(:func:`~tri.schedule.slots.slot_phase` with the panel's ``right_column``:
+A-B-C or C-B-A down the right column), a breaker of ``k`` poles in slot
+``n`` takes ``n, n + 2, ..., n + 2(k - 1)``. Here it is seen from the rebalancer:
 
 * *fixed* slots are taken by breakers that do not move in this search
   (locked ones, and in place-new mode every placed one); every other slot
   of the panel is *open*;
 * a *window* is a first slot where a breaker of 2 or 3 poles fits in open
   slots; its *kind* is the option it gives (:mod:`tri.rebalance.problem`):
-  the phase of its first row for 2 poles (so the pair A-B, B-C or C-A), 0
-  for 3 poles; windows are listed for the pole counts free breakers have;
+  the pair of phases its two rows take for 2 poles (the index of A-B, B-C
+  or C-A in :data:`tri.rebalance.problem.PAIRS`), 0 for 3 poles; windows
+  are listed for the pole counts free breakers have;
 * the *home* of a placed free breaker is the slots it takes now.
 
 Rail boards have no geometry (:func:`slot_geometry` returns None there).
@@ -24,7 +27,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from tri.schedule.model import Schedule
-from tri.schedule.slots import fits, occupied_slots, slot_phase
+from tri.schedule.slots import RIGHT_ABC, fits, occupied_slots, pole_phases, slot_phase
 
 
 @dataclass(frozen=True)
@@ -38,7 +41,7 @@ class Window:
     poles : int
         2 or 3 [-].
     kind : int
-        Option kind it gives: start phase (0, 1, 2) for 2 poles, 0 for 3 [-].
+        Option kind it gives: pair index (0, 1, 2) for 2 poles, 0 for 3 [-].
     cells : tuple of int
         Every slot the breaker takes.
     """
@@ -66,6 +69,8 @@ class SlotGeometry:
     homes : tuple of (tuple of int or None)
         Per free breaker (in the problem's order): the slots it takes now,
         None for a new circuit.
+    right_column : str
+        The right column's phase order (``"ABC"`` or ``"CBA"``).
     """
 
     spaces: int
@@ -73,6 +78,11 @@ class SlotGeometry:
     open_per_phase: np.ndarray
     windows: tuple[Window, ...]
     homes: tuple[tuple[int, ...] | None, ...]
+    right_column: str = RIGHT_ABC
+
+    def phase_of(self, slot: int) -> int:
+        """Phase index of ``slot`` as this panel reads it [-]."""
+        return slot_phase(slot, self.right_column)
 
     def occupant(self) -> dict[int, int]:
         """Slot -> free breaker (problem index) that holds it now."""
@@ -88,9 +98,16 @@ class SlotGeometry:
         return None if home is None else home[0]
 
 
-def window_kind(first: int, poles: int) -> int:
-    """Option kind of a multi-pole breaker in ``first``: its start phase (2 poles), 0 (3)."""
-    return slot_phase(first) if poles == 2 else 0
+def window_kind(first: int, poles: int, right_column: str = RIGHT_ABC) -> int:
+    """Option kind of a multi-pole breaker in ``first``: its pair (2 poles), 0 (3 poles).
+
+    The pair index is that of the phases the two poles take (in either
+    order: a right column read C-B-A gives C-B, B-A, A-C down the column).
+    """
+    if poles != 2:
+        return 0
+    p, q = pole_phases(first, 2, right_column)
+    return {frozenset((0, 1)): 0, frozenset((1, 2)): 1, frozenset((2, 0)): 2}[frozenset((p, q))]
 
 
 def slot_geometry(schedule: Schedule, free: Sequence[int]) -> SlotGeometry | None:
@@ -110,20 +127,21 @@ def slot_geometry(schedule: Schedule, free: Sequence[int]) -> SlotGeometry | Non
     if not schedule.panel.uses_slots:
         return None
     spaces = schedule.panel.spaces
+    rc = schedule.panel.right_column
     free_set = set(int(i) for i in free)
     fixed: set[int] = set()
     for idx, c in enumerate(schedule.circuits):
         if c.slot is not None and idx not in free_set:
             fixed.update(occupied_slots(c.slot, c.poles))
     open_cells = np.array([s for s in range(1, spaces + 1) if s not in fixed], dtype=int)
-    per_phase = np.bincount([slot_phase(int(s)) for s in open_cells], minlength=3)
+    per_phase = np.bincount([slot_phase(int(s), rc) for s in open_cells], minlength=3)
     pole_counts = sorted({schedule.circuits[int(i)].poles for i in free} - {1})
     windows = []
     for poles in pole_counts:
         for first in range(1, spaces + 1):
             cells = occupied_slots(first, poles)
             if fits(first, poles, spaces) and not fixed.intersection(cells):
-                windows.append(Window(first, poles, window_kind(first, poles), cells))
+                windows.append(Window(first, poles, window_kind(first, poles, rc), cells))
     homes = []
     for i in free:
         c = schedule.circuits[int(i)]
@@ -134,13 +152,14 @@ def slot_geometry(schedule: Schedule, free: Sequence[int]) -> SlotGeometry | Non
         open_per_phase=per_phase.astype(int),
         windows=tuple(windows),
         homes=tuple(homes),
+        right_column=rc,
     )
 
 
 def disjoint_window_counts(geo: SlotGeometry) -> np.ndarray:
     """Most windows of each type that fit side by side in the open slots (int ndarray, (4,)).
 
-    Types: 2 poles starting on phase A, B, C, and 3 poles. Windows of one
+    Types: 2 poles on the pair A-B, B-C, C-A (:func:`window_kind`), and 3 poles. Windows of one
     type in one column never overlap when their first rows are 3 apart,
     so per column and type the count is found by a greedy scan of runs of
     open rows. A bound used by the heuristic's capacity test only.
@@ -152,7 +171,7 @@ def disjoint_window_counts(geo: SlotGeometry) -> np.ndarray:
         free = [s in open_set for s in slots]
         for r in range(len(slots) - 1):
             if free[r] and free[r + 1]:
-                out[slot_phase(slots[r])] += 1
+                out[window_kind(slots[r], 2, geo.right_column)] += 1
         run = 0
         for f in [*free, False]:
             if f:

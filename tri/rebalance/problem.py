@@ -72,7 +72,7 @@ if TYPE_CHECKING:
 
 #: The three phase pairs of 2-pole options, in row order of a two-column panel [-].
 PAIRS: tuple[tuple[int, int], ...] = ((0, 1), (1, 2), (2, 0))
-#: Capacity types of the heuristic: 2-pole windows starting on A, B, C; 3-pole windows [-].
+#: Capacity types of the heuristic: 2-pole windows on the pairs A-B, B-C, C-A; 3-pole windows [-].
 WINDOW_TYPES = 4
 #: "No limit" in the capacity arrays of a rail board [-].
 _UNLIMITED = np.iinfo(np.int32).max // 4

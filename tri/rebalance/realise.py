@@ -38,7 +38,7 @@ from tri.rebalance.geometry import SlotGeometry, Window
 from tri.rebalance.model import Model
 from tri.rebalance.problem import Problem
 from tri.rebalance.slot_model import add_slots
-from tri.schedule.slots import occupied_slots, slot_distance, slot_phase
+from tri.schedule.slots import occupied_slots, slot_distance
 
 #: Time limit of the realisation program [s] (it is small: slots only).
 REALISE_TIME_S = 10.0
@@ -136,7 +136,7 @@ def arrange(
         return None
     left = [int(c) for c in geo.open_cells if int(c) not in taken]
     for p, bs in singles.items():
-        cells = [c for c in left if slot_phase(c) == p]
+        cells = [c for c in left if geo.phase_of(c) == p]
         if len(cells) < len(bs):
             return None
         cost = np.array([[_cell_cost(geo, b, c, scale) for c in cells] for b in bs])

@@ -61,7 +61,6 @@ from tri.rebalance.electrical import Electrical
 from tri.rebalance.geometry import Window
 from tri.rebalance.model import Model
 from tri.rebalance.problem import Problem
-from tri.schedule.slots import slot_phase
 
 
 @dataclass(frozen=True)
@@ -201,12 +200,12 @@ def _phase_rows(m: Model, pr: Problem, el: Electrical, stay_col, windows, u0) ->
         vals = [1.0] * len(cols)
         for b in range(pr.n_free):
             if pr.poles[b] > 1 and pr.movable[b]:
-                n_p = sum(1 for c in geo.homes[b] or () if slot_phase(c) == p)
+                n_p = sum(1 for c in geo.homes[b] or () if geo.phase_of(c) == p)
                 if n_p:
                     cols.append(stay_col[b])
                     vals.append(float(n_p))
         for k, w in enumerate(windows):
-            n_p = sum(1 for c in w.cells if slot_phase(c) == p)
+            n_p = sum(1 for c in w.cells if geo.phase_of(c) == p)
             if n_p:
                 cols.append(u0 + k)
                 vals.append(float(n_p))

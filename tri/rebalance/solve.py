@@ -246,7 +246,7 @@ def suggest(
     ValueError
         For options the panel cannot take (a neutral limit on a 3-wire system), or
         wiring it cannot honour yet (shared neutrals, breakers with a load per leg,
-        a high leg, a C-B-A right column, a reach limit, RCD groups:
+        a high leg, a reach limit, RCD groups:
         :func:`tri.schedule.wiring.rebalancer_refusal`).
     Cancelled
         When the cancel hook fired.
@@ -285,7 +285,7 @@ def _moves_for(pr: Problem, plan: Plan) -> tuple[list[Move], list]:
             c = circuits[idx]
             if c.slot != slot:
                 changing[idx] = slot
-                new = c.at_slot(slot)
+                new = sched.placed(c.at_slot(slot))
                 moves[idx] = Move(idx, c.name, c.poles, c.slot, slot, c.phases, new.phases)
         steps = order_work(sched, changing)
     else:

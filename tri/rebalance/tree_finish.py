@@ -38,7 +38,7 @@ def panel_moves(pr: Problem, plan: Plan, schedule: Schedule) -> tuple[list[Move]
             c = circuits[idx]
             if c.slot != slot:
                 changing[idx] = slot
-                new = c.at_slot(slot)
+                new = schedule.placed(c.at_slot(slot))
                 moves[idx] = Move(idx, c.name, c.poles, c.slot, slot, c.phases, new.phases)
         steps = order_work(schedule, changing)
     else:

@@ -153,6 +153,12 @@ def wired_refusal(shown: str, schedule: Schedule) -> list[str]:
             f'{shown}: [panel] system = "{schedule.panel.system}": high-leg delta panels are '
             "not yet supported by the building rebalancer"
         )
+    if schedule.panel.right_column != "ABC":
+        out.append(
+            f'{shown}: [panel] right_column = "{schedule.panel.right_column}": a right column '
+            "read C-B-A is not yet supported by the building rebalancer (the single-panel "
+            "rebalancer honours it)"
+        )
     kinds = (
         ("breakers with a neutral or one load per leg", lambda c: c.has_legs),
         ("shared-neutral groups", lambda c: c.shared_neutral is not None),

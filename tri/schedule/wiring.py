@@ -30,7 +30,7 @@ from dataclasses import dataclass
 
 from tri.schedule.errors import ScheduleIssue
 from tri.schedule.model import Circuit, Schedule
-from tri.schedule.slots import PHASES, RIGHT_ABC, TWO_COLUMN, pole_phases
+from tri.schedule.slots import PHASES, TWO_COLUMN, pole_phases
 
 #: Leg kinds.
 LEG_TO_NEUTRAL = "line-to-neutral"
@@ -329,11 +329,6 @@ def rebalancer_refusal(schedule: Schedule) -> list[str]:
         out.append(
             f'[panel] system = "{panel.system}": high-leg delta panels are not yet supported '
             "by the rebalancer (it could move a 120 V circuit onto the high leg)"
-        )
-    if panel.right_column != RIGHT_ABC:
-        out.append(
-            f'[panel] right_column = "{panel.right_column}": a right column read C-B-A is not '
-            "yet supported by the rebalancer"
         )
     if panel.max_row_shift is not None:
         out.append("[panel] max_row_shift: reach limits are not yet honoured by the rebalancer")

@@ -1,0 +1,165 @@
+"""The rebalancer on panels as they are wired, against every arrangement (issue 12).
+
+Each constraint the rebalancer now honours is checked the way
+``tests/test_rebalance_enumeration.py`` checks the plain panels: dense
+small two-column panels (:mod:`rebalance_sweep`), every mode asked, and
+every ``optimal``, ``infeasible``, ``already-balanced`` and bound compared
+with the minimum over every physical arrangement the reference lists
+(:mod:`rebalance_reference`, which uses nothing of the rebalancer and reads
+the phases of each slot from :mod:`tri.schedule.slots` with the panel's
+``right_column``). [computed]
+
+Tolerance: as in the plain sweep (``rebalance_sweep.EDGE``, a relative 1e-7).
+"""
+
+from __future__ import annotations
+
+import json
+import subprocess
+import sys
+from dataclasses import replace
+from pathlib import Path
+
+import numpy as np
+import pytest
+from rebalance_reference import enumerate_panel, free_breakers
+from rebalance_sweep import cases_for, check_case, dense_panel
+
+from tri.native_output import native_stdout_to_devnull
+from tri.rebalance import suggest
+from tri.schedule.load import load_schedule
+from tri.schedule.model import Schedule
+from tri.schedule.slots import RIGHT_CBA, slot_phases
+from tri.schedule.wiring import rebalancer_refusal
+
+#: Panels per chunk, chunks of the product's path and of the programs alone [-].
+CHUNK, CHUNKS, MILP_CHUNKS = 8, 3, 1
+
+
+def cba(schedule: Schedule) -> Schedule:
+    """The same breakers in a panelboard whose right column reads C-B-A from the top."""
+    panel = replace(schedule.panel, right_column=RIGHT_CBA)
+    out = replace(schedule, panel=panel)
+    return replace(out, circuits=tuple(out.placed(c) for c in out.circuits))
+
+
+def _cba_panel(seed: int):
+    rng = np.random.default_rng(seed)
+    return rng, cba(dense_panel(rng, int(rng.choice([8, 10, 12]))))
+
+
+def _false_claims(seed: int, sched: Schedule, **extra) -> list:
+    rng = np.random.default_rng(seed + 7)
+    listed: dict[tuple[int, ...], object] = {}
+    false = []
+    for case in cases_for(rng, sched):
+        with native_stdout_to_devnull():
+            s = suggest(case.schedule, case.options(**extra))
+        free = tuple(free_breakers(sched, case.mode, case.place_new))
+        if free not in listed:
+            listed[free] = enumerate_panel(sched, list(free))
+        false += [(seed, case.mode, s.status, e) for e in check_case(case, s, listed[free])]
+        for m in s.moves:  # each move's phases are those of its new slot as the panel reads it
+            c = sched.circuits[m.circuit_index]
+            if m.to_slot is not None and tuple(m.to_phases) != slot_phases(
+                m.to_slot, c.poles, RIGHT_CBA
+            ):
+                false.append((seed, case.mode, s.status, f"{m.circuit}: phases {m.to_phases}"))
+    return false
+
+
+def test_the_reference_reads_the_right_column_c_b_a() -> None:
+    """The reference's geometry is the schedule's: slot 2 on C, slot 4 on B, slot 6 on A."""
+    # [common practice] a panelboard read C-B-A down its right column
+    assert [slot_phases(s, 1, RIGHT_CBA)[0] for s in (1, 2, 3, 4, 5, 6)] == [0, 2, 1, 1, 2, 0]
+    assert set(slot_phases(2, 2, RIGHT_CBA)) == {1, 2}  # C-B: the pair B-C
+
+
+@pytest.mark.parametrize("chunk", range(CHUNKS))
+def test_every_claim_is_true_with_a_c_b_a_right_column(chunk: int) -> None:
+    false = []
+    for seed in range(500 + chunk * CHUNK, 500 + (chunk + 1) * CHUNK):
+        _, sched = _cba_panel(seed)
+        assert rebalancer_refusal(sched) == []
+        false += _false_claims(seed, sched, time_limit_s=10.0, floor_gap=0.0)
+    assert not false
+
+
+@pytest.mark.parametrize("chunk", range(MILP_CHUNKS))
+def test_every_claim_of_the_programs_alone_is_true_with_c_b_a(chunk: int) -> None:
+    false = []
+    for seed in range(900 + chunk * CHUNK, 900 + (chunk + 1) * CHUNK):
+        _, sched = _cba_panel(seed)
+        false += _false_claims(seed, sched, time_limit_s=0.5, floor_gap=0.0, list_plans=False)
+    assert not false
+
+
+def test_the_c_b_a_check_can_fail() -> None:
+    """The same plans judged with the A-B-C geometry are caught: the check is not vacuous."""
+    for seed in range(40):
+        rng, sched = _cba_panel(seed)
+        case = next(c for c in cases_for(rng, sched) if c.mode == "relayout")
+        with native_stdout_to_devnull():
+            s = suggest(case.schedule, case.options(floor_gap=0.0))
+        abc = replace(sched, panel=replace(sched.panel, right_column="ABC"))
+        abc = replace(abc, circuits=tuple(abc.placed(c) for c in abc.circuits))
+        enum = enumerate_panel(abc, free_breakers(abc, case.mode, case.place_new))
+        if check_case(case, s, enum):
+            return
+    pytest.fail("no C-B-A plan differs from the A-B-C reading")
+
+
+CBA_PANEL = """format = 1
+[panel]
+name = "LP-W"
+system = "208Y/120"
+spaces = 12
+bus_a = 100
+right_column = "CBA"
+
+[[circuit]]
+slot = 1
+name = "Lights 1"
+load_va = 3000
+
+[[circuit]]
+slot = 7
+name = "Lights 2"
+load_va = 3000
+
+[[circuit]]
+slot = 2
+name = "Heater"
+load_va = 2000
+
+[[circuit]]
+slot = 8
+name = "Sign"
+load_va = 500
+"""
+
+
+def test_cli_suggest_on_a_c_b_a_panel(tmp_path: Path) -> None:
+    """``tri suggest`` on a C-B-A panel: every move's phases are those of its new slot.
+
+    [computed] A (slots 1, 7) carries 6000 VA; C 2500 VA (slot 2, and slot
+    8: rows 1-4 of a C-B-A right column read C, B, A, C); nothing on B. The
+    best single relocation moves a 3000 VA light onto B (3000/3000/2500 VA).
+    """
+    p = tmp_path / "p.toml"
+    p.write_text(CBA_PANEL, encoding="utf-8")
+    sched = load_schedule(p).schedule
+    assert [c.phases for c in sched.circuits] == [(0,), (0,), (2,), (2,)]
+    out = subprocess.run(
+        [sys.executable, "-m", "tri", "suggest", str(p), "--max-moves", "1", "--format", "json"],
+        capture_output=True,
+        text=True,
+        timeout=60,
+    )
+    assert out.returncode == 0, out.stderr
+    data = json.loads(out.stdout)
+    assert data["status"] == "optimal"
+    (move,) = data["moves"]
+    assert move["circuit"] in ("Lights 1", "Lights 2")
+    assert slot_phases(move["to_slot"], 1, RIGHT_CBA) == (1,)  # a slot on B
+    assert move["to_phases"] == "B"
