@@ -183,12 +183,11 @@ async def open_log(path: Path) -> float:
         return (time.perf_counter() - t) * 1000
 
 
-def log_cases(folder: Path) -> list[tuple[str, Path]]:
-    """The demo garage, and a schedule over 200 000 rows with a change of offset."""
+def log_cases(folder: Path, rows: int = 200_000) -> list[tuple[str, Path]]:
+    """The demo garage, and a schedule over ``rows`` rows with a change of offset."""
     import numpy as np
 
     demo = Path(__file__).parents[1] / "tri" / "panels_demo" / "garage_logged_208.toml"
-    rows = 200_000
     k = np.arange(rows)
     utc = np.datetime64("2024-11-01T00:00") + k.astype("timedelta64[m]")
     later = k >= rows // 2
@@ -205,7 +204,7 @@ def log_cases(folder: Path) -> list[tuple[str, Path]]:
     )
     return [
         ("garage week, 2016 rows", demo),
-        ("200 000 rows, offset changes", folder / "rows.toml"),
+        (f"{rows:_} rows, offset changes".replace("_", " "), folder / "rows.toml"),
     ]
 
 
@@ -253,7 +252,7 @@ def main(argv: list[str] | None = None) -> int:
             times = asyncio.run(edit_child(root, edits))
             print(f"{'  ' + name:<44}{statistics.median(times):>10.1f}")
         print(f"\n{'log view: key to picture':<44}{'ms':>10}")
-        for name, path in log_cases(Path(tmp)):
+        for name, path in log_cases(Path(tmp), 20_000 if args.quick else 200_000):
             runs = [asyncio.run(open_log(path)) for _ in range(1 if args.quick else 3)]
             print(f"{'  ' + name:<44}{statistics.median(runs):>10.1f}")
     return 0

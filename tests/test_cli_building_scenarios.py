@@ -172,3 +172,20 @@ def test_leg_rows_take_their_circuits_factor(tmp_path):
     # rows: the three circuits, then the 2-pole breaker's second leg
     assert list(row_factors(lp, "night")) == [2.0, 1.0, 0.25, 0.25]
     assert list(row_factors(lp, "late")) == [1.0, 1.0, 1.0, 1.0]
+
+
+def test_finding_options_reach_every_panel_of_the_building(folder):
+    # --max-phase-kva 1: MDP's phases carry 1.2, 2.4 and 1.2 kVA (1.2 kVA apart) and LP's
+    # 1.2, 2.4 and 0 kVA (2.4 apart), both over the 1 kVA cap [computed]
+    def kva_findings(*options: str) -> list[str]:
+        run = tri("report", str(folder / "mdp.toml"), "--format", "json", *options)
+        assert run.returncode == 0, run.stderr
+        panels = json.loads(run.stdout)["building"]["panels"]
+        return [
+            f["message"] for p in panels for f in p["report"]["findings"] if "kVA" in f["message"]
+        ]
+
+    assert kva_findings() == []
+    found = kva_findings("--max-phase-kva", "1")
+    assert len(found) == 2
+    assert "1.20 kVA between" in found[0] and "2.40 kVA between" in found[1]

@@ -10,6 +10,9 @@ LP-2), and the building search must find a plan with exactly their sum.
 from __future__ import annotations
 
 import json
+import os
+import pty
+import select
 import signal
 import subprocess
 import sys
@@ -188,32 +191,43 @@ def test_time_limit_gives_best_found_with_a_bound(tmp_path):
     assert "not proven optimal" in d["status_text"]
 
 
+#: A search of the big building that runs for minutes unless stopped.
+SEARCH_ARGS = ("--target", "0.5", "--child-target", "1", "--time-limit", "120", "--format", "json")
+
+
+def _read_until(fd: int, word: bytes, limit_s: float) -> bytes:
+    """Bytes read from ``fd`` until ``word`` appears (or ``limit_s`` passes)."""
+    seen, end = b"", time.monotonic() + limit_s
+    while word not in seen and time.monotonic() < end:
+        ready, _, _ = select.select([fd], [], [], 0.5)
+        if ready:
+            try:
+                seen += os.read(fd, 4096)
+            except OSError:  # the child closed its terminal
+                break
+    return seen
+
+
 def test_ctrl_c_ends_with_the_best_so_far(tmp_path):
+    """Ctrl+C once the search is under way (as on a terminal: the progress line shows)."""
     root = _big_building(tmp_path)
+    master, slave = pty.openpty()  # standard error on a terminal, so progress is shown
     proc = subprocess.Popen(
-        [
-            sys.executable,
-            "-m",
-            "tri",
-            "suggest",
-            str(root),
-            "--target",
-            "0.5",
-            "--child-target",
-            "1",
-            "--time-limit",
-            "120",
-            "--format",
-            "json",
-        ],
+        [sys.executable, "-m", "tri", "suggest", str(root), *SEARCH_ARGS],
         stdout=subprocess.PIPE,
-        stderr=subprocess.PIPE,
-        text=True,
+        stderr=slave,
         cwd=ROOT,
     )
-    time.sleep(3.0)
-    proc.send_signal(signal.SIGINT)
-    out, err = proc.communicate(timeout=60)
+    os.close(slave)
+    try:
+        started = _read_until(master, b"bounding", 120)
+        assert b"bounding" in started, started  # the search is under way
+        proc.send_signal(signal.SIGINT)
+        out, _ = proc.communicate(timeout=120)
+        err = (started + _read_until(master, b"best plan so far", 10)).decode()
+    finally:
+        os.close(master)
+        proc.kill()
     d = json.loads(out)
     if d["stopped"] is None:  # the search settled before the signal: nothing to check
         assert d["status"] in ("optimal", "infeasible")

@@ -257,3 +257,14 @@ def test_unreadable_journal_is_ignored(small: Path) -> None:
     target.parent.mkdir(parents=True, exist_ok=True)
     target.write_text("{not json")
     assert read_journal(target) is None
+
+
+def test_demos_of_one_panel_are_told_apart_by_their_file() -> None:
+    """Two demos of the same panel (scheduled, and with its log) get their file names."""
+    labels = demos.demo_labels(DEMOS)
+    assert len(set(labels)) == len(labels), labels
+    garages = [lab for lab, p in zip(labels, DEMOS, strict=True) if p.stem.startswith("garage")]
+    assert any(lab.endswith("garage_logged_208") for lab in garages), garages
+    # a label that is already unique keeps its short form
+    bakery = next(lab for lab, p in zip(labels, DEMOS, strict=True) if p.stem == "bakery_208")
+    assert not bakery.endswith("bakery_208")

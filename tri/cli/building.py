@@ -73,9 +73,12 @@ class BuildingParts:
 
 
 def building_report_all(
-    path: str, *, iterate: bool, continuous_factor: float | None
+    path: str, *, iterate: bool, continuous_factor: float | None, limits: Any = None
 ) -> tuple[dict[str, Any], BuildingParts]:
     """The building's report data (every scenario's figures included) and its parts.
+
+    ``limits`` (:class:`tri.engine.limits.FindingLimits`, None: the defaults)
+    sets every panel's findings, as for one panel.
 
     The connected load and each scenario of the building
     (:mod:`tri.schedule.tree_scenarios`) are analysed over the whole tree.
@@ -92,7 +95,7 @@ def building_report_all(
     names = building_scenario_names(tree)
     try:
         result = analyse_building(
-            tree, iterate_voltage=iterate, continuous_factor=continuous_factor
+            tree, iterate_voltage=iterate, continuous_factor=continuous_factor, limits=limits
         )
         scenarios = tuple(
             (
@@ -101,6 +104,7 @@ def building_report_all(
                     tree,
                     iterate_voltage=iterate,
                     continuous_factor=continuous_factor,
+                    limits=limits,
                     scenario=name,
                 ),
             )
@@ -116,7 +120,8 @@ def building_report_all(
                 f"{r.solution.iterations} sweeps{case}; voltages are unreliable.",
                 file=sys.stderr,
             )
-    data = building_data(result, tree, caution=SAFETY_CAUTION, scenarios=scenarios)
+    headroom = {} if limits is None else {"headroom_pct": limits.headroom_pct}
+    data = building_data(result, tree, caution=SAFETY_CAUTION, scenarios=scenarios, **headroom)
     return data, BuildingParts(tree, scenarios)
 
 

@@ -154,7 +154,9 @@ def build_all(
     limits = limits or FindingLimits()
     loaded = load(path)
     if is_building_root(loaded):
-        return building_report_all(path, iterate=iterate, continuous_factor=continuous_factor)
+        return building_report_all(
+            path, iterate=iterate, continuous_factor=continuous_factor, limits=limits
+        )
     try:
         analysis = analyse_schedule(
             loaded.schedule,

@@ -5,7 +5,7 @@ adds the scheduled VA per phase, continuous loads at the continuous factor.
 A panel that feeds others carries its children's calculated loads on its
 feeder circuits, so its sizing figure must include them: this module rolls
 the weighted VA up the tree with the same convention as the schedule VA
-(:func:`tri.engine.tree.roll_up_phase_va`: phase by phase without a
+(:func:`tri.engine.tree_va.roll_up_phase_va`: phase by phase without a
 transformer; through one, the child's total shared among the primary phases
 in proportion to their fundamental currents), and the maximum unbalanced
 line-to-neutral load (NEC 220.61) phase by phase wherever a neutral carries
@@ -33,8 +33,9 @@ from tri.engine.inputs import LINE_TO_NEUTRAL, UNPLACED
 from tri.engine.legs import breaker_calculated_a
 from tri.engine.loading import circuit_calculated_a, continuous_weights, phase_voltage_magnitudes
 from tri.engine.phasors import schedule_va
-from tri.engine.tree import TreeSolution, roll_up_phase_va
+from tri.engine.tree import TreeSolution
 from tri.engine.tree_inputs import PackedTree
+from tri.engine.tree_va import roll_up_phase_va
 
 
 def tree_code_figures(tree: PackedTree, sol: TreeSolution) -> dict[str, np.ndarray]:

@@ -374,7 +374,7 @@ def analyse_tree(
     Raises
     ------
     ValueError
-        For a malformed tree (:func:`tri.engine.tree_inputs.check_tree`).
+        For a malformed tree (:func:`tri.engine.tree_checks.check_tree`).
     """
     limits = limits or FindingLimits()
     packed = pack_tree(tree)

@@ -43,6 +43,7 @@ from __future__ import annotations
 
 from typing import Any
 
+from tri.engine.limits import DESIGN_HEADROOM_PCT
 from tri.engine.tree_results import FeederResult, TreeAnalysis
 from tri.report.data import num, report_data
 from tri.report.over_time_data import scenarios_data
@@ -113,6 +114,7 @@ def building_data(
     *,
     caution: str,
     scenarios: tuple[tuple[str, TreeAnalysis], ...] = (),
+    headroom_pct: float = DESIGN_HEADROOM_PCT,
 ) -> dict[str, Any]:
     """The report of a building as plain data (module docstring for the keys).
 
@@ -129,6 +131,8 @@ def building_data(
         (:mod:`tri.schedule.tree_scenarios`); each panel's report then has
         ``scenarios`` (:func:`tri.report.over_time_data.scenarios_data`: its
         figures in every case, the worst deciding).
+    headroom_pct : float
+        The design headroom behind the word NEAR [%].
 
     Returns
     -------
@@ -137,7 +141,9 @@ def building_data(
     """
     panels: list[dict[str, Any]] = []
     for i, (node, p) in enumerate(zip(result.nodes, tree.panels, strict=True)):
-        report = report_data(node.analysis, p.schedule, caution=caution, file=p.shown)
+        report = report_data(
+            node.analysis, p.schedule, caution=caution, file=p.shown, headroom_pct=headroom_pct
+        )
         if p.parent is not None:
             report["supply"] = None  # its own [supply] is not used in the building
             if report["voltage"] is not None:

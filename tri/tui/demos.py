@@ -23,6 +23,19 @@ def demo_files() -> list[Path]:
     return sorted(folder.glob("*.toml")) if folder.is_dir() else []
 
 
+def demo_labels(paths: list[Path]) -> list[str]:
+    """:func:`demo_label` of each path; two alike each gain their file stem.
+
+    Two demos of one panel (say, as scheduled and with a week's log) would
+    otherwise be told apart only by their place in the list.
+    """
+    labels = [demo_label(p) for p in paths]
+    return [
+        f"{label} · {p.stem}" if labels.count(label) > 1 else label
+        for p, label in zip(paths, labels, strict=True)
+    ]
+
+
 def demo_label(path: Path) -> str:
     """``"Panel name · system · N circuits"`` for a demo file (its stem if unreadable)."""
     from tri.tui.wording import plural

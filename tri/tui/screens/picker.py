@@ -17,7 +17,7 @@ from tri.schedule.errors import ScheduleError
 from tri.schedule.load import load_schedule
 from tri.schedule.model import PanelInfo, Schedule
 from tri.tui import recent
-from tri.tui.demos import demo_files, demo_label
+from tri.tui.demos import demo_files, demo_labels
 from tri.tui.screens.form import Field, FormScreen, Values
 
 INTRO = (
@@ -57,8 +57,8 @@ class PickerScreen(Screen[None]):
         demos = demo_files()
         options.add_option(Option("── Demo panels ──", disabled=True))
         if demos:
-            for p in demos:
-                options.add_option(Option(Text(f"  {demo_label(p)}"), id=f"demo:{p}"))
+            for p, label in zip(demos, demo_labels(demos), strict=True):
+                options.add_option(Option(Text(f"  {label}"), id=f"demo:{p}"))
         else:
             options.add_option(Option("  (no demo panels in this installation)", disabled=True))
         options.add_option(Option("── Recent files ──", disabled=True))
