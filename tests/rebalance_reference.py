@@ -10,7 +10,9 @@ itself (:func:`tri.engine.analyse_batch`, all arrangements in one batch),
 and its relocation count is counted here as the work order counts it: a
 placed breaker whose first slot changes is one relocation (a breaker set
 aside in a swap is still one relocation), a new circuit's placement is
-none. The optimum of each mode is then a minimum over this list.
+none. The optimum of each mode is then a minimum over this list. With a
+reach limit (``[panel] max_row_shift``) only the arrangements in which no
+placed breaker's row changes by more than the limit are listed.
 
 Scenarios: a schedule with ``use`` factors is judged in every case, the
 connected load (every factor 1.0) and each named scenario (README, Loads
@@ -106,6 +108,20 @@ def arrangements(schedule: Schedule, free: list[int], limit: int = 2_000_000) ->
     return np.array(out, dtype=int).reshape(len(out), len(free))
 
 
+def within_reach(schedule: Schedule, free: list[int], slots: np.ndarray) -> np.ndarray:
+    """The arrangements in which no placed breaker's first slot moves more rows than
+    ``[panel] max_row_shift`` (README: rows between first slots, either column)."""
+    reach = schedule.panel.max_row_shift
+    if reach is None:
+        return slots
+    keep = np.ones(slots.shape[0], dtype=bool)
+    for k, i in enumerate(free):
+        old = schedule.circuits[i].slot
+        if old is not None:
+            keep &= np.abs((slots[:, k] + 1) // 2 - (old + 1) // 2) <= reach
+    return slots[keep]
+
+
 @dataclass(frozen=True)
 class Enumerated:
     """Every arrangement with its engine figures.
@@ -158,7 +174,7 @@ def enumerate_panel(schedule: Schedule, free: list[int]) -> Enumerated:
     Arrangements that put every breaker on the same phases have the same
     currents, so the engine runs once per distinct set of phases.
     """
-    slots = arrangements(schedule, free)
+    slots = within_reach(schedule, free, arrangements(schedule, free))
     n_arr = slots.shape[0]
     old = [schedule.circuits[i].slot for i in free]
     moved = np.zeros(n_arr, dtype=int)

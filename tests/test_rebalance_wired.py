@@ -62,7 +62,7 @@ def _false_claims(seed: int, sched: Schedule, **extra) -> list:
         for m in s.moves:  # each move's phases are those of its new slot as the panel reads it
             c = sched.circuits[m.circuit_index]
             if m.to_slot is not None and tuple(m.to_phases) != slot_phases(
-                m.to_slot, c.poles, RIGHT_CBA
+                m.to_slot, c.poles, sched.panel.right_column
             ):
                 false.append((seed, case.mode, s.status, f"{m.circuit}: phases {m.to_phases}"))
     return false
@@ -151,7 +151,19 @@ def test_cli_suggest_on_a_c_b_a_panel(tmp_path: Path) -> None:
     sched = load_schedule(p).schedule
     assert [c.phases for c in sched.circuits] == [(0,), (0,), (2,), (2,)]
     out = subprocess.run(
-        [sys.executable, "-m", "tri", "suggest", str(p), "--max-moves", "1", "--format", "json"],
+        [
+            sys.executable,
+            "-m",
+            "tri",
+            "suggest",
+            str(p),
+            "--max-moves",
+            "1",
+            "--time-limit",
+            "60",
+            "--format",
+            "json",
+        ],
         capture_output=True,
         text=True,
         timeout=60,
@@ -163,3 +175,164 @@ def test_cli_suggest_on_a_c_b_a_panel(tmp_path: Path) -> None:
     assert move["circuit"] in ("Lights 1", "Lights 2")
     assert slot_phases(move["to_slot"], 1, RIGHT_CBA) == (1,)  # a slot on B
     assert move["to_phases"] == "B"
+
+
+def _reach_panel(seed: int):
+    """A dense panel (C-B-A right column for odd seeds) with a reach of 0, 1 or 2 rows."""
+    rng = np.random.default_rng(seed)
+    sched = dense_panel(rng, int(rng.choice([8, 10, 12])))
+    if seed % 2:
+        sched = cba(sched)
+    reach = int(rng.integers(0, 3))
+    return rng, replace(sched, panel=replace(sched.panel, max_row_shift=reach))
+
+
+@pytest.mark.parametrize("chunk", range(CHUNKS))
+def test_every_claim_is_true_within_a_reach_limit(chunk: int) -> None:
+    """Plans, fewest moves, budgets and bounds against every arrangement within the reach.
+
+    The reference lists only arrangements in which no placed breaker's row
+    changes by more than ``max_row_shift``, so a plan beyond the reach is
+    caught ("not among the reference's arrangements"), and a claim proven
+    on the panel without the limit but false with it is caught too.
+    """
+    false = []
+    for seed in range(700 + chunk * CHUNK, 700 + (chunk + 1) * CHUNK):
+        _, sched = _reach_panel(seed)
+        assert rebalancer_refusal(sched) == []
+        false += _false_claims(seed, sched, time_limit_s=10.0, floor_gap=0.0)
+    assert not false
+
+
+def test_every_claim_of_the_programs_alone_is_true_within_a_reach_limit() -> None:
+    false = []
+    for seed in range(1100, 1100 + CHUNK):
+        _, sched = _reach_panel(seed)
+        false += _false_claims(seed, sched, time_limit_s=0.5, floor_gap=0.0, list_plans=False)
+    assert not false
+
+
+def test_the_reach_check_can_fail() -> None:
+    """A plan found without the limit is caught by the reference with it (not vacuous)."""
+    for seed in range(60):
+        rng, sched = _reach_panel(seed)
+        case = next(c for c in cases_for(rng, sched) if c.mode == "relayout")
+        free = free_breakers(sched, case.mode, case.place_new)
+        unlimited = replace(sched, panel=replace(sched.panel, max_row_shift=None))
+        with native_stdout_to_devnull():
+            s = suggest(unlimited, case.options(floor_gap=0.0))
+        if check_case(case, s, enumerate_panel(sched, free)):
+            return
+    pytest.fail("no plan without the limit breaks it")
+
+
+REACH_PANEL = """format = 1
+[panel]
+name = "LP-R"
+system = "208Y/120"
+spaces = 12
+bus_a = 100
+max_row_shift = 1
+
+[[circuit]]
+slot = 1
+name = "Oven"
+load_va = 3000
+
+[[circuit]]
+slot = 3
+name = "Fryer"
+load_va = 3000
+
+[[circuit]]
+slot = 7
+name = "Mixer"
+load_va = 3000
+
+[[circuit]]
+slot = 11
+name = "Lights"
+load_va = 300
+"""
+
+
+def test_cli_suggest_honours_the_reach(tmp_path: Path) -> None:
+    """``tri suggest`` with ``max_row_shift = 1``: the plan moves no breaker more than a row.
+
+    [computed] A carries 6000 VA (slots 1, 7), B 3000 (slot 3), C 300 (slot
+    11). Without a limit the best single move takes a 3000 VA load to C
+    (slot 5, or 6 ... any C slot); within one row only the Fryer (row 2 to
+    row 3, slot 5 or 6) or the Mixer (row 4 to row 3) can reach C.
+    """
+    p = tmp_path / "p.toml"
+    p.write_text(REACH_PANEL, encoding="utf-8")
+    out = subprocess.run(
+        [
+            sys.executable,
+            "-m",
+            "tri",
+            "suggest",
+            str(p),
+            "--max-moves",
+            "1",
+            "--time-limit",
+            "60",
+            "--format",
+            "json",
+        ],
+        capture_output=True,
+        text=True,
+        timeout=60,
+    )
+    assert out.returncode == 0, out.stderr
+    data = json.loads(out.stdout)
+    assert data["status"] == "optimal"
+    for m in data["moves"]:
+        assert abs((m["to_slot"] + 1) // 2 - (m["from_slot"] + 1) // 2) <= 1
+    assert any("reach limit honoured" in n for n in data["notes"])
+    text = subprocess.run(
+        [sys.executable, "-m", "tri", "suggest", str(p), "--max-moves", "1"],
+        capture_output=True,
+        text=True,
+        timeout=60,
+    )
+    assert "reach limit honoured" in text.stdout
+
+
+DEMO = Path(__file__).resolve().parents[1] / "tri" / "panels_demo" / "bakery_208.toml"
+
+
+def test_demo_panel_with_a_c_b_a_right_column_and_a_reach(tmp_path: Path) -> None:
+    """The bakery demo read as a C-B-A panelboard with a reach of 2 rows, through ``tri suggest``.
+
+    Every move stays within 2 rows [computed from the JSON], every move's
+    phases are those of its new slot read C-B-A, and the figures after are
+    the engine's for the schedule written by ``--write``.
+    """
+    text = DEMO.read_text(encoding="utf-8")
+    text = text.replace("[panel]\n", '[panel]\nright_column = "CBA"\nmax_row_shift = 2\n', 1)
+    p, out_file = tmp_path / "bakery_cba.toml", tmp_path / "after.toml"
+    p.write_text(text, encoding="utf-8")
+    sched = load_schedule(p).schedule
+    args = ["suggest", str(p), "--max-moves", "3", "--format", "json", "--time-limit", "60"]
+    r = subprocess.run(
+        [sys.executable, "-m", "tri", *args, "--write", str(out_file)],
+        capture_output=True,
+        text=True,
+        timeout=120,
+    )
+    assert r.returncode in (0, 1), r.stderr
+    data = json.loads(r.stdout)
+    assert data["status"] in ("optimal", "best-found")
+    assert data["moves"], "the demo is unbalanced enough to move something"
+    for m in data["moves"]:
+        assert abs((m["to_slot"] + 1) // 2 - (m["from_slot"] + 1) // 2) <= 2
+        c = next(c for c in sched.circuits if c.name == m["circuit"])
+        want = slot_phases(m["to_slot"], c.poles, RIGHT_CBA)
+        assert m["to_phases"] == sched.phase_text(want)
+    from tri.schedule.to_engine import analyse_schedule
+
+    after = analyse_schedule(load_schedule(out_file).schedule)
+    assert after.current_unbalance.max_deviation_pct == pytest.approx(
+        data["after"]["max_deviation_pct"], rel=1e-6
+    )

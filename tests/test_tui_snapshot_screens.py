@@ -44,7 +44,7 @@ narrow = pytest.mark.parametrize("size", SIZES[:1], ids=SIZE_IDS[:1])
 # ---------------------------------------------------------------- the panel view
 
 
-@sizes
+@narrow
 @pytest.mark.parametrize("demo", sorted(DEMOS.glob("*.toml")), ids=lambda p: p.stem)
 def test_panel_view_of_each_demo(snap_compare, size, demo: Path) -> None:
     app = TriApp(demo, journal=False, theme="textual-dark")
@@ -153,7 +153,7 @@ def test_form_focus_in_every_theme(snap_compare, theme: str) -> None:
 # ---------------------------------------------------------------- other screens
 
 
-@sizes
+@narrow
 @pytest.mark.parametrize("view", [0, 1, 2], ids=["findings", "checks", "report"])
 def test_findings_page(snap_compare, size, view: int) -> None:
     app = TriApp(DEMOS / "garage_ev_208.toml", journal=False, theme="textual-dark")

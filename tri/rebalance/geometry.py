@@ -14,7 +14,11 @@ A-B-C or C-B-A down the right column), a breaker of ``k`` poles in slot
   the pair of phases its two rows take for 2 poles (the index of A-B, B-C
   or C-A in :data:`tri.rebalance.problem.PAIRS`), 0 for 3 poles; windows
   are listed for the pole counts free breakers have;
-* the *home* of a placed free breaker is the slots it takes now.
+* the *home* of a placed free breaker is the slots it takes now;
+* the *reach* (``[panel] max_row_shift``, rows) limits where a placed free
+  breaker may go: a first slot at most that many rows above or below its
+  first slot now, in either column (:meth:`SlotGeometry.allowed`). New
+  circuits have no conductors yet and may go anywhere.
 
 Rail boards have no geometry (:func:`slot_geometry` returns None there).
 """
@@ -27,7 +31,14 @@ from dataclasses import dataclass
 import numpy as np
 
 from tri.schedule.model import Schedule
-from tri.schedule.slots import RIGHT_ABC, fits, occupied_slots, pole_phases, slot_phase
+from tri.schedule.slots import (
+    RIGHT_ABC,
+    fits,
+    occupied_slots,
+    pole_phases,
+    slot_phase,
+    slot_row,
+)
 
 
 @dataclass(frozen=True)
@@ -71,6 +82,8 @@ class SlotGeometry:
         None for a new circuit.
     right_column : str
         The right column's phase order (``"ABC"`` or ``"CBA"``).
+    reach : int or None
+        Rows a placed breaker may shift (``[panel] max_row_shift``); None: no limit.
     """
 
     spaces: int
@@ -79,6 +92,14 @@ class SlotGeometry:
     windows: tuple[Window, ...]
     homes: tuple[tuple[int, ...] | None, ...]
     right_column: str = RIGHT_ABC
+    reach: int | None = None
+
+    def allowed(self, i: int, first: int) -> bool:
+        """True when free breaker ``i`` may take first slot ``first`` within the reach."""
+        home = self.homes[i]
+        if self.reach is None or home is None:
+            return True
+        return abs(slot_row(first) - slot_row(home[0])) <= self.reach
 
     def phase_of(self, slot: int) -> int:
         """Phase index of ``slot`` as this panel reads it [-]."""
@@ -153,6 +174,7 @@ def slot_geometry(schedule: Schedule, free: Sequence[int]) -> SlotGeometry | Non
         windows=tuple(windows),
         homes=tuple(homes),
         right_column=rc,
+        reach=schedule.panel.max_row_shift,
     )
 
 

@@ -13,7 +13,10 @@ was: an assignment problem [1] per window pool and per phase, cost 0 for a
 breaker's own slot, 1 for any other, plus a small preference for slots few
 rows away in the same column (too small ever to trade a relocation;
 :func:`tri.schedule.slots.slot_distance`). A new circuit prefers low slot
-numbers.
+numbers. A position beyond a breaker's reach (``[panel] max_row_shift``,
+:meth:`~tri.rebalance.geometry.SlotGeometry.allowed`) costs
+:data:`BEYOND_REACH`, more than every other cost together, so an
+assignment uses one only when no other exists, and is then refused.
 
 Before any program runs, a quick fill tries to keep every breaker whose
 option is unchanged in its slot: when it succeeds the relocations equal the
@@ -42,6 +45,8 @@ from tri.schedule.slots import occupied_slots, slot_distance
 
 #: Time limit of the realisation program [s] (it is small: slots only).
 REALISE_TIME_S = 10.0
+#: Cost of a position beyond a breaker's reach in the assignment problems [-].
+BEYOND_REACH = 1e6
 
 
 @dataclass(frozen=True)
@@ -130,6 +135,8 @@ def arrange(
             return None
         cost = np.array([[_window_cost(geo, b, w, scale) for w in ws] for b in bs])
         for b, k in zip(bs, _assign(cost), strict=True):
+            if not geo.allowed(b, ws[k].first):
+                return None
             first[b] = ws[k].first
             taken.update(ws[k].cells)
     if len(taken) != sum(len(occupied_slots(first[b], int(pr.poles[b]))) for b in first):
@@ -141,17 +148,23 @@ def arrange(
             return None
         cost = np.array([[_cell_cost(geo, b, c, scale) for c in cells] for b in bs])
         for b, k in zip(bs, _assign(cost), strict=True):
+            if not geo.allowed(b, cells[k]):
+                return None
             first[b] = cells[k]
     return _arrangement(pr, first)
 
 
 def _window_cost(geo: SlotGeometry, b: int, w: Window, scale: float) -> float:
     home = geo.home_first(b)
+    if not geo.allowed(b, w.first):
+        return BEYOND_REACH
     return (0.0 if home == w.first else 1.0) + _near(home, w.first, scale)
 
 
 def _cell_cost(geo: SlotGeometry, b: int, c: int, scale: float) -> float:
     home = geo.home_first(b)
+    if not geo.allowed(b, c):
+        return BEYOND_REACH
     return (0.0 if home == c else 1.0) + _near(home, c, scale)
 
 
@@ -178,7 +191,10 @@ def _quick_fill(pr: Problem, assign: np.ndarray) -> Arrangement | None:
         fits = [
             w
             for w in geo.windows
-            if w.poles == pr.poles[b] and w.kind == kind and open_set.issuperset(w.cells)
+            if w.poles == pr.poles[b]
+            and w.kind == kind
+            and open_set.issuperset(w.cells)
+            and geo.allowed(b, w.first)
         ]
         if not fits:
             return None

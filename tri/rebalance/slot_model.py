@@ -42,9 +42,10 @@ are at most ``Σ (1 - s_b)``. So the minimum of ``Σ (1 - s_b)`` over the
 rows is the fewest relocations that realise the options, and a model with
 this block is a relaxation only where its *electrical* rows are.
 
-Later constraints fit as rows on these columns: a breaker whose reach is
-limited (rows it may shift) takes its own windows instead of the pool's; a
-group that moves as one unit shares one ``s``.
+With a reach limit (``[panel] max_row_shift``) breakers of a pool are no
+longer interchangeable: :mod:`tri.rebalance.reach_model` then gives every
+breaker positions of its own (same columns ``s`` and ``u``, exact in the
+same sense on the panel with that limit).
 
 On a rail board there are no slots: a move is a change of phases, and
 ``s_b`` is the column ``x_current(b)``.
@@ -127,6 +128,10 @@ def add_slots(m: Model, pr: Problem, el: Electrical) -> SlotColumns:
     geo = pr.geometry
     if geo is None:
         return SlotColumns(placed, current_cols.astype(int), None, ())
+    if geo.reach is not None:
+        from tri.rebalance.reach_model import add_reach_slots
+
+        return add_reach_slots(m, pr, el)
     windows = geo.windows
     occupant = geo.occupant()
     covered = {c for w in windows for c in w.cells}

@@ -268,6 +268,13 @@ def suggest(
     )
     pr = build_problem(schedule, free_indices(schedule, opts))
     run = _Run(pr, opts, control, before[0][1], goal, before_cases=before)
+    reach = schedule.panel.max_row_shift if schedule.panel.uses_slots else None
+    if reach is not None:
+        run.notes.append(
+            f"reach limit honoured: no breaker is offered a slot more than {reach} "
+            f"row{'' if reach == 1 else 's'} from where it is ([panel] max_row_shift); "
+            "every claim here is about plans within that limit"
+        )
     if opts.mode == "fewest-moves":
         plan, status, bound = _fewest_moves(run)
     else:

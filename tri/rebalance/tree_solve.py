@@ -159,6 +159,11 @@ def wired_refusal(shown: str, schedule: Schedule) -> list[str]:
             "read C-B-A is not yet supported by the building rebalancer (the single-panel "
             "rebalancer honours it)"
         )
+    if schedule.panel.max_row_shift is not None:
+        out.append(
+            f"{shown}: [panel] max_row_shift: reach limits are not yet honoured by the "
+            "building rebalancer"
+        )
     kinds = (
         ("breakers with a neutral or one load per leg", lambda c: c.has_legs),
         ("shared-neutral groups", lambda c: c.shared_neutral is not None),

@@ -330,8 +330,6 @@ def rebalancer_refusal(schedule: Schedule) -> list[str]:
             f'[panel] system = "{panel.system}": high-leg delta panels are not yet supported '
             "by the rebalancer (it could move a 120 V circuit onto the high leg)"
         )
-    if panel.max_row_shift is not None:
-        out.append("[panel] max_row_shift: reach limits are not yet honoured by the rebalancer")
     kinds = (
         ("breakers with a neutral or one load per leg", lambda c: c.has_legs),
         ("shared-neutral groups", lambda c: c.shared_neutral is not None),
