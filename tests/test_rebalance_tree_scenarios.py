@@ -50,6 +50,7 @@ def add_use_factors(folder, seed: int) -> None:
     """Random ``use`` factors on about two loads in three of every panel (module notes)."""
     rng = np.random.default_rng(1000 + seed)
     for path in sorted(folder.glob("*.toml")):
+
         def one(match: re.Match) -> str:
             if rng.random() < 0.33:
                 return match.group(0)
@@ -111,9 +112,7 @@ def target_pairs(seed: int, reloc, devs) -> tuple[list[tuple[float, float]], int
     services = np.concatenate([midpoints(devs, 0), midpoints(devs[:, :1], 0)])
     childs = np.concatenate([midpoints(devs, 1), [200.0]])
     pairs = [(float(a), float(b)) for a in services for b in childs]
-    differ = [
-        p for p in pairs if optimum(reloc, devs, *p) != optimum(reloc, devs, *p, cases=[0])
-    ]
+    differ = [p for p in pairs if optimum(reloc, devs, *p) != optimum(reloc, devs, *p, cases=[0])]
     same = [p for p in pairs if p not in differ]
     chosen = []
     for group in (differ, same):
@@ -202,7 +201,7 @@ def test_bounds_never_exceed_the_optimum(building):
 
 def test_scenarios_change_the_answer(building):
     """Somewhere the connected load alone would give another answer: the cases are not idle."""
-    tree, reloc, devs, pairs, decided = building
+    _tree, reloc, devs, pairs, decided = building
     assert decided >= 1
     sp, cp = pairs[0]
     assert optimum(reloc, devs, sp, cp) != optimum(reloc, devs, sp, cp, cases=[0])

@@ -406,9 +406,7 @@ def build_problem(
         return problem
     from tri.rebalance.cases import with_cases
 
-    return with_cases(
-        problem, schedule, lambda f: _engine_currents(*engine_args, f), case_names
-    )
+    return with_cases(problem, schedule, lambda f: _engine_currents(*engine_args, f), case_names)
 
 
 def with_floor(problem: Problem) -> Problem:
