@@ -122,7 +122,7 @@ def target_pairs(seed: int, reloc, devs) -> tuple[list[tuple[float, float]], int
 
 
 def _run(tree, service_pct, child_pct, **kw):
-    kw.setdefault("time_limit_s", 60)
+    kw.setdefault("time_limit_s", 120)
     opts = TreeOptions(target_pct=service_pct, child_target_pct=child_pct, **kw)
     with native_stdout_to_devnull():
         return suggest_tree(tree, opts)
@@ -189,7 +189,7 @@ def test_bounds_never_exceed_the_optimum(building):
     for service_pct, child_pct in pairs:
         expected = optimum(reloc, devs, service_pct, child_pct)
         tp = build_tree_problem(tree, 0, service_pct / 100, child_pct / 100)
-        search = TreeSearch(tp, Control(30.0, None, None), int(np.sum(tp.movable)))
+        search = TreeSearch(tp, Control(120.0, None, None), int(np.sum(tp.movable)))
         with native_stdout_to_devnull():
             search.decomposed_bound()
         true = search.cap + 1 if expected is None else expected
