@@ -362,7 +362,11 @@ def build_problem(
     circuits = schedule.circuits
     slots = schedule.panel.uses_slots
     free_arr = np.array(sorted(set(int(i) for i in free)), dtype=int)
-    owner, kind, phases, starts, current = [], [], [], [0], []
+    owner: list[int] = []  # free breaker (problem index) of each option
+    kind: list[int] = []
+    phases: list[tuple[int, ...]] = []
+    starts: list[int] = [0]
+    current: list[int] = []
     for fi, idx in enumerate(free_arr):
         c = circuits[idx]
         cur_kind, cur = _current_kind(c), -1

@@ -20,7 +20,13 @@ from tri.rebalance.problem import Problem
 from tri.rebalance.results import CaseResult, Figures, Move, apply_moves
 from tri.rebalance.tree_loop import TreePlan, TreeSearch
 from tri.rebalance.tree_problem import TreeProblem
-from tri.rebalance.tree_results import OutsideFigures, PanelPlan, TreeStatus, TreeSuggestion
+from tri.rebalance.tree_results import (
+    OutsideFigures,
+    PanelPlan,
+    Stopped,
+    TreeStatus,
+    TreeSuggestion,
+)
 from tri.rebalance.workorder import WorkStep, order_work, rail_steps
 from tri.schedule.model import Schedule
 from tri.schedule.tree import ScheduleTree, with_schedules
@@ -175,7 +181,7 @@ def finish(
     panels = _panel_plans(tree, tp, schedules, work, before, after)
     if final in ("optimal", "already-balanced") and not all(p.target_met for p in panels):
         final, bound = "best-found", search.lower
-    stopped = None
+    stopped: Stopped | None = None
     if not search.proven and final != "already-balanced":
         stopped = "cancelled" if control.cancelled() else ("time limit" if control.stop() else None)
     unplaced = sum(1 for n in tp.nodes for c in tree.panels[n].schedule.circuits if not c.is_placed)

@@ -333,7 +333,8 @@ def build_tree_problem(
     """
     nodes = subtree(tree, service)
     position = {n: k for k, n in enumerate(nodes)}
-    parent = np.array([position.get(tree.panels[n].parent, -1) for n in nodes], dtype=int)
+    parents = (tree.panels[n].parent for n in nodes)
+    parent = np.array([-1 if p is None else position.get(p, -1) for p in parents], dtype=int)
     parent[0] = -1
     ends = np.zeros(len(nodes), dtype=int)
     for k in range(len(nodes) - 1, -1, -1):
