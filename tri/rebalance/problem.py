@@ -333,7 +333,12 @@ def _capacity(phases, geo: SlotGeometry | None):
     return use_cells, use_window, geo.open_per_phase.copy(), disjoint_window_counts(geo)
 
 
-def build_problem(schedule: Schedule, free: Sequence[int], scenarios: bool = True) -> Problem:
+def build_problem(
+    schedule: Schedule,
+    free: Sequence[int],
+    scenarios: bool = True,
+    case_names: tuple[str, ...] | None = None,
+) -> Problem:
     """Arrays for the rebalancer with the circuits ``free`` open to choice.
 
     Parameters
@@ -346,6 +351,9 @@ def build_problem(schedule: Schedule, free: Sequence[int], scenarios: bool = Tru
     scenarios : bool
         Add the problem in every scenario of the schedule's ``use`` factors
         (module notes, Cases); False: the connected load alone.
+    case_names : tuple of str, optional
+        The scenarios to judge, in order (a building's); default the
+        schedule's own.
 
     Returns
     -------
@@ -402,7 +410,7 @@ def build_problem(schedule: Schedule, free: Sequence[int], scenarios: bool = Tru
         return problem
     from tri.rebalance.cases import with_cases
 
-    return with_cases(problem, schedule, lambda f: _engine_currents(*engine_args, f))
+    return with_cases(problem, schedule, lambda f: _engine_currents(*engine_args, f), case_names)
 
 
 def with_floor(problem: Problem) -> Problem:

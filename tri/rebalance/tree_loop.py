@@ -198,7 +198,7 @@ class TreeSearch:
 
     def model_loop(self, parts: TreeModelParts) -> None:
         """Step 4: the program, round after round (module notes)."""
-        learnt = TreeLearnt(self.tp.size)
+        learnt = TreeLearnt(self.tp.size, self.tp.n_cases)
         while not self.control.stop():
             budget = self.cap if self.best_k is None else min(self.cap, self.best_k - 1)
             if budget < self.lower:
