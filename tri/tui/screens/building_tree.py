@@ -17,11 +17,12 @@ from rich.text import Text
 from textual.app import ComposeResult
 from textual.binding import Binding, BindingType
 from textual.screen import Screen
-from textual.widgets import Footer, Static, Tree
+from textual.widgets import Static, Tree
 from textual.widgets.tree import TreeNode
 
 from tri.engine.limits import NEAR, OVER, loading_word
 from tri.tui import fmt
+from tri.tui.widgets.key_footer import KeyFooter
 
 TREE_HELP = """\
 The building: the top panel and every panel it feeds, at any depth, each
@@ -122,7 +123,7 @@ class BuildingScreen(Screen[None]):
         yield Static("", id="tree-title", classes="title-bar")
         yield Tree("building", id="tree-panels")
         yield Static("", id="tree-details")
-        yield Footer(show_command_palette=False)
+        yield KeyFooter(show_command_palette=False)
 
     def on_mount(self) -> None:
         app: Any = self.app

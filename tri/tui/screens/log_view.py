@@ -26,7 +26,7 @@ from textual.app import ComposeResult
 from textual.binding import Binding, BindingType
 from textual.containers import Horizontal, VerticalScroll
 from textual.screen import Screen
-from textual.widgets import Footer, ProgressBar, Static
+from textual.widgets import ProgressBar, Static
 
 from tri.engine.over_time import envelope
 from tri.schedule.errors import ScheduleError
@@ -36,6 +36,7 @@ from tri.tui.log_reader import LogCancelled, read_and_analyse
 from tri.tui.log_summary import facts_line, summary_lines
 from tri.tui.messages import LogProgress, LogRead
 from tri.tui.screens.log_keys import LOG_HELP, LOG_KEY_WORDS, VIEWS, LogChart, LogKeys
+from tri.tui.widgets.key_footer import KeyFooter
 from tri.tui.wording import issue_text, plural
 
 #: Re-exported: the help screen imports it here.
@@ -99,7 +100,7 @@ class LogScreen(LogKeys, Screen[None]):
         yield Static("", id="log-summary")
         with VerticalScroll(id="log-figures"):
             yield Static("", id="log-figures-body")
-        yield Footer(show_command_palette=False)
+        yield KeyFooter(show_command_palette=False)
 
     def on_mount(self) -> None:
         self._ready = True

@@ -24,6 +24,7 @@ from tri.tui.screens.circuit_actions import CircuitActions
 from tri.tui.screens.main_screens import OtherScreens
 from tri.tui.screens.panel_pick import PanelPicking
 from tri.tui.widgets.circuit_table import CircuitTable
+from tri.tui.widgets.key_footer import KeyFooter
 from tri.tui.widgets.panel_view import Cell, PanelView
 from tri.tui.widgets.results_panel import ResultsPanel
 from tri.tui.wording import circuit_details
@@ -119,7 +120,7 @@ class MainScreen(PanelPicking, OtherScreens, CircuitActions, Screen[None]):
         yield PanelView(id="panel-view")
         yield ResultsPanel(id="results")
         yield Static("", id="status")
-        yield Footer(show_command_palette=False)
+        yield KeyFooter(show_command_palette=False)
 
     def on_mount(self) -> None:
         self._ready = True

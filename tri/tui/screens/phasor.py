@@ -9,9 +9,10 @@ from textual.app import ComposeResult
 from textual.binding import Binding, BindingType
 from textual.containers import Horizontal
 from textual.screen import Screen
-from textual.widgets import Footer, Static
+from textual.widgets import Static
 
 from tri.tui import fmt
+from tri.tui.widgets.key_footer import KeyFooter
 from tri.tui.widgets.phasor_diagram import Arrow, PhasorDiagram
 
 PHASOR_HELP = """\
@@ -51,7 +52,7 @@ class PhasorScreen(Screen[None]):
         with Horizontal(id="phasor-body"):
             yield PhasorDiagram(id="phasor-diagram")
             yield Static("", id="phasor-legend")
-        yield Footer(show_command_palette=False)
+        yield KeyFooter(show_command_palette=False)
 
     _ready = False
 

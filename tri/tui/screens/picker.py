@@ -10,7 +10,7 @@ from textual.app import ComposeResult
 from textual.binding import Binding, BindingType
 from textual.containers import Vertical
 from textual.screen import Screen
-from textual.widgets import Footer, OptionList, Static
+from textual.widgets import OptionList, Static
 from textual.widgets.option_list import Option
 
 from tri.schedule.errors import ScheduleError
@@ -19,6 +19,7 @@ from tri.schedule.model import PanelInfo, Schedule
 from tri.tui import recent
 from tri.tui.demos import demo_files, demo_labels
 from tri.tui.screens.form import Field, FormScreen, Values
+from tri.tui.widgets.key_footer import KeyFooter
 
 INTRO = (
     "tri balances three-phase panels: it shows each phase's current, the neutral and "
@@ -50,7 +51,7 @@ class PickerScreen(Screen[None]):
             yield Static("tri · three-phase panel balancing", classes="dialog-title")
             yield Static(INTRO, id="picker-intro")
             yield OptionList(id="picker-list")
-        yield Footer(show_command_palette=False)
+        yield KeyFooter(show_command_palette=False)
 
     def on_mount(self) -> None:
         options = self.query_one(OptionList)

@@ -22,7 +22,7 @@ from textual.app import ComposeResult
 from textual.binding import Binding, BindingType
 from textual.containers import Horizontal
 from textual.screen import Screen
-from textual.widgets import DataTable, Footer, Input, Label, ProgressBar, Static
+from textual.widgets import DataTable, Input, Label, ProgressBar, Static
 
 from tri.native_output import native_stdout_to_devnull
 from tri.rebalance import (
@@ -53,6 +53,7 @@ from tri.tui.fmt import parse_number
 from tri.tui.messages import RebalanceDone, RebalanceProgress
 from tri.tui.widgets.cycle import Cycle
 from tri.tui.widgets.in_order import OrderedInput
+from tri.tui.widgets.key_footer import KeyFooter
 
 MODES = (
     ("fewest moves to target", "fewest-moves"),
@@ -157,7 +158,7 @@ class RebalanceScreen(Screen[None]):
         yield DataTable(id="rb-moves-table", cursor_type="row", zebra_stripes=True)
         yield Static("", id="rb-figures")
         yield Static(Text("CAUTION: " + SAFETY_CAUTION), id="rb-caution")
-        yield Footer(show_command_palette=False)
+        yield KeyFooter(show_command_palette=False)
 
     def on_mount(self) -> None:
         app: Any = self.app

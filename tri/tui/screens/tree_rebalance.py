@@ -26,7 +26,7 @@ from textual.binding import Binding, BindingType
 from textual.containers import Horizontal, VerticalScroll
 from textual.message import Message
 from textual.screen import Screen
-from textual.widgets import Footer, Input, Label, ProgressBar, Static
+from textual.widgets import Input, Label, ProgressBar, Static
 
 from tri.native_output import native_stdout_to_devnull
 from tri.rebalance import DEFAULT_TARGET_PCT
@@ -39,6 +39,7 @@ from tri.schedule.errors import ScheduleError
 from tri.tui.fmt import parse_number
 from tri.tui.messages import RebalanceProgress
 from tri.tui.widgets.in_order import OrderedInput
+from tri.tui.widgets.key_footer import KeyFooter
 from tri.words import plural
 
 #: Search budget of the screen [s].
@@ -141,7 +142,7 @@ class TreeRebalanceScreen(Screen[None]):
         with VerticalScroll(id="trb-scroll"):
             yield Static("", id="trb-result")
         yield Static(Text("CAUTION: " + SAFETY_CAUTION), id="rb-caution")
-        yield Footer(show_command_palette=False)
+        yield KeyFooter(show_command_palette=False)
 
     def on_mount(self) -> None:
         app: Any = self.app
