@@ -293,11 +293,18 @@ def _search(search: TreeSearch, tp: TreeProblem, opts: TreeOptions) -> TreeStatu
             )
         return None
     search.heuristic()
+    # without a first plan the subtree bounds go first: they may prove that none exists
+    # (a panel that cannot meet its target alone) before a long listing of plans
+    early = opts.decompose and opts.use_solver and search.best is None
+    if early:
+        search.decomposed_bound()
+        if search.proven or search.control.stop():
+            return None
     if opts.list_plans:
         search.listing()
     if search.proven or search.control.stop() or not opts.use_solver:
         return None
-    if opts.decompose:
+    if opts.decompose and not early:
         search.decomposed_bound()
         if search.proven or search.control.stop():
             return None
