@@ -48,10 +48,12 @@ from tri.rebalance.plans import TOL, Evaluator, Plan
 from tri.rebalance.problem import Problem, build_problem
 from tri.rebalance.results import CaseResult, Figures, Move, Status, Suggestion, apply_moves
 from tri.rebalance.target import Outcome, solve_target
+from tri.rebalance.units import Unit, free_units
 from tri.rebalance.workorder import order_work, rail_steps
 from tri.schedule.model import Schedule
+from tri.schedule.slots import pole_phases
 from tri.schedule.to_scenarios import analyse_cases
-from tri.schedule.wiring import rebalancer_refusal
+from tri.schedule.wiring import single_panel_refusal
 
 
 def free_indices(schedule: Schedule, opts: SuggestOptions) -> list[int]:
@@ -245,14 +247,12 @@ def suggest(
     ------
     ValueError
         For options the panel cannot take (a neutral limit on a 3-wire system), or
-        wiring it cannot honour yet (shared neutrals, breakers with a load per leg,
-        a high leg, a reach limit, RCD groups:
-        :func:`tri.schedule.wiring.rebalancer_refusal`).
+        wiring it cannot honour yet (:func:`tri.schedule.wiring.single_panel_refusal`).
     Cancelled
         When the cancel hook fired.
     """
     opts = options or SuggestOptions()
-    refusal = rebalancer_refusal(schedule)  # wiring it cannot honour yet (issue 12)
+    refusal = single_panel_refusal(schedule)  # wiring it cannot honour yet (issue 12)
     if refusal:
         raise ValueError("; ".join(refusal))
     if opts.neutral_max_a is not None and not schedule.system.has_neutral:
@@ -266,8 +266,10 @@ def suggest(
         neutral_max_a=opts.neutral_max_a,
         max_moves=0 if opts.mode == "place-new" else opts.max_moves,
     )
-    pr = build_problem(schedule, free_indices(schedule, opts))
+    free = free_indices(schedule, opts)
+    pr = build_problem(schedule, free)
     run = _Run(pr, opts, control, before[0][1], goal, before_cases=before)
+    run.notes.extend(_unit_notes(schedule, free, pr))
     reach = schedule.panel.max_row_shift if schedule.panel.uses_slots else None
     if reach is not None:
         run.notes.append(
@@ -282,30 +284,66 @@ def suggest(
     return _finish(run, plan, status, bound)
 
 
+def _unit_notes(schedule: Schedule, free: list[int], pr: Problem) -> list[str]:
+    """What the output must say about units (:mod:`tri.rebalance.units`)."""
+    out = list(free_units(schedule, free)[1])
+    if any(u.group is not None for u in pr.units):
+        out.append(
+            "a shared-neutral group moves as one block, its breakers side by side in their "
+            "order, and counts as one relocation; reordering a group's breakers is not offered"
+        )
+    return out
+
+
 def _moves_for(pr: Problem, plan: Plan) -> tuple[list[Move], list]:
+    """The moves of every breaker, and the work order (a group's breakers in one step)."""
     sched = pr.schedule
     circuits = sched.circuits
     moves: dict[int, Move] = {}
+    groups = {u.lead: u.members for u in pr.units if u.group is not None}
+    units = {u.lead: u for u in pr.units}
     if pr.slots:
         changing = {}
         for idx, slot in plan.arrangement.first_slot.items():
-            c = circuits[idx]
-            if c.slot != slot:
-                changing[idx] = slot
-                new = sched.placed(c.at_slot(slot))
-                moves[idx] = Move(idx, c.name, c.poles, c.slot, slot, c.phases, new.phases)
-        steps = order_work(sched, changing)
+            if circuits[idx].slot == slot:
+                continue
+            changing[idx] = slot
+            unit = units.get(idx)
+            for k, i in enumerate(groups.get(idx, (idx,))):
+                moves[i] = _slot_move(sched, i, slot + 2 * k, unit)
+        steps = order_work(sched, changing, groups)
     else:
         changed = []
-        for i, idx in enumerate(pr.free.tolist()):
-            c = circuits[idx]
-            ph = pr.phases[int(plan.assign[i])]
-            if c.phases is None or set(c.phases) != set(ph):
-                changed.append(idx)
-                moves[idx] = Move(idx, c.name, c.poles, None, None, c.phases, tuple(ph))
-        steps = rail_steps(sched, changed)
-    ordered = [moves[s.circuit_index] for s in steps if s.action != "take-out"]
-    return ordered, steps
+        for b, idx in enumerate(pr.free.tolist()):
+            ph = tuple(pr.phases[int(plan.assign[b])])
+            unit = units.get(idx)
+            members = groups.get(idx, (idx,))
+            now = tuple(p for i in members for p in (circuits[i].phases or ()))
+            wired = bool(pr.wired[b])
+            if circuits[idx].phases is not None and (now == ph if wired else set(now) == set(ph)):
+                continue
+            changed.append(idx)
+            for k, i in enumerate(members):
+                c = circuits[i]
+                to = (ph[k],) if len(members) > 1 else ph
+                group = unit.group if unit is not None else None
+                moves[i] = Move(i, c.name, c.poles, None, None, c.phases, to, group, wired)
+        steps = rail_steps(sched, changed, groups)
+    order = [i for s in steps if s.action != "take-out" for i in (s.members or (s.circuit_index,))]
+    return [moves[i] for i in order], steps
+
+
+def _slot_move(sched: Schedule, i: int, slot: int, unit: Unit | None) -> Move:
+    """Breaker ``i`` to first slot ``slot`` (phases in pole order for a wired one)."""
+    c = sched.circuits[i]
+    wired = unit is not None and unit.wired
+    new = sched.placed(c.at_slot(slot))
+    before, after = c.phases, new.phases
+    if wired and c.slot is not None:
+        rc = sched.panel.right_column
+        before, after = pole_phases(c.slot, c.poles, rc), pole_phases(slot, c.poles, rc)
+    group = unit.group if unit is not None else None
+    return Move(i, c.name, c.poles, c.slot, slot, before, after, group, wired)
 
 
 def _case_figures(schedule: Schedule) -> list[tuple[str, Figures]]:
@@ -358,7 +396,7 @@ def _finish(run: _Run, plan: Plan | None, status: Status, bound: float | None) -
     return Suggestion(
         status=status,
         mode=opts.mode,
-        objective=objective_text(opts, pr.case_names),
+        objective=_objective(run),
         moves=tuple(moves),
         steps=tuple(steps),
         before=run.before,
@@ -384,6 +422,16 @@ def _finish(run: _Run, plan: Plan | None, status: Status, bound: float | None) -
         deciding=_deciding(opts, after_cases) if scen else None,
         floor_case=pr.case_names[int(np.argmax(floors))] if scen else None,
     )
+
+
+def _objective(run: _Run) -> str:
+    """The objective in words; a group moved as one block counts once (module units)."""
+    text = objective_text(run.opts, run.pr.case_names)
+    if run.opts.mode in ("fewest-moves", "balance") and any(
+        u.group is not None for u in run.pr.units
+    ):
+        text += "; a shared-neutral group moved as one block counts as one relocation"
+    return text
 
 
 def _deciding(opts: SuggestOptions, cases: list[tuple[str, Figures]]) -> str:
