@@ -84,17 +84,32 @@ def _set(table: Any, key: str, value: Any, default: Any = None) -> None:
 
 
 def _insert_table(doc: TOMLDocument, key: str, table: Table, after: tuple[str, ...]) -> None:
-    """Add a filled top-level table after the first existing key of ``after`` (else at the end)."""
+    """Add a filled top-level table after the first existing key of ``after`` (else at the end).
+
+    tomlkit has no public "insert after"; ``Container._insert_at`` (present from
+    tomlkit 0.7 to 0.15) takes a position in ``doc.body``. Any failure appends.
+    """
     table.add(tomlkit.nl())
     keys = list(doc.keys())
     for anchor in after:
         if anchor in doc and anchor != keys[-1]:
+            position = _body_position_after(doc, anchor)
+            if position is None:
+                break
             try:
-                doc._insert_after(anchor, key, table)
+                doc._insert_at(position, key, table)
             except Exception:
                 break
             return
     doc[key] = table
+
+
+def _body_position_after(doc: TOMLDocument, anchor: str) -> int | None:
+    """Index in ``doc.body`` just after the top-level entry ``anchor``, or None."""
+    for index, (body_key, _item) in enumerate(doc.body):
+        if body_key is not None and body_key.key == anchor:
+            return index + 1
+    return None
 
 
 def _quiet_reader() -> Reader:
