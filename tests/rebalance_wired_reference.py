@@ -14,6 +14,11 @@ engine on the schedule of that arrangement (:func:`circuit_arrays`, one row
 per leg, every arrangement in one batch), so each leg sits on the phase of
 its own slot as the panel reads it (``right_column``).
 
+On a high-leg delta (``240/120D``) an arrangement that puts a load to
+neutral on the high leg (a 1-pole breaker, a leg of a breaker with a
+neutral, a group's breaker) cannot be built (README, high leg: such a
+circuit is a located error) and is not listed.
+
 The connected load alone is judged (no ``use`` scenarios).
 """
 
@@ -109,6 +114,23 @@ def _stack(arrays: list[CircuitArrays]) -> CircuitArrays:
     )
 
 
+def _buildable(schedule: Schedule, blocks: list[tuple[int, ...]], firsts: np.ndarray):
+    """Rows of ``firsts`` with no load to neutral on the high leg (module notes)."""
+    high = schedule.panel.effective_high_leg
+    keep = np.ones(firsts.shape[0], dtype=bool)
+    if high is None:
+        return keep
+    rc = schedule.panel.right_column
+    for k, b in enumerate(blocks):
+        c = schedule.circuits[b[0]]
+        if not (len(b) > 1 or c.poles == 1 or c.neutral):
+            continue  # line-to-line or balanced: any phases
+        poles = sum(schedule.circuits[i].poles for i in b)
+        ok = {int(s): high not in pole_phases(int(s), poles, rc) for s in np.unique(firsts[:, k])}
+        keep &= np.array([ok[int(s)] for s in firsts[:, k]], dtype=bool)
+    return keep
+
+
 def enumerate_wired(schedule: Schedule, free: list[int]) -> Enumerated:
     """Every arrangement of the free blocks and its engine figures (module notes).
 
@@ -117,6 +139,7 @@ def enumerate_wired(schedule: Schedule, free: list[int]) -> Enumerated:
     """
     blocks = blocks_of(schedule, free)
     firsts = _arrangements(schedule, blocks)
+    firsts = firsts[_buildable(schedule, blocks, firsts)]
     circuits = schedule.circuits
     rc = schedule.panel.right_column
     old = [circuits[b[0]].slot for b in blocks]

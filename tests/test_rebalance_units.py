@@ -19,6 +19,7 @@ Tolerance: as in the plain sweep (``rebalance_sweep.EDGE``, a relative 1e-7).
 from __future__ import annotations
 
 import collections
+import itertools
 from dataclasses import replace
 
 import numpy as np
@@ -37,7 +38,7 @@ from tri.schedule.slots import RIGHT_CBA, TWO_COLUMN, slot_phases
 from tri.schedule.validate import check_schedule
 
 #: Panels per chunk, chunks of the product's path and of the programs alone [-].
-CHUNK, CHUNKS, MILP_CHUNKS = 10, 3, 1
+CHUNK, CHUNKS, MILP_CHUNKS, HIGH_LEG_CHUNKS = 10, 3, 1, 2
 STATUSES: collections.Counter[tuple[str, str]] = collections.Counter()
 
 
@@ -92,6 +93,33 @@ def _panel(seed: int) -> tuple[np.random.Generator, Schedule]:
     return rng, sched
 
 
+def _high_leg(sched: Schedule) -> Schedule:
+    """The panel on a 240/120 V high-leg delta, high leg B: what would put a load to neutral on B
+    is taken out (a 1-pole breaker there) or made a load without a neutral (README, high leg)."""
+    high = 1
+    circuits = []
+    for c in sched.circuits:
+        on_b = c.phases is not None and high in slot_phases(c.slot or 1, c.poles, "ABC")
+        if c.poles == 1 and (c.phases == (high,) or (c.phases is None and c.poles == 1)):
+            continue
+        if c.neutral and on_b:
+            c = replace(c, neutral=False, leg_values=c.leg_values if c.poles == 3 else None)
+        circuits.append(c)
+    names = collections.Counter(c.shared_neutral for c in circuits if c.shared_neutral)
+    slots = {n: sorted(c.slot or 0 for c in circuits if c.shared_neutral == n) for n in names}
+    broken = {
+        n
+        for n, s in slots.items()
+        if len(s) < 2 or any(b - a != 2 for a, b in itertools.pairwise(s))
+    }
+    circuits = [
+        replace(c, shared_neutral=None, handle_tied=False) if c.shared_neutral in broken else c
+        for c in circuits
+    ]
+    info = replace(sched.panel, system="240/120D", high_leg=high)
+    return replace(sched, panel=info, circuits=tuple(circuits))
+
+
 def _blocks_moved(before: Schedule, after: Schedule, free: list[int]) -> int:
     """Relocations as the reference counts them: placed blocks whose first slot changed."""
     return sum(
@@ -142,6 +170,22 @@ def test_every_claim_of_the_programs_alone_is_true_with_groups(chunk: int) -> No
         false += _false_claims(
             seed, sched, " (programs)", time_limit_s=0.5, floor_gap=0.0, list_plans=False
         )
+    assert not false
+
+
+@pytest.mark.parametrize("chunk", range(HIGH_LEG_CHUNKS))
+def test_every_claim_is_true_on_a_high_leg_delta(chunk: int) -> None:
+    """No load to neutral is offered the high leg, and no claim leans on 120° symmetry."""
+    false = []
+    for seed in range(7_000 + chunk * CHUNK, 7_000 + (chunk + 1) * CHUNK):
+        _, sched = _panel(seed)
+        sched = _high_leg(sched)
+        assert not check_schedule(sched), check_schedule(sched)[0].message
+        false += _false_claims(seed, sched, " (high leg)", time_limit_s=10.0, floor_gap=0.0)
+        with native_stdout_to_devnull():
+            s = suggest(sched, SuggestOptions(relayout=True, time_limit_s=2.0))
+        if check_schedule(s.schedule):  # a 120 V load on the high leg is a located error
+            false.append((seed, "relayout", s.status, check_schedule(s.schedule)[0].message))
     assert not false
 
 

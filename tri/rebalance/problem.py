@@ -47,6 +47,23 @@ phase RMS current ≤ the largest one. ``F`` is a lower bound on the largest
 phase RMS current of *every* plan, and on their mean. With linear loads
 ``F = |I_1|``, the positive-sequence current.
 
+High leg
+--------
+On a high-leg delta (``240/120D``) the phase voltages to neutral are not
+120° apart: the two low phases are 180° apart, the high leg 90° from
+them. A 120 V load moved from A to C has its current reversed, not rotated
+by 120°, so its share of ``J_h`` changes, and so does every ``J_h`` with
+the plan: ``F`` is no bound there, nor are the bounds built on it (the
+crossing and triangle bounds of :mod:`tri.rebalance.crossing` and
+:mod:`tri.rebalance.halves`, the plan-free triplen neutral). On such a
+panel :attr:`Problem.symmetric` is False, ``floor_a`` is 0 and those bounds
+are not used; proofs come from listing every plan
+(:mod:`tri.rebalance.exhaust`) and from the programs, whose rows (the
+magnitude bounds of :mod:`tri.rebalance.lower_bounds`, Cauchy-Schwarz on
+each phase's own currents, and the budget floor of Theorem 3 of
+:mod:`tri.rebalance.crossing`, which is the same inequality) hold for any
+phasors.
+
 With ``use`` scenarios the problem carries every case's currents
 (:mod:`tri.rebalance.cases`): its own arrays are the connected load's,
 :attr:`Problem.others` the problem in each further case.
@@ -182,6 +199,13 @@ class Problem:
         """Schedule indices of the breakers free circuit ``i`` stands for, in pole order."""
         return self.units[i].members if self.units else (int(self.free[i]),)
 
+    def cell_option(self, i: int, phase: int) -> int | None:
+        """Option a 1-pole free circuit ``i`` takes in a slot on ``phase`` (None: not offered)."""
+        for o in self.options_of(i):
+            if self.phases[o] == (phase,):
+                return o
+        return None
+
     def window_option(self, i: int, w: Window) -> int | None:
         """Option free circuit ``i`` takes in window ``w``; None when it cannot go there.
 
@@ -292,7 +316,7 @@ def _unit_options(schedule: Schedule, unit: Unit) -> tuple[list[tuple[int, ...]]
         opts = _options(c, schedule.panel.uses_slots)
         now = _current_kind(c)
         return [ph for _, ph in opts], next((k for k, _ in opts if k == now), -1)
-    orders = wired_orders(schedule, unit.poles)
+    orders = list(unit.orders) if unit.orders else wired_orders(schedule, unit.poles)
     order = current_order(schedule, unit)
     return orders, (orders.index(order) if order in orders else -1)
 
@@ -386,7 +410,11 @@ def build_problem(schedule: Schedule, free: Sequence[int], scenarios: bool = Tru
 
 
 def with_floor(problem: Problem) -> Problem:
+    """The problem with its floor ``F`` (module notes); 0 on a high-leg delta (High leg)."""
     from tri.rebalance.plan_currents import floor_of, spectra
+
+    if not problem.symmetric:
+        return replace(problem, floor_a=0.0)
 
     v, _ = spectra(problem, problem.current_assignment())
     return replace(problem, floor_a=floor_of(v, problem.orders))

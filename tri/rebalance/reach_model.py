@@ -75,9 +75,10 @@ def add_reach_slots(m: Model, pr: Problem, el: Electrical):
                         by_cell[c].append(z)
         else:
             for c in geo.open_cells.tolist():
-                if geo.allowed(b, int(c)):
+                o = pr.cell_option(b, geo.phase_of(int(c)))
+                if o is not None and geo.allowed(b, int(c)):
                     z = m.binary(1)
-                    per_option[int(pr.starts[b]) + geo.phase_of(int(c))].append(z)
+                    per_option[o].append(z)
                     by_cell[int(c)].append(z)
         for o in pr.options_of(b):
             cols = list(per_option.get(o, []))

@@ -48,7 +48,7 @@ from tri.rebalance.plans import TOL, Evaluator, Plan
 from tri.rebalance.problem import Problem, build_problem
 from tri.rebalance.results import CaseResult, Figures, Move, Status, Suggestion, apply_moves
 from tri.rebalance.target import Outcome, solve_target
-from tri.rebalance.units import Unit, free_units
+from tri.rebalance.units import Unit, free_units, rcd_note
 from tri.rebalance.workorder import order_work, rail_steps
 from tri.schedule.model import Schedule
 from tri.schedule.slots import pole_phases
@@ -287,6 +287,17 @@ def suggest(
 def _unit_notes(schedule: Schedule, free: list[int], pr: Problem) -> list[str]:
     """What the output must say about units (:mod:`tri.rebalance.units`)."""
     out = list(free_units(schedule, free)[1])
+    rcd = rcd_note(schedule, pr.units)
+    if rcd is not None:
+        out.append(rcd)
+    high = schedule.panel.effective_high_leg
+    if high is not None:
+        out.append(
+            f"high-leg delta: no 120 V circuit or leg to neutral is offered the high leg "
+            f"{schedule.labels[high]}; the bounds that need phases 120° apart (the floor, "
+            "the crossing and triangle bounds) are not used, so proofs here come from listing "
+            "every plan and from the programs' own bounds"
+        )
     if any(u.group is not None for u in pr.units):
         out.append(
             "a shared-neutral group moves as one block, its breakers side by side in their "

@@ -40,13 +40,35 @@ none of this holds (:mod:`tri.rebalance.problem`, High leg).
 Units with a locked member do not move (every member stays). A new
 (unplaced) circuit that names a ``shared_neutral`` is not placed by the
 rebalancer (it is left unplaced, with a note).
+
+High leg (``system = "240/120D"``). A load to neutral on the high leg
+would see 208 V: a 1-pole circuit, a leg to neutral of a breaker with a
+neutral, a shared-neutral group's breaker. Such units are offered only
+the orders of phases that keep every leg to neutral off the high leg (a
+1-pole circuit: the two low phases; a 2-pole breaker with a neutral: the
+low pair, in the orders the panel gives); 2- and 3-pole loads without a
+neutral keep every option. The phasors of a high-leg delta are not 120°
+apart (the low phases are 180° apart to neutral), so the sequence share of
+a load changes with its phase and none of the bounds built on ``J_h`` is
+used there (:mod:`tri.rebalance.problem`, High leg).
+
+RCD groups (rail boards, ``[[rcd]]`` and ``rcd = "R1"``). A move on a rail
+board reconnects a circuit to other phases *behind its own RCD*: no option
+changes the RCD a circuit sits behind, so circuits always stay behind
+their RCD. A 4-pole RCD feeds every phase, so its circuits may take any
+option. A 2-pole RCD feeds one phase and neutral: a circuit behind it has
+one option, that phase (a unit whose ``orders`` say so), so it never
+moves, and a new one is placed there. Moving a whole 2-pole RCD group to
+another phase (reconnecting the RCD's supply) is not offered; the claims
+are about plans that leave every 2-pole RCD where it is, and the output
+says so.
 """
 
 from __future__ import annotations
 
 import itertools
 from collections.abc import Sequence
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 
 from tri.schedule.model import Schedule
 from tri.schedule.slots import PHASES, pole_phases
@@ -67,12 +89,17 @@ class Unit:
         Its poles' order matters (per-leg loads, or a shared-neutral group).
     group : str or None
         The ``shared_neutral`` name of a group; None for a breaker.
+    orders : tuple of tuple of int, or None
+        The orders of phases it may take when the panel restricts them (a
+        circuit behind a 2-pole RCD: its RCD's phase only); None: every
+        order the panel gives (:func:`wired_orders`).
     """
 
     members: tuple[int, ...]
     poles: int
     wired: bool
     group: str | None = None
+    orders: tuple[tuple[int, ...], ...] | None = None
 
     @property
     def lead(self) -> int:
@@ -123,8 +150,49 @@ def free_units(schedule: Schedule, free: Sequence[int]) -> tuple[list[Unit], lis
             order = _group_order(schedule, members)
             units.append(Unit(order, len(order), True, c.shared_neutral))
             continue
+        phase = _rcd_phase(schedule, c.rcd)
+        if phase is not None:
+            units.append(Unit((i,), c.poles, True, orders=((phase,),)))
+            continue
         units.append(Unit((i,), c.poles, c.has_legs))
+    high = schedule.panel.effective_high_leg
+    if high is not None:
+        units = [_off_the_high_leg(schedule, u, high) for u in units]
     return units, notes
+
+
+def _off_the_high_leg(schedule: Schedule, unit: Unit, high: int) -> Unit:
+    """A unit whose loads to neutral may not take the high leg (module notes, High leg)."""
+    c = schedule.circuits[unit.lead]
+    to_neutral = unit.poles == 1 or unit.group is not None or c.neutral
+    if not to_neutral:
+        return unit  # line-to-line and balanced loads may take any phases
+    orders = unit.orders or tuple(wired_orders(schedule, unit.poles))
+    return replace(unit, wired=True, orders=tuple(o for o in orders if high not in o))
+
+
+def _rcd_phase(schedule: Schedule, name: str | None) -> int | None:
+    """Phase of the 2-pole RCD ``name`` (None for no RCD or a 4-pole one)."""
+    if name is None:
+        return None
+    for r in schedule.rcds:
+        if r.name == name and r.poles == 2:
+            return r.phase
+    return None
+
+
+def rcd_note(schedule: Schedule, units: Sequence[Unit]) -> str | None:
+    """The note on 2-pole RCD groups kept on their phase (module notes), or None."""
+    names = sorted(
+        {schedule.circuits[u.lead].rcd or "" for u in units if u.orders is not None} - {""}
+    )
+    if not names:
+        return None
+    return (
+        f"circuits behind the 2-pole RCD{'s' if len(names) > 1 else ''} {', '.join(names)} "
+        "stay on its phase (an RCD group is not moved to another phase); circuits behind "
+        "4-pole RCDs move among the phases behind their own RCD"
+    )
 
 
 def current_order(schedule: Schedule, unit: Unit) -> tuple[int, ...] | None:

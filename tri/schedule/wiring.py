@@ -348,25 +348,14 @@ def rebalancer_refusal(schedule: Schedule) -> list[str]:
 def single_panel_refusal(schedule: Schedule) -> list[str]:
     """What in ``schedule`` the single-panel rebalancer (``tri suggest``) cannot honour yet.
 
-    It moves breakers with per-leg loads and shared-neutral groups as units
+    It moves breakers with per-leg loads and shared-neutral groups as units,
+    keeps circuits behind their RCD and 120 V circuits off a high leg
     (:mod:`tri.rebalance.units`) and honours a reach limit and a C-B-A right
-    column; a high leg and RCD groups are still refused. The building
-    rebalancer keeps :func:`rebalancer_refusal`. Empty when it can proceed.
+    column: nothing is refused now (kept for what comes next).
+    The building rebalancer keeps :func:`rebalancer_refusal`. Empty when it
+    can proceed.
     """
-    out: list[str] = []
-    panel = schedule.panel
-    if panel.effective_high_leg is not None:
-        out.append(
-            f'[panel] system = "{panel.system}": high-leg delta panels are not yet supported '
-            "by the rebalancer (it could move a 120 V circuit onto the high leg)"
-        )
-    wheres = [_where(c, schedule) for c in schedule.circuits if c.rcd is not None]
-    if wheres:
-        more = f" and {len(wheres) - 3} more" if len(wheres) > 3 else ""
-        out.append(
-            f"RCD groups are not yet supported by the rebalancer ({', '.join(wheres[:3])}{more})"
-        )
-    return out
+    return []
 
 
 def building_refusal(panels: Iterable[tuple[str, Schedule]]) -> list[str]:
