@@ -60,7 +60,12 @@ def stack(views: Sequence[Problem]) -> Stacked:
     )
 
 
-def with_cases(problem: Problem, schedule: Schedule, currents: Callable) -> Problem:
+def with_cases(
+    problem: Problem,
+    schedule: Schedule,
+    currents: Callable,
+    names: tuple[str, ...] | None = None,
+) -> Problem:
     """The problem with every scenario of the schedule's ``use`` factors (module notes).
 
     Parameters
@@ -72,6 +77,10 @@ def with_cases(problem: Problem, schedule: Schedule, currents: Callable) -> Prob
         ``currents(factors)`` -> ``(base, nbase, contrib, ncontrib)``: the
         engine's currents with each circuit's load scaled by ``factors``
         (one per circuit) [A].
+    names : tuple of str, optional
+        These scenarios, in this order (a building's: every panel of it
+        judged in the same cases, a scenario its circuits do not name at
+        1.0); default the schedule's own.
 
     Returns
     -------
@@ -80,7 +89,7 @@ def with_cases(problem: Problem, schedule: Schedule, currents: Callable) -> Prob
     """
     from tri.rebalance.problem import with_floor
 
-    cases = scenario_set(schedule)
+    cases = scenario_set(schedule, names)
     if cases.count == 0:
         return problem
     others = []

@@ -341,7 +341,12 @@ def _capacity(phases, geo: SlotGeometry | None):
     return use_cells, use_window, geo.open_per_phase.copy(), disjoint_window_counts(geo)
 
 
-def build_problem(schedule: Schedule, free: Sequence[int], scenarios: bool = True) -> Problem:
+def build_problem(
+    schedule: Schedule,
+    free: Sequence[int],
+    scenarios: bool = True,
+    case_names: tuple[str, ...] | None = None,
+) -> Problem:
     """Arrays for the rebalancer with the circuits ``free`` open to choice.
 
     Parameters
@@ -356,6 +361,9 @@ def build_problem(schedule: Schedule, free: Sequence[int], scenarios: bool = Tru
     scenarios : bool
         Add the problem in every scenario of the schedule's ``use`` factors
         (module notes, Cases); False: the connected load alone.
+    case_names : tuple of str, optional
+        The scenarios to judge, in order (a building's); default the
+        schedule's own.
 
     Returns
     -------
@@ -363,7 +371,11 @@ def build_problem(schedule: Schedule, free: Sequence[int], scenarios: bool = Tru
     """
     circuits = schedule.circuits
     units, _ = free_units(schedule, free)
-    owner, kind, phases, starts, current = [], [], [], [0], []
+    owner: list[int] = []  # free unit (problem index) of each option
+    kind: list[int] = []
+    phases: list[tuple[int, ...]] = []
+    starts: list[int] = [0]
+    current: list[int] = []
     for fi, unit in enumerate(units):
         opts, now = _unit_options(schedule, unit)
         current.append(-1 if now < 0 else len(owner) + now)
@@ -406,7 +418,7 @@ def build_problem(schedule: Schedule, free: Sequence[int], scenarios: bool = Tru
         return problem
     from tri.rebalance.cases import with_cases
 
-    return with_cases(problem, schedule, lambda f: engine_currents(*engine_args, f))
+    return with_cases(problem, schedule, lambda f: engine_currents(*engine_args, f), case_names)
 
 
 def with_floor(problem: Problem) -> Problem:

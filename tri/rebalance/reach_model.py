@@ -95,9 +95,9 @@ def add_reach_slots(m: Model, pr: Problem, el: Electrical):
     occupant = geo.occupant()
     for c in geo.open_cells.tolist():
         cols = list(by_cell.get(int(c), []))
-        b = occupant.get(int(c))
-        if b is not None and b in stay_col:
-            cols.append(stay_col[b])
+        holder = occupant.get(int(c))
+        if holder is not None and holder in stay_col:
+            cols.append(stay_col[holder])
         if len(cols) > 1:
             m.row(cols, np.ones(len(cols)), -np.inf, 1.0)
     stay = np.array([stay_col[int(b)] for b in placed], dtype=int)

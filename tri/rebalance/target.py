@@ -122,6 +122,7 @@ class _TargetSearch:
         self, pr: Problem, goal: Goal, control: Control, ev: Evaluator, list_plans: bool = True
     ):
         assert goal.target is not None
+        self.target: float = goal.target  # the fewest-relocations search always has one
         self.list_plans = list_plans
         self.pr, self.goal, self.control, self.ev = pr, goal, control, ev
         self.cap = pr.n_movable if goal.max_moves is None else min(goal.max_moves, pr.n_movable)
@@ -159,7 +160,7 @@ class _TargetSearch:
         what = f"at most {budget} phase change{'s' if budget != 1 else ''}"
         self.control.report(f"checking every plan with {what}")
         counted = plans_within(
-            self.pr, self.goal.target, self.goal.neutral_max_a, budget, self.control.stop
+            self.pr, self.target, self.goal.neutral_max_a, budget, self.control.stop
         )
         if counted is None:
             return None
@@ -189,7 +190,7 @@ class _TargetSearch:
         )
         tm = build_target_model(
             self.pr,
-            self.goal.target,
+            self.target,
             budget,
             self.level,
             self.learnt,
@@ -249,7 +250,7 @@ class _TargetSearch:
         return True
 
     def _repair(self, a: np.ndarray, budget: int) -> Plan | None:
-        goal = Goal(self.goal.target, self.goal.neutral_max_a, budget)
+        goal = Goal(self.target, self.goal.neutral_max_a, budget)
         ls = LocalSearch(self.pr, goal, self.control, a)
         ls.descend(max_steps=4 * max(1, budget) + 10)
         ls.prune()
@@ -261,7 +262,7 @@ class _TargetSearch:
         known = self.cap + 1 if self.best_k is None else self.best_k
         self.control.report("bounding the moves by the current that must cross between phases")
         for view in self.views:  # every case must meet the target: each one's bound holds
-            lb = changes_lower_bound(view, self.goal.target, known, self.cap, self.control.stop)
+            lb = changes_lower_bound(view, self.target, known, self.cap, self.control.stop)
             self.lower = max(self.lower, lb)
 
     def run(self) -> Outcome:

@@ -3,8 +3,10 @@
 The plan of :mod:`tri.rebalance.tree_loop` is turned into moves by slot in
 each panel (the single-panel work order, :func:`tri.rebalance.workorder.order_work`),
 carried out on every panel's schedule, and the engine is run on the
-building after the moves (:func:`tri.schedule.tree_to_engine.analyse_building`):
-those figures are reported, and compared with the optimiser's.
+building after the moves (:func:`tri.schedule.tree_to_engine.analyse_building`),
+in every case (the connected load and each scenario of the building): those
+figures are reported, and compared with the optimiser's; a panel meets its
+target only when the engine finds it within in every case.
 """
 
 from __future__ import annotations
@@ -15,10 +17,16 @@ import numpy as np
 
 from tri.rebalance.plans import Plan
 from tri.rebalance.problem import Problem
-from tri.rebalance.results import Figures, Move, apply_moves
+from tri.rebalance.results import CaseResult, Figures, Move, apply_moves
 from tri.rebalance.tree_loop import TreePlan, TreeSearch
 from tri.rebalance.tree_problem import TreeProblem
-from tri.rebalance.tree_results import OutsideFigures, PanelPlan, TreeStatus, TreeSuggestion
+from tri.rebalance.tree_results import (
+    OutsideFigures,
+    PanelPlan,
+    Stopped,
+    TreeStatus,
+    TreeSuggestion,
+)
 from tri.rebalance.workorder import WorkStep, order_work, rail_steps
 from tri.schedule.model import Schedule
 from tri.schedule.tree import ScheduleTree, with_schedules
@@ -26,6 +34,14 @@ from tri.schedule.tree_to_engine import analyse_building
 from tri.words import plural
 
 Work = dict[int, tuple[list[Move], list[WorkStep]]]
+
+
+def analyse_cases(tree: ScheduleTree, case_names: tuple[str, ...]) -> tuple[Any, ...]:
+    """The engine's building analysis in every case (the connected load first)."""
+    return tuple(
+        analyse_building(tree, scenario=None if c == 0 else name)
+        for c, name in enumerate(case_names)
+    )
 
 
 def panel_moves(pr: Problem, plan: Plan, schedule: Schedule) -> tuple[list[Move], list[WorkStep]]:
@@ -79,10 +95,20 @@ def _depth(tp: TreeProblem, k: int) -> int:
 
 
 def _panel_plans(tree, tp, schedules, work: Work, before, after) -> list[PanelPlan]:
+    """Every panel's entry; ``before``/``after``: the engine's analyses, one per case."""
     out = []
+    scenarios = tp.n_cases > 1
     for k, node in enumerate(tp.nodes):
         p = tree.panels[node]
         mv, st = work.get(node, ([], []))
+        cases = tuple(
+            CaseResult(
+                name,
+                Figures.of(before[c].nodes[node].analysis),
+                Figures.of(after[c].nodes[node].analysis),
+            )
+            for c, name in enumerate(tp.case_names)
+        )
         out.append(
             PanelPlan(
                 index=node,
@@ -93,9 +119,10 @@ def _panel_plans(tree, tp, schedules, work: Work, before, after) -> list[PanelPl
                 target_pct=100.0 * float(tp.targets[k]),
                 moves=tuple(mv),
                 steps=tuple(st),
-                before=Figures.of(before.nodes[node].analysis),
-                after=Figures.of(after.nodes[node].analysis),
+                before=cases[0].before,
+                after=cases[0].after,
                 schedule=schedules[node],
+                cases=cases if scenarios else (),
             )
         )
     return out
@@ -132,26 +159,29 @@ def finish(
 
     ``asked``: service and child targets [%] and the cap on relocations;
     ``status``: what the search proved and its bound; ``before``: the
-    engine's building analysis as it is.
+    engine's building analysis as it is, one per case (:func:`analyse_cases`).
     """
     control = search.control
     final, bound = status
     plan = search.best if final != "already-balanced" else None
     schedules, work = _carry_out(tree, tp, plan)
     after_tree = with_schedules(tree, schedules) if work else tree
-    after = analyse_building(after_tree) if work else before
+    after = analyse_cases(after_tree, tp.case_names) if work else before
     notes = list(search.notes)
     if plan is not None and work:
-        mine = tp.deviations_pct(plan.assign)
+        mine = tp.case_deviations_pct(plan.assign)
         engine = np.array(
-            [after.nodes[n].analysis.current_unbalance.max_deviation_pct for n in tp.nodes]
+            [
+                [a.nodes[n].analysis.current_unbalance.max_deviation_pct for n in tp.nodes]
+                for a in after
+            ]
         )
         if np.max(np.abs(mine - engine)) > 1e-6 * max(1.0, float(np.max(engine))):
             notes.append("engine and optimiser figures differ (please report this)")
     panels = _panel_plans(tree, tp, schedules, work, before, after)
     if final in ("optimal", "already-balanced") and not all(p.target_met for p in panels):
         final, bound = "best-found", search.lower
-    stopped = None
+    stopped: Stopped | None = None
     if not search.proven and final != "already-balanced":
         stopped = "cancelled" if control.cancelled() else ("time limit" if control.stop() else None)
     unplaced = sum(1 for n in tp.nodes for c in tree.panels[n].schedule.circuits if not c.is_placed)
@@ -162,7 +192,7 @@ def finish(
         status=final,
         objective=objective,
         panels=tuple(panels),
-        above=_above(tree, tp, before, after),
+        above=_above(tree, tp, before[0], after[0]),
         bound=bound,
         target_pct=asked[0],
         child_target_pct=asked[1],
@@ -172,4 +202,5 @@ def finish(
         solver_calls=search.calls,
         elapsed_s=control.elapsed(),
         tree=after_tree,
+        case_names=tp.case_names,
     )

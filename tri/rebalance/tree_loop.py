@@ -24,6 +24,11 @@ lower bound on the relocations (``lower``):
    without a plan, none within the cap); its bound raises ``lower``; a
    solution is checked exactly and kept, or teaches the program.
 
+When step 1 finds no plan, step 3 runs before step 2: it may prove at once
+that none exists (a panel that cannot meet its target with its own
+breakers), where the listing would run to its limit. The order changes
+only which step proves what, never a claim.
+
 Every plan kept passed the exact check: every node's deviation from the
 superposition of the engine's currents, within its target.
 """
@@ -198,7 +203,7 @@ class TreeSearch:
 
     def model_loop(self, parts: TreeModelParts) -> None:
         """Step 4: the program, round after round (module notes)."""
-        learnt = TreeLearnt(self.tp.size)
+        learnt = TreeLearnt(self.tp.size, self.tp.n_cases)
         while not self.control.stop():
             budget = self.cap if self.best_k is None else min(self.cap, self.best_k - 1)
             if budget < self.lower:

@@ -29,6 +29,11 @@ directions of its spectra, its RMS currents as tangent points) holds at
 every plan; a no-good cut removes only the one set of options it names,
 which was checked exactly and failed.
 
+With scenarios (:mod:`tri.rebalance.tree_problem`, Cases) every node has
+its currents, RMS bounds, exact square and target rows once per case, on
+the same option and slot columns: a plan is feasible only when it meets
+every target in every case, so the program stays a relaxation.
+
 When a node's exact square would need more than :data:`MAX_PRODUCTS`
 products the program is not built (:func:`model_fits` is False) and the
 search relies on listing plans (:mod:`tri.rebalance.tree_search`).
@@ -67,10 +72,10 @@ class TreeLearnt:
 
     Attributes
     ----------
-    cuts : list of list of list of complex ndarray
-        Per node and phase, unit spectra of visited plans.
-    rms : list of list of list of float
-        Per node and phase, RMS currents of visited plans (tangent points) [A].
+    cuts : list of list of list of list of complex ndarray
+        Per case, node and phase, unit spectra of visited plans.
+    rms : list of list of list of list of float
+        Per case, node and phase, RMS currents of visited plans (tangent points) [A].
     nogoods : list of int ndarray
         Global option vectors excluded (checked exactly, failed).
     level : int
@@ -78,46 +83,50 @@ class TreeLearnt:
     """
 
     size: int
+    n_cases: int = 1
     cuts: list = field(default_factory=list)
     rms: list = field(default_factory=list)
     nogoods: list[np.ndarray] = field(default_factory=list)
     level: int = 0
 
     def __post_init__(self) -> None:
-        self.cuts = [[[], [], []] for _ in range(self.size)]
-        self.rms = [[[], [], []] for _ in range(self.size)]
+        self.cuts = [[[[], [], []] for _ in range(self.size)] for _ in range(self.n_cases)]
+        self.rms = [[[[], [], []] for _ in range(self.size)] for _ in range(self.n_cases)]
 
     def learn(self, tp: TreeProblem, assign: np.ndarray) -> None:
-        """Directions and RMS currents of every node's phases at a proposed plan."""
-        v = tp.spectra(assign)
-        for k in range(tp.size):
-            for p in range(3):
-                u = unit_spectrum(v[k, p])
-                if u is not None:
-                    self.cuts[k][p].append(u)
-                self.rms[k][p].append(float(np.sqrt(np.sum(np.abs(v[k, p]) ** 2))))
+        """Directions and RMS currents of every node's phases at a proposed plan, every case."""
+        for c, case in enumerate(tp.views()):
+            v = case.spectra(assign)
+            for k in range(tp.size):
+                for p in range(3):
+                    u = unit_spectrum(v[k, p])
+                    if u is not None:
+                        self.cuts[c][k][p].append(u)
+                    self.rms[c][k][p].append(float(np.sqrt(np.sum(np.abs(v[k, p]) ** 2))))
 
 
 class TreeModelParts:
-    """The node views and their exact squares, computed once per search."""
+    """The node views (every case) and their exact squares, computed once per search."""
 
     def __init__(self, tp: TreeProblem) -> None:
         self.tp = tp
         self.views: list[Problem] = [tp.node_view(k) for k in range(tp.size)]
-        self.squares: list[SquareTerms | None] = [
-            square_terms(v, MAX_PRODUCTS) if v.n_free else None for v in self.views
+        self.squares: list[list[SquareTerms | None]] = [
+            [square_terms(c, MAX_PRODUCTS) for c in v.views()] if v.n_free else []
+            for v in self.views
         ]
-        self._reach: dict[tuple[int, int], list[PhaseReach]] = {}
+        self._reach: dict[tuple[int, int, int], list[PhaseReach]] = {}
 
     def fits(self) -> bool:
-        """True when every node with free circuits below it has its exact square."""
-        return all(s is not None for s, v in zip(self.squares, self.views, strict=True) if v.n_free)
+        """True when every node with free circuits below it has its exact square in every case."""
+        return all(s is not None for per_case in self.squares for s in per_case)
 
-    def reaches(self, k: int, budget: int) -> list[PhaseReach]:
-        """Where node k's phases can go within ``budget`` changes (cached)."""
-        key = (k, budget)
+    def reaches(self, k: int, budget: int, case: int = 0) -> list[PhaseReach]:
+        """Where node k's phases can go within ``budget`` changes in one case (cached)."""
+        key = (k, budget, case)
         if key not in self._reach:
-            self._reach[key] = [phase_reach(self.views[k], p, budget) for p in range(3)]
+            view = self.views[k].views()[case]
+            self._reach[key] = [phase_reach(view, p, budget) for p in range(3)]
         return self._reach[key]
 
 
@@ -171,25 +180,34 @@ def _deviation_rows(m: Model, r0: int, target: float) -> None:
 
 
 def _node_rows(m: Model, parts: TreeModelParts, k: int, x: int, budget: int, learnt) -> None:
-    """Currents, RMS bounds and the target of node ``k`` (module notes)."""
-    tp, view = parts.tp, parts.views[k]
+    """Currents, RMS bounds and the target of node ``k`` in every case (module notes)."""
+    for c, view in enumerate(parts.views[k].views()):
+        _case_rows(m, parts, (k, c), view, x, budget, learnt)
+
+
+def _case_rows(
+    m: Model, parts: TreeModelParts, at: tuple[int, int], view: Problem, x: int, budget: int, learnt
+) -> None:
+    """The rows of :func:`_node_rows` for node ``k`` in case ``c`` (``at = (k, c)``)."""
+    tp = parts.tp
+    k, c = at
     h = tp.orders.size
     xk = x + int(tp.offsets[k])
     v = m.var(6 * h, -np.inf, np.inf)
     _current_rows(m, xk, v, view.contrib.reshape(view.n_options, 3, h), view.base)
     el = Electrical(x=xk, v=v, n=None, h=h)
-    reaches = parts.reaches(k, budget)
+    reaches = parts.reaches(k, budget, c)
     r_maxes = [rc.rms_max * (1 + 1e-9) + 1e-9 for rc in reaches]
     r0 = m.var(3, 0.0, r_maxes)
     res = RESOLUTIONS[learnt.level]
     for p in range(3):
-        add_rms_lower_bounds(m, view, el, p, [r0 + p], reaches[p], learnt.cuts[k][p], res)
-    terms = parts.squares[k]
+        add_rms_lower_bounds(m, view, el, p, [r0 + p], reaches[p], learnt.cuts[c][k][p], res)
+    terms = parts.squares[k][c]
     assert terms is not None
     r_min = max(1e-9, (1.0 - float(tp.targets[k])) * view.floor_a * (1 - 1e-9))
     r_min = min(r_min, min(r_maxes))
     add_exact_square_rows(
-        m, xk, [r0 + p for p in range(3)], terms, r_min, r_maxes, learnt.level, learnt.rms[k]
+        m, xk, [r0 + p for p in range(3)], terms, r_min, r_maxes, learnt.level, learnt.rms[c][k]
     )
     _deviation_rows(m, r0, float(tp.targets[k]))
 

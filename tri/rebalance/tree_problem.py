@@ -36,12 +36,28 @@ options: the block of a *node view* (:meth:`TreeProblem.node_view`), a
 :class:`~tri.rebalance.problem.Problem` whose free circuits are every free
 circuit below that panel and whose currents are ``B_k`` and ``C_ok``; the
 single-panel bounds then apply to it unchanged.
+
+Cases
+-----
+With ``use`` factors anywhere in the building, every panel is judged in
+every *case*: the connected load (every factor 1.0) and each of the
+building's scenarios (:func:`tri.schedule.tree_scenarios.building_scenario_names`;
+a circuit whose ``use`` does not name one is at 1.0 in it). The options,
+slots and transfer matrices are the same in every case; only each panel's
+own currents differ (its loads scaled, by the engine:
+:func:`tri.rebalance.cases.with_cases` with the building's names), so
+``B_k`` and ``C_ok`` are computed once per case. As for one panel
+(:mod:`tri.rebalance.cases`), the problem's own arrays are the connected
+load's and :attr:`TreeProblem.others` holds the search in each further
+case; a plan is good only when every node meets its target in every case,
+so a bound proven in one case is a bound. Node views carry every case too.
 """
 
 from __future__ import annotations
 
 from collections.abc import Sequence
 from dataclasses import dataclass, replace
+from functools import cached_property
 
 import numpy as np
 
@@ -52,8 +68,11 @@ from tri.engine.unbalance import deviation_rate_pct
 from tri.rebalance.plan_currents import floor_of
 from tri.rebalance.problem import WINDOW_TYPES, Problem, build_problem
 from tri.schedule.model import Schedule
+from tri.schedule.to_scenarios import CONNECTED
 from tri.schedule.tree import ScheduleTree
+from tri.schedule.tree_scenarios import building_scenario_names
 from tri.schedule.tree_to_engine import tree_inputs
+from tri.words import plural
 
 #: Largest size of the option-by-panel current table (complex numbers) [-].
 MAX_TABLE = 20_000_000
@@ -106,6 +125,11 @@ class TreeProblem:
         What each option adds at every node (zero outside its ancestors) [A].
     targets : float ndarray, shape (P,)
         Largest deviation from the mean allowed at each node, a fraction [-].
+    case_names : tuple of str
+        The cases, this problem's own first (module notes, Cases).
+    others : tuple of TreeProblem
+        The search in each further case: the same options, other currents
+        (empty without scenarios).
     """
 
     tree: ScheduleTree
@@ -119,6 +143,23 @@ class TreeProblem:
     base: np.ndarray
     contrib: np.ndarray
     targets: np.ndarray
+    case_names: tuple[str, ...] = (CONNECTED,)
+    others: tuple[TreeProblem, ...] = ()
+
+    @property
+    def n_cases(self) -> int:
+        """Number of cases ``S`` (1 without scenarios) [-]."""
+        return 1 + len(self.others)
+
+    def views(self) -> tuple[TreeProblem, ...]:
+        """The search in each case, in :attr:`case_names` order (each with no others)."""
+        if not self.others:
+            return (self,)
+        return (self._own, *self.others)
+
+    @cached_property
+    def _own(self) -> TreeProblem:
+        return replace(self, others=(), case_names=self.case_names[:1])
 
     @property
     def size(self) -> int:
@@ -174,13 +215,21 @@ class TreeProblem:
         return self.base + self.contrib[a].sum(axis=0)
 
     def deviations_pct(self, assign: np.ndarray) -> np.ndarray:
-        """Largest deviation of a phase RMS current from the mean, every node [%] (shape (P,))."""
+        """Largest deviation of a phase RMS current from the mean, every node [%] (shape (P,)).
+
+        In this problem's own case (the connected load); every case:
+        :meth:`case_deviations_pct`.
+        """
         return deviation_rate_pct(rms(self.spectra(assign)))
 
+    def case_deviations_pct(self, assign: np.ndarray) -> np.ndarray:
+        """:meth:`deviations_pct` in every case (shape (S, P)) [%]."""
+        return np.array([v.deviations_pct(assign) for v in self.views()])
+
     def meets(self, assign: np.ndarray, tol: float = 1e-9) -> bool:
-        """Every node within its target (to round-off ``tol``)."""
-        dev = self.deviations_pct(assign)
-        return bool(np.all(dev <= 100.0 * self.targets * (1 + tol) + 1e-12))
+        """Every node within its target in every case (to round-off ``tol``)."""
+        dev = self.case_deviations_pct(assign)
+        return bool(np.all(dev <= 100.0 * self.targets[None, :] * (1 + tol) + 1e-12))
 
     def node_view(self, k: int) -> Problem:
         """Node ``k`` as one panel whose free circuits are every free circuit below it.
@@ -223,7 +272,14 @@ class TreeProblem:
             cap_window=np.full(WINDOW_TYPES, _UNLIMITED, dtype=int),
         )
         v = view.base + view.contrib[view.current_assignment()].sum(axis=0)
-        return replace(view, floor_a=floor_of(v, self.orders))
+        view = replace(view, floor_a=floor_of(v, self.orders), case_names=self.case_names[:1])
+        if not self.others:
+            return view
+        return replace(
+            view,
+            case_names=self.case_names,
+            others=tuple(o.node_view(k) for o in self.others),
+        )
 
 
 def _embed(spectrum: np.ndarray, orders: np.ndarray, into: np.ndarray) -> np.ndarray:
@@ -277,26 +333,65 @@ def build_tree_problem(
     """
     nodes = subtree(tree, service)
     position = {n: k for k, n in enumerate(nodes)}
-    parent = np.array([position.get(tree.panels[n].parent, -1) for n in nodes], dtype=int)
+    parents = (tree.panels[n].parent for n in nodes)
+    parent = np.array([-1 if p is None else position.get(p, -1) for p in parents], dtype=int)
     parent[0] = -1
     ends = np.zeros(len(nodes), dtype=int)
     for k in range(len(nodes) - 1, -1, -1):
         ends[k] = max([k + 1, *[ends[c] for c in range(k + 1, len(nodes)) if parent[c] == k]])
+    names = building_scenario_names(tree)
     problems = tuple(
-        build_problem(tree.panels[n].schedule, tree_free_indices(tree.panels[n].schedule))
+        build_problem(
+            tree.panels[n].schedule, tree_free_indices(tree.panels[n].schedule), case_names=names
+        )
         for n in nodes
     )
     packed = pack_tree(tree_inputs(tree))
     orders = np.concatenate([[1], np.asarray(packed.circuits.orders, dtype=int)])
     n_opt = sum(pr.n_options for pr in problems)
-    if n_opt * len(nodes) * 3 * orders.size > MAX_TABLE:
+    if n_opt * len(nodes) * 3 * orders.size * (1 + len(names)) > MAX_TABLE:
         raise ValueError(
             f"the building is too large to rebalance as one search ({len(nodes)} panels, "
-            f"{n_opt} options); name a panel lower in the tree with --at"
+            f"{n_opt} options, {plural(1 + len(names), 'case')}); name a panel lower in the "
+            "tree with --at"
         )
     matrices = _transfer_matrices(packed, nodes, orders)  # (P, P, H, 3, 3)
-    base = np.zeros((len(nodes), 3, orders.size), dtype=complex)
-    contrib = np.zeros((n_opt, len(nodes), 3, orders.size), dtype=complex)
+    offsets = np.concatenate([[0], np.cumsum([pr.n_options for pr in problems])]).astype(int)
+    circuit_offsets = np.concatenate([[0], np.cumsum([pr.n_free for pr in problems])]).astype(int)
+    targets = np.full(len(nodes), float(child_target))
+    targets[0] = float(service_target)
+    cases = []
+    for c, name in enumerate((CONNECTED, *names)):
+        base, contrib = _rolled_up([pr.views()[c] for pr in problems], matrices, orders)
+        cases.append(
+            TreeProblem(
+                tree=tree,
+                nodes=tuple(nodes),
+                parent=parent,
+                problems=problems,
+                offsets=offsets,
+                circuit_offsets=circuit_offsets,
+                ends=ends,
+                orders=orders,
+                base=base,
+                contrib=contrib,
+                targets=targets,
+                case_names=(name,),
+            )
+        )
+    if not names:
+        return cases[0]
+    return replace(cases[0], case_names=(CONNECTED, *names), others=tuple(cases[1:]))
+
+
+def _rolled_up(
+    problems: Sequence[Problem], matrices: np.ndarray, orders: np.ndarray
+) -> tuple[np.ndarray, np.ndarray]:
+    """``B_k`` (P, 3, H) and ``C_ok`` (O, P, 3, H) of one case, from every node's own [A]."""
+    p_count = len(problems)
+    n_opt = sum(pr.n_options for pr in problems)
+    base = np.zeros((p_count, 3, orders.size), dtype=complex)
+    contrib = np.zeros((n_opt, p_count, 3, orders.size), dtype=complex)
     o = 0
     for j, pr in enumerate(problems):
         own = _embed(pr.base, pr.orders, orders)  # (3, H)
@@ -304,20 +399,4 @@ def build_tree_problem(
         opts = _embed(pr.contrib, pr.orders, orders)  # (O_j, 3, H)
         contrib[o : o + pr.n_options] = np.einsum("khpq,oqh->okph", matrices[j], opts)
         o += pr.n_options
-    offsets = np.concatenate([[0], np.cumsum([pr.n_options for pr in problems])]).astype(int)
-    circuit_offsets = np.concatenate([[0], np.cumsum([pr.n_free for pr in problems])]).astype(int)
-    targets = np.full(len(nodes), float(child_target))
-    targets[0] = float(service_target)
-    return TreeProblem(
-        tree=tree,
-        nodes=tuple(nodes),
-        parent=parent,
-        problems=problems,
-        offsets=offsets,
-        circuit_offsets=circuit_offsets,
-        ends=ends,
-        orders=orders,
-        base=base,
-        contrib=contrib,
-        targets=targets,
-    )
+    return base, contrib

@@ -5,7 +5,7 @@ from __future__ import annotations
 from dataclasses import dataclass
 from typing import Literal
 
-from tri.rebalance.results import Figures, Move
+from tri.rebalance.results import CaseResult, Figures, Move
 from tri.rebalance.workorder import WorkStep
 from tri.schedule.model import Schedule
 from tri.schedule.tree import ScheduleTree
@@ -39,9 +39,14 @@ class PanelPlan:
         The panel's work order.
     before, after : Figures
         The engine's figures of the panel in the building (everything it
-        feeds included), before and after every move of the plan.
+        feeds included), before and after every move of the plan; the
+        connected load's with scenarios.
     schedule : Schedule
         The panel's schedule after its moves.
+    cases : tuple of CaseResult
+        With ``use`` scenarios in the building: the engine's figures of the
+        panel in every case (the connected load first), before and after;
+        empty without.
     """
 
     index: int
@@ -55,11 +60,33 @@ class PanelPlan:
     before: Figures
     after: Figures
     schedule: Schedule
+    cases: tuple[CaseResult, ...] = ()
+
+    @property
+    def worst_after_pct(self) -> float:
+        """The engine's largest deviation after the moves over every case [%]."""
+        if not self.cases:
+            return self.after.max_deviation_pct
+        return max(c.after.max_deviation_pct for c in self.cases)
+
+    @property
+    def worst_before_pct(self) -> float:
+        """The engine's largest deviation before the moves over every case [%]."""
+        if not self.cases:
+            return self.before.max_deviation_pct
+        return max(c.before.max_deviation_pct for c in self.cases)
+
+    @property
+    def deciding(self) -> str | None:
+        """With scenarios, the case of the largest deviation after the moves (the first if tied)."""
+        if not self.cases:
+            return None
+        return max(self.cases, key=lambda c: c.after.max_deviation_pct).name
 
     @property
     def target_met(self) -> bool:
-        """The engine's deviation after the moves is within the target (to round-off)."""
-        return self.after.max_deviation_pct <= self.target_pct * (1 + 1e-9) + 1e-12
+        """The engine's deviation after the moves is within the target in every case (round-off)."""
+        return self.worst_after_pct <= self.target_pct * (1 + 1e-9) + 1e-12
 
     @property
     def relocations(self) -> int:
@@ -113,6 +140,9 @@ class TreeSuggestion:
     elapsed_s : float
     tree : ScheduleTree
         The building after the moves (every panel's schedule).
+    case_names : tuple of str
+        Every case judged: ``("connected",)`` without scenarios, else the
+        connected load then each of the building's scenarios.
     """
 
     status: TreeStatus
@@ -128,6 +158,26 @@ class TreeSuggestion:
     solver_calls: int
     elapsed_s: float
     tree: ScheduleTree
+    case_names: tuple[str, ...] = ("connected",)
+
+    @property
+    def deciding(self) -> tuple[str, PanelPlan] | None:
+        """With scenarios, the case and panel nearest to (or furthest over) its target, after.
+
+        The largest ``deviation - target`` over every panel and case (the
+        first if tied); None without scenarios.
+        """
+        if len(self.case_names) <= 1:
+            return None
+        rows = [
+            (c.after.max_deviation_pct - p.target_pct, -i, c.name, p)
+            for i, p in enumerate(self.panels)
+            for c in p.cases
+        ]
+        if not rows:
+            return None
+        _, _, name, panel = max(rows, key=lambda r: (r[0], r[1]))
+        return name, panel
 
     @property
     def relocations(self) -> int:

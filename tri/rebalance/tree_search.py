@@ -12,7 +12,9 @@ For every node k and phase p, with ``y`` the node's spectrum now and
 ``R_kp² = ||y_kp||² + Σ_{c∈S} (2·Re<y_kp, Δ_c> + ||Δ_c||²) + Σ_{c<c'∈S} 2·Re<Δ_c, Δ_c'>``
 
 so a plan costs a few additions per node and phase once the per-change
-terms and Gram matrices are known; plans are scored in batches.
+terms and Gram matrices are known; plans are scored in batches. With
+scenarios (:mod:`tri.rebalance.tree_problem`, Cases) every case's nodes are
+further nodes with the same targets: a plan passes only in every case.
 
 * :func:`beam_plans`: breadth first by number of changes, keeping the
   ``width`` plans that come nearest to every target (the sum over nodes of
@@ -52,13 +54,14 @@ class Changes:
     option : int ndarray, shape (C,)
         The option it takes.
     base2 : float ndarray, shape (Q,)
-        ``||y_kp||²`` now, ``Q = 3·P`` (node-major) [A²].
+        ``||y_kp||²`` now, ``Q = 3·P·S`` (case-major, then node-major: a
+        node in another case is one more node to judge) [A²].
     lin : float ndarray, shape (C, Q)
         [A²].
     g : float ndarray, shape (C, C, Q)
         ``2·Re<Δ_c, Δ_c'>`` [A²].
-    targets : float ndarray, shape (P,)
-        Per node, a fraction [-].
+    targets : float ndarray, shape (P·S,)
+        Per node of every case, a fraction [-].
     """
 
     circuit: np.ndarray
@@ -81,26 +84,31 @@ class Changes:
 
 
 def changes_of(tp: TreeProblem) -> Changes:
-    """The changes of ``tp`` and their terms."""
+    """The changes of ``tp`` and their terms, every case's nodes one after the other."""
     cur = tp.current_assignment()
     owner = tp.owner
     others = np.array([o for o in range(tp.n_options) if o != cur[owner[o]]], dtype=int)
     circ = owner[others] if others.size else np.zeros(0, dtype=int)
     order = np.argsort(circ, kind="stable")
     others, circ = others[order], circ[order]
-    y = tp.spectra(cur).reshape(-1, tp.orders.size)  # (Q, H)
-    delta = (tp.contrib[others] - tp.contrib[cur[circ]]).reshape(others.size, -1, tp.orders.size)
+    h = tp.orders.size
+    views = tp.views()
+    y = np.concatenate([v.spectra(cur).reshape(-1, h) for v in views])  # (Q, H)
+    delta = np.concatenate(
+        [(v.contrib[others] - v.contrib[cur[circ]]).reshape(others.size, -1, h) for v in views],
+        axis=1,
+    )
     base2 = np.sum(y.real**2 + y.imag**2, axis=-1)
     lin = 2.0 * np.real(np.sum(np.conj(y)[None] * delta, axis=-1)) + np.sum(np.abs(delta) ** 2, -1)
     q = y.shape[0]
     g = np.zeros((others.size, others.size, q))
     for k in range(q):
         g[:, :, k] = gram(delta[:, k, :])
-    return Changes(circ, others, base2, lin, g, tp.targets)
+    return Changes(circ, others, base2, lin, g, np.tile(tp.targets, len(views)))
 
 
 def excess(ch: Changes, r2: np.ndarray) -> np.ndarray:
-    """Deviation above target at every node of a batch of plans (fractions, shape (n, P)).
+    """Deviation above target at every node of every case of a batch of plans (fractions, (n, P·S)).
 
     ``r2`` (n, Q): squared phase RMS currents. Zero where a node meets its
     target (and where its mean current is zero).

@@ -5,6 +5,9 @@ panels below it, after which the service's phase RMS currents are within
 its target of their mean and every panel below it within its own target.
 A panel's figures include everything it feeds, rolled up by the engine
 (feeders and transformers, every harmonic order; :mod:`tri.rebalance.tree_problem`).
+With ``use`` factors in any panel the targets hold in every case at once:
+the connected load and each of the building's scenarios (each step works
+over every case; the engine re-checks the plan in each).
 
 1. the building is turned into arrays (one single-panel problem per panel
    and the engine's transfer of currents up the tree);
@@ -13,8 +16,8 @@ A panel's figures include everything it feeds, rolled up by the engine
    :mod:`tri.rebalance.tree_model`) finds the plan and its proof;
 3. the plan is carried out on every panel's schedule and the engine is run
    on the building before and after
-   (:func:`tri.schedule.tree_to_engine.analyse_building`): those are the
-   figures reported.
+   (:func:`tri.schedule.tree_to_engine.analyse_building`), in every case:
+   those are the figures reported.
 
 The status is a claim about relocations over the panels searched, as the
 work order counts them: ``optimal`` only when proven, ``best-found`` with
@@ -34,15 +37,14 @@ from dataclasses import dataclass
 import numpy as np
 
 from tri.rebalance.control import CancelHook, Control, ProgressCallback
-from tri.rebalance.options import DEFAULT_TARGET_PCT, DEFAULT_TIME_LIMIT_S
-from tri.rebalance.tree_finish import finish
+from tri.rebalance.options import DEFAULT_TARGET_PCT, DEFAULT_TIME_LIMIT_S, cases_text
+from tri.rebalance.tree_finish import analyse_cases, finish
 from tri.rebalance.tree_loop import TreeSearch
 from tri.rebalance.tree_model import TreeModelParts
 from tri.rebalance.tree_problem import TreeProblem, build_tree_problem, subtree
 from tri.rebalance.tree_results import TreeStatus, TreeSuggestion
 from tri.schedule.model import Schedule
 from tri.schedule.tree import ScheduleTree
-from tri.schedule.tree_to_engine import analyse_building
 from tri.schedule.validate import circuit_where
 from tri.schedule.wiring import building_refusal, rebalancer_refusal
 from tri.words import plural
@@ -186,18 +188,13 @@ def tree_refusal(tree: ScheduleTree, nodes: list[int]) -> list[str]:
         p = tree.panels[i]
         out.extend(wired_refusal(p.shown, p.schedule))
         out.extend(f"{p.shown}: {r}" for r in rebalancer_refusal(p.schedule))
-        wheres = [circuit_where(c, p.schedule) for c in p.schedule.circuits if c.use]
-        if wheres:
-            more = f" and {len(wheres) - 3} more" if len(wheres) > 3 else ""
-            out.append(
-                f"{p.shown}: circuits with use factors (scenarios) are not yet supported by the "
-                f"building rebalancer ({', '.join(wheres[:3])}{more})"
-            )
     return list(dict.fromkeys(out))
 
 
-def objective_words(tree: ScheduleTree, nodes: list[int], opts: TreeOptions) -> str:
-    """What the building search minimises, in words."""
+def objective_words(
+    tree: ScheduleTree, nodes: list[int], opts: TreeOptions, case_names: tuple[str, ...] = ()
+) -> str:
+    """What the building search minimises, in words (``case_names``: every case judged)."""
     service = tree.panels[nodes[0]]
     cap = f" (at most {opts.max_moves})" if opts.max_moves is not None else ""
     below = len(nodes) - 1
@@ -210,6 +207,9 @@ def objective_words(tree: ScheduleTree, nodes: list[int], opts: TreeOptions) -> 
     )
     if below:
         text += f" and that of every panel below it within {opts.below_target_pct:g} %"
+    cases = cases_text(case_names)
+    if cases:
+        text += f", in every case ({cases})"
     return (
         text + "; each panel's currents include what it feeds, through feeders and "
         "transformers, every harmonic order, at nominal voltage"
@@ -253,23 +253,23 @@ def suggest_tree(
         raise ValueError("; ".join(refusal))
     control = Control(opts.time_limit_s, progress, cancel)
     control.report("analysing the building as it is", 0.0)
-    before = analyse_building(tree)
     tp = build_tree_problem(
         tree, service, opts.service_target_pct / 100.0, opts.below_target_pct / 100.0
     )
+    before = analyse_cases(tree, tp.case_names)
     movable = int(np.sum(tp.movable)) if tp.n_free else 0
     cap = movable if opts.max_moves is None else min(opts.max_moves, movable)
     search = TreeSearch(tp, control, cap, cancel=cancel)
     status = _search(search, tp, opts)
     final, bound = _status(search, status)
-    words = objective_words(tree, nodes, opts)
+    words = objective_words(tree, nodes, opts, tp.case_names)
     asked = (opts.service_target_pct, opts.below_target_pct, opts.max_moves)
     return finish(tree, tp, search, asked, (final, bound), before, words)
 
 
 def _fixed_failure(tp: TreeProblem) -> list[int]:
-    """Nodes that miss their target whatever moves: nothing below them can move."""
-    dev = tp.deviations_pct(tp.current_assignment())
+    """Nodes that miss their target (in some case) whatever moves: nothing below them can move."""
+    dev = tp.case_deviations_pct(tp.current_assignment()).max(axis=0)
     return [
         k
         for k in range(tp.size)
@@ -293,11 +293,18 @@ def _search(search: TreeSearch, tp: TreeProblem, opts: TreeOptions) -> TreeStatu
             )
         return None
     search.heuristic()
+    # without a first plan the subtree bounds go first: they may prove that none exists
+    # (a panel that cannot meet its target alone) before a long listing of plans
+    early = opts.decompose and opts.use_solver and search.best is None
+    if early:
+        search.decomposed_bound()
+        if search.proven or search.control.stop():
+            return None
     if opts.list_plans:
         search.listing()
     if search.proven or search.control.stop() or not opts.use_solver:
         return None
-    if opts.decompose:
+    if opts.decompose and not early:
         search.decomposed_bound()
         if search.proven or search.control.stop():
             return None

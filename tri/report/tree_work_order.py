@@ -16,12 +16,24 @@ JSON (``tri suggest PARENT --format json``)::
                             "to_phases", "poles", "changes_phase",
                             "set_aside_first"}],
                  "work_order": [{"step", "action", "circuit", "text"}]}],
-     "above": [{"file", "panel", "before", "after"}], "notes", "caution"}
+     "above": [{"file", "panel", "before", "after"}], "notes", "caution",
+     "cases", "deciding_case", "deciding_text"}
 
 ``before``/``after`` are the engine's figures of the panel in the building
 (everything it feeds included): ``phases_rms_a`` by the panel's labels,
 ``neutral_rms_a``, ``max_deviation_pct``, ``limits``. ``stopped`` is
 ``"time limit"``, ``"cancelled"`` or null. Numbers are SI (A, %).
+
+With ``use`` scenarios in the building every target holds in every case
+(the connected load, every factor 1.0, then each scenario): ``cases`` lists
+their names (``["connected"]`` without scenarios), each panel has
+``"cases": [{"name", "deciding", "before", "after"}]`` (its figures in
+every case; ``deciding`` marks its largest deviation after the moves;
+empty without scenarios) and ``before``/``after`` are the connected
+load's; ``deciding_case`` is ``{"case", "panel", "file", "deviation_pct",
+"target_pct"}``, the case and panel nearest to (or furthest over) its
+target after the moves, or null without scenarios; ``deciding_text`` says
+it in words (null without).
 """
 
 from __future__ import annotations
@@ -63,31 +75,48 @@ def tree_status_words(s: TreeSuggestion) -> str:
     """The status as a sentence: exactly what was proven about the relocations searched."""
     budget = f" with at most {plural(s.max_moves, 'relocation')}" if s.max_moves is not None else ""
     where = "in the panels searched" if len(s.panels) > 1 else "in this panel"
+    every = " in every case" if len(s.case_names) > 1 else ""
     stop = {"cancelled": "stopped by the user", "time limit": "in the time limit"}.get(
         s.stopped or "", "in the search"
     )
     if s.status == "already-balanced":
-        return "already balanced: every panel meets its target as it is; no move needed"
+        return f"already balanced: every panel meets its target{every} as it is; no move needed"
     if s.status == "optimal":
         return (
-            f"optimal: proven that no plan with fewer breakers relocated {where} meets every target"
+            f"optimal: proven that no plan with fewer breakers relocated {where} meets every "
+            f"target{every}"
         )
     if s.status == "infeasible":
         return (
             f"targets out of reach (proven): no plan{budget} brings every panel within its "
-            "target; nothing is proposed"
+            f"target{every}; nothing is proposed"
         )
     bound = s.bound or 0
     proven = (
-        f"proven: no plan with fewer than {plural(bound, 'relocation')} meets every target"
+        f"proven: no plan with fewer than {plural(bound, 'relocation')} meets every target{every}"
         if bound > 0
         else "no lower bound on the relocations was proven"
     )
     if s.relocations or s.target_met:
         return f"best found {stop}, not proven optimal; {proven}"
     return (
-        f"no plan{budget} meeting every target was found {stop} (not proven impossible); "
-        f"{proven}; nothing is proposed"
+        f"no plan{budget} meeting every target{every} was found {stop} (not proven "
+        f"impossible); {proven}; nothing is proposed"
+    )
+
+
+def tree_deciding_words(s: TreeSuggestion) -> str | None:
+    """Every case judged and the one that decides after the moves; None without scenarios."""
+    found = s.deciding
+    if found is None:
+        return None
+    name, p = found
+    dev = next(c for c in p.cases if c.name == name).after.max_deviation_pct
+    when = "after the moves" if s.relocations else "as it is"
+    return (
+        f"Judged in every case ({', '.join(s.case_names)}; connected = every use factor "
+        f"1.0). Deciding case {when}: {name}, at {p.panel} (deviation "
+        f"{fixed(dev, 2)}\u00a0% against its target of {p.target_pct:g}\u00a0%)."
     )
 
 
@@ -147,6 +176,15 @@ def tree_suggestion_data(
                 "relocations": p.relocations,
                 "before": _figures(p.before, sched.labels),
                 "after": _figures(p.after, sched.labels),
+                "cases": [
+                    {
+                        "name": c.name,
+                        "deciding": c.name == p.deciding,
+                        "before": _figures(c.before, sched.labels),
+                        "after": _figures(c.after, sched.labels),
+                    }
+                    for c in p.cases
+                ],
                 "moves": _moves(p, sched),
                 "work_order": [
                     {"step": w.number, "action": w.action, "circuit": w.circuit, "text": w.sentence}
@@ -180,6 +218,23 @@ def tree_suggestion_data(
         ],
         "notes": list(s.notes),
         "caution": caution,
+        "cases": list(s.case_names),
+        "deciding_case": _deciding_data(s),
+        "deciding_text": tree_deciding_words(s),
+    }
+
+
+def _deciding_data(s: TreeSuggestion) -> dict[str, Any] | None:
+    found = s.deciding
+    if found is None:
+        return None
+    name, p = found
+    return {
+        "case": name,
+        "panel": p.panel,
+        "file": p.file,
+        "deviation_pct": num(next(c for c in p.cases if c.name == name).after.max_deviation_pct),
+        "target_pct": num(p.target_pct),
     }
 
 
@@ -189,22 +244,33 @@ def render_tree_json(data: dict[str, Any]) -> str:
 
 
 def _figures_table(s: TreeSuggestion, ascii_only: bool) -> Table:
+    """Every panel's figures before and after; with scenarios one row per case under it."""
     t = Table(box=box.ASCII if ascii_only else box.SIMPLE_HEAD, pad_edge=False)
-    t.add_column("Panel", ratio=1)
+    t.add_column("Panel" + (" / case" if len(s.case_names) > 1 else ""), ratio=1)
     t.add_column("Target\n%", justify="right", no_wrap=True)
     t.add_column("Deviation %\nbefore", justify="right", no_wrap=True)
     t.add_column("\nafter", justify="right", no_wrap=True)
     t.add_column("Largest phase A\nbefore", justify="right", no_wrap=True)
     t.add_column("\nafter", justify="right", no_wrap=True)
     for p in s.panels:
-        t.add_row(
-            f"{'  ' * p.depth}{p.panel}",
-            f"{p.target_pct:g}",
-            fixed(p.before.max_deviation_pct, 2),
-            fixed(p.after.max_deviation_pct, 2) + ("" if p.target_met else " over"),
-            fixed(p.before.max_phase_rms_a, 1),
-            fixed(p.after.max_phase_rms_a, 1),
-        )
+        indent = "  " * p.depth
+        rows = [(f"{indent}{p.panel}", p.before, p.after)]
+        if p.cases:
+            t.add_row(f"{indent}{p.panel}", f"{p.target_pct:g}", "", "", "", "")
+            rows = [
+                (f"{indent}  {c.name}{' *' if c.name == p.deciding else ''}", c.before, c.after)
+                for c in p.cases
+            ]
+        for label, before, after in rows:
+            over = after.max_deviation_pct > p.target_pct * (1 + 1e-9) + 1e-12
+            t.add_row(
+                label,
+                "" if p.cases else f"{p.target_pct:g}",
+                fixed(before.max_deviation_pct, 2),
+                fixed(after.max_deviation_pct, 2) + (" over" if over else ""),
+                fixed(before.max_phase_rms_a, 1),
+                fixed(after.max_phase_rms_a, 1),
+            )
     return t
 
 
@@ -265,10 +331,14 @@ def tree_renderables(
         ),
         _figures_table(s, ascii_only),
     ]
+    deciding = tree_deciding_words(s)
+    if deciding:
+        out.append(Text(deciding + " (* marks each panel's worst case.)"))
+    load = ", connected load" if len(s.case_names) > 1 else ""
     for a in s.above:
         out.append(
             Text(
-                f"Not searched (above {s.service.panel}): {a.panel} ({a.file}), deviation "
+                f"Not searched (above {s.service.panel}{load}): {a.panel} ({a.file}), deviation "
                 f"{fixed(a.before.max_deviation_pct, 2)} % before, "
                 f"{fixed(a.after.max_deviation_pct, 2)} % after."
             )

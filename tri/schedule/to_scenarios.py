@@ -41,17 +41,20 @@ def scenario_names(schedule: Schedule) -> tuple[str, ...]:
     return tuple(seen)
 
 
-def scenario_set(schedule: Schedule) -> ScenarioSet:
+def scenario_set(schedule: Schedule, names: tuple[str, ...] | None = None) -> ScenarioSet:
     """The schedule's scenarios as an engine :class:`ScenarioSet` (S may be 0).
 
     ``factors[s, i]`` is circuit ``i``'s share in scenario ``s``: its ``use``
-    value, or 1.0 when it names no such scenario.
+    value, or 1.0 when it names no such scenario. ``names``: these scenarios
+    in this order (a building's, :mod:`tri.schedule.tree_scenarios`);
+    default the schedule's own.
     """
-    names = scenario_names(schedule)
+    names = scenario_names(schedule) if names is None else tuple(names)
     factors = np.ones((len(names), len(schedule.circuits)))
     for i, c in enumerate(schedule.circuits):
         for name, value in c.use:
-            factors[names.index(name), i] = value
+            if name in names:
+                factors[names.index(name), i] = value
     return ScenarioSet(names, factors)
 
 

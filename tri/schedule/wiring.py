@@ -282,7 +282,7 @@ def _check_group(
         seen.setdefault(p, i)
     if len(members) > 3:
         issue(members[3], f"shared neutral '{name}' has {len(members)} legs; expected at most 3")
-    slots = sorted(circuits[i].slot for i in members if circuits[i].slot is not None)
+    slots = sorted(s for s in (circuits[i].slot for i in members) if s is not None)
     if schedule.panel.uses_slots and len(slots) == len(members) > 1:
         same_column = len({s % 2 for s in slots}) == 1
         adjacent = all(b - a == 2 for a, b in itertools.pairwise(slots))

@@ -5,7 +5,8 @@ panel and every panel below it are searched, as ``tri suggest PARENT --at
 PANEL`` does (:func:`tri.rebalance.tree_solve.suggest_tree`), on the
 building as it is on screen (unsaved edits included). The words are the
 command line's (:mod:`tri.report.tree_work_order`): the status and what it
-proves, every panel's deviation before and after from the engine, the work
+proves, every panel's deviation before and after from the engine (with
+``use`` scenarios: the worst over every case, and which case), the work
 order grouped by panel. Esc during a run stops it with the best plan so far
 and its honest status. A applies every move: one undoable edit in each
 panel that changes (u in that panel's view undoes its part). The safety
@@ -71,11 +72,15 @@ def targets_from(target: Any, below: Any) -> TreeOptions | str:
 def result_text(s: TreeSuggestion, before: tuple) -> Text:
     """The status, every panel's deviation, and the work order grouped by panel."""
     t = Text(f"{tree_status_words(s)}.\n", style="bold")
+    scenarios = len(s.case_names) > 1
+    if scenarios:
+        t.append(f"Judged in every case: {', '.join(s.case_names)}; worst case shown.\n")
     for p in s.panels:
         mark = "" if p.target_met else "  over its target"
+        worst = f", {p.deciding}" if scenarios else ""
         t.append(
-            f"{'  ' * p.depth}{p.panel}: deviation {fixed(p.before.max_deviation_pct, 1)} → "
-            f"{fixed(p.after.max_deviation_pct, 1)} % (target {p.target_pct:g} %){mark}\n"
+            f"{'  ' * p.depth}{p.panel}: deviation {fixed(p.worst_before_pct, 1)} → "
+            f"{fixed(p.worst_after_pct, 1)} % (target {p.target_pct:g} %{worst}){mark}\n"
         )
     moving = [p for p in s.panels if p.moves]
     if not moving:
