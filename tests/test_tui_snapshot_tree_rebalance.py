@@ -23,7 +23,9 @@ sizes = pytest.mark.parametrize("size", [(80, 24), (120, 40)], ids=["80x24", "12
 
 
 @pytest.fixture
-def brewery(tmp_path: Path) -> TriApp:
+def brewery(tmp_path: Path, monkeypatch: pytest.MonkeyPatch) -> TriApp:
+    # a finished search whatever the machine's load (the screen's own limit is 5 s)
+    monkeypatch.setattr("tri.tui.screens.tree_rebalance.TIME_LIMIT_S", 60.0)
     shutil.copytree(BREWERY, tmp_path / "brewery")
     return TriApp(tmp_path / "brewery" / "mdp_480.toml", journal=False, theme="textual-dark")
 

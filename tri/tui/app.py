@@ -124,6 +124,7 @@ class TriApp(SavingActions, BuildingActions, App[int]):
         self.session = session
         self.building = building
         self.tree_result = None
+        self.tree_cases = ()
         if building is not None:
             building.visited = {building.current}
         self.analysis = None
@@ -258,6 +259,7 @@ class TriApp(SavingActions, BuildingActions, App[int]):
         self.cases = message.cases
         if message.tree is not None or self.building is None:
             self.tree_result = message.tree
+            self.tree_cases = message.tree_cases
         self.analysis = self._case_analysis()
         self.analysis_error = message.error
         self.checks = message.checks

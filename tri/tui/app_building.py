@@ -31,6 +31,8 @@ class BuildingActions:
 
     building: Building | None = None
     tree_result: Any = None  #: the engine's TreeAnalysis of the building on screen
+    #: the building in every case: (name, TreeAnalysis), the connected load first
+    tree_cases: Any = ()
     session: Any
     generation: int
     journal_enabled: bool
@@ -58,10 +60,10 @@ class BuildingActions:
             return
         b.current = index
         self.session = b.session
-        app.case_name = "connected"
         if self.tree_result is not None:
-            app.analysis = app.connected_analysis = self.tree_result.nodes[index].analysis
-            app.cases = (Case("connected", True, app.analysis),)
+            app.connected_analysis = self.tree_result.nodes[index].analysis
+            app.cases = self.panel_cases(index)
+            app.analysis = app._case_analysis()
         while len(app.screen_stack) > 2:
             app.pop_screen()
         app.request_analysis()
@@ -132,18 +134,41 @@ class BuildingActions:
             return
         self._analyse_tree(self.generation, tree, b.current)
 
+    def panel_cases(self, index: int, tree_cases: Any = None) -> tuple[Case, ...]:
+        """Panel ``index`` in every case of the building (its node of each tree analysis)."""
+        pairs = self.tree_cases if tree_cases is None else tree_cases
+        return tuple(Case(n, n == "connected", tr.nodes[index].analysis) for n, tr in pairs)
+
+    @property
+    def tree_shown(self) -> Any:
+        """The building's analysis in the case the figures show (the connected load if gone)."""
+        app: Any = self
+        for name, tr in self.tree_cases:
+            if name == app.case_name:
+                return tr
+        return self.tree_result
+
     @work(thread=True, exclusive=True, group="analysis", exit_on_error=False)
     def _analyse_tree(self, generation: int, tree: Any, index: int) -> None:
+        """The whole tree in the connected load and in every scenario of the building.
+
+        As ``tri report`` does (:mod:`tri.schedule.tree_scenarios`): a
+        scenario scales every panel's loads by their use factors and rolls
+        the tree up again; the checks of the panel shown judge every case.
+        """
+        from tri.schedule.tree_scenarios import building_scenario_names
         from tri.schedule.tree_to_engine import analyse_building
 
         app: Any = self
         try:
             result = analyse_building(tree)
+            names = building_scenario_names(tree)
+            scenarios = [(n, analyse_building(tree, scenario=n)) for n in names]
+            pairs = (("connected", result), *scenarios)
             node = result.nodes[index].analysis
-            checks = compute.check_results(node, tree.panels[index].schedule)
-            done = AnalysisDone(
-                generation, node, None, checks, (Case("connected", True, node),), result
-            )
+            cases = self.panel_cases(index, pairs)
+            checks = compute.check_results(node, tree.panels[index].schedule, cases)
+            done = AnalysisDone(generation, node, None, checks, cases, result, pairs)
         except Exception as exc:  # an engine failure is a message, not a crash
             done = AnalysisDone(
                 generation, None, f"The engine could not analyse the building: {exc}"

@@ -15,7 +15,9 @@ class AnalysisDone(Message):
     ``checks`` the limits of ``tri check`` judged on it; ``cases`` the
     connected load and each ``use`` scenario (:class:`~tri.schedule.to_scenarios.Case`);
     ``tree`` the building's :class:`~tri.engine.tree_results.TreeAnalysis`
-    when a building is open (``analysis`` is then the current panel's node).
+    when a building is open (``analysis`` is then the current panel's node),
+    and ``tree_cases`` the building in every case: ``(name, TreeAnalysis)``
+    pairs, the connected load first, then each scenario of the building.
     """
 
     def __init__(
@@ -26,6 +28,7 @@ class AnalysisDone(Message):
         checks: Any = (),
         cases: Any = (),
         tree: Any = None,
+        tree_cases: Any = (),
     ) -> None:
         self.generation = generation
         self.analysis = analysis
@@ -33,6 +36,7 @@ class AnalysisDone(Message):
         self.checks = checks
         self.cases = cases
         self.tree = tree
+        self.tree_cases = tree_cases
         super().__init__()
 
 

@@ -29,7 +29,10 @@ with its largest phase current and loading (OVER above 100 %, NEAR above
 the design headroom) and its neutral, everything it feeds included. ↑↓
 move, ← → fold and unfold, Enter opens the panel in the main view, r
 rebalances the panel under the cursor and every panel below it (the fewest
-breakers relocated, in any of them, that bring each within its target). Every
+breakers relocated, in any of them, that bring each within its target). With
+use scenarios in any panel, n chooses the case the figures show (the
+connected load or a scenario of the whole building, as tri report rolls it
+up); the main view then shows the same case. Every
 panel keeps its own file, undo and journal: Ctrl+S saves the panel shown,
 ● marks a panel with unsaved edits, and quitting asks about every one."""
 
@@ -42,7 +45,7 @@ def panel_label(app: Any, index: int, width: int) -> Text:
     name = s.schedule.panel.name
     room = max(width - 36 - 4 * b.depth(index), 12)
     t.append(name if len(name) <= room else name[: room - 1] + "…", style="bold")
-    node = None if app.tree_result is None else app.tree_result.nodes[index]
+    node = None if app.tree_shown is None else app.tree_shown.nodes[index]
     if node is not None:
         a = node.analysis
         top = max(a.phases, key=lambda p: p.rms_a)
@@ -64,7 +67,7 @@ def panel_details(app: Any, index: int) -> Text:
     p = s.schedule.panel
     t = Text(f"{p.name} · {b.name(index)} · {p.system}", style="bold")
     parent = b.parent(index)
-    node = None if app.tree_result is None else app.tree_result.nodes[index]
+    node = None if app.tree_shown is None else app.tree_shown.nodes[index]
     if parent is not None:
         t.append(f" · fed from {b.sessions[parent].schedule.panel.name}")
         circuits = b.sessions[parent].schedule.circuits
@@ -103,12 +106,14 @@ class BuildingScreen(Screen[None]):
         Binding("escape,T", "close", "Back", id="tree.back"),
         Binding("o", "open", "Open", id="tree.open"),
         Binding("r", "rebalance", "Rebalance", id="tree.rebalance"),
+        Binding("n", "scenario", "Case", id="tree.scenario"),
         Binding("q", "app.quit", "Quit", show=False),
     ]
     KEY_WORDS: ClassVar[dict[str, str]] = {
         "close": "back to the panel shown",
         "open": "open the panel under the cursor (Enter does the same)",
         "rebalance": "rebalance the panel under the cursor and every panel below it",
+        "scenario": "the case the figures show: connected load or a scenario of the building",
     }
 
     _ready = False
@@ -156,9 +161,13 @@ class BuildingScreen(Screen[None]):
         width = self.size.width or 80
         for i, node in self.nodes.items():
             node.set_label(panel_label(app, i, width))
-        title = (
-            f" Building · {len(b.sessions)} panels · {b.name(0)}  (Enter opens a panel, Esc back)"
-        )
+        title = f" Building · {len(b.sessions)} panels · {b.name(0)}"
+        if len(app.tree_cases) > 1:
+            case = app.scenario_shown
+            title += " · " + ("connected load" if case is None else f"scenario {case}")
+            title += "  (n: another case)"
+        else:
+            title += "  (Enter opens a panel, Esc back)"
         self.query_one("#tree-title", Static).update(Text(title))
         self._details()
 
@@ -193,6 +202,30 @@ class BuildingScreen(Screen[None]):
         node = self.query_one(Tree).cursor_node
         index = node.data if node is not None and node.data is not None else 0
         self.app.push_screen(TreeRebalanceScreen(index))
+
+    def check_action(self, action: str, parameters: tuple[object, ...]) -> bool | None:
+        """n only where the building has use scenarios."""
+        if action == "scenario":
+            app: Any = self.app
+            return len(app.tree_cases) > 1
+        return True
+
+    def action_scenario(self) -> None:
+        """n: choose the case of the whole building that the figures show."""
+        from tri.tui.screens.scenario_choice import scenario_screen
+
+        app: Any = self.app
+        node = self.query_one(Tree).cursor_node
+        index = node.data if node is not None and node.data is not None else 0
+        screen = scenario_screen(app.panel_cases(index), app.case_name)
+        if screen is None:
+            return
+
+        def chosen(name: str | None) -> None:
+            if name is not None:
+                app.show_case(name)
+
+        self.app.push_screen(screen, chosen)
 
     def action_close(self) -> None:
         self.app.pop_screen()

@@ -204,6 +204,9 @@ class MainScreen(PanelPicking, OtherScreens, CircuitActions, Screen[None]):
             words = ["everything it feeds included"] if feeds else []
             if parent is not None:
                 words.append(f"fed from {b.sessions[parent].schedule.panel.name}")
+            if len(app.cases) > 1:
+                case = app.scenario_shown
+                words.insert(0, "connected load" if case is None else f"scenario {case}")
             return "Results · " + ", ".join(words) + " (T: the tree)"
         if len(app.cases) < 2:
             return "Results"
