@@ -80,28 +80,18 @@ import numpy as np
 
 from tri.rebalance.geometry import SlotGeometry, Window, disjoint_window_counts, slot_geometry
 from tri.rebalance.option_currents import engine_currents
-from tri.rebalance.units import Unit, current_order, free_units, wired_orders
-from tri.schedule.model import Circuit, Schedule
+from tri.rebalance.units import PAIRS as PAIRS  # re-exported
+from tri.rebalance.units import Unit, free_units, pair_index, unit_options
+from tri.schedule.model import Schedule
 from tri.schedule.to_engine import circuit_arrays
 
 if TYPE_CHECKING:
     from tri.rebalance.cases import Stacked
 
-#: The three phase pairs of 2-pole options, in row order of a two-column panel [-].
-PAIRS: tuple[tuple[int, int], ...] = ((0, 1), (1, 2), (2, 0))
 #: Capacity types of the heuristic: 2-pole windows on the pairs A-B, B-C, C-A; 3-pole windows [-].
 WINDOW_TYPES = 4
 #: "No limit" in the capacity arrays of a rail board [-].
 _UNLIMITED = np.iinfo(np.int32).max // 4
-
-
-def pair_index(phases: Sequence[int]) -> int:
-    """Index in :data:`PAIRS` of an (unordered) pair of phases."""
-    s = set(phases)
-    for k, pair in enumerate(PAIRS):
-        if set(pair) == s:
-            return k
-    raise ValueError(f"not a pair of distinct phases: {phases!r}")
 
 
 @dataclass(frozen=True, eq=False)
@@ -286,41 +276,6 @@ class Problem:
         return int(np.sum(self.movable & (np.asarray(assign) != self.current)))
 
 
-def _options(c: Circuit, slots: bool) -> list[tuple[int, tuple[int, ...]]]:
-    """``(kind, phases)`` of every option of a plain breaker."""
-    if c.poles == 1:
-        return [(p, (p,)) for p in range(3)]
-    if c.poles == 2:
-        out = []
-        for k, pair in enumerate(PAIRS):
-            keep = not slots and c.phases is not None and set(c.phases) == set(pair)
-            out.append((k, tuple(c.phases) if keep and c.phases else pair))
-        return out
-    return [(0, (0, 1, 2))]
-
-
-def _current_kind(c: Circuit) -> int:
-    if c.phases is None:
-        return -1
-    if c.poles == 1:
-        return c.phases[0]
-    if c.poles == 2:
-        return pair_index(c.phases)
-    return 0
-
-
-def _unit_options(schedule: Schedule, unit: Unit) -> tuple[list[tuple[int, ...]], int]:
-    """Phases of every option of a unit and the index of its option now (-1: new)."""
-    c = schedule.circuits[unit.lead]
-    if not unit.wired:
-        opts = _options(c, schedule.panel.uses_slots)
-        now = _current_kind(c)
-        return [ph for _, ph in opts], next((k for k, _ in opts if k == now), -1)
-    orders = list(unit.orders) if unit.orders else wired_orders(schedule, unit.poles)
-    order = current_order(schedule, unit)
-    return orders, (orders.index(order) if order in orders else -1)
-
-
 def _capacity(phases, geo: SlotGeometry | None):
     """Slots per phase and capacity type of each option, and what the panel offers."""
     n_opt = len(phases)
@@ -377,7 +332,7 @@ def build_problem(
     starts: list[int] = [0]
     current: list[int] = []
     for fi, unit in enumerate(units):
-        opts, now = _unit_options(schedule, unit)
+        opts, now = unit_options(schedule, unit)
         current.append(-1 if now < 0 else len(owner) + now)
         for k, ph in enumerate(opts):
             owner.append(fi)

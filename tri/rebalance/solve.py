@@ -43,15 +43,13 @@ from tri.rebalance.exhaust import enumeration_fits
 from tri.rebalance.goal import Goal
 from tri.rebalance.halves import halves_fit
 from tri.rebalance.heuristic import LocalSearch, heuristic_plan
+from tri.rebalance.moves import moves_for, unit_notes
 from tri.rebalance.options import SuggestOptions, objective_text
 from tri.rebalance.plans import TOL, Evaluator, Plan
 from tri.rebalance.problem import Problem, build_problem
-from tri.rebalance.results import CaseResult, Figures, Move, Status, Suggestion, apply_moves
+from tri.rebalance.results import CaseResult, Figures, Status, Suggestion, apply_moves
 from tri.rebalance.target import Outcome, solve_target
-from tri.rebalance.units import Unit, free_units, rcd_note
-from tri.rebalance.workorder import order_work, rail_steps
 from tri.schedule.model import Schedule
-from tri.schedule.slots import pole_phases
 from tri.schedule.to_scenarios import analyse_cases
 from tri.schedule.wiring import single_panel_refusal
 
@@ -269,7 +267,7 @@ def suggest(
     free = free_indices(schedule, opts)
     pr = build_problem(schedule, free)
     run = _Run(pr, opts, control, before[0][1], goal, before_cases=before)
-    run.notes.extend(_unit_notes(schedule, free, pr))
+    run.notes.extend(unit_notes(schedule, free, pr))
     reach = schedule.panel.max_row_shift if schedule.panel.uses_slots else None
     if reach is not None:
         run.notes.append(
@@ -282,79 +280,6 @@ def suggest(
     else:
         plan, status, bound = _best_balance(run)
     return _finish(run, plan, status, bound)
-
-
-def _unit_notes(schedule: Schedule, free: list[int], pr: Problem) -> list[str]:
-    """What the output must say about units (:mod:`tri.rebalance.units`)."""
-    out = list(free_units(schedule, free)[1])
-    rcd = rcd_note(schedule, pr.units)
-    if rcd is not None:
-        out.append(rcd)
-    high = schedule.panel.effective_high_leg
-    if high is not None:
-        out.append(
-            f"high-leg delta: no 120 V circuit or leg to neutral is offered the high leg "
-            f"{schedule.labels[high]}; the bounds that need phases 120° apart (the floor, "
-            "the crossing and triangle bounds) are not used, so proofs here come from listing "
-            "every plan and from the programs' own bounds"
-        )
-    if any(u.group is not None for u in pr.units):
-        out.append(
-            "a shared-neutral group moves as one block, its breakers side by side in their "
-            "order, and counts as one relocation; reordering a group's breakers is not offered"
-        )
-    return out
-
-
-def _moves_for(pr: Problem, plan: Plan) -> tuple[list[Move], list]:
-    """The moves of every breaker, and the work order (a group's breakers in one step)."""
-    sched = pr.schedule
-    circuits = sched.circuits
-    moves: dict[int, Move] = {}
-    groups = {u.lead: u.members for u in pr.units if u.group is not None}
-    units = {u.lead: u for u in pr.units}
-    if pr.slots:
-        changing = {}
-        for idx, slot in plan.arrangement.first_slot.items():
-            if circuits[idx].slot == slot:
-                continue
-            changing[idx] = slot
-            unit = units.get(idx)
-            for k, i in enumerate(groups.get(idx, (idx,))):
-                moves[i] = _slot_move(sched, i, slot + 2 * k, unit)
-        steps = order_work(sched, changing, groups)
-    else:
-        changed = []
-        for b, idx in enumerate(pr.free.tolist()):
-            ph = tuple(pr.phases[int(plan.assign[b])])
-            unit = units.get(idx)
-            members = groups.get(idx, (idx,))
-            now = tuple(p for i in members for p in (circuits[i].phases or ()))
-            wired = bool(pr.wired[b])
-            if circuits[idx].phases is not None and (now == ph if wired else set(now) == set(ph)):
-                continue
-            changed.append(idx)
-            for k, i in enumerate(members):
-                c = circuits[i]
-                to = (ph[k],) if len(members) > 1 else ph
-                group = unit.group if unit is not None else None
-                moves[i] = Move(i, c.name, c.poles, None, None, c.phases, to, group, wired)
-        steps = rail_steps(sched, changed, groups)
-    order = [i for s in steps if s.action != "take-out" for i in (s.members or (s.circuit_index,))]
-    return [moves[i] for i in order], steps
-
-
-def _slot_move(sched: Schedule, i: int, slot: int, unit: Unit | None) -> Move:
-    """Breaker ``i`` to first slot ``slot`` (phases in pole order for a wired one)."""
-    c = sched.circuits[i]
-    wired = unit is not None and unit.wired
-    new = sched.placed(c.at_slot(slot))
-    before, after = c.phases, new.phases
-    if wired and c.slot is not None:
-        rc = sched.panel.right_column
-        before, after = pole_phases(c.slot, c.poles, rc), pole_phases(slot, c.poles, rc)
-    group = unit.group if unit is not None else None
-    return Move(i, c.name, c.poles, c.slot, slot, before, after, group, wired)
 
 
 def _case_figures(schedule: Schedule) -> list[tuple[str, Figures]]:
@@ -388,7 +313,7 @@ def _finish(run: _Run, plan: Plan | None, status: Status, bound: float | None) -
     control, pr, opts = run.control, run.pr, run.opts
     if control.cancelled():
         raise Cancelled
-    moves, steps = _moves_for(pr, plan) if plan is not None and pr.n_free else ([], [])
+    moves, steps = moves_for(pr, plan) if plan is not None and pr.n_free else ([], [])
     after_schedule = apply_moves(pr.schedule, moves)
     after_cases = _case_figures(after_schedule) if moves else run.before_cases
     after = after_cases[0][1]

@@ -70,9 +70,21 @@ import itertools
 from collections.abc import Sequence
 from dataclasses import dataclass, replace
 
-from tri.schedule.model import Schedule
+from tri.schedule.model import Circuit, Schedule
 from tri.schedule.slots import PHASES, pole_phases
 from tri.schedule.wiring import circuit_pole_phases
+
+#: The three phase pairs of 2-pole options, in row order of a two-column panel [-].
+PAIRS: tuple[tuple[int, int], ...] = ((0, 1), (1, 2), (2, 0))
+
+
+def pair_index(phases: Sequence[int]) -> int:
+    """Index in :data:`PAIRS` of an (unordered) pair of phases."""
+    s = set(phases)
+    for k, pair in enumerate(PAIRS):
+        if set(pair) == s:
+            return k
+    raise ValueError(f"not a pair of distinct phases: {phases!r}")
 
 
 @dataclass(frozen=True)
@@ -220,3 +232,38 @@ def wired_orders(schedule: Schedule, poles: int) -> list[tuple[int, ...]]:
         if order not in out:
             out.append(order)
     return out
+
+
+def _options(c: Circuit, slots: bool) -> list[tuple[int, tuple[int, ...]]]:
+    """``(kind, phases)`` of every option of a plain breaker."""
+    if c.poles == 1:
+        return [(p, (p,)) for p in range(3)]
+    if c.poles == 2:
+        out = []
+        for k, pair in enumerate(PAIRS):
+            keep = not slots and c.phases is not None and set(c.phases) == set(pair)
+            out.append((k, tuple(c.phases) if keep and c.phases else pair))
+        return out
+    return [(0, (0, 1, 2))]
+
+
+def _current_kind(c: Circuit) -> int:
+    if c.phases is None:
+        return -1
+    if c.poles == 1:
+        return c.phases[0]
+    if c.poles == 2:
+        return pair_index(c.phases)
+    return 0
+
+
+def unit_options(schedule: Schedule, unit: Unit) -> tuple[list[tuple[int, ...]], int]:
+    """Phases of every option of a unit and the index of its option now (-1: new)."""
+    c = schedule.circuits[unit.lead]
+    if not unit.wired:
+        opts = _options(c, schedule.panel.uses_slots)
+        now = _current_kind(c)
+        return [ph for _, ph in opts], next((k for k, _ in opts if k == now), -1)
+    orders = list(unit.orders) if unit.orders else wired_orders(schedule, unit.poles)
+    order = current_order(schedule, unit)
+    return orders, (orders.index(order) if order in orders else -1)

@@ -346,15 +346,8 @@ def rebalancer_refusal(schedule: Schedule) -> list[str]:
 
 
 def single_panel_refusal(schedule: Schedule) -> list[str]:
-    """What in ``schedule`` the single-panel rebalancer (``tri suggest``) cannot honour yet.
-
-    It moves breakers with per-leg loads and shared-neutral groups as units,
-    keeps circuits behind their RCD and 120 V circuits off a high leg
-    (:mod:`tri.rebalance.units`) and honours a reach limit and a C-B-A right
-    column: nothing is refused now (kept for what comes next).
-    The building rebalancer keeps :func:`rebalancer_refusal`. Empty when it
-    can proceed.
-    """
+    """What ``tri suggest`` cannot honour yet: nothing now (:mod:`tri.rebalance.units`);
+    the building rebalancer keeps :func:`rebalancer_refusal`."""
     return []
 
 
