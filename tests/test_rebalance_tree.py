@@ -64,27 +64,56 @@ def _check(s, expected: int | None, service_pct: float, child_pct: float) -> Non
         assert p.after.max_deviation_pct == pytest.approx(d, rel=1e-12, abs=1e-12)
 
 
+def _check_every_step(tree, cases, service_pct: float, child_pct: float) -> int | None:
+    """The search, and each of its steps on its own, against the reference; the optimum."""
+    expected = cases.optimum(service_pct, child_pct)
+    _check(_run(tree, service_pct, child_pct), expected, service_pct, child_pct)
+    # the subtree bounds with the program, the program alone, the listing alone
+    for kw in (
+        {"list_plans": False},
+        {"list_plans": False, "decompose": False},
+        {"use_solver": False},
+    ):
+        _check(_run(tree, service_pct, child_pct, **kw), expected, service_pct, child_pct)
+    return expected
+
+
+def _targets(cases, seed: int) -> list[tuple[float, float]]:
+    rng = np.random.default_rng(100 + seed)
+    services = cases.clear_targets(0, 2, rng)
+    childs = [*cases.clear_targets(1, 2, rng), 200.0]
+    return [(s, c) for s in services for c in childs]
+
+
 @pytest.mark.parametrize(("seed", "children"), BUILDINGS)
 def test_fewest_relocations_match_every_arrangement(tmp_path, seed, children):
     tree = load_tree(write_building(tmp_path, seed, children))
     cases = tree_cases(tree)
-    rng = np.random.default_rng(100 + seed)
-    services = cases.clear_targets(0, 2, rng)
-    childs = [*cases.clear_targets(1, 2, rng), 200.0]
-    checked = set()
-    for service_pct in services:
-        for child_pct in childs:
-            expected = cases.optimum(service_pct, child_pct)
-            checked.add(expected)
-            _check(_run(tree, service_pct, child_pct), expected, service_pct, child_pct)
-            # the subtree bounds with the program, the program alone, the listing alone
-            for kw in (
-                {"list_plans": False},
-                {"list_plans": False, "decompose": False},
-                {"use_solver": False},
-            ):
-                _check(_run(tree, service_pct, child_pct, **kw), expected, service_pct, child_pct)
+    checked = {_check_every_step(tree, cases, s, c) for s, c in _targets(cases, seed)}
     assert len(checked) >= 1
+
+
+def test_c_b_a_child_and_reach_limits_match_every_arrangement(tmp_path):
+    """A child whose right column reads C-B-A, every panel with ``max_row_shift = 1``.
+
+    The reference lists only the arrangements within one row of each
+    breaker's first slot, each slot on its phase as the C-B-A column reads
+    it **[computed]**. Both wiring facts change the answer here (checked
+    against the same building without the reach, and read A-B-C), so a
+    search that ignored either would fail.
+    """
+    seed = 6
+    for name in ("wired", "far", "abc"):
+        (tmp_path / name).mkdir()
+    tree = load_tree(write_building(tmp_path / "wired", seed, 1, cba_child=True, reach=1))
+    cases = tree_cases(tree)
+    no_reach = tree_cases(load_tree(write_building(tmp_path / "far", seed, 1, cba_child=True)))
+    read_abc = tree_cases(load_tree(write_building(tmp_path / "abc", seed, 1, reach=1)))
+    targets = _targets(cases, seed)
+    found = [_check_every_step(tree, cases, s, c) for s, c in targets]
+    assert any(f is not None for f in found)
+    assert any(no_reach.optimum(s, c) != f for (s, c), f in zip(targets, found, strict=True))
+    assert any(read_abc.optimum(s, c) != f for (s, c), f in zip(targets, found, strict=True))
 
 
 def test_linear_roll_up_equals_the_engine(tmp_path):

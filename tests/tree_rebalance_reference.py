@@ -2,7 +2,11 @@
 
 Nothing here uses :mod:`tri.rebalance`. Each panel's unlocked breakers
 (feeder breakers included) are put in every set of first slots its
-geometry allows (:func:`rebalance_reference.arrangements`); arrangements
+geometry allows (:func:`rebalance_reference.arrangements`), within the
+panel's reach limit when it has one (``[panel] max_row_shift``:
+:func:`rebalance_reference.within_reach`, rows counted there); each slot's
+phase is read with the panel's ``right_column`` (A-B-C or C-B-A down the
+even column, :func:`tri.schedule.slots.slot_phases`); arrangements
 that put every breaker on the same phases are one electrical case, kept
 with its fewest relocations (a placed breaker whose first slot changes is
 one relocation). Every combination of one case per panel is written into
@@ -25,7 +29,7 @@ from dataclasses import dataclass
 from pathlib import Path
 
 import numpy as np
-from rebalance_reference import arrangements
+from rebalance_reference import arrangements, within_reach
 
 from tri.schedule.model import Schedule
 from tri.schedule.slots import slot_phases
@@ -44,11 +48,12 @@ class PanelCases:
 def panel_cases(schedule: Schedule) -> PanelCases:
     """Every electrically distinct arrangement of a panel with its fewest relocations."""
     free = [i for i, c in enumerate(schedule.circuits) if c.is_placed and not c.locked]
-    slots = arrangements(schedule, free)
+    slots = within_reach(schedule, free, arrangements(schedule, free))
+    rc = schedule.panel.right_column
     best: dict[tuple, tuple[int, np.ndarray]] = {}
     for row in slots:
         key = tuple(
-            frozenset(slot_phases(int(s), schedule.circuits[i].poles))
+            frozenset(slot_phases(int(s), schedule.circuits[i].poles, rc))
             for s, i in zip(row, free, strict=True)
         )
         moved = sum(
@@ -116,20 +121,25 @@ def _load(rng, slot: int, poles: int, name: str, locked: bool = False) -> str:
     )
 
 
-def _panel(name: str, system: str, spaces: int, body: str) -> str:
+def _panel(name: str, system: str, spaces: int, body: str, wired: str = "") -> str:
     return (
         f'format = 1\n\n[panel]\nname = "{name}"\nsystem = "{system}"\nspaces = {spaces}\n'
-        f"bus_a = 400\n\n{body}"
+        f"bus_a = 400\n{wired}\n{body}"
     )
 
 
-def write_building(folder: Path, seed: int, children: int) -> Path:
+def write_building(
+    folder: Path, seed: int, children: int, cba_child: bool = False, reach: int | None = None
+) -> Path:
     """A small random building (module notes); returns the parent's file.
 
     ``children``: 1 (behind a transformer) or 2 (one direct, one behind a
     transformer). From seed 6 on the child behind the transformer is larger
-    (five 1-pole loads in 8 spaces, one locked).
+    (five 1-pole loads in 8 spaces, one locked). ``cba_child``: that child's
+    right column reads C-B-A (``right_column = "CBA"``); ``reach``: every
+    panel has ``max_row_shift = reach``.
     """
+    limit = "" if reach is None else f"max_row_shift = {reach}\n"
     rng = np.random.default_rng(seed)
     group = ("Dyn", "YNyn0", "Yyn0")[seed % 3]
     body = (
@@ -145,16 +155,17 @@ def write_building(folder: Path, seed: int, children: int) -> Path:
         spaces = 10
     for k, slot in enumerate(loads):
         body += _load(rng, slot, 1, f"Parent load {k + 1}")
-    (folder / "main.toml").write_text(_panel("MAIN", "480Y/277", spaces, body))
+    (folder / "main.toml").write_text(_panel("MAIN", "480Y/277", spaces, body, limit))
     lp = ""
+    cba = 'right_column = "CBA"\n' if cba_child else ""
     lp_slots = [(1, 1), (2, 2), (5, 1)] if seed % 2 else [(1, 1), (3, 1), (2, 1)]
     lp_spaces = 6
     if seed >= 6:  # a larger child: four 1-pole loads, one of them locked
         lp_slots, lp_spaces = [(1, 1), (3, 1), (5, 1), (2, 1), (4, 1)], 8
     for k, (slot, poles) in enumerate(lp_slots):
         lp += _load(rng, slot, poles, f"LP load {k + 1}", locked=seed >= 6 and k == 4)
-    (folder / "lp.toml").write_text(_panel("LP", "208Y/120", lp_spaces, lp))
+    (folder / "lp.toml").write_text(_panel("LP", "208Y/120", lp_spaces, lp, cba + limit))
     if children == 2:
         hp = _load(rng, 1, 1, "HP load 1") + _load(rng, 2, 2, "HP load 2")
-        (folder / "hp.toml").write_text(_panel("HP", "480Y/277", 6, hp))
+        (folder / "hp.toml").write_text(_panel("HP", "480Y/277", 6, hp, limit))
     return folder / "main.toml"

@@ -147,24 +147,17 @@ def wired_refusal(shown: str, schedule: Schedule) -> list[str]:
     group together, nor 120 V circuits off a high leg. The roll-up itself
     carries such panels (:mod:`tri.engine.tree_rows`); the search refuses
     them here whatever the single-panel rebalancer accepts, rather than
-    propose a plan that cannot be built.
+    propose a plan that cannot be built. A right column read C-B-A and a
+    reach limit (``[panel] max_row_shift``) are honoured, not refused: every
+    panel's slots, windows and reach are the single-panel rebalancer's
+    (:mod:`tri.rebalance.geometry`, :mod:`tri.rebalance.slot_model`,
+    :mod:`tri.rebalance.reach_model`, :mod:`tri.rebalance.realise`).
     """
     out = []
     if schedule.panel.effective_high_leg is not None:
         out.append(
             f'{shown}: [panel] system = "{schedule.panel.system}": high-leg delta panels are '
             "not yet supported by the building rebalancer"
-        )
-    if schedule.panel.right_column != "ABC":
-        out.append(
-            f'{shown}: [panel] right_column = "{schedule.panel.right_column}": a right column '
-            "read C-B-A is not yet supported by the building rebalancer (the single-panel "
-            "rebalancer honours it)"
-        )
-    if schedule.panel.max_row_shift is not None:
-        out.append(
-            f"{shown}: [panel] max_row_shift: reach limits are not yet honoured by the "
-            "building rebalancer"
         )
     kinds = (
         ("breakers with a neutral or one load per leg", lambda c: c.has_legs),
@@ -177,6 +170,21 @@ def wired_refusal(shown: str, schedule: Schedule) -> list[str]:
             out.append(
                 f"{shown}: {what} are not yet supported by the building rebalancer "
                 f"({', '.join(wheres[:3])}{more})"
+            )
+    return out
+
+
+def reach_notes(tree: ScheduleTree, nodes: list[int]) -> list[str]:
+    """One note per panel of the search with a reach limit: the claims are within it."""
+    out = []
+    for i in nodes:
+        p = tree.panels[i]
+        reach = p.schedule.panel.max_row_shift if p.schedule.panel.uses_slots else None
+        if reach is not None:
+            out.append(
+                f"reach limit honoured in {p.schedule.panel.name} ({p.shown}): no breaker is "
+                f"offered a slot more than {plural(reach, 'row')} from where it is "
+                "([panel] max_row_shift); every claim here is about plans within that limit"
             )
     return out
 
@@ -260,6 +268,7 @@ def suggest_tree(
     movable = int(np.sum(tp.movable)) if tp.n_free else 0
     cap = movable if opts.max_moves is None else min(opts.max_moves, movable)
     search = TreeSearch(tp, control, cap, cancel=cancel)
+    search.notes.extend(reach_notes(tree, nodes))
     status = _search(search, tp, opts)
     final, bound = _status(search, status)
     words = objective_words(tree, nodes, opts, tp.case_names)
