@@ -50,9 +50,9 @@ from tri.rebalance.crossing import budget_floor
 from tri.rebalance.electrical import add_currents, add_neutral_cuts, add_options, decode_options
 from tri.rebalance.exhaust import best_plans_within, enumeration_fits
 from tri.rebalance.goal import Goal
+from tri.rebalance.halves import PAIR_LIMIT, halves_fit, plans_below
 from tri.rebalance.harmonic_floor import harmonic_floor, smallest_leftover
 from tri.rebalance.heuristic import LocalSearch
-from tri.rebalance.halves import PAIR_LIMIT, halves_fit, plans_below
 from tri.rebalance.lower_bounds import (
     RESOLUTIONS,
     add_rms_lower_bounds,
