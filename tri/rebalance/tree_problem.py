@@ -37,6 +37,21 @@ options: the block of a *node view* (:meth:`TreeProblem.node_view`), a
 circuit below that panel and whose currents are ``B_k`` and ``C_ok``; the
 single-panel bounds then apply to it unchanged.
 
+The neutral
+-----------
+The neutral current of every node is linear in the same way: a node's own
+neutral current returns on its parent's neutral without a transformer, and
+through one the primary's neutral carries the sum of the primary line
+currents (:func:`~tri.engine.tree.roll_up`); so with ``N_k`` the total
+neutral current of node k,
+
+``N_k = NB_k + Σ_o x_o·NC_ok``
+
+read off the same roll-ups (the unit phase currents, and one more roll-up
+of a unit own neutral current per panel). A neutral limit
+(:attr:`TreeProblem.neutral_max_a`) bounds the RMS of ``N`` at the
+service, in every case.
+
 Cases
 -----
 With ``use`` factors anywhere in the building, every panel is judged in
@@ -125,6 +140,13 @@ class TreeProblem:
         What each option adds at every node (zero outside its ancestors) [A].
     targets : float ndarray, shape (P,)
         Largest deviation from the mean allowed at each node, a fraction [-].
+    nbase : complex ndarray, shape (P, H)
+        Neutral current of the fixed circuits at every node, rolled up [A].
+    ncontrib : complex ndarray, shape (O, P, H)
+        What each option adds to every node's neutral current [A].
+    neutral_max_a : float or None
+        Largest neutral RMS current allowed at the service (node 0), in
+        every case [A]; None: no limit.
     case_names : tuple of str
         The cases, this problem's own first (module notes, Cases).
     others : tuple of TreeProblem
@@ -143,6 +165,9 @@ class TreeProblem:
     base: np.ndarray
     contrib: np.ndarray
     targets: np.ndarray
+    nbase: np.ndarray
+    ncontrib: np.ndarray
+    neutral_max_a: float | None = None
     case_names: tuple[str, ...] = (CONNECTED,)
     others: tuple[TreeProblem, ...] = ()
 
@@ -226,10 +251,23 @@ class TreeProblem:
         """:meth:`deviations_pct` in every case (shape (S, P)) [%]."""
         return np.array([v.deviations_pct(assign) for v in self.views()])
 
+    def neutral_spectra(self, assign: np.ndarray) -> np.ndarray:
+        """Neutral current at every node of a plan (complex ndarray, shape (P, H)) [A]."""
+        a = np.asarray(assign, dtype=int)
+        return self.nbase + self.ncontrib[a].sum(axis=0)
+
+    def case_service_neutral_a(self, assign: np.ndarray) -> np.ndarray:
+        """Neutral RMS current at the service in every case (shape (S,)) [A]."""
+        return np.array([float(rms(v.neutral_spectra(assign)[0])) for v in self.views()])
+
     def meets(self, assign: np.ndarray, tol: float = 1e-9) -> bool:
-        """Every node within its target in every case (to round-off ``tol``)."""
+        """Every node within its target, and the service's neutral within its limit, in every
+        case (to round-off ``tol``)."""
         dev = self.case_deviations_pct(assign)
-        return bool(np.all(dev <= 100.0 * self.targets[None, :] * (1 + tol) + 1e-12))
+        if not np.all(dev <= 100.0 * self.targets[None, :] * (1 + tol) + 1e-12):
+            return False
+        lim = self.neutral_max_a
+        return lim is None or bool(np.all(self.case_service_neutral_a(assign) <= lim * (1 + tol)))
 
     def node_view(self, k: int) -> Problem:
         """Node ``k`` as one panel whose free circuits are every free circuit below it.
@@ -289,26 +327,43 @@ def _embed(spectrum: np.ndarray, orders: np.ndarray, into: np.ndarray) -> np.nda
     return out
 
 
-def _transfer_matrices(packed, nodes: Sequence[int], orders: np.ndarray) -> np.ndarray:
-    """``M[j, k, h]`` (3×3): node j's own line currents to node k's totals (module notes).
+def _transfer_matrices(
+    packed, nodes: Sequence[int], orders: np.ndarray
+) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """Node j's own currents to node k's totals (module notes), read off the engine's roll-up.
 
-    Three roll-ups per node, each a unit current on one phase at every order.
+    Returns ``M`` (P, P, H, 3, 3): own line currents to line currents;
+    ``NP`` (P, P, H, 3): own line currents to the neutral; ``NN`` (P, P, H):
+    own neutral current to the neutral. Four roll-ups per node, each a unit
+    current on one phase (or the neutral) at every order.
     """
     n_all, h = packed.size, orders.size
     pos = np.asarray(nodes, dtype=int)
     out = np.zeros((len(nodes), len(nodes), h, 3, 3), dtype=complex)
+    to_n = np.zeros((len(nodes), len(nodes), h, 3), dtype=complex)
+    n_to_n = np.zeros((len(nodes), len(nodes), h), dtype=complex)
+    zero_n = np.zeros((n_all, h), dtype=complex)
     for j, node in enumerate(nodes):
         for p in range(3):
             phase = np.zeros((n_all, 3, h), dtype=complex)
             phase[node, p, :] = 1.0
-            own = Spectra(phase, np.zeros((n_all, h), dtype=complex), phase)
-            total, _ = roll_up(packed, own, orders)
+            total, _ = roll_up(packed, Spectra(phase, zero_n, phase), orders)
             out[j, :, :, :, p] = np.swapaxes(total.phase[pos], -1, -2)
-    return out
+            to_n[j, :, :, p] = total.neutral[pos]
+        neutral = np.zeros((n_all, h), dtype=complex)
+        neutral[node, :] = 1.0
+        no_lines = np.zeros((n_all, 3, h), dtype=complex)
+        total, _ = roll_up(packed, Spectra(no_lines, neutral, no_lines), orders)
+        n_to_n[j] = total.neutral[pos]
+    return out, to_n, n_to_n
 
 
 def build_tree_problem(
-    tree: ScheduleTree, service: int, service_target: float, child_target: float
+    tree: ScheduleTree,
+    service: int,
+    service_target: float,
+    child_target: float,
+    neutral_max_a: float | None = None,
 ) -> TreeProblem:
     """Arrays of the search for the panel ``service`` and every panel below it.
 
@@ -321,6 +376,8 @@ def build_tree_problem(
     service_target, child_target : float
         Largest deviation from the mean at the service and at every other
         panel of the search, fractions [-].
+    neutral_max_a : float, optional
+        Largest neutral RMS current at the service [A].
 
     Returns
     -------
@@ -355,14 +412,16 @@ def build_tree_problem(
             f"{n_opt} options, {plural(1 + len(names), 'case')}); name a panel lower in the "
             "tree with --at"
         )
-    matrices = _transfer_matrices(packed, nodes, orders)  # (P, P, H, 3, 3)
+    matrices = _transfer_matrices(packed, nodes, orders)
     offsets = np.concatenate([[0], np.cumsum([pr.n_options for pr in problems])]).astype(int)
     circuit_offsets = np.concatenate([[0], np.cumsum([pr.n_free for pr in problems])]).astype(int)
     targets = np.full(len(nodes), float(child_target))
     targets[0] = float(service_target)
     cases = []
     for c, name in enumerate((CONNECTED, *names)):
-        base, contrib = _rolled_up([pr.views()[c] for pr in problems], matrices, orders)
+        base, contrib, nbase, ncontrib = _rolled_up(
+            [pr.views()[c] for pr in problems], matrices, orders
+        )
         cases.append(
             TreeProblem(
                 tree=tree,
@@ -376,6 +435,9 @@ def build_tree_problem(
                 base=base,
                 contrib=contrib,
                 targets=targets,
+                nbase=nbase,
+                ncontrib=ncontrib,
+                neutral_max_a=neutral_max_a,
                 case_names=(name,),
             )
         )
@@ -385,18 +447,27 @@ def build_tree_problem(
 
 
 def _rolled_up(
-    problems: Sequence[Problem], matrices: np.ndarray, orders: np.ndarray
-) -> tuple[np.ndarray, np.ndarray]:
-    """``B_k`` (P, 3, H) and ``C_ok`` (O, P, 3, H) of one case, from every node's own [A]."""
+    problems: Sequence[Problem], matrices, orders: np.ndarray
+) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
+    """``B_k`` (P, 3, H), ``C_ok`` (O, P, 3, H), ``NB_k`` (P, H) and ``NC_ok`` (O, P, H) of one
+    case, from every node's own currents [A]."""
+    lines, to_n, n_to_n = matrices
     p_count = len(problems)
     n_opt = sum(pr.n_options for pr in problems)
     base = np.zeros((p_count, 3, orders.size), dtype=complex)
     contrib = np.zeros((n_opt, p_count, 3, orders.size), dtype=complex)
+    nbase = np.zeros((p_count, orders.size), dtype=complex)
+    ncontrib = np.zeros((n_opt, p_count, orders.size), dtype=complex)
     o = 0
     for j, pr in enumerate(problems):
         own = _embed(pr.base, pr.orders, orders)  # (3, H)
-        base += np.einsum("khpq,qh->kph", matrices[j], own)
+        own_n = _embed(pr.nbase, pr.orders, orders)  # (H,)
+        base += np.einsum("khpq,qh->kph", lines[j], own)
+        nbase += np.einsum("khq,qh->kh", to_n[j], own) + n_to_n[j] * own_n[None, :]
         opts = _embed(pr.contrib, pr.orders, orders)  # (O_j, 3, H)
-        contrib[o : o + pr.n_options] = np.einsum("khpq,oqh->okph", matrices[j], opts)
+        opts_n = _embed(pr.ncontrib, pr.orders, orders)  # (O_j, H)
+        sl = slice(o, o + pr.n_options)
+        contrib[sl] = np.einsum("khpq,oqh->okph", lines[j], opts)
+        ncontrib[sl] = np.einsum("khq,oqh->okh", to_n[j], opts) + n_to_n[j][None] * opts_n[:, None]
         o += pr.n_options
-    return base, contrib
+    return base, contrib, nbase, ncontrib
