@@ -29,10 +29,14 @@ class Result:
     stderr: str
 
 
-def run_tri(*args: str) -> Result:
-    """``tri ARGS...`` in this process."""
+def run_tri(*args: str, cwd: Path | None = None) -> Result:
+    """``tri ARGS...`` in this process (in folder ``cwd`` when given)."""
     out, err = io.StringIO(), io.StringIO()
-    with contextlib.redirect_stdout(out), contextlib.redirect_stderr(err):
+    with contextlib.ExitStack() as stack:
+        if cwd is not None:
+            stack.enter_context(contextlib.chdir(cwd))
+        stack.enter_context(contextlib.redirect_stdout(out))
+        stack.enter_context(contextlib.redirect_stderr(err))
         code = main(list(args))
     return Result(code, out.getvalue(), err.getvalue())
 

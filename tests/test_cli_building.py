@@ -11,30 +11,19 @@ through JSON: 1e-8 relative (the report rounds to 9 significant digits).
 from __future__ import annotations
 
 import json
-import os
-import subprocess
-import sys
 from pathlib import Path
 
 import pytest
+from cli_support import Result, run_tri
 
 ROOT = Path(__file__).parents[1]
 BREWERY = ROOT / "tri" / "panels_demo" / "brewery"
 MDP = str(BREWERY / "mdp_480.toml")
 
 
-def tri(*args: str, cwd: Path | None = None) -> subprocess.CompletedProcess[str]:
-    env = {k: v for k, v in os.environ.items() if k not in ("NO_COLOR", "FORCE_COLOR")}
-    env["PYTHONIOENCODING"] = "utf-8"
-    return subprocess.run(
-        [sys.executable, "-m", "tri", *args],
-        capture_output=True,
-        text=True,
-        encoding="utf-8",
-        env=env,
-        cwd=cwd,
-        timeout=120,
-    )
+def tri(*args: str, cwd: Path | None = None) -> Result:
+    """``tri ARGS...`` in this process (the same code as the command, without start-up)."""
+    return run_tri(*args, cwd=cwd)
 
 
 @pytest.fixture(scope="module")

@@ -15,6 +15,7 @@ from pathlib import Path
 
 import numpy as np
 import pytest
+from cli_support import Result, run_tri
 
 from tri.engine.scenarios import ScenarioSet, scale_circuits
 from tri.schedule.load import load_schedule
@@ -57,10 +58,9 @@ load_a = 10
 """
 
 
-def tri(*args: str, cwd: Path | None = None) -> subprocess.CompletedProcess[str]:
-    return subprocess.run(
-        [sys.executable, "-m", "tri", *args], capture_output=True, text=True, cwd=cwd, check=False
-    )
+def tri(*args: str, cwd: Path | None = None) -> Result:
+    """``tri ARGS...`` in this process (the same code as the command, without start-up)."""
+    return run_tri(*args, cwd=cwd)
 
 
 def write_case(tmp_path: Path, extra: str = "", peak_start: int = 10) -> Path:

@@ -39,9 +39,15 @@ def tri(*args: str, cwd: Path | None = None, **extra: str) -> subprocess.Complet
     )
 
 
+#: Demos run through the real command in every format; tests/test_report_golden.py checks
+#: every demo in every format in-process (the same render), so two here prove the command
+#: writes those bytes unchanged: the garage (OVER, harmonics) and the high-leg woodshop.
+COMMAND_DEMOS = [d for d in DEMOS if d.stem in ("garage_ev_208", "woodshop_240d")]
+
+
 @pytest.fixture(scope="module")
 def golden_runs() -> dict[tuple[str, str], subprocess.CompletedProcess[bytes]]:
-    """Every demo in every format, run concurrently to keep the suite quick."""
+    """The command demos in every format, run concurrently to keep the suite quick."""
     procs = {
         (d.stem, fmt): subprocess.Popen(
             [sys.executable, "-m", "tri", "report", str(d), "--format", fmt],
@@ -49,7 +55,7 @@ def golden_runs() -> dict[tuple[str, str], subprocess.CompletedProcess[bytes]]:
             stderr=subprocess.PIPE,
             env=env(),
         )
-        for d in DEMOS
+        for d in COMMAND_DEMOS
         for fmt in EXT
     }
     out = {}
@@ -60,7 +66,7 @@ def golden_runs() -> dict[tuple[str, str], subprocess.CompletedProcess[bytes]]:
 
 
 @pytest.mark.parametrize("fmt", list(EXT))
-@pytest.mark.parametrize("demo", DEMOS, ids=lambda p: p.stem)
+@pytest.mark.parametrize("demo", COMMAND_DEMOS, ids=lambda p: p.stem)
 def test_command_output_equals_golden(demo: Path, fmt: str, golden_runs: dict) -> None:
     r = golden_runs[(demo.stem, fmt)]
     assert r.returncode == 0, r.stderr.decode()

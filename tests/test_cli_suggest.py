@@ -10,11 +10,11 @@ exits 1 with status ``infeasible``.
 from __future__ import annotations
 
 import json
-import subprocess
-import sys
 from pathlib import Path
 
 import pytest
+from cli_support import Result, spawn_tri
+from cli_support import run_tri as in_process
 
 from tri.cli.common import SAFETY_CAUTION
 from tri.schedule.load import load_schedule
@@ -77,14 +77,9 @@ CONTRACT_MOVE_KEYS = {"circuit", "from_slot", "to_slot", "from_phases", "to_phas
 CONTRACT_FIGURE_KEYS = {"phases_rms_a", "neutral_rms_a", "max_deviation_pct"}
 
 
-def run_tri(*args: str, cwd: Path | None = None) -> subprocess.CompletedProcess[str]:
-    return subprocess.run(
-        [sys.executable, "-m", "tri", "suggest", *args],
-        capture_output=True,
-        text=True,
-        cwd=cwd,
-        timeout=60,
-    )
+def run_tri(*args: str, cwd: Path | None = None) -> Result:
+    """``tri suggest ARGS...`` in this process (the contract test below spawns the command)."""
+    return in_process("suggest", *args, cwd=cwd)
 
 
 @pytest.fixture
@@ -95,7 +90,8 @@ def panel_file(tmp_path: Path) -> Path:
 
 
 def test_json_follows_the_contract_and_is_alone_on_stdout(panel_file: Path) -> None:
-    out = run_tri(str(panel_file), "--target", "5", "--format", "json")
+    # a real process: nothing the solver prints natively may reach standard output
+    out = spawn_tri("suggest", str(panel_file), "--target", "5", "--format", "json")
     assert out.returncode == 0, out.stderr
     data = json.loads(out.stdout)  # the whole of stdout is one JSON object
     # seven breakers: every plan is listed, so the answer is proven (that it is

@@ -9,11 +9,10 @@ import csv
 import io
 import json
 import math
-import subprocess
-import sys
 from pathlib import Path
 
 import pytest
+from cli_support import Result, run_tri
 
 from tri.schedule.load import load_schedule
 from tri.schedule.to_engine import analyse_schedule
@@ -23,10 +22,9 @@ DEMO = ROOT / "tri" / "panels_demo" / "woodshop_240d.toml"
 MWBC = ROOT / "tests" / "data" / "wiring" / "mwbc_208.toml"
 
 
-def tri(*args: str, cwd: Path | None = None) -> subprocess.CompletedProcess[str]:
-    return subprocess.run(
-        [sys.executable, "-m", "tri", *args], capture_output=True, text=True, timeout=120, cwd=cwd
-    )
+def tri(*args: str, cwd: Path | None = None) -> Result:
+    """``tri ARGS...`` in this process (the same code as the command, without start-up)."""
+    return run_tri(*args, cwd=cwd)
 
 
 @pytest.mark.parametrize("fmt", ["text", "json", "markdown", "csv"])

@@ -8,12 +8,11 @@ column.
 
 from __future__ import annotations
 
-import subprocess
-import sys
 from dataclasses import replace
 from pathlib import Path
 
 import pytest
+from cli_support import assert_clean_error, run_tri
 
 from tri.schedule.errors import ScheduleError
 from tri.schedule.load import load_schedule, parse_schedule
@@ -84,15 +83,7 @@ def test_bad_wiring_is_located(name: str) -> None:
 
 @pytest.mark.parametrize("name", ["high_leg_one_pole.toml", "legs_pole_mismatch.toml"])
 def test_cli_exits_2_on_bad_wiring(name: str) -> None:
-    result = subprocess.run(
-        [sys.executable, "-m", "tri", "report", str(BAD / name)],
-        capture_output=True,
-        text=True,
-        timeout=60,
-    )
-    assert result.returncode == 2
-    assert "Traceback" not in result.stderr
-    assert result.stdout == ""
+    assert_clean_error(run_tri("report", str(BAD / name)))
 
 
 def _panel(extra: str = "", system: str = "208Y/120", circuits: str = "") -> str:

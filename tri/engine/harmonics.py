@@ -234,48 +234,14 @@ def order_currents(
     )
     mag, unit = polar_unit(i_e)
 
-    # Collector matrix, scaled by |I_e| so the spectrum below is per unit:
-    # rows 0-2 the 1-/2-pole incidence (+1 on p, -1 on q), row 3 picks 3-pole
-    # circuits, row 4 line-to-neutral ones (the neutral); rows 5-8 repeat 0-3
-    # with the weights.
-    out_on, back_on = line_masks(circuits)
-    n_rows = 5 if weights is None else 9
-    collect = np.empty((*batch, n_rows, n))
-    np.subtract(out_on, back_on, out=collect[..., :3, :], dtype=float)
-    collect[..., 3, :] = tp
-    collect[..., 4, :] = ln
-    if weights is not None:
-        np.multiply(
-            collect[..., :4, :], np.asarray(weights, float)[..., None, :], out=collect[..., 5:, :]
-        )
-    collect *= mag[..., None, :]
-
-    # per-unit spectrum powers for the per-circuit RMS: column 0 Σ_{h>1} m_h²,
-    # column 1 its triplen part (3-pole circuits cannot draw it)
-    pick = np.stack([np.ones(n_h), (orders % 3 == 0).astype(float)], axis=-1)
-    pick = np.repeat(pick, 2, axis=0)  # rows for the real and imaginary parts
-
+    collect = _collector(circuits, ln, tp, mag, weights)
+    n_rows = collect.shape[-2]
     sums = np.empty((*batch, n_rows, n_h + 1), dtype=complex)
     unit_pairs = unit.view(np.float64).reshape(*batch, n, 2)
     sums[..., 0] = (collect @ unit_pairs).view(complex)[..., 0]  # the fundamental
     power = np.zeros((*batch, n, 2))
     if n_h:
-        flat = int(np.prod(batch, dtype=int))
-        sums_h = sums.reshape(flat, n_rows, n_h + 1)[..., 1:]
-        power_f = power.reshape(flat, n, 2)
-        collect_f = collect.reshape(flat, n_rows, n)
-        unit_f = unit.reshape(flat, n)
-        harm_f = harm.reshape(flat, n, n_h)
-        step = max(1, CHUNK_ELEMENTS // (n * n_h or 1))
-        for lo in range(0, flat, step):
-            hi = min(flat, lo + step)
-            spec = unit_powers(unit_f[lo:hi], orders)  # u^h, (m, n, h)
-            np.multiply(spec, harm_f[lo:hi], out=spec)  # m_h e^{jδ_h} u^h = E_h / |I_e|
-            # real view: a real matrix product, half the work of a complex one
-            pairs = spec.view(np.float64)
-            sums_h[lo:hi] = (collect_f[lo:hi] @ pairs).view(complex)
-            sq = np.square(pairs, out=pairs).reshape(-1, 2 * n_h)  # one 2-D product
-            power_f[lo:hi] = (sq @ pick).reshape(hi - lo, n, 2)  # Σ |E_h/|I_e||² = Σ m_h²
+        _harmonic_sums(collect, unit, harm, orders, sums, power)
 
     phase = sums[..., :3, :] + sums[..., 3:4, :] * rot
     weighted = None
@@ -295,6 +261,69 @@ def order_currents(
         harmonic_power_pu=harmonic,
         triplen_power_pu=triplen,
     )
+
+
+def _collector(
+    circuits: CircuitArrays,
+    ln: np.ndarray,
+    tp: np.ndarray,
+    mag: np.ndarray,
+    weights: np.ndarray | None,
+) -> np.ndarray:
+    """Collector matrix, scaled by |I_e| [A] so the spectrum it multiplies is per unit.
+
+    Rows 0-2 the 1-/2-pole incidence (+1 on p, -1 on q), row 3 picks 3-pole
+    circuits, row 4 line-to-neutral ones (the neutral); rows 5-8 repeat 0-3
+    with the weights. Shape (..., 5 or 9, n).
+    """
+    batch, n = mag.shape[:-1], mag.shape[-1]
+    out_on, back_on = line_masks(circuits)
+    n_rows = 5 if weights is None else 9
+    collect = np.empty((*batch, n_rows, n))
+    np.subtract(out_on, back_on, out=collect[..., :3, :], dtype=float)
+    collect[..., 3, :] = tp
+    collect[..., 4, :] = ln
+    if weights is not None:
+        np.multiply(
+            collect[..., :4, :], np.asarray(weights, float)[..., None, :], out=collect[..., 5:, :]
+        )
+    collect *= mag[..., None, :]
+    return collect
+
+
+def _harmonic_sums(
+    collect: np.ndarray,
+    unit: np.ndarray,
+    harm: np.ndarray,
+    orders: np.ndarray,
+    sums: np.ndarray,
+    power: np.ndarray,
+) -> None:
+    """Fill ``sums[..., 1:]`` (collected currents at each harmonic order [A]) and
+    ``power`` (per circuit: Σ_{h>1} m_h² and its triplen part [-]) in place, in
+    chunks of panels of about ``CHUNK_ELEMENTS`` elements."""
+    batch, n = unit.shape[:-1], unit.shape[-1]
+    n_rows, n_h = collect.shape[-2], orders.size
+    # per-unit spectrum powers for the per-circuit RMS: column 0 Σ_{h>1} m_h²,
+    # column 1 its triplen part (3-pole circuits cannot draw it)
+    pick = np.stack([np.ones(n_h), (orders % 3 == 0).astype(float)], axis=-1)
+    pick = np.repeat(pick, 2, axis=0)  # rows for the real and imaginary parts
+    flat = int(np.prod(batch, dtype=int))
+    sums_h = sums.reshape(flat, n_rows, n_h + 1)[..., 1:]
+    power_f = power.reshape(flat, n, 2)
+    collect_f = collect.reshape(flat, n_rows, n)
+    unit_f = unit.reshape(flat, n)
+    harm_f = harm.reshape(flat, n, n_h)
+    step = max(1, CHUNK_ELEMENTS // (n * n_h or 1))
+    for lo in range(0, flat, step):
+        hi = min(flat, lo + step)
+        spec = unit_powers(unit_f[lo:hi], orders)  # u^h, (m, n, h)
+        np.multiply(spec, harm_f[lo:hi], out=spec)  # m_h e^{jδ_h} u^h = E_h / |I_e|
+        # real view: a real matrix product, half the work of a complex one
+        pairs = spec.view(np.float64)
+        sums_h[lo:hi] = (collect_f[lo:hi] @ pairs).view(complex)
+        sq = np.square(pairs, out=pairs).reshape(-1, 2 * n_h)  # one 2-D product
+        power_f[lo:hi] = (sq @ pick).reshape(hi - lo, n, 2)  # Σ |E_h/|I_e||² = Σ m_h²
 
 
 def is_triplen(orders: np.ndarray) -> np.ndarray:

@@ -130,8 +130,40 @@ def compare_readings(
     that a balanced panel's near-zero estimate does not make every reading
     look "far above".
     """
-    out: list[Finding] = []
     mism = limits.readings_mismatch_pct
+    phases, out = _phase_readings(a, readings)
+    out.extend(_phase_share_findings(a, readings, mism))
+    out.extend(_neutral_reading_findings(a, readings, mism))
+    vuf, line_dev, derating, more = _measured_line_voltages(readings, limits)
+    out.extend(more)
+    phase_dev = None
+    if _all(readings.volts_ln):
+        phase_dev = float(deviation_rate_pct(np.array(readings.volts_ln, dtype=float)))
+    n = a.neutral
+    nm = readings.neutral_amps
+
+    comparison = ReadingsComparison(
+        phases=(phases[0], phases[1], phases[2]),
+        neutral_measured_a=nm,
+        neutral_computed_fundamental_a=n.current_a,
+        neutral_computed_rms_a=n.rms_a,
+        volts_ll=readings.volts_ll,
+        vuf_pct=vuf,
+        line_deviation_pct=line_dev,
+        motor_derating=derating,
+        volts_ln=readings.volts_ln,
+        phase_deviation_pct=phase_dev,
+        computed_vuf_pct=None if a.voltage is None else a.voltage.vuf_pct,
+    )
+    return comparison, out
+
+
+def _phase_readings(
+    a: PanelAnalysis, readings: MeasuredReadings
+) -> tuple[list[PhaseReading], list[Finding]]:
+    """Measured against computed RMS current per phase [A], [%], and a warning for
+    each phase measured loaded that the schedule leaves empty."""
+    out: list[Finding] = []
     phases = []
     for ph, meas in zip(a.phases, readings.phase_amps, strict=True):
         diff = None
@@ -147,53 +179,70 @@ def compare_readings(
                     f"comparison with readings; NEC 408.4 (from memory); {LOCAL}",
                 )
             )
-    out.extend(_phase_share_findings(a, readings, mism))
+    return phases, out
 
+
+def _neutral_reading_findings(
+    a: PanelAnalysis, readings: MeasuredReadings, mism: float
+) -> list[Finding]:
+    """The measured neutral current against the fundamental and RMS estimates
+    (module notes: a materiality floor of 5 % of the mean phase current)."""
+    out: list[Finding] = []
     n = a.neutral
     nm = readings.neutral_amps
-    if nm is not None and n.present:
-        measured_phases = [p for p in readings.phase_amps if p is not None]
-        scale = (
-            float(np.mean(measured_phases))
-            if measured_phases
-            else float(np.mean([p.rms_a for p in a.phases]))
-        )
-        floor = 0.05 * scale
-        fund, rms_c = n.current_a, n.rms_a
-        if nm > max(1.5 * fund, fund + floor):
-            if nm <= max(rms_c * (1 + mism / 100.0), rms_c + floor):
-                out.append(
-                    Finding(
-                        "info",
-                        f"Measured neutral {nm:.1f} A is well above the fundamental estimate "
-                        f"{fund:.1f} A; the harmonic profiles account for it (computed RMS "
-                        f"{rms_c:.1f} A).",
-                        "comparison with readings; triplen harmonics add in the neutral "
-                        "(Dugan et al., ch. 5, from memory)",
-                    )
-                )
-            else:
-                out.append(
-                    Finding(
-                        "warning",
-                        f"Measured neutral {nm:.1f} A is far above the fundamental estimate "
-                        f"{fund:.1f} A and the computed RMS {rms_c:.1f} A: triplen harmonics "
-                        "from non-linear loads the schedule treats as linear, or a stale "
-                        "schedule.",
-                        "comparison with readings; triplen harmonics add in the neutral "
-                        f"(Dugan et al., ch. 5, from memory); {LOCAL}",
-                    )
-                )
-        elif fund > floor and nm < 0.5 * fund:
+    if nm is None or not n.present:
+        return out
+    measured_phases = [p for p in readings.phase_amps if p is not None]
+    scale = (
+        float(np.mean(measured_phases))
+        if measured_phases
+        else float(np.mean([p.rms_a for p in a.phases]))
+    )
+    floor = 0.05 * scale
+    fund, rms_c = n.current_a, n.rms_a
+    if nm > max(1.5 * fund, fund + floor):
+        if nm <= max(rms_c * (1 + mism / 100.0), rms_c + floor):
             out.append(
                 Finding(
                     "info",
-                    f"Measured neutral {nm:.1f} A is well below the estimate {fund:.1f} A: the "
-                    "phases may be better balanced than the schedule says.",
-                    "comparison with readings",
+                    f"Measured neutral {nm:.1f} A is well above the fundamental estimate "
+                    f"{fund:.1f} A; the harmonic profiles account for it (computed RMS "
+                    f"{rms_c:.1f} A).",
+                    "comparison with readings; triplen harmonics add in the neutral "
+                    "(Dugan et al., ch. 5, from memory)",
                 )
             )
+        else:
+            out.append(
+                Finding(
+                    "warning",
+                    f"Measured neutral {nm:.1f} A is far above the fundamental estimate "
+                    f"{fund:.1f} A and the computed RMS {rms_c:.1f} A: triplen harmonics "
+                    "from non-linear loads the schedule treats as linear, or a stale "
+                    "schedule.",
+                    "comparison with readings; triplen harmonics add in the neutral "
+                    f"(Dugan et al., ch. 5, from memory); {LOCAL}",
+                )
+            )
+    elif fund > floor and nm < 0.5 * fund:
+        out.append(
+            Finding(
+                "info",
+                f"Measured neutral {nm:.1f} A is well below the estimate {fund:.1f} A: the "
+                "phases may be better balanced than the schedule says.",
+                "comparison with readings",
+            )
+        )
+    return out
 
+
+def _measured_line_voltages(
+    readings: MeasuredReadings, limits: FindingLimits
+) -> tuple[float | None, float | None, float | None, list[Finding]]:
+    """VUF [%], NEMA line deviation [%] and motor derating [-] of the measured line
+    voltages (all None unless the three are given and close a triangle), with
+    their findings."""
+    out: list[Finding] = []
     vuf = line_dev = derating = None
     vll = readings.volts_ll
     if _all(vll):
@@ -215,21 +264,4 @@ def compare_readings(
                     "circuit theory (line voltages sum to zero)",
                 )
             )
-    phase_dev = None
-    if _all(readings.volts_ln):
-        phase_dev = float(deviation_rate_pct(np.array(readings.volts_ln, dtype=float)))
-
-    comparison = ReadingsComparison(
-        phases=(phases[0], phases[1], phases[2]),
-        neutral_measured_a=nm,
-        neutral_computed_fundamental_a=n.current_a,
-        neutral_computed_rms_a=n.rms_a,
-        volts_ll=readings.volts_ll,
-        vuf_pct=vuf,
-        line_deviation_pct=line_dev,
-        motor_derating=derating,
-        volts_ln=readings.volts_ln,
-        phase_deviation_pct=phase_dev,
-        computed_vuf_pct=None if a.voltage is None else a.voltage.vuf_pct,
-    )
-    return comparison, out
+    return vuf, line_dev, derating, out

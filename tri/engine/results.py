@@ -1,70 +1,44 @@
-"""Frozen result objects of the engine.
+"""Frozen result objects of the engine: one panel's analysis and its parts.
 
 :class:`PanelAnalysis` is what the report, the UI and the rebalancer read for
 one panel: plain Python numbers and tuples, no arrays, so it renders to JSON
-directly. :class:`BatchAnalysis` holds the same figures as numpy arrays with
-leading batch dimensions; ``BatchAnalysis.panel(i)`` gives one panel's
-:class:`PanelAnalysis`. Angles are degrees here (the edge of the engine).
+directly. Its per-phase, neutral, sequence, unbalance and voltage parts live
+here; the readings comparison (:mod:`tri.engine.reading_results`), the
+wiring results (:mod:`tri.engine.wiring_results`) and the basic values
+(:mod:`tri.engine.result_basics`) in their own modules, re-exported here.
+:class:`BatchAnalysis` (:mod:`tri.engine.batch_results`) holds the same
+figures as numpy arrays with leading batch dimensions;
+``BatchAnalysis.take(i)`` gives one panel's arrays and
+:func:`tri.engine.describe.describe_panel` its :class:`PanelAnalysis`.
+Angles are degrees here (the edge of the engine).
 """
 
 from __future__ import annotations
 
-import cmath
-import math
 from dataclasses import dataclass
-from typing import Literal
 
-import numpy as np
+from tri.engine.batch_results import BatchAnalysis
+from tri.engine.reading_results import PhaseReading, ReadingsComparison
+from tri.engine.result_basics import Finding, Level, Phasor
+from tri.engine.wiring_results import BreakerCurrents, SharedNeutralResult
 
-Level = Literal["info", "warning", "limit"]
-
-
-@dataclass(frozen=True)
-class Phasor:
-    """A phasor in polar form.
-
-    Attributes
-    ----------
-    magnitude : float
-        RMS magnitude [A or V].
-    deg : float
-        Angle, A-B-C sequence with ``V_A`` at 0° [deg], in (−180, 180].
-    """
-
-    magnitude: float
-    deg: float
-
-    @classmethod
-    def of(cls, value: complex) -> Phasor:
-        """Polar form of a complex phasor [A or V]."""
-        value = complex(value)
-        return cls(abs(value), math.degrees(cmath.phase(value)) if value != 0 else 0.0)
-
-    @property
-    def complex(self) -> complex:
-        """Rectangular form [A or V]."""
-        return cmath.rect(self.magnitude, math.radians(self.deg))
-
-
-@dataclass(frozen=True)
-class Finding:
-    """One observation about the panel.
-
-    Attributes
-    ----------
-    level : {"info", "warning", "limit"}
-        ``limit``: a rating or published limit is exceeded; ``warning``: near
-        one, or a rule applies; ``info``: context.
-    message : str
-        Plain sentence, using the panel's phase labels.
-    source : str
-        Where the rule comes from (code section, standard, or "common
-        practice"), with the reminder that local code governs.
-    """
-
-    level: Level
-    message: str
-    source: str
+#: Re-exported: the rest of the code imports every result type from here.
+__all__ = [
+    "BatchAnalysis",
+    "BreakerCurrents",
+    "CurrentUnbalance",
+    "Finding",
+    "Level",
+    "NeutralResult",
+    "PanelAnalysis",
+    "PhaseReading",
+    "PhaseResult",
+    "Phasor",
+    "ReadingsComparison",
+    "SequenceResult",
+    "SharedNeutralResult",
+    "VoltageResult",
+]
 
 
 @dataclass(frozen=True)
@@ -269,131 +243,6 @@ class VoltageResult:
 
 
 @dataclass(frozen=True)
-class PhaseReading:
-    """Measured against computed current of one phase.
-
-    Attributes
-    ----------
-    label : str
-        Phase label.
-    measured_a : float or None
-        Measured true-RMS current [A].
-    computed_rms_a : float
-        Computed true-RMS current [A].
-    difference_pct : float or None
-        ``(measured − computed) / computed`` [%]; None if not measured or
-        nothing computed.
-    """
-
-    label: str
-    measured_a: float | None
-    computed_rms_a: float
-    difference_pct: float | None
-
-
-@dataclass(frozen=True)
-class ReadingsComparison:
-    """What was measured on site, beside what the schedule predicts.
-
-    Attributes
-    ----------
-    phases : tuple of 3 PhaseReading
-        Per-phase currents.
-    neutral_measured_a : float or None
-        Measured neutral current [A].
-    neutral_computed_fundamental_a : float
-        Computed fundamental neutral current [A].
-    neutral_computed_rms_a : float
-        Computed true-RMS neutral current [A].
-    volts_ll : tuple of 3 (float or None)
-        Measured line voltages AB, BC, CA [V].
-    vuf_pct : float or None
-        VUF from the three measured line magnitudes by the β formula
-        (IEC 61000-4-30) [%].
-    line_deviation_pct : float or None
-        NEMA percent unbalance of the measured line voltages [%].
-    motor_derating : float or None
-        NEMA MG 1 derating at the measured unbalance [-].
-    volts_ln : tuple of 3 (float or None)
-        Measured phase-to-neutral voltages [V].
-    phase_deviation_pct : float or None
-        Deviation rate of the measured phase voltages [%].
-    computed_vuf_pct : float or None
-        VUF the supply model predicts, when a supply is described [%].
-    """
-
-    phases: tuple[PhaseReading, PhaseReading, PhaseReading]
-    neutral_measured_a: float | None
-    neutral_computed_fundamental_a: float
-    neutral_computed_rms_a: float
-    volts_ll: tuple[float | None, float | None, float | None]
-    vuf_pct: float | None
-    line_deviation_pct: float | None
-    motor_derating: float | None
-    volts_ln: tuple[float | None, float | None, float | None]
-    phase_deviation_pct: float | None
-    computed_vuf_pct: float | None
-
-
-@dataclass(frozen=True)
-class BreakerCurrents:
-    """Line currents one breaker carries (its legs summed), per phase in phase order.
-
-    Attributes
-    ----------
-    current : tuple of 3 Phasor
-        Fundamental line current on each phase [A, deg]; 0 on a phase the
-        breaker does not touch.
-    rms_a : tuple of 3 float
-        True-RMS line current on each phase [A].
-    leg_current_a : tuple of float
-        Fundamental current of each of the breaker's rows (its legs), in
-        input order [A].
-    leg_rms_a : tuple of float
-        True-RMS current of each leg [A].
-    """
-
-    current: tuple[Phasor, Phasor, Phasor]
-    rms_a: tuple[float, float, float]
-    leg_current_a: tuple[float, ...] = ()
-    leg_rms_a: tuple[float, ...] = ()
-
-    @property
-    def max_current_a(self) -> float:
-        """Largest fundamental line current over the phases [A]."""
-        return max(p.magnitude for p in self.current)
-
-    @property
-    def max_rms_a(self) -> float:
-        """Largest true-RMS line current over the phases [A]."""
-        return max(self.rms_a)
-
-
-@dataclass(frozen=True)
-class SharedNeutralResult:
-    """Current in one neutral conductor shared by a group of legs.
-
-    Attributes
-    ----------
-    current : Phasor
-        Fundamental: the phasor sum of the legs' currents [A, deg].
-    rms_a : float
-        True RMS over every order [A].
-    harmonic_a : tuple of float
-        Magnitude at each order of ``PanelAnalysis.orders`` [A].
-    """
-
-    current: Phasor
-    rms_a: float
-    harmonic_a: tuple[float, ...]
-
-    @property
-    def current_a(self) -> float:
-        """Fundamental magnitude [A]."""
-        return self.current.magnitude
-
-
-@dataclass(frozen=True)
 class PanelAnalysis:
     """Everything the engine computes for one panel.
 
@@ -490,128 +339,3 @@ class PanelAnalysis:
         PhaseResult
         """
         return self.phases[self.phase_labels.index(label)]
-
-
-@dataclass(frozen=True, eq=False)
-class BatchAnalysis:
-    """The numeric figures of many panels as arrays (leading shape ``B``).
-
-    Attributes
-    ----------
-    orders : int ndarray, shape (H,)
-        Orders, ``orders[0] == 1``.
-    phase_va : ndarray, shape (B..., 3)
-        Schedule VA per phase [VA].
-    phase_spectrum : complex ndarray, shape (B..., 3, H)
-        Line current at each order [A].
-    phase_rms_a, phase_thd_pct, phase_loading_pct : ndarray, shape (B..., 3)
-        [A], [%], [%].
-    phase_design_a, phase_design_loading_pct : ndarray, shape (B..., 3)
-        With continuous loads at the continuous factor [A], [%].
-    phase_calculated_a, phase_calculated_pct : ndarray, shape (B..., 3)
-        The code's calculated load per phase (``PhaseResult.calculated_a``)
-        [A], [%].
-    neutral_spectrum : complex ndarray, shape (B..., H)
-        Neutral current at each order [A].
-    neutral_rms_a : ndarray, shape (B...)
-        [A].
-    neutral_loading_pct : ndarray, shape (B...)
-        [%] (0 on a 3-wire system).
-    sequence : complex ndarray, shape (B..., 3)
-        ``I_0, I_1, I_2`` of the fundamental [A].
-    negative_sequence_pct, zero_sequence_pct : ndarray, shape (B...)
-        [%].
-    max_deviation_pct, max_deviation_fundamental_pct : ndarray, shape (B...)
-        On RMS and on fundamental magnitudes [%].
-    circuit_current_a, circuit_rms_a : ndarray, shape (B..., n)
-        Per circuit row [A].
-    nonlinear_share_pct : ndarray, shape (B...)
-        [%].
-    unplaced_count : int ndarray, shape (B...)
-    three_pole_triplens : bool ndarray, shape (B...)
-        True where a 3-pole circuit's profile had triplen orders (removed).
-    neutral_calculated_a : ndarray, shape (B...)
-        Maximum unbalanced load (``NeutralResult.calculated_a``) [A].
-    circuit_calculated_a : ndarray, shape (B..., n)
-        Per circuit row, continuous ones at the factor [A].
-    nonlinear_ln_share_pct, max_minus_min_pct : ndarray, shape (B...)
-        [%], [%].
-    v_phase, v_line : complex ndarray, shape (B..., 3) or None
-        Panel voltages [V]; None without a supply.
-    vuf_pct, line_deviation_pct, phase_deviation_pct, motor_derating : ndarray or None
-        Shape (B...); [%], [%], [%] (NaN without a neutral), [-] (NaN above 5 %).
-    iterations : int ndarray or None
-    converged : bool ndarray or None
-    breaker_pole_spectrum : complex ndarray, shape (B..., nb, 3, H), or None
-        Line current of each breaker on each phase at each order [A]; None
-        unless the input numbered breakers (:mod:`tri.engine.legs`).
-    shared_neutral_spectrum : complex ndarray, shape (B..., G, H), or None
-        Current in each shared neutral at each order [A]; None unless the
-        input gave neutral groups.
-    """
-
-    orders: np.ndarray
-    phase_va: np.ndarray
-    phase_spectrum: np.ndarray
-    phase_rms_a: np.ndarray
-    phase_thd_pct: np.ndarray
-    phase_loading_pct: np.ndarray
-    phase_design_a: np.ndarray
-    phase_design_loading_pct: np.ndarray
-    neutral_spectrum: np.ndarray
-    neutral_rms_a: np.ndarray
-    neutral_loading_pct: np.ndarray
-    sequence: np.ndarray
-    negative_sequence_pct: np.ndarray
-    zero_sequence_pct: np.ndarray
-    max_deviation_pct: np.ndarray
-    max_deviation_fundamental_pct: np.ndarray
-    circuit_current_a: np.ndarray
-    circuit_rms_a: np.ndarray
-    nonlinear_share_pct: np.ndarray
-    unplaced_count: np.ndarray
-    three_pole_triplens: np.ndarray
-    phase_calculated_a: np.ndarray
-    phase_calculated_pct: np.ndarray
-    neutral_calculated_a: np.ndarray
-    circuit_calculated_a: np.ndarray
-    nonlinear_ln_share_pct: np.ndarray
-    max_minus_min_pct: np.ndarray
-    v_phase: np.ndarray | None = None
-    v_line: np.ndarray | None = None
-    vuf_pct: np.ndarray | None = None
-    line_deviation_pct: np.ndarray | None = None
-    phase_deviation_pct: np.ndarray | None = None
-    motor_derating: np.ndarray | None = None
-    iterations: np.ndarray | None = None
-    converged: np.ndarray | None = None
-    breaker_pole_spectrum: np.ndarray | None = None
-    shared_neutral_spectrum: np.ndarray | None = None
-
-    @property
-    def batch_shape(self) -> tuple[int, ...]:
-        """Leading shape ``B``."""
-        return tuple(np.shape(self.neutral_rms_a))
-
-    def take(self, index: int | tuple[int, ...]) -> BatchAnalysis:
-        """The figures of one panel.
-
-        Parameters
-        ----------
-        index : int or tuple of int
-            Position in the batch shape ``B``.
-
-        Returns
-        -------
-        BatchAnalysis
-            The same fields without the batch dimensions (``orders`` shared).
-        """
-        idx = index if isinstance(index, tuple) else (index,)
-        values = {}
-        for name in self.__dataclass_fields__:
-            value = getattr(self, name)
-            if name == "orders" or value is None:
-                values[name] = value
-            else:
-                values[name] = np.asarray(value)[idx]
-        return BatchAnalysis(**values)

@@ -5,9 +5,10 @@
 :class:`~tri.engine.results.BatchAnalysis` over all nodes
 (:func:`tree_batch`, the batch figures), and gives each node a
 :class:`~tri.engine.results.PanelAnalysis` made by the same code as a
-single panel's (:func:`tri.engine.analysis.describe_panel`), plus what the
+single panel's (:func:`tri.engine.describe.describe_panel`), plus what the
 tree adds: the feeder currents at the parent, the transformer's loading
-and the current circulating in a delta winding.
+and the current circulating in a delta winding (its findings:
+:mod:`tri.engine.tree_findings`).
 
 A node's figures include everything fed from it: a panel whose only load
 is one feeder to a child (without a transformer) shows exactly the child's
@@ -21,20 +22,16 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from tri.engine.analysis import SourceFigures, current_figures, describe_panel, voltage_figures
+from tri.engine.batch_figures import current_figures, voltage_figures
+from tri.engine.describe import SourceFigures, describe_panel
 from tri.engine.harmonics import rms
 from tri.engine.inputs import MeasuredReadings
-from tri.engine.limits import LOCAL, RATING_PCT, FindingLimits, exceeds
-from tri.engine.results import BatchAnalysis, Finding, PanelAnalysis, Phasor
+from tri.engine.limits import LEVEL_RANK, FindingLimits
+from tri.engine.results import BatchAnalysis, PanelAnalysis, Phasor
 from tri.engine.tree import Progress, TreeSolution, solve_tree
 from tri.engine.tree_code import tree_code_figures
+from tri.engine.tree_findings import tree_findings
 from tri.engine.tree_inputs import PackedTree, PanelLink, TreeInputs, pack_tree
-from tri.words import plural
-
-#: Zero-sequence current below this fraction of the transformer's rated
-#: current is round-off, not worth a finding [-].
-ZERO_SEQUENCE_NOTE = 1e-6
-_ORDER = {"limit": 0, "warning": 1, "info": 2}
 
 
 @dataclass(frozen=True)
@@ -251,89 +248,6 @@ def _feeder(tree: PackedTree, sol: TreeSolution, i: int, link: PanelLink) -> Fee
     )
 
 
-def tree_findings(
-    tree: PackedTree, sol: TreeSolution, i: int, feeder: FeederResult | None, limits: FindingLimits
-) -> list[Finding]:
-    """Findings the tree adds to node ``i``: its transformer, and what it feeds.
-
-    Parameters
-    ----------
-    tree : PackedTree
-    sol : TreeSolution
-    i : int
-        Node index.
-    feeder : FeederResult or None
-        The node's feeder figures.
-    limits : FindingLimits
-        ``headroom_pct`` is also the transformer's headroom warning (a design
-        margin, not a code rule) [%].
-
-    Returns
-    -------
-    list of Finding
-    """
-    out: list[Finding] = []
-    fed_count = int(np.sum(tree.parent == i))
-    if fed_count:
-        out.append(
-            Finding(
-                "info",
-                f"Figures include {plural(fed_count, 'panel')} fed from this one, with every "
-                "harmonic order, through their feeders (and transformers).",
-                "tri roll-up (phases kept along each feeder)",
-            )
-        )
-    tx = feeder.transformer if feeder is not None else None
-    if tx is None:
-        return out
-    name = f"The {tx.kva:g} kVA {tx.group} transformer feeding this panel"
-    if exceeds(tx.loading_pct, RATING_PCT):
-        out.append(
-            Finding(
-                "limit",
-                f"{name} carries {max(tx.secondary_rms_a):.1f} A RMS, {tx.loading_pct:.1f} % "
-                f"of its rated {tx.rated_a:.1f} A.",
-                f"transformer nameplate rating (common practice); {LOCAL}",
-            )
-        )
-    elif exceeds(tx.loading_pct, limits.headroom_pct):
-        out.append(
-            Finding(
-                "warning",
-                f"{name} is at {tx.loading_pct:.1f} % of its rated {tx.rated_a:.1f} A; "
-                "harmonic currents heat it more than their RMS share.",
-                "common practice; IEEE C57.110 (harmonic derating, from memory); " + LOCAL,
-            )
-        )
-    i0 = float(np.abs(np.mean(sol.total.phase[i, :, 0])))
-    noted = ZERO_SEQUENCE_NOTE * tx.rated_a
-    if tx.delta_circulating_a is not None and tx.delta_circulating_a > noted:
-        out.append(
-            Finding(
-                "info",
-                f"{tx.delta_circulating_a:.1f} A RMS of zero-sequence current (unbalance and "
-                "triplen harmonics of this panel's neutral) circulates in the transformer's "
-                "delta winding: it heats the winding but reaches no primary line.",
-                "ampere-turn balance of a delta winding (circuit theory); Glover et al., "
-                "ch. 8 (from memory)",
-            )
-        )
-    if tree.open_zero[i] and i0 > noted:
-        out.append(
-            Finding(
-                "warning",
-                f"{name} has no primary neutral, so the {3 * i0:.1f} A of fundamental neutral "
-                "current has no zero-sequence path: the secondary neutral shifts by an amount "
-                "that depends on the core, larger than the voltages shown (computed with the "
-                "series impedance only). A delta primary (Dyn) or a connected primary neutral "
-                "(YNyn) provides the path.",
-                "zero-sequence equivalent circuits of transformers, Glover et al., ch. 8 "
-                f"(from memory); {LOCAL}",
-            )
-        )
-    return out
-
-
 def analyse_tree(
     tree: TreeInputs,
     *,
@@ -380,14 +294,8 @@ def analyse_tree(
     packed = pack_tree(tree)
     sol = solve_tree(packed, iterate=iterate_voltage, tol=tol, max_iter=max_iter, progress=progress)
     batch = tree_batch(packed, sol)
-    count = packed.size
+    depth, children = _depths_and_children(packed)
     nodes: list[NodeResult] = []
-    depth = np.zeros(count, dtype=int)
-    for d, idx in enumerate(packed.levels):
-        depth[idx] = d
-    children: list[list[int]] = [[] for _ in range(count)]
-    for i in range(1, count):
-        children[int(packed.parent[i])].append(i)
     for i, node in enumerate(tree.nodes):
         source = _source(packed, i)
         a = describe_panel(
@@ -405,7 +313,7 @@ def analyse_tree(
         )
         feeder = None if node.link is None else _feeder(packed, sol, i, node.link)
         extra = tree_findings(packed, sol, i, feeder, limits)
-        findings = sorted((*a.findings, *extra), key=lambda f: _ORDER[f.level])
+        findings = sorted((*a.findings, *extra), key=lambda f: LEVEL_RANK[f.level])
         nodes.append(
             NodeResult(
                 analysis=dataclasses.replace(a, findings=tuple(findings)),
@@ -415,3 +323,15 @@ def analyse_tree(
             )
         )
     return TreeAnalysis(nodes=tuple(nodes), batch=batch, solution=sol, iterated=iterate_voltage)
+
+
+def _depths_and_children(packed: PackedTree) -> tuple[np.ndarray, list[list[int]]]:
+    """Each node's depth (root 0) and the nodes it feeds directly, in index order."""
+    count = packed.size
+    depth = np.zeros(count, dtype=int)
+    for d, idx in enumerate(packed.levels):
+        depth[idx] = d
+    children: list[list[int]] = [[] for _ in range(count)]
+    for i in range(1, count):
+        children[int(packed.parent[i])].append(i)
+    return depth, children

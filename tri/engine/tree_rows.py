@@ -27,12 +27,9 @@ from typing import Any
 
 import numpy as np
 
+from tri.engine.batch_figures import snap_roundoff
 from tri.engine.inputs import UNPLACED, CircuitArrays
 from tri.engine.legs import wiring_spectra
-
-#: As :data:`tri.engine.analysis.SNAP_RELATIVE`: phasors below this share of a
-#: node's own circuit current are round-off [-].
-SNAP_RELATIVE = 1e-12
 
 
 def union_orders(nodes: tuple) -> np.ndarray:
@@ -139,7 +136,7 @@ def tree_wiring(
     if not out:
         return out
     scale = np.sum(circuit_rms, axis=-1)
-    out = {k: _snap(v, scale, v.ndim - 1) for k, v in out.items()}
+    out = {k: snap_roundoff(v, scale, v.ndim - 1) for k, v in out.items()}
     poles = out.get("breaker_pole_spectrum")
     if poles is not None:
         breaker = np.asarray(tree.circuits.breaker)
@@ -147,9 +144,3 @@ def tree_wiring(
             parents, rows = tree.parent[idx], tree.feeder_row[idx]
             poles[parents, breaker[parents, rows]] = fed_phase[idx]
     return out
-
-
-def _snap(x: np.ndarray, scale: np.ndarray, extra_dims: int) -> np.ndarray:
-    """Zero phasors below ``SNAP_RELATIVE·scale`` (``scale`` per node)."""
-    s = np.reshape(scale, np.shape(scale) + (1,) * extra_dims)
-    return np.where(np.abs(x) <= SNAP_RELATIVE * s, 0, x)

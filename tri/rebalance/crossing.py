@@ -82,155 +82,50 @@ per-circuit decreases)``.
 is at most the largest; the right side is a knapsack as above. ∎
 With ``u_p = U`` and equal weights it is ``F``; other weights show how
 much current ``k`` moves cannot take off a crowded phase.
+
+The frame itself (rotated spectra, ``a_p`` and the principal coordinates
+across ``u_p``) is :mod:`tri.rebalance.sequence_frame`.
 """
 
 from __future__ import annotations
 
 from collections.abc import Callable
-from dataclasses import dataclass
 
 import numpy as np
 
-from tri.engine.sequence import A_OP
-from tri.rebalance.knapsack import Choices, best_gain, choices_of, max_under_row
+from tri.rebalance.knapsack import best_gain, choices_of, max_under_row
 from tri.rebalance.plan_currents import spectra
 from tri.rebalance.problem import Problem
+from tri.rebalance.sequence_frame import (
+    KEPT_COORDINATES,
+    Frame,
+    Rotated,
+    frame_in,
+    frame_of,
+    real_parts,
+    rotated_of,
+    rotations,
+)
 
-#: Perpendicular coordinates bounded one by one (the principal ones); the rest by their norm [-].
-KEPT_COORDINATES = 6
+#: Re-exported: the tests import the frame here.
+__all__ = [
+    "KEPT_COORDINATES",
+    "Frame",
+    "Rotated",
+    "budget_floor",
+    "changes_impossible",
+    "changes_lower_bound",
+    "frame_in",
+    "frame_of",
+    "rotated_of",
+    "rotations",
+    "target_rows",
+]
+
 #: Rounds of Theorem 2's fixed point [-].
 FIXED_POINT_ROUNDS = 10
 #: Relative slack on the target: a plan within round-off of it is never excluded [-].
 TARGET_SLACK = 1e-7
-
-
-def _parts(z: np.ndarray) -> np.ndarray:
-    """Complex (..., H) -> real (..., 2H): real parts, then imaginary parts."""
-    return np.concatenate([z.real, z.imag], axis=-1)
-
-
-@dataclass(frozen=True, eq=False)
-class Frame:
-    """A problem in the sequence frame (module notes), changes against the reference plan.
-
-    Attributes
-    ----------
-    floor_a : float
-        ``F`` [A].
-    a0 : float ndarray, shape (3,)
-        ``a_p`` at the reference plan (the current one, new circuits on their first option) [A].
-    da : float ndarray, shape (O, 3)
-        What each option changes in ``a_p`` (0 for reference options) [A].
-    l0 : float ndarray, shape (3, m)
-        Principal perpendicular coordinates of ``w_p`` at the reference [A].
-    dl : float ndarray, shape (O, 3, m)
-        Their changes [A].
-    res0 : float ndarray, shape (3,)
-        Norm of the other perpendicular coordinates at the reference [A].
-    dres : float ndarray, shape (O, 3)
-        Norms of their changes [A].
-    basis : float ndarray, shape (3, K, m)
-        The principal directions of each phase (orthonormal, across its ``u_p``).
-    rotated : Rotated
-        The rotated spectra the frame was made from.
-    directions : float ndarray, shape (3, K)
-        ``u_p`` of each phase (``U`` for all three, unless re-centred).
-    choices : Choices
-        The options of each free circuit, and which ones count as changes.
-    """
-
-    floor_a: float
-    a0: np.ndarray
-    da: np.ndarray
-    l0: np.ndarray
-    dl: np.ndarray
-    res0: np.ndarray
-    dres: np.ndarray
-    basis: np.ndarray
-    rotated: Rotated
-    directions: np.ndarray
-    choices: Choices
-
-
-def rotations(orders: np.ndarray) -> np.ndarray:
-    """``a^(h·p mod 3)`` for phase p and order h (complex ndarray, shape (3, H))."""
-    h = np.asarray(orders, dtype=int)
-    return np.array([A_OP ** ((h * p) % 3) for p in range(3)])
-
-
-@dataclass(frozen=True, eq=False)
-class Rotated:
-    """The rotated spectra of a problem (module notes), parts as real vectors.
-
-    Attributes
-    ----------
-    w : float ndarray, shape (3, K)
-        ``w_p`` at the reference plan [A].
-    dw : float ndarray, shape (O, 3, K)
-        What each option changes in ``w_p`` [A].
-    unit : float ndarray, shape (K,)
-        ``U = J/F``.
-    floor_a : float
-        ``F`` [A].
-    choices : Choices
-        The free circuits' options.
-    """
-
-    w: np.ndarray
-    dw: np.ndarray
-    unit: np.ndarray
-    floor_a: float
-    choices: Choices
-
-
-def rotated_of(pr: Problem) -> Rotated:
-    """The rotated spectra of a problem (module notes)."""
-    rot = rotations(pr.orders)
-    ref = pr.current_assignment()
-    v, _ = spectra(pr, ref)
-    w = _parts(rot * v)  # (3, K)
-    u = w.mean(axis=0)
-    floor = float(np.linalg.norm(u))
-    u = u / floor if floor > 0 else np.eye(w.shape[1])[0]
-    wc = _parts(rot[None] * pr.contrib)  # (O, 3, K)
-    return Rotated(w, wc - wc[ref[pr.owner]], u, floor, choices_of(pr))
-
-
-def frame_of(pr: Problem, kept: int = KEPT_COORDINATES) -> Frame:
-    """The frame of a problem with ``u_p = U`` for every phase (module notes)."""
-    return frame_in(rotated_of(pr), None, kept)
-
-
-def frame_in(
-    rs: Rotated, directions: np.ndarray | None = None, kept: int = KEPT_COORDINATES
-) -> Frame:
-    """A frame of rotated spectra: ``u_p = U`` for every phase unless ``directions`` is given.
-
-    The principal directions across each ``u_p`` are the leading
-    eigenvectors of the changes' second moments (and the reference's).
-    """
-    w, dw = rs.w, rs.dw
-    u = np.broadcast_to(rs.unit, w.shape) if directions is None else directions
-    u = u / np.linalg.norm(u, axis=1, keepdims=True)
-    m = max(1, min(kept, w.shape[1] - 1))
-    l0 = np.zeros((3, m))
-    dl = np.zeros((dw.shape[0], 3, m))
-    res0, dres = np.zeros(3), np.zeros((dw.shape[0], 3))
-    bases = np.zeros((3, w.shape[1], m))
-    for p in range(3):
-        proj = np.eye(w.shape[1]) - np.outer(u[p], u[p])
-        across = dw[:, p] @ proj
-        now = w[p] @ proj
-        stack = np.vstack([across, now[None]])
-        _, vecs = np.linalg.eigh(np.einsum("ik,il->kl", stack, stack))
-        basis, _ = np.linalg.qr(proj @ vecs[:, ::-1][:, :m])  # principal directions across u_p
-        bases[p] = basis
-        l0[p], dl[:, p] = now @ basis, across @ basis
-        res0[p] = np.linalg.norm(now - basis @ l0[p])
-        dres[:, p] = np.linalg.norm(across - dl[:, p] @ basis.T, axis=-1)
-    a0 = np.einsum("pk,pk->p", w, u)
-    da = np.einsum("opk,pk->op", dw, u)
-    return Frame(rs.floor_a, a0, da, l0, dl, res0, dres, bases, rs, np.array(u), rs.choices)
 
 
 def target_rows(
@@ -413,13 +308,13 @@ def budget_floor(pr: Problem, k: int, directions: list[np.ndarray] | None = None
         return pr.floor_a
     rot = rotations(pr.orders)
     ref = pr.current_assignment()
-    w = _parts(rot * spectra(pr, ref)[0])
-    dw = _parts(rot[None] * pr.contrib)
+    w = real_parts(rot * spectra(pr, ref)[0])
+    dw = real_parts(rot[None] * pr.contrib)
     dw = dw - dw[ref[pr.owner]]
     choices = choices_of(pr)
     dirs = [np.broadcast_to(w.mean(axis=0), w.shape)]
     for spec in directions or []:
-        dirs.append(_parts(rot * spec))
+        dirs.append(real_parts(rot * spec))
     n = 24
     i, j = np.meshgrid(np.arange(n + 1), np.arange(n + 1), indexing="ij")
     keep = i + j <= n

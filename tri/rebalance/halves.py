@@ -65,9 +65,9 @@ from dataclasses import dataclass, replace
 
 import numpy as np
 
-from tri.rebalance.crossing import _parts, rotations
 from tri.rebalance.plan_currents import spectra
 from tri.rebalance.problem import Problem
+from tri.rebalance.sequence_frame import real_parts, rotations
 
 #: Most half-plans listed (memory and time of the search) [-].
 HALF_LIMIT = 150_000
@@ -128,8 +128,8 @@ def _changes(pr: Problem, ref: np.ndarray) -> _Changes:
     )
     circ = pr.owner[others] if others.size else np.zeros(0, dtype=int)
     rot = rotations(pr.orders)
-    w0 = _parts(rot * spectra(pr, ref)[0])  # (3, K)
-    dw = _parts(rot[None] * (pr.contrib[others] - pr.contrib[ref[circ]]))  # (C, 3, K)
+    w0 = real_parts(rot * spectra(pr, ref)[0])  # (3, K)
+    dw = real_parts(rot[None] * (pr.contrib[others] - pr.contrib[ref[circ]]))  # (C, 3, K)
     j = w0.mean(axis=0)
     floor = float(np.linalg.norm(j))
     u = j / floor if floor > 0 else np.eye(j.size)[0]

@@ -157,13 +157,25 @@ from __future__ import annotations
 from pathlib import Path
 from typing import Any
 
-from tri.engine.limits import DESIGN_HEADROOM_PCT, RATING_PCT, exceeds, loading_word, practice_for
-from tri.engine.loading import calculation_words, sizing_clauses
-from tri.engine.results import PanelAnalysis, Phasor
+from tri.engine.limits import DESIGN_HEADROOM_PCT, practice_for
+from tri.engine.results import CurrentUnbalance, PanelAnalysis
 from tri.report import wiring_data
+from tri.report.figure_data import (
+    circuit_data,
+    line_labels,
+    neutral_data,
+    phases_data,
+    phasor,
+    readings_data,
+    sizing_data,
+    voltage_data,
+)
 from tri.report.numbers import num
-from tri.schedule.model import Circuit, Schedule
-from tri.schedule.slots import TWO_COLUMN, occupied_slots
+from tri.schedule.model import Schedule
+from tri.schedule.slots import TWO_COLUMN
+
+#: Re-exported: renderers and other reports import these here.
+__all__ = ["is_two_column", "line_labels", "num", "phasor", "report_data"]
 
 #: Version of the report's key layout (added key ``report_version``).
 REPORT_VERSION = 1
@@ -177,173 +189,6 @@ PHASE_VA_MEANING = (
     "connected apparent power the schedule attributes to the phase: all of each 1-pole "
     "circuit, half of each 2-pole, a third of each 3-pole (schedule bookkeeping, not |I|·V)"
 )
-
-
-def phasor(p: Phasor, unit: str) -> dict[str, float | None]:
-    """``{unit: magnitude, "deg": angle}`` of a phasor (``unit`` ``"a"`` or ``"v"``)."""
-    return {unit: num(p.magnitude), "deg": num(p.deg)}
-
-
-def line_labels(labels: tuple[str, str, str]) -> tuple[str, str, str]:
-    """Line-voltage names: ``AB, BC, CA``, or ``L1-L2, L2-L3, L3-L1`` for long labels."""
-    j = "-" if any(len(x) > 1 for x in labels) else ""
-    a, b, c = labels
-    return (f"{a}{j}{b}", f"{b}{j}{c}", f"{c}{j}{a}")
-
-
-def _load_unit(c: Circuit) -> str:
-    return {"va": "VA", "w": "W", "a": "A"}[c.load_kind]
-
-
-def _circuit(
-    number: int,
-    c: Circuit,
-    schedule: Schedule,
-    currents: tuple[float, float, float],
-) -> dict[str, Any]:
-    current_a, rms_a, calculated_a = currents
-    system = schedule.system
-    va = c.apparent_power_va(system)
-    share = wiring_data.leg_phase_va(c, schedule)
-    slots = list(occupied_slots(c.slot, c.poles)) if c.slot is not None else []
-    return {
-        "number": number,
-        "name": c.name,
-        "slot": c.slot,
-        "slots": slots,
-        "poles": c.poles,
-        "phases": schedule.phase_text(c.phases) if c.phases is not None else None,
-        "placed": c.is_placed,
-        "load": {"value": num(c.load_value), "unit": _load_unit(c)},
-        "va": num(va),
-        "w": num(c.real_power_w(system)),
-        "pf": num(c.pf),
-        "leading": c.leading,
-        "profile": c.profile,
-        "continuous": c.continuous,
-        "locked": c.locked,
-        "breaker_a": num(c.breaker_a),
-        "note": c.note,
-        "current_a": num(current_a),
-        "rms_a": num(rms_a),
-        "phase_va": {lab: num(v) for lab, v in share.items()},
-        "calculated_a": num(calculated_a),
-        "over_breaker": None if c.breaker_a is None else exceeds(calculated_a, c.breaker_a),
-    }
-
-
-def _voltage(a: PanelAnalysis) -> dict[str, Any] | None:
-    v = a.voltage
-    if v is None:
-        return None
-    labels = a.phase_labels
-    lines = line_labels(labels)
-    return {
-        "phase_v": {lab: phasor(p, "v") for lab, p in zip(labels, v.phase_v, strict=True)},
-        "line_v": {lab: phasor(p, "v") for lab, p in zip(lines, v.line_v, strict=True)},
-        "vuf_pct": num(v.vuf_pct),
-        "line_deviation_pct": num(v.line_deviation_pct),
-        "phase_deviation_pct": num(v.phase_deviation_pct),
-        "motor_derating": num(v.motor_derating),
-        "drop_pct": {lab: num(d) for lab, d in zip(labels, v.drop_pct, strict=True)},
-        "iterated": v.iterated,
-        "iterations": v.iterations,
-        "converged": v.converged,
-        "transformer_full_load_a": num(v.transformer_full_load_a),
-        "z_phase_ohm": {"r": num(v.z_phase_ohm.real), "x": num(v.z_phase_ohm.imag)},
-        "z_neutral_ohm": {"r": num(v.z_neutral_ohm.real), "x": num(v.z_neutral_ohm.imag)},
-    }
-
-
-def _readings(a: PanelAnalysis, schedule: Schedule) -> dict[str, Any] | None:
-    r = a.readings
-    if r is None:
-        return None
-    labels = a.phase_labels
-    lines = line_labels(labels)
-    taken = schedule.readings.taken if schedule.readings is not None else None
-    neutral_diff = None
-    if r.neutral_measured_a is not None and r.neutral_computed_rms_a > 0:
-        neutral_diff = (
-            100.0 * (r.neutral_measured_a - r.neutral_computed_rms_a) / r.neutral_computed_rms_a
-        )
-    return {
-        "taken": taken,
-        "phases": {
-            p.label: {
-                "measured_a": num(p.measured_a),
-                "computed_rms_a": num(p.computed_rms_a),
-                "difference_pct": num(p.difference_pct),
-            }
-            for p in r.phases
-        },
-        "neutral": {
-            "measured_a": num(r.neutral_measured_a),
-            "computed_current_a": num(r.neutral_computed_fundamental_a),
-            "computed_rms_a": num(r.neutral_computed_rms_a),
-            "difference_pct": num(neutral_diff),
-        },
-        "volts_ll": {lab: num(x) for lab, x in zip(lines, r.volts_ll, strict=True)},
-        "volts_ln": {lab: num(x) for lab, x in zip(labels, r.volts_ln, strict=True)},
-        "vuf_pct": num(r.vuf_pct),
-        "line_deviation_pct": num(r.line_deviation_pct),
-        "phase_deviation_pct": num(r.phase_deviation_pct),
-        "motor_derating": num(r.motor_derating),
-        "computed_vuf_pct": num(r.computed_vuf_pct),
-    }
-
-
-def _phases(a: PanelAnalysis, headroom_pct: float) -> dict[str, Any]:
-    return {
-        ph.label: {
-            "va": num(ph.va),
-            "current_a": num(ph.current_a),
-            "current_deg": num(ph.current_deg),
-            "rms_a": num(ph.rms_a),
-            "thd_pct": num(ph.thd_pct),
-            "loading_pct": num(ph.loading_pct),
-            "design_a": num(ph.design_a),
-            "design_loading_pct": num(ph.design_loading_pct),
-            "calculated_a": num(ph.calculated_a),
-            "calculated_pct": num(ph.calculated_pct),
-            "status": loading_word(ph.loading_pct, headroom_pct),
-        }
-        for ph in a.phases
-    }
-
-
-def _neutral(a: PanelAnalysis, headroom_pct: float) -> dict[str, Any]:
-    n = a.neutral
-    return {
-        "current_a": num(n.current_a),
-        "current_deg": num(n.current_deg),
-        "rms_a": num(n.rms_a),
-        "loading_pct": num(n.loading_pct),
-        "present": n.present,
-        "rating_a": num(n.rating_a),
-        "ratio_to_max_phase": num(n.ratio_to_max_phase),
-        "calculated_a": num(n.calculated_a),
-        "status": loading_word(n.loading_pct, headroom_pct),
-    }
-
-
-def _sizing(a: PanelAnalysis, schedule: Schedule, circuits: list[dict[str, Any]]) -> dict[str, Any]:
-    clause, branch = sizing_clauses(
-        a.frequency_hz, schedule.panel.main_a is not None, a.continuous_factor
-    )
-    rated = [c for c in circuits if c["over_breaker"] is not None]
-    per_phase = "scheduled VA per phase over V_LN"
-    if schedule.panel.effective_high_leg is not None:
-        per_phase = "scheduled 1-pole VA per phase over V_LN and 2- and 3-pole shares over V_LL/√3"
-    return {
-        "per_phase": per_phase,
-        "method": calculation_words(a.continuous_factor),
-        "clause": clause,
-        "breaker_clause": branch,
-        "over": [p.label for p in a.phases if exceeds(p.calculated_pct, RATING_PCT)],
-        "breakers_rated": len(rated),
-        "breakers_over": sum(1 for c in rated if c["over_breaker"]),
-    }
 
 
 def report_data(
@@ -375,14 +220,12 @@ def report_data(
         JSON-ready: str, int, float, bool, None, lists and dicts only.
     """
     a = analysis
-    p = schedule.panel
     labels = a.phase_labels
     n = a.neutral
-    cu = a.current_unbalance
     per_circuit = zip(a.circuit_current_a, a.circuit_rms_a, a.circuit_calculated_a, strict=True)
     circuits = [
         {
-            **_circuit(i + 1, c, schedule, currents),
+            **circuit_data(i + 1, c, schedule, currents),
             **wiring_data.circuit_wiring(i, c, schedule, a),
         }
         for i, (c, currents) in enumerate(zip(schedule.circuits, per_circuit, strict=True))
@@ -392,52 +235,21 @@ def report_data(
     )
     return {
         "report_version": REPORT_VERSION,
-        "panel": {
-            "name": p.name,
-            "system": p.system,
-            "frequency_hz": num(a.frequency_hz),
-            "wiring": "3-phase 4-wire" if schedule.system.has_neutral else "3-phase 3-wire",
-            "v_ll": num(a.v_ll),
-            "v_ln": num(a.v_ln),
-            "bus_a": num(p.bus_a),
-            "main_a": num(p.main_a),
-            "neutral_a": num(n.rating_a),
-            "rating_a": num(a.rating_a),
-            "rating_basis": "main breaker" if p.main_a is not None else "bus (main lugs only)",
-            "spaces": p.spaces,
-            "layout": p.layout,
-            "file": None if file is None else Path(file).name,
-            **wiring_data.panel_wiring(schedule),
-        },
-        "basis": {
-            "estimate": True,
-            "currents": a.currents_basis,
-            "iterated": a.voltage is not None and a.voltage.iterated,
-            "continuous_factor": num(a.continuous_factor),
-            "practice": practice_for(a.frequency_hz),
-            "headroom_pct": num(headroom_pct),
-            "phase_va": PHASE_VA_MEANING,
-            "calculated": CALCULATED_MEANING,
-        },
+        "panel": _panel_data(a, schedule, file),
+        "basis": _basis_data(a, headroom_pct),
         "supply": supply,
-        "sizing": _sizing(a, schedule, circuits),
+        "sizing": sizing_data(a, schedule, circuits),
         "phase_order": list(labels),
-        "phases": _phases(a, headroom_pct),
-        "neutral": _neutral(a, headroom_pct),
+        "phases": phases_data(a, headroom_pct),
+        "neutral": neutral_data(a, headroom_pct),
         "sequence": {
             "i0": phasor(a.sequence.i0, "a"),
             "i1": phasor(a.sequence.i1, "a"),
             "i2": phasor(a.sequence.i2, "a"),
         },
-        "current_unbalance": {
-            "negative_sequence_pct": num(cu.negative_sequence_pct),
-            "max_deviation_pct": num(cu.max_deviation_pct),
-            "zero_sequence_pct": num(cu.zero_sequence_pct),
-            "max_deviation_fundamental_pct": num(cu.max_deviation_fundamental_pct),
-            "max_minus_min_pct": num(cu.max_minus_min_pct),
-        },
-        "voltage": _voltage(a),
-        "readings": _readings(a, schedule),
+        "current_unbalance": _unbalance_data(a.current_unbalance),
+        "voltage": voltage_data(a),
+        "readings": readings_data(a, schedule),
         "findings": [
             {"level": f.level, "message": f.message, "source": f.source} for f in a.findings
         ],
@@ -454,6 +266,54 @@ def report_data(
         "directory": wiring_data.directory(schedule),
         "rcds": wiring_data.rcds(schedule),
         "caution": caution,
+    }
+
+
+def _panel_data(a: PanelAnalysis, schedule: Schedule, file: str | Path | None) -> dict[str, Any]:
+    """The ``panel`` block: name, system, voltages [V], ratings [A], layout, file name."""
+    p = schedule.panel
+    n = a.neutral
+    return {
+        "name": p.name,
+        "system": p.system,
+        "frequency_hz": num(a.frequency_hz),
+        "wiring": "3-phase 4-wire" if schedule.system.has_neutral else "3-phase 3-wire",
+        "v_ll": num(a.v_ll),
+        "v_ln": num(a.v_ln),
+        "bus_a": num(p.bus_a),
+        "main_a": num(p.main_a),
+        "neutral_a": num(n.rating_a),
+        "rating_a": num(a.rating_a),
+        "rating_basis": "main breaker" if p.main_a is not None else "bus (main lugs only)",
+        "spaces": p.spaces,
+        "layout": p.layout,
+        "file": None if file is None else Path(file).name,
+        **wiring_data.panel_wiring(schedule),
+    }
+
+
+def _basis_data(a: PanelAnalysis, headroom_pct: float) -> dict[str, Any]:
+    """The ``basis`` block: what the figures are and the settings behind them."""
+    return {
+        "estimate": True,
+        "currents": a.currents_basis,
+        "iterated": a.voltage is not None and a.voltage.iterated,
+        "continuous_factor": num(a.continuous_factor),
+        "practice": practice_for(a.frequency_hz),
+        "headroom_pct": num(headroom_pct),
+        "phase_va": PHASE_VA_MEANING,
+        "calculated": CALCULATED_MEANING,
+    }
+
+
+def _unbalance_data(cu: CurrentUnbalance) -> dict[str, Any]:
+    """The ``current_unbalance`` block [%]."""
+    return {
+        "negative_sequence_pct": num(cu.negative_sequence_pct),
+        "max_deviation_pct": num(cu.max_deviation_pct),
+        "zero_sequence_pct": num(cu.zero_sequence_pct),
+        "max_deviation_fundamental_pct": num(cu.max_deviation_fundamental_pct),
+        "max_minus_min_pct": num(cu.max_minus_min_pct),
     }
 
 

@@ -112,18 +112,6 @@ def log_data(
     neutral_rating = panel.neutral.rating_a
     gaps = log.gaps
     longest = max(gaps, key=lambda g: g.intervals) if gaps else None
-    demand = np.array([p.value_a for p in a.phases])
-    new_a, new_names = new_load_a(schedule)
-    cap = added_load_capacity(
-        np.nan_to_num(demand),
-        np.full(3, new_a),
-        rating,
-        log_days=a.recorded_days,
-        demand_minutes=a.demand_minutes,
-    )
-    shares = phase_shares(
-        np.array([p.mean_a for p in a.phases]), np.array([p.rms_a for p in panel.phases])
-    )
     out: dict[str, Any] = {
         # As written in [log] file (relative to the schedule): stable wherever it is run.
         "file": schedule.log.file if schedule.log is not None else log.path,
@@ -158,29 +146,8 @@ def log_data(
         },
         "deviation_pct": _over_time(a.deviation, None, None),
         "vuf_pct": None if a.vuf is None else _over_time(a.vuf, EN50160_VUF_PCT, EN50160_SOURCE),
-        "capacity": {
-            "demand_a": _by(labels, cap.demand_a),
-            "existing_a": _by(labels, cap.existing_a),
-            "new_load_a": _by(labels, cap.new_load_a),
-            "total_a": _by(labels, cap.total_a),
-            "rating_a": num(cap.rating_a),
-            "factor": cap.factor,
-            "worst_phase": labels[cap.worst_phase],
-            "spare_a": num(cap.spare_a),
-            "within_rating": cap.within_rating,
-            "is_basis": cap.is_basis,
-            "not_basis_reasons": list(cap.not_basis_reasons),
-            "new_circuits": new_names,
-            "source": NEC_SOURCE,
-        },
-        "shares": {
-            "basis": "average logged current against the schedule's phase RMS current "
-            "(connected load)",
-            "logged_pct": _by(labels, shares.logged_pct),
-            "scheduled_pct": _by(labels, shares.scheduled_pct),
-            "difference_pts": _by(labels, shares.difference_pts),
-            "most_over": labels[shares.most_over],
-        },
+        "capacity": _capacity_data(a, schedule, labels, rating),
+        "shares": _shares_data(a, panel, labels),
         "duration": {
             "levels_a": [num(float(x)) for x in a.duration_levels_a],
             "hours_above": {
@@ -192,6 +159,50 @@ def log_data(
     }
     out["findings"] = log_findings(out)
     return out
+
+
+def _capacity_data(
+    a: LogAnalysis, schedule: Schedule, labels: tuple[str, ...], rating: float
+) -> dict[str, Any]:
+    """The ``capacity`` block: NEC 220.87 room for the schedule's new circuits [A]."""
+    demand = np.array([p.value_a for p in a.phases])
+    new_a, new_names = new_load_a(schedule)
+    cap = added_load_capacity(
+        np.nan_to_num(demand),
+        np.full(3, new_a),
+        rating,
+        log_days=a.recorded_days,
+        demand_minutes=a.demand_minutes,
+    )
+    return {
+        "demand_a": _by(labels, cap.demand_a),
+        "existing_a": _by(labels, cap.existing_a),
+        "new_load_a": _by(labels, cap.new_load_a),
+        "total_a": _by(labels, cap.total_a),
+        "rating_a": num(cap.rating_a),
+        "factor": cap.factor,
+        "worst_phase": labels[cap.worst_phase],
+        "spare_a": num(cap.spare_a),
+        "within_rating": cap.within_rating,
+        "is_basis": cap.is_basis,
+        "not_basis_reasons": list(cap.not_basis_reasons),
+        "new_circuits": new_names,
+        "source": NEC_SOURCE,
+    }
+
+
+def _shares_data(a: LogAnalysis, panel: PanelAnalysis, labels: tuple[str, ...]) -> dict[str, Any]:
+    """The ``shares`` block: each phase's share of the logged and the scheduled current [%]."""
+    shares = phase_shares(
+        np.array([p.mean_a for p in a.phases]), np.array([p.rms_a for p in panel.phases])
+    )
+    return {
+        "basis": "average logged current against the schedule's phase RMS current (connected load)",
+        "logged_pct": _by(labels, shares.logged_pct),
+        "scheduled_pct": _by(labels, shares.scheduled_pct),
+        "difference_pts": _by(labels, shares.difference_pts),
+        "most_over": labels[shares.most_over],
+    }
 
 
 def _by(labels: tuple[str, ...], values: tuple[float, ...]) -> dict[str, Any]:

@@ -116,6 +116,30 @@ def detect_interval(times_s: np.ndarray) -> tuple[float, float]:
     return float(values[k]), float(counts[k] / steps.size)
 
 
+def _check_time_order(
+    t: np.ndarray, lines: np.ndarray, shown: str, show: Callable[[int], str], zoned: bool
+) -> None:
+    """Raise ``ScheduleError`` at the first time [s] earlier than the row before it."""
+    step = np.diff(t)
+    back = np.flatnonzero(step < 0)
+    if not back.size:
+        return
+    i = int(back[0]) + 1
+    more = f" ({back.size - 1} more places)" if back.size > 1 else ""
+    if not zoned and 0 < -step[i - 1] <= 3600.0:
+        more += "; if the logger's clock follows daylight saving, name its zone in [log] timezone"
+    raise ScheduleError(
+        [
+            log_issue(
+                shown,
+                f"times out of order: {show(i)} comes after {show(i - 1)} (line "
+                f"{int(lines[i - 1])}); rows must be in time order{more}",
+                int(lines[i]),
+            )
+        ]
+    )
+
+
 def place_on_grid(
     times_s: np.ndarray,
     lines: np.ndarray,
@@ -152,25 +176,7 @@ def place_on_grid(
     """
     t = np.asarray(times_s, dtype=float)
     show = describe or (lambda i: f"{t[i]:.0f} s")
-    step = np.diff(t)
-    back = np.flatnonzero(step < 0)
-    if back.size:
-        i = int(back[0]) + 1
-        more = f" ({back.size - 1} more places)" if back.size > 1 else ""
-        if not zoned and 0 < -step[i - 1] <= 3600.0:
-            more += (
-                "; if the logger's clock follows daylight saving, name its zone in [log] timezone"
-            )
-        raise ScheduleError(
-            [
-                log_issue(
-                    shown,
-                    f"times out of order: {show(i)} comes after {show(i - 1)} (line "
-                    f"{int(lines[i - 1])}); rows must be in time order{more}",
-                    int(lines[i]),
-                )
-            ]
-        )
+    _check_time_order(t, lines, shown, show, zoned)
     interval, share = detect_interval(t)
     if not np.isfinite(interval):
         raise ScheduleError(

@@ -176,40 +176,9 @@ def read_log_table(
             where,
         )
     volts, _ = _columns(r, raw, "volts_ll", labels, pairs=True)
-    minutes = raw.get("demand_minutes", DEFAULT_DEMAND_MINUTES)
-    if (
-        isinstance(minutes, bool)
-        or not isinstance(minutes, int | float)
-        or not math.isfinite(float(minutes))
-        or not 0 < float(minutes) <= MAX_DEMAND_MINUTES
-    ):
-        r.add(
-            f"found {_shown(minutes)}, expected minutes above 0 and at most "
-            f"{MAX_DEMAND_MINUTES:g} (15 is usual)",
-            table,
-            "demand_minutes",
-            where,
-        )
-    choices = {}
-    for key, allowed, default in (
-        ("demand_window", WINDOWS, "sliding"),
-        ("stamp", STAMPS, "end"),
-        ("decimal", DECIMALS, "."),
-    ):
-        value = raw.get(key, default)
-        if value not in allowed:
-            options = " or ".join(f'"{a}"' for a in allowed)
-            r.add(f"found {_shown(value)}, expected {options}", table, key, where)
-        choices[key] = value
-    zone = raw.get("timezone")
-    if zone is not None and not _is_zone(zone):
-        r.add(
-            f"found {_shown(zone)}, expected a time-zone name such as "
-            '"America/Chicago" or "Europe/Berlin"',
-            table,
-            "timezone",
-            where,
-        )
+    minutes = _demand_minutes(r, raw, table, where)
+    choices = _choices(r, raw, table, where)
+    zone = _zone(r, raw, table, where)
     if "note" in raw and not isinstance(raw["note"], str):
         r.add(f"found {_shown(raw['note'])}, expected text", table, "note", where)
     if r.count or amps is None or len(text) < 2:
@@ -226,6 +195,61 @@ def read_log_table(
         stamp=choices["stamp"],
         decimal=choices["decimal"],
     )
+
+
+def _demand_minutes(
+    r: IssueSink, raw: Mapping[str, Any], table: tuple[str, ...], where: str
+) -> Any:
+    """``demand_minutes`` as written [min] (its default when absent); a problem to ``r``
+    unless above 0 and at most ``MAX_DEMAND_MINUTES``."""
+    minutes = raw.get("demand_minutes", DEFAULT_DEMAND_MINUTES)
+    if (
+        isinstance(minutes, bool)
+        or not isinstance(minutes, int | float)
+        or not math.isfinite(float(minutes))
+        or not 0 < float(minutes) <= MAX_DEMAND_MINUTES
+    ):
+        r.add(
+            f"found {_shown(minutes)}, expected minutes above 0 and at most "
+            f"{MAX_DEMAND_MINUTES:g} (15 is usual)",
+            table,
+            "demand_minutes",
+            where,
+        )
+    return minutes
+
+
+def _choices(
+    r: IssueSink, raw: Mapping[str, Any], table: tuple[str, ...], where: str
+) -> dict[str, Any]:
+    """``demand_window``, ``stamp`` and ``decimal`` as written (defaults when absent);
+    a problem to ``r`` for a value outside its choices."""
+    choices = {}
+    for key, allowed, default in (
+        ("demand_window", WINDOWS, "sliding"),
+        ("stamp", STAMPS, "end"),
+        ("decimal", DECIMALS, "."),
+    ):
+        value = raw.get(key, default)
+        if value not in allowed:
+            options = " or ".join(f'"{a}"' for a in allowed)
+            r.add(f"found {_shown(value)}, expected {options}", table, key, where)
+        choices[key] = value
+    return choices
+
+
+def _zone(r: IssueSink, raw: Mapping[str, Any], table: tuple[str, ...], where: str) -> Any:
+    """``timezone`` as written (None when absent); a problem to ``r`` unless a zone name."""
+    zone = raw.get("timezone")
+    if zone is not None and not _is_zone(zone):
+        r.add(
+            f"found {_shown(zone)}, expected a time-zone name such as "
+            '"America/Chicago" or "Europe/Berlin"',
+            table,
+            "timezone",
+            where,
+        )
+    return zone
 
 
 def _is_zone(name: Any) -> bool:

@@ -70,29 +70,7 @@ def parse_times(
     """
     import pandas as pd
 
-    empty = (text == "").to_numpy()
-    if empty.any():
-        _, line, n = _first_rows(empty, lines)
-        raise ScheduleError(
-            [log_issue(shown, f"time missing in column '{spec.time}'{_more(n)}", line, spec.time)]
-        )
-    # Offsets are looked for first: parsing times whose offsets change within the
-    # log (daylight saving) without utc=True makes Python objects of a million rows.
-    with_offset = text.str.contains(TIME_WITH_OFFSET, regex=True).to_numpy()
-    aware = bool(with_offset.any())
-    if aware and not with_offset.all():
-        _, line, n = _first_rows(~with_offset, lines)
-        raise ScheduleError(
-            [
-                log_issue(
-                    shown,
-                    "time without a UTC offset among times with offsets; write every time "
-                    f"the same way{_more(n)}",
-                    line,
-                    spec.time,
-                )
-            ]
-        )
+    aware = _with_offsets(text, lines, shown, spec)
     parsed = pd.to_datetime(text, format="ISO8601", errors="coerce", utc=aware)
     bad = parsed.isna().to_numpy()
     if bad.any():
@@ -118,6 +96,35 @@ def parse_times(
         return _seconds(parsed), None, None
     local = _localise(parsed, lines, shown, spec)
     return _seconds(local.dt.tz_convert("UTC").dt.tz_localize(None)), spec.timezone, None
+
+
+def _with_offsets(text: Any, lines: np.ndarray, shown: str, spec: LogSpec) -> bool:
+    """True when every time carries a UTC offset, False when none does; ``ScheduleError``
+    for a missing time or a mix of both."""
+    empty = (text == "").to_numpy()
+    if empty.any():
+        _, line, n = _first_rows(empty, lines)
+        raise ScheduleError(
+            [log_issue(shown, f"time missing in column '{spec.time}'{_more(n)}", line, spec.time)]
+        )
+    # Offsets are looked for first: parsing times whose offsets change within the
+    # log (daylight saving) without utc=True makes Python objects of a million rows.
+    with_offset = text.str.contains(TIME_WITH_OFFSET, regex=True).to_numpy()
+    aware = bool(with_offset.any())
+    if aware and not with_offset.all():
+        _, line, n = _first_rows(~with_offset, lines)
+        raise ScheduleError(
+            [
+                log_issue(
+                    shown,
+                    "time without a UTC offset among times with offsets; write every time "
+                    f"the same way{_more(n)}",
+                    line,
+                    spec.time,
+                )
+            ]
+        )
+    return aware
 
 
 def _localise(parsed: Any, lines: np.ndarray, shown: str, spec: LogSpec) -> Any:

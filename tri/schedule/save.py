@@ -3,7 +3,8 @@
 Saving never rewrites what did not change. Each table of the model is
 compared with what the original document says; only tables that differ are
 touched, and within them only the keys that differ. Comments, key order and
-the formatting of untouched parts survive.
+the formatting of untouched parts survive (the edits themselves:
+:mod:`tri.schedule.toml_edit`).
 """
 
 from __future__ import annotations
@@ -12,7 +13,7 @@ from pathlib import Path
 from typing import Any
 
 import tomlkit
-from tomlkit.items import AoT, Table, Whitespace
+from tomlkit.items import AoT, Table
 from tomlkit.toml_document import TOMLDocument
 
 from tri.schedule.atomic import write_atomic
@@ -34,82 +35,19 @@ from tri.schedule.read_supply import read_supply
 from tri.schedule.read_wiring import read_rcds
 from tri.schedule.reader import Reader
 from tri.schedule.slots import PHASES, RIGHT_ABC, TWO_COLUMN
+from tri.schedule.toml_edit import (
+    clean_value,
+    end_with_blank_line,
+    insert_table,
+    plain_value,
+    set_key,
+)
 from tri.schedule.use_factors import use_table
 
 HEADER_COMMENT = (
     "Panel schedule for tri. Edit it by hand or with `tri FILE`; keep it in version control.",
     "Units: VA, W, A, V, Hz. See the README's file reference for every key.",
 )
-
-
-def _clean(value: Any) -> Any:
-    """Whole floats as integers, tuples as lists, so files stay tidy."""
-    if isinstance(value, float) and value.is_integer() and abs(value) < 1e15:
-        return int(value)
-    if isinstance(value, tuple):
-        return [_clean(v) for v in value]
-    return value
-
-
-def _plain(value: Any) -> Any:
-    """A tomlkit item as plain Python data (dicts, lists, numbers, text)."""
-    return value.unwrap() if hasattr(value, "unwrap") else value
-
-
-def _same(a: Any, b: Any) -> bool:
-    if isinstance(a, list | tuple) and isinstance(b, list | tuple):
-        return len(a) == len(b) and all(_same(x, y) for x, y in zip(a, b, strict=True))
-    return a == b
-
-
-def _set(table: Any, key: str, value: Any, default: Any = None) -> None:
-    """Set ``key`` only if its value changes; drop it when it becomes ``None``.
-
-    A key that is absent stays absent while the value equals ``default``.
-    """
-    present = key in table
-    if value is None:
-        if present:
-            del table[key]
-        return
-    if not present:
-        if default is not None and _same(value, default):
-            return
-        table[key] = _clean(value)
-        return
-    current = table[key]
-    current = _plain(current)
-    if not _same(current, value):
-        table[key] = _clean(value)
-
-
-def _insert_table(doc: TOMLDocument, key: str, table: Table, after: tuple[str, ...]) -> None:
-    """Add a filled top-level table after the first existing key of ``after`` (else at the end).
-
-    tomlkit has no public "insert after"; ``Container._insert_at`` (present from
-    tomlkit 0.7 to 0.15) takes a position in ``doc.body``. Any failure appends.
-    """
-    table.add(tomlkit.nl())
-    keys = list(doc.keys())
-    for anchor in after:
-        if anchor in doc and anchor != keys[-1]:
-            position = _body_position_after(doc, anchor)
-            if position is None:
-                break
-            try:
-                doc._insert_at(position, key, table)
-            except Exception:
-                break
-            return
-    doc[key] = table
-
-
-def _body_position_after(doc: TOMLDocument, anchor: str) -> int | None:
-    """Index in ``doc.body`` just after the top-level entry ``anchor``, or None."""
-    for index, (body_key, _item) in enumerate(doc.body):
-        if body_key is not None and body_key.key == anchor:
-            return index + 1
-    return None
 
 
 def _quiet_reader() -> Reader:
@@ -120,34 +58,34 @@ def _write_panel(doc: TOMLDocument, panel: PanelInfo) -> None:
     existing: Any = doc.get("panel")
     if (
         isinstance(existing, dict)
-        and read_panel(_quiet_reader(), {"panel": _plain(existing)}) == panel
+        and read_panel(_quiet_reader(), {"panel": plain_value(existing)}) == panel
     ):
         return
     created = not isinstance(existing, Table)
     t = tomlkit.table() if created else existing
     system = panel.supply_system
-    _set(t, "name", panel.name)
-    _set(t, "system", panel.system)
-    _set(t, "frequency_hz", panel.frequency_hz, system.default_frequency_hz)
-    _set(t, "spaces", panel.spaces)
-    _set(t, "bus_a", panel.bus_a)
-    _set(t, "main_a", panel.main_a)
-    _set(t, "neutral_a", panel.neutral_a)
-    _set(t, "phase_labels", list(panel.phase_labels), ["A", "B", "C"])
-    _set(t, "layout", panel.layout, TWO_COLUMN)
+    set_key(t, "name", panel.name)
+    set_key(t, "system", panel.system)
+    set_key(t, "frequency_hz", panel.frequency_hz, system.default_frequency_hz)
+    set_key(t, "spaces", panel.spaces)
+    set_key(t, "bus_a", panel.bus_a)
+    set_key(t, "main_a", panel.main_a)
+    set_key(t, "neutral_a", panel.neutral_a)
+    set_key(t, "phase_labels", list(panel.phase_labels), ["A", "B", "C"])
+    set_key(t, "layout", panel.layout, TWO_COLUMN)
     _write_panel_wiring(t, panel)
     if created:
-        _insert_table(doc, "panel", t, ("format",))
+        insert_table(doc, "panel", t, ("format",))
 
 
 def _write_panel_wiring(t: Any, panel: PanelInfo) -> None:
     """``high_leg``, ``right_column``, ``fed_from``, ``max_row_shift`` (defaults left out)."""
     high = panel.high_leg if panel.supply_system.high_leg_delta else None
     labels = panel.phase_labels
-    _set(t, "high_leg", None if high is None else labels[high], labels[1])
-    _set(t, "right_column", panel.right_column, RIGHT_ABC)
-    _set(t, "fed_from", panel.fed_from)
-    _set(t, "max_row_shift", panel.max_row_shift)
+    set_key(t, "high_leg", None if high is None else labels[high], labels[1])
+    set_key(t, "right_column", panel.right_column, RIGHT_ABC)
+    set_key(t, "fed_from", panel.fed_from)
+    set_key(t, "max_row_shift", panel.max_row_shift)
 
 
 def _write_rcds(doc: TOMLDocument, schedule: Schedule) -> None:
@@ -172,9 +110,9 @@ def _write_rcds(doc: TOMLDocument, schedule: Schedule) -> None:
     labels = schedule.panel.phase_labels
     for k, rcd in enumerate(schedule.rcds):
         t = tables[k] if k < len(tables) else tomlkit.table()
-        _set(t, "name", rcd.name)
-        _set(t, "poles", rcd.poles, 2)
-        _set(t, "phase", None if rcd.phase is None else labels[rcd.phase])
+        set_key(t, "name", rcd.name)
+        set_key(t, "poles", rcd.poles, 2)
+        set_key(t, "phase", None if rcd.phase is None else labels[rcd.phase])
         if k >= len(tables):
             existing.append(t)
 
@@ -187,15 +125,15 @@ def _write_supply(doc: TOMLDocument, supply: Supply | None) -> None:
         return
     if (
         isinstance(existing, dict)
-        and read_supply(_quiet_reader(), {"supply": _plain(existing)}) == supply
+        and read_supply(_quiet_reader(), {"supply": plain_value(existing)}) == supply
     ):
         return
     created = not isinstance(existing, Table)
     t = tomlkit.table() if created else existing
     for key, value in vars(supply).items():
-        _set(t, key, value, 0.0)
+        set_key(t, key, value, 0.0)
     if created:
-        _insert_table(doc, "supply", t, ("panel", "format"))
+        insert_table(doc, "supply", t, ("panel", "format"))
 
 
 def _triple_table(labels: list[str], values: tuple[Any, ...], extra: dict[str, Any]) -> Any:
@@ -216,7 +154,7 @@ def _write_readings(doc: TOMLDocument, readings: Readings | None, panel: PanelIn
             del doc["readings"]
         return
     if isinstance(existing, dict):
-        old = read_readings(_quiet_reader(), {"readings": _plain(existing)}, panel)
+        old = read_readings(_quiet_reader(), {"readings": plain_value(existing)}, panel)
         if old == readings:
             return
     created = not isinstance(existing, Table)
@@ -236,9 +174,9 @@ def _write_readings(doc: TOMLDocument, readings: Readings | None, panel: PanelIn
                 del t[key]
         else:
             t[key] = table
-    _set(t, "taken", readings.taken)
+    set_key(t, "taken", readings.taken)
     if created:
-        _insert_table(doc, "readings", t, ("supply", "panel", "format"))
+        insert_table(doc, "readings", t, ("supply", "panel", "format"))
 
 
 def _profile_table(profile: UserProfile) -> Table:
@@ -247,7 +185,7 @@ def _profile_table(profile: UserProfile) -> Table:
         t["description"] = profile.description
     rows = tomlkit.array()
     for order, mag, ang in profile.harmonics:
-        rows.append([order, _clean(mag), _clean(ang)])
+        rows.append([order, clean_value(mag), clean_value(ang)])
     t["harmonics"] = rows
     return t
 
@@ -255,7 +193,7 @@ def _profile_table(profile: UserProfile) -> Table:
 def _write_profiles(doc: TOMLDocument, profiles: tuple[UserProfile, ...]) -> None:
     existing: Any = doc.get("profiles")
     if isinstance(existing, dict):
-        old = read_profiles(_quiet_reader(), {"profiles": _plain(existing)})
+        old = read_profiles(_quiet_reader(), {"profiles": plain_value(existing)})
         if old == profiles:
             return
     if not profiles:
@@ -264,7 +202,7 @@ def _write_profiles(doc: TOMLDocument, profiles: tuple[UserProfile, ...]) -> Non
         return
     if not isinstance(existing, Table):
         existing = tomlkit.table(is_super_table=True)
-        _insert_table(doc, "profiles", existing, ("readings", "supply", "panel", "format"))
+        insert_table(doc, "profiles", existing, ("readings", "supply", "panel", "format"))
         existing = doc["profiles"]
     wanted = {p.name: p for p in profiles}
     for name in list(existing.keys()):
@@ -273,11 +211,13 @@ def _write_profiles(doc: TOMLDocument, profiles: tuple[UserProfile, ...]) -> Non
     for name, profile in wanted.items():
         body = existing.get(name)
         if isinstance(body, dict):
-            old = read_profiles(_quiet_reader(), {"profiles": {name: _plain(body)}})
+            old = read_profiles(_quiet_reader(), {"profiles": {name: plain_value(body)}})
             if old == (profile,):
                 continue
-            _set(body, "description", profile.description or None)
-            body["harmonics"] = [[o, _clean(m), _clean(a)] for o, m, a in profile.harmonics]
+            set_key(body, "description", profile.description or None)
+            body["harmonics"] = [
+                [o, clean_value(m), clean_value(a)] for o, m, a in profile.harmonics
+            ]
         else:
             table = _profile_table(profile)
             table.add(tomlkit.nl())
@@ -287,11 +227,11 @@ def _write_profiles(doc: TOMLDocument, profiles: tuple[UserProfile, ...]) -> Non
 def _write_circuit(table: Any, c: Circuit, schedule: Schedule) -> None:
     panel = schedule.panel
     if isinstance(table, dict) and c.source_index is not None:
-        old = read_circuit(_quiet_reader(), _plain(table), c.source_index, panel)
+        old = read_circuit(_quiet_reader(), plain_value(table), c.source_index, panel)
         if old == c:
             return
     if panel.layout == TWO_COLUMN:
-        _set(table, "slot", c.slot)
+        set_key(table, "slot", c.slot)
         if "phases" in table:
             del table["phases"]
     else:
@@ -302,37 +242,37 @@ def _write_circuit(table: Any, c: Circuit, schedule: Schedule) -> None:
             else None
         )
         if c.phases is None:
-            _set(table, "phases", None)
+            set_key(table, "phases", None)
         elif old_parsed != c.phases:
             table["phases"] = schedule.phase_text(c.phases)
         if "slot" in table:
             del table["slot"]
-    _set(table, "name", c.name)
+    set_key(table, "name", c.name)
     poles_default = len(c.phases) if (panel.layout == PHASES and c.phases) else 1
     if "poles" in table or c.poles != poles_default:
-        _set(table, "poles", c.poles)
+        set_key(table, "poles", c.poles)
     if c.feed is None:  # a feeder circuit's load is its panel's; its feeds keys stay as written
         load_key = None if c.spare else f"load_{c.load_kind}"
         for key in ("load_va", "load_w", "load_a"):
             if key != load_key and key in table:
                 del table[key]
         if load_key is not None:
-            _set(table, load_key, c.load_value if c.leg_values is None else c.leg_values)
-    _set(table, "pf", c.pf, 1.0)
-    _set(table, "leading", c.leading, False)
-    _set(table, "profile", c.profile, "linear")
-    _set(table, "continuous", c.continuous, False)
-    _set(table, "locked", c.locked, False)
-    _set(table, "breaker_a", c.breaker_a)
+            set_key(table, load_key, c.load_value if c.leg_values is None else c.leg_values)
+    set_key(table, "pf", c.pf, 1.0)
+    set_key(table, "leading", c.leading, False)
+    set_key(table, "profile", c.profile, "linear")
+    set_key(table, "continuous", c.continuous, False)
+    set_key(table, "locked", c.locked, False)
+    set_key(table, "breaker_a", c.breaker_a)
     if c.note or "note" in table:
-        _set(table, "note", c.note or None)
-    _set(table, "neutral", c.neutral, False)
-    _set(table, "shared_neutral", c.shared_neutral)
-    _set(table, "handle_tied", c.handle_tied, False)
-    _set(table, "spare", c.spare, False)
-    _set(table, "rcd", c.rcd)
+        set_key(table, "note", c.note or None)
+    set_key(table, "neutral", c.neutral, False)
+    set_key(table, "shared_neutral", c.shared_neutral)
+    set_key(table, "handle_tied", c.handle_tied, False)
+    set_key(table, "spare", c.spare, False)
+    set_key(table, "rcd", c.rcd)
     if c.use or "use" in table:
-        _set(table, "use", use_table(c.use) if c.use else None)
+        set_key(table, "use", use_table(c.use) if c.use else None)
 
 
 def _write_circuits(doc: TOMLDocument, schedule: Schedule) -> None:
@@ -378,14 +318,7 @@ def _write_circuits(doc: TOMLDocument, schedule: Schedule) -> None:
             aot.append(t)
     tables = list(aot)
     for t in tables[max(0, first_new - 1) : -1]:
-        _end_with_blank_line(t)
-
-
-def _end_with_blank_line(table: Table) -> None:
-    """Separate an existing last table from the ones appended after it."""
-    body = table.value.body
-    if not body or not isinstance(body[-1][1], Whitespace):
-        table.add(tomlkit.nl())
+        end_with_blank_line(t)
 
 
 def updated_document(schedule: Schedule, original: TOMLDocument | None = None) -> TOMLDocument:
@@ -402,7 +335,7 @@ def updated_document(schedule: Schedule, original: TOMLDocument | None = None) -
         doc.add(tomlkit.nl())
     else:
         doc = tomlkit.parse(original.as_string())
-        _set(doc, "format", schedule.format)
+        set_key(doc, "format", schedule.format)
     _write_panel(doc, schedule.panel)
     _write_supply(doc, schedule.supply)
     _write_readings(doc, schedule.readings, schedule.panel)

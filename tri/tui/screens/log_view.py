@@ -35,22 +35,11 @@ from tri.tui.log_plot import Plot, Window, column_range, duration_picture, legen
 from tri.tui.log_reader import LogCancelled, read_and_analyse
 from tri.tui.log_summary import facts_line, summary_lines
 from tri.tui.messages import LogProgress, LogRead
-from tri.tui.screens.log_keys import VIEWS, LogChart, LogKeys
+from tri.tui.screens.log_keys import LOG_HELP, LOG_KEY_WORDS, VIEWS, LogChart, LogKeys
 from tri.tui.wording import issue_text, plural
 
-LOG_HELP = """\
-The log view reads the schedule's [log] file (a logger's CSV export) in the
-background with a progress bar; Esc cancels, r reads it again. Current over
-time: each phase and the neutral (dotted) as the average of the intervals
-under each dot column; ▼ marks where each channel's highest demand window
-starts (p jumps to them in turn); the dim dotted line is the rating. ← →
-move the cursor (its time and values are written under the picture), + and
-− zoom in and out around it, PgUp PgDn scroll, Home End go to the ends, 0
-shows the whole log, 1 2 3 4 hide or show A, B, C and N. Duration: the
-hours each current was exceeded (interval values); ↑↓ choose a current.
-Figures: the report's own text (scenarios, log, demand, unbalance over
-time, NEC 220.87 capacity with its 'not a basis' wording, log against
-schedule). Every figure comes from the same functions as tri report."""
+#: Re-exported: the help screen imports it here.
+__all__ = ["LOG_HELP", "LogScreen"]
 
 
 class LogScreen(LogKeys, Screen[None]):
@@ -79,28 +68,7 @@ class LogScreen(LogKeys, Screen[None]):
         Binding("r", "read", "Read again", show=False, id="log.read"),
         Binding("q", "app.quit", "Quit", show=False),
     ]
-    KEY_WORDS: ClassVar[dict[str, str]] = {
-        "cancel_or_back": "cancel reading, or back to the main view",
-        "view(1)": "current over time, duration, figures",
-        "zoom(1)": "zoom in around the cursor",
-        "zoom(-1)": "zoom out",
-        "peak": "jump to the next demand peak (A, B, C, N in turn)",
-        "read": "read the log again",
-        "view(-1)": "the previous view",
-        "cursor(-1)": "cursor back in time (at the edge the picture scrolls)",
-        "cursor(1)": "cursor on in time",
-        "pan(-1)": "scroll back one screen",
-        "pan(1)": "scroll on one screen",
-        "edge(0)": "the start of the log (figures: the top)",
-        "edge(1)": "the end of the log (figures: the end)",
-        "whole": "the whole log",
-        "level(1)": "duration: a higher current (figures: scroll up)",
-        "level(-1)": "duration: a lower current (figures: scroll down)",
-        "channel(0)": "hide or show the first phase",
-        "channel(1)": "hide or show the second phase",
-        "channel(2)": "hide or show the third phase",
-        "channel(3)": "hide or show the neutral",
-    }
+    KEY_WORDS: ClassVar[dict[str, str]] = LOG_KEY_WORDS
 
     def __init__(self) -> None:
         super().__init__()
