@@ -18,9 +18,10 @@ complex 3×3 matrix ``M_jk[h]`` per order with
 
 ``V_k = Σ_j M_jk · (own currents of j)``  (phases × orders).
 
-The matrices are read off the engine itself: the roll-up of a unit current
-on phase p of panel j, at every order at once, gives column p of every
-``M_jk[h]`` (three roll-ups per panel). So a plan's phase currents at every
+The matrices are read off the engine itself
+(:mod:`tri.rebalance.tree_transfer`): the roll-up of a unit current on
+phase p of panel j, at every order at once, gives column p of every
+``M_jk[h]``. So a plan's phase currents at every
 panel of the search, in that panel's own frame, are
 
 ``V_k = B_k + Σ_o x_o·C_ok``
@@ -39,17 +40,9 @@ single-panel bounds then apply to it unchanged.
 
 The neutral
 -----------
-The neutral current of every node is linear in the same way: a node's own
-neutral current returns on its parent's neutral without a transformer, and
-through one the primary's neutral carries the sum of the primary line
-currents (:func:`~tri.engine.tree.roll_up`); so with ``N_k`` the total
-neutral current of node k,
-
-``N_k = NB_k + Σ_o x_o·NC_ok``
-
-read off the same roll-ups (the unit phase currents, and one more roll-up
-of a unit own neutral current per panel). A neutral limit
-(:attr:`TreeProblem.neutral_max_a`) bounds the RMS of ``N`` at the
+Every node's total neutral current is linear too, ``N_k = NB_k + Σ_o
+x_o·NC_ok``, read off the same roll-ups (:mod:`tri.rebalance.tree_transfer`).
+A neutral limit (:attr:`TreeProblem.neutral_max_a`) bounds its RMS at the
 service, in every case.
 
 Cases
@@ -70,18 +63,17 @@ so a bound proven in one case is a bound. Node views carry every case too.
 
 from __future__ import annotations
 
-from collections.abc import Sequence
 from dataclasses import dataclass, replace
 from functools import cached_property
 
 import numpy as np
 
 from tri.engine.harmonics import rms
-from tri.engine.tree import Spectra, roll_up
 from tri.engine.tree_inputs import pack_tree
 from tri.engine.unbalance import deviation_rate_pct
 from tri.rebalance.plan_currents import floor_of
 from tri.rebalance.problem import WINDOW_TYPES, Problem, build_problem
+from tri.rebalance.tree_transfer import rolled_up, transfer_matrices
 from tri.schedule.model import Schedule
 from tri.schedule.to_scenarios import CONNECTED
 from tri.schedule.tree import ScheduleTree
@@ -320,44 +312,6 @@ class TreeProblem:
         )
 
 
-def _embed(spectrum: np.ndarray, orders: np.ndarray, into: np.ndarray) -> np.ndarray:
-    """A spectrum on ``orders`` placed on the columns of the larger set ``into``."""
-    out = np.zeros((*spectrum.shape[:-1], into.size), dtype=complex)
-    out[..., np.searchsorted(into, orders)] = spectrum
-    return out
-
-
-def _transfer_matrices(
-    packed, nodes: Sequence[int], orders: np.ndarray
-) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
-    """Node j's own currents to node k's totals (module notes), read off the engine's roll-up.
-
-    Returns ``M`` (P, P, H, 3, 3): own line currents to line currents;
-    ``NP`` (P, P, H, 3): own line currents to the neutral; ``NN`` (P, P, H):
-    own neutral current to the neutral. Four roll-ups per node, each a unit
-    current on one phase (or the neutral) at every order.
-    """
-    n_all, h = packed.size, orders.size
-    pos = np.asarray(nodes, dtype=int)
-    out = np.zeros((len(nodes), len(nodes), h, 3, 3), dtype=complex)
-    to_n = np.zeros((len(nodes), len(nodes), h, 3), dtype=complex)
-    n_to_n = np.zeros((len(nodes), len(nodes), h), dtype=complex)
-    zero_n = np.zeros((n_all, h), dtype=complex)
-    for j, node in enumerate(nodes):
-        for p in range(3):
-            phase = np.zeros((n_all, 3, h), dtype=complex)
-            phase[node, p, :] = 1.0
-            total, _ = roll_up(packed, Spectra(phase, zero_n, phase), orders)
-            out[j, :, :, :, p] = np.swapaxes(total.phase[pos], -1, -2)
-            to_n[j, :, :, p] = total.neutral[pos]
-        neutral = np.zeros((n_all, h), dtype=complex)
-        neutral[node, :] = 1.0
-        no_lines = np.zeros((n_all, 3, h), dtype=complex)
-        total, _ = roll_up(packed, Spectra(no_lines, neutral, no_lines), orders)
-        n_to_n[j] = total.neutral[pos]
-    return out, to_n, n_to_n
-
-
 def build_tree_problem(
     tree: ScheduleTree,
     service: int,
@@ -412,14 +366,14 @@ def build_tree_problem(
             f"{n_opt} options, {plural(1 + len(names), 'case')}); name a panel lower in the "
             "tree with --at"
         )
-    matrices = _transfer_matrices(packed, nodes, orders)
+    matrices = transfer_matrices(packed, nodes, orders)
     offsets = np.concatenate([[0], np.cumsum([pr.n_options for pr in problems])]).astype(int)
     circuit_offsets = np.concatenate([[0], np.cumsum([pr.n_free for pr in problems])]).astype(int)
     targets = np.full(len(nodes), float(child_target))
     targets[0] = float(service_target)
     cases = []
     for c, name in enumerate((CONNECTED, *names)):
-        base, contrib, nbase, ncontrib = _rolled_up(
+        base, contrib, nbase, ncontrib = rolled_up(
             [pr.views()[c] for pr in problems], matrices, orders
         )
         cases.append(
@@ -444,30 +398,3 @@ def build_tree_problem(
     if not names:
         return cases[0]
     return replace(cases[0], case_names=(CONNECTED, *names), others=tuple(cases[1:]))
-
-
-def _rolled_up(
-    problems: Sequence[Problem], matrices, orders: np.ndarray
-) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
-    """``B_k`` (P, 3, H), ``C_ok`` (O, P, 3, H), ``NB_k`` (P, H) and ``NC_ok`` (O, P, H) of one
-    case, from every node's own currents [A]."""
-    lines, to_n, n_to_n = matrices
-    p_count = len(problems)
-    n_opt = sum(pr.n_options for pr in problems)
-    base = np.zeros((p_count, 3, orders.size), dtype=complex)
-    contrib = np.zeros((n_opt, p_count, 3, orders.size), dtype=complex)
-    nbase = np.zeros((p_count, orders.size), dtype=complex)
-    ncontrib = np.zeros((n_opt, p_count, orders.size), dtype=complex)
-    o = 0
-    for j, pr in enumerate(problems):
-        own = _embed(pr.base, pr.orders, orders)  # (3, H)
-        own_n = _embed(pr.nbase, pr.orders, orders)  # (H,)
-        base += np.einsum("khpq,qh->kph", lines[j], own)
-        nbase += np.einsum("khq,qh->kh", to_n[j], own) + n_to_n[j] * own_n[None, :]
-        opts = _embed(pr.contrib, pr.orders, orders)  # (O_j, 3, H)
-        opts_n = _embed(pr.ncontrib, pr.orders, orders)  # (O_j, H)
-        sl = slice(o, o + pr.n_options)
-        contrib[sl] = np.einsum("khpq,oqh->okph", lines[j], opts)
-        ncontrib[sl] = np.einsum("khq,oqh->okh", to_n[j], opts) + n_to_n[j][None] * opts_n[:, None]
-        o += pr.n_options
-    return base, contrib, nbase, ncontrib
