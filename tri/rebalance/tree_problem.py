@@ -18,10 +18,8 @@ complex 3×3 matrix ``M_jk[h]`` per order with
 
 ``V_k = Σ_j M_jk · (own currents of j)``  (phases × orders).
 
-The matrices are read off the engine itself
-(:mod:`tri.rebalance.tree_transfer`): the roll-up of a unit current on
-phase p of panel j, at every order at once, gives column p of every
-``M_jk[h]``. So a plan's phase currents at every
+The matrices are read off the engine's roll-up of unit currents
+(:mod:`tri.rebalance.tree_transfer`). So a plan's phase currents at every
 panel of the search, in that panel's own frame, are
 
 ``V_k = B_k + Σ_o x_o·C_ok``
@@ -36,13 +34,9 @@ depth first), so every panel's subtree holds one contiguous block of
 options: the block of a *node view* (:meth:`TreeProblem.node_view`), a
 :class:`~tri.rebalance.problem.Problem` whose free circuits are every free
 circuit below that panel and whose currents are ``B_k`` and ``C_ok``; the
-single-panel bounds then apply to it unchanged.
-
-The neutral
------------
-Every node's total neutral current is linear too, ``N_k = NB_k + Σ_o
-x_o·NC_ok``, read off the same roll-ups (:mod:`tri.rebalance.tree_transfer`).
-A neutral limit (:attr:`TreeProblem.neutral_max_a`) bounds its RMS at the
+single-panel bounds then apply to it unchanged. Every node's neutral
+current is linear too, ``N_k = NB_k + Σ_o x_o·NC_ok`` (the same roll-ups);
+a neutral limit (:attr:`TreeProblem.neutral_max_a`) bounds its RMS at the
 service, in every case.
 
 Cases
@@ -312,6 +306,18 @@ class TreeProblem:
         )
 
 
+def _shape(tree: ScheduleTree, nodes: list[int]) -> tuple[np.ndarray, np.ndarray]:
+    """Each node's parent (position in ``nodes``, -1 for the service) and subtree end."""
+    position = {n: k for k, n in enumerate(nodes)}
+    parents = (tree.panels[n].parent for n in nodes)
+    parent = np.array([-1 if p is None else position.get(p, -1) for p in parents], dtype=int)
+    parent[0] = -1
+    ends = np.zeros(len(nodes), dtype=int)
+    for k in range(len(nodes) - 1, -1, -1):
+        ends[k] = max([k + 1, *[ends[c] for c in range(k + 1, len(nodes)) if parent[c] == k]])
+    return parent, ends
+
+
 def build_tree_problem(
     tree: ScheduleTree,
     service: int,
@@ -343,13 +349,7 @@ def build_tree_problem(
         A search too large for the current table.
     """
     nodes = subtree(tree, service)
-    position = {n: k for k, n in enumerate(nodes)}
-    parents = (tree.panels[n].parent for n in nodes)
-    parent = np.array([-1 if p is None else position.get(p, -1) for p in parents], dtype=int)
-    parent[0] = -1
-    ends = np.zeros(len(nodes), dtype=int)
-    for k in range(len(nodes) - 1, -1, -1):
-        ends[k] = max([k + 1, *[ends[c] for c in range(k + 1, len(nodes)) if parent[c] == k]])
+    parent, ends = _shape(tree, nodes)
     names = building_scenario_names(tree)
     problems = tuple(
         build_problem(
