@@ -75,13 +75,23 @@ def test_analyse_schedule_gives_one_current_per_circuit() -> None:
     assert a.circuit_current_a[kiln] == pytest.approx(abs(i_bc - i_ab), rel=1e-9)
 
 
-@pytest.mark.parametrize("path", [DEMO, MWBC], ids=["high-leg demo", "mwbc"])
-def test_suggest_refuses_clearly(path: Path) -> None:
-    r = tri("suggest", str(path))
-    assert r.returncode == 2
-    assert "Traceback" not in r.stderr and r.stdout == ""
-    assert str(path) in r.stderr
-    assert "not yet supported by the rebalancer" in r.stderr
+def test_suggest_keeps_120_v_circuits_off_the_high_leg() -> None:
+    """The high-leg demo is rebalanced now; the plan is a valid panel and says what it skips."""
+    r = tri("suggest", str(DEMO), "--format", "json")
+    assert r.returncode in (0, 1), r.stderr
+    assert "not yet" not in r.stderr and "Traceback" not in r.stderr
+    d = json.loads(r.stdout)
+    assert any("high-leg delta: no 120 V circuit" in n for n in d["notes"])
+    assert all(m["to_phases"] != "B" for m in d["moves"])  # high leg B: no 1-pole load there
+
+
+def test_suggest_honours_shared_neutrals_and_per_leg_loads() -> None:
+    """Breakers with a neutral, per-leg loads and shared-neutral groups move as units now."""
+    r = tri("suggest", str(MWBC), "--format", "json")
+    assert r.returncode in (0, 1), r.stderr
+    assert "not yet" not in r.stderr and "Traceback" not in r.stderr
+    d = json.loads(r.stdout)
+    assert d["status"] in ("optimal", "already-balanced", "best-found", "infeasible")
 
 
 def test_suggest_honours_a_right_column_and_a_reach(tmp_path: Path) -> None:

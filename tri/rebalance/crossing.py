@@ -270,8 +270,8 @@ def changes_lower_bound(
         ``k + 1`` for the largest ``k < min(known, cap + 1)`` proven impossible
         (Theorem 2; every smaller budget is then impossible too), 0 if none.
     """
-    if pr.n_free == 0:
-        return 0
+    if pr.n_free == 0 or not pr.symmetric:
+        return 0  # a high-leg delta: J is not the same for every plan (Theorems 1-2 need it)
     fr = frame_of(pr)
     top = min(known, cap + 1) - 1
     t = target * (1 + TARGET_SLACK) + 1e-12

@@ -55,12 +55,16 @@ class Window:
         Option kind it gives: pair index (0, 1, 2) for 2 poles, 0 for 3 [-].
     cells : tuple of int
         Every slot the breaker takes.
+    order : tuple of int
+        Phase of each of its slots, first first: the option a wired unit
+        takes there (:mod:`tri.rebalance.units`).
     """
 
     first: int
     poles: int
     kind: int
     cells: tuple[int, ...]
+    order: tuple[int, ...] = ()
 
 
 @dataclass(frozen=True, eq=False)
@@ -131,14 +135,16 @@ def window_kind(first: int, poles: int, right_column: str = RIGHT_ABC) -> int:
     return {frozenset((0, 1)): 0, frozenset((1, 2)): 1, frozenset((2, 0)): 2}[frozenset((p, q))]
 
 
-def slot_geometry(schedule: Schedule, free: Sequence[int]) -> SlotGeometry | None:
+def slot_geometry(schedule: Schedule, free: Sequence[int | Sequence[int]]) -> SlotGeometry | None:
     """The geometry of a search in which the circuits ``free`` may move (module notes).
 
     Parameters
     ----------
     schedule : Schedule
-    free : sequence of int
-        Schedule indices of the free circuits, in the problem's order.
+    free : sequence of int or of tuples of int
+        The free units in the problem's order: a schedule index each, or
+        the schedule indices of a unit's breakers (a shared-neutral group,
+        :mod:`tri.rebalance.units`), whose home is every slot they take.
 
     Returns
     -------
@@ -149,24 +155,30 @@ def slot_geometry(schedule: Schedule, free: Sequence[int]) -> SlotGeometry | Non
         return None
     spaces = schedule.panel.spaces
     rc = schedule.panel.right_column
-    free_set = set(int(i) for i in free)
+    units = [(int(u),) if isinstance(u, (int, np.integer)) else tuple(u) for u in free]
+    free_set = {int(i) for u in units for i in u}
     fixed: set[int] = set()
     for idx, c in enumerate(schedule.circuits):
         if c.slot is not None and idx not in free_set:
             fixed.update(occupied_slots(c.slot, c.poles))
     open_cells = np.array([s for s in range(1, spaces + 1) if s not in fixed], dtype=int)
     per_phase = np.bincount([slot_phase(int(s), rc) for s in open_cells], minlength=3)
-    pole_counts = sorted({schedule.circuits[int(i)].poles for i in free} - {1})
+    unit_poles = [sum(schedule.circuits[i].poles for i in u) for u in units]
+    pole_counts = sorted(set(unit_poles) - {1})
     windows = []
     for poles in pole_counts:
         for first in range(1, spaces + 1):
             cells = occupied_slots(first, poles)
             if fits(first, poles, spaces) and not fixed.intersection(cells):
-                windows.append(Window(first, poles, window_kind(first, poles, rc), cells))
-    homes = []
-    for i in free:
-        c = schedule.circuits[int(i)]
-        homes.append(None if c.slot is None else occupied_slots(c.slot, c.poles))
+                kind = window_kind(first, poles, rc)
+                windows.append(Window(first, poles, kind, cells, pole_phases(first, poles, rc)))
+    homes: list[tuple[int, ...] | None] = []
+    for u in units:
+        firsts = [(schedule.circuits[i].slot, schedule.circuits[i].poles) for i in u]
+        if any(f is None for f, _ in firsts):
+            homes.append(None)
+            continue
+        homes.append(tuple(sorted(s for f, k in firsts for s in occupied_slots(f or 0, k))))
     return SlotGeometry(
         spaces=spaces,
         open_cells=open_cells,

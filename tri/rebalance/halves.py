@@ -150,8 +150,8 @@ def _count_halves(ch: _Changes, depth: int) -> int:
 
 def halves_fit(pr: Problem, k: int, ref: np.ndarray | None = None) -> bool:
     """True when :func:`plans_below` applies: few enough half-plans, no new circuits."""
-    if k < 1 or pr.n_free == 0 or not np.all(pr.movable):
-        return False
+    if k < 1 or pr.n_free == 0 or not np.all(pr.movable) or not pr.symmetric:
+        return False  # Lemma 1 needs Σ s_p = 0 for every plan: not on a high-leg delta
     a = pr.current_assignment() if ref is None else ref
     return _count_halves(_changes(pr, a), (k + 1) // 2) <= HALF_LIMIT
 

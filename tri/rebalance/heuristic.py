@@ -198,7 +198,7 @@ class LocalSearch:
         present = self.assign >= 0
         kinds_now = np.where(present, pr.kind[np.maximum(self.assign, 0)], -1)
         for poles in (1, 2):
-            members = np.flatnonzero(present & (pr.poles == poles))
+            members = np.flatnonzero(present & (pr.poles == poles) & ~pr.wired)  # kinds only
             if members.size < 2:
                 continue
             n_kinds = int(pr.starts[members[0] + 1] - pr.starts[members[0]])

@@ -149,7 +149,7 @@ def triplen_neutral_a(problem: Problem) -> float:
     whichever phase it sits (the rotation ``a^(-h·k)`` is 1 for ``h ≡ 0
     mod 3``), so no move changes it.
     """
-    if not problem.has_neutral:
-        return 0.0
+    if not problem.has_neutral or not problem.symmetric:
+        return 0.0  # a high-leg delta: a 120 V load on A or C has opposite triplens
     _, n = spectra(problem, problem.current_assignment())  # this problem's own case
     return float(rms(n[is_triplen(problem.orders)]))

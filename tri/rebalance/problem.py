@@ -47,6 +47,23 @@ phase RMS current ≤ the largest one. ``F`` is a lower bound on the largest
 phase RMS current of *every* plan, and on their mean. With linear loads
 ``F = |I_1|``, the positive-sequence current.
 
+High leg
+--------
+On a high-leg delta (``240/120D``) the phase voltages to neutral are not
+120° apart: the two low phases are 180° apart, the high leg 90° from
+them. A 120 V load moved from A to C has its current reversed, not rotated
+by 120°, so its share of ``J_h`` changes, and so does every ``J_h`` with
+the plan: ``F`` is no bound there, nor are the bounds built on it (the
+crossing and triangle bounds of :mod:`tri.rebalance.crossing` and
+:mod:`tri.rebalance.halves`, the plan-free triplen neutral). On such a
+panel :attr:`Problem.symmetric` is False, ``floor_a`` is 0 and those bounds
+are not used; proofs come from listing every plan
+(:mod:`tri.rebalance.exhaust`) and from the programs, whose rows (the
+magnitude bounds of :mod:`tri.rebalance.lower_bounds`, Cauchy-Schwarz on
+each phase's own currents, and the budget floor of Theorem 3 of
+:mod:`tri.rebalance.crossing`, which is the same inequality) hold for any
+phasors.
+
 With ``use`` scenarios the problem carries every case's currents
 (:mod:`tri.rebalance.cases`): its own arrays are the connected load's,
 :attr:`Problem.others` the problem in each further case.
@@ -61,30 +78,20 @@ from typing import TYPE_CHECKING
 
 import numpy as np
 
-from tri.engine import analyse_batch
-from tri.engine.inputs import LINE_TO_LINE, LINE_TO_NEUTRAL, THREE_PHASE, UNPLACED, CircuitArrays
-from tri.rebalance.geometry import SlotGeometry, disjoint_window_counts, slot_geometry
-from tri.schedule.model import Circuit, Schedule
-from tri.schedule.to_engine import circuit_arrays, element_rows, ratings, system_voltages
+from tri.rebalance.geometry import SlotGeometry, Window, disjoint_window_counts, slot_geometry
+from tri.rebalance.option_currents import engine_currents
+from tri.rebalance.units import PAIRS as PAIRS  # re-exported
+from tri.rebalance.units import Unit, free_units, pair_index, unit_options
+from tri.schedule.model import Schedule
+from tri.schedule.to_engine import circuit_arrays
 
 if TYPE_CHECKING:
     from tri.rebalance.cases import Stacked
 
-#: The three phase pairs of 2-pole options, in row order of a two-column panel [-].
-PAIRS: tuple[tuple[int, int], ...] = ((0, 1), (1, 2), (2, 0))
 #: Capacity types of the heuristic: 2-pole windows on the pairs A-B, B-C, C-A; 3-pole windows [-].
 WINDOW_TYPES = 4
 #: "No limit" in the capacity arrays of a rail board [-].
 _UNLIMITED = np.iinfo(np.int32).max // 4
-
-
-def pair_index(phases: Sequence[int]) -> int:
-    """Index in :data:`PAIRS` of an (unordered) pair of phases."""
-    s = set(phases)
-    for k, pair in enumerate(PAIRS):
-        if set(pair) == s:
-            return k
-    raise ValueError(f"not a pair of distinct phases: {phases!r}")
 
 
 @dataclass(frozen=True, eq=False)
@@ -136,6 +143,13 @@ class Problem:
         The cases, this problem's own first (module notes, Cases).
     others : tuple of Problem
         The problem in each further case (same options; empty without scenarios).
+    units : tuple of Unit
+        What each free circuit stands for (:mod:`tri.rebalance.units`): its
+        breakers (a shared-neutral group moves as one), empty when built by
+        hand (then every free circuit is one plain breaker).
+    symmetric : bool
+        The phases are 120° apart (not a high-leg delta): the floor and the
+        bounds built on ``J_h`` hold (module notes).
     """
 
     schedule: Schedule
@@ -161,6 +175,42 @@ class Problem:
     floor_a: float = 0.0
     case_names: tuple[str, ...] = ("connected",)
     others: tuple[Problem, ...] = ()
+    units: tuple[Unit, ...] = ()
+    symmetric: bool = True
+
+    @cached_property
+    def wired(self) -> np.ndarray:
+        """Bool per free circuit: a wired unit, whose options are orders of phases [-]."""
+        if not self.units:
+            return np.zeros(self.n_free, dtype=bool)
+        return np.array([u.wired for u in self.units], dtype=bool)
+
+    def members(self, i: int) -> tuple[int, ...]:
+        """Schedule indices of the breakers free circuit ``i`` stands for, in pole order."""
+        return self.units[i].members if self.units else (int(self.free[i]),)
+
+    def cell_option(self, i: int, phase: int) -> int | None:
+        """Option a 1-pole free circuit ``i`` takes in a slot on ``phase`` (None: not offered)."""
+        for o in self.options_of(i):
+            if self.phases[o] == (phase,):
+                return o
+        return None
+
+    def window_option(self, i: int, w: Window) -> int | None:
+        """Option free circuit ``i`` takes in window ``w``; None when it cannot go there.
+
+        A plain breaker takes the option of the window's kind; a wired unit
+        the option whose order of phases is the window's (none on a panel
+        whose other column reads the phases the other way round).
+        """
+        if w.poles != int(self.poles[i]):
+            return None
+        if not self.wired[i]:
+            return int(self.starts[i]) + w.kind
+        for o in self.options_of(i):
+            if self.phases[o] == w.order:
+                return o
+        return None
 
     @property
     def n_cases(self) -> int:
@@ -226,93 +276,6 @@ class Problem:
         return int(np.sum(self.movable & (np.asarray(assign) != self.current)))
 
 
-def _options(c: Circuit, slots: bool) -> list[tuple[int, tuple[int, ...]]]:
-    """``(kind, phases)`` of every option of a circuit."""
-    if c.poles == 1:
-        return [(p, (p,)) for p in range(3)]
-    if c.poles == 2:
-        out = []
-        for k, pair in enumerate(PAIRS):
-            keep = not slots and c.phases is not None and set(c.phases) == set(pair)
-            out.append((k, tuple(c.phases) if keep and c.phases else pair))
-        return out
-    return [(0, (0, 1, 2))]
-
-
-def _current_kind(c: Circuit) -> int:
-    if c.phases is None:
-        return -1
-    if c.poles == 1:
-        return c.phases[0]
-    if c.poles == 2:
-        return pair_index(c.phases)
-    return 0
-
-
-def _connection(poles: int) -> int:
-    return {1: LINE_TO_NEUTRAL, 2: LINE_TO_LINE}.get(poles, THREE_PHASE)
-
-
-def _single_circuit_batch(ca: CircuitArrays, rows: np.ndarray, conn, p, q) -> CircuitArrays:
-    """One-circuit panels: row ``rows[k]`` of ``ca`` connected as (conn, p, q)[k]."""
-    return CircuitArrays(
-        s_va=ca.s_va[rows][:, None],
-        connection=np.asarray(conn, dtype=np.int64)[:, None],
-        phase_p=np.asarray(p, dtype=np.int64)[:, None],
-        phase_q=np.asarray(q, dtype=np.int64)[:, None],
-        harmonics=ca.harmonics[rows][:, None, :],
-        orders=ca.orders,
-        continuous=np.zeros((rows.size, 1), dtype=bool),
-    )
-
-
-def _engine_currents(
-    schedule: Schedule,
-    free_arr: np.ndarray,
-    phases,
-    owner_a: np.ndarray,
-    factors: np.ndarray | None = None,
-):
-    """Fixed circuits' currents and each option's, from the engine (module notes).
-
-    ``factors`` (one per circuit) scales each circuit's load: one case
-    (:mod:`tri.rebalance.cases`).
-    """
-    circuits = schedule.circuits
-    ca = circuit_arrays(schedule)
-    if factors is not None:
-        rows_of = [i for i, _ in element_rows(schedule)]
-        ca = replace(ca, s_va=np.asarray(ca.s_va) * np.asarray(factors, dtype=float)[rows_of])
-    system, rat = system_voltages(schedule), ratings(schedule)
-    h = 1 + len(ca.orders)
-    conn = np.array(ca.connection, copy=True)
-    conn[free_arr] = UNPLACED
-    base_ca = replace(ca, connection=conn, continuous=np.zeros_like(ca.continuous))
-    if len(circuits):
-        b = analyse_batch(base_ca, system, rat)
-        base = np.asarray(b.phase_spectrum, dtype=complex)
-        nbase = np.asarray(b.neutral_spectrum, dtype=complex)
-    else:
-        base, nbase = np.zeros((3, h), dtype=complex), np.zeros(h, dtype=complex)
-    if not owner_a.size:
-        return base, nbase, np.zeros((0, 3, h), dtype=complex), np.zeros((0, h), dtype=complex)
-    rows = free_arr[owner_a]
-    batch = _single_circuit_batch(
-        ca,
-        rows,
-        [_connection(circuits[i].poles) for i in rows],
-        [ph[0] if len(ph) < 3 else 0 for ph in phases],
-        [ph[1] if len(ph) == 2 else (ph[0] if len(ph) == 1 else 0) for ph in phases],
-    )
-    ob = analyse_batch(batch, system, rat)
-    return (
-        base,
-        nbase,
-        np.asarray(ob.phase_spectrum, dtype=complex),
-        np.asarray(ob.neutral_spectrum, dtype=complex),
-    )
-
-
 def _capacity(phases, geo: SlotGeometry | None):
     """Slots per phase and capacity type of each option, and what the panel offers."""
     n_opt = len(phases)
@@ -322,7 +285,7 @@ def _capacity(phases, geo: SlotGeometry | None):
         for p in ph:
             use_cells[o, p] += 1
         if len(ph) > 1 and geo is not None:
-            use_window[o, 3 if len(ph) == 3 else ph[0]] = 1
+            use_window[o, 3 if len(ph) == 3 else pair_index(ph)] = 1
     if geo is None:
         return (
             use_cells,
@@ -347,7 +310,9 @@ def build_problem(
         The panel.
     free : sequence of int
         Schedule indices of the circuits whose position may be chosen
-        (placed: relocating is a move; unplaced: a placement).
+        (placed: relocating is a move; unplaced: a placement). They are
+        gathered into units (:func:`tri.rebalance.units.free_units`): a
+        shared-neutral group is one free circuit of the problem.
     scenarios : bool
         Add the problem in every scenario of the schedule's ``use`` factors
         (module notes, Cases); False: the connected load alone.
@@ -360,34 +325,30 @@ def build_problem(
     Problem
     """
     circuits = schedule.circuits
-    slots = schedule.panel.uses_slots
-    free_arr = np.array(sorted(set(int(i) for i in free)), dtype=int)
-    owner: list[int] = []  # free breaker (problem index) of each option
+    units, _ = free_units(schedule, free)
+    owner: list[int] = []  # free unit (problem index) of each option
     kind: list[int] = []
     phases: list[tuple[int, ...]] = []
     starts: list[int] = [0]
     current: list[int] = []
-    for fi, idx in enumerate(free_arr):
-        c = circuits[idx]
-        cur_kind, cur = _current_kind(c), -1
-        for k, ph in _options(c, slots):
-            if k == cur_kind:
-                cur = len(owner)
+    for fi, unit in enumerate(units):
+        opts, now = unit_options(schedule, unit)
+        current.append(-1 if now < 0 else len(owner) + now)
+        for k, ph in enumerate(opts):
             owner.append(fi)
             kind.append(k)
             phases.append(ph)
         starts.append(len(owner))
-        current.append(cur)
     owner_a = np.array(owner, dtype=int)
-    engine_args = (schedule, free_arr, phases, owner_a)
-    base, nbase, contrib, ncontrib = _engine_currents(*engine_args)
-    geo = slot_geometry(schedule, free_arr.tolist())
+    engine_args = (schedule, units, phases, owner_a)
+    base, nbase, contrib, ncontrib = engine_currents(*engine_args)
+    geo = slot_geometry(schedule, [u.members for u in units])
     use_cells, use_window, cap_phase, cap_window = _capacity(phases, geo)
     problem = Problem(
         schedule=schedule,
-        free=free_arr,
-        movable=np.array([circuits[i].is_placed for i in free_arr], dtype=bool),
-        poles=np.array([circuits[i].poles for i in free_arr], dtype=int),
+        free=np.array([u.lead for u in units], dtype=int),
+        movable=np.array([circuits[u.lead].is_placed for u in units], dtype=bool),
+        poles=np.array([u.poles for u in units], dtype=int),
         starts=np.array(starts, dtype=int),
         owner=owner_a,
         kind=np.array(kind, dtype=int),
@@ -404,17 +365,23 @@ def build_problem(
         use_window=use_window,
         cap_phase=cap_phase,
         cap_window=cap_window,
+        units=tuple(units),
+        symmetric=schedule.panel.effective_high_leg is None,
     )
     problem = with_floor(problem)
     if not scenarios:
         return problem
     from tri.rebalance.cases import with_cases
 
-    return with_cases(problem, schedule, lambda f: _engine_currents(*engine_args, f), case_names)
+    return with_cases(problem, schedule, lambda f: engine_currents(*engine_args, f), case_names)
 
 
 def with_floor(problem: Problem) -> Problem:
+    """The problem with its floor ``F`` (module notes); 0 on a high-leg delta (High leg)."""
     from tri.rebalance.plan_currents import floor_of, spectra
+
+    if not problem.symmetric:
+        return replace(problem, floor_a=0.0)
 
     v, _ = spectra(problem, problem.current_assignment())
     return replace(problem, floor_a=floor_of(v, problem.orders))

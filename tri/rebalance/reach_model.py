@@ -1,11 +1,14 @@
-"""The slot block when breakers have a reach limit: each breaker takes its own positions.
+"""The slot block when breakers are not interchangeable: each breaker takes its own positions.
 
 With ``[panel] max_row_shift`` a placed breaker may only go to a first slot
 within that many rows of its first slot now
 (:meth:`tri.rebalance.geometry.SlotGeometry.allowed`), so breakers of one
 pool are no longer interchangeable and the pool rows of
 :mod:`tri.rebalance.slot_model` would count arrangements that cannot be
-built. This block assigns every free breaker to a position of its own.
+built. Wired units (:mod:`tri.rebalance.units`) are not interchangeable
+either: the option a window gives them is its order of phases
+(:meth:`~tri.rebalance.problem.Problem.window_option`). This block assigns
+every free breaker (unit) to a position of its own.
 
 Variables
 ---------
@@ -18,10 +21,11 @@ Variables
 
 Rows
 ----
-* *option*: for each free breaker b and each of its options o (kind t):
-  ``Σ_{positions of kind t} z_b + [o is b's option now]·s_b = x_o``
-  (the kind of a window is its option kind, of a slot its phase), so a
-  breaker is in exactly one position of the option it takes;
+* *option*: for each free breaker b and each of its options o:
+  ``Σ_{positions giving o} z_b + [o is b's option now]·s_b = x_o``
+  (a window gives the option of :meth:`~tri.rebalance.problem.Problem.window_option`,
+  a slot its phase), so a breaker is in exactly one position of the
+  option it takes;
 * *slot*: each open slot holds at most one breaker:
   ``Σ_{b, w ∋ c} z_{b,w} + Σ_b z_{b,c} + s_{b(c)} ≤ 1``.
 
@@ -50,7 +54,7 @@ def add_reach_slots(m: Model, pr: Problem, el: Electrical):
     from tri.rebalance.slot_model import SlotColumns
 
     geo = pr.geometry
-    assert geo is not None and geo.reach is not None
+    assert geo is not None
     placed = np.flatnonzero(pr.movable)
     s0 = m.binary(placed.size)
     stay_col = {int(b): s0 + k for k, b in enumerate(placed)}
@@ -59,24 +63,26 @@ def add_reach_slots(m: Model, pr: Problem, el: Electrical):
     by_cell: dict[int, list[int]] = defaultdict(list)
     users: dict[int, list[int]] = defaultdict(list)  # window -> z columns
     for b in range(pr.n_free):
-        per_kind: dict[int, list[int]] = defaultdict(list)
+        per_option: dict[int, list[int]] = defaultdict(list)
         if pr.poles[b] > 1:
             for k, w in enumerate(windows):
-                if w.poles == pr.poles[b] and geo.allowed(b, w.first):
+                o = pr.window_option(b, w)
+                if o is not None and geo.allowed(b, w.first):
                     z = m.binary(1)
-                    per_kind[w.kind].append(z)
+                    per_option[o].append(z)
                     users[k].append(z)
                     for c in w.cells:
                         by_cell[c].append(z)
         else:
             for c in geo.open_cells.tolist():
-                if geo.allowed(b, int(c)):
+                o = pr.cell_option(b, geo.phase_of(int(c)))
+                if o is not None and geo.allowed(b, int(c)):
                     z = m.binary(1)
-                    per_kind[geo.phase_of(int(c))].append(z)
+                    per_option[o].append(z)
                     by_cell[int(c)].append(z)
         for o in pr.options_of(b):
-            kind = int(pr.kind[o])
-            cols, vals = list(per_kind.get(kind, [])), [1.0] * len(per_kind.get(kind, []))
+            cols = list(per_option.get(o, []))
+            vals = [1.0] * len(cols)
             if pr.movable[b] and int(pr.current[b]) == o:
                 cols.append(stay_col[b])
                 vals.append(1.0)

@@ -78,7 +78,7 @@ def _near(b_home: int | None, slot: int, scale: float) -> float:
 def _assign(costs: np.ndarray) -> np.ndarray:
     from scipy.optimize import linear_sum_assignment
 
-    rows, cols = linear_sum_assignment(costs)
+    rows, cols = linear_sum_assignment(np.minimum(costs, 2 * BEYOND_REACH))
     out = np.empty(costs.shape[0], dtype=int)
     out[rows] = cols
     return out
@@ -98,8 +98,10 @@ def arrange(
     stays : bool ndarray, shape (F,)
         Placed breakers that stay in their slots (must keep their option).
     windows : list of Window
-        Windows for the relocated or placed multi-pole breakers, as many
-        per pool as the pool's breakers.
+        Windows for the relocated or placed multi-pole breakers (at least
+        one for each); they are matched in one assignment problem, a
+        breaker only to a window that gives it its option
+        (:meth:`~tri.rebalance.problem.Problem.window_option`) within its reach.
 
     Returns
     -------
@@ -111,7 +113,7 @@ def arrange(
     scale = 1.0 / (4.0 * (geo.spaces + 4) * max(1, pr.n_free))
     first: dict[int, int] = {}
     taken: set[int] = set()
-    movers: dict[tuple[int, int], list[int]] = defaultdict(list)
+    movers: list[int] = []
     singles: dict[int, list[int]] = defaultdict(list)
     for b in range(pr.n_free):
         o = int(assign[b])
@@ -123,22 +125,20 @@ def arrange(
             first[b] = home[0]
             taken.update(home)
         elif pr.poles[b] > 1:
-            movers[(int(pr.poles[b]), int(pr.kind[o]))].append(b)
+            movers.append(b)
         else:
             singles[pr.phases[o][0]].append(b)
-    pools: dict[tuple[int, int], list[Window]] = defaultdict(list)
-    for w in windows:
-        pools[(w.poles, w.kind)].append(w)
-    for key, bs in movers.items():
-        ws = pools.get(key, [])
-        if len(ws) < len(bs):
+    if movers:
+        if len(windows) < len(movers):
             return None
-        cost = np.array([[_window_cost(geo, b, w, scale) for w in ws] for b in bs])
-        for b, k in zip(bs, _assign(cost), strict=True):
-            if not geo.allowed(b, ws[k].first):
-                return None
-            first[b] = ws[k].first
-            taken.update(ws[k].cells)
+        cost = np.array(
+            [[_window_cost(pr, b, int(assign[b]), w, scale) for w in windows] for b in movers]
+        )
+        for r, (b, k) in enumerate(zip(movers, _assign(cost), strict=True)):
+            if cost[r, k] >= BEYOND_REACH:
+                return None  # no window of the right option within reach for it
+            first[b] = windows[k].first
+            taken.update(windows[k].cells)
     if len(taken) != sum(len(occupied_slots(first[b], int(pr.poles[b]))) for b in first):
         return None
     left = [int(c) for c in geo.open_cells if int(c) not in taken]
@@ -154,9 +154,12 @@ def arrange(
     return _arrangement(pr, first)
 
 
-def _window_cost(geo: SlotGeometry, b: int, w: Window, scale: float) -> float:
+def _window_cost(pr: Problem, b: int, o: int, w: Window, scale: float) -> float:
+    """0 for its own slot, 1 for another, :data:`BEYOND_REACH` where it cannot take option o."""
+    geo = pr.geometry
+    assert geo is not None
     home = geo.home_first(b)
-    if not geo.allowed(b, w.first):
+    if pr.window_option(b, w) != o or not geo.allowed(b, w.first):
         return BEYOND_REACH
     return (0.0 if home == w.first else 1.0) + _near(home, w.first, scale)
 
@@ -186,13 +189,11 @@ def _quick_fill(pr: Problem, assign: np.ndarray) -> Arrangement | None:
     chosen: list[Window] = []
     movers = [b for b in range(pr.n_free) if not stays[b] and pr.poles[b] > 1]
     for b in sorted(movers, key=lambda b: -pr.poles[b]):
-        kind = int(pr.kind[assign[b]])
         home = geo.home_first(b)
         fits = [
             w
             for w in geo.windows
-            if w.poles == pr.poles[b]
-            and w.kind == kind
+            if pr.window_option(b, w) == int(assign[b])
             and open_set.issuperset(w.cells)
             and geo.allowed(b, w.first)
         ]

@@ -29,7 +29,14 @@ class Move:
         First slot before and after (None on a rail board; ``from_slot`` is
         None for a new circuit).
     from_phases, to_phases : tuple of int or None
-        Phases before and after (None: not placed before).
+        Phases before and after (None: not placed before); in pole order
+        for a wired breaker (``ordered``).
+    group : str or None
+        The shared-neutral group this 1-pole breaker moves with
+        (:mod:`tri.rebalance.units`): the group's moves are one relocation.
+    ordered : bool
+        The order of the phases matters (a breaker with per-leg loads, or a
+        group's breaker): a new order is a change of phases.
     """
 
     circuit_index: int
@@ -39,6 +46,8 @@ class Move:
     to_slot: int | None
     from_phases: tuple[int, ...] | None
     to_phases: tuple[int, ...] | None
+    group: str | None = None
+    ordered: bool = False
 
     @property
     def is_placement(self) -> bool:
@@ -50,6 +59,8 @@ class Move:
         """True when the breaker ends on other phases (not only another slot)."""
         if self.from_phases is None or self.to_phases is None:
             return True
+        if self.ordered:
+            return tuple(self.from_phases) != tuple(self.to_phases)
         return set(self.from_phases) != set(self.to_phases)
 
 
@@ -223,8 +234,10 @@ class Suggestion:
 
     @property
     def relocations(self) -> int:
-        """Breakers relocated (new circuits placed are not counted) [-]."""
-        return sum(1 for m in self.moves if not m.is_placement)
+        """Relocations (new circuits placed are not counted) [-]: breakers relocated, a
+        shared-neutral group moved together counting once (:mod:`tri.rebalance.units`)."""
+        groups = {m.group for m in self.moves if m.group is not None and not m.is_placement}
+        return len(groups) + sum(1 for m in self.moves if not m.is_placement and m.group is None)
 
 
 def apply_moves(schedule: Schedule, moves: tuple[Move, ...] | list[Move]) -> Schedule:

@@ -42,10 +42,12 @@ are at most ``Σ (1 - s_b)``. So the minimum of ``Σ (1 - s_b)`` over the
 rows is the fewest relocations that realise the options, and a model with
 this block is a relaxation only where its *electrical* rows are.
 
-With a reach limit (``[panel] max_row_shift``) breakers of a pool are no
-longer interchangeable: :mod:`tri.rebalance.reach_model` then gives every
-breaker positions of its own (same columns ``s`` and ``u``, exact in the
-same sense on the panel with that limit).
+With a reach limit (``[panel] max_row_shift``), or with wired units
+(:mod:`tri.rebalance.units`: their option in a window is its order of
+phases, not its kind), breakers of a pool are no longer interchangeable:
+:mod:`tri.rebalance.reach_model` then gives every breaker positions of its
+own (same columns ``s`` and ``u``, exact in the same sense on the panel
+with that limit).
 
 On a rail board there are no slots: a move is a change of phases, and
 ``s_b`` is the column ``x_current(b)``.
@@ -128,7 +130,7 @@ def add_slots(m: Model, pr: Problem, el: Electrical) -> SlotColumns:
     geo = pr.geometry
     if geo is None:
         return SlotColumns(placed, current_cols.astype(int), None, ())
-    if geo.reach is not None:
+    if geo.reach is not None or np.any(pr.wired):
         from tri.rebalance.reach_model import add_reach_slots
 
         return add_reach_slots(m, pr, el)

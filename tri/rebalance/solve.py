@@ -43,15 +43,15 @@ from tri.rebalance.exhaust import enumeration_fits
 from tri.rebalance.goal import Goal
 from tri.rebalance.halves import halves_fit
 from tri.rebalance.heuristic import LocalSearch, heuristic_plan
+from tri.rebalance.moves import moves_for, unit_notes
 from tri.rebalance.options import SuggestOptions, objective_text
 from tri.rebalance.plans import TOL, Evaluator, Plan
 from tri.rebalance.problem import Problem, build_problem
-from tri.rebalance.results import CaseResult, Figures, Move, Status, Suggestion, apply_moves
+from tri.rebalance.results import CaseResult, Figures, Status, Suggestion, apply_moves
 from tri.rebalance.target import Outcome, solve_target
-from tri.rebalance.workorder import order_work, rail_steps
 from tri.schedule.model import Schedule
 from tri.schedule.to_scenarios import analyse_cases
-from tri.schedule.wiring import rebalancer_refusal
+from tri.schedule.wiring import single_panel_refusal
 
 
 def free_indices(schedule: Schedule, opts: SuggestOptions) -> list[int]:
@@ -245,14 +245,12 @@ def suggest(
     ------
     ValueError
         For options the panel cannot take (a neutral limit on a 3-wire system), or
-        wiring it cannot honour yet (shared neutrals, breakers with a load per leg,
-        a high leg, a reach limit, RCD groups:
-        :func:`tri.schedule.wiring.rebalancer_refusal`).
+        wiring it cannot honour yet (:func:`tri.schedule.wiring.single_panel_refusal`).
     Cancelled
         When the cancel hook fired.
     """
     opts = options or SuggestOptions()
-    refusal = rebalancer_refusal(schedule)  # wiring it cannot honour yet (issue 12)
+    refusal = single_panel_refusal(schedule)  # wiring it cannot honour yet (issue 12)
     if refusal:
         raise ValueError("; ".join(refusal))
     if opts.neutral_max_a is not None and not schedule.system.has_neutral:
@@ -266,8 +264,10 @@ def suggest(
         neutral_max_a=opts.neutral_max_a,
         max_moves=0 if opts.mode == "place-new" else opts.max_moves,
     )
-    pr = build_problem(schedule, free_indices(schedule, opts))
+    free = free_indices(schedule, opts)
+    pr = build_problem(schedule, free)
     run = _Run(pr, opts, control, before[0][1], goal, before_cases=before)
+    run.notes.extend(unit_notes(schedule, free, pr))
     reach = schedule.panel.max_row_shift if schedule.panel.uses_slots else None
     if reach is not None:
         run.notes.append(
@@ -280,32 +280,6 @@ def suggest(
     else:
         plan, status, bound = _best_balance(run)
     return _finish(run, plan, status, bound)
-
-
-def _moves_for(pr: Problem, plan: Plan) -> tuple[list[Move], list]:
-    sched = pr.schedule
-    circuits = sched.circuits
-    moves: dict[int, Move] = {}
-    if pr.slots:
-        changing = {}
-        for idx, slot in plan.arrangement.first_slot.items():
-            c = circuits[idx]
-            if c.slot != slot:
-                changing[idx] = slot
-                new = sched.placed(c.at_slot(slot))
-                moves[idx] = Move(idx, c.name, c.poles, c.slot, slot, c.phases, new.phases)
-        steps = order_work(sched, changing)
-    else:
-        changed = []
-        for i, idx in enumerate(pr.free.tolist()):
-            c = circuits[idx]
-            ph = pr.phases[int(plan.assign[i])]
-            if c.phases is None or set(c.phases) != set(ph):
-                changed.append(idx)
-                moves[idx] = Move(idx, c.name, c.poles, None, None, c.phases, tuple(ph))
-        steps = rail_steps(sched, changed)
-    ordered = [moves[s.circuit_index] for s in steps if s.action != "take-out"]
-    return ordered, steps
 
 
 def _case_figures(schedule: Schedule) -> list[tuple[str, Figures]]:
@@ -339,7 +313,7 @@ def _finish(run: _Run, plan: Plan | None, status: Status, bound: float | None) -
     control, pr, opts = run.control, run.pr, run.opts
     if control.cancelled():
         raise Cancelled
-    moves, steps = _moves_for(pr, plan) if plan is not None and pr.n_free else ([], [])
+    moves, steps = moves_for(pr, plan) if plan is not None and pr.n_free else ([], [])
     after_schedule = apply_moves(pr.schedule, moves)
     after_cases = _case_figures(after_schedule) if moves else run.before_cases
     after = after_cases[0][1]
@@ -358,7 +332,7 @@ def _finish(run: _Run, plan: Plan | None, status: Status, bound: float | None) -
     return Suggestion(
         status=status,
         mode=opts.mode,
-        objective=objective_text(opts, pr.case_names),
+        objective=_objective(run),
         moves=tuple(moves),
         steps=tuple(steps),
         before=run.before,
@@ -384,6 +358,16 @@ def _finish(run: _Run, plan: Plan | None, status: Status, bound: float | None) -
         deciding=_deciding(opts, after_cases) if scen else None,
         floor_case=pr.case_names[int(np.argmax(floors))] if scen else None,
     )
+
+
+def _objective(run: _Run) -> str:
+    """The objective in words; a group moved as one block counts once (module units)."""
+    text = objective_text(run.opts, run.pr.case_names)
+    if run.opts.mode in ("fewest-moves", "balance") and any(
+        u.group is not None for u in run.pr.units
+    ):
+        text += "; a shared-neutral group moved as one block counts as one relocation"
+    return text
 
 
 def _deciding(opts: SuggestOptions, cases: list[tuple[str, Figures]]) -> str:

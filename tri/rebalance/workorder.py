@@ -27,14 +27,23 @@ class WorkStep:
         aside (to break a cycle); ``install`` a set-aside breaker; ``place``
         a new circuit's breaker; ``reconnect``/``connect`` on a rail board.
     circuit_index : int
-        Index of the circuit in the schedule.
+        Index of the circuit in the schedule (the first breaker of a group).
+    members : tuple of int
+        A shared-neutral group moved as one (:mod:`tri.rebalance.units`):
+        the schedule index of each of its breakers, top to bottom; empty for
+        one breaker.
     """
 
     action: str
     circuit_index: int
+    members: tuple[int, ...] = ()
 
 
-def order_work(schedule: Schedule, new_slots: dict[int, int]) -> list[WorkStep]:
+def order_work(
+    schedule: Schedule,
+    new_slots: dict[int, int],
+    groups: dict[int, tuple[int, ...]] | None = None,
+) -> list[WorkStep]:
     """Steps that carry out the relocations (module notes).
 
     Parameters
@@ -43,7 +52,10 @@ def order_work(schedule: Schedule, new_slots: dict[int, int]) -> list[WorkStep]:
         The panel before the work.
     new_slots : dict
         Schedule index -> new first slot of every breaker that moves or is
-        placed.
+        placed (of a group: its first breaker's, standing for the group).
+    groups : dict, optional
+        First breaker -> every breaker of a shared-neutral group that moves
+        as one block (its breakers in slots ``first, first + 2, ...``).
 
     Returns
     -------
@@ -52,16 +64,23 @@ def order_work(schedule: Schedule, new_slots: dict[int, int]) -> list[WorkStep]:
         ``install`` for a breaker set aside to break a cycle.
     """
     circuits = schedule.circuits
+    groups = groups or {}
     changing = {idx: slot for idx, slot in new_slots.items() if circuits[idx].slot != slot}
+
+    def members(idx: int) -> tuple[int, ...]:
+        return groups.get(idx, (idx,))
+
     holder: dict[int, int] = {}
     for idx in changing:
-        c = circuits[idx]
-        if c.slot is not None:
-            for s in occupied_slots(c.slot, c.poles):
-                holder[s] = idx
+        for i in members(idx):
+            c = circuits[i]
+            if c.slot is not None:
+                for s in occupied_slots(c.slot, c.poles):
+                    holder[s] = idx
     waits: dict[int, set[int]] = {}
     for idx, slot in changing.items():
-        deps = {holder[s] for s in occupied_slots(slot, circuits[idx].poles) if s in holder}
+        poles = sum(circuits[i].poles for i in members(idx))
+        deps = {holder[s] for s in occupied_slots(slot, poles) if s in holder}
         deps.discard(idx)
         waits[idx] = deps
     steps: list[WorkStep] = []
@@ -73,24 +92,29 @@ def order_work(schedule: Schedule, new_slots: dict[int, int]) -> list[WorkStep]:
         if ready:
             i = ready[0]
             pending.remove(i)
+            group = groups.get(i, ())
             if i in aside:
-                steps.append(WorkStep("install", i))
+                steps.append(WorkStep("install", i, group))
             else:
-                steps.append(WorkStep("move" if circuits[i].slot is not None else "place", i))
+                action = "move" if circuits[i].slot is not None else "place"
+                steps.append(WorkStep(action, i, group))
             gone.add(i)
             continue
         # a cycle: set aside the first breaker that others wait for
         blocking = [i for i in pending if i not in gone and any(i in waits[j] for j in pending)]
         i = blocking[0] if blocking else pending[0]
-        steps.append(WorkStep("take-out", i))
+        steps.append(WorkStep("take-out", i, groups.get(i, ())))
         aside.add(i)
         gone.add(i)
     return steps
 
 
-def rail_steps(schedule: Schedule, changed: list[int]) -> list[WorkStep]:
-    """Steps on a rail board: reconnect moved circuits, connect new ones."""
+def rail_steps(
+    schedule: Schedule, changed: list[int], groups: dict[int, tuple[int, ...]] | None = None
+) -> list[WorkStep]:
+    """Steps on a rail board: reconnect moved circuits (a group in one step), connect new ones."""
+    groups = groups or {}
     return [
-        WorkStep("reconnect" if schedule.circuits[i].is_placed else "connect", i)
+        WorkStep("reconnect" if schedule.circuits[i].is_placed else "connect", i, groups.get(i, ()))
         for i in sorted(changed)
     ]

@@ -17,7 +17,9 @@ exactly what was proven); ``mode``; ``bound_unit`` (``"moves"``, i.e. relocation
 ``floor_a`` (no arrangement brings the largest phase RMS current below it);
 ``relocations``; per move ``poles``, ``changes_phase`` and
 ``set_aside_first`` (take it out before the others, install it last: a
-swap); ``work_order`` (the numbered steps: ``step``, ``action``,
+swap), and ``shared_neutral_group`` for a breaker of a shared-neutral group
+that moves as one block (the group's breakers move together and count as
+one relocation); ``work_order`` (the numbered steps: ``step``, ``action``,
 ``circuit``, ``text``); in ``before`` and ``after``, ``limits`` (the
 engine's findings at level "limit": ratings still exceeded);
 ``unplaced_left``; ``notes``; ``caution``. With ``use`` scenarios
@@ -108,6 +110,7 @@ def suggestion_data(s: Suggestion, before: Schedule, caution: str) -> dict[str, 
             "poles": m.poles,
             "changes_phase": m.changes_phase,
             "set_aside_first": m.circuit_index in aside,
+            **({"shared_neutral_group": m.group} if m.group is not None else {}),
         }
         for m in s.moves
     ]

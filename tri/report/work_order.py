@@ -109,23 +109,73 @@ def _sentences(action: str, m: Move, before: Schedule) -> tuple[str, str]:
     return (f"Reconnect circuit {name} from {here} to {there}.", f"Reconnect {nm}: {a} → {b}")
 
 
+def _group_where(before: Schedule, group: list[Move], after: bool) -> str:
+    """``"slots 3, 5, 7 (phases B, C, A)"`` of a group's breakers, before or after."""
+    slots = [m.to_slot if after else m.from_slot for m in group]
+    phases = [m.to_phases if after else m.from_phases for m in group]
+    ph = ", ".join(before.phase_text(p) for p in phases)
+    if any(x is None for x in slots):
+        return f"phases {ph}"
+    return f"slots {', '.join(str(x) for x in slots)} (phases {ph})"
+
+
+def _group_sentences(action: str, name: str, group: list[Move], before: Schedule):
+    """The step of a shared-neutral group moved as one block (:mod:`tri.rebalance.units`)."""
+    here, there = _group_where(before, group, False), _group_where(before, group, True)
+    breakers = ", ".join(f'"{m.circuit}"' for m in group)
+    what = f"shared-neutral group {name}"
+    if action == "take-out":
+        return (
+            f"Take out {what} ({breakers}) from {here} and set it aside, as one block (a swap).",
+            f"Take out group {name} from {here.split(' (')[0]}, set aside",
+        )
+    if action == "install":
+        return (
+            f"Install the set-aside {what} ({breakers}) in {there}, in that order.",
+            f"Install set-aside group {name} in {there.split(' (')[0]}",
+        )
+    if action == "reconnect":
+        return (
+            f"Reconnect {what} ({breakers}) from {here} to {there}, together.",
+            f"Reconnect group {name}: {here} → {there}",
+        )
+    return (
+        f"Move {what} ({breakers}) from {here} to {there}, as one block in that order "
+        "(it counts as one relocation).",
+        f"Move group {name}: {here.split(' (')[0]} → {there.split(' (')[0]}",
+    )
+
+
 def work_order(s: Suggestion, before: Schedule) -> tuple[WorkLine, ...]:
-    """The numbered steps of the work order, in the order to do them."""
+    """The numbered steps of the work order, in the order to do them (a shared-neutral
+    group moved as one block is one step that names its breakers)."""
     by_index: dict[int, Move] = {m.circuit_index: m for m in s.moves}
     out = []
     for n, st in enumerate(s.steps, start=1):
         m = by_index[st.circuit_index]
-        text, brief = _sentences(st.action, m, before)
+        if st.members:
+            group = [by_index[i] for i in st.members]
+            name = m.group or m.circuit
+            text, brief = _group_sentences(st.action, name, group, before)
+            circuit, poles = f"shared-neutral group {name}", len(group)
+            here, there = _group_where(before, group, False), _group_where(before, group, True)
+            changes = any(g.changes_phase for g in group)
+        else:
+            text, brief = _sentences(st.action, m, before)
+            circuit, poles = m.circuit, m.poles
+            here = _where(before, m.from_slot, m.from_phases)
+            there = _where(before, m.to_slot, m.to_phases)
+            changes = m.changes_phase
         out.append(
             WorkLine(
                 number=n,
                 action=st.action,
                 circuit_index=m.circuit_index,
-                circuit=m.circuit,
-                poles=m.poles,
-                here=_where(before, m.from_slot, m.from_phases),
-                there=_where(before, m.to_slot, m.to_phases),
-                changes_phase=m.changes_phase,
+                circuit=circuit,
+                poles=poles,
+                here=here,
+                there=there,
+                changes_phase=changes,
                 sentence=text,
                 brief=brief,
             )
@@ -210,17 +260,35 @@ def _fewest_words(s: Suggestion) -> str:
 
 
 def count_words(s: Suggestion) -> str:
-    """``"2 breakers relocated, 1 new circuit placed"`` (real plurals)."""
-    text = f"{plural(s.relocations, 'breaker')} relocated"
+    """``"2 breakers relocated, 1 new circuit placed"`` (real plurals); a shared-neutral
+    group moved as one counts once and is named."""
+    groups = sorted({m.group for m in s.moves if m.group is not None and not m.is_placement})
+    if groups:
+        singles = s.relocations - len(groups)
+        text = f"{plural(s.relocations, 'relocation')} ({plural(singles, 'breaker')} and "
+        text += f"{plural(len(groups), 'shared-neutral group')} moved as one)"
+    else:
+        text = f"{plural(s.relocations, 'breaker')} relocated"
     placed = sum(1 for m in s.moves if m.is_placement)
     if placed:
         text += f", {plural(placed, 'new circuit')} placed"
     return text
 
 
+def _no_floor(s: Suggestion) -> bool:
+    """A high-leg delta: no floor is proven (:mod:`tri.rebalance.problem`, High leg)."""
+    return s.schedule.panel.effective_high_leg is not None
+
+
 def floor_words(s: Suggestion) -> str:
     """How close the largest phase comes to the floor no arrangement can go below."""
     top = s.worst_max_phase_rms_a
+    if _no_floor(s):
+        return (
+            "No floor is given on a high-leg delta: its phases are not 120° apart to neutral, "
+            f"so the positive-sequence share moves with the circuits; after the moves the "
+            f"largest phase is {fixed(top, 1)}\u00a0A."
+        )
     gap = 100.0 * (top - s.floor_a) / s.floor_a if s.floor_a > 0 else 0.0
     where, after = "", "after the moves it is"
     if s.cases:
@@ -267,6 +335,8 @@ def case_lines(s: Suggestion) -> list[str]:
 def floor_brief(s: Suggestion) -> str:
     """:func:`floor_words` in fewer words, for a small screen."""
     top = s.worst_max_phase_rms_a
+    if _no_floor(s):
+        return f"No floor on a high-leg delta; largest phase after: {fixed(top, 1)} A."
     gap = 100.0 * (top - s.floor_a) / s.floor_a if s.floor_a > 0 else 0.0
     return (
         f"Floor {fixed(s.floor_a, 1)} A (no arrangement goes below it); largest phase after: "

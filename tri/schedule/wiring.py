@@ -345,6 +345,12 @@ def rebalancer_refusal(schedule: Schedule) -> list[str]:
     return out
 
 
+def single_panel_refusal(schedule: Schedule) -> list[str]:
+    """What ``tri suggest`` cannot honour yet: nothing now (:mod:`tri.rebalance.units`);
+    the building rebalancer keeps :func:`rebalancer_refusal`."""
+    return []
+
+
 def building_refusal(panels: Iterable[tuple[str, Schedule]]) -> list[str]:
     """What in a building (``(file, schedule)`` per panel) the roll-up cannot honour yet.
 

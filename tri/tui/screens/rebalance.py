@@ -110,7 +110,10 @@ def apply_chosen(
     Returns ``(None, reason)`` when that subset does not fit on its own (for
     example a move into a slot that only another, unchosen move frees).
     """
-    new = apply_moves(schedule, [m for m in s.moves if m.circuit_index in chosen])
+    # a shared-neutral group moves as one block: choosing its step chooses all its breakers
+    groups = {m.group for m in s.moves if m.circuit_index in chosen and m.group is not None}
+    picked = [m for m in s.moves if m.circuit_index in chosen or m.group in groups]
+    new = apply_moves(schedule, picked)
     issues = check_schedule(new)
     if issues:
         return None, f"these moves do not fit on their own: {issues[0].message}"
