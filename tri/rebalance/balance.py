@@ -51,6 +51,8 @@ from tri.rebalance.electrical import add_currents, add_neutral_cuts, add_options
 from tri.rebalance.exhaust import best_plans_within, enumeration_fits
 from tri.rebalance.goal import Goal
 from tri.rebalance.halves import PAIR_LIMIT, halves_fit, plans_below
+from tri.rebalance.harmonic_floor import harmonic_floor, smallest_leftover
+from tri.rebalance.heuristic import LocalSearch
 from tri.rebalance.lower_bounds import (
     RESOLUTIONS,
     add_rms_lower_bounds,
@@ -274,6 +276,30 @@ class _BalanceSearch:
             seen = [] if self.out.plan is None else [spectra(view, self.out.plan.assign)[0]]
             self.lower = max(self.lower, budget_floor(view, self.budget, seen))
 
+    def harmonics(self, stop_gap: float) -> None:
+        """The harmonic floor (:mod:`tri.rebalance.harmonic_floor`), and a plan from its minimum.
+
+        The floor is a bound on every plan; when the budget allows every
+        breaker to move, the local search also starts from the harmonic
+        breakers where the floor's minimum puts them (a plan, not a proof).
+        """
+        if self.done(stop_gap):
+            return
+        bound = harmonic_floor(self.pr)
+        if bound is None:
+            return
+        self.lower = max(self.lower, bound)
+        left = smallest_leftover(self.pr)
+        if self.done(stop_gap) or left is None or self.budget < self.pr.n_movable:
+            return
+        start = np.full(self.pr.n_free, -1)
+        start[left.circuits] = left.options
+        ls = LocalSearch(self.pr, self.goal, self.control, start, stop_gap / 2)
+        if ls.insert_missing():
+            ls.descend()
+            ls.iterate(np.random.default_rng(0), share=0.1)
+            self.offer(self.ev.plan(ls.assign))
+
     def done(self, stop_gap: float) -> bool:
         if self.best <= self.lower * (1 + PROVEN_GAP):
             self.out.proven = True
@@ -326,6 +352,7 @@ def solve_balance(
         return out
     search.offer(incumbent)
     search.cross()
+    search.harmonics(stop_gap)
     settled = list_plans and (search.count_out() or search.split_out(stop_gap))
     if not search.done(stop_gap) and not settled:
         while not control.stop() and search.step(stop_gap):

@@ -33,6 +33,7 @@ thread, and :func:`suggest` then raises
 
 from __future__ import annotations
 
+import re
 from dataclasses import dataclass, field, replace
 
 import numpy as np
@@ -52,6 +53,7 @@ from tri.rebalance.target import Outcome, solve_target
 from tri.schedule.model import Schedule
 from tri.schedule.to_scenarios import analyse_cases
 from tri.schedule.wiring import single_panel_refusal
+from tri.words import plural
 
 
 def free_indices(schedule: Schedule, opts: SuggestOptions) -> list[int]:
@@ -366,8 +368,16 @@ def _objective(run: _Run) -> str:
     if run.opts.mode in ("fewest-moves", "balance") and any(
         u.group is not None for u in run.pr.units
     ):
+        # the count is of relocations, not of breakers: name it so
+        text = text.replace("number of breakers relocated", "number of relocations")
+        text = re.sub(r"at most (\d+) breakers? relocated", _relocations, text)
         text += "; a shared-neutral group moved as one block counts as one relocation"
     return text
+
+
+def _relocations(match: re.Match[str]) -> str:
+    """``at most 1 breaker relocated`` as ``at most 1 relocation`` (a group counts once)."""
+    return f"at most {plural(int(match.group(1)), 'relocation')}"
 
 
 def _deciding(opts: SuggestOptions, cases: list[tuple[str, Figures]]) -> str:

@@ -183,9 +183,21 @@ def work_order(s: Suggestion, before: Schedule) -> tuple[WorkLine, ...]:
     return tuple(out)
 
 
+def _groups_count_once(s: Suggestion) -> bool:
+    """True when the panel has shared-neutral groups: the searches count a group moved as
+    one block as one relocation (:mod:`tri.rebalance.units`), so claims say relocations."""
+    return any(c.shared_neutral is not None for c in s.schedule.circuits)
+
+
+#: How a claim names its count where a shared-neutral group moved counts once.
+GROUP_COUNT = "a shared-neutral group moved as one block counting as one"
+
+
 def _scope(s: Suggestion) -> str:
     """Which plans a balance claim is about."""
-    if s.mode == "balance":
+    if s.mode == "balance" and _groups_count_once(s):
+        scope = f"with at most {plural(s.max_moves or 0, 'relocation')} ({GROUP_COUNT})"
+    elif s.mode == "balance":
         scope = f"with at most {plural(s.max_moves or 0, 'breaker')} relocated"
     elif s.mode == "place-new":
         scope = "placing the new circuits in free slots"
@@ -239,7 +251,12 @@ def _fewest_words(s: Suggestion) -> str:
     if s.status == "already-balanced":
         return f"already balanced: the panel meets {goal} as it is; no move needed"
     if s.status == "optimal":
-        return f"optimal: proven that no plan with fewer breakers relocated meets {goal}"
+        fewer = (
+            f"fewer relocations ({GROUP_COUNT})"
+            if _groups_count_once(s)
+            else "fewer breakers relocated"
+        )
+        return f"optimal: proven that no plan with {fewer} meets {goal}"
     if s.status == "infeasible":
         return (
             f"target out of reach (proven): no plan{budget} meets {goal}; shown: the best "
