@@ -151,6 +151,28 @@ def _write_building(folder: Path, loads: int = 6) -> Path:
     return folder / "main.toml"
 
 
+def test_neutral_limit_on_the_brewery():
+    """``--neutral-max`` at the MDP: the engine's neutral after the moves within it.
+
+    The limit (1.2 times the MDP's neutral after the plan without one) is
+    met by that plan, so the optimum is the same; binding limits are
+    checked against every arrangement in ``tests/test_rebalance_tree.py``.
+    """
+    _, free = _json(MDP, "--target", "10", "--time-limit", "60")
+    limit = 1.2 * free["panels"][0]["after"]["neutral_rms_a"]
+    code, d = _json(MDP, "--target", "10", "--neutral-max", f"{limit:.6f}", "--time-limit", "60")
+    assert d["neutral_max_a"] == pytest_approx(float(f"{limit:.6f}"))
+    assert "neutral limit" in d["status_text"] and "neutral RMS current" in d["objective"]
+    if d["target_met"]:
+        after = analyse_building(_apply(load_tree(MDP), d)).nodes[0].analysis
+        assert after.neutral.rms_a <= limit * (1 + 1e-9)
+    assert code == (0 if d["target_met"] else 1)
+    assert d["status"] == free["status"] and d["relocations"] == free["relocations"]
+    for bad, words in (("0", "expected a current above 0 A"), ("x", "--neutral-max x")):
+        r = run_tri("suggest", MDP, "--neutral-max", bad)
+        assert r.returncode == 2 and words in r.stderr and "Traceback" not in r.stderr
+
+
 def test_wiring_it_cannot_honour_is_refused_naming_the_file(tmp_path):
     root = _write_building(tmp_path)
     r = run_tri("suggest", str(root))

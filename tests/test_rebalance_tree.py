@@ -45,7 +45,9 @@ def _engine_deviations(tree) -> np.ndarray:
     )
 
 
-def _check(s, expected: int | None, service_pct: float, child_pct: float) -> None:
+def _check(
+    s, expected: int | None, service_pct: float, child_pct: float, neutral_max_a=None
+) -> None:
     if expected is None:
         assert s.status == "infeasible"
         assert s.relocations == 0
@@ -60,6 +62,10 @@ def _check(s, expected: int | None, service_pct: float, child_pct: float) -> Non
     assert dev[0] <= service_pct * (1 + 1e-9)
     assert np.all(dev[1:] <= child_pct * (1 + 1e-9))
     assert s.target_met
+    if neutral_max_a is not None:
+        root = analyse_building(s.tree).nodes[0].analysis.neutral.rms_a
+        assert root <= neutral_max_a * (1 + 1e-9)
+        assert s.service.after.neutral_rms_a == pytest.approx(root, rel=1e-12, abs=1e-12)
     for p, d in zip(s.panels, dev, strict=True):
         assert p.after.max_deviation_pct == pytest.approx(d, rel=1e-12, abs=1e-12)
 
@@ -116,6 +122,27 @@ def test_c_b_a_child_and_reach_limits_match_every_arrangement(tmp_path):
     assert any(read_abc.optimum(s, c) != f for (s, c), f in zip(targets, found, strict=True))
 
 
+def test_neutral_limit_at_the_service_matches_every_arrangement(tmp_path):
+    """``--neutral-max`` at the service: the root's neutral RMS (the engine's, with the directly
+    fed child's neutral returning on it) within the limit in the reference **[computed]**.
+
+    The limit lies halfway between the two lowest distinct neutral currents
+    of the list; it raises the fewest relocations at both targets.
+    """
+    seed = 3
+    tree = load_tree(write_building(tmp_path, seed, 2))
+    cases = tree_cases(tree)
+    values = np.unique(np.round(cases.service_neutral_a, 6))
+    limit = float((values[0] + values[1]) / 2)
+    service = cases.clear_targets(0, 1, np.random.default_rng(100 + seed))[0]
+    for service_pct in (service,):
+        expected = cases.optimum(service_pct, 200.0, limit)
+        assert expected != cases.optimum(service_pct, 200.0)
+        for kw in ({}, {"list_plans": False}, {"use_solver": False}):
+            s = _run(tree, service_pct, 200.0, neutral_max_a=limit, **kw)
+            _check(s, expected, service_pct, 200.0, limit)
+
+
 def test_linear_roll_up_equals_the_engine(tmp_path):
     """Every panel's currents from the transfer matrices equal the engine's roll-up."""
     tree = load_tree(write_building(tmp_path, 4, 2))
@@ -138,9 +165,11 @@ def test_linear_roll_up_equals_the_engine(tmp_path):
             schedules[node] = sched
         from tri.schedule.tree import with_schedules
 
-        engine = analyse_building(with_schedules(tree, schedules)).solution.total.phase
+        total = analyse_building(with_schedules(tree, schedules)).solution.total
+        neutral = tp.neutral_spectra(assign)
         for k, node in enumerate(tp.nodes):
-            assert np.allclose(v[k], engine[node], rtol=1e-12, atol=1e-9)
+            assert np.allclose(v[k], total.phase[node], rtol=1e-12, atol=1e-9)
+            assert np.allclose(neutral[k], total.neutral[node], rtol=1e-12, atol=1e-9)
 
 
 def test_service_named_lower_in_the_tree(tmp_path):

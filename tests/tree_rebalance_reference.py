@@ -77,12 +77,17 @@ class TreeCases:
 
     relocations: np.ndarray  # (N,)
     deviation_pct: np.ndarray  # (N, panels)
+    service_neutral_a: np.ndarray  # (N,): the root's neutral RMS, the engine's [A]
 
-    def optimum(self, service_pct: float, child_pct: float) -> int | None:
-        """Fewest relocations meeting both targets (None: no plan does)."""
+    def optimum(
+        self, service_pct: float, child_pct: float, neutral_max_a: float | None = None
+    ) -> int | None:
+        """Fewest relocations meeting both targets (and the root's neutral limit; None: no plan)."""
         targets = np.full(self.deviation_pct.shape[1], child_pct)
         targets[0] = service_pct
         ok = np.all(self.deviation_pct <= targets * (1 + 1e-9) + 1e-12, axis=1)
+        if neutral_max_a is not None:
+            ok &= self.service_neutral_a <= neutral_max_a * (1 + 1e-9)
         return int(self.relocations[ok].min()) if np.any(ok) else None
 
     def clear_targets(self, column: int, count: int, rng) -> list[float]:
@@ -99,13 +104,14 @@ class TreeCases:
 def tree_cases(tree: ScheduleTree) -> TreeCases:
     """Every combination of every panel's cases, through the engine (module notes)."""
     per_panel = [panel_cases(p.schedule) for p in tree.panels]
-    reloc, devs = [], []
+    reloc, devs, neutral = [], [], []
     for combo in itertools.product(*(range(len(c.schedules)) for c in per_panel)):
         schedules = [per_panel[k].schedules[j] for k, j in enumerate(combo)]
         result = analyse_building(with_schedules(tree, schedules))
         reloc.append(sum(per_panel[k].relocations[j] for k, j in enumerate(combo)))
         devs.append([n.analysis.current_unbalance.max_deviation_pct for n in result.nodes])
-    return TreeCases(np.array(reloc), np.array(devs))
+        neutral.append(result.nodes[0].analysis.neutral.rms_a)
+    return TreeCases(np.array(reloc), np.array(devs), np.array(neutral))
 
 
 _PROFILES = ("linear", "electronics", "led-driver")

@@ -5,7 +5,8 @@ search covers the service (the file given, or the panel named) and every
 panel below it (:func:`tri.rebalance.tree_solve.suggest_tree`): the
 service within ``--target`` and every panel below it within
 ``--child-target`` (default: the same), each panel's currents including
-what it feeds. The work order is grouped by panel.
+what it feeds; ``--neutral-max`` limits the service's neutral RMS current
+(everything it feeds included). The work order is grouped by panel.
 
 The search runs in a worker thread; Ctrl+C ends it cleanly with the best
 plan so far and its honest status (exit as for the time limit).
@@ -53,7 +54,6 @@ def _refuse_single_panel_options(args: argparse.Namespace) -> None:
     unsupported = [
         ("--place-new", args.place_new),
         ("--relayout", args.relayout),
-        ("--neutral-max", args.neutral_max is not None),
         ("--write", args.write is not None),
     ]
     for name, given in unsupported:
@@ -75,6 +75,9 @@ def _options(args: argparse.Namespace) -> Any:
 
     target = _number("--target", args.target, "a percentage", 0.0, 200.0)
     child = _number("--child-target", args.child_target, "a percentage", 0.0, 200.0)
+    neutral = _number("--neutral-max", args.neutral_max, "a current in amperes", 0.0, 1e6)
+    if neutral is not None and neutral <= 0:
+        raise CliError(f"--neutral-max {args.neutral_max}: expected a current above 0 A")
     time_limit = _number("--time-limit", args.time_limit, "seconds", 0.0, MAX_TIME_LIMIT_S)
     if time_limit is None or time_limit <= 0:
         raise CliError(f"--time-limit {args.time_limit}: expected a number of seconds above 0")
@@ -91,6 +94,7 @@ def _options(args: argparse.Namespace) -> Any:
         child_target_pct=child,
         max_moves=moves,
         service=args.at,
+        neutral_max_a=neutral,
         time_limit_s=time_limit,
     )
 

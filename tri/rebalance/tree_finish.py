@@ -146,18 +146,28 @@ def _above(tree: ScheduleTree, tp: TreeProblem, before, after) -> tuple[OutsideF
     return tuple(out[::-1])
 
 
+def _neutral_met(service: PanelPlan, limit: float | None) -> bool:
+    """The engine's service neutral after the moves within ``limit`` in every case (round-off)."""
+    if limit is None:
+        return True
+    cases = service.cases or ()
+    values = [c.after.neutral_rms_a for c in cases] or [service.after.neutral_rms_a]
+    return all(v <= limit * (1 + 1e-9) for v in values)
+
+
 def finish(
     tree: ScheduleTree,
     tp: TreeProblem,
     search: TreeSearch,
-    asked: tuple[float, float, int | None],
+    asked: tuple[float, float, int | None, float | None],
     status: tuple[TreeStatus, int | None],
     before: Any,
     objective: str,
 ) -> TreeSuggestion:
     """The suggestion of the module notes.
 
-    ``asked``: service and child targets [%] and the cap on relocations;
+    ``asked``: service and child targets [%], the cap on relocations and the
+    neutral limit at the service [A];
     ``status``: what the search proved and its bound; ``before``: the
     engine's building analysis as it is, one per case (:func:`analyse_cases`).
     """
@@ -178,8 +188,16 @@ def finish(
         )
         if np.max(np.abs(mine - engine)) > 1e-6 * max(1.0, float(np.max(engine))):
             notes.append("engine and optimiser figures differ (please report this)")
+        if asked[3] is not None:
+            mine_n = tp.case_service_neutral_a(plan.assign)
+            engine_n = np.array(
+                [Figures.of(a.nodes[tp.nodes[0]].analysis).neutral_rms_a for a in after]
+            )
+            if np.max(np.abs(mine_n - engine_n)) > 1e-6 * max(1.0, float(np.max(engine_n))):
+                notes.append("engine and optimiser neutral currents differ (please report this)")
     panels = _panel_plans(tree, tp, schedules, work, before, after)
-    if final in ("optimal", "already-balanced") and not all(p.target_met for p in panels):
+    met = all(p.target_met for p in panels) and _neutral_met(panels[0], asked[3])
+    if final in ("optimal", "already-balanced") and not met:
         final, bound = "best-found", search.lower
     stopped: Stopped | None = None
     if not search.proven and final != "already-balanced":
@@ -197,6 +215,7 @@ def finish(
         target_pct=asked[0],
         child_target_pct=asked[1],
         max_moves=asked[2],
+        neutral_max_a=asked[3],
         notes=tuple(dict.fromkeys(notes)),
         stopped=stopped,
         solver_calls=search.calls,

@@ -18,7 +18,9 @@ lower bound on the relocations (``lower``):
    (:func:`tri.rebalance.target.solve_target`) on each leaf (its own slots)
    and on each other panel's node view (phase changes, which never exceed
    relocations) proves a lower bound ``L_k`` for that subtree, and
-   ``lower ≥ D_root`` with ``D_k = max(L_k, Σ_children D_c)``;
+   ``lower ≥ D_root`` with ``D_k = max(L_k, Σ_children D_c)`` (a neutral
+   limit at the service is left out of these searches: a bound proven
+   with fewer conditions is still a bound);
 4. the program (:mod:`tri.rebalance.tree_model`) asks for a plan with one
    relocation fewer than the best: infeasible proves the best optimal (or,
    without a plan, none within the cap); its bound raises ``lower``; a

@@ -19,6 +19,12 @@ One mixed-integer program over the whole search (:mod:`tri.rebalance.tree_proble
   the node view (:meth:`~tri.rebalance.tree_problem.TreeProblem.node_view`).
 * *Targets*: ``(1 - t_k)·mean_k ≤ r_kp ≤ (1 + t_k)·mean_k`` at every node,
   with ``t_k`` widened by :data:`TARGET_SLACK` (a looser relaxation).
+* *Neutral* (with a limit ``L`` at the service): the columns of the
+  service's neutral current at every order, ``N = NB + Σ_o x_o·NC_o``, and
+  ``<N, u> ≤ L`` for unit spectra ``u`` (fundamental directions around the
+  circle, then the direction of every proposal's neutral that failed the
+  exact check): by Cauchy-Schwarz every plan whose neutral RMS is within
+  ``L`` satisfies each row (:func:`tri.rebalance.electrical.add_neutral_cuts`).
 
 Every plan that meets every target with at most ``budget`` relocations
 satisfies the program with its own values (it is a relaxation), so an
@@ -46,7 +52,7 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
-from tri.rebalance.electrical import Electrical, add_options
+from tri.rebalance.electrical import Electrical, add_neutral_cuts, add_options
 from tri.rebalance.exact_square import SquareTerms, add_exact_square_rows, square_terms
 from tri.rebalance.lower_bounds import (
     RESOLUTIONS,
@@ -56,6 +62,7 @@ from tri.rebalance.lower_bounds import (
     unit_spectrum,
 )
 from tri.rebalance.model import Model
+from tri.rebalance.polygon import polygon_directions
 from tri.rebalance.problem import Problem
 from tri.rebalance.slot_model import SlotColumns, add_slots
 from tri.rebalance.tree_problem import TreeProblem
@@ -76,6 +83,8 @@ class TreeLearnt:
         Per case, node and phase, unit spectra of visited plans.
     rms : list of list of list of list of float
         Per case, node and phase, RMS currents of visited plans (tangent points) [A].
+    neutral : list of list of complex ndarray
+        Per case, unit spectra of the service's neutral at visited plans.
     nogoods : list of int ndarray
         Global option vectors excluded (checked exactly, failed).
     level : int
@@ -86,12 +95,14 @@ class TreeLearnt:
     n_cases: int = 1
     cuts: list = field(default_factory=list)
     rms: list = field(default_factory=list)
+    neutral: list = field(default_factory=list)
     nogoods: list[np.ndarray] = field(default_factory=list)
     level: int = 0
 
     def __post_init__(self) -> None:
         self.cuts = [[[[], [], []] for _ in range(self.size)] for _ in range(self.n_cases)]
         self.rms = [[[[], [], []] for _ in range(self.size)] for _ in range(self.n_cases)]
+        self.neutral = [[] for _ in range(self.n_cases)]
 
     def learn(self, tp: TreeProblem, assign: np.ndarray) -> None:
         """Directions and RMS currents of every node's phases at a proposed plan, every case."""
@@ -103,6 +114,10 @@ class TreeLearnt:
                     if u is not None:
                         self.cuts[c][k][p].append(u)
                     self.rms[c][k][p].append(float(np.sqrt(np.sum(np.abs(v[k, p]) ** 2))))
+            if tp.neutral_max_a is not None:
+                u = unit_spectrum(case.neutral_spectra(assign)[0])
+                if u is not None:
+                    self.neutral[c].append(u)
 
 
 class TreeModelParts:
@@ -212,6 +227,24 @@ def _case_rows(
     _deviation_rows(m, r0, float(tp.targets[k]))
 
 
+def _neutral_rows(m: Model, tp: TreeProblem, x: int, learnt: TreeLearnt) -> None:
+    """The service's neutral within its limit, in every case (module notes, Neutral)."""
+    limit = tp.neutral_max_a
+    if limit is None:
+        return
+    h = tp.orders.size
+    first = []
+    for d in polygon_directions(36):
+        u = np.zeros(h, dtype=complex)
+        u[0] = d
+        first.append(u)
+    for c, case in enumerate(tp.views()):
+        nv = m.var(2 * h, -np.inf, np.inf)
+        _current_rows(m, x, nv, case.ncontrib[:, 0][:, None, :], case.nbase[0][None, :])
+        el = Electrical(x=x, v=-1, n=nv, h=h)
+        add_neutral_cuts(m, el, float(limit), first + learnt.neutral[c])
+
+
 def build_tree_model(parts: TreeModelParts, budget: int, learnt: TreeLearnt) -> TreeModel:
     """The program of the module notes for at most ``budget`` relocations in all.
 
@@ -250,6 +283,7 @@ def build_tree_model(parts: TreeModelParts, budget: int, learnt: TreeLearnt) -> 
     for k in range(tp.size):
         if parts.views[k].n_free:
             _node_rows(m, parts, k, x, budget, learnt)
+    _neutral_rows(m, tp, x, learnt)
     cost = np.zeros(m.n)
     np.add.at(cost, stay_cols, stay_vals)
     return TreeModel(m, x, slots, cost, const)

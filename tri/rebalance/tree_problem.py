@@ -18,9 +18,8 @@ complex 3×3 matrix ``M_jk[h]`` per order with
 
 ``V_k = Σ_j M_jk · (own currents of j)``  (phases × orders).
 
-The matrices are read off the engine itself: the roll-up of a unit current
-on phase p of panel j, at every order at once, gives column p of every
-``M_jk[h]`` (three roll-ups per panel). So a plan's phase currents at every
+The matrices are read off the engine's roll-up of unit currents
+(:mod:`tri.rebalance.tree_transfer`). So a plan's phase currents at every
 panel of the search, in that panel's own frame, are
 
 ``V_k = B_k + Σ_o x_o·C_ok``
@@ -35,7 +34,10 @@ depth first), so every panel's subtree holds one contiguous block of
 options: the block of a *node view* (:meth:`TreeProblem.node_view`), a
 :class:`~tri.rebalance.problem.Problem` whose free circuits are every free
 circuit below that panel and whose currents are ``B_k`` and ``C_ok``; the
-single-panel bounds then apply to it unchanged.
+single-panel bounds then apply to it unchanged. Every node's neutral
+current is linear too, ``N_k = NB_k + Σ_o x_o·NC_ok`` (the same roll-ups);
+a neutral limit (:attr:`TreeProblem.neutral_max_a`) bounds its RMS at the
+service, in every case.
 
 Cases
 -----
@@ -55,18 +57,17 @@ so a bound proven in one case is a bound. Node views carry every case too.
 
 from __future__ import annotations
 
-from collections.abc import Sequence
 from dataclasses import dataclass, replace
 from functools import cached_property
 
 import numpy as np
 
 from tri.engine.harmonics import rms
-from tri.engine.tree import Spectra, roll_up
 from tri.engine.tree_inputs import pack_tree
 from tri.engine.unbalance import deviation_rate_pct
 from tri.rebalance.plan_currents import floor_of
 from tri.rebalance.problem import WINDOW_TYPES, Problem, build_problem
+from tri.rebalance.tree_transfer import rolled_up, transfer_matrices
 from tri.schedule.model import Schedule
 from tri.schedule.to_scenarios import CONNECTED
 from tri.schedule.tree import ScheduleTree
@@ -125,6 +126,13 @@ class TreeProblem:
         What each option adds at every node (zero outside its ancestors) [A].
     targets : float ndarray, shape (P,)
         Largest deviation from the mean allowed at each node, a fraction [-].
+    nbase : complex ndarray, shape (P, H)
+        Neutral current of the fixed circuits at every node, rolled up [A].
+    ncontrib : complex ndarray, shape (O, P, H)
+        What each option adds to every node's neutral current [A].
+    neutral_max_a : float or None
+        Largest neutral RMS current allowed at the service (node 0), in
+        every case [A]; None: no limit.
     case_names : tuple of str
         The cases, this problem's own first (module notes, Cases).
     others : tuple of TreeProblem
@@ -143,6 +151,9 @@ class TreeProblem:
     base: np.ndarray
     contrib: np.ndarray
     targets: np.ndarray
+    nbase: np.ndarray
+    ncontrib: np.ndarray
+    neutral_max_a: float | None = None
     case_names: tuple[str, ...] = (CONNECTED,)
     others: tuple[TreeProblem, ...] = ()
 
@@ -226,10 +237,23 @@ class TreeProblem:
         """:meth:`deviations_pct` in every case (shape (S, P)) [%]."""
         return np.array([v.deviations_pct(assign) for v in self.views()])
 
+    def neutral_spectra(self, assign: np.ndarray) -> np.ndarray:
+        """Neutral current at every node of a plan (complex ndarray, shape (P, H)) [A]."""
+        a = np.asarray(assign, dtype=int)
+        return self.nbase + self.ncontrib[a].sum(axis=0)
+
+    def case_service_neutral_a(self, assign: np.ndarray) -> np.ndarray:
+        """Neutral RMS current at the service in every case (shape (S,)) [A]."""
+        return np.array([float(rms(v.neutral_spectra(assign)[0])) for v in self.views()])
+
     def meets(self, assign: np.ndarray, tol: float = 1e-9) -> bool:
-        """Every node within its target in every case (to round-off ``tol``)."""
+        """Every node within its target, and the service's neutral within its limit, in every
+        case (to round-off ``tol``)."""
         dev = self.case_deviations_pct(assign)
-        return bool(np.all(dev <= 100.0 * self.targets[None, :] * (1 + tol) + 1e-12))
+        if not np.all(dev <= 100.0 * self.targets[None, :] * (1 + tol) + 1e-12):
+            return False
+        lim = self.neutral_max_a
+        return lim is None or bool(np.all(self.case_service_neutral_a(assign) <= lim * (1 + tol)))
 
     def node_view(self, k: int) -> Problem:
         """Node ``k`` as one panel whose free circuits are every free circuit below it.
@@ -282,33 +306,24 @@ class TreeProblem:
         )
 
 
-def _embed(spectrum: np.ndarray, orders: np.ndarray, into: np.ndarray) -> np.ndarray:
-    """A spectrum on ``orders`` placed on the columns of the larger set ``into``."""
-    out = np.zeros((*spectrum.shape[:-1], into.size), dtype=complex)
-    out[..., np.searchsorted(into, orders)] = spectrum
-    return out
-
-
-def _transfer_matrices(packed, nodes: Sequence[int], orders: np.ndarray) -> np.ndarray:
-    """``M[j, k, h]`` (3×3): node j's own line currents to node k's totals (module notes).
-
-    Three roll-ups per node, each a unit current on one phase at every order.
-    """
-    n_all, h = packed.size, orders.size
-    pos = np.asarray(nodes, dtype=int)
-    out = np.zeros((len(nodes), len(nodes), h, 3, 3), dtype=complex)
-    for j, node in enumerate(nodes):
-        for p in range(3):
-            phase = np.zeros((n_all, 3, h), dtype=complex)
-            phase[node, p, :] = 1.0
-            own = Spectra(phase, np.zeros((n_all, h), dtype=complex), phase)
-            total, _ = roll_up(packed, own, orders)
-            out[j, :, :, :, p] = np.swapaxes(total.phase[pos], -1, -2)
-    return out
+def _shape(tree: ScheduleTree, nodes: list[int]) -> tuple[np.ndarray, np.ndarray]:
+    """Each node's parent (position in ``nodes``, -1 for the service) and subtree end."""
+    position = {n: k for k, n in enumerate(nodes)}
+    parents = (tree.panels[n].parent for n in nodes)
+    parent = np.array([-1 if p is None else position.get(p, -1) for p in parents], dtype=int)
+    parent[0] = -1
+    ends = np.zeros(len(nodes), dtype=int)
+    for k in range(len(nodes) - 1, -1, -1):
+        ends[k] = max([k + 1, *[ends[c] for c in range(k + 1, len(nodes)) if parent[c] == k]])
+    return parent, ends
 
 
 def build_tree_problem(
-    tree: ScheduleTree, service: int, service_target: float, child_target: float
+    tree: ScheduleTree,
+    service: int,
+    service_target: float,
+    child_target: float,
+    neutral_max_a: float | None = None,
 ) -> TreeProblem:
     """Arrays of the search for the panel ``service`` and every panel below it.
 
@@ -321,6 +336,8 @@ def build_tree_problem(
     service_target, child_target : float
         Largest deviation from the mean at the service and at every other
         panel of the search, fractions [-].
+    neutral_max_a : float, optional
+        Largest neutral RMS current at the service [A].
 
     Returns
     -------
@@ -332,13 +349,7 @@ def build_tree_problem(
         A search too large for the current table.
     """
     nodes = subtree(tree, service)
-    position = {n: k for k, n in enumerate(nodes)}
-    parents = (tree.panels[n].parent for n in nodes)
-    parent = np.array([-1 if p is None else position.get(p, -1) for p in parents], dtype=int)
-    parent[0] = -1
-    ends = np.zeros(len(nodes), dtype=int)
-    for k in range(len(nodes) - 1, -1, -1):
-        ends[k] = max([k + 1, *[ends[c] for c in range(k + 1, len(nodes)) if parent[c] == k]])
+    parent, ends = _shape(tree, nodes)
     names = building_scenario_names(tree)
     problems = tuple(
         build_problem(
@@ -355,14 +366,16 @@ def build_tree_problem(
             f"{n_opt} options, {plural(1 + len(names), 'case')}); name a panel lower in the "
             "tree with --at"
         )
-    matrices = _transfer_matrices(packed, nodes, orders)  # (P, P, H, 3, 3)
+    matrices = transfer_matrices(packed, nodes, orders)
     offsets = np.concatenate([[0], np.cumsum([pr.n_options for pr in problems])]).astype(int)
     circuit_offsets = np.concatenate([[0], np.cumsum([pr.n_free for pr in problems])]).astype(int)
     targets = np.full(len(nodes), float(child_target))
     targets[0] = float(service_target)
     cases = []
     for c, name in enumerate((CONNECTED, *names)):
-        base, contrib = _rolled_up([pr.views()[c] for pr in problems], matrices, orders)
+        base, contrib, nbase, ncontrib = rolled_up(
+            [pr.views()[c] for pr in problems], matrices, orders
+        )
         cases.append(
             TreeProblem(
                 tree=tree,
@@ -376,27 +389,12 @@ def build_tree_problem(
                 base=base,
                 contrib=contrib,
                 targets=targets,
+                nbase=nbase,
+                ncontrib=ncontrib,
+                neutral_max_a=neutral_max_a,
                 case_names=(name,),
             )
         )
     if not names:
         return cases[0]
     return replace(cases[0], case_names=(CONNECTED, *names), others=tuple(cases[1:]))
-
-
-def _rolled_up(
-    problems: Sequence[Problem], matrices: np.ndarray, orders: np.ndarray
-) -> tuple[np.ndarray, np.ndarray]:
-    """``B_k`` (P, 3, H) and ``C_ok`` (O, P, 3, H) of one case, from every node's own [A]."""
-    p_count = len(problems)
-    n_opt = sum(pr.n_options for pr in problems)
-    base = np.zeros((p_count, 3, orders.size), dtype=complex)
-    contrib = np.zeros((n_opt, p_count, 3, orders.size), dtype=complex)
-    o = 0
-    for j, pr in enumerate(problems):
-        own = _embed(pr.base, pr.orders, orders)  # (3, H)
-        base += np.einsum("khpq,qh->kph", matrices[j], own)
-        opts = _embed(pr.contrib, pr.orders, orders)  # (O_j, 3, H)
-        contrib[o : o + pr.n_options] = np.einsum("khpq,oqh->okph", matrices[j], opts)
-        o += pr.n_options
-    return base, contrib

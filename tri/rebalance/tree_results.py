@@ -143,6 +143,8 @@ class TreeSuggestion:
     case_names : tuple of str
         Every case judged: ``("connected",)`` without scenarios, else the
         connected load then each of the building's scenarios.
+    neutral_max_a : float or None
+        Largest neutral RMS current asked at the service, in every case [A].
     """
 
     status: TreeStatus
@@ -159,6 +161,7 @@ class TreeSuggestion:
     elapsed_s: float
     tree: ScheduleTree
     case_names: tuple[str, ...] = ("connected",)
+    neutral_max_a: float | None = None
 
     @property
     def deciding(self) -> tuple[str, PanelPlan] | None:
@@ -185,9 +188,21 @@ class TreeSuggestion:
         return sum(p.relocations for p in self.panels)
 
     @property
+    def neutral_met(self) -> bool:
+        """The service's neutral RMS after the moves within the limit in every case (the
+        engine's figures; True without a limit)."""
+        lim = self.neutral_max_a
+        if lim is None:
+            return True
+        s = self.service
+        values = [c.after.neutral_rms_a for c in s.cases] or [s.after.neutral_rms_a]
+        return all(v <= lim * (1 + 1e-9) for v in values)
+
+    @property
     def target_met(self) -> bool:
-        """Every panel searched meets its target after the moves (the engine's figures)."""
-        return all(p.target_met for p in self.panels)
+        """Every panel searched meets its target after the moves, and the service's neutral
+        its limit (the engine's figures)."""
+        return all(p.target_met for p in self.panels) and self.neutral_met
 
     @property
     def service(self) -> PanelPlan:

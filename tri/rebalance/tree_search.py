@@ -15,6 +15,10 @@ so a plan costs a few additions per node and phase once the per-change
 terms and Gram matrices are known; plans are scored in batches. With
 scenarios (:mod:`tri.rebalance.tree_problem`, Cases) every case's nodes are
 further nodes with the same targets: a plan passes only in every case.
+With a neutral limit at the service, the service's neutral current in
+every case is one more quantity with the same expansion (``y`` its
+spectrum now, ``Δ_c`` what change c adds to it), and a plan passes only
+when its RMS is within the limit in every case.
 
 * :func:`beam_plans`: breadth first by number of changes, keeping the
   ``width`` plans that come nearest to every target (the sum over nodes of
@@ -60,8 +64,14 @@ class Changes:
         [A²].
     g : float ndarray, shape (C, C, Q)
         ``2·Re<Δ_c, Δ_c'>`` [A²].
+        With a neutral limit the last ``S`` entries of ``Q`` (and of
+        ``base2``, ``lin``, ``g``) are the service's neutral in each case.
     targets : float ndarray, shape (P·S,)
         Per node of every case, a fraction [-].
+    phase_q : int
+        ``3·P·S``: the entries of ``Q`` that are phases [-].
+    neutral_max_a : float or None
+        The limit on the service's neutral RMS current [A].
     """
 
     circuit: np.ndarray
@@ -70,6 +80,8 @@ class Changes:
     lin: np.ndarray
     g: np.ndarray
     targets: np.ndarray
+    phase_q: int = 0
+    neutral_max_a: float | None = None
 
     @property
     def count(self) -> int:
@@ -93,36 +105,51 @@ def changes_of(tp: TreeProblem) -> Changes:
     others, circ = others[order], circ[order]
     h = tp.orders.size
     views = tp.views()
-    y = np.concatenate([v.spectra(cur).reshape(-1, h) for v in views])  # (Q, H)
-    delta = np.concatenate(
-        [(v.contrib[others] - v.contrib[cur[circ]]).reshape(others.size, -1, h) for v in views],
-        axis=1,
-    )
+    ys = [v.spectra(cur).reshape(-1, h) for v in views]
+    deltas = [(v.contrib[others] - v.contrib[cur[circ]]).reshape(others.size, -1, h) for v in views]
+    phase_q = sum(y.shape[0] for y in ys)
+    if tp.neutral_max_a is not None:  # the service's neutral, every case
+        ys += [v.neutral_spectra(cur)[:1] for v in views]
+        deltas += [(v.ncontrib[others, :1] - v.ncontrib[cur[circ], :1]) for v in views]
+    y = np.concatenate(ys)  # (Q, H)
+    delta = np.concatenate(deltas, axis=1)
     base2 = np.sum(y.real**2 + y.imag**2, axis=-1)
     lin = 2.0 * np.real(np.sum(np.conj(y)[None] * delta, axis=-1)) + np.sum(np.abs(delta) ** 2, -1)
     q = y.shape[0]
     g = np.zeros((others.size, others.size, q))
     for k in range(q):
         g[:, :, k] = gram(delta[:, k, :])
-    return Changes(circ, others, base2, lin, g, np.tile(tp.targets, len(views)))
+    targets = np.tile(tp.targets, len(views))
+    return Changes(circ, others, base2, lin, g, targets, phase_q, tp.neutral_max_a)
 
 
 def excess(ch: Changes, r2: np.ndarray) -> np.ndarray:
-    """Deviation above target at every node of every case of a batch of plans (fractions, (n, P·S)).
+    """How far a batch of plans is beyond each target, fractions (n, P·S, plus S with a limit).
 
-    ``r2`` (n, Q): squared phase RMS currents. Zero where a node meets its
-    target (and where its mean current is zero).
+    ``r2`` (n, Q): squared phase RMS currents (and the service's squared
+    neutral RMS in each case). A node's deviation above its target; the
+    service neutral's RMS above its limit, relative to the limit. Zero where
+    a node meets its target (and where its mean current is zero).
     """
-    r = np.sqrt(np.maximum(r2, 0.0)).reshape(r2.shape[0], -1, 3)
+    phases = r2[:, : ch.phase_q]
+    r = np.sqrt(np.maximum(phases, 0.0)).reshape(r2.shape[0], -1, 3)
     mean = r.mean(axis=-1)
     dev = np.max(np.abs(r - mean[..., None]), axis=-1) / np.where(mean > 0, mean, 1.0)
-    return np.maximum(0.0, dev - ch.targets[None, :])
+    over = np.maximum(0.0, dev - ch.targets[None, :])
+    if ch.neutral_max_a is None:
+        return over
+    lim = max(ch.neutral_max_a, 1e-12)
+    n_over = np.maximum(0.0, np.sqrt(np.maximum(r2[:, ch.phase_q :], 0.0)) / lim - 1.0)
+    return np.concatenate([over, n_over], axis=1)
 
 
 def passes(ch: Changes, r2: np.ndarray) -> np.ndarray:
-    """Plans of a batch within every target up to :data:`SLACK` (bool, shape (n,))."""
+    """Plans of a batch within every target (and the neutral limit) up to :data:`SLACK`."""
     over = excess(ch, r2)
-    return np.all(over <= SLACK * ch.targets[None, :] + 1e-12, axis=-1)
+    slack = SLACK * ch.targets
+    if ch.neutral_max_a is not None:
+        slack = np.concatenate([slack, np.full(over.shape[1] - slack.size, SLACK)])
+    return np.all(over <= slack[None, :] + 1e-12, axis=-1)
 
 
 def plans_at_level(ch: Changes, j: int) -> int:
@@ -201,6 +228,7 @@ def beam_plans(
     """
     if passes(ch, ch.base2[None, :])[0]:
         return [np.zeros(0, dtype=int)]
+    n_phase = ch.phase_q
     rows = np.zeros((1, 0), dtype=int)
     r2 = ch.base2[None, :]
     gsum = np.zeros((1, ch.count, ch.base2.size))
@@ -218,7 +246,7 @@ def beam_plans(
         ok = passes(ch, vals)
         if np.any(ok):
             found = new_rows[ok]
-            score = np.max(np.sqrt(np.maximum(vals[ok], 0.0)), axis=-1)
+            score = np.max(np.sqrt(np.maximum(vals[ok][:, :n_phase], 0.0)), axis=-1)
             return [found[i] for i in np.argsort(score)[:keep]]
         over = excess(ch, vals)
         score = np.sum(over, axis=-1) + 1e-3 * np.max(over, axis=-1)

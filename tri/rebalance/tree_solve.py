@@ -65,6 +65,9 @@ class TreeOptions:
         Largest number of relocations in all [-].
     service : str or None
         The panel to balance (its ``[panel] name`` or its file); None: the root.
+    neutral_max_a : float or None
+        Largest neutral RMS current at the service after the moves, in
+        every case, everything it feeds included [A]; None: no limit.
     time_limit_s : float
         Wall-clock budget [s].
     use_solver : bool
@@ -80,6 +83,7 @@ class TreeOptions:
     child_target_pct: float | None = None
     max_moves: int | None = None
     service: str | None = None
+    neutral_max_a: float | None = None
     time_limit_s: float = DEFAULT_TIME_LIMIT_S
     use_solver: bool = True
     list_plans: bool = True
@@ -90,6 +94,9 @@ class TreeOptions:
         for what, v in (("target", self.target_pct), ("child target", self.child_target_pct)):
             if v is not None and not (math.isfinite(v) and 0 <= v <= 200):
                 problems.append(f"the {what} must be a percentage from 0 to 200")
+        lim = self.neutral_max_a
+        if lim is not None and not (math.isfinite(lim) and lim > 0):
+            problems.append("the neutral limit must be a current above 0 A")
         if self.max_moves is not None and self.max_moves < 0:
             problems.append("the number of moves must be 0 or more")
         if not (math.isfinite(self.time_limit_s) and self.time_limit_s > 0):
@@ -216,6 +223,11 @@ def objective_words(
     if below:
         text += f" and that of every panel below it within {opts.below_target_pct:g} %"
     cases = cases_text(case_names)
+    if opts.neutral_max_a is not None:
+        text += (
+            f", with the neutral RMS current of {service.schedule.panel.name} at most "
+            f"{opts.neutral_max_a:g} A"
+        )
     if cases:
         text += f", in every case ({cases})"
     return (
@@ -259,10 +271,20 @@ def suggest_tree(
     refusal = tree_refusal(tree, nodes)
     if refusal:
         raise ValueError("; ".join(refusal))
+    top = tree.panels[service]
+    if opts.neutral_max_a is not None and not top.schedule.system.has_neutral:
+        raise ValueError(
+            f"{top.shown}: a neutral limit needs a system with a neutral "
+            f"({top.schedule.panel.system} is 3-wire)"
+        )
     control = Control(opts.time_limit_s, progress, cancel)
     control.report("analysing the building as it is", 0.0)
     tp = build_tree_problem(
-        tree, service, opts.service_target_pct / 100.0, opts.below_target_pct / 100.0
+        tree,
+        service,
+        opts.service_target_pct / 100.0,
+        opts.below_target_pct / 100.0,
+        opts.neutral_max_a,
     )
     before = analyse_cases(tree, tp.case_names)
     movable = int(np.sum(tp.movable)) if tp.n_free else 0
@@ -272,7 +294,7 @@ def suggest_tree(
     status = _search(search, tp, opts)
     final, bound = _status(search, status)
     words = objective_words(tree, nodes, opts, tp.case_names)
-    asked = (opts.service_target_pct, opts.below_target_pct, opts.max_moves)
+    asked = (opts.service_target_pct, opts.below_target_pct, opts.max_moves, opts.neutral_max_a)
     return finish(tree, tp, search, asked, (final, bound), before, words)
 
 

@@ -9,7 +9,7 @@ JSON (``tri suggest PARENT --format json``)::
 
     {"status", "status_text", "objective", "relocations", "bound",
      "bound_unit": "moves", "target_pct", "child_target_pct", "target_met",
-     "max_moves", "stopped", "service": {"file", "panel"},
+     "max_moves", "neutral_max_a", "stopped", "service": {"file", "panel"},
      "panels": [{"file", "panel", "depth", "fed_from", "target_pct",
                  "target_met", "relocations", "before", "after",
                  "moves": [{"circuit", "from_slot", "to_slot", "from_phases",
@@ -22,7 +22,9 @@ JSON (``tri suggest PARENT --format json``)::
 ``before``/``after`` are the engine's figures of the panel in the building
 (everything it feeds included): ``phases_rms_a`` by the panel's labels,
 ``neutral_rms_a``, ``max_deviation_pct``, ``limits``. ``stopped`` is
-``"time limit"``, ``"cancelled"`` or null. Numbers are SI (A, %).
+``"time limit"``, ``"cancelled"`` or null. ``neutral_max_a`` is the
+limit asked on the service's neutral RMS current (null without); with one,
+``target_met`` includes it. Numbers are SI (A, %).
 
 With ``use`` scenarios in the building every target holds in every case
 (the connected load, every factor 1.0, then each scenario): ``cases`` lists
@@ -76,31 +78,37 @@ def tree_status_words(s: TreeSuggestion) -> str:
     budget = f" with at most {plural(s.max_moves, 'relocation')}" if s.max_moves is not None else ""
     where = "in the panels searched" if len(s.panels) > 1 else "in this panel"
     every = " in every case" if len(s.case_names) > 1 else ""
+    lim = s.neutral_max_a
+    neutral = "" if lim is None else f" and the neutral limit of {lim:g} A at {s.service.panel}"
     stop = {"cancelled": "stopped by the user", "time limit": "in the time limit"}.get(
         s.stopped or "", "in the search"
     )
     if s.status == "already-balanced":
-        return f"already balanced: every panel meets its target{every} as it is; no move needed"
+        return (
+            f"already balanced: every panel meets its target{neutral}{every} as it is; "
+            "no move needed"
+        )
     if s.status == "optimal":
         return (
             f"optimal: proven that no plan with fewer breakers relocated {where} meets every "
-            f"target{every}"
+            f"target{neutral}{every}"
         )
     if s.status == "infeasible":
         return (
             f"targets out of reach (proven): no plan{budget} brings every panel within its "
-            f"target{every}; nothing is proposed"
+            f"target{neutral}{every}; nothing is proposed"
         )
     bound = s.bound or 0
     proven = (
-        f"proven: no plan with fewer than {plural(bound, 'relocation')} meets every target{every}"
+        f"proven: no plan with fewer than {plural(bound, 'relocation')} meets every "
+        f"target{neutral}{every}"
         if bound > 0
         else "no lower bound on the relocations was proven"
     )
     if s.relocations or s.target_met:
         return f"best found {stop}, not proven optimal; {proven}"
     return (
-        f"no plan{budget} meeting every target{every} was found {stop} (not proven "
+        f"no plan{budget} meeting every target{neutral}{every} was found {stop} (not proven "
         f"impossible); {proven}; nothing is proposed"
     )
 
@@ -204,6 +212,7 @@ def tree_suggestion_data(
         "child_target_pct": num(s.child_target_pct),
         "target_met": s.target_met,
         "max_moves": s.max_moves,
+        "neutral_max_a": None if s.neutral_max_a is None else num(s.neutral_max_a),
         "stopped": s.stopped,
         "service": {"file": s.service.file, "panel": s.service.panel},
         "panels": panels,
