@@ -103,7 +103,8 @@ def schedule_at(schedule: Schedule, blocks: list[tuple[int, ...]], firsts) -> Sc
     return out
 
 
-def _stack(arrays: list[CircuitArrays]) -> CircuitArrays:
+def stack_arrays(arrays: list[CircuitArrays]) -> CircuitArrays:
+    """One batch of the engine's circuit arrays, one plan per row."""
     return CircuitArrays(
         s_va=np.stack([a.s_va for a in arrays]),
         connection=np.stack([a.connection for a in arrays]),
@@ -167,7 +168,7 @@ def enumerate_wired(schedule: Schedule, free: list[int]) -> Enumerated:
         )
     uniq, first_row, back = np.unique(codes, axis=0, return_index=True, return_inverse=True)
     arrays = [circuit_arrays(schedule_at(schedule, blocks, firsts[r])) for r in first_row]
-    res = analyse_batch(_stack(arrays), system_voltages(schedule), ratings(schedule))
+    res = analyse_batch(stack_arrays(arrays), system_voltages(schedule), ratings(schedule))
     n = uniq.shape[0]
     rms = np.asarray(res.phase_rms_a).reshape(n, 1, 3)
     back = back.ravel()

@@ -23,9 +23,9 @@ import numpy as np
 import pytest
 from rebalance_reference import Enumerated, free_breakers
 from rebalance_sweep import PROFILES, cases_for, check_case
+from rebalance_wired_reference import stack_arrays
 
 from tri.engine import analyse_batch
-from tri.engine.inputs import CircuitArrays
 from tri.native_output import native_stdout_to_devnull
 from tri.rebalance import SuggestOptions, suggest
 from tri.schedule.model import Circuit, PanelInfo, Rcd, Schedule
@@ -105,14 +105,7 @@ def enumerate_rail(sched: Schedule, free: list[int]) -> tuple[Enumerated, list]:
                 if sched.circuits[i].is_placed and _changed(sched.circuits[i], ph)
             )
         )
-    batch = CircuitArrays(
-        s_va=np.stack([a.s_va for a in arrays]),
-        connection=np.stack([a.connection for a in arrays]),
-        phase_p=np.stack([a.phase_p for a in arrays]),
-        phase_q=np.stack([a.phase_q for a in arrays]),
-        harmonics=np.stack([a.harmonics for a in arrays]),
-        orders=arrays[0].orders,
-    )
+    batch = stack_arrays(arrays)
     res = analyse_batch(batch, system_voltages(sched), ratings(sched))
     n = len(plans)
     enum = Enumerated(
