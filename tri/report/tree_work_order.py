@@ -55,7 +55,7 @@ from tri.rebalance import Figures, Move, Suggestion, WorkStep
 from tri.rebalance.tree_results import PanelPlan, TreeSuggestion
 from tri.report.data import num
 from tri.report.text_report import to_ascii
-from tri.report.work_order import WorkLine, fixed, work_order
+from tri.report.work_order import GROUP_COUNT, WorkLine, fixed, moves_count_words, work_order
 from tri.schedule.model import Schedule
 from tri.words import plural
 
@@ -89,9 +89,11 @@ def tree_status_words(s: TreeSuggestion) -> str:
             "no move needed"
         )
     if s.status == "optimal":
+        fewer = "fewer breakers relocated"
+        if has_groups(s):
+            fewer = f"fewer relocations ({GROUP_COUNT})"
         return (
-            f"optimal: proven that no plan with fewer breakers relocated {where} meets every "
-            f"target{neutral}{every}"
+            f"optimal: proven that no plan with {fewer} {where} meets every target{neutral}{every}"
         )
     if s.status == "infeasible":
         return (
@@ -111,6 +113,12 @@ def tree_status_words(s: TreeSuggestion) -> str:
         f"no plan{budget} meeting every target{neutral}{every} was found {stop} (not proven "
         f"impossible); {proven}; nothing is proposed"
     )
+
+
+def has_groups(s: TreeSuggestion) -> bool:
+    """Some panel searched has a shared-neutral group: the search counts a group moved as one
+    block as one relocation (:mod:`tri.rebalance.units`), so claims say relocations."""
+    return any(c.shared_neutral is not None for p in s.panels for c in p.schedule.circuits)
 
 
 def tree_deciding_words(s: TreeSuggestion) -> str | None:
@@ -291,7 +299,7 @@ def _work(
         return [Text("No breaker moves are proposed.")]
     out: list[RenderableType] = [
         Text(
-            f"Work order ({plural(s.relocations, 'breaker')} relocated in "
+            f"Work order ({moves_count_words(*(p.moves for p in moving))} in "
             f"{plural(len(moving), 'panel')}), for a qualified person to review; each panel "
             "is its own job:"
         )
@@ -299,9 +307,7 @@ def _work(
     for p in moving:
         sched = before[p.index]
         kind = "slots" if sched.panel.uses_slots else "rail board: circuits change phases"
-        out.append(
-            Text(f"{p.panel} ({p.file}): {plural(p.relocations, 'breaker')} relocated; {kind}")
-        )
+        out.append(Text(f"{p.panel} ({p.file}): {moves_count_words(p.moves)}; {kind}"))
         steps = Table.grid(padding=(0, 1))
         steps.add_column(justify="right", no_wrap=True)
         steps.add_column()
