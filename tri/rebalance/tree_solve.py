@@ -167,7 +167,7 @@ def reach_notes(tree: ScheduleTree, nodes: list[int]) -> list[str]:
 def wiring_notes(tp: TreeProblem) -> list[str]:
     """What the output must say about each panel's units, naming the panel (its wiring:
     shared-neutral groups, RCD groups, a high leg; :func:`tri.rebalance.moves.unit_notes`)."""
-    out = []
+    out: list[str] = []
     for k, node in enumerate(tp.nodes):
         p, pr = tp.tree.panels[node], tp.problems[k]
         free = tree_free_indices(p.schedule)

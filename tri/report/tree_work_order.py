@@ -14,12 +14,15 @@ JSON (``tri suggest PARENT --format json``)::
                  "target_met", "relocations", "before", "after",
                  "moves": [{"circuit", "from_slot", "to_slot", "from_phases",
                             "to_phases", "poles", "changes_phase",
-                            "set_aside_first"}],
+                            "set_aside_first", "shared_neutral_group"}],
                  "work_order": [{"step", "action", "circuit", "text"}]}],
      "above": [{"file", "panel", "before", "after"}], "notes", "caution",
      "cases", "deciding_case", "deciding_text"}
 
-``before``/``after`` are the engine's figures of the panel in the building
+``shared_neutral_group`` (only on the breakers of a shared-neutral group,
+which move as one block and count as one relocation) names the group;
+``relocations`` counts such a group once. ``before``/``after`` are the
+engine's figures of the panel in the building
 (everything it feeds included): ``phases_rms_a`` by the panel's labels,
 ``neutral_rms_a``, ``max_deviation_pct``, ``limits``. ``stopped`` is
 ``"time limit"``, ``"cancelled"`` or null. ``neutral_max_a`` is the
@@ -161,6 +164,7 @@ def _moves(p: PanelPlan, before: Schedule) -> list[dict[str, Any]]:
             "poles": m.poles,
             "changes_phase": m.changes_phase,
             "set_aside_first": m.circuit_index in aside,
+            **({"shared_neutral_group": m.group} if m.group is not None else {}),
         }
         for m in p.moves
     ]
