@@ -5,8 +5,11 @@ the panel whose balance is asked for (the root, or a panel named by the
 user) and the search covers it and every panel below it. Each panel is
 turned into the single-panel arrays (:func:`tri.rebalance.problem.build_problem`):
 its free circuits (placed and not locked; a feeder breaker is one of them,
-with no load of its own), their options and what each option adds to the
-panel's own line currents, order by order.
+with no load of its own), gathered into the single panel's units
+(:mod:`tri.rebalance.units`: a shared-neutral group is one, a breaker with
+one load per leg takes orders of phases, nothing to neutral on a high leg,
+a circuit behind a 2-pole RCD on its phase), their options and what each
+option adds to the panel's own line currents, order by order.
 
 How a panel's own currents reach the panels above it is the engine's
 roll-up (:func:`tri.engine.tree.roll_up`): unchanged along a feeder, or
