@@ -34,7 +34,6 @@ from collections.abc import Callable
 from dataclasses import dataclass
 
 import numpy as np
-from scipy.spatial import cKDTree
 
 #: Principal coordinates the tree is built on (the residual norm is one more) [-].
 KEPT = 6
@@ -115,6 +114,8 @@ def least_pair(
         None when stopped, or when more than :data:`CANDIDATE_LIMIT` pairs
         would have to be checked.
     """
+    from scipy.spatial import cKDTree  # only when a search runs
+
     e = _principal(x, y, kept)
     flip = x.shape[0] < y.shape[0]  # the tree holds the larger set
     big, small = (x, y) if not flip else (y, x)
