@@ -301,3 +301,28 @@ async def test_scenarios_show_every_case_as_the_cli_does(tmp_path: Path) -> None
         await pilot.press("A")
         await settle(pilot)
         assert app.session.schedule == s.schedule
+
+
+async def test_a_neutral_limit_typed_on_the_screen_is_the_command_lines(small: Path) -> None:
+    # the small panel at 10 %: balanced as it is (0 relocations) but for its
+    # neutral of 28.6 A after placing the new circuit; with 25 A typed in the
+    # Neutral field the screen's plan is `tri suggest --target 10 --place-new
+    # --neutral-max 25`'s: one relocation, the neutral within the limit
+    cli = suggest(
+        load_schedule(small).schedule,
+        SuggestOptions(target_pct=10, place_new=True, neutral_max_a=25.0),
+    )
+    app = TriApp(small, journal=False)
+    async with app.run_test(size=(80, 24)) as pilot:
+        screen = await open_rebalance(pilot)
+        screen.query_one("#rb-neutral").focus()
+        await pilot.press("minus", "1", "enter")
+        await settle(pilot)
+        assert "Neutral: expected a current" in state(screen) and screen.plan is None
+        await pilot.press("backspace", "backspace", "2", "5", "enter")
+        await search_done(pilot)
+        s = screen.plan
+        assert s is not None and (s.status, s.relocations) == ("optimal", 1)
+        assert (s.status, s.moves) == (cli.status, cli.moves)
+        assert s.after.neutral_rms_a <= 25.0
+        assert status_words(cli) in " ".join(state(screen).split())

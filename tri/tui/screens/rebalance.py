@@ -70,19 +70,30 @@ REBALANCE_HELP = """\
 Four modes (← → on the mode field): the fewest breakers relocated that bring
 the phase currents within the target (largest deviation of a phase's RMS
 current from the mean); the best balance with at most the given number of
-relocations; only the best free slots for circuits not placed yet; or a
-full re-layout for design work. New circuits are placed in the first two
-modes too. Enter in a field, Ctrl+R or F5 runs; Esc cancels a run, or goes
-back. Locked circuits never move. The status says what was proven, as
-tri suggest does. The result is a work order: each line is one step.
-Space selects or clears a move; a applies the selected moves, A applies
-all of them; u in the main view undoes. Before and after figures are the
-engine's, computed on both schedules. The safety caution applies to every
-move: this is a plan to check, not approval to work."""
+relocations; only the best free slots for circuits not placed yet; or a full
+re-layout for design work. New circuits are placed in the first two modes
+too. Neutral A, when given, is the largest neutral RMS current the plan may
+leave (every mode; blank: no limit). Enter in a field, Ctrl+R or F5 runs;
+Esc cancels a run, or goes back. Locked circuits never move. The status says
+what was proven, as tri suggest does. The result is a work order: each line
+is one step. Space selects or clears a move; a applies the selected moves, A
+applies all of them; u in the main view undoes. Before and after figures are
+the engine's, computed on both schedules. The safety caution applies to
+every move: this is a plan to check, not approval to work."""
 
 
-def options_from(target: Any, moves: Any, mode: str) -> SuggestOptions | str:
+def neutral_from(neutral: Any) -> float | str | None:
+    """The neutral-limit field [A] (blank: no limit), or what is wrong with it."""
+    if neutral is not None and (not isinstance(neutral, int | float) or not neutral > 0):
+        return "Neutral: expected a current in amperes above 0, or blank for no limit."
+    return None if neutral is None else float(neutral)
+
+
+def options_from(target: Any, moves: Any, mode: str, neutral: Any = None) -> SuggestOptions | str:
     """The fields as the rebalancer's options, or what is wrong with them."""
+    limit = neutral_from(neutral)
+    if isinstance(limit, str):
+        return limit
     if target is not None and (not isinstance(target, int | float) or not 0 < target < 100):
         return "Target: expected a percent above 0 and below 100."
     if moves is not None and (not isinstance(moves, int) or moves < 0):
@@ -92,15 +103,14 @@ def options_from(target: Any, moves: Any, mode: str) -> SuggestOptions | str:
     if mode == "balance" and moves is None:
         return "Best balance needs a number of moves; or choose fewest moves to a target."
     budget = moves if isinstance(moves, int) else None
+    common = {"time_limit_s": TIME_LIMIT_S, "neutral_max_a": limit}
     if mode == "fewest-moves" and target is not None:
-        return SuggestOptions(
-            target_pct=float(target), max_moves=budget, place_new=True, time_limit_s=TIME_LIMIT_S
-        )
+        return SuggestOptions(target_pct=float(target), max_moves=budget, place_new=True, **common)
     if mode == "balance":
-        return SuggestOptions(max_moves=budget, place_new=True, time_limit_s=TIME_LIMIT_S)
+        return SuggestOptions(max_moves=budget, place_new=True, **common)
     if mode == "place-new":
-        return SuggestOptions(place_new=True, time_limit_s=TIME_LIMIT_S)
-    return SuggestOptions(relayout=True, time_limit_s=TIME_LIMIT_S)
+        return SuggestOptions(place_new=True, **common)
+    return SuggestOptions(relayout=True, **common)
 
 
 def apply_chosen(
@@ -154,6 +164,10 @@ class RebalanceScreen(Screen[None]):
             )
             yield Label("Moves", classes="rb-label")
             yield OrderedInput("", id="rb-moves", placeholder="any", compact=True, classes="rb-num")
+            yield Label("Neutral A", classes="rb-label")
+            yield OrderedInput(
+                "", id="rb-neutral", placeholder="any", compact=True, classes="rb-num"
+            )
             yield Cycle(MODES, "fewest-moves", id="rb-mode-choice")
         with Horizontal(id="rb-progress-row"):
             yield ProgressBar(total=1.0, show_eta=False, id="rb-progress")
@@ -190,6 +204,7 @@ class RebalanceScreen(Screen[None]):
             parse_number(self.query_one("#rb-target", Input).value),
             parse_number(self.query_one("#rb-moves", Input).value),
             str(self.query_one("#rb-mode-choice", Cycle).value),
+            parse_number(self.query_one("#rb-neutral", Input).value),
         )
 
     def on_input_submitted(self, event: Input.Submitted) -> None:
