@@ -14,6 +14,7 @@ from __future__ import annotations
 
 import threading
 import time
+from dataclasses import replace
 from typing import Any, ClassVar
 
 from rich.text import Text
@@ -103,14 +104,14 @@ def options_from(target: Any, moves: Any, mode: str, neutral: Any = None) -> Sug
     if mode == "balance" and moves is None:
         return "Best balance needs a number of moves; or choose fewest moves to a target."
     budget = moves if isinstance(moves, int) else None
-    common = {"time_limit_s": TIME_LIMIT_S, "neutral_max_a": limit}
+    base = SuggestOptions(time_limit_s=TIME_LIMIT_S, neutral_max_a=limit)
     if mode == "fewest-moves" and target is not None:
-        return SuggestOptions(target_pct=float(target), max_moves=budget, place_new=True, **common)
+        return replace(base, target_pct=float(target), max_moves=budget, place_new=True)
     if mode == "balance":
-        return SuggestOptions(max_moves=budget, place_new=True, **common)
+        return replace(base, max_moves=budget, place_new=True)
     if mode == "place-new":
-        return SuggestOptions(place_new=True, **common)
-    return SuggestOptions(relayout=True, **common)
+        return replace(base, place_new=True)
+    return replace(base, relayout=True)
 
 
 def apply_chosen(
