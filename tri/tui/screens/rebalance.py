@@ -114,6 +114,14 @@ def options_from(target: Any, moves: Any, mode: str, neutral: Any = None) -> Sug
     return replace(base, relayout=True)
 
 
+def move_unit(s: Suggestion, circuit_index: int) -> set[int]:
+    """The circuits that move with ``circuit_index``: its shared-neutral group's, or itself."""
+    group = next((m.group for m in s.moves if m.circuit_index == circuit_index), None)
+    if group is None:
+        return {circuit_index}
+    return {m.circuit_index for m in s.moves if m.group == group}
+
+
 def apply_chosen(
     schedule: Schedule, s: Suggestion, chosen: set[int]
 ) -> tuple[Schedule | None, str]:
@@ -319,7 +327,11 @@ class RebalanceScreen(Screen[None]):
         row = self.query_one("#rb-moves-table", DataTable).cursor_row
         if not 0 <= row < len(self.lines):
             return
-        self.chosen ^= {self.lines[row].circuit_index}
+        unit = move_unit(self.plan, self.lines[row].circuit_index)
+        if self.lines[row].circuit_index in self.chosen:
+            self.chosen -= unit
+        else:
+            self.chosen |= unit
         self._show_plan()
         self.query_one("#rb-moves-table", DataTable).move_cursor(row=row)
 
@@ -336,10 +348,11 @@ class RebalanceScreen(Screen[None]):
             self._state(f"Not applied: {reason}")
             self.app.bell()
             return
-        total = len(self.plan.moves)
-        app.apply(
-            new, f"Rebalance: applied {len(chosen)} of {total} move{'s' if total != 1 else ''}"
-        )
+        # a shared-neutral group moved as one block is one move, as in the work order
+        units = {m.group or m.circuit_index for m in self.plan.moves}
+        done = {m.group or m.circuit_index for m in self.plan.moves if m.circuit_index in chosen}
+        total = len(units)
+        app.apply(new, f"Rebalance: applied {len(done)} of {total} move{'s' if total != 1 else ''}")
         self.app.pop_screen()
 
     def action_apply_selected(self) -> None:
