@@ -38,6 +38,7 @@ from tri.safety import SAFETY_CAUTION
 from tri.schedule.errors import ScheduleError
 from tri.tui.fmt import parse_number
 from tri.tui.messages import RebalanceProgress
+from tri.tui.screens.rebalance import neutral_from
 from tri.tui.widgets.in_order import OrderedInput
 from tri.tui.widgets.key_footer import KeyFooter
 from tri.words import plural
@@ -56,8 +57,11 @@ class TreeRebalanceDone(Message):
         super().__init__()
 
 
-def targets_from(target: Any, below: Any) -> TreeOptions | str:
-    """The two fields as targets, or what is wrong with them."""
+def targets_from(target: Any, below: Any, neutral: Any = None) -> TreeOptions | str:
+    """The fields as targets and the neutral limit at this panel, or what is wrong with them."""
+    limit = neutral_from(neutral)
+    if isinstance(limit, str):
+        return limit
     for what, v in (("Target", target), ("Below", below)):
         if v is not None and (not isinstance(v, int | float) or not 0 < v < 100):
             return f"{what}: expected a percent above 0 and below 100."
@@ -66,6 +70,7 @@ def targets_from(target: Any, below: Any) -> TreeOptions | str:
     return TreeOptions(
         target_pct=float(target),
         child_target_pct=None if below is None else float(below),
+        neutral_max_a=limit,
         time_limit_s=TIME_LIMIT_S,
     )
 
@@ -136,6 +141,10 @@ class TreeRebalanceScreen(Screen[None]):
             yield OrderedInput(
                 "", id="trb-below", placeholder="same", compact=True, classes="rb-num"
             )
+            yield Label("Neutral A", classes="rb-label")
+            yield OrderedInput(
+                "", id="trb-neutral", placeholder="any", compact=True, classes="rb-num"
+            )
         with Horizontal(id="rb-progress-row"):
             yield ProgressBar(total=1.0, show_eta=False, id="trb-progress")
             yield Static("", id="trb-state")
@@ -152,7 +161,10 @@ class TreeRebalanceScreen(Screen[None]):
         )
         for widget in self.query(Input):
             widget.cursor_blink = False
-        self._state("Target at this panel, and below it (blank: the same). Enter runs.")
+        self._state(
+            "Target at this panel, below it (blank: the same), neutral limit here "
+            "(blank: none). Enter runs."
+        )
         self.query_one("#trb-target", Input).focus()
 
     def _state(self, text: str) -> None:
@@ -168,6 +180,7 @@ class TreeRebalanceScreen(Screen[None]):
         opts = targets_from(
             parse_number(self.query_one("#trb-target", Input).value),
             parse_number(self.query_one("#trb-below", Input).value),
+            parse_number(self.query_one("#trb-neutral", Input).value),
         )
         if isinstance(opts, str):
             self._state(opts)
@@ -184,6 +197,7 @@ class TreeRebalanceScreen(Screen[None]):
             target_pct=opts.target_pct,
             child_target_pct=opts.child_target_pct,
             service=tree.panels[self.service].shown,
+            neutral_max_a=opts.neutral_max_a,
             time_limit_s=opts.time_limit_s,
         )
         self.running = True
@@ -247,7 +261,7 @@ class TreeRebalanceScreen(Screen[None]):
             self.app.bell()
             return
         for p in moving:
-            label = f"Building rebalance: {plural(p.relocations, 'breaker')} relocated"
+            label = f"Building rebalance: {moves_count_words(p.moves)}"
             b.sessions[p.index].apply(p.schedule, label)
         app.schedule_changed(
             f"Building rebalance applied in {plural(len(moving), 'panel')}; u in each panel "
