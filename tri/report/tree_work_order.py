@@ -48,7 +48,6 @@ import json
 from dataclasses import dataclass
 from typing import Any, cast
 
-from rich import box
 from rich.console import Console, RenderableType
 from rich.rule import Rule
 from rich.table import Table
@@ -58,6 +57,7 @@ from tri.rebalance import Figures, Move, Suggestion, WorkStep
 from tri.rebalance.tree_results import PanelPlan, TreeSuggestion
 from tri.report.data import num
 from tri.report.text_report import to_ascii
+from tri.report.tree_figures import figures_table
 from tri.report.work_order import GROUP_COUNT, WorkLine, fixed, moves_count_words, work_order
 from tri.schedule.model import Schedule
 from tri.words import plural
@@ -264,37 +264,6 @@ def render_tree_json(data: dict[str, Any]) -> str:
     return json.dumps(data, indent=2, ensure_ascii=False, allow_nan=False) + "\n"
 
 
-def _figures_table(s: TreeSuggestion, ascii_only: bool) -> Table:
-    """Every panel's figures before and after; with scenarios one row per case under it."""
-    t = Table(box=box.ASCII if ascii_only else box.SIMPLE_HEAD, pad_edge=False)
-    t.add_column("Panel" + (" / case" if len(s.case_names) > 1 else ""), ratio=1)
-    t.add_column("Target\n%", justify="right", no_wrap=True)
-    t.add_column("Deviation %\nbefore", justify="right", no_wrap=True)
-    t.add_column("\nafter", justify="right", no_wrap=True)
-    t.add_column("Largest phase A\nbefore", justify="right", no_wrap=True)
-    t.add_column("\nafter", justify="right", no_wrap=True)
-    for p in s.panels:
-        indent = "  " * p.depth
-        rows = [(f"{indent}{p.panel}", p.before, p.after)]
-        if p.cases:
-            t.add_row(f"{indent}{p.panel}", f"{p.target_pct:g}", "", "", "", "")
-            rows = [
-                (f"{indent}  {c.name}{' *' if c.name == p.deciding else ''}", c.before, c.after)
-                for c in p.cases
-            ]
-        for label, before, after in rows:
-            over = after.max_deviation_pct > p.target_pct * (1 + 1e-9) + 1e-12
-            t.add_row(
-                label,
-                "" if p.cases else f"{p.target_pct:g}",
-                fixed(before.max_deviation_pct, 2),
-                fixed(after.max_deviation_pct, 2) + (" over" if over else ""),
-                fixed(before.max_phase_rms_a, 1),
-                fixed(after.max_phase_rms_a, 1),
-            )
-    return t
-
-
 def _work(
     s: TreeSuggestion, before: tuple[Schedule, ...], ascii_only: bool
 ) -> list[RenderableType]:
@@ -334,9 +303,14 @@ def _work(
 
 
 def tree_renderables(
-    s: TreeSuggestion, before: tuple[Schedule, ...], caution: str, *, ascii_only: bool = False
+    s: TreeSuggestion,
+    before: tuple[Schedule, ...],
+    caution: str,
+    *,
+    ascii_only: bool = False,
+    width: int = 80,
 ) -> list[RenderableType]:
-    """The sections as Rich renderables (print them in order)."""
+    """The sections as Rich renderables (print them in order) for a console ``width`` wide."""
     rule = "-" if ascii_only else "─"
     out: list[RenderableType] = [
         Text(f"Proposed breaker moves across a building: {s.service.panel}", style="bold"),
@@ -348,7 +322,7 @@ def tree_renderables(
             "Figures from the engine on the building before and after (estimates; each panel "
             "with everything it feeds):"
         ),
-        _figures_table(s, ascii_only),
+        figures_table(s, ascii_only, width),
     ]
     deciding = tree_deciding_words(s)
     if deciding:
@@ -394,6 +368,6 @@ def render_tree_text(
     console = Console(
         file=buf, width=width, color_system=None, highlight=False, emoji=False, markup=False
     )
-    for item in tree_renderables(s, before, caution, ascii_only=ascii_only):
+    for item in tree_renderables(s, before, caution, ascii_only=ascii_only, width=width):
         console.print(item)
     return "\n".join(line.rstrip() for line in buf.getvalue().splitlines()) + "\n"
