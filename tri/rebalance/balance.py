@@ -51,7 +51,7 @@ from tri.rebalance.electrical import add_currents, add_neutral_cuts, add_options
 from tri.rebalance.exhaust import best_plans_within, enumeration_fits
 from tri.rebalance.goal import Goal
 from tri.rebalance.halves import PAIR_LIMIT, halves_fit, plans_below
-from tri.rebalance.harmonic_floor import harmonic_floor, smallest_leftover
+from tri.rebalance.harmonic_floor import floor_and_start
 from tri.rebalance.heuristic import LocalSearch
 from tri.rebalance.lower_bounds import (
     RESOLUTIONS,
@@ -285,12 +285,12 @@ class _BalanceSearch:
         """
         if self.done(stop_gap):
             return
-        bound = harmonic_floor(self.pr)
-        if bound is None:
+        got = floor_and_start(self.pr, self.control.stop)
+        if got is None:
             return
+        bound, left = got
         self.lower = max(self.lower, bound)
-        left = smallest_leftover(self.pr)
-        if self.done(stop_gap) or left is None or self.budget < self.pr.n_movable:
+        if self.done(stop_gap) or self.budget < self.pr.n_movable:
             return
         start = np.full(self.pr.n_free, -1)
         start[left.circuits] = left.options

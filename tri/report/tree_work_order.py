@@ -14,12 +14,15 @@ JSON (``tri suggest PARENT --format json``)::
                  "target_met", "relocations", "before", "after",
                  "moves": [{"circuit", "from_slot", "to_slot", "from_phases",
                             "to_phases", "poles", "changes_phase",
-                            "set_aside_first"}],
+                            "set_aside_first", "shared_neutral_group"}],
                  "work_order": [{"step", "action", "circuit", "text"}]}],
      "above": [{"file", "panel", "before", "after"}], "notes", "caution",
      "cases", "deciding_case", "deciding_text"}
 
-``before``/``after`` are the engine's figures of the panel in the building
+``shared_neutral_group`` (only on the breakers of a shared-neutral group,
+which move as one block and count as one relocation) names the group;
+``relocations`` counts such a group once. ``before``/``after`` are the
+engine's figures of the panel in the building
 (everything it feeds included): ``phases_rms_a`` by the panel's labels,
 ``neutral_rms_a``, ``max_deviation_pct``, ``limits``. ``stopped`` is
 ``"time limit"``, ``"cancelled"`` or null. ``neutral_max_a`` is the
@@ -55,7 +58,7 @@ from tri.rebalance import Figures, Move, Suggestion, WorkStep
 from tri.rebalance.tree_results import PanelPlan, TreeSuggestion
 from tri.report.data import num
 from tri.report.text_report import to_ascii
-from tri.report.work_order import WorkLine, fixed, work_order
+from tri.report.work_order import GROUP_COUNT, WorkLine, fixed, moves_count_words, work_order
 from tri.schedule.model import Schedule
 from tri.words import plural
 
@@ -89,9 +92,11 @@ def tree_status_words(s: TreeSuggestion) -> str:
             "no move needed"
         )
     if s.status == "optimal":
+        fewer = "fewer breakers relocated"
+        if has_groups(s):
+            fewer = f"fewer relocations ({GROUP_COUNT})"
         return (
-            f"optimal: proven that no plan with fewer breakers relocated {where} meets every "
-            f"target{neutral}{every}"
+            f"optimal: proven that no plan with {fewer} {where} meets every target{neutral}{every}"
         )
     if s.status == "infeasible":
         return (
@@ -111,6 +116,12 @@ def tree_status_words(s: TreeSuggestion) -> str:
         f"no plan{budget} meeting every target{neutral}{every} was found {stop} (not proven "
         f"impossible); {proven}; nothing is proposed"
     )
+
+
+def has_groups(s: TreeSuggestion) -> bool:
+    """Some panel searched has a shared-neutral group: the search counts a group moved as one
+    block as one relocation (:mod:`tri.rebalance.units`), so claims say relocations."""
+    return any(c.shared_neutral is not None for p in s.panels for c in p.schedule.circuits)
 
 
 def tree_deciding_words(s: TreeSuggestion) -> str | None:
@@ -153,6 +164,7 @@ def _moves(p: PanelPlan, before: Schedule) -> list[dict[str, Any]]:
             "poles": m.poles,
             "changes_phase": m.changes_phase,
             "set_aside_first": m.circuit_index in aside,
+            **({"shared_neutral_group": m.group} if m.group is not None else {}),
         }
         for m in p.moves
     ]
@@ -291,7 +303,7 @@ def _work(
         return [Text("No breaker moves are proposed.")]
     out: list[RenderableType] = [
         Text(
-            f"Work order ({plural(s.relocations, 'breaker')} relocated in "
+            f"Work order ({moves_count_words(*(p.moves for p in moving))} in "
             f"{plural(len(moving), 'panel')}), for a qualified person to review; each panel "
             "is its own job:"
         )
@@ -299,9 +311,7 @@ def _work(
     for p in moving:
         sched = before[p.index]
         kind = "slots" if sched.panel.uses_slots else "rail board: circuits change phases"
-        out.append(
-            Text(f"{p.panel} ({p.file}): {plural(p.relocations, 'breaker')} relocated; {kind}")
-        )
+        out.append(Text(f"{p.panel} ({p.file}): {moves_count_words(p.moves)}; {kind}"))
         steps = Table.grid(padding=(0, 1))
         steps.add_column(justify="right", no_wrap=True)
         steps.add_column()

@@ -32,7 +32,7 @@ from tri.rebalance import DEFAULT_TARGET_PCT
 from tri.rebalance.tree_results import TreeSuggestion
 from tri.rebalance.tree_solve import TreeOptions, suggest_tree
 from tri.report.tree_work_order import panel_steps, tree_status_words
-from tri.report.work_order import fixed
+from tri.report.work_order import fixed, moves_count_words
 from tri.safety import SAFETY_CAUTION
 from tri.schedule.errors import ScheduleError
 from tri.tui.fmt import parse_number
@@ -91,7 +91,7 @@ def result_text(s: TreeSuggestion, before: tuple) -> Text:
         t.append("No breaker moves are proposed.\n")
     else:
         t.append(
-            f"Work order: {plural(s.relocations, 'breaker')} relocated in "
+            f"Work order: {moves_count_words(*(p.moves for p in moving))} in "
             f"{plural(len(moving), 'panel')}; each panel is its own job.\n",
             style="bold",
         )
@@ -243,7 +243,7 @@ class TreeRebalanceScreen(Screen[None]):
             self.app.bell()
             return
         for p in moving:
-            label = f"Building rebalance: {plural(p.relocations, 'breaker')} relocated"
+            label = f"Building rebalance: {moves_count_words(p.moves)}"
             b.sessions[p.index].apply(p.schedule, label)
         app.schedule_changed(
             f"Building rebalance applied in {plural(len(moving), 'panel')}; u in each panel "
