@@ -3,7 +3,8 @@
 Buildings (:mod:`tree_wired_buildings`, invented data): shared-neutral
 groups and breakers with one load per leg (directly fed, and behind a
 ``Dyn`` transformer; a child reading C-B-A down its right column), a
-high-leg delta parent and child, a rail board with a 2-pole and a 4-pole
+high-leg delta parent and child, a transformer next to a high-leg delta
+(feeding one, and fed from one), a rail board with a 2-pole and a 4-pole
 RCD. The reference (:mod:`tree_rebalance_reference`, nothing of
 :mod:`tri.rebalance`) lists every arrangement of every panel's blocks (a
 group moves as one, side by side in its order, and counts once; no load to
@@ -43,12 +44,14 @@ from tri.schedule.tree_to_engine import analyse_building
 from tri.schedule.validate import check_schedule
 
 #: Kind and seed of each building; the suite runs one of each kind (every wiring fact
-#: among them: a group behind a C-B-A column, a high leg, both RCDs with a group).
+#: among them: a group behind a C-B-A column, a high leg, both RCDs with a group, a
+#: transformer fed from a high-leg delta); TRI_FULL_SWEEP=1 runs them all.
 BUILDINGS = sweep(
     [
         ("groups", 3),
         ("high-leg", 1),
         ("rcd", 1),
+        ("high-leg-tx", 2),
         ("groups", 0),
         ("groups", 1),
         ("groups", 2),
@@ -56,8 +59,11 @@ BUILDINGS = sweep(
         ("high-leg", 2),
         ("rcd", 0),
         ("rcd", 2),
+        ("high-leg-tx", 0),
+        ("high-leg-tx", 1),
+        ("high-leg-tx", 3),
     ],
-    3,
+    4,
 )
 #: The search's steps alone (README, Rebalancing a building).
 STEPS = ({"list_plans": False}, {"list_plans": False, "decompose": False}, {"use_solver": False})

@@ -14,6 +14,10 @@ small enough for :mod:`tree_rebalance_reference` to list every arrangement:
   with 120 V loads (never on the high leg B), a 240 V 2-pole load, in the
   child a 2-pole breaker with a neutral (its legs to neutral on the low
   phases only) and a 3-pole delta load with one load per pole pair;
+* ``high-leg-tx``: a transformer next to a high-leg delta (odd seeds: a
+  480Y/277 parent feeding a 240/120D child through a ``Dd0`` transformer,
+  its 120 V loads on the centre-tapped winding; even seeds: a 240/120D
+  parent feeding a 208Y/120 child through a ``Dyn1`` one);
 * ``rcd``: a 400Y/230 two-column parent feeding a rail board with a
   2-pole RCD (its circuit stays on the RCD's phase), a 4-pole RCD with two
   circuits behind it, and a shared-neutral group of two (odd seeds) or a
@@ -27,7 +31,7 @@ from pathlib import Path
 import numpy as np
 
 PROFILES = ("linear", "electronics", "led-driver")
-KINDS = ("groups", "high-leg", "rcd")
+KINDS = ("groups", "high-leg", "rcd", "high-leg-tx")
 
 
 def _panel(name: str, system: str, spaces: int, extra: str = "") -> str:
@@ -50,10 +54,10 @@ def _circuit(rng, where: str, name: str, poles: int = 1, extra: str = "", legs: 
     )
 
 
-def _feeder(child: str, transformer: bool = False) -> str:
+def _feeder(child: str, transformer: bool = False, group: str = "Dyn", secondary="208Y/120") -> str:
     tx = (
-        'transformer = { kva = 30, z_pct = 4, x_r = 2, connection = "Dyn", '
-        'secondary = "208Y/120" }\n'
+        f'transformer = {{ kva = 30, z_pct = 4, x_r = 2, connection = "{group}", '
+        f'secondary = "{secondary}" }}\n'
         if transformer
         else ""
     )
@@ -95,6 +99,29 @@ def _high_leg(folder: Path, rng, seed: int) -> None:
     (folder / "lp.toml").write_text(_panel("LP", "240/120D", 12) + child)
 
 
+def _high_leg_tx(folder: Path, rng, seed: int) -> None:
+    if seed % 2:
+        parent = _feeder("lp", True, "Dd0", "240/120D")
+        parent += _circuit(rng, "slot = 2", "Parent load 1") + _circuit(
+            rng, "slot = 4", "Parent load 2"
+        )
+        (folder / "main.toml").write_text(_panel("MAIN", "480Y/277", 8) + parent)
+        child = _circuit(rng, "slot = 1", "LP 120 V load 1")  # A
+        child += _circuit(rng, "slot = 2", "LP 120 V load 2")  # A
+        child += _circuit(rng, "slot = 6", "LP 120 V load 3")  # C
+        child += _circuit(rng, "slot = 3", "LP 240 V load", 2)  # B-C
+        (folder / "lp.toml").write_text(_panel("LP", "240/120D", 8) + child)
+        return
+    parent = _feeder("lp", True, "Dyn1", "208Y/120")
+    parent += _circuit(rng, "slot = 2", "Parent 120 V load")  # A
+    parent += _circuit(rng, "slot = 6", "Parent 240 V load", 2)  # C-A
+    (folder / "main.toml").write_text(_panel("MAIN", "240/120D", 10) + parent)
+    child = _circuit(rng, "slot = 1", "LP load 1") + _circuit(rng, "slot = 2", "LP load 2")
+    child += _circuit(rng, "slot = 3", "LP load 3")
+    child += _circuit(rng, "slot = 4", "LP legs", 2, "neutral = true", legs=2)
+    (folder / "lp.toml").write_text(_panel("LP", "208Y/120", 8) + child)
+
+
 def _rcd(folder: Path, rng, seed: int) -> None:
     parent = _feeder("rail")
     parent += _circuit(rng, "slot = 2", "Parent load")
@@ -119,5 +146,6 @@ def _rcd(folder: Path, rng, seed: int) -> None:
 def write_wired_building(folder: Path, kind: str, seed: int) -> Path:
     """The building of ``kind`` (module notes) for ``seed``; returns the parent's file."""
     rng = np.random.default_rng(3000 + seed)
-    {"groups": _groups, "high-leg": _high_leg, "rcd": _rcd}[kind](folder, rng, seed)
+    makers = {"groups": _groups, "high-leg": _high_leg, "rcd": _rcd, "high-leg-tx": _high_leg_tx}
+    makers[kind](folder, rng, seed)
     return folder / "main.toml"

@@ -50,7 +50,6 @@ from tri.rebalance.tree_problem import (
 )
 from tri.rebalance.tree_results import TreeStatus, TreeSuggestion
 from tri.schedule.tree import ScheduleTree
-from tri.schedule.wiring import building_refusal
 from tri.words import plural
 
 
@@ -246,16 +245,11 @@ def suggest_tree(
     Raises
     ------
     ValueError
-        An unknown service panel, or a building the roll-up cannot honour
-        yet (each sentence names the file;
-        :func:`tri.schedule.wiring.building_refusal`).
+        An unknown service panel, or a neutral limit on a 3-wire service.
     """
     opts = options or TreeOptions()
     service = find_service(tree, opts.service)
     nodes = subtree(tree, service)
-    refusal = building_refusal((p.shown, p.schedule) for p in tree.panels)
-    if refusal:
-        raise ValueError("; ".join(refusal))
     top = tree.panels[service]
     if opts.neutral_max_a is not None and not top.schedule.system.has_neutral:
         raise ValueError(

@@ -17,16 +17,15 @@ the neutral carries their sum) and, on a two-column panel, in adjacent
 slots of one column, where handle ties or a common-trip breaker can reach
 them (NEC 210.4(B), from memory; local code governs).
 
-:func:`check_wiring` finds what cannot be built; :func:`building_refusal`
-says what of these a building's roll-up cannot honour yet (every
-rebalancer honours them all: :mod:`tri.rebalance.units`).
+:func:`check_wiring` finds what cannot be built (every rebalancer honours
+the rest: :mod:`tri.rebalance.units`).
 """
 
 from __future__ import annotations
 
 import itertools
 import math
-from collections.abc import Callable, Iterable
+from collections.abc import Callable
 from dataclasses import dataclass
 
 from tri.schedule.errors import ScheduleIssue
@@ -314,46 +313,6 @@ def _lonely_groups(schedule: Schedule, where_of: Callable[[Circuit], str]) -> li
         for name, idx in count.items()
         if len(idx) == 1
     ]
-
-
-def building_refusal(panels: Iterable[tuple[str, Schedule]]) -> list[str]:
-    """What in a building (``(file, schedule)`` per panel) the roll-up cannot honour yet.
-
-    The roll-up carries breakers with a neutral, per-leg loads, shared
-    neutrals and high-leg delta panels as each panel alone is computed
-    (:mod:`tri.engine.tree_rows`). A transformer fed from a high-leg delta
-    panel, or with a high-leg delta secondary, is not modelled (its
-    sequence transfer assumes wye phasors on both sides): such a building is
-    refused, naming the file and the feeder circuit (each panel alone is
-    still reported in full).
-    """
-    from tri.schedule.systems import SYSTEMS
-
-    out = []
-    for shown, schedule in panels:
-        high = schedule.panel.effective_high_leg is not None
-        for c in schedule.circuits:
-            tx = None if c.feed is None else c.feed.transformer
-            if tx is None:
-                continue
-            secondary = SYSTEMS.get(tx.secondary)
-            if high or (secondary is not None and secondary.high_leg_delta):
-                side = (
-                    "fed from this high-leg delta panel"
-                    if high
-                    else (f"with a {tx.secondary} high-leg delta secondary")
-                )
-                out.append(
-                    f"{shown}: {_where(c, schedule)}: a transformer {side} is not yet "
-                    "supported in a building"
-                )
-    return out
-
-
-def _where(c: Circuit, schedule: Schedule) -> str:
-    from tri.schedule.validate import circuit_where
-
-    return circuit_where(c, schedule)
 
 
 def empty_slots(schedule: Schedule) -> list[int]:
