@@ -293,6 +293,19 @@ def _link_arrays(nodes: tuple[TreeNode, ...]) -> dict[str, np.ndarray]:
     return out
 
 
+def _voltage_arrays(nodes: tuple[TreeNode, ...]) -> dict[str, np.ndarray]:
+    """Per-node nominal voltages, high leg, frame and centre tap (:class:`PackedTree`)."""
+    e_nominal = np.array([supply_phase_voltages(n.system) for n in nodes], dtype=complex)
+    return {
+        "v_ln": np.array([n.system.v_ln_or_derived for n in nodes], dtype=float),
+        "v_ll": np.array([n.system.v_ll for n in nodes], dtype=float),
+        "e_nominal": e_nominal,
+        "high_leg": np.array([n.system.high_leg is not None for n in nodes], dtype=bool),
+        "frame_rad": frame_angle(e_nominal),
+        "tap": np.array([tap_phases(n.system.high_leg) or (0, 0) for n in nodes], dtype=int),
+    }
+
+
 def pack_tree(tree: TreeInputs) -> PackedTree:
     """Check a tree and turn it into arrays.
 
@@ -349,19 +362,13 @@ def pack_tree(tree: TreeInputs) -> PackedTree:
     def neutral_rating(n: TreeNode) -> float:
         return n.ratings.neutral_a if n.ratings.neutral_a is not None else n.ratings.bus_a
 
-    e_nominal = np.array([supply_phase_voltages(n.system) for n in nodes], dtype=complex)
     return PackedTree(
         circuits=pad_circuits(nodes, orders),
         n_rows=np.array([n.circuits.n_circuits for n in nodes], dtype=int),
         parent=parent,
         feeder_row=np.array([-1 if n.link is None else n.link.feeder_row for n in nodes]),
         levels=levels,
-        v_ln=np.array([n.system.v_ln_or_derived for n in nodes], dtype=float),
-        v_ll=np.array([n.system.v_ll for n in nodes], dtype=float),
-        e_nominal=e_nominal,
-        high_leg=np.array([n.system.high_leg is not None for n in nodes], dtype=bool),
-        frame_rad=frame_angle(e_nominal),
-        tap=np.array([tap_phases(n.system.high_leg) or (0, 0) for n in nodes], dtype=int),
+        **_voltage_arrays(nodes),
         n_breakers=n_breakers,
         n_groups=n_groups,
         has_neutral=np.array([n.system.has_neutral for n in nodes], dtype=bool),
