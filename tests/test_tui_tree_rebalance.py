@@ -149,3 +149,33 @@ def test_the_neutral_field_is_checked() -> None:
     assert not isinstance(opts, str) and opts.neutral_max_a == 35.0
     opts = targets_from(10, None, None)
     assert not isinstance(opts, str) and opts.neutral_max_a is None
+
+
+async def test_a_group_move_in_a_building_is_shown_and_applied(tmp_path: Path) -> None:
+    """The groups building of ``tree_wired_buildings`` (seed 3): at 12 % below the service the
+    optimum moves shared-neutral group N1 as one block (2 relocations, against every
+    arrangement in ``tests/test_rebalance_tree_wired.py`` **[computed]**)."""
+    from tree_wired_buildings import write_wired_building
+
+    from tri.schedule.validate import check_schedule
+
+    root = write_wired_building(tmp_path, "groups", 3)
+    app = TriApp(root, journal=False)
+    async with app.run_test(size=(80, 24)) as pilot:
+        await settle(pilot)
+        await _open_rebalance(pilot)
+        app.screen.query_one("#trb-target").value = "99"
+        app.screen.query_one("#trb-below").value = "12"
+        await pilot.press("enter")
+        await settle(pilot)
+        s = app.screen.result
+        assert s.status == "optimal" and s.relocations == 2
+        shown = " ".join(_text(app, "#trb-result").split())
+        assert "2 relocations (1 breaker and 1 shared-neutral group moved as one)" in shown
+        assert "Take out group N1 from slots 1, 3" in shown and "group N1 in slots 2, 4" in shown
+        await pilot.press("A")
+        await settle(pilot)
+        lp = app.building.sessions[1].schedule
+        assert lp == s.panels[1].schedule and not check_schedule(lp)
+        legs = sorted(c.slot or 0 for c in lp.circuits if c.shared_neutral == "N1")
+        assert legs[1] - legs[0] == 2  # side by side in one column

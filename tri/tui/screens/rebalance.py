@@ -13,7 +13,6 @@ the main view undoes it).
 from __future__ import annotations
 
 import threading
-import time
 from dataclasses import replace
 from typing import Any, ClassVar
 
@@ -23,7 +22,7 @@ from textual.app import ComposeResult
 from textual.binding import Binding, BindingType
 from textual.containers import Horizontal
 from textual.screen import Screen
-from textual.widgets import DataTable, Input, Label, ProgressBar, Static
+from textual.widgets import DataTable, Input, ProgressBar, Static
 
 from tri.native_output import native_stdout_to_devnull
 from tri.rebalance import (
@@ -52,8 +51,8 @@ from tri.schedule.model import Schedule
 from tri.schedule.validate import check_schedule
 from tri.tui.fmt import parse_number
 from tri.tui.messages import RebalanceDone, RebalanceProgress
+from tri.tui.screens.search_fields import neutral_from, number_field, progress_poster
 from tri.tui.widgets.cycle import Cycle
-from tri.tui.widgets.in_order import OrderedInput
 from tri.tui.widgets.key_footer import KeyFooter
 
 MODES = (
@@ -81,13 +80,6 @@ is one step. Space selects or clears a move; a applies the selected moves, A
 applies all of them; u in the main view undoes. Before and after figures are
 the engine's, computed on both schedules. The safety caution applies to
 every move: this is a plan to check, not approval to work."""
-
-
-def neutral_from(neutral: Any) -> float | str | None:
-    """The neutral-limit field [A] (blank: no limit), or what is wrong with it."""
-    if neutral is not None and (not isinstance(neutral, int | float) or not neutral > 0):
-        return "Neutral: expected a current in amperes above 0, or blank for no limit."
-    return None if neutral is None else float(neutral)
 
 
 def options_from(target: Any, moves: Any, mode: str, neutral: Any = None) -> SuggestOptions | str:
@@ -167,16 +159,9 @@ class RebalanceScreen(Screen[None]):
     def compose(self) -> ComposeResult:
         yield Static("", id="rb-title", classes="title-bar")
         with Horizontal(id="rb-mode"):
-            yield Label("Target %", classes="rb-label")
-            yield OrderedInput(
-                f"{DEFAULT_TARGET_PCT:g}", id="rb-target", compact=True, classes="rb-num"
-            )
-            yield Label("Moves", classes="rb-label")
-            yield OrderedInput("", id="rb-moves", placeholder="any", compact=True, classes="rb-num")
-            yield Label("Neutral A", classes="rb-label")
-            yield OrderedInput(
-                "", id="rb-neutral", placeholder="any", compact=True, classes="rb-num"
-            )
+            yield from number_field("Target %", "rb-target", f"{DEFAULT_TARGET_PCT:g}")
+            yield from number_field("Moves", "rb-moves", placeholder="any")
+            yield from number_field("Neutral A", "rb-neutral", placeholder="any")
             yield Cycle(MODES, "fewest-moves", id="rb-mode-choice")
         with Horizontal(id="rb-progress-row"):
             yield ProgressBar(total=1.0, show_eta=False, id="rb-progress")
@@ -238,14 +223,7 @@ class RebalanceScreen(Screen[None]):
 
     @work(thread=True, exclusive=True, group="rebalance", exit_on_error=False)
     def _search(self, schedule: Schedule, options: SuggestOptions, cancel: threading.Event) -> None:
-        last = [0.0]
-
-        def progress(fraction: float | None, text: str) -> None:
-            now = time.perf_counter()
-            if now - last[0] >= 0.1:
-                last[0] = now
-                self.app.call_from_thread(self.post_message, RebalanceProgress(fraction, text))
-
+        progress = progress_poster(self)
         try:
             with native_stdout_to_devnull():
                 result = suggest(schedule, options, progress=progress, cancel=cancel)

@@ -16,7 +16,6 @@ caution is always on screen.
 from __future__ import annotations
 
 import threading
-import time
 from typing import Any, ClassVar
 
 from rich.text import Text
@@ -26,20 +25,19 @@ from textual.binding import Binding, BindingType
 from textual.containers import Horizontal, VerticalScroll
 from textual.message import Message
 from textual.screen import Screen
-from textual.widgets import Input, Label, ProgressBar, Static
+from textual.widgets import Input, ProgressBar, Static
 
 from tri.native_output import native_stdout_to_devnull
 from tri.rebalance import DEFAULT_TARGET_PCT
 from tri.rebalance.tree_results import TreeSuggestion
 from tri.rebalance.tree_solve import TreeOptions, suggest_tree
 from tri.report.tree_work_order import panel_steps, tree_status_words
-from tri.report.work_order import fixed
+from tri.report.work_order import fixed, moves_count_words
 from tri.safety import SAFETY_CAUTION
 from tri.schedule.errors import ScheduleError
 from tri.tui.fmt import parse_number
 from tri.tui.messages import RebalanceProgress
-from tri.tui.screens.rebalance import neutral_from
-from tri.tui.widgets.in_order import OrderedInput
+from tri.tui.screens.search_fields import neutral_from, number_field, progress_poster
 from tri.tui.widgets.key_footer import KeyFooter
 from tri.words import plural
 
@@ -93,7 +91,7 @@ def result_text(s: TreeSuggestion, before: tuple) -> Text:
         t.append("No breaker moves are proposed.\n")
     else:
         t.append(
-            f"Work order: {plural(s.relocations, 'breaker')} relocated in "
+            f"Work order: {moves_count_words(*(p.moves for p in moving))} in "
             f"{plural(len(moving), 'panel')}; each panel is its own job.\n",
             style="bold",
         )
@@ -133,18 +131,9 @@ class TreeRebalanceScreen(Screen[None]):
     def compose(self) -> ComposeResult:
         yield Static("", id="trb-title", classes="title-bar")
         with Horizontal(id="rb-mode"):
-            yield Label("Target %", classes="rb-label")
-            yield OrderedInput(
-                f"{DEFAULT_TARGET_PCT:g}", id="trb-target", compact=True, classes="rb-num"
-            )
-            yield Label("Below %", classes="rb-label")
-            yield OrderedInput(
-                "", id="trb-below", placeholder="same", compact=True, classes="rb-num"
-            )
-            yield Label("Neutral A", classes="rb-label")
-            yield OrderedInput(
-                "", id="trb-neutral", placeholder="any", compact=True, classes="rb-num"
-            )
+            yield from number_field("Target %", "trb-target", f"{DEFAULT_TARGET_PCT:g}")
+            yield from number_field("Below %", "trb-below", placeholder="same")
+            yield from number_field("Neutral A", "trb-neutral", placeholder="any")
         with Horizontal(id="rb-progress-row"):
             yield ProgressBar(total=1.0, show_eta=False, id="trb-progress")
             yield Static("", id="trb-state")
@@ -209,14 +198,7 @@ class TreeRebalanceScreen(Screen[None]):
 
     @work(thread=True, exclusive=True, group="tree-rebalance", exit_on_error=False)
     def _search(self, tree: Any, opts: TreeOptions, cancel: threading.Event) -> None:
-        last = [0.0]
-
-        def progress(fraction: float | None, text: str) -> None:
-            now = time.perf_counter()
-            if now - last[0] >= 0.1:
-                last[0] = now
-                self.app.call_from_thread(self.post_message, RebalanceProgress(fraction, text))
-
+        progress = progress_poster(self)
         before = tuple(p.schedule for p in tree.panels)
         try:
             with native_stdout_to_devnull():
@@ -261,7 +243,7 @@ class TreeRebalanceScreen(Screen[None]):
             self.app.bell()
             return
         for p in moving:
-            label = f"Building rebalance: {plural(p.relocations, 'breaker')} relocated"
+            label = f"Building rebalance: {moves_count_words(p.moves)}"
             b.sessions[p.index].apply(p.schedule, label)
         app.schedule_changed(
             f"Building rebalance applied in {plural(len(moving), 'panel')}; u in each panel "
