@@ -60,7 +60,7 @@ BUILDINGS = sweep(
         ("rcd", 0),
         ("rcd", 2),
         ("high-leg-tx", 0),
-        ("high-leg-tx", 1),
+        ("high-leg-tx", 5),
         ("high-leg-tx", 3),
     ],
     4,
