@@ -26,17 +26,15 @@ a 0.5 s limit).
 from __future__ import annotations
 
 import argparse
-import statistics
 from dataclasses import replace
 
 import numpy as np
-from bench_rebalance import random_panel, run
+from bench_rebalance import random_panel
+from variant_rows import variant_row
 
-from tri.rebalance import Suggestion, SuggestOptions
+from tri.rebalance import SuggestOptions
 from tri.schedule.model import Circuit, Schedule
-from tri.schedule.validate import check_schedule
 
-PROVEN = ("optimal", "infeasible", "already-balanced")
 HIGH_LEG = 1  # phase B [index]
 
 
@@ -75,33 +73,15 @@ def on_high_leg_delta(schedule: Schedule) -> Schedule:
     return replace(schedule, panel=panel, circuits=tuple(kept))
 
 
-def _proven(s: Suggestion, fewest: bool) -> bool:
-    if s.status in PROVEN:
-        return True
-    return not fewest and s.bound is not None and s.after.max_phase_rms_a <= s.bound * 1.001
-
-
 WIRINGS = {"groups": with_groups, "high leg": lambda s, seed: on_high_leg_delta(s)}
 
 
-def _row(n: int, wiring: str, seeds: range, options: SuggestOptions) -> str:
-    if options.max_moves is not None:
-        options = replace(options, max_moves=max(2, n // 7))
-    times, plain, proven = [], [], 0
-    for seed in seeds:
+def _maker(n: int, wiring: str):
+    def make(seed: int):
         base = random_panel(n, seed)
-        wired = WIRINGS[wiring](base, seed)
-        issues = check_schedule(wired)
-        assert not issues, issues[0].message  # a bench panel that tri would refuse
-        s, t = run(wired, options)
-        times.append(t)
-        proven += _proven(s, options.target_pct is not None)
-        plain.append(run(base, options)[1])
-    ratio = statistics.median(times) / max(statistics.median(plain), 1e-9)
-    return (
-        f"{n:>5} {wiring:<9} {statistics.median(times):8.3f} {max(times):8.3f}"
-        f" {proven:>3}/{len(times):<3} {ratio:8.2f}x"
-    )
+        return base, WIRINGS[wiring](base, seed)
+
+    return make
 
 
 def main() -> None:
@@ -121,7 +101,8 @@ def main() -> None:
         print("    n wiring    median s    max s  proven  vs plain panel")
         for n in sizes:
             for wiring in WIRINGS:
-                print(_row(n, wiring, seeds, replace(options, time_limit_s=limit)))
+                opts = replace(options, time_limit_s=limit)
+                print(variant_row(n, wiring, seeds, opts, _maker(n, wiring)))
 
 
 if __name__ == "__main__":
