@@ -24,6 +24,8 @@ The connected load alone is judged (no ``use`` scenarios).
 
 from __future__ import annotations
 
+import itertools
+
 import numpy as np
 from rebalance_reference import Enumerated
 
@@ -51,7 +53,7 @@ def blocks_of(schedule: Schedule, free: list[int]) -> list[tuple[int, ...]]:
     return out
 
 
-def _arrangements(schedule: Schedule, blocks: list[tuple[int, ...]]) -> np.ndarray:
+def block_arrangements(schedule: Schedule, blocks: list[tuple[int, ...]]) -> np.ndarray:
     """Every set of first slots of the blocks (int ndarray, shape (A, len(blocks)))."""
     spaces = schedule.panel.spaces
     circuits = schedule.circuits
@@ -103,6 +105,30 @@ def schedule_at(schedule: Schedule, blocks: list[tuple[int, ...]], firsts) -> Sc
     return out
 
 
+def rail_options(schedule: Schedule, block: tuple[int, ...]) -> list[tuple[int, ...]]:
+    """Every phases (in pole order) a block may take on a rail board (README, RCD groups).
+
+    A circuit behind a 2-pole RCD: that RCD's phase only (it feeds one
+    phase and neutral); a shared-neutral group or a breaker with one load
+    per leg: every order of distinct phases; a plain 1-pole circuit: A, B
+    or C; a plain 2-pole one: A-B, B-C or C-A; a plain 3-pole one: A-B-C.
+    """
+    c = schedule.circuits[block[0]]
+    rcd = next((r for r in schedule.rcds if r.name == c.rcd and r.poles == 2), None)
+    if rcd is not None:
+        assert rcd.phase is not None
+        return [(rcd.phase,)]
+    poles = sum(schedule.circuits[i].poles for i in block)
+    if len(block) > 1 or c.has_legs:
+        return list(itertools.permutations(range(3), poles))
+    plain: dict[int, list[tuple[int, ...]]] = {
+        1: [(0,), (1,), (2,)],
+        2: [(0, 1), (1, 2), (2, 0)],
+        3: [(0, 1, 2)],
+    }
+    return plain[poles]
+
+
 def stack_arrays(arrays: list[CircuitArrays]) -> CircuitArrays:
     """One batch of the engine's circuit arrays, one plan per row."""
     return CircuitArrays(
@@ -115,7 +141,7 @@ def stack_arrays(arrays: list[CircuitArrays]) -> CircuitArrays:
     )
 
 
-def _buildable(schedule: Schedule, blocks: list[tuple[int, ...]], firsts: np.ndarray):
+def buildable(schedule: Schedule, blocks: list[tuple[int, ...]], firsts: np.ndarray):
     """Rows of ``firsts`` with no load to neutral on the high leg (module notes)."""
     high = schedule.panel.effective_high_leg
     keep = np.ones(firsts.shape[0], dtype=bool)
@@ -139,8 +165,8 @@ def enumerate_wired(schedule: Schedule, free: list[int]) -> Enumerated:
     as :func:`rebalance_sweep.check_case` reads it.
     """
     blocks = blocks_of(schedule, free)
-    firsts = _arrangements(schedule, blocks)
-    firsts = firsts[_buildable(schedule, blocks, firsts)]
+    firsts = block_arrangements(schedule, blocks)
+    firsts = firsts[buildable(schedule, blocks, firsts)]
     circuits = schedule.circuits
     rc = schedule.panel.right_column
     old = [circuits[b[0]].slot for b in blocks]

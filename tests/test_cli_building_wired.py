@@ -131,15 +131,21 @@ def test_check_judges_the_wired_building(folder):
     assert all(f["checks"] for f in files)
 
 
-def test_a_transformer_from_a_high_leg_panel_is_refused_and_located(folder):
-    (folder / "old.toml").write_text(
-        OLD_SERVICE.replace('feeds = "shop.toml"', 'feeds = "lp2.toml"')
-        + 'transformer = { kva = 45, z_pct = 3.5, x_r = 2, connection = "Dyn", '
-        'secondary = "208Y/120" }\n',
-        encoding="utf-8",
+def test_a_transformer_from_a_high_leg_panel_is_reported_and_a_yn_primary_refused(folder):
+    """A 240/120D service feeding LP-2 (208Y/120) through a Dyn transformer is rolled up
+    (:mod:`tri.engine.centre_tap`; its values in ``tests/test_engine_tree_centre_tap.py``);
+    a YN primary on it, which would take the centre tap as a wye neutral, is a located error."""
+    tx = (
+        'transformer = {{ kva = 45, z_pct = 3.5, x_r = 2, connection = "{}", '
+        'secondary = "208Y/120" }}\n'
     )
+    base = OLD_SERVICE.replace('feeds = "shop.toml"', 'feeds = "lp2.toml"')
+    (folder / "old.toml").write_text(base + tx.format("Dyn"), encoding="utf-8")
+    building = report(folder / "old.toml")["building"]
+    assert [p["file"].rsplit("/", 1)[-1] for p in building["panels"]] == ["old.toml", "lp2.toml"]
+    (folder / "old.toml").write_text(base + tx.format("YNyn0"), encoding="utf-8")
     for command in ("report", "check"):
         run = tri(command, str(folder / "old.toml"))
         assert run.returncode == 2, run.stdout
         assert "old.toml" in run.stderr and "Feeder to the shop" in run.stderr
-        assert "high-leg delta" in run.stderr and "Traceback" not in run.stderr
+        assert "centre tap" in run.stderr and "Traceback" not in run.stderr

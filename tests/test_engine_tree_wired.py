@@ -197,7 +197,7 @@ def test_high_leg_child_voltage_through_its_feeder_by_hand():
     close(v.vuf_pct, analyse_tree(tree).batch.vuf_pct[1])
 
 
-def test_a_transformer_next_to_a_high_leg_panel_is_refused():
+def test_what_a_transformer_next_to_a_high_leg_panel_may_be():
     tx = TransformerLink(45.0, 3.5, 2.0, parse_vector_group("Dyn"))
     parent = wired([(0, THREE_PHASE, 0, 0)])
     child = wired([(1200, LINE_TO_NEUTRAL, 0, 0)])
@@ -213,14 +213,21 @@ def test_a_transformer_next_to_a_high_leg_panel_is_refused():
         )
     )
     pack_tree(tree)  # the same transformer between wye panels is fine
-    hl = TreeInputs(
-        (
-            TreeNode(parent, SYS_HL, BIG),
-            TreeNode(child, SYS_208Y, BIG, PanelLink(0, 0, transformer=tx)),
-        )
-    )
-    with pytest.raises(ValueError, match="high-leg delta"):
-        pack_tree(hl)
+    # next to a high-leg delta (tri.engine.centre_tap): fed from one with a D primary, fine;
+    # a YN primary on it, or a wye secondary for one, is refused
+    for group, parent_sys, child_sys, words in (
+        ("Dyn", SYS_HL, SYS_208Y, None),
+        ("YNyn0", SYS_HL, SYS_208Y, "YN primary on a high-leg delta"),
+        ("Dyn", SystemVoltages(480.0, None), SYS_HL, "centre-tapped delta"),
+        ("Dd0", SystemVoltages(480.0, None), SYS_HL, None),
+    ):
+        link = PanelLink(0, 0, transformer=TransformerLink(45, 3.5, 2, parse_vector_group(group)))
+        hl = TreeInputs((TreeNode(parent, parent_sys, BIG), TreeNode(child, child_sys, BIG, link)))
+        if words is None:
+            pack_tree(hl)
+        else:
+            with pytest.raises(ValueError, match=words):
+                pack_tree(hl)
 
 
 legs = st.lists(

@@ -12,6 +12,10 @@ engine; nothing of the rebalancer is used. [computed]
   breaker one by one (a brute force written here).
 * The re-layout search that uses it makes only true claims
   (``rebalance_sweep.check_case``).
+* Both ways of finding ``Q*``: every pair of half-sums (small panels), and
+  the pruned search of :mod:`tri.rebalance.nearest_sums` from the
+  descent's value (forced here by a pair limit of 0, as on panels with
+  about 20 harmonic breakers).
 """
 
 from __future__ import annotations
@@ -23,6 +27,7 @@ import pytest
 from rebalance_reference import enumerate_panel, free_breakers
 from rebalance_sweep import EDGE, Case, check_case, dense_panel, with_scenarios
 
+import tri.rebalance.harmonic_floor as harmonic_floor_module
 from tri.native_output import native_stdout_to_devnull
 from tri.rebalance import suggest
 from tri.rebalance.harmonic_floor import _projected, harmonic_floor, smallest_leftover
@@ -40,19 +45,33 @@ def _panel(seed: int):
     return rng, (with_scenarios(rng, sched) if seed % 2 else sched)
 
 
-def test_the_floor_is_below_every_arrangement_and_relayout_claims_are_true() -> None:
+@pytest.fixture(params=["every-pair", "pruned"])
+def search(request: pytest.FixtureRequest, monkeypatch: pytest.MonkeyPatch) -> str:
+    """Which way ``Q*`` is found: every pair, or the pruned search (pair limit 0)."""
+    if request.param == "pruned":
+        monkeypatch.setattr(harmonic_floor_module, "PAIR_LIMIT", 0)
+    return str(request.param)
+
+
+def test_the_floor_is_below_every_arrangement_and_relayout_claims_are_true(
+    monkeypatch: pytest.MonkeyPatch,
+) -> None:
     above_f, false = 0, []
     for seed in range(ENUMERATED):
         _, sched = _panel(seed)
         free = free_breakers(sched, "relayout", False)
         pr = build_problem(sched, free)
         bound = harmonic_floor(pr)
-        assert bound is not None
+        with monkeypatch.context() as m:
+            m.setattr(harmonic_floor_module, "PAIR_LIMIT", 0)
+            pruned = harmonic_floor(pr)
+        assert bound is not None and pruned is not None
+        assert pruned == pytest.approx(bound, rel=1e-9)
         assert bound >= pr.worst_floor_a * (1 - EDGE)
         enum = enumerate_panel(sched, free)
         if enum.max_rms.size == 0:
             continue
-        assert float(enum.max_rms.min()) >= bound * (1 - EDGE), seed
+        assert float(enum.max_rms.min()) >= max(bound, pruned) * (1 - EDGE), seed
         above_f += bound > pr.worst_floor_a * (1 + 1e-6)
         if seed % 2 == 0:
             case = Case(sched, "relayout")
@@ -63,7 +82,7 @@ def test_the_floor_is_below_every_arrangement_and_relayout_claims_are_true() -> 
     assert above_f >= ENUMERATED // 4  # not vacuous: the bound rises above F
 
 
-def test_q_min_against_brute_force() -> None:
+def test_q_min_against_brute_force(search: str) -> None:
     for seed in range(PANELS):
         _, sched = _panel(seed)
         pr = build_problem(sched, free_breakers(sched, "relayout", False), scenarios=False)

@@ -23,7 +23,7 @@ import numpy as np
 import pytest
 from rebalance_reference import Enumerated, free_breakers
 from rebalance_sweep import PROFILES, cases_for, check_case
-from rebalance_wired_reference import stack_arrays
+from rebalance_wired_reference import rail_options, stack_arrays
 
 from tri.engine import analyse_batch
 from tri.native_output import native_stdout_to_devnull
@@ -65,17 +65,6 @@ def rail_panel(rng: np.random.Generator) -> Schedule:
     return sched
 
 
-def _options(sched: Schedule, i: int) -> list[tuple[int, ...]]:
-    c = sched.circuits[i]
-    if c.rcd == "R1":
-        return [(sched.rcds[0].phase,)]  # type: ignore[list-item]
-    if c.poles == 1:
-        return [(0,), (1,), (2,)]
-    if c.neutral:
-        return list(itertools.permutations(range(3), 2))
-    return [(0, 1), (1, 2), (2, 0)]
-
-
 def _changed(c: Circuit, ph: tuple[int, ...]) -> bool:
     assert c.phases is not None
     return tuple(c.phases) != ph if c.neutral else set(c.phases) != set(ph)
@@ -91,7 +80,7 @@ def _key(sched: Schedule, free: list[int], plan) -> tuple:
 
 def enumerate_rail(sched: Schedule, free: list[int]) -> tuple[Enumerated, list]:
     """Every plan of the free circuits (module notes), and each plan's phases."""
-    plans = list(itertools.product(*[_options(sched, i) for i in free]))
+    plans = list(itertools.product(*[rail_options(sched, (i,)) for i in free]))
     arrays, moved = [], []
     for plan in plans:
         out = sched

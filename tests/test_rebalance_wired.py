@@ -30,7 +30,6 @@ from tri.rebalance import suggest
 from tri.schedule.load import load_schedule
 from tri.schedule.model import Schedule
 from tri.schedule.slots import RIGHT_CBA, slot_phases
-from tri.schedule.wiring import rebalancer_refusal
 
 #: Panels per chunk, chunks of the product's path and of the programs alone [-].
 CHUNK, CHUNKS, MILP_CHUNKS = 8, 3, 1
@@ -80,7 +79,6 @@ def test_every_claim_is_true_with_a_c_b_a_right_column(chunk: int) -> None:
     false = []
     for seed in range(500 + chunk * CHUNK, 500 + (chunk + 1) * CHUNK):
         _, sched = _cba_panel(seed)
-        assert rebalancer_refusal(sched) == []
         false += _false_claims(seed, sched, time_limit_s=10.0, floor_gap=0.0)
     assert not false
 
@@ -199,7 +197,6 @@ def test_every_claim_is_true_within_a_reach_limit(chunk: int) -> None:
     false = []
     for seed in range(700 + chunk * CHUNK, 700 + (chunk + 1) * CHUNK):
         _, sched = _reach_panel(seed)
-        assert rebalancer_refusal(sched) == []
         false += _false_claims(seed, sched, time_limit_s=10.0, floor_gap=0.0)
     assert not false
 

@@ -159,6 +159,24 @@ def test_delta_secondary_cannot_feed_a_four_wire_panel(tmp_path):
     assert "has no neutral" in msg and "4-wire" in msg
 
 
+def test_a_high_leg_delta_secondary_is_a_delta_winding(tmp_path):
+    """A 240/120D panel is fed by a d secondary (its neutral is a centre tap, README)."""
+    for connection, wrong in (("Dyn", True), ("Dd0", False), ("Yd1", False)):
+        tx = TX.format(connection=connection, secondary="240/120D")
+        root = write(
+            tmp_path / connection,
+            {
+                "mdp.toml": panel("MDP", "480Y/277", feeder(1, "shop.toml", tx)),
+                "shop.toml": panel("Shop", "240/120D", LOAD.replace("slot = 2", "slot = 1")),
+            },
+        )
+        if wrong:
+            (msg,) = problems(root)
+            assert "key 'transformer'" in msg and "centre-tapped" in msg and "Dd0" in msg
+        else:
+            assert load_tree(root).panels[1].schedule.panel.system == "240/120D"
+
+
 def test_a_child_fed_twice(tmp_path):
     root = write(
         tmp_path,

@@ -25,7 +25,6 @@ from tri.schedule.wiring import (
     empty_slots,
     legs_of,
     neutral_groups,
-    rebalancer_refusal,
 )
 
 DATA = Path(__file__).parent / "data"
@@ -201,17 +200,6 @@ def test_edit_that_splits_a_group_is_caught_after_the_edit() -> None:
     assert any("not adjacent" in m for m in messages), messages
 
 
-def test_rebalancer_refusal_names_what_it_cannot_honour() -> None:
-    s = load_schedule(GOOD / "mwbc_208.toml").schedule
-    reasons = rebalancer_refusal(s)
-    assert any("slot 1" in r and "not yet supported by the rebalancer" in r for r in reasons)
-    assert any("shared-neutral groups are not yet supported" in r for r in reasons)
-    plain = parse_schedule(_panel(circuits='[[circuit]]\nslot = 1\nname = "x"\nload_va = 1\n'))
-    assert rebalancer_refusal(plain.schedule) == []
-    cba = replace(plain.schedule, panel=replace(plain.schedule.panel, right_column="CBA"))
-    assert rebalancer_refusal(cba) == []  # a C-B-A right column is honoured
-
-
 def test_rcd_groups_on_a_rail_board_load() -> None:
     text = """format = 1
 [panel]
@@ -265,7 +253,6 @@ def test_unchanged_wiring_file_saves_byte_identical(tmp_path: Path) -> None:
 
 
 def test_edits_of_the_new_keys_round_trip_with_comments(tmp_path: Path) -> None:
-    from dataclasses import replace
 
     from tri.schedule.save import save_schedule
 
@@ -294,7 +281,6 @@ def test_edits_of_the_new_keys_round_trip_with_comments(tmp_path: Path) -> None:
 
 
 def test_high_leg_c_right_column_and_rcds_are_written(tmp_path: Path) -> None:
-    from dataclasses import replace
 
     from tri.schedule.model import Rcd
     from tri.schedule.save import save_schedule, schedule_text
@@ -330,7 +316,6 @@ def test_high_leg_readings_and_supply() -> None:
 
 
 def test_journal_keeps_the_wiring_keys() -> None:
-    from dataclasses import replace
 
     from tri.schedule.journal import schedule_from_data, schedule_to_data
     from tri.schedule.model import Rcd

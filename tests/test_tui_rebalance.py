@@ -301,3 +301,64 @@ async def test_scenarios_show_every_case_as_the_cli_does(tmp_path: Path) -> None
         await pilot.press("A")
         await settle(pilot)
         assert app.session.schedule == s.schedule
+
+
+async def test_a_neutral_limit_typed_on_the_screen_is_the_command_lines(small: Path) -> None:
+    # the small panel at 10 %: balanced as it is (0 relocations) but for its
+    # neutral of 28.6 A after placing the new circuit; with 25 A typed in the
+    # Neutral field the screen's plan is `tri suggest --target 10 --place-new
+    # --neutral-max 25`'s: one relocation, the neutral within the limit
+    cli = suggest(
+        load_schedule(small).schedule,
+        SuggestOptions(target_pct=10, place_new=True, neutral_max_a=25.0),
+    )
+    app = TriApp(small, journal=False)
+    async with app.run_test(size=(80, 24)) as pilot:
+        screen = await open_rebalance(pilot)
+        screen.query_one("#rb-neutral").focus()
+        await pilot.press("minus", "1", "enter")
+        await settle(pilot)
+        assert "Neutral: expected a current" in state(screen) and screen.plan is None
+        await pilot.press("backspace", "backspace", "2", "5", "enter")
+        await search_done(pilot)
+        s = screen.plan
+        assert s is not None and (s.status, s.relocations) == ("optimal", 1)
+        assert (s.status, s.moves) == (cli.status, cli.moves)
+        assert s.after.neutral_rms_a <= 25.0
+        assert status_words(cli) in " ".join(state(screen).split())
+
+
+async def test_a_shared_neutral_group_is_one_step_and_moves_whole(tmp_path: Path) -> None:
+    # the wiring test panel at 5 %: three relocations, the third a shared-neutral
+    # group moved as one block (tri suggest's own work order); choosing that step
+    # alone moves both of its breakers and nothing else, legs still on distinct
+    # phases in adjacent slots (the group's rule, NEC 210.4)
+    panel = tmp_path / "mwbc_208.toml"
+    shutil.copy(Path(__file__).parent / "data" / "wiring" / "mwbc_208.toml", panel)
+    sched = load_schedule(panel).schedule
+    cli = suggest(sched, SuggestOptions(target_pct=5, place_new=True))
+    app = TriApp(panel, journal=False)
+    async with app.run_test(size=(80, 24)) as pilot:
+        screen = await open_rebalance(pilot, target="5")
+        await pilot.press("ctrl+r")
+        await search_done(pilot)
+        s = screen.plan
+        assert s is not None and (s.status, s.moves) == (cli.status, cli.moves)
+        assert rows(screen) == [w.brief for w in work_order(cli, sched)]
+        group_rows = [r for r in rows(screen) if "N13" in r]
+        assert len(group_rows) == 1 and len(rows(screen)) == 3  # one step for the group
+        await pilot.press("space", "down", "space", "down", "space")  # clear every step
+        assert screen.chosen == set()  # the group's line clears both of its breakers
+        await pilot.press("space")  # then choose the group's step alone: one line for both
+        group = {m.circuit_index for m in s.moves if m.group == "N13"}
+        assert screen.chosen == group and len(group) == 2
+        await pilot.press("a")
+        await settle(pilot)
+        new = app.session.schedule
+        east, west = (index_of(new, n) for n in ("Corridor lights east", "Corridor lights west"))
+        assert (new.circuits[east].slot, new.circuits[west].slot) == (11, 13)
+        assert new.circuits[index_of(new, "Kiln (unbalanced delta)")].slot == 8
+        assert new.circuits[index_of(new, "Office receptacles (shared neutral)")].slot == 1
+        assert new.circuits[east].phases != new.circuits[west].phases
+        # the undo label counts the group as one move, as the work order does
+        assert app.session.undo_stack[-1][1] == "Rebalance: applied 1 of 3 moves"

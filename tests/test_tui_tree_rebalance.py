@@ -113,3 +113,69 @@ def test_targets_from_fields() -> None:
     opts = targets_from(8, None)
     assert not isinstance(opts, str)
     assert opts.service_target_pct == 8 and opts.below_target_pct == 8
+
+
+async def test_a_neutral_limit_typed_on_the_screen_is_the_command_lines(brewery: Path) -> None:
+    # LP-2 alone at 20 %: its best plan leaves 23.0 A in its neutral; with 20 A typed
+    # in the Neutral field the screen must find the plan `tri suggest --at LP-2
+    # --target 20 --neutral-max 20` finds (the same search on the same files)
+    tree = load_tree(brewery)
+    opts = TreeOptions(
+        target_pct=20, service=tree.panels[3].shown, neutral_max_a=20.0, time_limit_s=30
+    )
+    with native_stdout_to_devnull():
+        expected = suggest_tree(tree, opts)
+    app = TriApp(brewery, journal=False)
+    async with app.run_test(size=(80, 24)) as pilot:
+        await settle(pilot)
+        await _open_rebalance(pilot, 3)
+        app.screen.query_one("#trb-target").value = ""
+        await pilot.press("2", "0", "tab", "tab", "minus", "3", "enter")
+        await settle(pilot)
+        assert "Neutral: expected a current" in _text(app, "#trb-state")
+        assert app.screen.result is None
+        await pilot.press("backspace", "backspace", "2", "0", "enter")
+        await settle(pilot)
+        s = app.screen.result
+        assert s is not None and (s.status, s.relocations) == (expected.status, 1)
+        assert [p.moves for p in s.panels] == [p.moves for p in expected.panels]
+        assert s.panels[0].after.neutral_rms_a <= 20.0
+
+
+def test_the_neutral_field_is_checked() -> None:
+    assert isinstance(targets_from(10, None, 0), str)
+    assert isinstance(targets_from(10, None, "x"), str)
+    opts = targets_from(10, None, 35)
+    assert not isinstance(opts, str) and opts.neutral_max_a == 35.0
+    opts = targets_from(10, None, None)
+    assert not isinstance(opts, str) and opts.neutral_max_a is None
+
+
+async def test_a_group_move_in_a_building_is_shown_and_applied(tmp_path: Path) -> None:
+    """The groups building of ``tree_wired_buildings`` (seed 3): at 12 % below the service the
+    optimum moves shared-neutral group N1 as one block (2 relocations, against every
+    arrangement in ``tests/test_rebalance_tree_wired.py`` **[computed]**)."""
+    from tree_wired_buildings import write_wired_building
+
+    from tri.schedule.validate import check_schedule
+
+    root = write_wired_building(tmp_path, "groups", 3)
+    app = TriApp(root, journal=False)
+    async with app.run_test(size=(80, 24)) as pilot:
+        await settle(pilot)
+        await _open_rebalance(pilot)
+        app.screen.query_one("#trb-target").value = "99"
+        app.screen.query_one("#trb-below").value = "12"
+        await pilot.press("enter")
+        await settle(pilot)
+        s = app.screen.result
+        assert s.status == "optimal" and s.relocations == 2
+        shown = " ".join(_text(app, "#trb-result").split())
+        assert "2 relocations (1 breaker and 1 shared-neutral group moved as one)" in shown
+        assert "Take out group N1 from slots 1, 3" in shown and "group N1 in slots 2, 4" in shown
+        await pilot.press("A")
+        await settle(pilot)
+        lp = app.building.sessions[1].schedule
+        assert lp == s.panels[1].schedule and not check_schedule(lp)
+        legs = sorted(c.slot or 0 for c in lp.circuits if c.shared_neutral == "N1")
+        assert legs[1] - legs[0] == 2  # side by side in one column

@@ -1,16 +1,27 @@
 """An independent reference for the building rebalancer: every arrangement of every panel.
 
-Nothing here uses :mod:`tri.rebalance`. Each panel's unlocked breakers
-(feeder breakers included) are put in every set of first slots its
-geometry allows (:func:`rebalance_reference.arrangements`), within the
-panel's reach limit when it has one (``[panel] max_row_shift``:
-:func:`rebalance_reference.within_reach`, rows counted there); each slot's
-phase is read with the panel's ``right_column`` (A-B-C or C-B-A down the
-even column, :func:`tri.schedule.slots.slot_phases`); arrangements
-that put every breaker on the same phases are one electrical case, kept
-with its fewest relocations (a placed breaker whose first slot changes is
-one relocation). Every combination of one case per panel is written into
-the building and run through the engine's whole-tree analysis
+Nothing here uses :mod:`tri.rebalance`. What moves in a panel is a
+*block* (:mod:`rebalance_wired_reference`): an unlocked placed breaker
+(feeder breakers included, and breakers with one load per leg), or the
+1-pole breakers of a ``shared_neutral`` group, which move together side by
+side in one column in their order (README, shared neutrals; a group with a
+locked breaker stays). On a two-column panel the blocks are put in every
+set of first slots its geometry allows
+(:func:`rebalance_wired_reference.block_arrangements`), within the panel's
+reach limit when it has one (``[panel] max_row_shift``:
+:func:`rebalance_reference.within_reach`, rows counted there), and on a
+high-leg delta none with a load to neutral on the high leg
+(:func:`rebalance_wired_reference.buildable`); each pole's phase is read
+with the panel's ``right_column`` (A-B-C or C-B-A down the even column,
+:func:`tri.schedule.slots.pole_phases`). On a rail board each block takes
+every phases it may (:func:`rebalance_wired_reference.rail_options`:
+behind a 2-pole RCD only that RCD's phase). Arrangements that put every
+block on the same phases (in pole order for a wired block, as a set for a
+plain breaker) are one electrical case, kept with its fewest relocations (a
+placed block whose first slot, or on a rail board whose phases, change is
+one relocation: a group moved counts once, as the work order counts it).
+Every combination of one case per panel is written into the building and
+run through the engine's whole-tree analysis
 (:func:`tri.schedule.tree_to_engine.analyse_building`); the deviation of
 each panel (everything it feeds included) is the engine's own. The
 optimum for a pair of targets is then a minimum over this list.
@@ -29,10 +40,17 @@ from dataclasses import dataclass
 from pathlib import Path
 
 import numpy as np
-from rebalance_reference import arrangements, within_reach
+from rebalance_reference import within_reach
+from rebalance_wired_reference import (
+    block_arrangements,
+    blocks_of,
+    buildable,
+    rail_options,
+    schedule_at,
+)
 
 from tri.schedule.model import Schedule
-from tri.schedule.slots import slot_phases
+from tri.schedule.slots import PHASES, pole_phases
 from tri.schedule.tree import ScheduleTree, with_schedules
 from tri.schedule.tree_to_engine import analyse_building
 
@@ -45,30 +63,71 @@ class PanelCases:
     relocations: list[int]
 
 
+def _free_blocks(schedule: Schedule) -> list[tuple[int, ...]]:
+    """The blocks that may move: unlocked placed breakers, a shared-neutral group only whole."""
+    circuits = schedule.circuits
+    free = [i for i, c in enumerate(circuits) if c.is_placed and not c.locked]
+    held = {c.shared_neutral for c in circuits if c.locked and c.shared_neutral is not None}
+    free = [i for i in free if circuits[i].poles > 1 or circuits[i].shared_neutral not in held]
+    return blocks_of(schedule, free)
+
+
+def _ordered(schedule: Schedule, block: tuple[int, ...]) -> bool:
+    """The order of a block's phases matters: a group, or a breaker with one load per leg."""
+    return len(block) > 1 or schedule.circuits[block[0]].has_legs
+
+
+def _key(schedule: Schedule, block: tuple[int, ...], phases: tuple[int, ...]):
+    """What a block's phases mean electrically: in pole order when wired, else as a set."""
+    return tuple(phases) if _ordered(schedule, block) else frozenset(phases)
+
+
+def _slot_cases(schedule: Schedule, blocks: list[tuple[int, ...]]) -> dict[tuple, tuple]:
+    """Two-column panel: every arrangement of the blocks (module notes), fewest moves per case."""
+    firsts = block_arrangements(schedule, blocks)
+    firsts = firsts[buildable(schedule, blocks, firsts)]
+    firsts = within_reach(schedule, [b[0] for b in blocks], firsts)
+    circuits = schedule.circuits
+    rc = schedule.panel.right_column
+    poles = [sum(circuits[i].poles for i in b) for b in blocks]
+    best: dict[tuple, tuple] = {}
+    for row in firsts:
+        key = tuple(
+            _key(schedule, b, pole_phases(int(s), n, rc))
+            for b, s, n in zip(blocks, row, poles, strict=True)
+        )
+        moved = sum(1 for b, s in zip(blocks, row, strict=True) if circuits[b[0]].slot != int(s))
+        if key not in best or moved < best[key][0]:
+            best[key] = (moved, schedule_at(schedule, blocks, row))
+    return best
+
+
+def _rail_cases(schedule: Schedule, blocks: list[tuple[int, ...]]) -> dict[tuple, tuple]:
+    """Rail board: every phases of every block (:func:`rail_options`), a changed block one move."""
+    circuits = schedule.circuits
+    now = [
+        _key(schedule, b, tuple(p for i in b for p in (circuits[i].phases or ()))) for b in blocks
+    ]
+    best: dict[tuple, tuple] = {}
+    for plan in itertools.product(*(rail_options(schedule, b) for b in blocks)):
+        key = tuple(_key(schedule, b, ph) for b, ph in zip(blocks, plan, strict=True))
+        out = schedule
+        for b, ph in zip(blocks, plan, strict=True):
+            for k, i in enumerate(b):
+                own = ph if len(b) == 1 else (ph[k],)
+                out = out.with_circuit(i, out.circuits[i].on_phases(own))
+        best[key] = (sum(1 for a, n in zip(key, now, strict=True) if a != n), out)
+    return best
+
+
 def panel_cases(schedule: Schedule) -> PanelCases:
     """Every electrically distinct arrangement of a panel with its fewest relocations."""
-    free = [i for i, c in enumerate(schedule.circuits) if c.is_placed and not c.locked]
-    slots = within_reach(schedule, free, arrangements(schedule, free))
-    rc = schedule.panel.right_column
-    best: dict[tuple, tuple[int, np.ndarray]] = {}
-    for row in slots:
-        key = tuple(
-            frozenset(slot_phases(int(s), schedule.circuits[i].poles, rc))
-            for s, i in zip(row, free, strict=True)
-        )
-        moved = sum(
-            1 for s, i in zip(row, free, strict=True) if schedule.circuits[i].slot != int(s)
-        )
-        if key not in best or moved < best[key][0]:
-            best[key] = (moved, row)
-    schedules, counts = [], []
-    for moved, row in best.values():
-        out = schedule
-        for s, i in zip(row, free, strict=True):
-            out = out.with_circuit(i, out.circuits[i].at_slot(int(s)))
-        schedules.append(out)
-        counts.append(moved)
-    return PanelCases(schedules, counts)
+    blocks = _free_blocks(schedule)
+    if schedule.panel.layout == PHASES:
+        best = _rail_cases(schedule, blocks)
+    else:
+        best = _slot_cases(schedule, blocks)
+    return PanelCases([b[1] for b in best.values()], [b[0] for b in best.values()])
 
 
 @dataclass(frozen=True)

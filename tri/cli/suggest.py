@@ -94,9 +94,11 @@ def _number(option: str, text: str | None, what: str, lo: float, hi: float) -> f
     return value
 
 
-def _options(args: argparse.Namespace) -> Any:
-    from tri.rebalance import SuggestOptions
-
+def search_numbers(
+    args: argparse.Namespace,
+) -> tuple[float | None, float | None, float, int | None]:
+    """``--target`` [%], ``--neutral-max`` [A], ``--time-limit`` [s] and ``--max-moves``,
+    checked (a :class:`CliError` naming the option otherwise); shared with buildings."""
     target = _number("--target", args.target, "a percentage", 0.0, 200.0)
     neutral = _number("--neutral-max", args.neutral_max, "a current in amperes", 0.0, 1e6)
     if neutral is not None and neutral <= 0:
@@ -112,6 +114,13 @@ def _options(args: argparse.Namespace) -> Any:
             raise CliError(f"--max-moves {args.max_moves}: expected a whole number") from None
         if moves < 0:
             raise CliError(f"--max-moves {args.max_moves}: expected 0 or more")
+    return target, neutral, time_limit, moves
+
+
+def _options(args: argparse.Namespace) -> Any:
+    from tri.rebalance import SuggestOptions
+
+    target, neutral, time_limit, moves = search_numbers(args)
     if args.relayout and (target is not None or moves is not None):
         raise CliError("--relayout re-lays out everything; it takes no --target or --max-moves")
     return SuggestOptions(

@@ -70,25 +70,11 @@ def _refuse_single_panel_options(args: argparse.Namespace) -> None:
 
 
 def _options(args: argparse.Namespace) -> Any:
-    from tri.cli.suggest import MAX_TIME_LIMIT_S, _number
+    from tri.cli.suggest import _number, search_numbers
     from tri.rebalance.tree_solve import TreeOptions
 
-    target = _number("--target", args.target, "a percentage", 0.0, 200.0)
+    target, neutral, time_limit, moves = search_numbers(args)
     child = _number("--child-target", args.child_target, "a percentage", 0.0, 200.0)
-    neutral = _number("--neutral-max", args.neutral_max, "a current in amperes", 0.0, 1e6)
-    if neutral is not None and neutral <= 0:
-        raise CliError(f"--neutral-max {args.neutral_max}: expected a current above 0 A")
-    time_limit = _number("--time-limit", args.time_limit, "seconds", 0.0, MAX_TIME_LIMIT_S)
-    if time_limit is None or time_limit <= 0:
-        raise CliError(f"--time-limit {args.time_limit}: expected a number of seconds above 0")
-    moves = None
-    if args.max_moves is not None:
-        try:
-            moves = int(args.max_moves)
-        except ValueError:
-            raise CliError(f"--max-moves {args.max_moves}: expected a whole number") from None
-        if moves < 0:
-            raise CliError(f"--max-moves {args.max_moves}: expected 0 or more")
     return TreeOptions(
         target_pct=target,
         child_target_pct=child,

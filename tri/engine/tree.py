@@ -5,7 +5,9 @@ Every panel's own circuits are computed as in :mod:`tri.engine.analysis`
 total line currents (its own plus its children's) become the currents of
 its parent's feeder circuit: unchanged without a transformer (the child's
 neutral current returns on the parent's neutral), or through the
-transformer sequence by sequence (:mod:`tri.engine.transformer`). Voltages
+transformer sequence by sequence (:mod:`tri.engine.transformer`; a
+high-leg delta on either side by :mod:`tri.engine.centre_tap`: its frame,
+and a centre-tapped secondary as the plain delta it works as). Voltages
 go the other way, root first: the root's from its supply (or nominal), each
 child's from its parent's panel voltage less the feeder and transformer
 drops,
@@ -34,10 +36,15 @@ References
 from __future__ import annotations
 
 from collections.abc import Callable
-from dataclasses import dataclass
 
 import numpy as np
 
+from tri.engine.centre_tap import (
+    shifted_current_factors,
+    shifted_voltage_factors,
+    tap_equivalent,
+    tapped_voltages,
+)
 from tri.engine.harmonics import order_currents, rms
 from tri.engine.inputs import THREE_PHASE, UNPLACED, CircuitArrays
 from tri.engine.phasors import PHASE_UNIT, connection_masks, element_currents, incidence
@@ -51,100 +58,11 @@ from tri.engine.transformer import (
 )
 from tri.engine.tree_inputs import PackedTree
 from tri.engine.tree_rows import tree_wiring
+from tri.engine.tree_solution import Spectra, TreeSolution
 from tri.engine.tree_va import roll_up_phase_va
 
 #: Called after each iteration with (iteration, largest voltage change [pu]).
 Progress = Callable[[int, float], None]
-
-
-@dataclass(frozen=True, eq=False)
-class Spectra:
-    """Line, neutral and sizing (continuous-weighted) spectra of N nodes.
-
-    Attributes
-    ----------
-    phase : complex ndarray, shape (N, 3, H)
-        Line currents, the fundamental first [A].
-    neutral : complex ndarray, shape (N, H)
-        Neutral current [A].
-    design : complex ndarray, shape (N, 3, H)
-        Line currents with continuous loads at the continuous factor [A].
-    """
-
-    phase: np.ndarray
-    neutral: np.ndarray
-    design: np.ndarray
-
-
-@dataclass(frozen=True, eq=False)
-class TreeSolution:
-    """The solved tree as arrays over its N nodes.
-
-    Attributes
-    ----------
-    orders : int ndarray, shape (H,)
-        Orders, the fundamental first.
-    own : Spectra
-        Each node's own circuits only (kept so that a changed node can be
-        rolled up again without recomputing the others).
-    total : Spectra
-        Own circuits plus everything fed from the node, in its own frame.
-    fed : Spectra
-        What each node draws from its parent's feeder circuit, in the
-        parent's frame (zero for the root).
-    v_phase : complex ndarray, shape (N, 3)
-        Panel phase-to-neutral voltages, each in its own frame [V].
-    circuit_current_a, circuit_rms_a : float ndarray, shape (N, n_max)
-        Per circuit row [A]; a feeder row carries the largest of its three
-        line currents.
-    phase_va : float ndarray, shape (N, 3)
-        Schedule VA per phase, children included [VA]: a child without a
-        transformer adds its own phase VA phase by phase; through a
-        transformer its total VA is shared among the primary phases in
-        proportion to their fundamental currents (a bookkeeping convention).
-    total_va, nonlinear_va : float ndarray, shape (N,)
-        Placed connected VA and its non-linear part, children included [VA].
-    three_pole_triplens : bool ndarray, shape (N,)
-        A 3-pole circuit's triplens were removed somewhere in the subtree.
-    scale : float ndarray, shape (N,)
-        Sum of circuit RMS currents of the subtree [A] (round-off scale).
-    unplaced_count : int ndarray, shape (N,)
-        The node's own unplaced circuits with a load.
-    delta_circulating_a : float ndarray, shape (N,)
-        RMS current circulating in a delta primary feeding the node [A]
-        (0 without one).
-    breaker_pole_spectrum : complex ndarray, shape (N, nb, 3, H), or None
-        Line current of each breaker of each node on each phase [A]
-        (:func:`tri.engine.legs.breaker_pole_spectra`, the node's own rows;
-        a feeder row's breaker carries what its child draws); None unless
-        some node numbers its breakers.
-    shared_neutral_spectrum : complex ndarray, shape (N, G, H), or None
-        Current in each shared neutral of each node [A]; None unless some
-        node has one.
-    iterations : int
-        Sweeps of the iterated solution (0 when not iterated).
-    converged : bool
-        False if the iteration stopped at its limit.
-    """
-
-    orders: np.ndarray
-    own: Spectra
-    total: Spectra
-    fed: Spectra
-    v_phase: np.ndarray
-    circuit_current_a: np.ndarray
-    circuit_rms_a: np.ndarray
-    phase_va: np.ndarray
-    total_va: np.ndarray
-    nonlinear_va: np.ndarray
-    three_pole_triplens: np.ndarray
-    scale: np.ndarray
-    unplaced_count: np.ndarray
-    delta_circulating_a: np.ndarray
-    iterations: int
-    converged: bool
-    breaker_pole_spectrum: np.ndarray | None = None
-    shared_neutral_spectrum: np.ndarray | None = None
 
 
 def nominal_voltages(tree: PackedTree) -> np.ndarray:
@@ -180,6 +98,12 @@ def own_fundamental(circuits: CircuitArrays, v_phase: np.ndarray) -> Spectra:
     return Spectra(lines[..., None], neutral[..., None], lines[..., None])
 
 
+def _frame_shift(tree: PackedTree) -> np.ndarray:
+    """``Δ = θ_parent − θ_node`` of every node's link (:mod:`tri.engine.centre_tap`) [rad]."""
+    parent = np.maximum(tree.parent, 0)
+    return np.where(tree.parent >= 0, tree.frame_rad[parent] - tree.frame_rad, 0.0)
+
+
 def roll_up(tree: PackedTree, own: Spectra, orders_all: np.ndarray) -> tuple[Spectra, Spectra]:
     """Totals and feeder currents of every node, deepest level first.
 
@@ -197,13 +121,19 @@ def roll_up(tree: PackedTree, own: Spectra, orders_all: np.ndarray) -> tuple[Spe
     """
     total = [own.phase.copy(), own.neutral.copy(), own.design.copy()]
     fed = [np.zeros_like(own.phase), np.zeros_like(own.neutral), np.zeros_like(own.design)]
-    factors = current_factors(tree.lag_rad, tree.ratio, tree.zero_pass, orders_all)
+    factors = shifted_current_factors(
+        current_factors(tree.lag_rad, tree.ratio, tree.zero_pass, orders_all),
+        _frame_shift(tree),
+        orders_all,
+    )
     for idx in reversed(tree.levels[1:]):
         tx = tree.has_tx[idx]
         parents = tree.parent[idx]
+        tapped = tx & tree.high_leg[idx]
         for phase_k, neutral_k in ((0, 1), (2, None)):
             child = total[phase_k][idx]
-            through = transfer_currents(child, factors[idx])
+            winding = tap_equivalent(child, tapped, tree.tap[idx])  # a centre-tapped secondary
+            through = transfer_currents(winding, factors[idx])
             lines = np.where(tx[:, None, None], through, child)
             fed[phase_k][idx] = lines
             np.add.at(total[phase_k], parents, lines)
@@ -237,10 +167,16 @@ def voltages_down(
     if tree.root_z is not None:
         z_ph, z_n = tree.root_z
         v[0] = panel_voltages(tree.root_e, total_fundamental[0], neutral[0], z_ph, z_n)
-    vfac = voltage_factors(tree.lag_rad, tree.ratio, tree.zero_pass)
+    vfac = shifted_voltage_factors(
+        voltage_factors(tree.lag_rad, tree.ratio, tree.zero_pass), _frame_shift(tree)
+    )
     for idx in tree.levels[1:]:
         vp = v[tree.parent[idx]]
-        source = np.where(tree.has_tx[idx, None], transfer_voltages(vp, vfac[idx]), vp)
+        tx = tree.has_tx[idx]
+        secondary = tapped_voltages(
+            transfer_voltages(vp, vfac[idx]), tx & tree.high_leg[idx], tree.tap[idx]
+        )
+        source = np.where(tx[:, None], secondary, vp)
         v[idx] = panel_voltages(
             source,
             total_fundamental[idx],
@@ -356,7 +292,10 @@ def solve_tree(
     wiring = tree_wiring(tree, i_e, oc.circuit_rms_a, fed.phase)
     circulating = np.where(
         tree.delta_primary,
-        delta_circulating_a(total.phase, np.where(tree.has_tx, tree.winding_ratio, 1.0)),
+        delta_circulating_a(
+            tap_equivalent(total.phase, tree.has_tx & tree.high_leg, tree.tap),
+            np.where(tree.has_tx, tree.winding_ratio, 1.0),
+        ),
         0.0,
     )
     return TreeSolution(

@@ -38,12 +38,14 @@ def check_tree(tree: TreeInputs) -> None:
     -----
     Checked: the root has no link and every other node has one to an
     earlier node; a high-leg delta root has no supply (its voltages behind a
-    supply are not modelled, as for a panel alone); no transformer feeds or
-    is fed from a high-leg delta, and a feeder keeps the high leg's phase;
+    supply are not modelled, as for a panel alone); a transformer to a
+    high-leg delta has a delta secondary (the centre tap
+    gives the neutral) and one fed from it no YN primary, and a feeder keeps
+    the high leg's phase;
     feeder rows exist, are 3-pole rows of zero load and feed one child each;
     frequencies agree; without a transformer the child's nominal voltages
     are the parent's; with one, a ``yn`` secondary feeds a 4-wire child and
-    ``d``/``y`` a 3-wire one, and a ``YN`` primary needs a 4-wire parent.
+    ``d``/``y`` a 3-wire one (or a high-leg delta), and a ``YN`` primary needs a 4-wire parent.
     Each node's circuits are checked by :func:`tri.engine.analysis.check_inputs`.
     """
     from tri.engine.analysis import check_inputs
@@ -84,17 +86,20 @@ def check_tree(tree: TreeInputs) -> None:
         if not math.isclose(node.system.frequency_hz, parent.system.frequency_hz):
             raise ValueError(f"node {i}: frequency differs from its parent's")
         tx = link.transformer
-        if tx is not None and (node.system.high_leg is not None or parent.system.high_leg):
+        if tx is not None and node.system.high_leg is not None and tx.group.secondary != "d":
             raise ValueError(
-                f"node {i}: a transformer to or from a high-leg delta panel is not modelled"
+                f"node {i}: a high-leg delta secondary is a centre-tapped delta (a d winding)"
             )
+        if tx is not None and parent.system.high_leg is not None and tx.group.primary == "YN":
+            raise ValueError(f"node {i}: a YN primary on a high-leg delta is not modelled")
         if tx is None:
             if node.system.high_leg != parent.system.high_leg:
                 raise ValueError(f"node {i}: without a transformer its high leg is its parent's")
             if not _same_voltages(node.system, parent.system):
                 raise ValueError(f"node {i}: without a transformer its system is its parent's")
             continue
-        if tx.group.secondary_has_neutral != node.system.has_neutral:
+        centre_tap = node.system.high_leg is not None  # its neutral is the winding's tap
+        if tx.group.secondary_has_neutral != node.system.has_neutral and not centre_tap:
             raise ValueError(f"node {i}: the transformer secondary and the panel's wiring differ")
         if tx.group.primary_needs_neutral and not parent.system.has_neutral:
             raise ValueError(f"node {i}: a YN primary needs a 4-wire parent")

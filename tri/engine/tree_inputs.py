@@ -21,6 +21,7 @@ from dataclasses import dataclass, field, replace
 
 import numpy as np
 
+from tri.engine.centre_tap import frame_angle, tap_phases
 from tri.engine.high_leg import supply_phase_voltages
 from tri.engine.inputs import (
     CircuitArrays,
@@ -141,8 +142,11 @@ class TreeInputs:
 
 
 def line_voltage(system: SystemVoltages) -> float:
-    """Line-to-line magnitude of the engine's nominal phasors [V] (``√3·V_LN`` on wye)."""
-    return system.v_ll if system.v_ln is None else math.sqrt(3.0) * system.v_ln
+    """Line-to-line magnitude of the engine's nominal phasors [V] (``√3·V_LN`` on wye; the
+    winding voltage ``V_LL`` on a high-leg delta, whose ``V_LN`` is half of it)."""
+    if system.v_ln is None or system.high_leg is not None:
+        return system.v_ll
+    return math.sqrt(3.0) * system.v_ln
 
 
 @dataclass(frozen=True, eq=False)
@@ -168,6 +172,13 @@ class PackedTree:
         the high-leg set on a high-leg delta) [V].
     high_leg : bool ndarray, shape (N,)
         The node is a high-leg delta.
+    frame_rad : float ndarray, shape (N,)
+        Angle of the node's nominal positive-sequence phase voltage in its
+        own frame (0 on a wye, ±30° on a high-leg delta:
+        :func:`tri.engine.centre_tap.frame_angle`) [rad].
+    tap : int ndarray, shape (N, 2)
+        The phases at the ends of a high-leg delta's centre-tapped winding
+        (:func:`tri.engine.centre_tap.tap_phases`); 0, 0 elsewhere.
     n_breakers, n_groups : int ndarray, shape (N,)
         Breakers and shared neutrals in each node's own results
         (:func:`tri.engine.tree_rows.wiring_counts`).
@@ -206,6 +217,8 @@ class PackedTree:
     v_ll: np.ndarray
     e_nominal: np.ndarray
     high_leg: np.ndarray
+    frame_rad: np.ndarray
+    tap: np.ndarray
     n_breakers: np.ndarray
     n_groups: np.ndarray
     has_neutral: np.ndarray
@@ -280,6 +293,19 @@ def _link_arrays(nodes: tuple[TreeNode, ...]) -> dict[str, np.ndarray]:
     return out
 
 
+def _voltage_arrays(nodes: tuple[TreeNode, ...]) -> dict[str, np.ndarray]:
+    """Per-node nominal voltages, high leg, frame and centre tap (:class:`PackedTree`)."""
+    e_nominal = np.array([supply_phase_voltages(n.system) for n in nodes], dtype=complex)
+    return {
+        "v_ln": np.array([n.system.v_ln_or_derived for n in nodes], dtype=float),
+        "v_ll": np.array([n.system.v_ll for n in nodes], dtype=float),
+        "e_nominal": e_nominal,
+        "high_leg": np.array([n.system.high_leg is not None for n in nodes], dtype=bool),
+        "frame_rad": frame_angle(e_nominal),
+        "tap": np.array([tap_phases(n.system.high_leg) or (0, 0) for n in nodes], dtype=int),
+    }
+
+
 def pack_tree(tree: TreeInputs) -> PackedTree:
     """Check a tree and turn it into arrays.
 
@@ -342,10 +368,7 @@ def pack_tree(tree: TreeInputs) -> PackedTree:
         parent=parent,
         feeder_row=np.array([-1 if n.link is None else n.link.feeder_row for n in nodes]),
         levels=levels,
-        v_ln=np.array([n.system.v_ln_or_derived for n in nodes], dtype=float),
-        v_ll=np.array([n.system.v_ll for n in nodes], dtype=float),
-        e_nominal=np.array([supply_phase_voltages(n.system) for n in nodes], dtype=complex),
-        high_leg=np.array([n.system.high_leg is not None for n in nodes], dtype=bool),
+        **_voltage_arrays(nodes),
         n_breakers=n_breakers,
         n_groups=n_groups,
         has_neutral=np.array([n.system.has_neutral for n in nodes], dtype=bool),

@@ -48,10 +48,11 @@ import numpy as np
 from tri.rebalance.control import Control
 from tri.rebalance.crossing import budget_floor
 from tri.rebalance.electrical import add_currents, add_neutral_cuts, add_options, decode_options
+from tri.rebalance.exchange import exchange_search
 from tri.rebalance.exhaust import best_plans_within, enumeration_fits
 from tri.rebalance.goal import Goal
 from tri.rebalance.halves import PAIR_LIMIT, halves_fit, plans_below
-from tri.rebalance.harmonic_floor import harmonic_floor, smallest_leftover
+from tri.rebalance.harmonic_floor import floor_and_start
 from tri.rebalance.heuristic import LocalSearch
 from tri.rebalance.lower_bounds import (
     RESOLUTIONS,
@@ -63,6 +64,7 @@ from tri.rebalance.model import Model
 from tri.rebalance.plan_currents import spectra
 from tri.rebalance.plans import Evaluator, Plan
 from tri.rebalance.problem import Problem
+from tri.rebalance.relaxation import relaxed_bound
 from tri.rebalance.slot_model import add_slots
 from tri.rebalance.target import Outcome, neutral_setup, triplen_note
 
@@ -70,6 +72,8 @@ from tri.rebalance.target import Outcome, neutral_setup, triplen_note
 IMPROVE = 1e-7
 #: Relative gap at which a plan counts as proven optimal [-].
 PROVEN_GAP = 1e-6
+#: Shares of the remaining time for the exchanges and for the relaxation, within a budget [-].
+EXCHANGE_SHARE, RELAX_SHARE = 0.3, 0.3
 
 
 class _BalanceSearch:
@@ -285,12 +289,12 @@ class _BalanceSearch:
         """
         if self.done(stop_gap):
             return
-        bound = harmonic_floor(self.pr)
-        if bound is None:
+        got = floor_and_start(self.pr, self.control.stop)
+        if got is None:
             return
+        bound, left = got
         self.lower = max(self.lower, bound)
-        left = smallest_leftover(self.pr)
-        if self.done(stop_gap) or left is None or self.budget < self.pr.n_movable:
+        if self.done(stop_gap) or self.budget < self.pr.n_movable:
             return
         start = np.full(self.pr.n_free, -1)
         start[left.circuits] = left.options
@@ -299,6 +303,29 @@ class _BalanceSearch:
             ls.descend()
             ls.iterate(np.random.default_rng(0), share=0.1)
             self.offer(self.ev.plan(ls.assign))
+
+    def within_budget(self, stop_gap: float) -> None:
+        """With a budget that binds: exchanges that keep the move count, then the relaxation.
+
+        :mod:`tri.rebalance.exchange` finds better plans (no proof);
+        :mod:`tri.rebalance.relaxation` bounds every plan with fractional
+        moves, stopping once the bound closes on the best plan.
+        """
+        c = self.control
+        if self.out.plan is None or self.budget >= self.pr.n_movable:
+            return
+        if not self.done(stop_gap):
+            until = c.elapsed() + EXCHANGE_SHARE * c.remaining()
+            start = self.out.plan.assign
+            self.offer(self.ev.plan(exchange_search(self.pr, self.goal, c, start, until, stop_gap)))
+        if not self.done(stop_gap):
+            until = c.elapsed() + RELAX_SHARE * c.remaining()
+            seen = [self.pr.current_assignment(), self.out.plan.assign]
+            enough = self.best / (1 + stop_gap)
+            bound = relaxed_bound(
+                self.pr, self.budget, seen, enough, stop=lambda: c.stop() or c.elapsed() > until
+            )
+            self.lower = max(self.lower, -math.inf if bound is None else bound)
 
     def done(self, stop_gap: float) -> bool:
         if self.best <= self.lower * (1 + PROVEN_GAP):
@@ -354,6 +381,8 @@ def solve_balance(
     search.cross()
     search.harmonics(stop_gap)
     settled = list_plans and (search.count_out() or search.split_out(stop_gap))
+    if not settled:
+        search.within_budget(stop_gap)
     if not search.done(stop_gap) and not settled:
         while not control.stop() and search.step(stop_gap):
             pass

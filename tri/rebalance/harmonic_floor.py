@@ -47,7 +47,13 @@ the breakers into two groups, list every sum of each group (meeting in the
 middle: ``3^(m/2)`` each for ``m`` breakers), and
 ``Q* = min ||x + y||² = min (||x||² + ||y||² + 2·x·y)`` over all pairs, by
 matrix products in chunks; a relative slack covers round-off. When the
-pairs would be more than :data:`PAIR_LIMIT` the floor is not computed
+pairs would be more than :data:`PAIR_LIMIT`, only the pairs closer than a
+value some choice reaches are looked for (:func:`tri.rebalance.nearest_sums.least_pair`,
+a k-d tree on principal coordinates, exact): the value comes from a
+descent over the harmonic breakers' options (:func:`_descent`), so the
+minimum found, or that value when no pair is below it, is ``Q*`` itself.
+When either list would be longer than :data:`SIDE_LIMIT` (about 20
+harmonic breakers), or the close pairs too many, the floor is not computed
 (None). With many non-linear breakers ``Q*`` tends to zero and the floor
 to ``F``: it matters on small panels.
 """
@@ -55,15 +61,21 @@ to ``F``: it matters on small panels.
 from __future__ import annotations
 
 import math
+from collections.abc import Callable
 from dataclasses import dataclass
 
 import numpy as np
 
+from tri.rebalance.nearest_sums import least_pair
 from tri.rebalance.problem import Problem
 from tri.rebalance.sequence_frame import rotated_of
 
 #: Most pairs of half-sums compared (time and memory of the floor) [-].
 PAIR_LIMIT = 20_000_000
+#: Most half-sums in one list of the pruned search (:mod:`tri.rebalance.nearest_sums`) [-].
+SIDE_LIMIT = 60_000
+#: Random starts of the descent that gives the pruned search its ceiling [-].
+RESTARTS = 40
 #: Entries of one chunk of the pair matrix [-].
 CHUNK = 2_000_000
 #: Relative slack on ``Q*`` for round-off [-].
@@ -140,18 +152,40 @@ def _split(items: list[int], sizes: list[int]) -> tuple[list[int], list[int]]:
     return left, right
 
 
-def smallest_leftover(pr: Problem) -> Leftover | None:
-    """``Q*``: the least ``Σ_p q_p²`` over the harmonic breakers' options [A²] (module notes).
+def _descent(base: np.ndarray, items: list[np.ndarray], restarts: int) -> tuple[float, np.ndarray]:
+    """A choice of one row per item with a small ``||base + Σ rows||²``, and that value.
 
-    None when the pairs would exceed :data:`PAIR_LIMIT`.
+    Best single changes from random starts (seeded: the same every call);
+    the value is reached, so it is at least ``Q*``.
     """
-    base, items, which = _projected(pr)
-    sizes = [len(d) for d in items]
-    left, right = _split(list(range(len(items))), sizes)
-    if math.prod(sizes[j] for j in left) * math.prod(sizes[j] for j in right) > PAIR_LIMIT:
-        return None
-    x = _sums([items[j] for j in left], base.size) + base
-    y = _sums([items[j] for j in right], base.size)
+    rng = np.random.default_rng(0)
+    best, best_pick = math.inf, np.zeros(len(items), dtype=int)
+    for _ in range(restarts):
+        pick = np.array([rng.integers(len(d)) for d in items])
+        z = base + sum((d[k] for d, k in zip(items, pick, strict=True)), np.zeros_like(base))
+        while True:
+            gain, move = 0.0, None
+            for j, d in enumerate(items):
+                trial = z[None, :] - d[pick[j]] + d
+                q = np.einsum("ij,ij->i", trial, trial)
+                k = int(np.argmin(q))
+                if float(z @ z) - q[k] > gain + 1e-12 * max(1.0, float(z @ z)):
+                    gain, move = float(z @ z) - q[k], (j, k)
+            if move is None:
+                break
+            j, k = move
+            z = z - items[j][pick[j]] + items[j][k]
+            pick[j] = k
+        if float(z @ z) < best:
+            best, best_pick = float(z @ z), pick.copy()
+    return best, best_pick
+
+
+def _dense_minimum(x: np.ndarray, y: np.ndarray) -> tuple[float, tuple[int, int], float]:
+    """The least ``||x_i + y_j||²`` over every pair, by matrix products in chunks.
+
+    Returns the least value, its pair and the round-off scale (largest squared norms).
+    """
     xx, yy = np.einsum("ij,ij->i", x, x), np.einsum("ij,ij->i", y, y)
     step = max(1, CHUNK // y.shape[0])
     best, at = math.inf, (0, 0)
@@ -160,26 +194,64 @@ def smallest_leftover(pr: Problem) -> Leftover | None:
         k = int(np.argmin(q))
         if q.flat[k] < best:
             best, at = float(q.flat[k]), (s + k // q.shape[1], k % q.shape[1])
+    return best, at, float(xx.max()) + float(yy.max())
+
+
+def smallest_leftover(pr: Problem, stop: Callable[[], bool] | None = None) -> Leftover | None:
+    """``Q*``: the least ``Σ_p q_p²`` over the harmonic breakers' options [A²] (module notes).
+
+    None when the lists would exceed :data:`SIDE_LIMIT` with more than
+    :data:`PAIR_LIMIT` pairs, when the pruned search gives up, or when
+    ``stop`` fires.
+    """
+    base, items, which = _projected(pr)
+    sizes = [len(d) for d in items]
+    left, right = _split(list(range(len(items))), sizes)
+    n_left, n_right = (math.prod(sizes[j] for j in g) for g in (left, right))
+    if n_left * n_right > PAIR_LIMIT and max(n_left, n_right) > SIDE_LIMIT:
+        return None
+    x = _sums([items[j] for j in left], base.size) + base
+    y = _sums([items[j] for j in right], base.size)
     picked = np.zeros(len(items), dtype=int)
-    for group, index in ((left, at[0]), (right, at[1])):
-        if group:
-            picked[group] = np.unravel_index(index, [sizes[j] for j in group])
+    if n_left * n_right <= PAIR_LIMIT:
+        best, at, scale = _dense_minimum(x, y)
+    else:
+        ceiling, picked = _descent(base, items, RESTARTS)
+        near = least_pair(x, y, ceiling, stop=stop)
+        if near is None:
+            return None
+        best, at = near.value, (near.i, near.j)
+        scale = float(np.einsum("ij,ij->i", x, x).max() + np.einsum("ij,ij->i", y, y).max())
+    if at[0] >= 0:
+        for group, index in ((left, at[0]), (right, at[1])):
+            if group:
+                picked[group] = np.unravel_index(index, [sizes[j] for j in group])
     options = np.array([pr.starts[which[j]] + picked[j] for j in range(len(items))], dtype=int)
-    q_min = max(0.0, best - SLACK * (float(xx.max()) + float(yy.max())))
+    q_min = max(0.0, best - SLACK * scale)
     return Leftover(q_min, np.array(which, dtype=int), options)
 
 
-def harmonic_floor(pr: Problem) -> float | None:
-    """The lemma's bound on every plan's largest phase RMS current [A], worst case first.
+def floor_and_start(
+    pr: Problem, stop: Callable[[], bool] | None = None
+) -> tuple[float, Leftover] | None:
+    """The lemma's bound on every plan's largest phase RMS current [A], and the own case's ``Q*``.
 
     Each case's bound holds for that case's value, so the largest of them
     bounds the worst case's. None when some case's ``Q*`` is too costly.
     """
-    best = 0.0
+    best, own = 0.0, None
     for view in pr.views():
-        left = smallest_leftover(view)
+        left = smallest_leftover(view, stop)
         if left is None:
             return None
+        own = left if own is None else own
         f, q = view.floor_a, left.q_min
         best = max(best, 0.5 * (f + math.sqrt(f * f + 2.0 * q / 3.0)))
-    return best
+    assert own is not None
+    return best, own
+
+
+def harmonic_floor(pr: Problem, stop: Callable[[], bool] | None = None) -> float | None:
+    """The lemma's bound on every plan's largest phase RMS current [A] (:func:`floor_and_start`)."""
+    got = floor_and_start(pr, stop)
+    return None if got is None else got[0]

@@ -150,6 +150,9 @@ class Problem:
     symmetric : bool
         The phases are 120° apart (not a high-leg delta): the floor and the
         bounds built on ``J_h`` hold (module notes).
+    wired_mask : bool ndarray, shape (F,), or None
+        Which free circuits are wired units, for a problem whose units belong
+        to several schedules (a building's node view); None: read off ``units``.
     """
 
     schedule: Schedule
@@ -177,10 +180,13 @@ class Problem:
     others: tuple[Problem, ...] = ()
     units: tuple[Unit, ...] = ()
     symmetric: bool = True
+    wired_mask: np.ndarray | None = None
 
     @cached_property
     def wired(self) -> np.ndarray:
         """Bool per free circuit: a wired unit, whose options are orders of phases [-]."""
+        if self.wired_mask is not None:
+            return self.wired_mask
         if not self.units:
             return np.zeros(self.n_free, dtype=bool)
         return np.array([u.wired for u in self.units], dtype=bool)

@@ -236,8 +236,14 @@ class Suggestion:
     def relocations(self) -> int:
         """Relocations (new circuits placed are not counted) [-]: breakers relocated, a
         shared-neutral group moved together counting once (:mod:`tri.rebalance.units`)."""
-        groups = {m.group for m in self.moves if m.group is not None and not m.is_placement}
-        return len(groups) + sum(1 for m in self.moves if not m.is_placement and m.group is None)
+        return relocation_count(self.moves)
+
+
+def relocation_count(moves: tuple[Move, ...] | list[Move]) -> int:
+    """Relocations among ``moves`` [-]: breakers relocated, a shared-neutral group moved
+    together counting once (:mod:`tri.rebalance.units`); placements are not counted."""
+    groups = {m.group for m in moves if m.group is not None and not m.is_placement}
+    return len(groups) + sum(1 for m in moves if not m.is_placement and m.group is None)
 
 
 def apply_moves(schedule: Schedule, moves: tuple[Move, ...] | list[Move]) -> Schedule:

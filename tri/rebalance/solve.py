@@ -52,7 +52,6 @@ from tri.rebalance.results import CaseResult, Figures, Status, Suggestion, apply
 from tri.rebalance.target import Outcome, solve_target
 from tri.schedule.model import Schedule
 from tri.schedule.to_scenarios import analyse_cases
-from tri.schedule.wiring import single_panel_refusal
 from tri.words import plural
 
 
@@ -246,15 +245,11 @@ def suggest(
     Raises
     ------
     ValueError
-        For options the panel cannot take (a neutral limit on a 3-wire system), or
-        wiring it cannot honour yet (:func:`tri.schedule.wiring.single_panel_refusal`).
+        For options the panel cannot take (a neutral limit on a 3-wire system).
     Cancelled
         When the cancel hook fired.
     """
     opts = options or SuggestOptions()
-    refusal = single_panel_refusal(schedule)  # wiring it cannot honour yet (issue 12)
-    if refusal:
-        raise ValueError("; ".join(refusal))
     if opts.neutral_max_a is not None and not schedule.system.has_neutral:
         raise ValueError("a neutral limit needs a system with a neutral (this one is 3-wire)")
     control = Control(opts.time_limit_s, progress, cancel)

@@ -38,6 +38,7 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
+from tri.rebalance.case_alone import case_alone_step
 from tri.rebalance.control import Control
 from tri.rebalance.crossing import changes_lower_bound
 from tri.rebalance.electrical import decode_options
@@ -56,6 +57,7 @@ from tri.rebalance.target_model import (
     Learnt,
     build_target_model,
 )
+from tri.words import plural
 
 
 @dataclass
@@ -133,6 +135,7 @@ class _TargetSearch:
         self.learnts = [Learnt() for _ in self.views]
         self.learnt = self.learnts[0]
         self.counted_out: set[int] = set()
+        self.alone_tried = pr.n_cases == 1
         self.slice_s = 0.5
         self.neutral = [neutral_setup(v, goal) for v in self.views]
         self.nlim, self.ndirs = self.neutral[0]
@@ -257,6 +260,24 @@ class _TargetSearch:
         plan = self.ev.plan(ls.assign)
         return plan if plan is not None and plan.relocations <= budget else None
 
+    def case_alone(self, budget: int) -> None:
+        """Each case's program alone (:mod:`tri.rebalance.case_alone`) raises the bound."""
+        step = case_alone_step(
+            self.views, self.learnts, self.neutral, self.squares, self.target, budget, self.control
+        )
+        self.out.solver_calls += step.calls
+        self.lower = max(self.lower, step.lower)
+        if step.impossible_in is not None:
+            within = (
+                "in any arrangement"
+                if budget >= self.pr.n_movable
+                else f"with at most {plural(budget, 'relocation')}"
+            )
+            self.out.notes.append(
+                f"proven on the case {step.impossible_in} alone: no plan {within} "
+                "meets the target in it"
+            )
+
     def cross(self) -> None:
         """Step 0: the crossing bound (:mod:`tri.rebalance.crossing`) raises the lower bound."""
         known = self.cap + 1 if self.best_k is None else self.best_k
@@ -278,6 +299,10 @@ class _TargetSearch:
                     break
                 if decided is True:
                     continue
+            if not self.alone_tried:
+                self.alone_tried = True
+                self.case_alone(budget)
+                continue
             if not self.ask_model(budget):
                 break
         out = self.out

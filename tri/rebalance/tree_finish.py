@@ -1,7 +1,9 @@
 """The building plan carried out: every panel's moves and work order, the engine before and after.
 
-The plan of :mod:`tri.rebalance.tree_loop` is turned into moves by slot in
-each panel (the single-panel work order, :func:`tri.rebalance.workorder.order_work`),
+The plan of :mod:`tri.rebalance.tree_loop` is turned into moves in each
+panel by the single-panel rebalancer's own :func:`tri.rebalance.moves.moves_for`
+(a shared-neutral group's breakers in one step, a wired breaker's phases in
+pole order; the work order of :func:`tri.rebalance.workorder.order_work`),
 carried out on every panel's schedule, and the engine is run on the
 building after the moves (:func:`tri.schedule.tree_to_engine.analyse_building`),
 in every case (the connected load and each scenario of the building): those
@@ -15,8 +17,7 @@ from typing import Any
 
 import numpy as np
 
-from tri.rebalance.plans import Plan
-from tri.rebalance.problem import Problem
+from tri.rebalance.moves import moves_for
 from tri.rebalance.results import CaseResult, Figures, Move, apply_moves
 from tri.rebalance.tree_loop import TreePlan, TreeSearch
 from tri.rebalance.tree_problem import TreeProblem
@@ -27,7 +28,7 @@ from tri.rebalance.tree_results import (
     TreeStatus,
     TreeSuggestion,
 )
-from tri.rebalance.workorder import WorkStep, order_work, rail_steps
+from tri.rebalance.workorder import WorkStep
 from tri.schedule.model import Schedule
 from tri.schedule.tree import ScheduleTree, with_schedules
 from tri.schedule.tree_to_engine import analyse_building
@@ -44,31 +45,6 @@ def analyse_cases(tree: ScheduleTree, case_names: tuple[str, ...]) -> tuple[Any,
     )
 
 
-def panel_moves(pr: Problem, plan: Plan, schedule: Schedule) -> tuple[list[Move], list[WorkStep]]:
-    """Moves (in work order) and the steps of one panel's plan."""
-    circuits = schedule.circuits
-    moves: dict[int, Move] = {}
-    if pr.slots:
-        changing = {}
-        for idx, slot in plan.arrangement.first_slot.items():
-            c = circuits[idx]
-            if c.slot != slot:
-                changing[idx] = slot
-                new = schedule.placed(c.at_slot(slot))
-                moves[idx] = Move(idx, c.name, c.poles, c.slot, slot, c.phases, new.phases)
-        steps = order_work(schedule, changing)
-    else:
-        changed = []
-        for i, idx in enumerate(pr.free.tolist()):
-            c = circuits[idx]
-            ph = pr.phases[int(plan.assign[i])]
-            if c.phases is None or set(c.phases) != set(ph):
-                changed.append(idx)
-                moves[idx] = Move(idx, c.name, c.poles, None, None, c.phases, tuple(ph))
-        steps = rail_steps(schedule, changed)
-    return [moves[s.circuit_index] for s in steps if s.action != "take-out"], steps
-
-
 def _carry_out(
     tree: ScheduleTree, tp: TreeProblem, plan: TreePlan | None
 ) -> tuple[list[Schedule], Work]:
@@ -79,7 +55,7 @@ def _carry_out(
         for k, node in enumerate(tp.nodes):
             local = plan.plans[k]
             if local is not None:
-                mv, st = panel_moves(tp.problems[k], local, schedules[node])
+                mv, st = moves_for(tp.problems[k], local)
                 if mv:
                     work[node] = (mv, st)
                     schedules[node] = apply_moves(schedules[node], mv)

@@ -5,8 +5,11 @@ the panel whose balance is asked for (the root, or a panel named by the
 user) and the search covers it and every panel below it. Each panel is
 turned into the single-panel arrays (:func:`tri.rebalance.problem.build_problem`):
 its free circuits (placed and not locked; a feeder breaker is one of them,
-with no load of its own), their options and what each option adds to the
-panel's own line currents, order by order.
+with no load of its own), gathered into the single panel's units
+(:mod:`tri.rebalance.units`: a shared-neutral group is one, a breaker with
+one load per leg takes orders of phases, nothing to neutral on a high leg,
+a circuit behind a 2-pole RCD on its phase), their options and what each
+option adds to the panel's own line currents, order by order.
 
 How a panel's own currents reach the panels above it is the engine's
 roll-up (:func:`tri.engine.tree.roll_up`): unchanged along a feeder, or
@@ -65,8 +68,7 @@ import numpy as np
 from tri.engine.harmonics import rms
 from tri.engine.tree_inputs import pack_tree
 from tri.engine.unbalance import deviation_rate_pct
-from tri.rebalance.plan_currents import floor_of
-from tri.rebalance.problem import WINDOW_TYPES, Problem, build_problem
+from tri.rebalance.problem import Problem, build_problem
 from tri.rebalance.tree_transfer import rolled_up, transfer_matrices
 from tri.schedule.model import Schedule
 from tri.schedule.to_scenarios import CONNECTED
@@ -77,8 +79,6 @@ from tri.words import plural
 
 #: Largest size of the option-by-panel current table (complex numbers) [-].
 MAX_TABLE = 20_000_000
-#: "No limit" in the capacity arrays of a node view [-].
-_UNLIMITED = np.iinfo(np.int32).max // 4
 
 
 def subtree(tree: ScheduleTree, top: int) -> list[int]:
@@ -256,54 +256,11 @@ class TreeProblem:
         return lim is None or bool(np.all(self.case_service_neutral_a(assign) <= lim * (1 + tol)))
 
     def node_view(self, k: int) -> Problem:
-        """Node ``k`` as one panel whose free circuits are every free circuit below it.
+        """Node ``k`` as one panel whose free circuits are every free circuit below it
+        (:func:`tri.rebalance.tree_view.node_view`)."""
+        from tri.rebalance.tree_view import node_view
 
-        Its options are the global block ``offsets[k]:offsets[ends[k]]`` in
-        order, its currents ``B_k`` and ``C_ok`` (module notes); it has no
-        slot geometry (capacities unlimited) and no neutral quantities.
-        """
-        end = int(self.ends[k])
-        o0, o1 = int(self.offsets[k]), int(self.offsets[end])
-        c0, c1 = int(self.circuit_offsets[k]), int(self.circuit_offsets[end])
-        probs = self.problems[k:end]
-        starts = self.starts[c0 : c1 + 1] - o0
-        owner = self.owner[o0:o1] - c0
-        current = np.concatenate([pr.current for pr in probs])
-        offs = np.repeat(self.offsets[k:end] - o0, [pr.n_free for pr in probs])
-        current = np.where(current >= 0, current + offs, -1)
-        h = self.orders.size
-        n_opt = o1 - o0
-        view = Problem(
-            schedule=self.tree.panels[self.nodes[k]].schedule,
-            free=np.arange(c1 - c0),
-            movable=np.concatenate([pr.movable for pr in probs]).astype(bool),
-            poles=np.concatenate([pr.poles for pr in probs]).astype(int),
-            starts=starts.astype(int),
-            owner=owner.astype(int),
-            kind=np.concatenate([pr.kind for pr in probs]).astype(int),
-            phases=tuple(ph for pr in probs for ph in pr.phases),
-            current=current.astype(int),
-            orders=self.orders,
-            contrib=self.contrib[o0:o1, k],
-            ncontrib=np.zeros((n_opt, h), dtype=complex),
-            base=self.base[k],
-            nbase=np.zeros(h, dtype=complex),
-            has_neutral=False,
-            geometry=None,
-            use_cells=np.concatenate([pr.use_cells for pr in probs]).astype(int),
-            use_window=np.zeros((n_opt, WINDOW_TYPES), dtype=int),
-            cap_phase=np.full(3, _UNLIMITED, dtype=int),
-            cap_window=np.full(WINDOW_TYPES, _UNLIMITED, dtype=int),
-        )
-        v = view.base + view.contrib[view.current_assignment()].sum(axis=0)
-        view = replace(view, floor_a=floor_of(v, self.orders), case_names=self.case_names[:1])
-        if not self.others:
-            return view
-        return replace(
-            view,
-            case_names=self.case_names,
-            others=tuple(o.node_view(k) for o in self.others),
-        )
+        return node_view(self, k)
 
 
 def _shape(tree: ScheduleTree, nodes: list[int]) -> tuple[np.ndarray, np.ndarray]:

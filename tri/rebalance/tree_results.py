@@ -5,7 +5,7 @@ from __future__ import annotations
 from dataclasses import dataclass
 from typing import Literal
 
-from tri.rebalance.results import CaseResult, Figures, Move
+from tri.rebalance.results import CaseResult, Figures, Move, relocation_count
 from tri.rebalance.workorder import WorkStep
 from tri.schedule.model import Schedule
 from tri.schedule.tree import ScheduleTree
@@ -90,8 +90,8 @@ class PanelPlan:
 
     @property
     def relocations(self) -> int:
-        """Breakers relocated in this panel [-]."""
-        return sum(1 for m in self.moves if not m.is_placement)
+        """Relocations in this panel [-]: a shared-neutral group moved as one counts once."""
+        return relocation_count(self.moves)
 
 
 @dataclass(frozen=True)
@@ -184,7 +184,7 @@ class TreeSuggestion:
 
     @property
     def relocations(self) -> int:
-        """Breakers relocated in all the panels [-]."""
+        """Relocations in all the panels (a shared-neutral group moved as one counts once) [-]."""
         return sum(p.relocations for p in self.panels)
 
     @property

@@ -37,16 +37,19 @@ from dataclasses import dataclass
 import numpy as np
 
 from tri.rebalance.control import CancelHook, Control, ProgressCallback
+from tri.rebalance.moves import unit_notes
 from tri.rebalance.options import DEFAULT_TARGET_PCT, DEFAULT_TIME_LIMIT_S, cases_text
 from tri.rebalance.tree_finish import analyse_cases, finish
 from tri.rebalance.tree_loop import TreeSearch
 from tri.rebalance.tree_model import TreeModelParts
-from tri.rebalance.tree_problem import TreeProblem, build_tree_problem, subtree
+from tri.rebalance.tree_problem import (
+    TreeProblem,
+    build_tree_problem,
+    subtree,
+    tree_free_indices,
+)
 from tri.rebalance.tree_results import TreeStatus, TreeSuggestion
-from tri.schedule.model import Schedule
 from tri.schedule.tree import ScheduleTree
-from tri.schedule.validate import circuit_where
-from tri.schedule.wiring import building_refusal, rebalancer_refusal
 from tri.words import plural
 
 
@@ -145,42 +148,6 @@ def find_service(tree: ScheduleTree, name: str | None) -> int:
     return hits[0]
 
 
-def wired_refusal(shown: str, schedule: Schedule) -> list[str]:
-    """Panels as wired that the building search cannot move correctly yet, located.
-
-    The building search (:mod:`tri.rebalance.tree_problem`, ``tree_model``)
-    moves each breaker as one load on one set of phases and places it on a
-    balanced wye; it does not yet keep a breaker's legs or a shared-neutral
-    group together, nor 120 V circuits off a high leg. The roll-up itself
-    carries such panels (:mod:`tri.engine.tree_rows`); the search refuses
-    them here whatever the single-panel rebalancer accepts, rather than
-    propose a plan that cannot be built. A right column read C-B-A and a
-    reach limit (``[panel] max_row_shift``) are honoured, not refused: every
-    panel's slots, windows and reach are the single-panel rebalancer's
-    (:mod:`tri.rebalance.geometry`, :mod:`tri.rebalance.slot_model`,
-    :mod:`tri.rebalance.reach_model`, :mod:`tri.rebalance.realise`).
-    """
-    out = []
-    if schedule.panel.effective_high_leg is not None:
-        out.append(
-            f'{shown}: [panel] system = "{schedule.panel.system}": high-leg delta panels are '
-            "not yet supported by the building rebalancer"
-        )
-    kinds = (
-        ("breakers with a neutral or one load per leg", lambda c: c.has_legs),
-        ("shared-neutral groups", lambda c: c.shared_neutral is not None),
-    )
-    for what, test in kinds:
-        wheres = [circuit_where(c, schedule) for c in schedule.circuits if test(c)]
-        if wheres:
-            more = f" and {len(wheres) - 3} more" if len(wheres) > 3 else ""
-            out.append(
-                f"{shown}: {what} are not yet supported by the building rebalancer "
-                f"({', '.join(wheres[:3])}{more})"
-            )
-    return out
-
-
 def reach_notes(tree: ScheduleTree, nodes: list[int]) -> list[str]:
     """One note per panel of the search with a reach limit: the claims are within it."""
     out = []
@@ -196,24 +163,38 @@ def reach_notes(tree: ScheduleTree, nodes: list[int]) -> list[str]:
     return out
 
 
-def tree_refusal(tree: ScheduleTree, nodes: list[int]) -> list[str]:
-    """What the building rebalancer cannot honour yet, one sentence per panel, naming its file."""
-    out = building_refusal((p.shown, p.schedule) for p in tree.panels)
-    for i in nodes:
-        p = tree.panels[i]
-        out.extend(wired_refusal(p.shown, p.schedule))
-        out.extend(f"{p.shown}: {r}" for r in rebalancer_refusal(p.schedule))
-    return list(dict.fromkeys(out))
+def wiring_notes(tp: TreeProblem) -> list[str]:
+    """What the output must say about each panel's units, naming the panel (its wiring:
+    shared-neutral groups, RCD groups, a high leg; :func:`tri.rebalance.moves.unit_notes`)."""
+    out: list[str] = []
+    for k, node in enumerate(tp.nodes):
+        p, pr = tp.tree.panels[node], tp.problems[k]
+        free = tree_free_indices(p.schedule)
+        out.extend(
+            f"{p.schedule.panel.name} ({p.shown}): {n}" for n in unit_notes(p.schedule, free, pr)
+        )
+    return out
+
+
+def has_groups(tp: TreeProblem) -> bool:
+    """Some panel of the search has a shared-neutral group: its move counts once."""
+    return any(u.group is not None for pr in tp.problems for u in pr.units)
 
 
 def objective_words(
-    tree: ScheduleTree, nodes: list[int], opts: TreeOptions, case_names: tuple[str, ...] = ()
+    tree: ScheduleTree,
+    nodes: list[int],
+    opts: TreeOptions,
+    case_names: tuple[str, ...] = (),
+    groups: bool = False,
 ) -> str:
-    """What the building search minimises, in words (``case_names``: every case judged)."""
+    """What the building search minimises, in words (``case_names``: every case judged;
+    ``groups``: some panel has a shared-neutral group, whose move counts once)."""
     service = tree.panels[nodes[0]]
     cap = f" (at most {opts.max_moves})" if opts.max_moves is not None else ""
     below = len(nodes) - 1
-    text = f"number of breakers relocated{cap} in {service.schedule.panel.name} ({service.shown})"
+    count = "number of relocations" if groups else "number of breakers relocated"
+    text = f"{count}{cap} in {service.schedule.panel.name} ({service.shown})"
     if below:
         text += f" and the {plural(below, 'panel')} below it"
     text += (
@@ -230,6 +211,8 @@ def objective_words(
         )
     if cases:
         text += f", in every case ({cases})"
+    if groups:
+        text += "; a shared-neutral group moved as one block counts as one relocation"
     return (
         text + "; each panel's currents include what it feeds, through feeders and "
         "transformers, every harmonic order, at nominal voltage"
@@ -262,15 +245,11 @@ def suggest_tree(
     Raises
     ------
     ValueError
-        An unknown service panel, or wiring the search cannot honour yet
-        (each sentence names the file; :func:`tree_refusal`).
+        An unknown service panel, or a neutral limit on a 3-wire service.
     """
     opts = options or TreeOptions()
     service = find_service(tree, opts.service)
     nodes = subtree(tree, service)
-    refusal = tree_refusal(tree, nodes)
-    if refusal:
-        raise ValueError("; ".join(refusal))
     top = tree.panels[service]
     if opts.neutral_max_a is not None and not top.schedule.system.has_neutral:
         raise ValueError(
@@ -291,9 +270,10 @@ def suggest_tree(
     cap = movable if opts.max_moves is None else min(opts.max_moves, movable)
     search = TreeSearch(tp, control, cap, cancel=cancel)
     search.notes.extend(reach_notes(tree, nodes))
+    search.notes.extend(wiring_notes(tp))
     status = _search(search, tp, opts)
     final, bound = _status(search, status)
-    words = objective_words(tree, nodes, opts, tp.case_names)
+    words = objective_words(tree, nodes, opts, tp.case_names, has_groups(tp))
     asked = (opts.service_target_pct, opts.below_target_pct, opts.max_moves, opts.neutral_max_a)
     return finish(tree, tp, search, asked, (final, bound), before, words)
 

@@ -14,12 +14,15 @@ JSON (``tri suggest PARENT --format json``)::
                  "target_met", "relocations", "before", "after",
                  "moves": [{"circuit", "from_slot", "to_slot", "from_phases",
                             "to_phases", "poles", "changes_phase",
-                            "set_aside_first"}],
+                            "set_aside_first", "shared_neutral_group"}],
                  "work_order": [{"step", "action", "circuit", "text"}]}],
      "above": [{"file", "panel", "before", "after"}], "notes", "caution",
      "cases", "deciding_case", "deciding_text"}
 
-``before``/``after`` are the engine's figures of the panel in the building
+``shared_neutral_group`` (only on the breakers of a shared-neutral group,
+which move as one block and count as one relocation) names the group;
+``relocations`` counts such a group once. ``before``/``after`` are the
+engine's figures of the panel in the building
 (everything it feeds included): ``phases_rms_a`` by the panel's labels,
 ``neutral_rms_a``, ``max_deviation_pct``, ``limits``. ``stopped`` is
 ``"time limit"``, ``"cancelled"`` or null. ``neutral_max_a`` is the
@@ -45,7 +48,6 @@ import json
 from dataclasses import dataclass
 from typing import Any, cast
 
-from rich import box
 from rich.console import Console, RenderableType
 from rich.rule import Rule
 from rich.table import Table
@@ -55,7 +57,8 @@ from tri.rebalance import Figures, Move, Suggestion, WorkStep
 from tri.rebalance.tree_results import PanelPlan, TreeSuggestion
 from tri.report.data import num
 from tri.report.text_report import to_ascii
-from tri.report.work_order import WorkLine, fixed, work_order
+from tri.report.tree_figures import figures_table
+from tri.report.work_order import GROUP_COUNT, WorkLine, fixed, moves_count_words, work_order
 from tri.schedule.model import Schedule
 from tri.words import plural
 
@@ -89,9 +92,11 @@ def tree_status_words(s: TreeSuggestion) -> str:
             "no move needed"
         )
     if s.status == "optimal":
+        fewer = "fewer breakers relocated"
+        if has_groups(s):
+            fewer = f"fewer relocations ({GROUP_COUNT})"
         return (
-            f"optimal: proven that no plan with fewer breakers relocated {where} meets every "
-            f"target{neutral}{every}"
+            f"optimal: proven that no plan with {fewer} {where} meets every target{neutral}{every}"
         )
     if s.status == "infeasible":
         return (
@@ -111,6 +116,12 @@ def tree_status_words(s: TreeSuggestion) -> str:
         f"no plan{budget} meeting every target{neutral}{every} was found {stop} (not proven "
         f"impossible); {proven}; nothing is proposed"
     )
+
+
+def has_groups(s: TreeSuggestion) -> bool:
+    """Some panel searched has a shared-neutral group: the search counts a group moved as one
+    block as one relocation (:mod:`tri.rebalance.units`), so claims say relocations."""
+    return any(c.shared_neutral is not None for p in s.panels for c in p.schedule.circuits)
 
 
 def tree_deciding_words(s: TreeSuggestion) -> str | None:
@@ -153,6 +164,7 @@ def _moves(p: PanelPlan, before: Schedule) -> list[dict[str, Any]]:
             "poles": m.poles,
             "changes_phase": m.changes_phase,
             "set_aside_first": m.circuit_index in aside,
+            **({"shared_neutral_group": m.group} if m.group is not None else {}),
         }
         for m in p.moves
     ]
@@ -252,37 +264,6 @@ def render_tree_json(data: dict[str, Any]) -> str:
     return json.dumps(data, indent=2, ensure_ascii=False, allow_nan=False) + "\n"
 
 
-def _figures_table(s: TreeSuggestion, ascii_only: bool) -> Table:
-    """Every panel's figures before and after; with scenarios one row per case under it."""
-    t = Table(box=box.ASCII if ascii_only else box.SIMPLE_HEAD, pad_edge=False)
-    t.add_column("Panel" + (" / case" if len(s.case_names) > 1 else ""), ratio=1)
-    t.add_column("Target\n%", justify="right", no_wrap=True)
-    t.add_column("Deviation %\nbefore", justify="right", no_wrap=True)
-    t.add_column("\nafter", justify="right", no_wrap=True)
-    t.add_column("Largest phase A\nbefore", justify="right", no_wrap=True)
-    t.add_column("\nafter", justify="right", no_wrap=True)
-    for p in s.panels:
-        indent = "  " * p.depth
-        rows = [(f"{indent}{p.panel}", p.before, p.after)]
-        if p.cases:
-            t.add_row(f"{indent}{p.panel}", f"{p.target_pct:g}", "", "", "", "")
-            rows = [
-                (f"{indent}  {c.name}{' *' if c.name == p.deciding else ''}", c.before, c.after)
-                for c in p.cases
-            ]
-        for label, before, after in rows:
-            over = after.max_deviation_pct > p.target_pct * (1 + 1e-9) + 1e-12
-            t.add_row(
-                label,
-                "" if p.cases else f"{p.target_pct:g}",
-                fixed(before.max_deviation_pct, 2),
-                fixed(after.max_deviation_pct, 2) + (" over" if over else ""),
-                fixed(before.max_phase_rms_a, 1),
-                fixed(after.max_phase_rms_a, 1),
-            )
-    return t
-
-
 def _work(
     s: TreeSuggestion, before: tuple[Schedule, ...], ascii_only: bool
 ) -> list[RenderableType]:
@@ -291,7 +272,7 @@ def _work(
         return [Text("No breaker moves are proposed.")]
     out: list[RenderableType] = [
         Text(
-            f"Work order ({plural(s.relocations, 'breaker')} relocated in "
+            f"Work order ({moves_count_words(*(p.moves for p in moving))} in "
             f"{plural(len(moving), 'panel')}), for a qualified person to review; each panel "
             "is its own job:"
         )
@@ -299,9 +280,7 @@ def _work(
     for p in moving:
         sched = before[p.index]
         kind = "slots" if sched.panel.uses_slots else "rail board: circuits change phases"
-        out.append(
-            Text(f"{p.panel} ({p.file}): {plural(p.relocations, 'breaker')} relocated; {kind}")
-        )
+        out.append(Text(f"{p.panel} ({p.file}): {moves_count_words(p.moves)}; {kind}"))
         steps = Table.grid(padding=(0, 1))
         steps.add_column(justify="right", no_wrap=True)
         steps.add_column()
@@ -324,9 +303,14 @@ def _work(
 
 
 def tree_renderables(
-    s: TreeSuggestion, before: tuple[Schedule, ...], caution: str, *, ascii_only: bool = False
+    s: TreeSuggestion,
+    before: tuple[Schedule, ...],
+    caution: str,
+    *,
+    ascii_only: bool = False,
+    width: int = 80,
 ) -> list[RenderableType]:
-    """The sections as Rich renderables (print them in order)."""
+    """The sections as Rich renderables (print them in order) for a console ``width`` wide."""
     rule = "-" if ascii_only else "─"
     out: list[RenderableType] = [
         Text(f"Proposed breaker moves across a building: {s.service.panel}", style="bold"),
@@ -338,7 +322,7 @@ def tree_renderables(
             "Figures from the engine on the building before and after (estimates; each panel "
             "with everything it feeds):"
         ),
-        _figures_table(s, ascii_only),
+        figures_table(s, ascii_only, width),
     ]
     deciding = tree_deciding_words(s)
     if deciding:
@@ -384,6 +368,6 @@ def render_tree_text(
     console = Console(
         file=buf, width=width, color_system=None, highlight=False, emoji=False, markup=False
     )
-    for item in tree_renderables(s, before, caution, ascii_only=ascii_only):
+    for item in tree_renderables(s, before, caution, ascii_only=ascii_only, width=width):
         console.print(item)
     return "\n".join(line.rstrip() for line in buf.getvalue().splitlines()) + "\n"

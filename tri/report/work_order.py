@@ -21,6 +21,7 @@ from dataclasses import dataclass
 
 from tri.rebalance import Move, Suggestion
 from tri.rebalance.options import plural
+from tri.rebalance.results import relocation_count
 from tri.schedule.model import Schedule
 
 
@@ -278,15 +279,25 @@ def _fewest_words(s: Suggestion) -> str:
 
 def count_words(s: Suggestion) -> str:
     """``"2 breakers relocated, 1 new circuit placed"`` (real plurals); a shared-neutral
-    group moved as one counts once and is named."""
-    groups = sorted({m.group for m in s.moves if m.group is not None and not m.is_placement})
+    group moved as one counts once and is named (:func:`moves_count_words`)."""
+    return moves_count_words(s.moves)
+
+
+def moves_count_words(*panels: tuple[Move, ...] | list[Move]) -> str:
+    """:func:`count_words` of the moves of one panel or more (a building: each panel's
+    moves, a group's name counting once in its own panel)."""
+    relocations = sum(relocation_count(moves) for moves in panels)
+    groups = sum(
+        len({m.group for m in moves if m.group is not None and not m.is_placement})
+        for moves in panels
+    )
     if groups:
-        singles = s.relocations - len(groups)
-        text = f"{plural(s.relocations, 'relocation')} ({plural(singles, 'breaker')} and "
-        text += f"{plural(len(groups), 'shared-neutral group')} moved as one)"
+        singles = relocations - groups
+        text = f"{plural(relocations, 'relocation')} ({plural(singles, 'breaker')} and "
+        text += f"{plural(groups, 'shared-neutral group')} moved as one)"
     else:
-        text = f"{plural(s.relocations, 'breaker')} relocated"
-    placed = sum(1 for m in s.moves if m.is_placement)
+        text = f"{plural(relocations, 'breaker')} relocated"
+    placed = sum(1 for moves in panels for m in moves if m.is_placement)
     if placed:
         text += f", {plural(placed, 'new circuit')} placed"
     return text

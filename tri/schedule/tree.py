@@ -17,12 +17,11 @@ from collections.abc import Callable, Sequence
 from dataclasses import dataclass
 from pathlib import Path
 
-from tri.engine.transformer import parse_vector_group
 from tri.schedule.errors import ScheduleError, ScheduleIssue, name_circuit
 from tri.schedule.load import ScheduleFile, load_schedule
 from tri.schedule.locate import LineIndex
 from tri.schedule.model import Circuit, Schedule
-from tri.schedule.systems import SYSTEMS
+from tri.schedule.tree_links import check_link
 
 #: Called after each file is read with (files read so far, the file's name).
 LoadProgress = Callable[[int, str], None]
@@ -146,64 +145,6 @@ def _shown(parent_shown: str, child: str) -> str:
     return os.path.normpath(os.path.join(folder, child)) if folder else os.path.normpath(child)
 
 
-def _check_link(b: _Builder, parent: int, feeder: int, child: int) -> None:
-    """The child's system against its parent's (or the transformer's secondary)."""
-    ps = b.panels[parent].schedule
-    cs = b.panels[child].schedule
-    c = ps.circuits[feeder]
-    assert c.feed is not None
-    shown = b.panels[child].shown
-    tx = c.feed.transformer
-    child_sys = cs.panel.system
-    if ps.panel.frequency_hz != cs.panel.frequency_hz:
-        b.at_feeder(
-            parent,
-            feeder,
-            "feeds",
-            f"feeds {shown}, a {cs.panel.frequency_hz:g} Hz panel, from this "
-            f"{ps.panel.frequency_hz:g} Hz one; a feeder keeps the frequency",
-        )
-    if tx is None:
-        if child_sys != ps.panel.system:
-            b.at_feeder(
-                parent,
-                feeder,
-                "feeds",
-                f"feeds {shown}, whose system is {child_sys}, not this panel's "
-                f"{ps.panel.system}; a feeder without a transformer keeps the system (add "
-                "transformer = { ... } or correct [panel] system in one of the files)",
-            )
-        return
-    if tx.secondary != child_sys:
-        b.at_feeder(
-            parent,
-            feeder,
-            "transformer",
-            f"secondary {tx.secondary}, but {shown} is a {child_sys} panel; they must match",
-        )
-        return
-    group = parse_vector_group(tx.connection)
-    four_wire = SYSTEMS[child_sys].has_neutral
-    if group.secondary_has_neutral != four_wire:
-        wiring, example = ("4-wire", "Dyn") if four_wire else ("3-wire", "Dd")
-        b.at_feeder(
-            parent,
-            feeder,
-            "transformer",
-            f"connection {tx.connection}: its secondary "
-            f"{'has' if group.secondary_has_neutral else 'has no'} neutral, but {shown} is a "
-            f"{wiring} {child_sys} panel (use e.g. {example})",
-        )
-    if group.primary_needs_neutral and not ps.system.has_neutral:
-        b.at_feeder(
-            parent,
-            feeder,
-            "transformer",
-            f"connection {tx.connection}: a YN primary needs a neutral, and this "
-            f"{ps.panel.system} panel has none",
-        )
-
-
 def _follow(b: _Builder, index: int, stack: list[int]) -> None:
     """Read the panels fed from panel ``index`` and push them on ``stack``."""
     panel = b.panels[index]
@@ -245,7 +186,7 @@ def _follow(b: _Builder, index: int, stack: list[int]) -> None:
             return
         child = b.read(child_path, shown, index, k)
         if child is not None:
-            _check_link(b, index, k, child)
+            check_link(b, index, k, child)
             stack.append(child)
 
 
@@ -376,7 +317,7 @@ def with_schedules(tree: ScheduleTree, schedules: Sequence[Schedule]) -> Schedul
         out[j] = TreePanel(out[j].loaded, out[j].path, out[j].shown, i, k)
     b.panels = out
     for j, (i, k) in links.items():
-        _check_link(b, i, k, j)
+        check_link(b, i, k, j)
     if b.issues:
         raise ScheduleError(b.issues)
     return ScheduleTree(tuple(out))

@@ -28,7 +28,6 @@ from tri.schedule.to_engine import (
     system_voltages,
 )
 from tri.schedule.tree import ScheduleTree
-from tri.schedule.wiring import building_refusal
 
 
 def _link(tree: ScheduleTree, index: int) -> PanelLink | None:
@@ -95,9 +94,6 @@ def analyse_building(
         their use factors (:mod:`tri.schedule.tree_scenarios`); site readings
         belong to no scenario and are left out. None: the connected load.
     """
-    refusal = building_refusal((p.shown, p.schedule) for p in tree.panels)
-    if refusal:
-        raise ValueError("; ".join(refusal))
     inputs = tree_inputs(tree, continuous_factor)
     readings = tuple(measured(p.schedule) for p in tree.panels)
     if scenario is not None:

@@ -17,15 +17,15 @@ the neutral carries their sum) and, on a two-column panel, in adjacent
 slots of one column, where handle ties or a common-trip breaker can reach
 them (NEC 210.4(B), from memory; local code governs).
 
-:func:`check_wiring` finds what cannot be built; :func:`rebalancer_refusal`
-says which of these features the rebalancer cannot honour yet.
+:func:`check_wiring` finds what cannot be built (every rebalancer honours
+the rest: :mod:`tri.rebalance.units`).
 """
 
 from __future__ import annotations
 
 import itertools
 import math
-from collections.abc import Callable, Iterable
+from collections.abc import Callable
 from dataclasses import dataclass
 
 from tri.schedule.errors import ScheduleIssue
@@ -313,82 +313,6 @@ def _lonely_groups(schedule: Schedule, where_of: Callable[[Circuit], str]) -> li
         for name, idx in count.items()
         if len(idx) == 1
     ]
-
-
-def rebalancer_refusal(schedule: Schedule) -> list[str]:
-    """What in ``schedule`` the rebalancer cannot honour yet, one located sentence each.
-
-    The rebalancer moves breakers one by one with a one-load model of each;
-    until it keeps groups together, keeps 120 V circuits off a high leg,
-    respects reach limits and RCD groups, it must refuse such panels rather
-    than propose a plan that cannot be built. Empty when it can proceed.
-    """
-    out: list[str] = []
-    panel = schedule.panel
-    if panel.effective_high_leg is not None:
-        out.append(
-            f'[panel] system = "{panel.system}": high-leg delta panels are not yet supported '
-            "by the rebalancer (it could move a 120 V circuit onto the high leg)"
-        )
-    kinds = (
-        ("breakers with a neutral or one load per leg", lambda c: c.has_legs),
-        ("shared-neutral groups", lambda c: c.shared_neutral is not None),
-        ("RCD groups", lambda c: c.rcd is not None),
-    )
-    for what, test in kinds:
-        wheres = [_where(c, schedule) for c in schedule.circuits if test(c)]
-        if wheres:
-            more = f" and {len(wheres) - 3} more" if len(wheres) > 3 else ""
-            out.append(
-                f"{what} are not yet supported by the rebalancer ({', '.join(wheres[:3])}{more})"
-            )
-    return out
-
-
-def single_panel_refusal(schedule: Schedule) -> list[str]:
-    """What ``tri suggest`` cannot honour yet: nothing now (:mod:`tri.rebalance.units`);
-    the building rebalancer keeps :func:`rebalancer_refusal`."""
-    return []
-
-
-def building_refusal(panels: Iterable[tuple[str, Schedule]]) -> list[str]:
-    """What in a building (``(file, schedule)`` per panel) the roll-up cannot honour yet.
-
-    The roll-up carries breakers with a neutral, per-leg loads, shared
-    neutrals and high-leg delta panels as each panel alone is computed
-    (:mod:`tri.engine.tree_rows`). A transformer fed from a high-leg delta
-    panel, or with a high-leg delta secondary, is not modelled (its
-    sequence transfer assumes wye phasors on both sides): such a building is
-    refused, naming the file and the feeder circuit (each panel alone is
-    still reported in full).
-    """
-    from tri.schedule.systems import SYSTEMS
-
-    out = []
-    for shown, schedule in panels:
-        high = schedule.panel.effective_high_leg is not None
-        for c in schedule.circuits:
-            tx = None if c.feed is None else c.feed.transformer
-            if tx is None:
-                continue
-            secondary = SYSTEMS.get(tx.secondary)
-            if high or (secondary is not None and secondary.high_leg_delta):
-                side = (
-                    "fed from this high-leg delta panel"
-                    if high
-                    else (f"with a {tx.secondary} high-leg delta secondary")
-                )
-                out.append(
-                    f"{shown}: {_where(c, schedule)}: a transformer {side} is not yet "
-                    "supported in a building"
-                )
-    return out
-
-
-def _where(c: Circuit, schedule: Schedule) -> str:
-    from tri.schedule.validate import circuit_where
-
-    return circuit_where(c, schedule)
 
 
 def empty_slots(schedule: Schedule) -> list[int]:

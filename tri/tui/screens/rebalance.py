@@ -13,7 +13,7 @@ the main view undoes it).
 from __future__ import annotations
 
 import threading
-import time
+from dataclasses import replace
 from typing import Any, ClassVar
 
 from rich.text import Text
@@ -22,7 +22,7 @@ from textual.app import ComposeResult
 from textual.binding import Binding, BindingType
 from textual.containers import Horizontal
 from textual.screen import Screen
-from textual.widgets import DataTable, Input, Label, ProgressBar, Static
+from textual.widgets import DataTable, Input, ProgressBar, Static
 
 from tri.native_output import native_stdout_to_devnull
 from tri.rebalance import (
@@ -51,8 +51,8 @@ from tri.schedule.model import Schedule
 from tri.schedule.validate import check_schedule
 from tri.tui.fmt import parse_number
 from tri.tui.messages import RebalanceDone, RebalanceProgress
+from tri.tui.screens.search_fields import neutral_from, number_field, progress_poster
 from tri.tui.widgets.cycle import Cycle
-from tri.tui.widgets.in_order import OrderedInput
 from tri.tui.widgets.key_footer import KeyFooter
 
 MODES = (
@@ -70,19 +70,23 @@ REBALANCE_HELP = """\
 Four modes (← → on the mode field): the fewest breakers relocated that bring
 the phase currents within the target (largest deviation of a phase's RMS
 current from the mean); the best balance with at most the given number of
-relocations; only the best free slots for circuits not placed yet; or a
-full re-layout for design work. New circuits are placed in the first two
-modes too. Enter in a field, Ctrl+R or F5 runs; Esc cancels a run, or goes
-back. Locked circuits never move. The status says what was proven, as
-tri suggest does. The result is a work order: each line is one step.
-Space selects or clears a move; a applies the selected moves, A applies
-all of them; u in the main view undoes. Before and after figures are the
-engine's, computed on both schedules. The safety caution applies to every
-move: this is a plan to check, not approval to work."""
+relocations; only the best free slots for circuits not placed yet; or a full
+re-layout for design work. New circuits are placed in the first two modes
+too. Neutral A, when given, is the largest neutral RMS current the plan may
+leave (every mode; blank: no limit). Enter in a field, Ctrl+R or F5 runs;
+Esc cancels a run, or goes back. Locked circuits never move. The status says
+what was proven, as tri suggest does. The result is a work order: each line
+is one step. Space selects or clears a move; a applies the selected moves, A
+applies all of them; u in the main view undoes. Before and after figures are
+the engine's, computed on both schedules. The safety caution applies to
+every move: this is a plan to check, not approval to work."""
 
 
-def options_from(target: Any, moves: Any, mode: str) -> SuggestOptions | str:
+def options_from(target: Any, moves: Any, mode: str, neutral: Any = None) -> SuggestOptions | str:
     """The fields as the rebalancer's options, or what is wrong with them."""
+    limit = neutral_from(neutral)
+    if isinstance(limit, str):
+        return limit
     if target is not None and (not isinstance(target, int | float) or not 0 < target < 100):
         return "Target: expected a percent above 0 and below 100."
     if moves is not None and (not isinstance(moves, int) or moves < 0):
@@ -92,15 +96,22 @@ def options_from(target: Any, moves: Any, mode: str) -> SuggestOptions | str:
     if mode == "balance" and moves is None:
         return "Best balance needs a number of moves; or choose fewest moves to a target."
     budget = moves if isinstance(moves, int) else None
+    base = SuggestOptions(time_limit_s=TIME_LIMIT_S, neutral_max_a=limit)
     if mode == "fewest-moves" and target is not None:
-        return SuggestOptions(
-            target_pct=float(target), max_moves=budget, place_new=True, time_limit_s=TIME_LIMIT_S
-        )
+        return replace(base, target_pct=float(target), max_moves=budget, place_new=True)
     if mode == "balance":
-        return SuggestOptions(max_moves=budget, place_new=True, time_limit_s=TIME_LIMIT_S)
+        return replace(base, max_moves=budget, place_new=True)
     if mode == "place-new":
-        return SuggestOptions(place_new=True, time_limit_s=TIME_LIMIT_S)
-    return SuggestOptions(relayout=True, time_limit_s=TIME_LIMIT_S)
+        return replace(base, place_new=True)
+    return replace(base, relayout=True)
+
+
+def move_unit(s: Suggestion, circuit_index: int) -> set[int]:
+    """The circuits that move with ``circuit_index``: its shared-neutral group's, or itself."""
+    group = next((m.group for m in s.moves if m.circuit_index == circuit_index), None)
+    if group is None:
+        return {circuit_index}
+    return {m.circuit_index for m in s.moves if m.group == group}
 
 
 def apply_chosen(
@@ -148,12 +159,9 @@ class RebalanceScreen(Screen[None]):
     def compose(self) -> ComposeResult:
         yield Static("", id="rb-title", classes="title-bar")
         with Horizontal(id="rb-mode"):
-            yield Label("Target %", classes="rb-label")
-            yield OrderedInput(
-                f"{DEFAULT_TARGET_PCT:g}", id="rb-target", compact=True, classes="rb-num"
-            )
-            yield Label("Moves", classes="rb-label")
-            yield OrderedInput("", id="rb-moves", placeholder="any", compact=True, classes="rb-num")
+            yield from number_field("Target %", "rb-target", f"{DEFAULT_TARGET_PCT:g}")
+            yield from number_field("Moves", "rb-moves", placeholder="any")
+            yield from number_field("Neutral A", "rb-neutral", placeholder="any")
             yield Cycle(MODES, "fewest-moves", id="rb-mode-choice")
         with Horizontal(id="rb-progress-row"):
             yield ProgressBar(total=1.0, show_eta=False, id="rb-progress")
@@ -190,6 +198,7 @@ class RebalanceScreen(Screen[None]):
             parse_number(self.query_one("#rb-target", Input).value),
             parse_number(self.query_one("#rb-moves", Input).value),
             str(self.query_one("#rb-mode-choice", Cycle).value),
+            parse_number(self.query_one("#rb-neutral", Input).value),
         )
 
     def on_input_submitted(self, event: Input.Submitted) -> None:
@@ -214,14 +223,7 @@ class RebalanceScreen(Screen[None]):
 
     @work(thread=True, exclusive=True, group="rebalance", exit_on_error=False)
     def _search(self, schedule: Schedule, options: SuggestOptions, cancel: threading.Event) -> None:
-        last = [0.0]
-
-        def progress(fraction: float | None, text: str) -> None:
-            now = time.perf_counter()
-            if now - last[0] >= 0.1:
-                last[0] = now
-                self.app.call_from_thread(self.post_message, RebalanceProgress(fraction, text))
-
+        progress = progress_poster(self)
         try:
             with native_stdout_to_devnull():
                 result = suggest(schedule, options, progress=progress, cancel=cancel)
@@ -303,7 +305,11 @@ class RebalanceScreen(Screen[None]):
         row = self.query_one("#rb-moves-table", DataTable).cursor_row
         if not 0 <= row < len(self.lines):
             return
-        self.chosen ^= {self.lines[row].circuit_index}
+        unit = move_unit(self.plan, self.lines[row].circuit_index)
+        if self.lines[row].circuit_index in self.chosen:
+            self.chosen -= unit
+        else:
+            self.chosen |= unit
         self._show_plan()
         self.query_one("#rb-moves-table", DataTable).move_cursor(row=row)
 
@@ -320,10 +326,11 @@ class RebalanceScreen(Screen[None]):
             self._state(f"Not applied: {reason}")
             self.app.bell()
             return
-        total = len(self.plan.moves)
-        app.apply(
-            new, f"Rebalance: applied {len(chosen)} of {total} move{'s' if total != 1 else ''}"
-        )
+        # a shared-neutral group moved as one block is one move, as in the work order
+        units = {m.group or m.circuit_index for m in self.plan.moves}
+        done = {m.group or m.circuit_index for m in self.plan.moves if m.circuit_index in chosen}
+        total = len(units)
+        app.apply(new, f"Rebalance: applied {len(done)} of {total} move{'s' if total != 1 else ''}")
         self.app.pop_screen()
 
     def action_apply_selected(self) -> None:

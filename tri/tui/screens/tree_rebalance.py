@@ -16,7 +16,6 @@ caution is always on screen.
 from __future__ import annotations
 
 import threading
-import time
 from typing import Any, ClassVar
 
 from rich.text import Text
@@ -26,19 +25,19 @@ from textual.binding import Binding, BindingType
 from textual.containers import Horizontal, VerticalScroll
 from textual.message import Message
 from textual.screen import Screen
-from textual.widgets import Input, Label, ProgressBar, Static
+from textual.widgets import Input, ProgressBar, Static
 
 from tri.native_output import native_stdout_to_devnull
 from tri.rebalance import DEFAULT_TARGET_PCT
 from tri.rebalance.tree_results import TreeSuggestion
 from tri.rebalance.tree_solve import TreeOptions, suggest_tree
 from tri.report.tree_work_order import panel_steps, tree_status_words
-from tri.report.work_order import fixed
+from tri.report.work_order import fixed, moves_count_words
 from tri.safety import SAFETY_CAUTION
 from tri.schedule.errors import ScheduleError
 from tri.tui.fmt import parse_number
 from tri.tui.messages import RebalanceProgress
-from tri.tui.widgets.in_order import OrderedInput
+from tri.tui.screens.search_fields import neutral_from, number_field, progress_poster
 from tri.tui.widgets.key_footer import KeyFooter
 from tri.words import plural
 
@@ -56,8 +55,11 @@ class TreeRebalanceDone(Message):
         super().__init__()
 
 
-def targets_from(target: Any, below: Any) -> TreeOptions | str:
-    """The two fields as targets, or what is wrong with them."""
+def targets_from(target: Any, below: Any, neutral: Any = None) -> TreeOptions | str:
+    """The fields as targets and the neutral limit at this panel, or what is wrong with them."""
+    limit = neutral_from(neutral)
+    if isinstance(limit, str):
+        return limit
     for what, v in (("Target", target), ("Below", below)):
         if v is not None and (not isinstance(v, int | float) or not 0 < v < 100):
             return f"{what}: expected a percent above 0 and below 100."
@@ -66,6 +68,7 @@ def targets_from(target: Any, below: Any) -> TreeOptions | str:
     return TreeOptions(
         target_pct=float(target),
         child_target_pct=None if below is None else float(below),
+        neutral_max_a=limit,
         time_limit_s=TIME_LIMIT_S,
     )
 
@@ -88,7 +91,7 @@ def result_text(s: TreeSuggestion, before: tuple) -> Text:
         t.append("No breaker moves are proposed.\n")
     else:
         t.append(
-            f"Work order: {plural(s.relocations, 'breaker')} relocated in "
+            f"Work order: {moves_count_words(*(p.moves for p in moving))} in "
             f"{plural(len(moving), 'panel')}; each panel is its own job.\n",
             style="bold",
         )
@@ -128,14 +131,9 @@ class TreeRebalanceScreen(Screen[None]):
     def compose(self) -> ComposeResult:
         yield Static("", id="trb-title", classes="title-bar")
         with Horizontal(id="rb-mode"):
-            yield Label("Target %", classes="rb-label")
-            yield OrderedInput(
-                f"{DEFAULT_TARGET_PCT:g}", id="trb-target", compact=True, classes="rb-num"
-            )
-            yield Label("Below %", classes="rb-label")
-            yield OrderedInput(
-                "", id="trb-below", placeholder="same", compact=True, classes="rb-num"
-            )
+            yield from number_field("Target %", "trb-target", f"{DEFAULT_TARGET_PCT:g}")
+            yield from number_field("Below %", "trb-below", placeholder="same")
+            yield from number_field("Neutral A", "trb-neutral", placeholder="any")
         with Horizontal(id="rb-progress-row"):
             yield ProgressBar(total=1.0, show_eta=False, id="trb-progress")
             yield Static("", id="trb-state")
@@ -152,7 +150,10 @@ class TreeRebalanceScreen(Screen[None]):
         )
         for widget in self.query(Input):
             widget.cursor_blink = False
-        self._state("Target at this panel, and below it (blank: the same). Enter runs.")
+        self._state(
+            "Target at this panel, below it (blank: the same), neutral limit here "
+            "(blank: none). Enter runs."
+        )
         self.query_one("#trb-target", Input).focus()
 
     def _state(self, text: str) -> None:
@@ -168,6 +169,7 @@ class TreeRebalanceScreen(Screen[None]):
         opts = targets_from(
             parse_number(self.query_one("#trb-target", Input).value),
             parse_number(self.query_one("#trb-below", Input).value),
+            parse_number(self.query_one("#trb-neutral", Input).value),
         )
         if isinstance(opts, str):
             self._state(opts)
@@ -184,6 +186,7 @@ class TreeRebalanceScreen(Screen[None]):
             target_pct=opts.target_pct,
             child_target_pct=opts.child_target_pct,
             service=tree.panels[self.service].shown,
+            neutral_max_a=opts.neutral_max_a,
             time_limit_s=opts.time_limit_s,
         )
         self.running = True
@@ -195,14 +198,7 @@ class TreeRebalanceScreen(Screen[None]):
 
     @work(thread=True, exclusive=True, group="tree-rebalance", exit_on_error=False)
     def _search(self, tree: Any, opts: TreeOptions, cancel: threading.Event) -> None:
-        last = [0.0]
-
-        def progress(fraction: float | None, text: str) -> None:
-            now = time.perf_counter()
-            if now - last[0] >= 0.1:
-                last[0] = now
-                self.app.call_from_thread(self.post_message, RebalanceProgress(fraction, text))
-
+        progress = progress_poster(self)
         before = tuple(p.schedule for p in tree.panels)
         try:
             with native_stdout_to_devnull():
@@ -247,7 +243,7 @@ class TreeRebalanceScreen(Screen[None]):
             self.app.bell()
             return
         for p in moving:
-            label = f"Building rebalance: {plural(p.relocations, 'breaker')} relocated"
+            label = f"Building rebalance: {moves_count_words(p.moves)}"
             b.sessions[p.index].apply(p.schedule, label)
         app.schedule_changed(
             f"Building rebalance applied in {plural(len(moving), 'panel')}; u in each panel "

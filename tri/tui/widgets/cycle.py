@@ -48,9 +48,16 @@ class Cycle(KeysInOrder, Widget, can_focus=True):
         return self.choices[self.index][1]
 
     def render(self) -> Text:
-        label = self.choices[self.index][0]
-        hint = "" if self.disabled else f"   ({self.index + 1} of {len(self.choices)}, ← →)"
-        return Text(f"‹ {label} ›{hint}")
+        """The choice, and where it is among them in the longest form that fits."""
+        shown = f"‹ {self.choices[self.index][0]} ›"
+        if self.disabled:
+            return Text(shown)
+        at, n = self.index + 1, len(self.choices)
+        width = self.size.width or 10_000
+        for hint in (f"   ({at} of {n}, ← →)", f"  ({at}/{n})", ""):
+            if len(shown) + len(hint) <= width:
+                break
+        return Text(shown + hint)
 
     def watch_index(self, index: int) -> None:
         self.post_message(self.Changed(self, self.choices[index][1]))
