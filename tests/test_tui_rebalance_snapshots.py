@@ -1,6 +1,7 @@
 """SVG snapshots of the rebalance screen: before a run, the work order, and the unproven states.
 
-Fixed terminal sizes (80×24, the smallest supported, and 120×40), a fixed
+A fixed terminal size (80×24, the smallest supported; what a wider one adds is in
+test_tui_wide.py), a fixed
 theme, the state folder in a temporary directory, the small schedule of
 tests/data/tui (settled exactly by the rebalancer, so the plan does not
 depend on timing), no clock and no blinking cursor. The best-found state
@@ -23,7 +24,7 @@ from tri.tui.app import TriApp
 from tri.tui.messages import RebalanceDone
 
 DATA = Path(__file__).parent / "data" / "tui"
-SIZES = [(80, 24), (120, 40)]
+SIZES = [(80, 24)]
 
 
 def make_app() -> TriApp:

@@ -1,4 +1,5 @@
-"""SVG snapshots of a building in the UI, at 80×24 and 120×40.
+"""SVG snapshots of a building in the UI, at 80×24 (what a wider terminal adds:
+test_tui_wide.py).
 
 The demo brewery, copied to the test's folder so edits touch nothing else:
 the tree of panels; the tree after a child is edited (the parent's new
@@ -21,10 +22,7 @@ from tui_support import keys
 from tri.tui.app import TriApp
 
 BREWERY = Path(__file__).parents[1] / "tri" / "panels_demo" / "brewery"
-sizes = pytest.mark.parametrize("size", [(80, 24), (120, 40)], ids=["80x24", "120x40"])
-#: Forms, questions and refusals: the 80×24 picture is the contract size; a wider
-#: terminal only adds margin around them.
-narrow = pytest.mark.parametrize("size", [(80, 24)], ids=["80x24"])
+sizes = pytest.mark.parametrize("size", [(80, 24)], ids=["80x24"])
 
 
 @pytest.fixture
@@ -38,7 +36,7 @@ def test_building_tree(snap_compare, size, brewery) -> None:
     assert snap_compare(brewery, terminal_size=size, run_before=keys("T", "down", "down"))
 
 
-@narrow
+@sizes
 def test_building_tree_after_editing_a_child(snap_compare, size, brewery) -> None:
     before = keys("T", "down", "down", "enter", "x", "T")
     assert snap_compare(brewery, terminal_size=size, run_before=before)
@@ -50,17 +48,17 @@ def test_fed_panel_in_the_main_view(snap_compare, size, brewery) -> None:
     assert snap_compare(brewery, terminal_size=size, run_before=before)
 
 
-@narrow
+@sizes
 def test_feeder_circuit_form(snap_compare, size, brewery) -> None:
     assert snap_compare(brewery, terminal_size=size, run_before=keys("e"))
 
 
-@narrow
+@sizes
 def test_quit_with_a_modified_child(snap_compare, size, brewery) -> None:
     before = keys("T", "end", "enter", "x", "T", "home", "enter", "ctrl+q")
     assert snap_compare(brewery, terminal_size=size, run_before=before)
 
 
-@narrow
+@sizes
 def test_edit_that_would_break_the_building(snap_compare, size, brewery) -> None:
     assert snap_compare(brewery, terminal_size=size, run_before=keys("x"))

@@ -1,4 +1,5 @@
-"""SVG snapshots of the log view and the scenario choice, at 80×24 and 120×40.
+"""SVG snapshots of the log view and the scenario choice, at 80×24 (what a wider terminal adds:
+test_tui_wide.py).
 
 The logged garage demo: current over time (whole week, and zoomed to phase
 A's demand peak), the demand-duration view, the report's figures, the
@@ -19,11 +20,8 @@ from tui_support import keys
 from tri.tui.app import TriApp
 
 DEMO = Path(__file__).parents[1] / "tri" / "panels_demo" / "garage_logged_208.toml"
-SIZES = [(80, 24), (120, 40)]
-sizes = pytest.mark.parametrize("size", SIZES, ids=["80x24", "120x40"])
-#: Forms, questions and refusals: the 80×24 picture is the contract size; a wider
-#: terminal only adds margin around them.
-narrow = pytest.mark.parametrize("size", [(80, 24)], ids=["80x24"])
+SIZES = [(80, 24)]
+sizes = pytest.mark.parametrize("size", SIZES, ids=["80x24"])
 
 
 def garage() -> TriApp:
@@ -35,7 +33,7 @@ def test_log_current_over_time(snap_compare, size) -> None:
     assert snap_compare(garage(), terminal_size=size, run_before=keys("d"))
 
 
-@narrow
+@sizes
 def test_log_zoomed_to_the_demand_peak(snap_compare, size) -> None:
     before = keys("d", "plus", "plus", "plus", "p")
     assert snap_compare(garage(), terminal_size=size, run_before=before)
@@ -52,12 +50,12 @@ def test_log_figures_view(snap_compare, size) -> None:
     assert snap_compare(garage(), terminal_size=size, run_before=keys("d", "tab", "tab"))
 
 
-@narrow
+@sizes
 def test_log_neutral_only(snap_compare, size) -> None:
     assert snap_compare(garage(), terminal_size=size, run_before=keys("d", "1", "2", "3"))
 
 
-@narrow
+@sizes
 def test_scenario_question(snap_compare, size) -> None:
     assert snap_compare(garage(), terminal_size=size, run_before=keys("n"))
 
@@ -67,7 +65,7 @@ def test_main_view_in_the_evening_scenario(snap_compare, size) -> None:
     assert snap_compare(garage(), terminal_size=size, run_before=keys("n", "2"))
 
 
-@narrow
+@sizes
 def test_log_that_cannot_be_read(snap_compare, size, tmp_path) -> None:
     # A cell that is not a number: the reader's located problem, by file and line.
     shutil.copy(DEMO, tmp_path / DEMO.name)

@@ -1,4 +1,6 @@
-"""SVG snapshots of every screen and dialog of the terminal UI, at 80×24 and 120×40.
+"""SVG snapshots of every screen and dialog of the terminal UI, at 80×24.
+
+What a wider terminal adds is checked in test_tui_wide.py.
 
 The panel view of each demo; the circuit, move, panel, supply, readings and
 save-as forms (valid and refusing); taking a breaker off; a move picked on
@@ -27,8 +29,8 @@ from tri.tui.app import TriApp
 
 DATA = Path(__file__).parent / "data" / "tui"
 DEMOS = Path(__file__).parents[1] / "tri" / "panels_demo"
-SIZES = [(80, 24), (120, 40)]
-SIZE_IDS = ["80x24", "120x40"]
+SIZES = [(80, 24)]
+SIZE_IDS = ["80x24"]
 
 
 def small_app(theme: str = "textual-dark", journal: bool = False) -> TriApp:
@@ -36,22 +38,19 @@ def small_app(theme: str = "textual-dark", journal: bool = False) -> TriApp:
 
 
 sizes = pytest.mark.parametrize("size", SIZES, ids=SIZE_IDS)
-#: Dialogs and forms are centred boxes of a fixed width: the 80×24 picture is the
-#: one that matters (the contract size), and a wider terminal only adds margin.
-narrow = pytest.mark.parametrize("size", SIZES[:1], ids=SIZE_IDS[:1])
 
 
 # ---------------------------------------------------------------- the panel view
 
 
-@narrow
+@sizes
 @pytest.mark.parametrize("demo", sorted(DEMOS.glob("*.toml")), ids=lambda p: p.stem)
 def test_panel_view_of_each_demo(snap_compare, size, demo: Path) -> None:
     app = TriApp(demo, journal=False, theme="textual-dark")
     assert snap_compare(app, terminal_size=size, run_before=keys("tab"))
 
 
-@narrow
+@sizes
 def test_panel_view_move_refused(snap_compare, size) -> None:
     # The walk-in cooler (2-pole, slots 5 and 7) picked up and held over slot 3:
     # it would take 3 and 5, and 3 is taken.
@@ -59,7 +58,7 @@ def test_panel_view_move_refused(snap_compare, size) -> None:
     assert snap_compare(small_app(), terminal_size=size, run_before=before)
 
 
-@narrow
+@sizes
 def test_panel_view_move_free(snap_compare, size) -> None:
     before = keys("tab", "m", "j", "j", select="Signage")
     assert snap_compare(small_app(), terminal_size=size, run_before=before)
@@ -79,59 +78,59 @@ def test_list_with_a_selected_circuit_in_full(snap_compare, size) -> None:
 # ---------------------------------------------------------------- forms
 
 
-@narrow
+@sizes
 def test_circuit_form(snap_compare, size) -> None:
     assert snap_compare(small_app(), terminal_size=size, run_before=keys("e", select="Dishwasher"))
 
 
-@narrow
+@sizes
 def test_circuit_form_refusing(snap_compare, size) -> None:
     # Office PCs (slot 3) made 2-pole: it would take 3 and 5, and 5 is taken.
     before = keys("e", "down", "down", "right", select="Office PCs")
     assert snap_compare(small_app(), terminal_size=size, run_before=before)
 
 
-@narrow
+@sizes
 def test_circuit_form_after_a_refused_enter(snap_compare, size) -> None:
     before = keys("e", "down", "down", "down", "x", "up", "up", "enter", select="Dishwasher")
     assert snap_compare(small_app(), terminal_size=size, run_before=before)
 
 
-@narrow
+@sizes
 def test_move_dialog(snap_compare, size) -> None:
     assert snap_compare(small_app(), terminal_size=size, run_before=keys("m", select="Signage"))
 
 
-@narrow
+@sizes
 def test_move_dialog_refusing(snap_compare, size) -> None:
     before = keys("m", "backspace", "2", select="Signage")
     assert snap_compare(small_app(), terminal_size=size, run_before=before)
 
 
-@narrow
+@sizes
 def test_take_off_question(snap_compare, size) -> None:
     assert snap_compare(small_app(), terminal_size=size, run_before=keys("o", select="Signage"))
 
 
-@narrow
+@sizes
 def test_panel_form_refusing(snap_compare, size) -> None:
     before = keys("p", "down", "down", "down", *["backspace"] * 2, "8")
     assert snap_compare(small_app(), terminal_size=size, run_before=before)
 
 
-@narrow
+@sizes
 def test_supply_form(snap_compare, size) -> None:
     before = keys("s", "7", "5")  # kVA without impedance: refused
     assert snap_compare(small_app(), terminal_size=size, run_before=before)
 
 
-@narrow
+@sizes
 def test_readings_form(snap_compare, size) -> None:
     before = keys("i", "5", "2", "x")
     assert snap_compare(small_app(), terminal_size=size, run_before=before)
 
 
-@narrow
+@sizes
 def test_save_as_form(snap_compare, size) -> None:
     # An unsaved copy (as a demo opens): the name offered has no folder in it.
     async def before(pilot) -> None:
@@ -153,7 +152,7 @@ def test_form_focus_in_every_theme(snap_compare, theme: str) -> None:
 # ---------------------------------------------------------------- other screens
 
 
-@narrow
+@sizes
 @pytest.mark.parametrize("view", [0, 1, 2], ids=["findings", "checks", "report"])
 def test_findings_page(snap_compare, size, view: int) -> None:
     app = TriApp(DEMOS / "garage_ev_208.toml", journal=False, theme="textual-dark")
@@ -166,7 +165,7 @@ def test_phasor_sequence_view(snap_compare, size) -> None:
     assert snap_compare(app, terminal_size=size, run_before=keys("v", "tab"))
 
 
-@narrow
+@sizes
 def test_phasor_voltages_in_16_colours(snap_compare, size) -> None:
     app = TriApp(DEMOS / "machine_shop_480.toml", journal=False, theme="ansi-dark")
     assert snap_compare(app, terminal_size=size, run_before=keys("v", "tab", "tab"))
@@ -182,13 +181,13 @@ def test_start_screen(snap_compare, size) -> None:
     assert snap_compare(TriApp(None, journal=False, theme="textual-dark"), terminal_size=size)
 
 
-@narrow
+@sizes
 def test_quit_question(snap_compare, size) -> None:
     before = keys("l", "ctrl+q", select="Signage")
     assert snap_compare(small_app(), terminal_size=size, run_before=before)
 
 
-@narrow
+@sizes
 def test_recovery_question(snap_compare, size, small: Path) -> None:
     s = load_schedule(small).schedule
     edited = s.with_circuit(0, s.circuits[0].at_slot(11))

@@ -1,4 +1,5 @@
-"""SVG snapshots of a panel as it is wired (issue 12), at 80×24 and 120×40.
+"""SVG snapshots of a panel as it is wired (issue 12), at 80×24 (what a wider terminal adds:
+test_tui_wide.py).
 
 The demo woodshop (240/120 V high-leg delta): the list with its Wiring
 column and a breaker with legs described on the status line; the panel view
@@ -19,10 +20,7 @@ from tui_support import keys
 from tri.tui.app import TriApp
 
 WOODSHOP = Path(__file__).parents[1] / "tri" / "panels_demo" / "woodshop_240d.toml"
-sizes = pytest.mark.parametrize("size", [(80, 24), (120, 40)], ids=["80x24", "120x40"])
-#: Forms, questions and refusals: the 80×24 picture is the contract size; a wider
-#: terminal only adds margin around them.
-narrow = pytest.mark.parametrize("size", [(80, 24)], ids=["80x24"])
+sizes = pytest.mark.parametrize("size", [(80, 24)], ids=["80x24"])
 
 
 def shop() -> TriApp:
@@ -43,23 +41,23 @@ def test_wired_panel_view_at_the_shared_neutral(snap_compare, size) -> None:
     assert snap_compare(shop(), terminal_size=size, run_before=before)
 
 
-@narrow
+@sizes
 def test_wired_circuit_form(snap_compare, size) -> None:
     assert snap_compare(shop(), terminal_size=size, run_before=keys("e", select=BENCH))
 
 
-@narrow
+@sizes
 def test_wired_panel_form(snap_compare, size) -> None:
     assert snap_compare(shop(), terminal_size=size, run_before=keys("p"))
 
 
-@narrow
+@sizes
 def test_move_refused_on_the_high_leg(snap_compare, size) -> None:
     before = keys("m", "ctrl+u", "4", select="Office lights and receptacles")
     assert snap_compare(shop(), terminal_size=size, run_before=before)
 
 
-@narrow
+@sizes
 def test_right_column_c_b_a(snap_compare, size, tmp_path) -> None:
     from test_tui_wiring import CBA
 

@@ -1,7 +1,8 @@
 """SVG snapshots of the main view and the phasor view (the rebalance screen's are in
 test_tui_rebalance_snapshots.py).
 
-Fixed terminal sizes (80×24, the smallest supported, and 120×40), a fixed
+A fixed terminal size (80×24, the smallest supported; what a wider one adds is in
+test_tui_wide.py), a fixed
 theme, the state folder in a temporary directory, a schedule file from
 tests/data (only its name is shown), no clock and no blinking cursor.
 Regenerate with ``pytest tests/test_tui_snapshots.py --snapshot-update`` and
@@ -18,7 +19,7 @@ from tui_support import settle
 from tri.tui.app import TriApp
 
 DATA = Path(__file__).parent / "data" / "tui"
-SIZES = [(80, 24), (120, 40)]
+SIZES = [(80, 24)]
 
 
 def make_app() -> TriApp:
