@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import json
 import subprocess
 import sys
 from pathlib import Path
@@ -23,25 +24,47 @@ HEADLESS = [
 ]
 
 
-@pytest.mark.parametrize("module", HEADLESS)
-def test_headless_module_does_not_load_textual(module: str) -> None:
+#: Engine and schedule modules that must not load rich either.
+RICH_FREE = [
+    "tri.engine.analysis",
+    "tri.engine.tree_results",
+    "tri.schedule.load",
+    "tri.schedule.tree",
+]
+WATCHED = ("textual", "rich")
+
+
+@pytest.fixture(scope="module")
+def loaded_by() -> dict[str, list[str]]:
+    """What each module brings of ``WATCHED``, all imported in one fresh interpreter.
+
+    The modules are imported one after another, the rich-free ones first, and
+    each is charged with the watched libraries that appear at its import.
+    Importing only adds modules, so a library absent after the last import was
+    loaded by none of them alone, and the first module to load one is named.
+    """
     code = (
-        f"import sys, {module}\n"
-        "bad = [m for m in ('textual',) if m in sys.modules]\n"
-        "print(','.join(bad))\n"
+        "import importlib, json, sys\n"
+        "seen, out = set(), {}\n"
+        f"for m in {[*RICH_FREE, *HEADLESS]!r}:\n"
+        "    importlib.import_module(m)\n"
+        f"    new = [w for w in {WATCHED!r} if w in sys.modules and w not in seen]\n"
+        "    seen.update(new)\n"
+        "    out[m] = out.get(m, []) + new\n"
+        "print(json.dumps(out))\n"
     )
     out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True)
-    assert out.stdout.strip() == ""
+    return json.loads(out.stdout)
 
 
-@pytest.mark.parametrize(
-    "module",
-    ["tri.engine.analysis", "tri.engine.tree_results", "tri.schedule.load", "tri.schedule.tree"],
-)
-def test_engine_and_schedule_do_not_load_rich(module: str) -> None:
-    code = f"import sys, {module}\nprint('rich' in sys.modules)\n"
-    out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True)
-    assert out.stdout.strip() == "False"
+@pytest.mark.parametrize("module", HEADLESS)
+def test_headless_module_does_not_load_textual(module: str, loaded_by) -> None:
+    assert "textual" not in loaded_by[module]
+
+
+@pytest.mark.parametrize("module", RICH_FREE)
+def test_engine_and_schedule_do_not_load_rich(module: str, loaded_by) -> None:
+    assert "rich" not in loaded_by[module]
 
 
 @pytest.mark.parametrize(

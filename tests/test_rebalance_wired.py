@@ -15,13 +15,12 @@ Tolerance: as in the plain sweep (``rebalance_sweep.EDGE``, a relative 1e-7).
 from __future__ import annotations
 
 import json
-import subprocess
-import sys
 from dataclasses import replace
 from pathlib import Path
 
 import numpy as np
 import pytest
+from cli_support import run_tri
 from rebalance_reference import enumerate_panel, free_breakers
 from rebalance_sweep import cases_for, check_case, dense_panel
 
@@ -148,24 +147,7 @@ def test_cli_suggest_on_a_c_b_a_panel(tmp_path: Path) -> None:
     p.write_text(CBA_PANEL, encoding="utf-8")
     sched = load_schedule(p).schedule
     assert [c.phases for c in sched.circuits] == [(0,), (0,), (2,), (2,)]
-    out = subprocess.run(
-        [
-            sys.executable,
-            "-m",
-            "tri",
-            "suggest",
-            str(p),
-            "--max-moves",
-            "1",
-            "--time-limit",
-            "60",
-            "--format",
-            "json",
-        ],
-        capture_output=True,
-        text=True,
-        timeout=60,
-    )
+    out = run_tri("suggest", str(p), "--max-moves", "1", "--time-limit", "60", "--format", "json")
     assert out.returncode == 0, out.stderr
     data = json.loads(out.stdout)
     assert data["status"] == "optimal"
@@ -263,36 +245,14 @@ def test_cli_suggest_honours_the_reach(tmp_path: Path) -> None:
     """
     p = tmp_path / "p.toml"
     p.write_text(REACH_PANEL, encoding="utf-8")
-    out = subprocess.run(
-        [
-            sys.executable,
-            "-m",
-            "tri",
-            "suggest",
-            str(p),
-            "--max-moves",
-            "1",
-            "--time-limit",
-            "60",
-            "--format",
-            "json",
-        ],
-        capture_output=True,
-        text=True,
-        timeout=60,
-    )
+    out = run_tri("suggest", str(p), "--max-moves", "1", "--time-limit", "60", "--format", "json")
     assert out.returncode == 0, out.stderr
     data = json.loads(out.stdout)
     assert data["status"] == "optimal"
     for m in data["moves"]:
         assert abs((m["to_slot"] + 1) // 2 - (m["from_slot"] + 1) // 2) <= 1
     assert any("reach limit honoured" in n for n in data["notes"])
-    text = subprocess.run(
-        [sys.executable, "-m", "tri", "suggest", str(p), "--max-moves", "1"],
-        capture_output=True,
-        text=True,
-        timeout=60,
-    )
+    text = run_tri("suggest", str(p), "--max-moves", "1")
     assert "reach limit honoured" in text.stdout
 
 
@@ -312,12 +272,7 @@ def test_demo_panel_with_a_c_b_a_right_column_and_a_reach(tmp_path: Path) -> Non
     p.write_text(text, encoding="utf-8")
     sched = load_schedule(p).schedule
     args = ["suggest", str(p), "--max-moves", "3", "--format", "json", "--time-limit", "60"]
-    r = subprocess.run(
-        [sys.executable, "-m", "tri", *args, "--write", str(out_file)],
-        capture_output=True,
-        text=True,
-        timeout=120,
-    )
+    r = run_tri(*args, "--write", str(out_file))
     assert r.returncode in (0, 1), r.stderr
     data = json.loads(r.stdout)
     assert data["status"] in ("optimal", "best-found")
