@@ -143,11 +143,20 @@ def _search(tree, options, progress) -> Any:
     return out["result"]
 
 
+def _check_folder(folder: str, step: Any) -> Any:
+    """``step(folder)``, a refused folder shown as ``--write DIR: why`` (exit 2)."""
+    try:
+        return step(folder)
+    except ValueError as exc:
+        raise CliError(f"--write {folder}: {exc}") from None
+
+
 def _write(tree: Any, result: Any, folder: str) -> None:
     """Write the building after the moves into ``folder``; say what was written on stderr."""
     from tri.schedule.tree_save import save_tree
 
-    written = save_tree(tree, [p.schedule for p in result.tree.panels], folder)
+    schedules = [p.schedule for p in result.tree.panels]
+    written = _check_folder(folder, lambda f: save_tree(tree, schedules, f))
     names = [(os.path.relpath(w.written, folder), w.changed) for w in written]
     changed = [n for n, c in names if c]
     copied = [n for n, c in names if not c]
@@ -168,7 +177,7 @@ def run_tree(args: argparse.Namespace) -> int:
     _refuse_single_panel_options(args)
     options = _options(args)
     if args.write is not None:
-        check_tree_folder(args.write)
+        _check_folder(args.write, check_tree_folder)
     tree = load_tree(args.file)
     before = tuple(p.schedule for p in tree.panels)
     progress = _Progress()

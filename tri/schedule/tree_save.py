@@ -52,7 +52,7 @@ def _fail(folder: str, message: str) -> ScheduleError:
 
 
 def check_tree_folder(folder: str) -> None:
-    """Refuse a folder the building cannot be written into (a :class:`ScheduleError`).
+    """Refuse a folder the building cannot be written into (a :class:`ValueError` saying why).
 
     Accepted: a folder that does not exist yet in an existing folder, or an
     empty folder. Refused: a file, a folder with anything in it (which is
@@ -62,28 +62,26 @@ def check_tree_folder(folder: str) -> None:
     """
     out = Path(folder)
     if folder.lower().endswith(".toml") and not out.is_dir():
-        raise _fail(
-            folder,
+        raise ValueError(
             "a building is written as one file per panel; give a new or empty folder, "
             "not a file name",
         )
     if out.exists() and not out.is_dir():
-        raise _fail(folder, "exists and is not a folder; give a new or empty folder")
+        raise ValueError("exists and is not a folder; give a new or empty folder")
     if out.is_dir():
         try:
             entries = next(os.scandir(out), None)
         except OSError as exc:
-            raise _fail(folder, f"cannot read the folder: {exc.strerror or exc}") from None
+            raise ValueError(f"cannot read the folder: {exc.strerror or exc}") from None
         if entries is not None:
-            raise _fail(
-                folder,
+            raise ValueError(
                 "folder is not empty; give a new or empty folder (a building's files, "
                 "its inputs included, are never overwritten)",
             )
         return
     parent = out.parent if str(out.parent) else Path(".")
     if not parent.is_dir():
-        raise _fail(folder, f"folder {parent} does not exist")
+        raise ValueError(f"folder {parent} does not exist")
 
 
 def _log_file(path: Path, schedule: Schedule) -> Path | None:
@@ -143,8 +141,10 @@ def save_tree(
 
     Raises
     ------
+    ValueError
+        A folder refused (:func:`check_tree_folder`).
     ScheduleError
-        A folder refused, a link that cannot be kept, or the disk refusing.
+        A link that cannot be kept (located at the parent), or the disk refusing.
     """
     check_tree_folder(str(folder))
     out = Path(folder)
