@@ -1,4 +1,7 @@
-"""Shared fixtures: a private state folder for every test, and the UI tests' small panel."""
+"""Shared fixtures: a private state folder for every test, and the UI tests' small panel.
+
+Also shorter idle naps for Textual's pilot (:func:`pytest_configure`).
+"""
 
 from __future__ import annotations
 
@@ -8,6 +11,31 @@ from pathlib import Path
 import pytest
 
 TUI_DATA = Path(__file__).parent / "data" / "tui"
+
+#: Textual's pilot nap while it waits for the app to go idle [s], and the CPU time
+#: within one nap below which the app counts as idle [s] (Textual: 1/50 and 1/1000).
+IDLE_NAP_S, IDLE_CPU_S = 0.002, 0.0001
+
+
+def pytest_configure(config: pytest.Config) -> None:
+    """Shorter idle naps for Textual's pilot (every press and pause ends in one).
+
+    The pilot waits until a whole nap passes with the process (all its
+    threads) almost idle; at Textual's 20 ms each of the UI tests' ~3200
+    waits idled 20 ms or more, over a minute of the workers' time. The same rule
+    at 2 ms, and a tenth of the CPU allowance, waits as well; what the tests
+    wait for (messages handled, workers done) comes from ``pilot.pause`` and
+    ``tui_support.settle``, not from the nap. The names live in Textual's
+    private ``textual._wait``: when they go, the naps are Textual's again
+    (slower, not wrong).
+    """
+    try:
+        import textual._wait as textual_wait
+    except ImportError:
+        return
+    if hasattr(textual_wait, "SLEEP_GRANULARITY") and hasattr(textual_wait, "SLEEP_IDLE"):
+        textual_wait.SLEEP_GRANULARITY = IDLE_NAP_S
+        textual_wait.SLEEP_IDLE = IDLE_CPU_S
 
 
 @pytest.fixture(autouse=True)

@@ -65,47 +65,98 @@ def arrangements(schedule: Schedule, free: list[int], limit: int = 2_000_000) ->
     """Every set of first slots for the ``free`` breakers (int ndarray, shape (A, len(free))).
 
     Breakers not in ``free`` keep their slots; unplaced circuits not in
-    ``free`` stay unplaced.
+    ``free`` stay unplaced. The walk of the module notes, taken for every
+    partial arrangement at once (:func:`_walk_step`), lists them in the order
+    a depth-first walk would: at each undecided slot, empty first, then the
+    free breakers in order.
     """
     spaces = schedule.panel.spaces
+    assert spaces <= 62, "slot sets are 64-bit masks"
     circuits = schedule.circuits
     free_set = set(free)
-    taken = set()
+    taken = 0
     for i, c in enumerate(circuits):
         if i not in free_set and c.slot is not None:
-            taken.update(occupied_slots(c.slot, c.poles))
+            for s in occupied_slots(c.slot, c.poles):
+                taken |= 1 << s
     poles = [circuits[i].poles for i in free]
-    empties = spaces - len(taken) - sum(poles)
-    out: list[tuple[int, ...]] = []
-    slot_of = [0] * len(free)
-    used = set(taken)
+    empties = spaces - bin(taken).count("1") - sum(poles)
+    if empties < 0:
+        return np.zeros((0, len(free)), dtype=int)
+    # cells[k, s]: the slots breaker k takes with its first pole in slot s, -1 off the panel
+    cells = np.full((len(free), spaces + 2), -1, dtype=np.int64)
+    for k, p in enumerate(poles):
+        for s in range(1, spaces + 1):
+            if fits(s, p, spaces):
+                cells[k, s] = sum(1 << c for c in occupied_slots(s, p))
+    state = _Walk(
+        used=np.array([taken], dtype=np.int64),
+        left=np.array([(1 << len(free)) - 1], dtype=np.int64),
+        spare=np.array([empties]),
+        cell=np.array([1]),
+        slot_of=np.zeros((1, len(free)), dtype=int),
+    )
+    while not np.all(state.left == 0):
+        state = _walk_step(state, cells, spaces)
+        if state.left.size > limit:
+            raise RuntimeError("too many arrangements for the reference")
+    return state.slot_of
 
-    def walk(cell: int, left: set[int], spare: int) -> None:
-        while cell <= spaces and cell in used:
-            cell += 1
-        if not left:
-            out.append(tuple(slot_of))
-            if len(out) > limit:
-                raise RuntimeError("too many arrangements for the reference")
-            return
-        if cell > spaces:
-            return
-        if spare > 0:
-            used.add(cell)
-            walk(cell + 1, left, spare - 1)
-            used.discard(cell)
-        for k in sorted(left):
-            cells = occupied_slots(cell, poles[k])
-            if not fits(cell, poles[k], spaces) or used.intersection(cells):
-                continue
-            used.update(cells)
-            slot_of[k] = cell
-            walk(cell + 1, left - {k}, spare)
-            used.difference_update(cells)
 
-    if empties >= 0:
-        walk(1, set(range(len(free))), empties)
-    return np.array(out, dtype=int).reshape(len(out), len(free))
+@dataclass(frozen=True)
+class _Walk:
+    """Partial arrangements: slots taken (bit s for slot s), free breakers still to
+    place (bit k for breaker k), empty slots still to spare, the next slot to
+    decide, and each breaker's first slot so far."""
+
+    used: np.ndarray
+    left: np.ndarray
+    spare: np.ndarray
+    cell: np.ndarray
+    slot_of: np.ndarray
+
+
+def _walk_step(w: _Walk, cells: np.ndarray, spaces: int) -> _Walk:
+    """Decide the lowest undecided slot of every partial arrangement (module notes).
+
+    Each one becomes, in this order: itself when it is complete, the slot left
+    empty (while slots remain to spare), the slot taken by the first pole of
+    each free breaker whose other poles fit. One with no slot left for its
+    breakers ends. Children follow their parent's place, so the order is the
+    depth-first walk's.
+    """
+    n_free = cells.shape[0]
+    slot_bits = np.int64(1) << np.arange(spaces + 2, dtype=np.int64)
+    # the lowest slot at or after the cursor that nobody has taken (spaces + 1: none)
+    open_ = (w.used[:, None] & slot_bits[None, :]) == 0
+    open_ &= np.arange(spaces + 2)[None, :] >= w.cell[:, None]
+    open_[:, spaces + 1] = True
+    cell = np.argmax(open_, axis=1)
+    done = w.left == 0
+    live = ~done & (cell <= spaces)
+    bit = slot_bits[cell]
+    take = cells[:, cell].T  # (N, F)
+    has = (w.left[:, None] >> np.arange(n_free, dtype=np.int64)[None, :]) & 1 == 1
+    fit = live[:, None] & has & (take >= 0) & ((w.used[:, None] & np.maximum(take, 0)) == 0)
+    choice = np.column_stack([done, live & (w.spare > 0), fit])
+    parent, what = np.nonzero(choice)
+    k = what - 2
+    placed = k >= 0
+    used = w.used[parent].copy()
+    left = w.left[parent].copy()
+    spare = w.spare[parent].copy()
+    nxt = cell[parent] + 1
+    slot_of = w.slot_of[parent].copy()
+    empty = what == 1
+    used[empty] |= bit[parent[empty]]
+    spare[empty] -= 1
+    rows = np.flatnonzero(placed)
+    used[rows] |= take[parent[rows], k[rows]]
+    left[rows] &= ~(np.int64(1) << k[rows].astype(np.int64))
+    slot_of[rows, k[rows]] = cell[parent[rows]]
+    stay = what == 0
+    nxt[stay] = w.cell[parent[stay]]
+    return _Walk(used, left, spare, nxt, slot_of)
 
 
 def within_reach(schedule: Schedule, free: list[int], slots: np.ndarray) -> np.ndarray:
@@ -190,16 +241,13 @@ def enumerate_panel(schedule: Schedule, free: list[int]) -> Enumerated:
         codes[:, k] = code[slots[:, k]]
         if old[k] is not None:
             moved += slots[:, k] != old[k]
-    uniq, back = np.unique(codes, axis=0, return_inverse=True)
-    first_slot = np.zeros_like(uniq)
-    for u in range(uniq.shape[0]):
-        first_slot[u] = slots[np.flatnonzero(back.ravel() == u)[0]]
+    first_row, back = distinct_rows(codes)
+    first_slot = slots[first_row]
     names, factors = case_factors(schedule)
     figures = [_engine(schedule, free, first_slot, f) for f in factors]
     rms = np.stack([f[0] for f in figures], axis=1)  # (U, S, 3)
     neutral = np.max([f[1] for f in figures], axis=0)
     dev = np.max([f[2] for f in figures], axis=0)
-    back = back.ravel()
     return Enumerated(
         slots=slots,
         relocations=moved,
@@ -208,6 +256,24 @@ def enumerate_panel(schedule: Schedule, free: list[int]) -> Enumerated:
         deviation_pct=dev[back],
         cases=names,
     )
+
+
+def distinct_rows(codes: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """First row of each distinct row of ``codes`` and each row's distinct index.
+
+    As ``np.unique(codes, axis=0, return_index=True, return_inverse=True)``
+    (same order), for codes 0-7 in at most 21 columns, read as one base-8
+    number per row (much faster than comparing rows).
+    """
+    n_rows, n_cols = codes.shape
+    if n_rows == 0:
+        return np.zeros(0, dtype=int), np.zeros(0, dtype=int)
+    assert n_cols <= 21 and (n_cols == 0 or (codes.min() >= 0 and codes.max() < 8))
+    keys = np.zeros(n_rows, dtype=np.int64)
+    for k in range(n_cols):
+        keys = (keys << 3) | codes[:, k].astype(np.int64)
+    _, first_row, back = np.unique(keys, return_index=True, return_inverse=True)
+    return first_row, back.ravel()
 
 
 def _engine(schedule: Schedule, free: list[int], first_slot: np.ndarray, factors: np.ndarray):

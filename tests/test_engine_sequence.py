@@ -11,7 +11,6 @@ import math
 
 import numpy as np
 import pytest
-import sympy as sp
 from hypothesis import given
 from hypothesis import strategies as st
 
@@ -171,6 +170,8 @@ def test_fortescue_matrix_matches_sympy_exactly():
     (1e-15: entries of magnitude ≤ 1, a few units of machine epsilon 2.2e-16),
     and A·A⁻¹ = I exactly in sympy.
     """
+    import sympy as sp  # here, not at collection (a third of a second)
+
     a = sp.exp(2 * sp.pi * sp.I / 3)
     a_exact = sp.Matrix([[1, 1, 1], [1, a**2, a], [1, a, a**2]])
     inv_exact = a_exact.inv()

@@ -35,9 +35,6 @@ from tri.engine.transformer import TransformerLink, parse_vector_group
 from tri.engine.tree_inputs import FeederImpedance, PanelLink, TreeInputs, TreeNode
 from tri.engine.tree_results import analyse_tree
 
-pp = pytest.importorskip("pandapower")
-runpp_3ph = pytest.importorskip("pandapower.pf.runpp_3ph").runpp_3ph
-
 RTOL = 1e-5
 KVA, Z_PCT, X_R = 45.0, 3.5, 2.0
 #: unbalanced wye loads on the child, per phase (P [W], Q [var])
@@ -49,8 +46,15 @@ SYS_480 = SystemVoltages(480.0, 480.0 / math.sqrt(3.0))
 SYS_208 = SystemVoltages(208.0, 208.0 / math.sqrt(3.0))
 
 
-def pandapower_net(group: str | None, shift: float):
+@pytest.fixture(scope="module")
+def pp():
+    """pandapower, imported by the tests that use it (about 2 s, so not at collection)."""
+    return pytest.importorskip("pandapower")
+
+
+def pandapower_net(pp, group: str | None, shift: float):
     """Grid — line — (transformer) — loaded bus, as pandapower sees it."""
+    runpp_3ph = pytest.importorskip("pandapower.pf.runpp_3ph").runpp_3ph
     net = pp.create_empty_network(sn_mva=1.0)
     hv = 0.48 if group else 0.208
     b0 = pp.create_bus(net, vn_kv=hv)
@@ -130,8 +134,8 @@ def tri_tree(group: str | None) -> TreeInputs:
     ("group", "shift"),
     [(None, 0.0), ("Dyn", 30.0), ("YNyn", 0.0)],
 )
-def test_child_voltages_and_feeder_currents_agree(group, shift):
-    net, load_bus = pandapower_net(group, shift)
+def test_child_voltages_and_feeder_currents_agree(pp, group, shift):
+    net, load_bus = pandapower_net(pp, group, shift)
     tri_group = {None: None, "Dyn": "Dyn1", "YNyn": "YNyn0"}[group]
     result = analyse_tree(tri_tree(tri_group), iterate_voltage=True, tol=1e-12)
     assert result.solution.converged

@@ -10,7 +10,6 @@ import math
 
 import numpy as np
 import pytest
-import sympy as sp
 from hypothesis import given
 from hypothesis import strategies as st
 
@@ -133,6 +132,8 @@ def test_beta_formula_identity_sympy():
     the difference is evaluated to 30 significant digits, so anything above a few
     units of 1e-30 would be a real discrepancy.
     """
+    import sympy as sp  # here, not at collection (a third of a second)
+
     a = sp.Rational(-1, 2) + sp.sqrt(3) * sp.I / 2
     for r, phi in [(sp.Rational(1, 50), sp.pi / 7), (sp.Rational(1, 10), sp.pi / 3)]:
         v2 = r * (sp.cos(phi) + sp.I * sp.sin(phi))

@@ -20,7 +20,7 @@ from __future__ import annotations
 
 import numpy as np
 import pytest
-from rebalance_reference import enumerate_panel, free_breakers
+from rebalance_reference import distinct_rows, enumerate_panel, free_breakers
 from rebalance_sweep import EDGE, Case, check_case, dense_panel, with_scenarios
 from sweep import sweep
 
@@ -46,6 +46,32 @@ def _phases_key(phases) -> tuple:
     return tuple(tuple(sorted(p)) for p in phases)
 
 
+def _listed_values(got: dict, slots: np.ndarray, poles: list[int]) -> np.ndarray:
+    """The listed value of each arrangement's phases (NaN: not listed) [A].
+
+    Arrangements that give every breaker the same phases share a key, so the
+    keys are built once per distinct row of phase codes.
+    """
+    codes = np.zeros(slots.shape, dtype=int)
+    keys_of: list[list[tuple[int, ...]]] = []
+    for k, p in enumerate(poles):
+        seen: list[tuple[int, ...]] = []
+        table = np.zeros(int(slots.max(initial=0)) + 1, dtype=int)
+        for s in np.unique(slots[:, k]):
+            key = tuple(sorted(slot_phases(int(s), p)))
+            if key not in seen:
+                seen.append(key)
+            table[s] = seen.index(key)
+        codes[:, k] = table[slots[:, k]]
+        keys_of.append(seen)
+    first_row, back = distinct_rows(codes)
+    per_row = np.array(
+        [got.get(tuple(keys_of[k][c] for k, c in enumerate(codes[r])), np.nan) for r in first_row],
+        dtype=float,
+    )
+    return per_row[back] if back.size else np.zeros(0)
+
+
 @pytest.mark.parametrize("chunk", sweep(range(3), 1))  # all 3 chunks: TRI_FULL_SWEEP=1
 def test_every_plan_below_the_cutoff_is_listed(chunk: int) -> None:
     checked = 0
@@ -67,12 +93,16 @@ def test_every_plan_below_the_cutoff_is_listed(chunk: int) -> None:
             for a, v in zip(listed.plans, listed.values, strict=True)
         }
         poles = [sched.circuits[i].poles for i in free]
-        for slots, value, moved in zip(enum.slots, enum.max_rms, enum.relocations, strict=True):
-            key = _phases_key(slot_phases(int(s), p) for s, p in zip(slots, poles, strict=True))
-            if key in got:  # the listed value is the engine's
-                assert got[key] == pytest.approx(value, rel=1e-9)
-            elif moved <= k and value < listed.tail * (1 - EDGE):
-                pytest.fail(f"seed {seed}: a plan at {value} A below {listed.tail} A is not listed")
+        listed_value = _listed_values(got, enum.slots, poles)
+        shown = ~np.isnan(listed_value)
+        value = enum.max_rms
+        # the listed value is the engine's (pytest.approx's rel=1e-9 band)
+        off = shown & ~(np.abs(listed_value - value) <= np.maximum(1e-9 * value, 1e-12))
+        assert not np.any(off), (seed, listed_value[off], value[off])
+        missed = ~shown & (enum.relocations <= k) & (value < listed.tail * (1 - EDGE))
+        if np.any(missed):
+            a = value[missed][0]
+            pytest.fail(f"seed {seed}: a plan at {a} A below {listed.tail} A is not listed")
         assert all(v < cutoff for v in listed.values)
         checked += 1
     assert checked >= PANELS // 6
