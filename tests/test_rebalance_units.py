@@ -365,3 +365,28 @@ def test_the_work_order_names_a_group_move_as_one_step() -> None:
         assert slots[1] - slots[0] == 2 and slots[2] - slots[1] == 2
     assert s.relocations == len({m.group or m.circuit for m in s.moves if not m.is_placement})
     assert not check_schedule(s.schedule)
+
+
+def test_new_circuits_of_a_group_are_named_as_left_out_of_the_claim() -> None:
+    """The rebalancer does not place new circuits of a shared-neutral group; a claim about
+    plans placing the new circuits must say it leaves them out (it is about the others)."""
+    from pathlib import Path
+
+    from tri.report.work_order import status_words
+    from tri.schedule.load import load_schedule
+
+    path = Path(__file__).parent / "data" / "wiring" / "mwbc_208.toml"
+    sched = load_schedule(path).schedule
+    new = tuple(
+        Circuit(name=f"New bench {k}", load_value=800.0, shared_neutral="N40", handle_tied=True)
+        for k in "AB"
+    )
+    with_new = replace(sched, circuits=sched.circuits + new)
+    with native_stdout_to_devnull():
+        s = suggest(with_new, SuggestOptions(place_new=True, target_pct=5.0))
+        plain = suggest(sched, SuggestOptions(place_new=True, target_pct=5.0))
+    words = status_words(s)
+    assert s.status == "optimal" and "the claim leaves out" in words
+    assert '"New bench A", "New bench B"' in words
+    assert not any(c.is_placed for c in s.schedule.circuits if c.shared_neutral == "N40")
+    assert "leaves out" not in status_words(plain)
