@@ -22,6 +22,7 @@ from dataclasses import dataclass
 from tri.rebalance import Move, Suggestion
 from tri.rebalance.options import plural
 from tri.rebalance.results import relocation_count
+from tri.rebalance.units import GROUP_NOT_PLACED
 from tri.schedule.model import Schedule
 
 
@@ -217,9 +218,21 @@ def _goal(s: Suggestion) -> str:
 
 
 def status_words(s: Suggestion) -> str:
-    """The status as a sentence: exactly what was proven, on the objective the output names."""
-    if s.mode == "fewest-moves":
-        return _fewest_words(s)
+    """The status as a sentence: exactly what was proven, on the objective the output names;
+    new circuits of shared-neutral groups, which the rebalancer does not place, are named
+    as left out of the claim."""
+    text = _fewest_words(s) if s.mode == "fewest-moves" else _balance_words(s)
+    left = [c.name for c in s.schedule.circuits if not c.is_placed and c.shared_neutral]
+    if left and any(GROUP_NOT_PLACED in n for n in s.notes):
+        names = ", ".join(f'"{n}"' for n in left)
+        text += (
+            f"; the claim leaves out the new circuits of shared-neutral groups ({names}), "
+            "which the rebalancer does not place (they stay without a slot)"
+        )
+    return text
+
+
+def _balance_words(s: Suggestion) -> str:
     scope = _scope(s)
     if s.status == "optimal":
         return (
