@@ -164,3 +164,19 @@ def test_a_panels_logger_export_is_copied_with_it(brewery: Path, tmp_path: Path)
     _check_written(data, out / "mdp_480.toml")
     r = run_tri("report", str(out / "mdp_480.toml"))
     assert r.returncode == 0, r.stderr
+
+
+def test_a_feeds_through_a_symbolic_link_is_refused(brewery: Path, tmp_path: Path) -> None:
+    # feeds = "link/lp2_208.toml" with link -> kitchen: a copy cannot keep both names
+    (brewery / "kitchen").mkdir()
+    (brewery / "lp2_208.toml").rename(brewery / "kitchen" / "lp2_208.toml")
+    (brewery / "link").symlink_to("kitchen", target_is_directory=True)
+    mdp = brewery / "mdp_480.toml"
+    text = mdp.read_text(encoding="utf-8")
+    mdp.write_text(text.replace('"lp2_208.toml"', '"link/lp2_208.toml"'), "utf-8")
+    out = tmp_path / "after"
+    r = run_tri("suggest", str(mdp), "--write", str(out), *PROOF_TIME)
+    assert r.returncode == 2, r.stderr
+    assert "feeds link/lp2_208.toml reaches" in r.stderr and "symbolic link" in r.stderr
+    assert "Traceback" not in r.stderr
+    assert not out.exists()  # refused before anything is written
