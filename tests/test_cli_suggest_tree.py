@@ -125,7 +125,7 @@ def test_bad_options_for_a_building_are_located():
     r = run_tri("suggest", MDP, "--at", "LP-9")
     assert r.returncode == 2 and "no panel of the building is named 'LP-9'" in r.stderr
     r = run_tri("suggest", MDP, "--write", "out.toml")
-    assert r.returncode == 2 and "--write: not yet available for a building" in r.stderr
+    assert r.returncode == 2 and "--write out.toml: a building is written as one file" in r.stderr
     r = run_tri("suggest", MDP, "--max-moves", "2")
     assert r.returncode == 2 and "--max-moves without --target" in r.stderr
     r = run_tri("suggest", MDP, "--child-target", "x")

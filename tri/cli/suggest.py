@@ -10,7 +10,8 @@ Output: ``--format text`` (default) is a work order with the safety
 caution; ``--format json`` is the rebalancer contract
 (``shared/spec/schedule-format.md``) and the only thing on standard output
 (the solver's native library is kept off it). ``--write OUT.toml`` saves the
-schedule after the moves, keeping the file's comments.
+schedule after the moves, keeping the file's comments (for a building,
+``--write DIR`` writes every panel into a new folder: :mod:`tri.cli.suggest_tree`).
 
 Exit status: 0 when the plan meets what was asked (target met, or a plan
 found), 1 when the target is out of reach or was not reached in the time
@@ -74,7 +75,10 @@ def add_parser(sub: Any) -> None:
         help=f"search time in seconds (default {DEFAULT_TIME_LIMIT_S:g})",
     )
     p.add_argument(
-        "--write", metavar="OUT", help="save the schedule after the moves to OUT (.toml)"
+        "--write",
+        metavar="OUT",
+        help="save the schedule after the moves to OUT (.toml); for a building, a new or "
+        "empty folder that receives every panel's file",
     )
     p.add_argument("--format", choices=("text", "json"), default="text", help="output format")
     from tri.cli.suggest_tree import add_tree_arguments
@@ -169,14 +173,14 @@ def run(args: argparse.Namespace) -> int:
     from tri.rebalance import suggest
 
     options = _options(args)
-    if args.write:
-        _check_write_target(args.write)
     loaded = load(args.file)
     from tri.cli.suggest_tree import run_tree, uses_tree
     from tri.schedule.tree import feeder_circuits
 
     if uses_tree(args, bool(feeder_circuits(loaded.schedule))):
-        return run_tree(args)  # the panels it feeds are searched with it
+        return run_tree(args)  # the panels it feeds are searched with it (--write: a folder)
+    if args.write:
+        _check_write_target(args.write)
     schedule = loaded.schedule
     if options.neutral_max_a is not None and not schedule.system.has_neutral:
         raise CliError(f"--neutral-max: {schedule.panel.system} is a 3-wire system with no neutral")

@@ -8,6 +8,12 @@ service within ``--target`` and every panel below it within
 what it feeds; ``--neutral-max`` limits the service's neutral RMS current
 (everything it feeds included). The work order is grouped by panel.
 
+``--write DIR`` writes the building after the moves into DIR, a new or
+empty folder (:func:`tri.schedule.tree_save.save_tree`): every panel at its
+path relative to the folder common to the inputs, so every ``feeds`` still
+resolves; panels that changed are saved with their comments kept, the
+others copied as they are. The input files are never written.
+
 The search runs in a worker thread; Ctrl+C ends it cleanly with the best
 plan so far and its honest status (exit as for the time limit).
 
@@ -18,6 +24,7 @@ them was found (or none exists), 2 for bad input or options.
 from __future__ import annotations
 
 import argparse
+import os
 import sys
 import threading
 from typing import Any
@@ -54,7 +61,6 @@ def _refuse_single_panel_options(args: argparse.Namespace) -> None:
     unsupported = [
         ("--place-new", args.place_new),
         ("--relayout", args.relayout),
-        ("--write", args.write is not None),
     ]
     for name, given in unsupported:
         if given:
@@ -137,12 +143,41 @@ def _search(tree, options, progress) -> Any:
     return out["result"]
 
 
+def _check_folder(folder: str, step: Any) -> Any:
+    """``step(folder)``, a refused folder shown as ``--write DIR: why`` (exit 2)."""
+    try:
+        return step(folder)
+    except ValueError as exc:
+        raise CliError(f"--write {folder}: {exc}") from None
+
+
+def _write(tree: Any, result: Any, folder: str) -> None:
+    """Write the building after the moves into ``folder``; say what was written on stderr."""
+    from tri.schedule.tree_save import save_tree
+
+    schedules = [p.schedule for p in result.tree.panels]
+    written = _check_folder(folder, lambda f: save_tree(tree, schedules, f))
+    names = [(os.path.relpath(w.written, folder), w.changed) for w in written]
+    changed = [n for n, c in names if c]
+    copied = [n for n, c in names if not c]
+    top = written[0].written
+    print(
+        f"tri: wrote the building after the moves to {folder} (top panel {top}): "
+        + (f"changed: {', '.join(changed)}" if changed else "no panel changed (no moves)")
+        + (f"; copied unchanged: {', '.join(copied)}" if copied else ""),
+        file=sys.stderr,
+    )
+
+
 def run_tree(args: argparse.Namespace) -> int:
     """Run ``tri suggest`` on a building; returns 0 or 1 (bad input raises, exit 2)."""
     from tri.schedule.tree import load_tree
+    from tri.schedule.tree_save import check_tree_folder
 
     _refuse_single_panel_options(args)
     options = _options(args)
+    if args.write is not None:
+        _check_folder(args.write, check_tree_folder)
     tree = load_tree(args.file)
     before = tuple(p.schedule for p in tree.panels)
     progress = _Progress()
@@ -155,6 +190,8 @@ def run_tree(args: argparse.Namespace) -> int:
         progress.clear()
     if result.stopped == "cancelled":
         print("tri: stopped by Ctrl+C; shown: the best plan so far", file=sys.stderr)
+    if args.write is not None:
+        _write(tree, result, args.write)
 
     from tri.cli.report import emit
     from tri.report.tree_work_order import render_tree_json, render_tree_text, tree_suggestion_data

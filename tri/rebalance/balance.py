@@ -305,16 +305,19 @@ class _BalanceSearch:
             self.offer(self.ev.plan(ls.assign))
 
     def within_budget(self, stop_gap: float) -> None:
-        """With a budget that binds: exchanges that keep the move count, then the relaxation.
+        """With a budget that binds: exchanges that keep the move count, then the relaxation
+        (on a high-leg delta, where there is no floor, the relaxation in a re-layout too).
 
         :mod:`tri.rebalance.exchange` finds better plans (no proof);
         :mod:`tri.rebalance.relaxation` bounds every plan with fractional
         moves, stopping once the bound closes on the best plan.
         """
         c = self.control
-        if self.out.plan is None or self.budget >= self.pr.n_movable:
+        binds = self.budget < self.pr.n_movable
+        # a re-layout on phases 120° apart has the floor F; on a high leg only this bound
+        if self.out.plan is None or not (binds or not self.pr.symmetric):
             return
-        if not self.done(stop_gap):
+        if binds and not self.done(stop_gap):
             until = c.elapsed() + EXCHANGE_SHARE * c.remaining()
             start = self.out.plan.assign
             self.offer(self.ev.plan(exchange_search(self.pr, self.goal, c, start, until, stop_gap)))

@@ -58,7 +58,10 @@ crossing and triangle bounds of :mod:`tri.rebalance.crossing` and
 :mod:`tri.rebalance.halves`, the plan-free triplen neutral). On such a
 panel :attr:`Problem.symmetric` is False, ``floor_a`` is 0 and those bounds
 are not used; proofs come from listing every plan
-(:mod:`tri.rebalance.exhaust`) and from the programs, whose rows (the
+(:mod:`tri.rebalance.exhaust`), from the relaxation with fractional moves
+(:mod:`tri.rebalance.relaxation`, which holds for any phasors: in the
+balance modes, a re-layout included, it stands in for the floor) and from
+the programs, whose rows (the
 magnitude bounds of :mod:`tri.rebalance.lower_bounds`, Cauchy-Schwarz on
 each phase's own currents, and the budget floor of Theorem 3 of
 :mod:`tri.rebalance.crossing`, which is the same inequality) hold for any

@@ -78,6 +78,11 @@ from tri.schedule.wiring import circuit_pole_phases
 PAIRS: tuple[tuple[int, int], ...] = ((0, 1), (1, 2), (2, 0))
 
 
+#: Words of the note on a new circuit of a shared-neutral group, which is not placed
+#: (the status words name such circuits as left out of the claim).
+GROUP_NOT_PLACED = "does not place circuits of a shared-neutral group"
+
+
 def pair_index(phases: Sequence[int]) -> int:
     """Index in :data:`PAIRS` of an (unordered) pair of phases."""
     s = set(phases)
@@ -146,8 +151,7 @@ def free_units(schedule: Schedule, free: Sequence[int]) -> tuple[list[Unit], lis
             if not c.is_placed:
                 notes.append(
                     f'the new circuit "{c.name}" names shared neutral {c.shared_neutral!r}: '
-                    "the rebalancer does not place circuits of a shared-neutral group (left "
-                    "without a slot)"
+                    f"the rebalancer {GROUP_NOT_PLACED} (left without a slot)"
                 )
                 continue
             members = groups[c.shared_neutral]

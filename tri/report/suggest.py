@@ -49,12 +49,12 @@ from rich.text import Text
 
 from tri.rebalance import Figures, Suggestion
 from tri.report.data import num
+from tri.report.floor_words import floor_words
 from tri.report.text_report import to_ascii
 from tri.report.work_order import (
     count_words,
     deciding_words,
     fixed,
-    floor_words,
     limits_words,
     status_words,
     work_order,

@@ -22,6 +22,7 @@ from dataclasses import dataclass
 from tri.rebalance import Move, Suggestion
 from tri.rebalance.options import plural
 from tri.rebalance.results import relocation_count
+from tri.rebalance.units import GROUP_NOT_PLACED
 from tri.schedule.model import Schedule
 
 
@@ -217,9 +218,21 @@ def _goal(s: Suggestion) -> str:
 
 
 def status_words(s: Suggestion) -> str:
-    """The status as a sentence: exactly what was proven, on the objective the output names."""
-    if s.mode == "fewest-moves":
-        return _fewest_words(s)
+    """The status as a sentence: exactly what was proven, on the objective the output names;
+    new circuits of shared-neutral groups, which the rebalancer does not place, are named
+    as left out of the claim."""
+    text = _fewest_words(s) if s.mode == "fewest-moves" else _balance_words(s)
+    left = [c.name for c in s.schedule.circuits if not c.is_placed and c.shared_neutral]
+    if left and any(GROUP_NOT_PLACED in n for n in s.notes):
+        names = ", ".join(f'"{n}"' for n in left)
+        text += (
+            f"; the claim leaves out the new circuits of shared-neutral groups ({names}), "
+            "which the rebalancer does not place (they stay without a slot)"
+        )
+    return text
+
+
+def _balance_words(s: Suggestion) -> str:
     scope = _scope(s)
     if s.status == "optimal":
         return (
@@ -303,32 +316,6 @@ def moves_count_words(*panels: tuple[Move, ...] | list[Move]) -> str:
     return text
 
 
-def _no_floor(s: Suggestion) -> bool:
-    """A high-leg delta: no floor is proven (:mod:`tri.rebalance.problem`, High leg)."""
-    return s.schedule.panel.effective_high_leg is not None
-
-
-def floor_words(s: Suggestion) -> str:
-    """How close the largest phase comes to the floor no arrangement can go below."""
-    top = s.worst_max_phase_rms_a
-    if _no_floor(s):
-        return (
-            "No floor is given on a high-leg delta: its phases are not 120° apart to neutral, "
-            f"so the positive-sequence share moves with the circuits; after the moves the "
-            f"largest phase is {fixed(top, 1)}\u00a0A."
-        )
-    gap = 100.0 * (top - s.floor_a) / s.floor_a if s.floor_a > 0 else 0.0
-    where, after = "", "after the moves it is"
-    if s.cases:
-        where = f" in the {s.floor_case} case"
-        after = "after the moves the worst case's is"
-    return (
-        f"No arrangement can bring the largest phase{where} below {fixed(s.floor_a, 1)} A "
-        f"(its share of the positive-sequence current, harmonics included); {after} "
-        f"{fixed(top, 1)}\u00a0A, {fixed(gap, 2)}\u00a0% above."
-    )
-
-
 def deciding_words(s: Suggestion) -> str | None:
     """Which case decides after the moves, and by what figure; None without scenarios."""
     if not s.cases:
@@ -358,18 +345,6 @@ def case_lines(s: Suggestion) -> list[str]:
             f"{fixed(a.max_phase_rms_a, 1)} A"
         )
     return out
-
-
-def floor_brief(s: Suggestion) -> str:
-    """:func:`floor_words` in fewer words, for a small screen."""
-    top = s.worst_max_phase_rms_a
-    if _no_floor(s):
-        return f"No floor on a high-leg delta; largest phase after: {fixed(top, 1)} A."
-    gap = 100.0 * (top - s.floor_a) / s.floor_a if s.floor_a > 0 else 0.0
-    return (
-        f"Floor {fixed(s.floor_a, 1)} A (no arrangement goes below it); largest phase after: "
-        f"{fixed(top, 1)} A, {fixed(gap, 2)} % above."
-    )
 
 
 def limits_brief(s: Suggestion) -> str | None:

@@ -33,14 +33,13 @@ from tri.rebalance import (
     apply_moves,
     suggest,
 )
+from tri.report.floor_words import floor_brief, floor_words
 from tri.report.work_order import (
     WorkLine,
     case_lines,
     count_words,
     deciding_words,
     fixed,
-    floor_brief,
-    floor_words,
     limits_brief,
     limits_words,
     status_words,
