@@ -28,7 +28,7 @@ from pathlib import Path
 
 import numpy as np
 from bench_rebalance import random_panel, run
-from variant_rows import variant_row
+from variant_rows import print_tables
 
 from tri.rebalance import SuggestOptions
 from tri.schedule.load import load_schedule
@@ -54,32 +54,21 @@ def with_day_and_night(schedule: Schedule, seed: int) -> Schedule:
     return replace(schedule, circuits=tuple(circuits))
 
 
-def _maker(n: int, layout: str):
-    def make(seed: int):
-        base = random_panel(n, seed, layout)
-        return base, with_day_and_night(base, seed)
-
-    return make
+def _pair(n: int, layout: str, seed: int) -> tuple[Schedule, Schedule]:
+    base = random_panel(n, seed, layout)
+    return base, with_day_and_night(base, seed)
 
 
 def main() -> None:
     ap = argparse.ArgumentParser(description=__doc__.split("\n")[0])
     ap.add_argument("--quick", action="store_true", help="one panel per size, 0.5 s limit")
     args = ap.parse_args()
-    seeds = range(1) if args.quick else range(5)
-    sizes = [42] if args.quick else [42, 84]
-    limit = 0.5 if args.quick else 10.0
     modes = (
         ("fewest moves to 20 % in every case", SuggestOptions(target_pct=20.0)),
         ("best balance with n/7 moves (at least 2), every case", SuggestOptions(max_moves=1)),
     )
-    for title, options in modes:
-        print(f"{title} (time limit {limit:g} s)")
-        print("    n layout      median s    max s  proven  vs no scenarios")
-        for n in sizes:
-            for layout in ("two-column", "phases"):
-                opts = replace(options, time_limit_s=limit)
-                print(variant_row(n, layout, seeds, opts, _maker(n, layout)))
+    header = "    n layout      median s    max s  proven  vs no scenarios"
+    limit = print_tables(modes, ("two-column", "phases"), header, _pair, args.quick)
     garage = load_schedule(DEMO).schedule
     s, t = run(garage, SuggestOptions(target_pct=10.0, time_limit_s=max(limit, 5.0)))
     print(f"logged garage demo, 10 % in every case: {s.status} in {t:.2f} s")

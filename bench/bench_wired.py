@@ -30,7 +30,7 @@ from dataclasses import replace
 
 import numpy as np
 from bench_rebalance import random_panel
-from variant_rows import variant_row
+from variant_rows import print_tables
 
 from tri.rebalance import SuggestOptions
 from tri.schedule.model import Circuit, Schedule
@@ -76,33 +76,22 @@ def on_high_leg_delta(schedule: Schedule) -> Schedule:
 WIRINGS = {"groups": with_groups, "high leg": lambda s, seed: on_high_leg_delta(s)}
 
 
-def _maker(n: int, wiring: str):
-    def make(seed: int):
-        base = random_panel(n, seed)
-        return base, WIRINGS[wiring](base, seed)
-
-    return make
+def _pair(n: int, wiring: str, seed: int) -> tuple[Schedule, Schedule]:
+    base = random_panel(n, seed)
+    return base, WIRINGS[wiring](base, seed)
 
 
 def main() -> None:
     ap = argparse.ArgumentParser(description=__doc__.split("\n")[0])
     ap.add_argument("--quick", action="store_true", help="one panel per size, 0.5 s limit")
     args = ap.parse_args()
-    seeds = range(1) if args.quick else range(5)
-    sizes = [42] if args.quick else [42, 84]
-    limit = 0.5 if args.quick else 10.0
     modes = (
         ("fewest moves to 10 %", SuggestOptions(target_pct=10.0)),
         ("best balance with n/7 moves", SuggestOptions(max_moves=2, floor_gap=1e-3)),
         ("full re-layout (stops within 0.1 %)", SuggestOptions(relayout=True, floor_gap=1e-3)),
     )
-    for title, options in modes:
-        print(f"{title} (time limit {limit:g} s)")
-        print("    n wiring    median s    max s  proven  vs plain panel")
-        for n in sizes:
-            for wiring in WIRINGS:
-                opts = replace(options, time_limit_s=limit)
-                print(variant_row(n, wiring, seeds, opts, _maker(n, wiring)))
+    header = "    n wiring    median s    max s  proven  vs plain panel"
+    print_tables(modes, tuple(WIRINGS), header, _pair, args.quick)
 
 
 if __name__ == "__main__":
