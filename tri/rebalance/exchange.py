@@ -9,7 +9,9 @@ the count: one moved breaker back home and one other breaker moved, or two
 and two, every such pair at once (vectorised over the candidates, scored
 with the exact currents, capacity checked), the best one taken, then the
 descent again. Kicks restart it elsewhere (iterated local search), until a
-share of the time is used. It finds plans; it proves nothing.
+share of the time is used or :data:`PATIENCE` kicks in a row found nothing
+better (a small panel is settled in a few milliseconds, not the whole
+share). It finds plans; it proves nothing.
 """
 
 from __future__ import annotations
@@ -27,6 +29,8 @@ from tri.rebalance.problem import Problem
 STEP_LIMIT = 1_500_000
 #: Candidate plans scored per array (memory) [-].
 CHUNK = 60_000
+#: Kicks in a row without a better plan before the search gives up [-].
+PATIENCE = 50
 
 Change = tuple[int, int]
 
@@ -119,24 +123,27 @@ def exchange_step(ls: LocalSearch, rng: np.random.Generator) -> bool:
 def exchange_search(
     pr: Problem, goal: Goal, control: Control, start: np.ndarray, until_s: float, stop_gap: float
 ) -> np.ndarray:
-    """Exchanges, descents and kicks from ``start`` until ``until_s`` elapsed (module notes).
+    """Exchanges, descents and kicks from ``start`` until ``until_s`` elapsed or
+    :data:`PATIENCE` kicks bring nothing (module notes).
 
     Returns the best plan found (options per free circuit), ``start`` if none is better.
     """
     rng = np.random.default_rng(0)
     ls = LocalSearch(pr, goal, control, start, stop_gap)
     best, ref = ls.assign.copy(), ls.score()
+    idle = 0
 
     def out_of_time() -> bool:
         return control.stop() or control.elapsed() > until_s
 
-    while not out_of_time() and not ls.done():
+    while not out_of_time() and not ls.done() and idle < PATIENCE:
         while not out_of_time() and not ls.done() and exchange_step(ls, rng):
             ls.descend()
         p, s = ls.score()
         within = goal.max_moves is None or ls.moves <= goal.max_moves
+        idle += 1
         if within and ls._better(p, s, ref):
-            best, ref = ls.assign.copy(), (p, s)
+            best, ref, idle = ls.assign.copy(), (p, s), 0
         ls.load(best)
         ls.kick(rng, int(rng.integers(2, 5)))
         ls.descend()
