@@ -19,8 +19,9 @@ from rebalance_sweep import dense_panel
 
 from tri.rebalance.control import Control
 from tri.rebalance.exchange import exchange_search, exchange_step
+from tri.rebalance.first_plan import heuristic_plan
 from tri.rebalance.goal import Goal
-from tri.rebalance.heuristic import LocalSearch, heuristic_plan
+from tri.rebalance.heuristic import LocalSearch
 from tri.rebalance.problem import build_problem
 
 #: Panels tried [-].

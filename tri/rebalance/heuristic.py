@@ -1,6 +1,8 @@
-"""Greedy start and local search (moves and swaps), with exact figures at every step.
+"""Local search over breaker options (moves and swaps), with exact figures at every step.
 
-The heuristic gives the search a good plan at once; the mixed-integer
+:class:`LocalSearch` holds the search state and its steps;
+:func:`tri.rebalance.first_plan.heuristic_plan` runs them in the order
+below. The heuristic gives the search a good plan at once; the mixed-integer
 program then improves it or proves it. Every candidate is scored with the
 exact phase and neutral RMS currents (superposition of the engine's
 per-option currents, :func:`tri.rebalance.problem.spectra`), vectorised
@@ -359,72 +361,3 @@ class LocalSearch:
                 else:
                     self.set(int(i), old)
         return undone
-
-
-def heuristic_plan(
-    problem: Problem,
-    goal: Goal,
-    control: Control,
-    *,
-    from_scratch: bool = False,
-    swaps: bool = True,
-    kicks: bool = True,
-    seed: int = 0,
-    stop_gap: float = 1e-12,
-) -> np.ndarray | None:
-    """A good plan at once: insertion, descent, pruning (module notes).
-
-    Parameters
-    ----------
-    problem : Problem
-    goal : Goal
-    control : Control
-        Time limit and cancel hook (the search stops early, keeping its best).
-    from_scratch : bool
-        Also build a plan by inserting every free circuit afresh (full
-        re-layout) and keep the better one.
-    swaps : bool
-        Allow swaps in the descent.
-    kicks : bool
-        Follow the descent by an iterated local search (random kicks, fixed
-        ``seed`` so results repeat).
-    seed : int
-        Seed of the kicks.
-    stop_gap : float
-        Balance: stop once the largest phase is within this fraction of the
-        floor ``F`` (a proven bound, so nothing more is needed) [-].
-
-    Returns
-    -------
-    int ndarray, shape (F,) or None
-        Option of each free circuit; None when the new circuits do not fit.
-    """
-    start = np.where(problem.current >= 0, problem.current, -1)
-    plans = []
-    rng = np.random.default_rng(seed)
-    ls = LocalSearch(problem, goal, control, start, stop_gap)
-    if ls.insert_missing():
-        ls.descend(swaps=swaps)
-        if kicks:
-            ls.iterate(rng)
-        ls.prune()
-        plans.append(ls)
-    if from_scratch and problem.n_free:
-        fresh = LocalSearch(problem, goal, control, np.full(problem.n_free, -1), stop_gap)
-        if fresh.insert_missing():
-            fresh.descend(swaps=swaps)
-            if kicks:
-                fresh.iterate(rng)
-            fresh.prune()
-            plans.append(fresh)
-    if not plans:
-        return None
-    best = plans[0]
-    for other in plans[1:]:
-        p, s = other.score()
-        bp, bs = best.score()
-        if best._better(p, s, (bp, bs)) or (
-            p <= bp + best.tol[0] and s <= bs + best.tol[1] and other.moves < best.moves
-        ):
-            best = other
-    return best.assign.copy()

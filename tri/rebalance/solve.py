@@ -41,9 +41,10 @@ import numpy as np
 from tri.rebalance.balance import solve_balance
 from tri.rebalance.control import CancelHook, Cancelled, Control, ProgressCallback
 from tri.rebalance.exhaust import enumeration_fits
+from tri.rebalance.first_plan import heuristic_plan
 from tri.rebalance.goal import Goal
 from tri.rebalance.halves import halves_fit
-from tri.rebalance.heuristic import LocalSearch, heuristic_plan
+from tri.rebalance.heuristic import LocalSearch
 from tri.rebalance.moves import moves_for, unit_notes
 from tri.rebalance.options import SuggestOptions, objective_text
 from tri.rebalance.plans import TOL, Evaluator, Plan
