@@ -31,6 +31,7 @@ import numpy as np
 import pytest
 from rebalance_reference import enumerate_panel, free_breakers
 from rebalance_sweep import Case, cases_for, check_case, dense_panel
+from sweep import seed_chunks, seed_ids
 
 from tri.native_output import native_stdout_to_devnull
 from tri.rebalance import SuggestOptions, suggest
@@ -39,10 +40,11 @@ from tri.schedule.slots import fits, occupied_slots
 from tri.schedule.to_engine import analyse_schedule
 
 DATA = Path(__file__).parent / "data" / "rebalance"
-#: Panels per chunk and chunks of the product's path, and of the programs' path [-].
-#: Panels per chunk, chunks through the product path, chunks through the programs alone
-#: (the programs alone are the slow part; bench/bench_rebalance_sweep.py runs many more).
-CHUNK, CHUNKS, MILP_CHUNKS = 12, 10, 1
+#: Seeds through the product's path and through the programs alone (the slow part): the
+#: suite runs the first chunks, TRI_FULL_SWEEP=1 all (tests/sweep.py);
+#: bench/bench_rebalance_sweep.py runs many more.
+PRODUCT_SEEDS = seed_chunks(0, 120, 12, in_suite=4)
+PROGRAM_SEEDS = seed_chunks(10_000, 12, 4, in_suite=1)
 STATUSES: collections.Counter[tuple[str, str]] = collections.Counter()
 
 
@@ -70,10 +72,10 @@ def _false_claims(seed: int, sched, cases: list[Case], mode_tag: str, **extra) -
     return false
 
 
-@pytest.mark.parametrize("chunk", range(CHUNKS))
-def test_every_claim_is_true_on_dense_panels(chunk: int) -> None:
+@pytest.mark.parametrize("seeds", PRODUCT_SEEDS, ids=seed_ids)
+def test_every_claim_is_true_on_dense_panels(seeds: range) -> None:
     false = []
-    for seed in range(chunk * CHUNK, (chunk + 1) * CHUNK):
+    for seed in seeds:
         rng, sched = _panel(seed)
         false += _false_claims(
             seed, sched, cases_for(rng, sched), "", time_limit_s=10.0, floor_gap=0.0
@@ -81,10 +83,10 @@ def test_every_claim_is_true_on_dense_panels(chunk: int) -> None:
     assert not false
 
 
-@pytest.mark.parametrize("chunk", range(MILP_CHUNKS))
-def test_every_claim_of_the_programs_alone_is_true(chunk: int) -> None:
+@pytest.mark.parametrize("seeds", PROGRAM_SEEDS, ids=seed_ids)
+def test_every_claim_of_the_programs_alone_is_true(seeds: range) -> None:
     false = []
-    for seed in range(10_000 + chunk * CHUNK, 10_000 + (chunk + 1) * CHUNK):
+    for seed in seeds:
         rng, sched = _panel(seed)
         false += _false_claims(
             seed,

@@ -24,6 +24,7 @@ import pytest
 from rebalance_reference import Enumerated, free_breakers
 from rebalance_sweep import PROFILES, cases_for, check_case
 from rebalance_wired_reference import rail_options, stack_arrays
+from sweep import seed_chunks, seed_ids
 
 from tri.engine import analyse_batch
 from tri.native_output import native_stdout_to_devnull
@@ -107,10 +108,21 @@ def enumerate_rail(sched: Schedule, free: list[int]) -> tuple[Enumerated, list]:
     return enum, plans
 
 
-@pytest.mark.parametrize("list_plans", [True, False], ids=["product", "programs"])
-def test_every_claim_is_true_on_rail_boards_with_rcds(list_plans: bool) -> None:
+#: (through the listings, seeds) of each test: the programs alone are the slow part; the
+#: suite runs half their panels, TRI_FULL_SWEEP=1 all (tests/sweep.py).
+RUNS = [(True, range(PANELS))] + [
+    (False, seeds) for seeds in seed_chunks(0, PANELS, PANELS // 2, in_suite=1)
+]
+
+
+@pytest.mark.parametrize(
+    ("list_plans", "seeds"),
+    RUNS,
+    ids=[("product-" if lp else "programs-") + seed_ids(seeds) for lp, seeds in RUNS],
+)
+def test_every_claim_is_true_on_rail_boards_with_rcds(list_plans: bool, seeds: range) -> None:
     false = []
-    for seed in range(PANELS):
+    for seed in seeds:
         rng = np.random.default_rng(900 + seed)
         sched = rail_panel(rng)
         for case in cases_for(rng, sched):

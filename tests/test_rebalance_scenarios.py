@@ -24,16 +24,17 @@ import numpy as np
 import pytest
 from rebalance_reference import enumerate_panel, free_breakers
 from rebalance_sweep import Case, cases_for, check_case, dense_panel, with_scenarios
+from sweep import seed_chunks, seed_ids
 
 from tri.native_output import native_stdout_to_devnull
 from tri.rebalance import suggest
 from tri.schedule.load import load_schedule
 from tri.schedule.to_scenarios import analyse_cases
 
-#: Panels per chunk and chunks of the product's path, and of the programs' path [-].
-#: Panels per chunk, chunks through the product path and through the programs alone
-#: (the slow part; one chunk keeps the suite under two minutes).
-CHUNK, CHUNKS, MILP_CHUNKS = 10, 4, 1
+#: Seeds through the product's path and through the programs alone (the slow part): the
+#: suite runs the first chunks, TRI_FULL_SWEEP=1 all (tests/sweep.py).
+PRODUCT_SEEDS = seed_chunks(20_000, 40, 10, in_suite=2)
+PROGRAM_SEEDS = seed_chunks(30_000, 10, 4, in_suite=1)
 STATUSES: collections.Counter[tuple[str, str]] = collections.Counter()
 
 
@@ -92,19 +93,19 @@ def _false_claims(seed: int, sched, tag: str, **extra) -> list:
     return false
 
 
-@pytest.mark.parametrize("chunk", range(CHUNKS))
-def test_every_claim_holds_in_every_scenario(chunk: int) -> None:
+@pytest.mark.parametrize("seeds", PRODUCT_SEEDS, ids=seed_ids)
+def test_every_claim_holds_in_every_scenario(seeds: range) -> None:
     false = []
-    for seed in range(20_000 + chunk * CHUNK, 20_000 + (chunk + 1) * CHUNK):
+    for seed in seeds:
         _, sched = _panel(seed)
         false += _false_claims(seed, sched, "", time_limit_s=10.0, floor_gap=0.0)
     assert not false
 
 
-@pytest.mark.parametrize("chunk", range(MILP_CHUNKS))
-def test_every_claim_of_the_programs_alone_holds_in_every_scenario(chunk: int) -> None:
+@pytest.mark.parametrize("seeds", PROGRAM_SEEDS, ids=seed_ids)
+def test_every_claim_of_the_programs_alone_holds_in_every_scenario(seeds: range) -> None:
     false = []
-    for seed in range(30_000 + chunk * CHUNK, 30_000 + (chunk + 1) * CHUNK):
+    for seed in seeds:
         _, sched = _panel(seed)
         false += _false_claims(
             seed, sched, " (programs)", time_limit_s=0.5, floor_gap=0.0, list_plans=False

@@ -27,6 +27,7 @@ import pytest
 from rebalance_reference import free_breakers
 from rebalance_sweep import EDGE, PROFILES, cases_for, check_case, dense_panel
 from rebalance_wired_reference import blocks_of, enumerate_wired
+from sweep import seed_chunks, seed_ids
 
 from tri.engine.sequence import A_OP
 from tri.native_output import native_stdout_to_devnull
@@ -38,8 +39,14 @@ from tri.schedule.model import Circuit, PanelInfo, Schedule, UserProfile
 from tri.schedule.slots import RIGHT_CBA, TWO_COLUMN, slot_phases
 from tri.schedule.validate import check_schedule
 
-#: Panels per chunk, chunks of the product's path and of the programs alone [-].
-CHUNK, CHUNKS, MILP_CHUNKS, HIGH_LEG_CHUNKS = 10, 3, 1, 2
+#: Seeds through the product's path and the programs alone, with groups and on a high
+#: leg: the suite runs the first chunks, TRI_FULL_SWEEP=1 all (tests/sweep.py).
+PRODUCT_SEEDS = seed_chunks(0, 30, 10, in_suite=1)
+PROGRAM_SEEDS = seed_chunks(5_000, 10, 4, in_suite=1)
+HIGH_LEG_SEEDS = seed_chunks(7_000, 20, 10, in_suite=1)
+HIGH_LEG_PROGRAM_SEEDS = seed_chunks(7_500, 20, 5, in_suite=1)
+#: Panels of the relaxation's check [-].
+RELAXATION_PANELS = 10
 STATUSES: collections.Counter[tuple[str, str]] = collections.Counter()
 
 
@@ -154,19 +161,19 @@ def _false_claims(seed: int, sched: Schedule, tag: str, **extra) -> list:
     return false
 
 
-@pytest.mark.parametrize("chunk", range(CHUNKS))
-def test_every_claim_is_true_with_per_leg_loads_and_groups(chunk: int) -> None:
+@pytest.mark.parametrize("seeds", PRODUCT_SEEDS, ids=seed_ids)
+def test_every_claim_is_true_with_per_leg_loads_and_groups(seeds: range) -> None:
     false = []
-    for seed in range(chunk * CHUNK, (chunk + 1) * CHUNK):
+    for seed in seeds:
         _, sched = _panel(seed)
         false += _false_claims(seed, sched, "", time_limit_s=10.0, floor_gap=0.0)
     assert not false
 
 
-@pytest.mark.parametrize("chunk", range(MILP_CHUNKS))
-def test_every_claim_of_the_programs_alone_is_true_with_groups(chunk: int) -> None:
+@pytest.mark.parametrize("seeds", PROGRAM_SEEDS, ids=seed_ids)
+def test_every_claim_of_the_programs_alone_is_true_with_groups(seeds: range) -> None:
     false = []
-    for seed in range(5_000 + chunk * CHUNK, 5_000 + (chunk + 1) * CHUNK):
+    for seed in seeds:
         _, sched = _panel(seed)
         false += _false_claims(
             seed, sched, " (programs)", time_limit_s=0.5, floor_gap=0.0, list_plans=False
@@ -174,11 +181,11 @@ def test_every_claim_of_the_programs_alone_is_true_with_groups(chunk: int) -> No
     assert not false
 
 
-@pytest.mark.parametrize("chunk", range(HIGH_LEG_CHUNKS))
-def test_every_claim_is_true_on_a_high_leg_delta(chunk: int) -> None:
+@pytest.mark.parametrize("seeds", HIGH_LEG_SEEDS, ids=seed_ids)
+def test_every_claim_is_true_on_a_high_leg_delta(seeds: range) -> None:
     """No load to neutral is offered the high leg, and no claim leans on 120° symmetry."""
     false = []
-    for seed in range(7_000 + chunk * CHUNK, 7_000 + (chunk + 1) * CHUNK):
+    for seed in seeds:
         _, sched = _panel(seed)
         sched = _high_leg(sched)
         assert not check_schedule(sched), check_schedule(sched)[0].message
@@ -190,12 +197,12 @@ def test_every_claim_is_true_on_a_high_leg_delta(chunk: int) -> None:
     assert not false
 
 
-@pytest.mark.parametrize("chunk", range(HIGH_LEG_CHUNKS))
-def test_every_claim_of_the_programs_alone_is_true_on_a_high_leg_delta(chunk: int) -> None:
+@pytest.mark.parametrize("seeds", HIGH_LEG_PROGRAM_SEEDS, ids=seed_ids)
+def test_every_claim_of_the_programs_alone_is_true_on_a_high_leg_delta(seeds: range) -> None:
     """Without the listings: the relaxation (:mod:`tri.rebalance.relaxation`), the only
     bound of a re-layout on a high leg, and the programs decide every claim."""
     false = []
-    for seed in range(7_500 + chunk * CHUNK, 7_500 + (chunk + 1) * CHUNK):
+    for seed in seeds:
         _, sched = _panel(seed)
         sched = _high_leg(sched)
         false += _false_claims(
@@ -241,7 +248,7 @@ def test_the_wired_sweep_proves_things() -> None:
         test_every_claim_is_true_with_per_leg_loads_and_groups(0)
     seen = {status for (_, status) in STATUSES}
     assert {"optimal", "infeasible"} <= seen
-    panels = [_panel(seed)[1] for seed in range(CHUNK)]
+    panels = [_panel(seed)[1] for seed in range(RELAXATION_PANELS)]
     assert any(c.shared_neutral for p in panels for c in p.circuits)
     assert any(c.has_legs for p in panels for c in p.circuits)
 

@@ -23,6 +23,7 @@ import pytest
 from cli_support import run_tri
 from rebalance_reference import enumerate_panel, free_breakers
 from rebalance_sweep import cases_for, check_case, dense_panel
+from sweep import seed_chunks, seed_ids
 
 from tri.native_output import native_stdout_to_devnull
 from tri.rebalance import suggest
@@ -30,8 +31,13 @@ from tri.schedule.load import load_schedule
 from tri.schedule.model import Schedule
 from tri.schedule.slots import RIGHT_CBA, slot_phases
 
-#: Panels per chunk, chunks of the product's path and of the programs alone [-].
-CHUNK, CHUNKS, MILP_CHUNKS = 8, 3, 1
+#: Seeds with a C-B-A right column and within a reach limit, through the product's path
+#: and the programs alone: the suite runs the first chunks, TRI_FULL_SWEEP=1 all
+#: (tests/sweep.py).
+CBA_SEEDS = seed_chunks(500, 24, 8, in_suite=1)
+CBA_PROGRAM_SEEDS = seed_chunks(900, 8, 4, in_suite=1)
+REACH_SEEDS = seed_chunks(700, 24, 8, in_suite=1)
+REACH_PROGRAM_SEEDS = seed_chunks(1100, 8, 4, in_suite=1)
 
 
 def cba(schedule: Schedule) -> Schedule:
@@ -73,19 +79,19 @@ def test_the_reference_reads_the_right_column_c_b_a() -> None:
     assert set(slot_phases(2, 2, RIGHT_CBA)) == {1, 2}  # C-B: the pair B-C
 
 
-@pytest.mark.parametrize("chunk", range(CHUNKS))
-def test_every_claim_is_true_with_a_c_b_a_right_column(chunk: int) -> None:
+@pytest.mark.parametrize("seeds", CBA_SEEDS, ids=seed_ids)
+def test_every_claim_is_true_with_a_c_b_a_right_column(seeds: range) -> None:
     false = []
-    for seed in range(500 + chunk * CHUNK, 500 + (chunk + 1) * CHUNK):
+    for seed in seeds:
         _, sched = _cba_panel(seed)
         false += _false_claims(seed, sched, time_limit_s=10.0, floor_gap=0.0)
     assert not false
 
 
-@pytest.mark.parametrize("chunk", range(MILP_CHUNKS))
-def test_every_claim_of_the_programs_alone_is_true_with_c_b_a(chunk: int) -> None:
+@pytest.mark.parametrize("seeds", CBA_PROGRAM_SEEDS, ids=seed_ids)
+def test_every_claim_of_the_programs_alone_is_true_with_c_b_a(seeds: range) -> None:
     false = []
-    for seed in range(900 + chunk * CHUNK, 900 + (chunk + 1) * CHUNK):
+    for seed in seeds:
         _, sched = _cba_panel(seed)
         false += _false_claims(seed, sched, time_limit_s=0.5, floor_gap=0.0, list_plans=False)
     assert not false
@@ -167,8 +173,8 @@ def _reach_panel(seed: int):
     return rng, replace(sched, panel=replace(sched.panel, max_row_shift=reach))
 
 
-@pytest.mark.parametrize("chunk", range(CHUNKS))
-def test_every_claim_is_true_within_a_reach_limit(chunk: int) -> None:
+@pytest.mark.parametrize("seeds", REACH_SEEDS, ids=seed_ids)
+def test_every_claim_is_true_within_a_reach_limit(seeds: range) -> None:
     """Plans, fewest moves, budgets and bounds against every arrangement within the reach.
 
     The reference lists only arrangements in which no placed breaker's row
@@ -177,15 +183,16 @@ def test_every_claim_is_true_within_a_reach_limit(chunk: int) -> None:
     on the panel without the limit but false with it is caught too.
     """
     false = []
-    for seed in range(700 + chunk * CHUNK, 700 + (chunk + 1) * CHUNK):
+    for seed in seeds:
         _, sched = _reach_panel(seed)
         false += _false_claims(seed, sched, time_limit_s=10.0, floor_gap=0.0)
     assert not false
 
 
-def test_every_claim_of_the_programs_alone_is_true_within_a_reach_limit() -> None:
+@pytest.mark.parametrize("seeds", REACH_PROGRAM_SEEDS, ids=seed_ids)
+def test_every_claim_of_the_programs_alone_is_true_within_a_reach_limit(seeds: range) -> None:
     false = []
-    for seed in range(1100, 1100 + CHUNK):
+    for seed in seeds:
         _, sched = _reach_panel(seed)
         false += _false_claims(seed, sched, time_limit_s=0.5, floor_gap=0.0, list_plans=False)
     assert not false
