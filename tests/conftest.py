@@ -14,7 +14,7 @@ TUI_DATA = Path(__file__).parent / "data" / "tui"
 
 #: Textual's pilot nap while it waits for the app to go idle [s], and the CPU time
 #: within one nap below which the app counts as idle [s] (Textual: 1/50 and 1/1000).
-IDLE_NAP_S, IDLE_CPU_S = 0.002, 0.0001
+IDLE_NAP_S, IDLE_CPU_S = 0.001, 0.00005
 
 
 def pytest_configure(config: pytest.Config) -> None:

@@ -53,6 +53,6 @@ def test_a_search_does_load_scipy() -> None:
         "from tri.rebalance import SuggestOptions, suggest\n"
         "from tri.schedule.load import load_schedule\n"
         f"s = load_schedule({str(DEMO)!r}).schedule\n"
-        "suggest(s, SuggestOptions(target_pct=0.5, time_limit_s=2, list_plans=False))"
+        "suggest(s, SuggestOptions(target_pct=0.5, time_limit_s=0.2, list_plans=False))"
     )
     assert "scipy" in _loaded(code)
