@@ -254,13 +254,21 @@ async def test_set_aside_steps_are_the_cli_steps_and_select_one_move(small: Path
 
 @pytest.mark.parametrize("mode", [1, 2, 3])
 async def test_other_modes_run_the_real_rebalancer(small: Path, mode: int) -> None:
-    """Best balance with 2 moves, place new only, re-layout: each plan applies as one edit."""
+    """Best balance with 2 moves, place new only, re-layout: each plan applies as one edit.
+
+    The first runs with Ctrl+R, the others with Enter on the mode choice."""
     app = TriApp(small, journal=False)
     async with app.run_test(size=(80, 24)) as pilot:
         screen = await open_rebalance(pilot, moves="2")
         before = app.session.schedule
-        screen.query_one("#rb-mode-choice", Cycle).index = mode
-        await pilot.press("ctrl+r")
+        choice = screen.query_one("#rb-mode-choice", Cycle)
+        choice.index = mode
+        if mode == 1:
+            await pilot.press("ctrl+r")
+        else:
+            choice.focus()
+            await pilot.pause()
+            await pilot.press("enter")
         await search_done(pilot)
         s = screen.plan
         assert s is not None, state(screen)

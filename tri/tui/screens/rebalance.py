@@ -204,6 +204,12 @@ class RebalanceScreen(Screen[None]):
         event.stop()
         self.action_run()
 
+    def on_key(self, event: Any) -> None:
+        """Enter on the mode choice runs too, as the title says (it has no Enter of its own)."""
+        if event.key == "enter" and isinstance(self.focused, Cycle):
+            event.stop()
+            self.action_run()
+
     def action_run(self) -> None:
         if self.running:
             return
