@@ -50,7 +50,12 @@ from tri.schedule.model import Schedule
 from tri.schedule.validate import check_schedule
 from tri.tui.fmt import parse_number
 from tri.tui.messages import RebalanceDone, RebalanceProgress
-from tri.tui.screens.search_fields import neutral_from, number_field, progress_poster
+from tri.tui.screens.search_fields import (
+    FIELD_KEYS,
+    neutral_from,
+    number_field,
+    progress_poster,
+)
 from tri.tui.widgets.cycle import Cycle
 from tri.tui.widgets.key_footer import KeyFooter
 
@@ -144,6 +149,7 @@ class RebalanceScreen(Screen[None]):
         Binding("space", "toggle_move", "Select", id="rebalance.select"),
         Binding("a", "apply_selected", "Apply", id="rebalance.apply"),
         Binding("A", "apply_all", "All", id="rebalance.apply_all"),
+        *FIELD_KEYS,
     ]
 
     def __init__(self) -> None:

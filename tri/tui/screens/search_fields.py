@@ -1,5 +1,6 @@
 """What the panel and the building rebalance screens share: number fields, the
-neutral-limit field, and progress posted from the search's worker thread."""
+neutral-limit field, the keys between fields, and progress posted from the
+search's worker thread."""
 
 from __future__ import annotations
 
@@ -7,6 +8,7 @@ import time
 from collections.abc import Callable, Iterator
 from typing import Any
 
+from textual.binding import Binding
 from textual.screen import Screen
 from textual.widget import Widget
 from textual.widgets import Label
@@ -16,6 +18,14 @@ from tri.tui.widgets.in_order import OrderedInput
 
 #: Shortest interval between two progress messages from the worker [s].
 PROGRESS_INTERVAL_S = 0.1
+
+#: Tab and Shift+Tab between the fields, as priority bindings: they act when they
+#: arrive, so in a burst over SSH (Tab, Tab, →) the → lands on the field Tab reached,
+#: not on the one that had focus (tri.tui.widgets.in_order explains the burst).
+FIELD_KEYS = [
+    Binding("tab", "app.focus_next", "Next", show=False, priority=True),
+    Binding("shift+tab", "app.focus_previous", "Previous", show=False, priority=True),
+]
 
 
 def number_field(

@@ -37,7 +37,12 @@ from tri.safety import SAFETY_CAUTION
 from tri.schedule.errors import ScheduleError
 from tri.tui.fmt import parse_number
 from tri.tui.messages import RebalanceProgress
-from tri.tui.screens.search_fields import neutral_from, number_field, progress_poster
+from tri.tui.screens.search_fields import (
+    FIELD_KEYS,
+    neutral_from,
+    number_field,
+    progress_poster,
+)
 from tri.tui.widgets.key_footer import KeyFooter
 from tri.words import plural
 
@@ -118,6 +123,7 @@ class TreeRebalanceScreen(Screen[None]):
         Binding("ctrl+r,f5", "run", "Run", id="tree_rebalance.run"),
         Binding("escape", "cancel_or_back", "Back", id="tree_rebalance.back"),
         Binding("A", "apply_all", "Apply all", id="tree_rebalance.apply_all"),
+        *FIELD_KEYS,
     ]
 
     def __init__(self, service: int) -> None:
