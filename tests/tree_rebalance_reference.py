@@ -20,11 +20,16 @@ block on the same phases (in pole order for a wired block, as a set for a
 plain breaker) are one electrical case, kept with its fewest relocations (a
 placed block whose first slot, or on a rail board whose phases, change is
 one relocation: a group moved counts once, as the work order counts it).
-Every combination of one case per panel is written into the building and
-run through the engine's whole-tree analysis
-(:func:`tri.schedule.tree_to_engine.analyse_building`); the deviation of
-each panel (everything it feeds included) is the engine's own. The
-optimum for a pair of targets is then a minimum over this list.
+Every combination of one case per panel is then run through the engine:
+each panel's own currents once per case of that panel
+(:func:`own_currents`, the building packed as
+:func:`tri.schedule.tree_to_engine.analyse_building` packs it), every
+combination rolled up at once by the engine's roll-up and its figures
+(:func:`rolled_up`); the deviation of each panel (everything it feeds
+included) is the engine's own. tests/test_tree_reference_fast.py checks
+these figures against ``analyse_building`` of the combination written into
+the building. The optimum for a pair of targets is then a minimum over
+this list.
 
 Small random buildings for it are written by :func:`write_building`: a
 480Y/277 parent with one or two feeders, a child on the same system fed
@@ -49,10 +54,17 @@ from rebalance_wired_reference import (
     schedule_at,
 )
 
+from tri.engine.batch_figures import current_figures
+from tri.engine.harmonics import order_currents
+from tri.engine.phasors import element_currents
+from tri.engine.tree import nominal_voltages, roll_up
+from tri.engine.tree_inputs import PackedTree, pack_tree
+from tri.engine.tree_solution import Spectra
 from tri.schedule.model import Schedule
 from tri.schedule.slots import PHASES, pole_phases
 from tri.schedule.tree import ScheduleTree, with_schedules
-from tri.schedule.tree_to_engine import analyse_building
+from tri.schedule.tree_scenarios import scenario_inputs
+from tri.schedule.tree_to_engine import tree_inputs
 
 
 @dataclass(frozen=True)
@@ -160,17 +172,127 @@ class TreeCases:
         return [float(x) for x in rng.choice(low, size=min(count, low.size), replace=False)]
 
 
-def tree_cases(tree: ScheduleTree) -> TreeCases:
-    """Every combination of every panel's cases, through the engine (module notes)."""
+#: What the engine's roll-up reads of a packed tree (:func:`tri.engine.tree.roll_up`): the
+#: same in every arrangement, or the one roll-up of them all below would be wrong.
+_ROLL_UP_FIELDS = (
+    "parent",
+    "has_tx",
+    "high_leg",
+    "tap",
+    "frame_rad",
+    "lag_rad",
+    "ratio",
+    "zero_pass",
+)
+
+
+def _packed(tree: ScheduleTree, schedules: list[Schedule], scenario: str | None) -> PackedTree:
+    """The engine's packed tree of the building with these schedules, as analyse_building has."""
+    built = with_schedules(tree, schedules)
+    inputs = tree_inputs(built)
+    if scenario is not None:
+        inputs = scenario_inputs(built, inputs, scenario)
+    return pack_tree(inputs)
+
+
+@dataclass(frozen=True)
+class OwnCurrents:
+    """Each panel's own circuits in each of its J cases, the other panels as they are.
+
+    ``packed``: the building as it is (the links the roll-up reads);
+    ``orders`` (H,); per panel ``phase`` (J, 3, H), ``neutral`` (J, H) [A]
+    and ``scale`` (J,), the sum of its circuits' RMS currents [A].
+    """
+
+    packed: PackedTree
+    orders: np.ndarray
+    phase: list[np.ndarray]
+    neutral: list[np.ndarray]
+    scale: list[np.ndarray]
+
+
+def own_currents(
+    tree: ScheduleTree, per_panel: list[PanelCases], scenario: str | None = None
+) -> OwnCurrents:
+    """Each case's own currents at nominal voltage, as analyse_building computes them.
+
+    The building with that one panel's case is packed by the engine
+    (:func:`tri.engine.tree_inputs.pack_tree`, from
+    :func:`tri.schedule.tree_to_engine.tree_inputs`, scaled by
+    :func:`tri.schedule.tree_scenarios.scenario_inputs` in a scenario) and
+    the panel's row taken from :func:`tri.engine.harmonics.order_currents`.
+    """
+    here = [p.schedule for p in tree.panels]
+    base = _packed(tree, here, scenario)
+    orders: np.ndarray | None = None
+    phase, neutral, scale = [], [], []
+    for k, cases in enumerate(per_panel):
+        rows = []
+        for schedule in cases.schedules:
+            packed = _packed(tree, [*here[:k], schedule, *here[k + 1 :]], scenario)
+            for name in _ROLL_UP_FIELDS:
+                assert np.array_equal(getattr(packed, name), getattr(base, name)), name
+            oc = order_currents(
+                packed.circuits, element_currents(packed.circuits, nominal_voltages(packed))
+            )
+            assert orders is None or np.array_equal(oc.orders, orders)
+            orders = oc.orders
+            rows.append((oc.phase[k], oc.neutral[k], np.sum(oc.circuit_rms_a[k])))
+        phase.append(np.array([r[0] for r in rows]))
+        neutral.append(np.array([r[1] for r in rows]))
+        scale.append(np.array([r[2] for r in rows]))
+    assert orders is not None
+    return OwnCurrents(base, orders, phase, neutral, scale)
+
+
+def rolled_up(own: OwnCurrents, combos: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """Every panel's deviation (B, N) [%] and the root's neutral RMS (B,) [A] of B combinations.
+
+    ``combos`` (B, N): one case per panel. All are rolled up at once by the
+    engine's :func:`tri.engine.tree.roll_up`, the combinations side by side
+    along its order axis (it treats every order on its own: combination b's
+    order h at b·H + h), and their figures are the engine's
+    :func:`tri.engine.batch_figures.current_figures` over the combinations
+    (the figures analyse_building reports as each panel's deviation and
+    neutral RMS).
+    """
+    nodes, count, n_orders = len(own.phase), len(combos), own.orders.size
+    phase = np.stack([own.phase[k][combos[:, k]] for k in range(nodes)])  # (N, B, 3, H)
+    phase = phase.transpose(0, 2, 1, 3).reshape(nodes, 3, count * n_orders)
+    neutral = np.stack([own.neutral[k][combos[:, k]] for k in range(nodes)])
+    neutral = neutral.reshape(nodes, count * n_orders)
+    spectra = Spectra(phase, neutral, phase)
+    total, _ = roll_up(own.packed, spectra, np.tile(own.orders, count))
+    scale = np.stack([own.scale[k][combos[:, k]] for k in range(nodes)])  # (N, B)
+    for idx in reversed(own.packed.levels[1:]):  # the subtree's circuits, as the engine's
+        np.add.at(scale, own.packed.parent[idx], scale[idx])
+    figures = current_figures(
+        total.phase.reshape(nodes, 3, count, n_orders).transpose(2, 0, 1, 3),
+        total.neutral.reshape(nodes, count, n_orders).transpose(1, 0, 2),
+        None,
+        scale.T,
+        own.packed.rating_a,
+        own.packed.neutral_rating_a,
+    )
+    return figures["max_deviation_pct"], figures["neutral_rms_a"][:, 0]
+
+
+def all_combinations(per_panel: list[PanelCases]) -> np.ndarray:
+    """Every combination of one case per panel (B, N), in :func:`itertools.product` order."""
+    return np.array(list(itertools.product(*(range(len(c.schedules)) for c in per_panel))))
+
+
+def tree_cases(tree: ScheduleTree, scenario: str | None = None) -> TreeCases:
+    """Every combination of every panel's cases, through the engine (module notes).
+
+    ``scenario``: every load times its use factors in that scenario (as
+    ``analyse_building(..., scenario=...)``); None: the connected load.
+    """
     per_panel = [panel_cases(p.schedule) for p in tree.panels]
-    reloc, devs, neutral = [], [], []
-    for combo in itertools.product(*(range(len(c.schedules)) for c in per_panel)):
-        schedules = [per_panel[k].schedules[j] for k, j in enumerate(combo)]
-        result = analyse_building(with_schedules(tree, schedules))
-        reloc.append(sum(per_panel[k].relocations[j] for k, j in enumerate(combo)))
-        devs.append([n.analysis.current_unbalance.max_deviation_pct for n in result.nodes])
-        neutral.append(result.nodes[0].analysis.neutral.rms_a)
-    return TreeCases(np.array(reloc), np.array(devs), np.array(neutral))
+    combos = all_combinations(per_panel)
+    deviation, neutral = rolled_up(own_currents(tree, per_panel, scenario), combos)
+    reloc = sum(np.asarray(c.relocations)[combos[:, k]] for k, c in enumerate(per_panel))
+    return TreeCases(np.asarray(reloc), deviation, neutral)
 
 
 _PROFILES = ("linear", "electronics", "led-driver")
