@@ -5,11 +5,12 @@ The buildings of :mod:`tree_rebalance_reference` (a 480Y/277 parent, a
 directly; harmonic profiles), with random ``use`` factors in two scenarios
 (``day``, ``night``) on some loads of every panel, a panel's circuits
 naming only some of them (invented data). The reference lists every
-arrangement of every panel (:func:`tree_rebalance_reference.panel_cases`,
-nothing of :mod:`tri.rebalance`) and runs the engine's whole-tree analysis
-of each combination in every case: the connected load and each scenario
-(:func:`tri.schedule.tree_to_engine.analyse_building` with ``scenario``;
-README: a circuit whose ``use`` does not name a scenario is at 1.0 in it).
+arrangement of every panel (:func:`tree_rebalance_reference.tree_cases`,
+nothing of :mod:`tri.rebalance`) and runs the engine on each combination
+in every case: the connected load and each scenario (the figures of
+:func:`tri.schedule.tree_to_engine.analyse_building` with ``scenario``,
+tests/test_tree_reference_fast.py; README: a circuit whose ``use`` does
+not name a scenario is at 1.0 in it).
 A plan meets the targets when every panel is within its target in every
 case; the fewest relocations for a pair of targets is a minimum over the
 list **[computed]**.
@@ -23,19 +24,18 @@ deviations of the list, so no plan sits within round-off of a target.
 
 from __future__ import annotations
 
-import itertools
 import re
 
 import numpy as np
 import pytest
-from tree_rebalance_reference import panel_cases, write_building
+from tree_rebalance_reference import tree_cases, write_building
 
 from tri.native_output import native_stdout_to_devnull
 from tri.rebalance.control import Control
 from tri.rebalance.tree_loop import TreeSearch
 from tri.rebalance.tree_problem import build_tree_problem
 from tri.rebalance.tree_solve import TreeOptions, suggest_tree
-from tri.schedule.tree import ScheduleTree, load_tree, with_schedules
+from tri.schedule.tree import ScheduleTree, load_tree
 from tri.schedule.tree_scenarios import case_names
 from tri.schedule.tree_to_engine import analyse_building
 
@@ -63,22 +63,9 @@ def add_use_factors(folder, seed: int) -> None:
 
 def every_case_deviation(tree: ScheduleTree) -> tuple[np.ndarray, np.ndarray]:
     """Relocations (N,) and every panel's deviation in every case (N, S, P) [%]."""
-    per_panel = [panel_cases(p.schedule) for p in tree.panels]
     names = case_names(tree)
-    reloc, devs = [], []
-    for combo in itertools.product(*(range(len(c.schedules)) for c in per_panel)):
-        built = with_schedules(tree, [per_panel[k].schedules[j] for k, j in enumerate(combo)])
-        reloc.append(sum(per_panel[k].relocations[j] for k, j in enumerate(combo)))
-        devs.append(
-            [
-                [
-                    n.analysis.current_unbalance.max_deviation_pct
-                    for n in analyse_building(built, scenario=None if c == 0 else name).nodes
-                ]
-                for c, name in enumerate(names)
-            ]
-        )
-    return np.array(reloc), np.array(devs)
+    cases = [tree_cases(tree, None if c == 0 else name) for c, name in enumerate(names)]
+    return cases[0].relocations, np.stack([c.deviation_pct for c in cases], axis=1)
 
 
 def optimum(reloc, devs, service_pct: float, child_pct: float, cases=None) -> int | None:
