@@ -55,23 +55,24 @@ def heuristic_plan(
         Option of each free circuit; None when the new circuits do not fit.
     """
     start = np.where(problem.current >= 0, problem.current, -1)
-    plans = []
     rng = np.random.default_rng(seed)
-    ls = LocalSearch(problem, goal, control, start, stop_gap)
-    if ls.insert_missing():
+
+    def run_from(first: np.ndarray) -> LocalSearch | None:
+        """Insertion, descent, kicks and pruning from ``first``; None if a new circuit
+        does not fit."""
+        ls = LocalSearch(problem, goal, control, first, stop_gap)
+        if not ls.insert_missing():
+            return None
         ls.descend(swaps=swaps)
         if kicks:
             ls.iterate(rng)
         ls.prune()
-        plans.append(ls)
+        return ls
+
+    starts = [start]
     if from_scratch and problem.n_free:
-        fresh = LocalSearch(problem, goal, control, np.full(problem.n_free, -1), stop_gap)
-        if fresh.insert_missing():
-            fresh.descend(swaps=swaps)
-            if kicks:
-                fresh.iterate(rng)
-            fresh.prune()
-            plans.append(fresh)
+        starts.append(np.full(problem.n_free, -1))
+    plans = [ls for ls in map(run_from, starts) if ls is not None]
     if not plans:
         return None
     best = plans[0]
