@@ -60,7 +60,7 @@ def _check_fewest(
     return s.status
 
 
-@pytest.mark.parametrize("seed", sweep(SEEDS, 4))  # all eight: TRI_FULL_SWEEP=1
+@pytest.mark.parametrize("seed", sweep(SEEDS, 3))  # all eight: TRI_FULL_SWEEP=1
 @pytest.mark.parametrize("target", [3.0, 10.0])
 @pytest.mark.parametrize("proof", ["count", "solver"])
 def test_fewest_moves_equal_exhaustive_minimum(seed: int, target: float, proof: str) -> None:
