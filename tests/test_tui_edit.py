@@ -9,7 +9,7 @@ from __future__ import annotations
 
 from pathlib import Path
 
-from tui_support import settle
+from tui_support import burst, settle
 
 from tri.schedule.load import load_schedule
 from tri.schedule.to_engine import analyse_schedule
@@ -203,15 +203,6 @@ async def test_panel_supply_and_readings_forms(small: Path) -> None:
         assert app.session.schedule.readings is None
 
 
-def _burst(app: TriApp, keys: list[str]) -> None:
-    """Post keys at once, as a laggy SSH link delivers them (no waiting between keys)."""
-    from textual import events
-
-    for key in keys:
-        char = key if len(key) == 1 else None
-        app.post_message(events.Key(key, char))
-
-
 async def test_keys_arriving_in_a_burst_act_in_order(small: Path) -> None:
     """Backspaces before digits, and field changes before typing, act in arrival order
     (works around Textualize/textual issue 6605: bindings used to run after later
@@ -222,8 +213,8 @@ async def test_keys_arriving_in_a_burst_act_in_order(small: Path) -> None:
         await goto(pilot, "Dishwasher")
         await pilot.press("enter")
         assert isinstance(app.screen, FormScreen)
-        _burst(app, ["down", "down", "down", "ctrl+u", "a", "b", "c"])
-        _burst(app, ["backspace"] * 3 + ["3", "6", "0", "0", "enter"])
+        burst(app, ["down", "down", "down", "ctrl+u", "a", "b", "c"])
+        burst(app, ["backspace"] * 3 + ["3", "6", "0", "0", "enter"])
         await settle(pilot)
         assert isinstance(app.screen, MainScreen)
         c = next(c for c in app.session.schedule.circuits if c.name == "Dishwasher")
@@ -241,7 +232,7 @@ async def test_choices_and_toggles_in_a_burst_land_on_their_own_field(small: Pat
         assert isinstance(app.screen, FormScreen)
         keys = [*"Kiln", "down", "down", "right", "down", "ctrl+u", *"16", "down", "right"]
         keys += ["right", "down", "down", "down", "down", "space", "enter"]
-        _burst(app, keys)
+        burst(app, keys)
         await settle(pilot)
         assert isinstance(app.screen, MainScreen)
         c = next(c for c in app.session.schedule.circuits if c.name == "Kiln")

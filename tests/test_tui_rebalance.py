@@ -17,7 +17,7 @@ from pathlib import Path
 
 import pytest
 from textual.widgets import DataTable
-from tui_support import settle
+from tui_support import burst, settle
 
 from tri.cli.common import SAFETY_CAUTION
 from tri.rebalance import Figures, Move, Suggestion, SuggestOptions, WorkStep, suggest
@@ -375,15 +375,12 @@ async def test_a_shared_neutral_group_is_one_step_and_moves_whole(tmp_path: Path
 async def test_field_keys_in_a_burst_land_on_the_field_tab_reached(small: Path) -> None:
     """Tab, a digit, Tab, Tab, → typed in one burst (a laggy SSH link): the digit goes to
     the moves field and → to the mode choice, each on the field Tab reached."""
-    from textual import events
-
     app = TriApp(small, journal=False)
     async with app.run_test(size=(80, 24)) as pilot:
         screen = await open_rebalance(pilot)
         screen.query_one("#rb-target").focus()
         await pilot.pause()
-        for key in ["tab", "ctrl+u", "3", "tab", "tab", "right"]:
-            app.post_message(events.Key(key, key if len(key) == 1 else None))
+        burst(app, ["tab", "ctrl+u", "3", "tab", "tab", "right"])
         await settle(pilot)
         assert screen.query_one("#rb-moves").value == "3"
         assert screen.query_one("#rb-neutral").value == ""

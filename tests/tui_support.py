@@ -5,6 +5,14 @@ from __future__ import annotations
 from typing import Any
 
 
+def burst(app: Any, keys: list[str]) -> None:
+    """Post keys at once, as a laggy SSH link delivers them (no waiting between keys)."""
+    from textual import events
+
+    for key in keys:
+        app.post_message(events.Key(key, key if len(key) == 1 else None))
+
+
 async def settle(pilot: Any) -> None:
     """Let key handlers run, wait for the workers (engine, rebalancer), then their messages."""
     await pilot.pause()
