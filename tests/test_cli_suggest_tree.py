@@ -21,6 +21,7 @@ from dataclasses import replace
 from pathlib import Path
 
 import numpy as np
+import pytest
 from cli_support import run_tri
 
 from tri.schedule.tree import load_tree, with_schedules
@@ -310,8 +311,13 @@ def test_ctrl_c_ends_with_the_best_so_far(tmp_path):
         started = _read_until(master, b"bounding", 120)
         assert b"bounding" in started, started  # the search is under way
         proc.send_signal(signal.SIGINT)
-        out, _ = proc.communicate(timeout=120)
-        err = (started + _read_until(master, b"best plan so far", 10)).decode()
+        # standard error read while waiting, so the child never blocks writing to it, and
+        # shown if the child does not end (the search's last words say where it was)
+        err = (started + _read_until(master, b"best plan so far", 120)).decode()
+        try:
+            out, _ = proc.communicate(timeout=30)
+        except subprocess.TimeoutExpired:
+            pytest.fail(f"still running 150 s after Ctrl+C; its standard error: {err[-600:]!r}")
     finally:
         os.close(master)
         proc.kill()

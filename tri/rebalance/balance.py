@@ -45,7 +45,7 @@ import math
 
 import numpy as np
 
-from tri.rebalance.control import Control
+from tri.rebalance.control import Control, longer_slice
 from tri.rebalance.crossing import budget_floor
 from tri.rebalance.electrical import add_currents, add_neutral_cuts, add_options, decode_options
 from tri.rebalance.exchange import exchange_search
@@ -145,7 +145,8 @@ class _BalanceSearch:
         self.control.report(
             f"solver: looking for a plan below {self.best:.2f} A (bound {self.lower:.2f} A)"
         )
-        sol = m.solve(cost, min(self.slice_s, self.control.remaining()), gap=PROVEN_GAP / 10)
+        span = min(self.slice_s, self.control.solver_span(self.slice_s))
+        sol = m.solve(cost, span, gap=PROVEN_GAP / 10)
         self.out.solver_calls += 1
         if sol.status == "error":
             self.out.notes.append(f"the solver stopped: {sol.message}")
@@ -159,7 +160,7 @@ class _BalanceSearch:
         if lb is not None:
             self.lower = max(self.lower, lb)
         if sol.x is None:
-            self.slice_s = 2 * self.slice_s if self.control.can_cancel else 1e9
+            self.slice_s = longer_slice(self.slice_s) if self.control.can_cancel else 1e9
             return True
         a = decode_options(self.pr, sol.x, el.x)
         stays = np.zeros(self.pr.n_free, dtype=bool)
@@ -174,7 +175,7 @@ class _BalanceSearch:
         if self.best >= before:  # no better plan: finer polygons next time
             self.level = min(self.level + 1, len(RESOLUTIONS) - 1)
         if sol.status != "optimal":
-            self.slice_s *= 2
+            self.slice_s = longer_slice(self.slice_s)
         return not self.done(stop_gap)
 
     def count_out(self) -> bool:

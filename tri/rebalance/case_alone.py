@@ -94,6 +94,7 @@ def case_alone_step(
         span = (control.remaining() - keep) * (1.0 if k == len(models) - 1 else 0.5)
         if control.stop() or span <= 0.0:
             break
+        span = min(span, control.solver_span(span))  # a cancel waits one slice at most
         control.report(f"solver: the case {views[i].case_names[0]} alone")
         sol: Solution = tm.model.solve(tm.cost, span, gap=0.0, presolve=True, heuristics=False)
         calls += 1

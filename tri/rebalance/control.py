@@ -23,6 +23,18 @@ ProgressCallback = Callable[[float | None, str], None]
 CancelHook = _EventLike | Callable[[], bool]
 
 
+#: Longest single solver call when the search can be cancelled [s]. HiGHS cannot be
+#: interrupted inside a call, so a cancel (Ctrl+C, the UI's Cancel) waits at most about
+#: this long. Slices start shorter and double while calls end without an answer.
+MAX_SLICE_S = 4.0
+
+
+def longer_slice(slice_s: float) -> float:
+    """The next solver slice after a call that ran out of time: twice as long, at most
+    :data:`MAX_SLICE_S` [s]."""
+    return min(2.0 * slice_s, MAX_SLICE_S)
+
+
 class Cancelled(Exception):
     """Raised inside the search when the cancel hook fires."""
 
@@ -64,6 +76,15 @@ class Control:
     def remaining(self) -> float:
         """Seconds left before the deadline (may be negative) [s]."""
         return self.deadline - time.perf_counter()
+
+    def solver_span(self, slice_s: float) -> float:
+        """Seconds to give the next solver call [s].
+
+        When the search can be cancelled: ``slice_s``, at most :data:`MAX_SLICE_S`
+        and what is left. Otherwise all that is left (nobody waits to stop it).
+        """
+        left = self.remaining()
+        return min(slice_s, MAX_SLICE_S, left) if self.can_cancel else left
 
     def cancelled(self) -> bool:
         """True once the cancel hook has fired."""

@@ -39,7 +39,7 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from tri.rebalance.case_alone import case_alone_step
-from tri.rebalance.control import Control
+from tri.rebalance.control import Control, longer_slice
 from tri.rebalance.crossing import changes_lower_bound
 from tri.rebalance.electrical import decode_options
 from tri.rebalance.exact_square import square_terms
@@ -205,7 +205,7 @@ class _TargetSearch:
         what = f"at most {budget} relocation{'s' if budget != 1 else ''}"
         self.control.report(f"solver: looking for a plan with {what}")
         c = self.control
-        span = min(self.slice_s, c.remaining()) if c.can_cancel else c.remaining()
+        span = c.solver_span(self.slice_s)
         sol = tm.model.solve(
             tm.cost,
             span,
@@ -222,7 +222,7 @@ class _TargetSearch:
             return False
         self._raise_lower(sol, tm.offset)
         if sol.x is None:
-            self.slice_s *= 2
+            self.slice_s = longer_slice(self.slice_s)
             return True
         return self._proposal(sol, tm, budget)
 

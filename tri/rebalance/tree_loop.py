@@ -41,7 +41,7 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
-from tri.rebalance.control import CancelHook, Control
+from tri.rebalance.control import CancelHook, Control, longer_slice
 from tri.rebalance.electrical import decode_options
 from tri.rebalance.goal import Goal
 from tri.rebalance.lower_bounds import RESOLUTIONS
@@ -58,8 +58,6 @@ from tri.words import plural
 
 #: Largest number of plans realised at one listed level before the level is left unsettled [-].
 REALISE_LIMIT = 400
-#: Longest single solver call when the search can be cancelled [s].
-MAX_SLICE_S = 4.0
 
 
 @dataclass(frozen=True, eq=False)
@@ -218,7 +216,7 @@ class TreeSearch:
         what = f"at most {plural(budget, 'relocation')}"
         self.control.report(f"solver: looking for a plan with {what} in the building")
         c = self.control
-        span = min(self.slice_s, c.remaining()) if c.can_cancel else c.remaining()
+        span = c.solver_span(self.slice_s)
         sol = tm.model.solve(tm.cost, span, gap=0.0, heuristics=self.best is None)
         self.calls += 1
         if sol.status == "error":
@@ -231,7 +229,7 @@ class TreeSearch:
         if lb is not None:
             self.lower = max(self.lower, min(budget + 1, relocations_bound(lb, tm.offset)))
         if sol.x is None:
-            self.slice_s = min(2 * self.slice_s, MAX_SLICE_S)
+            self.slice_s = longer_slice(self.slice_s)
             return True
         assign = decode_options(parts.views[0], sol.x, tm.x)
         plan = self._from_solution(tm, sol.x, assign)
