@@ -25,6 +25,7 @@ from __future__ import annotations
 
 import argparse
 import os
+import signal
 import sys
 import threading
 from typing import Any
@@ -113,7 +114,13 @@ class _Progress:
 
 
 def _search(tree, options, progress) -> Any:
-    """Run the search in a worker; Ctrl+C sets its cancel event and waits for the best so far."""
+    """Run the search in a worker; Ctrl+C sets its cancel event and waits for the best so far.
+
+    The first Ctrl+C only sets the event, from a signal handler: no exception is
+    raised in the waiting main thread, where one landing inside the wait's own
+    locking could leave a lock held and both threads waiting for ever. A second
+    Ctrl+C aborts (``KeyboardInterrupt``, exit 130).
+    """
     from tri.rebalance.tree_solve import suggest_tree
 
     cancel, done = threading.Event(), threading.Event()
@@ -127,17 +134,25 @@ def _search(tree, options, progress) -> Any:
         finally:
             done.set()
 
+    def on_ctrl_c(signum: int, frame: Any) -> None:
+        if cancel.is_set():
+            raise KeyboardInterrupt  # a second Ctrl+C: abort
+        cancel.set()
+
     # waiting on an event, not Thread.join: an interrupted join can leave the
     # thread marked as ended while it still runs (CPython gh-90882)
-    threading.Thread(target=work, name="tri-suggest-tree", daemon=True).start()
-    while not done.is_set():
-        try:
-            done.wait(_POLL_S)
-        except KeyboardInterrupt:
-            if cancel.is_set():
-                raise  # a second Ctrl+C: abort
-            cancel.set()
-            progress(None, "stopping: finishing the current step (Ctrl+C again to abort)")
+    main = threading.current_thread() is threading.main_thread()  # handlers live there only
+    previous = signal.signal(signal.SIGINT, on_ctrl_c) if main else None
+    try:
+        threading.Thread(target=work, name="tri-suggest-tree", daemon=True).start()
+        told = False
+        while not done.wait(_POLL_S):
+            if cancel.is_set() and not told:
+                progress(None, "stopping: finishing the current step (Ctrl+C again to abort)")
+                told = True
+    finally:
+        if main:
+            signal.signal(signal.SIGINT, previous)
     if "error" in out:
         raise out["error"]
     return out["result"]
