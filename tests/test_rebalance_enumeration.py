@@ -43,8 +43,8 @@ DATA = Path(__file__).parent / "data" / "rebalance"
 #: Seeds through the product's path and through the programs alone (the slow part): the
 #: suite runs the first chunks, TRI_FULL_SWEEP=1 all (tests/sweep.py);
 #: bench/bench_rebalance_sweep.py runs many more.
-PRODUCT_SEEDS = seed_chunks(0, 120, 12, in_suite=2)
-PROGRAM_SEEDS = seed_chunks(10_000, 12, 3, in_suite=1)
+PRODUCT_SEEDS = seed_chunks(0, 120, 12, in_suite=1)
+PROGRAM_SEEDS = seed_chunks(10_000, 12, 3, in_suite=1, suite_size=1)
 STATUSES: collections.Counter[tuple[str, str]] = collections.Counter()
 
 

@@ -26,7 +26,9 @@ from tri.rebalance import SuggestOptions, suggest
 from tri.rebalance.balance import PROVEN_GAP
 from tri.schedule.to_engine import analyse_schedule
 
-SEEDS = range(8)
+#: Every seed under TRI_FULL_SWEEP=1; the suite runs the first two (seed 0's proof by the
+#: program alone takes ~6 s of the ~7 s all three took).
+SEEDS = (1, 2, 0, 3, 4, 5, 6, 7)
 
 
 def _check_fewest(
@@ -60,7 +62,7 @@ def _check_fewest(
     return s.status
 
 
-@pytest.mark.parametrize("seed", sweep(SEEDS, 3))  # all eight: TRI_FULL_SWEEP=1
+@pytest.mark.parametrize("seed", sweep(SEEDS, 2))  # all eight: TRI_FULL_SWEEP=1
 @pytest.mark.parametrize("target", [3.0, 10.0])
 @pytest.mark.parametrize("proof", ["count", "solver"])
 def test_fewest_moves_equal_exhaustive_minimum(seed: int, target: float, proof: str) -> None:

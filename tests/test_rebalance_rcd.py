@@ -109,8 +109,10 @@ def enumerate_rail(sched: Schedule, free: list[int]) -> tuple[Enumerated, list]:
 
 
 #: (through the listings, seeds) of each test: the programs alone are the slow part; the
-#: suite runs three of their panels, TRI_FULL_SWEEP=1 all (tests/sweep.py).
-RUNS = [(True, range(PANELS))] + [(False, seeds) for seeds in seed_chunks(0, PANELS, 3, in_suite=1)]
+#: suite runs one of their panels, TRI_FULL_SWEEP=1 all (tests/sweep.py).
+RUNS = [(True, range(PANELS))] + [
+    (False, seeds) for seeds in seed_chunks(0, PANELS, 3, in_suite=1, suite_size=1)
+]
 
 
 @pytest.mark.parametrize(

@@ -34,7 +34,7 @@ from tri.schedule.to_scenarios import analyse_cases
 #: Seeds through the product's path and through the programs alone (the slow part): the
 #: suite runs the first chunks, TRI_FULL_SWEEP=1 all (tests/sweep.py).
 PRODUCT_SEEDS = seed_chunks(20_000, 40, 10, in_suite=1)
-PROGRAM_SEEDS = seed_chunks(30_000, 10, 2, in_suite=1)
+PROGRAM_SEEDS = seed_chunks(30_000, 10, 2, in_suite=1, suite_size=1)
 STATUSES: collections.Counter[tuple[str, str]] = collections.Counter()
 
 

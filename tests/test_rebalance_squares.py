@@ -204,7 +204,7 @@ def test_lower_block_is_below_every_plan_and_exact_where_visited(seed: int) -> N
                     assert res.objective == pytest.approx(true, rel=1e-7)
 
 
-@pytest.mark.parametrize("seed", sweep(SEEDS, 2))  # all six: TRI_FULL_SWEEP=1
+@pytest.mark.parametrize("seed", sweep(SEEDS, 1))  # all six: TRI_FULL_SWEEP=1
 @pytest.mark.parametrize("rank", [0, 5])
 @pytest.mark.parametrize("upper", ["centred", "sectors", "exact"])
 def test_every_plan_meeting_the_target_satisfies_the_target_model(

@@ -42,9 +42,9 @@ from tri.schedule.validate import check_schedule
 #: Seeds through the product's path and the programs alone, with groups and on a high
 #: leg: the suite runs the first chunks, TRI_FULL_SWEEP=1 all (tests/sweep.py).
 PRODUCT_SEEDS = seed_chunks(0, 30, 10, in_suite=1)
-PROGRAM_SEEDS = seed_chunks(5_000, 10, 3, in_suite=1)
+PROGRAM_SEEDS = seed_chunks(5_000, 10, 3, in_suite=1, suite_size=1)
 HIGH_LEG_SEEDS = seed_chunks(7_000, 20, 10, in_suite=1)
-HIGH_LEG_PROGRAM_SEEDS = seed_chunks(7_500, 20, 4, in_suite=1)
+HIGH_LEG_PROGRAM_SEEDS = seed_chunks(7_500, 20, 4, in_suite=1, suite_size=2)
 #: Panels of the relaxation's check [-].
 RELAXATION_PANELS = 10
 STATUSES: collections.Counter[tuple[str, str]] = collections.Counter()

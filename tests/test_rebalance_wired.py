@@ -35,9 +35,9 @@ from tri.schedule.slots import RIGHT_CBA, slot_phases
 #: and the programs alone: the suite runs the first chunks, TRI_FULL_SWEEP=1 all
 #: (tests/sweep.py).
 CBA_SEEDS = seed_chunks(500, 24, 8, in_suite=1)
-CBA_PROGRAM_SEEDS = seed_chunks(900, 8, 4, in_suite=1)
+CBA_PROGRAM_SEEDS = seed_chunks(900, 8, 4, in_suite=1, suite_size=2)
 REACH_SEEDS = seed_chunks(700, 24, 8, in_suite=1)
-REACH_PROGRAM_SEEDS = seed_chunks(1100, 8, 4, in_suite=1)
+REACH_PROGRAM_SEEDS = seed_chunks(1100, 8, 4, in_suite=1, suite_size=2)
 
 
 def cba(schedule: Schedule) -> Schedule:
