@@ -89,6 +89,9 @@ class FormScreen(ModalScreen[Any]):
         self.problems: dict[str, str] = {}
         self.result: Any = None
         self.moved_to: str | None = None
+        #: What each one-cell mark shows now, by widget id (only changes are drawn).
+        self._marks = {f"{kind}-{f.key}": " " for f in fields for kind in ("focus", "mark")}
+        self._message: tuple[str, bool] | None = None
 
     def compose(self) -> ComposeResult:
         with Vertical(id="form-box", classes="dialog"):
@@ -147,10 +150,8 @@ class FormScreen(ModalScreen[Any]):
         keys = {f.key for f in self.fields}
         for f in self.fields:
             bad = f.key in self.problems
-            mark = self.query_one(f"#mark-{f.key}", Label)
-            mark.update("✗" if bad else " ")
+            self._mark(f"mark-{f.key}", "✗" if bad else " ")
             self.query_one(f"#row-{f.key}").set_class(bad, "-invalid")
-        message = self.query_one("#form-message", Static)
         if self.problems:
             first_key = next(iter(self.problems))
             label = next((f.label.strip() for f in self.fields if f.key == first_key), "")
@@ -160,12 +161,27 @@ class FormScreen(ModalScreen[Any]):
             tail = f" (+{more} more)" if more > 0 else ""
             if self.moved_to == first_key:
                 tail += f" ▶ The cursor is on {label} now."
-            message.update(Text(prefix + text + tail))
-            message.set_class(True, "-error")
+            self._say(prefix + text + tail, error=True)
         else:
             described = self.describe(self.result) if self.describe is not None else ""
-            message.update(Text(described or self.help_text or "✓ Every field is valid."))
-            message.set_class(False, "-error")
+            self._say(described or self.help_text or "✓ Every field is valid.", error=False)
+
+    def _mark(self, widget_id: str, text: str) -> None:
+        """Show ``text`` in a one-cell mark (▶ or ✗), redrawn only when it changes.
+
+        A mark keeps its width, so no new layout of the dialog is asked for.
+        """
+        if self._marks.get(widget_id) != text:
+            self._marks[widget_id] = text
+            self.query_one(f"#{widget_id}", Label).update(text, layout=False)
+
+    def _say(self, text: str, error: bool) -> None:
+        """The message under the fields, redrawn only when it changes (its height may)."""
+        if self._message != (text, error):
+            self._message = (text, error)
+            message = self.query_one("#form-message", Static)
+            message.update(Text(text))
+            message.set_class(error, "-error")
 
     def on_input_changed(self, event: Input.Changed) -> None:
         event.stop()
@@ -188,7 +204,7 @@ class FormScreen(ModalScreen[Any]):
         focused = getattr(event, "widget", None)
         for f in self.fields:
             here = focused is not None and focused.id == f"field-{f.key}"
-            self.query_one(f"#focus-{f.key}", Label).update("▶" if here else " ")
+            self._mark(f"focus-{f.key}", "▶" if here else " ")
             self.query_one(f"#row-{f.key}").set_class(here, "-focused")
 
     def action_accept(self) -> None:
