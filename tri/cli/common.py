@@ -31,3 +31,29 @@ def load(path: str) -> ScheduleFile:
     from tri.schedule.load import load_schedule  # tomlkit and numpy, only when a file is read
 
     return load_schedule(path)
+
+
+class SearchProgress:
+    """The search's progress as one line on a terminal's standard error, rewritten in place.
+
+    Called as ``progress(fraction or None, message)`` (the rebalancer's progress
+    callback); silent when standard error is not a terminal.
+    """
+
+    def __init__(self) -> None:
+        self.active = sys.stderr.isatty()
+        self.shown = False
+
+    def __call__(self, fraction: float | None, message: str) -> None:
+        if not self.active:
+            return
+        pct = "" if fraction is None else f"{100 * fraction:3.0f}% "
+        sys.stderr.write("\r" + f"tri: {pct}{message}"[:78].ljust(78))
+        sys.stderr.flush()
+        self.shown = True
+
+    def clear(self) -> None:
+        """Blank the line, if one was written."""
+        if self.shown:
+            sys.stderr.write("\r" + " " * 78 + "\r")
+            sys.stderr.flush()

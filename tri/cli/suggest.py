@@ -26,7 +26,7 @@ import sys
 from pathlib import Path
 from typing import Any
 
-from tri.cli.common import EXIT_LIMIT, EXIT_OK, SAFETY_CAUTION, CliError, load
+from tri.cli.common import EXIT_LIMIT, EXIT_OK, SAFETY_CAUTION, CliError, SearchProgress, load
 from tri.native_output import native_stdout_to_devnull
 
 #: Largest accepted --time-limit [s].
@@ -146,28 +146,6 @@ def _check_write_target(target: str) -> None:
         raise CliError(f"--write {target}: folder {parent} does not exist")
 
 
-class _Progress:
-    """One status line on a terminal's standard error, rewritten in place."""
-
-    def __init__(self) -> None:
-        self.active = sys.stderr.isatty()
-        self.shown = False
-
-    def __call__(self, fraction: float | None, message: str) -> None:
-        if not self.active:
-            return
-        pct = "" if fraction is None else f"{100 * fraction:3.0f}% "
-        line = f"tri: {pct}{message}"[:78]
-        sys.stderr.write("\r" + line.ljust(78))
-        sys.stderr.flush()
-        self.shown = True
-
-    def clear(self) -> None:
-        if self.shown:
-            sys.stderr.write("\r" + " " * 78 + "\r")
-            sys.stderr.flush()
-
-
 def run(args: argparse.Namespace) -> int:
     """Run ``tri suggest``; returns 0 or 1 (bad input raises, exit 2)."""
     from tri.rebalance import suggest
@@ -184,7 +162,7 @@ def run(args: argparse.Namespace) -> int:
     schedule = loaded.schedule
     if options.neutral_max_a is not None and not schedule.system.has_neutral:
         raise CliError(f"--neutral-max: {schedule.panel.system} is a 3-wire system with no neutral")
-    progress = _Progress()
+    progress = SearchProgress()
     try:
         with native_stdout_to_devnull():
             result = suggest(schedule, options, progress=progress)

@@ -30,7 +30,7 @@ import sys
 import threading
 from typing import Any
 
-from tri.cli.common import EXIT_LIMIT, EXIT_OK, SAFETY_CAUTION, CliError
+from tri.cli.common import EXIT_LIMIT, EXIT_OK, SAFETY_CAUTION, CliError, SearchProgress
 from tri.native_output import native_stdout_to_devnull
 
 #: How often the waiting main thread wakes to notice Ctrl+C [s].
@@ -90,27 +90,6 @@ def _options(args: argparse.Namespace) -> Any:
         neutral_max_a=neutral,
         time_limit_s=time_limit,
     )
-
-
-class _Progress:
-    """One status line on a terminal's standard error, rewritten in place."""
-
-    def __init__(self) -> None:
-        self.active = sys.stderr.isatty()
-        self.shown = False
-
-    def __call__(self, fraction: float | None, message: str) -> None:
-        if not self.active:
-            return
-        pct = "" if fraction is None else f"{100 * fraction:3.0f}% "
-        sys.stderr.write("\r" + f"tri: {pct}{message}"[:78].ljust(78))
-        sys.stderr.flush()
-        self.shown = True
-
-    def clear(self) -> None:
-        if self.shown:
-            sys.stderr.write("\r" + " " * 78 + "\r")
-            sys.stderr.flush()
 
 
 def _search(tree, options, progress) -> Any:
@@ -195,7 +174,7 @@ def run_tree(args: argparse.Namespace) -> int:
         _check_folder(args.write, check_tree_folder)
     tree = load_tree(args.file)
     before = tuple(p.schedule for p in tree.panels)
-    progress = _Progress()
+    progress = SearchProgress()
     try:
         with native_stdout_to_devnull():
             result = _search(tree, options, progress)
