@@ -37,7 +37,6 @@ caution first and last. It proposes; it never says the work may go ahead.
 
 from __future__ import annotations
 
-import io
 import json
 from typing import Any
 
@@ -50,7 +49,7 @@ from rich.text import Text
 from tri.rebalance import Figures, Suggestion
 from tri.report.data import num
 from tri.report.floor_words import floor_words
-from tri.report.text_report import to_ascii
+from tri.report.text_report import plain_text, to_ascii
 from tri.report.work_order import (
     count_words,
     deciding_words,
@@ -280,14 +279,7 @@ def render_suggestion_text(
     ascii_only: bool = False,
 ) -> str:
     """The work order as plain text (no colour), lines without trailing spaces."""
-    buf = io.StringIO()
-    console = Console(
-        file=buf, width=width, color_system=None, highlight=False, emoji=False, markup=False
-    )
-    for item in suggestion_renderables(s, before, caution, ascii_only=ascii_only):
-        console.print(item)
-    text = "\n".join(line.rstrip() for line in buf.getvalue().splitlines())
-    return text + "\n"
+    return plain_text(suggestion_renderables(s, before, caution, ascii_only=ascii_only), width)
 
 
 def print_suggestion(s: Suggestion, before: Schedule, caution: str, console: Console) -> None:

@@ -27,6 +27,7 @@ readings in :mod:`tri.report.text_voltage`, the wiring in
 from __future__ import annotations
 
 import io
+from collections.abc import Iterable
 from typing import Any
 
 from rich.console import Console, Group, RenderableType
@@ -187,6 +188,17 @@ def print_text(data: dict[str, Any], console: Console) -> None:
     ascii_only = not console.encoding.lower().startswith("utf")
     for item in text_renderables(data, ascii_only=ascii_only):
         console.print(item)
+
+
+def plain_text(items: Iterable[RenderableType], width: int = WIDTH) -> str:
+    """Renderables printed without colour: lines without trailing spaces, ending with a newline."""
+    buf = io.StringIO()
+    console = Console(
+        file=buf, width=width, color_system=None, highlight=False, emoji=False, markup=False
+    )
+    for item in items:
+        console.print(item)
+    return "\n".join(line.rstrip() for line in buf.getvalue().splitlines()) + "\n"
 
 
 def render_text(

@@ -43,12 +43,11 @@ it in words (null without).
 
 from __future__ import annotations
 
-import io
 import json
 from dataclasses import dataclass
 from typing import Any, cast
 
-from rich.console import Console, RenderableType
+from rich.console import RenderableType
 from rich.rule import Rule
 from rich.table import Table
 from rich.text import Text
@@ -56,7 +55,7 @@ from rich.text import Text
 from tri.rebalance import Figures, Move, Suggestion, WorkStep
 from tri.rebalance.tree_results import PanelPlan, TreeSuggestion
 from tri.report.data import num
-from tri.report.text_report import to_ascii
+from tri.report.text_report import plain_text, to_ascii
 from tri.report.tree_figures import figures_table
 from tri.report.work_order import GROUP_COUNT, WorkLine, fixed, moves_count_words, work_order
 from tri.schedule.model import Schedule
@@ -364,10 +363,6 @@ def render_tree_text(
     ascii_only: bool = False,
 ) -> str:
     """The work order as plain text (no colour), lines without trailing spaces."""
-    buf = io.StringIO()
-    console = Console(
-        file=buf, width=width, color_system=None, highlight=False, emoji=False, markup=False
+    return plain_text(
+        tree_renderables(s, before, caution, ascii_only=ascii_only, width=width), width
     )
-    for item in tree_renderables(s, before, caution, ascii_only=ascii_only, width=width):
-        console.print(item)
-    return "\n".join(line.rstrip() for line in buf.getvalue().splitlines()) + "\n"
