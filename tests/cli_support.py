@@ -11,8 +11,13 @@ from __future__ import annotations
 
 import contextlib
 import io
+import os
+import pty
+import select
+import signal
 import subprocess
 import sys
+import time
 from dataclasses import dataclass
 from pathlib import Path
 
@@ -66,3 +71,46 @@ def assert_clean_error(r: Result) -> None:
     assert r.stderr.startswith("tri: error:"), r.stderr
     assert "Traceback" not in r.stderr
     assert control_chars(r.stderr) == [], r.stderr
+
+
+def read_until(fd: int, word: bytes, limit_s: float) -> bytes:
+    """Bytes read from ``fd`` until ``word`` appears (or ``limit_s`` passes, or it closes)."""
+    seen, end = b"", time.monotonic() + limit_s
+    while word not in seen and time.monotonic() < end:
+        ready, _, _ = select.select([fd], [], [], 0.5)
+        if ready:
+            try:
+                seen += os.read(fd, 4096)
+            except OSError:  # the child closed its terminal
+                break
+    return seen
+
+
+def ctrl_c_tri(*args: str, once: bytes, cwd: Path | None = None) -> Result:
+    """``python -m tri ARGS...`` with standard error on a terminal (so progress shows),
+    sent Ctrl+C (SIGINT) once ``once`` appears in its progress.
+
+    Standard error is read all along, so the child never blocks writing to it; when
+    the child does not end 150 s after the signal, the test fails showing its last
+    words. ``stderr`` is everything it wrote there.
+    """
+    import pytest
+
+    master, slave = pty.openpty()
+    proc = subprocess.Popen(
+        [sys.executable, "-m", "tri", *args], stdout=subprocess.PIPE, stderr=slave, cwd=cwd
+    )
+    os.close(slave)
+    try:
+        seen = read_until(master, once, 120)
+        assert once in seen, seen  # the search is under way
+        proc.send_signal(signal.SIGINT)
+        seen += read_until(master, b"best plan so far", 120)
+        try:
+            out, _ = proc.communicate(timeout=30)
+        except subprocess.TimeoutExpired:
+            pytest.fail(f"still running 150 s after Ctrl+C; its standard error: {seen[-600:]!r}")
+    finally:
+        os.close(master)
+        proc.kill()
+    return Result(proc.returncode, out.decode(), seen.decode(errors="replace"))

@@ -10,19 +10,12 @@ LP-2), and the building search must find a plan with exactly their sum.
 from __future__ import annotations
 
 import json
-import os
-import pty
-import select
-import signal
-import subprocess
-import sys
-import time
 from dataclasses import replace
 from pathlib import Path
 
 import numpy as np
 import pytest
-from cli_support import run_tri
+from cli_support import ctrl_c_tri, run_tri
 
 from tri.schedule.tree import load_tree, with_schedules
 from tri.schedule.tree_to_engine import analyse_building
@@ -107,7 +100,6 @@ def test_json_plan_rolled_up_again_by_the_engine():
 
 
 def pytest_approx(x: float):
-    import pytest
 
     return pytest.approx(x, rel=1e-8, abs=1e-9)  # JSON rounds to 9 significant digits
 
@@ -283,50 +275,16 @@ def test_time_limit_gives_best_found_with_a_bound(tmp_path):
 SEARCH_ARGS = ("--target", "0.5", "--child-target", "1", "--time-limit", "900", "--format", "json")
 
 
-def _read_until(fd: int, word: bytes, limit_s: float) -> bytes:
-    """Bytes read from ``fd`` until ``word`` appears (or ``limit_s`` passes)."""
-    seen, end = b"", time.monotonic() + limit_s
-    while word not in seen and time.monotonic() < end:
-        ready, _, _ = select.select([fd], [], [], 0.5)
-        if ready:
-            try:
-                seen += os.read(fd, 4096)
-            except OSError:  # the child closed its terminal
-                break
-    return seen
-
-
 def test_ctrl_c_ends_with_the_best_so_far(tmp_path):
     """Ctrl+C once the search is under way (as on a terminal: the progress line shows)."""
     root = _big_building(tmp_path)
-    master, slave = pty.openpty()  # standard error on a terminal, so progress is shown
-    proc = subprocess.Popen(
-        [sys.executable, "-m", "tri", "suggest", str(root), *SEARCH_ARGS],
-        stdout=subprocess.PIPE,
-        stderr=slave,
-        cwd=ROOT,
-    )
-    os.close(slave)
-    try:
-        started = _read_until(master, b"bounding", 120)
-        assert b"bounding" in started, started  # the search is under way
-        proc.send_signal(signal.SIGINT)
-        # standard error read while waiting, so the child never blocks writing to it, and
-        # shown if the child does not end (the search's last words say where it was)
-        err = (started + _read_until(master, b"best plan so far", 120)).decode()
-        try:
-            out, _ = proc.communicate(timeout=30)
-        except subprocess.TimeoutExpired:
-            pytest.fail(f"still running 150 s after Ctrl+C; its standard error: {err[-600:]!r}")
-    finally:
-        os.close(master)
-        proc.kill()
-    d = json.loads(out)
+    r = ctrl_c_tri("suggest", str(root), *SEARCH_ARGS, once=b"bounding", cwd=ROOT)
+    d = json.loads(r.stdout)
     if d["stopped"] is None:  # the search settled before the signal: nothing to check
         assert d["status"] in ("optimal", "infeasible")
         return
     assert d["stopped"] == "cancelled"
-    assert "stopped by Ctrl+C" in err and "Traceback" not in err
+    assert "stopped by Ctrl+C" in r.stderr and "Traceback" not in r.stderr
     assert d["status"] == "best-found"
-    assert proc.returncode == (0 if d["target_met"] else 1)
+    assert r.returncode == (0 if d["target_met"] else 1)
     assert "stopped by the user" in d["status_text"]

@@ -14,6 +14,7 @@ not a published value.
 
 from __future__ import annotations
 
+from dataclasses import replace
 from pathlib import Path
 
 import numpy as np
@@ -24,6 +25,7 @@ from tri.rebalance import SuggestOptions, suggest
 from tri.rebalance.control import MAX_SLICE_S, Cancelled, Control
 from tri.rebalance.model import Model, Solution
 from tri.rebalance.tree_solve import TreeOptions, suggest_tree
+from tri.report.work_order import status_words
 from tri.schedule.load import load_schedule
 from tri.schedule.tree import load_tree
 
@@ -73,6 +75,17 @@ def test_single_panel_slices_stop_at_the_cap(solver: NeverAnswers, options: Sugg
     with pytest.raises(Cancelled):  # a single panel's search ends so when cancelled
         suggest(schedule, options, cancel=solver.cancel)
     _assert_sliced(solver)
+
+
+def test_a_kept_search_returns_the_best_plan_so_far(solver: NeverAnswers):
+    """The command line's Ctrl+C: the best plan so far, claiming no more than was proven."""
+    schedule = load_schedule(DEMOS / "machine_shop_480.toml").schedule
+    options = SuggestOptions(target_pct=0.1, list_plans=False, time_limit_s=600)
+    result = suggest(schedule, options, cancel=solver.cancel, keep_best_on_cancel=True)
+    assert result.stopped == "cancelled"
+    assert result.status == "best-found"  # the stand-in solver proves nothing
+    assert "stopped by the user" in status_words(result)
+    assert suggest(schedule, replace(options, time_limit_s=1)).stopped is None
 
 
 def test_building_slices_stop_at_the_cap(solver: NeverAnswers, tmp_path: Path):

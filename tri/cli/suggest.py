@@ -148,6 +148,7 @@ def _check_write_target(target: str) -> None:
 
 def run(args: argparse.Namespace) -> int:
     """Run ``tri suggest``; returns 0 or 1 (bad input raises, exit 2)."""
+    from tri.cli.stoppable import run_stoppable
     from tri.rebalance import suggest
 
     options = _options(args)
@@ -165,11 +166,18 @@ def run(args: argparse.Namespace) -> int:
     progress = SearchProgress()
     try:
         with native_stdout_to_devnull():
-            result = suggest(schedule, options, progress=progress)
+            result = run_stoppable(
+                lambda cancel: suggest(
+                    schedule, options, progress=progress, cancel=cancel, keep_best_on_cancel=True
+                ),
+                progress,
+            )
     except ValueError as exc:
         raise CliError(f"{args.file}: cannot rebalance this schedule: {exc}") from None
     finally:
         progress.clear()
+    if result.stopped == "cancelled":
+        print("tri: stopped by Ctrl+C; shown: the best plan so far", file=sys.stderr)
 
     if args.write:
         from tri.schedule.save import save_schedule

@@ -25,16 +25,11 @@ from __future__ import annotations
 
 import argparse
 import os
-import signal
 import sys
-import threading
 from typing import Any
 
 from tri.cli.common import EXIT_LIMIT, EXIT_OK, SAFETY_CAUTION, CliError, SearchProgress
 from tri.native_output import native_stdout_to_devnull
-
-#: How often the waiting main thread wakes to notice Ctrl+C [s].
-_POLL_S = 0.1
 
 
 def add_tree_arguments(p: Any) -> None:
@@ -93,48 +88,13 @@ def _options(args: argparse.Namespace) -> Any:
 
 
 def _search(tree, options, progress) -> Any:
-    """Run the search in a worker; Ctrl+C sets its cancel event and waits for the best so far.
-
-    The first Ctrl+C only sets the event, from a signal handler: no exception is
-    raised in the waiting main thread, where one landing inside the wait's own
-    locking could leave a lock held and both threads waiting for ever. A second
-    Ctrl+C aborts (``KeyboardInterrupt``, exit 130).
-    """
+    """The building search; Ctrl+C ends it with the best plan so far (:mod:`tri.cli.stoppable`)."""
+    from tri.cli.stoppable import run_stoppable
     from tri.rebalance.tree_solve import suggest_tree
 
-    cancel, done = threading.Event(), threading.Event()
-    out: dict[str, Any] = {}
-
-    def work() -> None:
-        try:
-            out["result"] = suggest_tree(tree, options, progress=progress, cancel=cancel)
-        except BaseException as exc:  # handed to the main thread
-            out["error"] = exc
-        finally:
-            done.set()
-
-    def on_ctrl_c(signum: int, frame: Any) -> None:
-        if cancel.is_set():
-            raise KeyboardInterrupt  # a second Ctrl+C: abort
-        cancel.set()
-
-    # waiting on an event, not Thread.join: an interrupted join can leave the
-    # thread marked as ended while it still runs (CPython gh-90882)
-    main = threading.current_thread() is threading.main_thread()  # handlers live there only
-    previous = signal.signal(signal.SIGINT, on_ctrl_c) if main else None
-    try:
-        threading.Thread(target=work, name="tri-suggest-tree", daemon=True).start()
-        told = False
-        while not done.wait(_POLL_S):
-            if cancel.is_set() and not told:
-                progress(None, "stopping: finishing the current step (Ctrl+C again to abort)")
-                told = True
-    finally:
-        if main:
-            signal.signal(signal.SIGINT, previous)
-    if "error" in out:
-        raise out["error"]
-    return out["result"]
+    return run_stoppable(
+        lambda cancel: suggest_tree(tree, options, progress=progress, cancel=cancel), progress
+    )
 
 
 def _check_folder(folder: str, step: Any) -> Any:

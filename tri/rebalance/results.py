@@ -186,6 +186,10 @@ class Suggestion:
         phase RMS current).
     floor_case : str or None
         With scenarios: the case whose floor is ``floor_a``.
+    stopped : {"cancelled"} or None
+        ``cancelled``: the search was stopped from outside before it ended
+        (``suggest(keep_best_on_cancel=True)``, the command line's Ctrl+C) and
+        this is the best plan so far, its status what was proven by then.
     """
 
     status: Status
@@ -210,6 +214,7 @@ class Suggestion:
     cases: tuple[CaseResult, ...] = ()
     deciding: str | None = None
     floor_case: str | None = None
+    stopped: Literal["cancelled"] | None = None
 
     @property
     def worst_max_phase_rms_a(self) -> float:

@@ -35,6 +35,7 @@ from __future__ import annotations
 
 import re
 from dataclasses import dataclass, field, replace
+from typing import Literal
 
 import numpy as np
 
@@ -83,6 +84,7 @@ class _Run:
     notes: list[str] = field(default_factory=list)
     calls: int = 0
     before_cases: list[tuple[str, Figures]] = field(default_factory=list)
+    keep_best_on_cancel: bool = False
 
     @property
     def has_new(self) -> bool:
@@ -225,6 +227,7 @@ def suggest(
     *,
     progress: ProgressCallback | None = None,
     cancel: CancelHook | None = None,
+    keep_best_on_cancel: bool = False,
 ) -> Suggestion:
     """Propose breaker moves for a panel (module notes).
 
@@ -238,6 +241,9 @@ def suggest(
         ``progress(fraction or None, message)`` during the search.
     cancel : threading.Event or callable, optional
         Stops the search from another thread.
+    keep_best_on_cancel : bool
+        When the cancel hook fires: return the best plan so far (``stopped =
+        "cancelled"``, the status what was proven by then) instead of raising.
 
     Returns
     -------
@@ -248,7 +254,7 @@ def suggest(
     ValueError
         For options the panel cannot take (a neutral limit on a 3-wire system).
     Cancelled
-        When the cancel hook fired.
+        When the cancel hook fired (unless ``keep_best_on_cancel``).
     """
     opts = options or SuggestOptions()
     if opts.neutral_max_a is not None and not schedule.system.has_neutral:
@@ -265,6 +271,7 @@ def suggest(
     free = free_indices(schedule, opts)
     pr = build_problem(schedule, free)
     run = _Run(pr, opts, control, before[0][1], goal, before_cases=before)
+    run.keep_best_on_cancel = keep_best_on_cancel
     run.notes.extend(unit_notes(schedule, free, pr))
     reach = schedule.panel.max_row_shift if schedule.panel.uses_slots else None
     if reach is not None:
@@ -309,8 +316,11 @@ def _check_engine(run: _Run, plan: Plan, after: list[tuple[str, Figures]]) -> No
 
 def _finish(run: _Run, plan: Plan | None, status: Status, bound: float | None) -> Suggestion:
     control, pr, opts = run.control, run.pr, run.opts
+    stopped: Literal["cancelled"] | None = None
     if control.cancelled():
-        raise Cancelled
+        if not run.keep_best_on_cancel:
+            raise Cancelled
+        stopped = "cancelled"
     moves, steps = moves_for(pr, plan) if plan is not None and pr.n_free else ([], [])
     after_schedule = apply_moves(pr.schedule, moves)
     after_cases = _case_figures(after_schedule) if moves else run.before_cases
@@ -355,6 +365,7 @@ def _finish(run: _Run, plan: Plan | None, status: Status, bound: float | None) -
         else (),
         deciding=_deciding(opts, after_cases) if scen else None,
         floor_case=pr.case_names[int(np.argmax(floors))] if scen else None,
+        stopped=stopped,
     )
 
 

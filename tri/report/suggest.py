@@ -22,7 +22,8 @@ that moves as one block (the group's breakers move together and count as
 one relocation); ``work_order`` (the numbered steps: ``step``, ``action``,
 ``circuit``, ``text``); in ``before`` and ``after``, ``limits`` (the
 engine's findings at level "limit": ratings still exceeded);
-``unplaced_left``; ``notes``; ``caution``. With ``use`` scenarios
+``unplaced_left``; ``notes``; ``caution``; ``stopped`` (``"cancelled"`` when
+Ctrl+C stopped the search and this is the best plan so far, else ``null``). With ``use`` scenarios
 (``null`` / empty without): ``cases`` (one object per case, the connected
 load first: ``name``, ``deciding`` (true for the case that decides after
 the moves), ``before`` and ``after`` as above; the top-level ``before`` and
@@ -149,6 +150,7 @@ def suggestion_data(s: Suggestion, before: Schedule, caution: str) -> dict[str, 
         "deciding_case": s.deciding,
         "floor_case": s.floor_case,
         "deciding_text": deciding_words(s),
+        "stopped": s.stopped,
     }
 
 

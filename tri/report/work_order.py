@@ -247,6 +247,8 @@ def _balance_words(s: Suggestion) -> str:
     if s.status == "infeasible":
         return "no plan fits (proven); nothing is proposed"
     text = "best found, not proven optimal"
+    if s.stopped:
+        text = "best found before the search was stopped by the user, not proven optimal"
     if s.bound is not None:
         top = s.worst_max_phase_rms_a
         gap = 100.0 * (top / s.bound - 1.0) if s.bound > 0 else 0.0
@@ -282,10 +284,11 @@ def _fewest_words(s: Suggestion) -> str:
         if bound > 0
         else "no lower bound on the relocations was proven"
     )
+    when = "before the search was stopped by the user" if s.stopped else "in the time limit"
     if s.target_met:
-        return f"best found in the time limit, not proven optimal; {proven}"
+        return f"best found {when}, not proven optimal; {proven}"
     return (
-        f"no plan{budget} meeting {goal} was found in the time limit (not proven "
+        f"no plan{budget} meeting {goal} was found {when} (not proven "
         f"impossible); {proven}; shown: the best balance found"
     )
 
