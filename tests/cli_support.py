@@ -11,6 +11,7 @@ from __future__ import annotations
 
 import contextlib
 import io
+import json
 import os
 import pty
 import select
@@ -20,6 +21,7 @@ import sys
 import time
 from dataclasses import dataclass
 from pathlib import Path
+from typing import Any
 
 from tri.cli import main
 from tri.schedule.text import is_refused_char
@@ -114,3 +116,19 @@ def ctrl_c_tri(*args: str, once: bytes, cwd: Path | None = None) -> Result:
         os.close(master)
         proc.kill()
     return Result(proc.returncode, out.decode(), seen.decode(errors="replace"))
+
+
+def stopped_plan(r: Result) -> dict[str, Any] | None:
+    """The JSON of a search stopped by :func:`ctrl_c_tri`, checked for what every such run
+    shows (best plan so far, said on standard error and in the status, exit as for the
+    time limit); None when the search had settled before the signal came."""
+    d = json.loads(r.stdout)
+    if d["stopped"] is None:  # settled first: a proven answer
+        assert d["status"] in ("optimal", "infeasible")
+        return None
+    assert d["stopped"] == "cancelled"
+    assert "stopped by Ctrl+C" in r.stderr and "Traceback" not in r.stderr
+    assert r.returncode == (0 if d["status"] != "infeasible" and d["target_met"] else 1)
+    if d["status"] == "best-found":
+        assert "stopped by the user" in d["status_text"]
+    return d

@@ -15,7 +15,7 @@ from pathlib import Path
 
 import numpy as np
 import pytest
-from cli_support import ctrl_c_tri, run_tri
+from cli_support import ctrl_c_tri, run_tri, stopped_plan
 
 from tri.schedule.tree import load_tree, with_schedules
 from tri.schedule.tree_to_engine import analyse_building
@@ -278,13 +278,6 @@ SEARCH_ARGS = ("--target", "0.5", "--child-target", "1", "--time-limit", "900", 
 def test_ctrl_c_ends_with_the_best_so_far(tmp_path):
     """Ctrl+C once the search is under way (as on a terminal: the progress line shows)."""
     root = _big_building(tmp_path)
-    r = ctrl_c_tri("suggest", str(root), *SEARCH_ARGS, once=b"bounding", cwd=ROOT)
-    d = json.loads(r.stdout)
-    if d["stopped"] is None:  # the search settled before the signal: nothing to check
-        assert d["status"] in ("optimal", "infeasible")
-        return
-    assert d["stopped"] == "cancelled"
-    assert "stopped by Ctrl+C" in r.stderr and "Traceback" not in r.stderr
-    assert d["status"] == "best-found"
-    assert r.returncode == (0 if d["target_met"] else 1)
-    assert "stopped by the user" in d["status_text"]
+    d = stopped_plan(ctrl_c_tri("suggest", str(root), *SEARCH_ARGS, once=b"bounding", cwd=ROOT))
+    if d is not None:
+        assert d["status"] == "best-found"
