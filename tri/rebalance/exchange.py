@@ -139,12 +139,8 @@ def exchange_search(
     while not out_of_time() and not ls.done() and idle < PATIENCE:
         while not out_of_time() and not ls.done() and exchange_step(ls, rng):
             ls.descend()
-        p, s = ls.score()
-        within = goal.max_moves is None or ls.moves <= goal.max_moves
-        idle += 1
-        if within and ls._better(p, s, ref):
-            best, ref, idle = ls.assign.copy(), (p, s), 0
-        ls.load(best)
+        best, ref, better = ls.keep_better(best, ref)
+        idle = 0 if better else idle + 1
         ls.kick(rng, int(rng.integers(2, 5)))
         ls.descend()
     return best

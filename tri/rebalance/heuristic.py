@@ -285,6 +285,18 @@ class LocalSearch:
         for i in np.flatnonzero(self.assign != assign):
             self.set(int(i), int(assign[i]))
 
+    def keep_better(
+        self, best: np.ndarray, ref: tuple[float, float]
+    ) -> tuple[np.ndarray, tuple[float, float], bool]:
+        """The better of the plan now and ``best`` (scored ``ref``), now within the budget
+        only; that plan is loaded. Returns it, its score and whether it is the plan now."""
+        p, s = self.score()
+        within = self.goal.max_moves is None or self.moves <= self.goal.max_moves
+        if within and self._better(p, s, ref):
+            return self.assign.copy(), (p, s), True
+        self.load(best)
+        return best, ref, False
+
     def kick(self, rng: np.random.Generator, changes: int) -> None:
         """Apply a few random changes that keep capacity and the budget."""
         pr = self.pr
@@ -324,14 +336,8 @@ class LocalSearch:
                 break
             self.kick(rng, int(rng.integers(1, 4)))
             self.descend()
-            p, s = self.score()
-            within = self.goal.max_moves is None or self.moves <= self.goal.max_moves
-            if within and self._better(p, s, ref):
-                best, ref, idle = self.assign.copy(), (p, s), 0
-                improved += 1
-            else:
-                self.load(best)
-                idle += 1
+            best, ref, better = self.keep_better(best, ref)
+            idle, improved = (0, improved + 1) if better else (idle + 1, improved)
         self.load(best)
         return improved
 
