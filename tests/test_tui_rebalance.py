@@ -191,7 +191,9 @@ async def test_cancel_stops_the_real_search(tmp_path: Path) -> None:
         await pilot.press("escape")
         await search_done(pilot)
         assert not screen.running
-        assert "Cancelled" in state(screen)
+        # stopped, not thrown away: the best plan so far, saying so; nothing applied
+        assert "stopped by the user" in state(screen)
+        assert screen.plan is not None and screen.plan.stopped == "cancelled"
         assert app.session.schedule == before
         assert threading.active_count() < 10
         await pilot.press("escape")

@@ -58,12 +58,12 @@ class RebalanceProgress(Message):
 
 
 class RebalanceDone(Message):
-    """The rebalancer finished (``plan`` is ``None`` on error or cancel; ``error`` says why)."""
+    """The rebalancer finished (``plan`` is ``None`` on error; ``error`` says why). A search
+    stopped with Esc still brings its best plan so far (``Suggestion.stopped``)."""
 
-    def __init__(self, plan: Any, error: str | None, cancelled: bool = False) -> None:
+    def __init__(self, plan: Any, error: str | None) -> None:
         self.plan = plan
         self.error = error
-        self.cancelled = cancelled
         super().__init__()
 
 

@@ -1,7 +1,8 @@
 """Rebalance: choose the mode, run the rebalancer in a worker, read the work order, apply.
 
 The screen calls the rebalancer's public function (:func:`tri.rebalance.suggest`)
-from a worker thread with a progress bar; Esc cancels it. What it shows is
+from a worker thread with a progress bar; Esc stops it with the best plan so
+far (nothing changes until a plan is applied). What it shows is
 what ``tri suggest`` prints, from the same data and the same words
 (:mod:`tri.report.suggest`): the status and its proven bound, the count of
 relocations, the numbered work order, the engine's figures before and
@@ -27,7 +28,6 @@ from textual.widgets import DataTable, Input, ProgressBar, Static
 from tri.native_output import native_stdout_to_devnull
 from tri.rebalance import (
     DEFAULT_TARGET_PCT,
-    Cancelled,
     Suggestion,
     SuggestOptions,
     apply_moves,
@@ -78,7 +78,8 @@ relocations; only the best free slots for circuits not placed yet; or a full
 re-layout for design work. New circuits are placed in the first two modes
 too. Neutral A, when given, is the largest neutral RMS current the plan may
 leave (every mode; blank: no limit). Enter in a field, Ctrl+R or F5 runs;
-Esc cancels a run, or goes back. Locked circuits never move. The status says
+Esc stops a run with the best plan so far (its status says what was proven by
+then), or goes back. Locked circuits never move. The status says
 what was proven, as tri suggest does. The result is a work order: each line
 is one step. Space selects or clears a move; a applies the selected moves, A
 applies all of them; u in the main view undoes. Before and after figures are
@@ -229,7 +230,7 @@ class RebalanceScreen(Screen[None]):
         self.plan, self.lines = None, ()
         self.cancel_event = threading.Event()
         self.query_one("#rb-progress", ProgressBar).update(progress=0.0)
-        self._state("Searching… Esc cancels.")
+        self._state("Searching… Esc stops with the best so far.")
         self._search(app.session.schedule, options, self.cancel_event)
 
     @work(thread=True, exclusive=True, group="rebalance", exit_on_error=False)
@@ -237,10 +238,10 @@ class RebalanceScreen(Screen[None]):
         progress = progress_poster(self)
         try:
             with native_stdout_to_devnull():
-                result = suggest(schedule, options, progress=progress, cancel=cancel)
+                result = suggest(
+                    schedule, options, progress=progress, cancel=cancel, keep_best_on_cancel=True
+                )
             message = RebalanceDone((schedule, result), None)
-        except Cancelled:
-            message = RebalanceDone(None, None, cancelled=True)
         except ValueError as exc:  # options the panel cannot take
             message = RebalanceDone(None, f"Cannot rebalance this panel: {exc}.")
         except Exception as exc:  # shown as a message; the schedule is untouched
@@ -250,14 +251,14 @@ class RebalanceScreen(Screen[None]):
     def on_rebalance_progress(self, message: RebalanceProgress) -> None:
         if message.fraction is not None:
             self.query_one("#rb-progress", ProgressBar).update(progress=message.fraction)
-        self._state(message.text + "  (Esc cancels)")
+        self._state(message.text + "  (Esc stops)")
 
     def on_rebalance_done(self, message: RebalanceDone) -> None:
         self.running = False
         bar = self.query_one("#rb-progress", ProgressBar)
         if message.plan is None:
             bar.update(progress=0.0)
-            self._state("Cancelled; nothing changed." if message.cancelled else str(message.error))
+            self._state(str(message.error))
             return
         bar.update(progress=1.0)
         self.before, self.plan = message.plan
@@ -353,6 +354,6 @@ class RebalanceScreen(Screen[None]):
     def action_cancel_or_back(self) -> None:
         if self.running and self.cancel_event is not None:
             self.cancel_event.set()
-            self._state("Cancelling…")
+            self._state("Stopping: the best plan so far follows…")
             return
         self.app.pop_screen()
