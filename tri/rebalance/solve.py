@@ -270,15 +270,8 @@ def suggest(
     )
     free = free_indices(schedule, opts)
     pr = build_problem(schedule, free)
-    run = _Run(
-        pr,
-        opts,
-        control,
-        before[0][1],
-        goal,
-        before_cases=before,
-        keep_best_on_cancel=keep_best_on_cancel,
-    )
+    keep = keep_best_on_cancel
+    run = _Run(pr, opts, control, before[0][1], goal, before_cases=before, keep_best_on_cancel=keep)
     run.notes.extend(unit_notes(schedule, free, pr))
     reach = schedule.panel.max_row_shift if schedule.panel.uses_slots else None
     if reach is not None:
